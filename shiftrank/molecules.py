@@ -1,0 +1,121 @@
+"""Reading candidate structures: SMILES strings and SDF / molfile / SMILES files.
+
+Every reader yields :class:`MolRecord` objects in input order; a record that
+cannot be read carries ``error`` instead of ``mol`` so that one bad entry never
+stops a batch.
+"""
+from __future__ import annotations
+
+import gzip
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Iterator
+
+from rdkit import Chem, RDLogger
+
+from .errors import InputError
+
+RDLogger.DisableLog("rdApp.*")
+
+#: Elements an organic molecule may contain for prediction.
+ORGANIC = frozenset({"H", "B", "C", "N", "O", "F", "Si", "P", "S", "Cl", "Se", "Br", "I", "Ge", "As", "Sn", "Te"})
+
+
+@dataclass
+class MolRecord:
+    """One input structure: an id, the RDKit molecule (hydrogens removed) or an error."""
+
+    id: str
+    mol: Chem.Mol | None
+    source: str  # SMILES string or "file:record"
+    error: str | None = None
+
+
+def to_mol(smiles: str) -> Chem.Mol:
+    """Parse a SMILES string into a sanitised RDKit molecule, or raise :class:`InputError`.
+
+    >>> to_mol("c1ccncc1").GetNumAtoms()
+    6
+    """
+    if not isinstance(smiles, str) or not smiles.strip():
+        raise InputError("SMILES: empty string")
+    mol = Chem.MolFromSmiles(smiles.strip())
+    if mol is None:
+        raise InputError(f"SMILES '{smiles}': RDKit cannot parse it (check brackets, ring closures and valences)")
+    if mol.GetNumAtoms() == 0:
+        raise InputError(f"SMILES '{smiles}': no atoms")
+    return mol
+
+
+def check_organic(mol: Chem.Mol, label: str) -> None:
+    """Raise :class:`InputError` when ``mol`` has no carbon or contains a metal."""
+    syms = {a.GetSymbol() for a in mol.GetAtoms()}
+    other = sorted(syms - ORGANIC)
+    if other:
+        raise InputError(f"{label}: contains {', '.join(other)}; only organic molecules (no metals) are supported")
+    if "C" not in syms:
+        raise InputError(f"{label}: has no carbon atom")
+
+
+def _smiles_lines(path: Path, text: str) -> Iterator[MolRecord]:
+    for lineno, line in enumerate(text.splitlines(), 1):
+        line = line.strip()
+        if not line or line.startswith("#"):
+            continue
+        parts = line.split(None, 1)
+        smi = parts[0]
+        rid = parts[1].strip() if len(parts) > 1 else smi
+        try:
+            mol = to_mol(smi)
+        except InputError as exc:
+            yield MolRecord(rid, None, smi, f"{path.name} line {lineno}: {exc}")
+            continue
+        yield MolRecord(rid, mol, smi)
+
+
+def _sdf_records(path: Path, text: str) -> Iterator[MolRecord]:
+    blocks = text.split("$$$$")
+    if blocks and not blocks[-1].strip():
+        blocks = blocks[:-1]
+    for i, block in enumerate(blocks):
+        block = block.lstrip("\r\n") if i else block
+        title = block.splitlines()[0].strip() if block.strip() else ""
+        rid = title or f"record {i + 1}"
+        mol = Chem.MolFromMolBlock(block, sanitize=True, removeHs=True)
+        if mol is None:
+            yield MolRecord(rid, None, f"{path.name}:{i + 1}",
+                            f"{path.name} record {i + 1} ('{rid}'): RDKit cannot read this molblock")
+            continue
+        yield MolRecord(rid, mol, f"{path.name}:{i + 1}")
+
+
+def read_molecules(path: str | Path) -> list[MolRecord]:
+    """Read an SDF (.sdf, .sdf.gz), a molfile (.mol) or a SMILES file (.smi, .txt, .smiles).
+
+    SMILES files hold one SMILES per line with an optional id after whitespace.
+    Raises :class:`InputError` for a missing, empty or unknown file; bad records
+    come back with ``error`` set.
+    """
+    p = Path(path)
+    if not p.exists():
+        raise InputError(f"{p}: no such file")
+    if p.is_dir():
+        raise InputError(f"{p}: is a directory, expected a structure file")
+    name = p.name.lower()
+    try:
+        raw = gzip.open(p, "rb").read() if name.endswith(".gz") else p.read_bytes()
+        text = raw.decode("utf-8", errors="replace")
+    except OSError as exc:
+        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    if not text.strip():
+        raise InputError(f"{p}: file is empty")
+    stem = name[:-3] if name.endswith(".gz") else name
+    if stem.endswith((".sdf", ".mol", ".sd", ".mdl")):
+        records = list(_sdf_records(p, text))
+    elif stem.endswith((".smi", ".smiles", ".txt", ".ism", ".can")):
+        records = list(_smiles_lines(p, text))
+    else:
+        raise InputError(f"{p}: unknown structure file type; use .sdf, .mol, .smi or .txt")
+    if not records:
+        raise InputError(f"{p}: no structures found")
+    return records

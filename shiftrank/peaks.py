@@ -1,0 +1,260 @@
+"""Observed peak lists: reading, validation, duplicates and residual solvent.
+
+Plain text (one peak per line: shift, optional intensity/integral and
+multiplicity; ``#`` starts a comment), CSV with a header row, or JSON.
+
+>>> pl = parse_peaks("128.4 CH\\n21.3 CH3\\n", source="inline")
+>>> [p.shift for p in pl.peaks]
+[21.3, 128.4]
+"""
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from .errors import InputError
+from .solvents import SOLVENTS, match_solvent, normalise_solvent
+
+RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}
+
+#: DEPT-style multiplicities; s/d/t/q is the off-resonance notation (common practice).
+_MULT = {
+    "c": "C", "c0": "C", "ch0": "C", "s": "C", "cq": "C", "quaternary": "C",
+    "ch": "CH", "ch1": "CH", "d": "CH",
+    "ch2": "CH2", "t": "CH2",
+    "ch3": "CH3", "q": "CH3",
+}
+_SHIFT_COLS = ("shift", "ppm", "delta", "shift_ppm", "δ", "chemical_shift")
+_MULT_COLS = ("multiplicity", "mult", "dept", "type", "chn")
+_INT_COLS = ("intensity", "integral", "height", "area", "int", "nh")
+
+
+@dataclass
+class Peak:
+    """One observed signal."""
+
+    shift: float
+    multiplicity: str | None = None   # 13C: C/CH/CH2/CH3; 1H: free text such as 'dd'
+    intensity: float | None = None    # 13C intensity or 1H integral
+    count: int = 1                    # identical entries merged into this peak
+    line: int | None = None
+    solvent: str | None = None        # note when the peak sits on a residual solvent signal
+
+
+@dataclass
+class PeakList:
+    """Peaks of one nucleus, sorted by shift, with the notes made while reading."""
+
+    nucleus: str
+    peaks: list[Peak]
+    source: str = "input"
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def shifts(self) -> list[float]:
+        return [p.shift for p in self.peaks]
+
+    def sample_peaks(self) -> list[Peak]:
+        """Peaks not flagged as solvent."""
+        return [p for p in self.peaks if p.solvent is None]
+
+
+def normalise_multiplicity(text: str | None, where: str) -> str | None:
+    """Map C/CH/CH2/CH3 (any case) or s/d/t/q to C/CH/CH2/CH3; empty means unknown."""
+    if text is None:
+        return None
+    t = str(text).strip()
+    if not t or t in ("-", "?", "na", "NA"):
+        return None
+    key = t.lower()
+    if key in _MULT:
+        return _MULT[key]
+    raise InputError(f"{where}: multiplicity '{t}' is not one of C, CH, CH2, CH3 (or s, d, t, q)")
+
+
+def _number(text, where: str, what: str) -> float:
+    try:
+        v = float(str(text).strip().replace("−", "-"))
+    except ValueError:
+        raise InputError(f"{where}: {what} '{text}' is not a number") from None
+    if not math.isfinite(v):
+        raise InputError(f"{where}: {what} '{text}' is not a finite number")
+    return v
+
+
+def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None) -> Peak:
+    s = _number(shift, where, "shift")
+    lo, hi = RANGES[nucleus]
+    if not lo <= s <= hi:
+        raise InputError(f"{where}: shift {s:g} ppm is outside the {nucleus} range {lo:g}…{hi:g} ppm")
+    m = normalise_multiplicity(mult, where) if nucleus == "13C" else (str(mult).strip() or None if mult is not None else None)
+    i = _number(inten, where, "intensity") if inten not in (None, "") else None
+    return Peak(s, m, i, 1, lineno)
+
+
+def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
+    out = []
+    for lineno, raw in enumerate(text.splitlines(), 1):
+        line = raw.split("#", 1)[0].strip()
+        if not line:
+            continue
+        toks = [t for t in re.split(r"[\s,;]+", line) if t]
+        where = f"{src} line {lineno}"
+        if not toks:
+            raise InputError(f"{where}: no shift value in '{line}'")
+        shift, rest = toks[0], toks[1:]
+        nums, words = [], []
+        for t in rest:
+            try:
+                float(t)
+                nums.append(t)
+            except ValueError:
+                words.append(t)
+        if len(nums) > 1 or len(words) > 1:
+            raise InputError(f"{where}: expected 'shift [intensity] [multiplicity]', got '{line}'")
+        out.append(_make_peak(shift, words[0] if words else None, nums[0] if nums else None, where, nucleus, lineno))
+    return out
+
+
+def _pick(header: list[str], names: tuple[str, ...]) -> int | None:
+    for i, h in enumerate(header):
+        if h.strip().lower() in names:
+            return i
+    return None
+
+
+def _from_csv(text: str, src: str, nucleus: str) -> list[Peak]:
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    dialect = csv.excel_tab if "\t" in lines[0] and "," not in lines[0] else csv.excel
+    rows = list(csv.reader(io.StringIO("\n".join(lines)), dialect))
+    header = rows[0]
+    si = _pick(header, _SHIFT_COLS)
+    if si is None:
+        raise InputError(f"{src} line 1: no shift column in header {header} (name one of: {', '.join(_SHIFT_COLS[:3])})")
+    mi, ii = _pick(header, _MULT_COLS), _pick(header, _INT_COLS)
+    out = []
+    for n, row in enumerate(rows[1:], 2):
+        where = f"{src} line {n}"
+        if len(row) <= si or not row[si].strip():
+            raise InputError(f"{where}: missing shift value")
+        get = lambda i: row[i] if i is not None and i < len(row) else None  # noqa: E731
+        out.append(_make_peak(row[si], get(mi), get(ii), where, nucleus, n))
+    return out
+
+
+def _from_json(text: str, src: str, nucleus: str) -> list[Peak]:
+    try:
+        data = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise InputError(f"{src} line {exc.lineno}: invalid JSON ({exc.msg})") from None
+    if isinstance(data, dict):
+        data = data.get("peaks", data.get(nucleus))
+    if not isinstance(data, list):
+        raise InputError(f"{src}: JSON must be a list of peaks or an object with a 'peaks' list")
+    return peaks_from_records(data, src, nucleus)
+
+
+def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C") -> list[Peak]:
+    """Peaks from a list of numbers or of objects ``{"shift", "multiplicity", "intensity"}``."""
+    out = []
+    for i, item in enumerate(data):
+        where = f"{src} peak {i + 1}"
+        if isinstance(item, dict):
+            if "shift" not in item:
+                raise InputError(f"{where}: object has no 'shift' field")
+            inten = item.get("intensity", item.get("integral"))
+            out.append(_make_peak(item["shift"], item.get("multiplicity"), inten, where, nucleus, None))
+        elif isinstance(item, (int, float)) and not isinstance(item, bool):
+            out.append(_make_peak(item, None, None, where, nucleus, None))
+        elif isinstance(item, (list, tuple)) and item:
+            out.append(_make_peak(item[0], item[1] if len(item) > 1 else None, None, where, nucleus, None))
+        else:
+            raise InputError(f"{where}: expected a number or an object with 'shift', got {json.dumps(item)[:40]}")
+    return out
+
+
+def _merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[Peak]:
+    peaks = sorted(peaks, key=lambda p: p.shift)
+    out: list[Peak] = []
+    for p in peaks:
+        last = out[-1] if out else None
+        if last is not None and abs(last.shift - p.shift) < 1e-6 and last.multiplicity == p.multiplicity:
+            last.count += 1
+            if nucleus == "1H" and p.intensity is not None:
+                last.intensity = (last.intensity or 0.0) + p.intensity
+            continue
+        out.append(p)
+    for p in out:
+        if p.count > 1:
+            notes.append(f"{p.shift:g} ppm listed {p.count} times: read as one signal of {p.count} equivalent nuclei")
+    return out
+
+
+def flag_solvent(peaks: PeakList, solvent: str | None) -> PeakList:
+    """Mark peaks on a residual solvent signal (Fulmer et al. 2010) and note each one.
+
+    13C peaks with a DEPT multiplicity other than C are never solvent (a
+    deuterated carbon carries no H).  Flagged peaks stay in the list; the
+    ranking lets them go unmatched at no cost.
+    """
+    key = normalise_solvent(solvent)
+    if key is None:
+        return peaks
+    for p in peaks.peaks:
+        if peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
+            continue
+        ref = match_solvent(p.shift, key, peaks.nucleus)
+        if ref is not None:
+            p.solvent = key
+            peaks.notes.append(f"{p.shift:g} ppm is at the residual {key} signal ({ref:g} ppm, Fulmer et al. 2010): set aside as possible solvent")
+    return peaks
+
+
+def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str | None = None,
+                solvent: str | None = None) -> PeakList:
+    """Parse peak text in ``fmt`` ('text', 'csv', 'json'; guessed when None)."""
+    if nucleus not in RANGES:
+        raise InputError(f"nucleus '{nucleus}': use 13C or 1H")
+    body = text.strip()
+    if not body:
+        raise InputError(f"{source}: no peaks (empty input)")
+    if fmt is None:
+        if body[0] in "[{":
+            fmt = "json"
+        else:
+            content = [ln for ln in body.splitlines() if ln.split("#", 1)[0].strip()]
+            if not content:
+                raise InputError(f"{source}: no peaks (only comments)")
+            first = content[0]
+            fmt = "csv" if re.search(r"[A-Za-zδ]{3,}", first) and any(c in first for c in ",\t") else "text"
+    reader = {"json": _from_json, "csv": _from_csv, "text": _from_text}.get(fmt)
+    if reader is None:
+        raise InputError(f"peak format '{fmt}': use text, csv or json")
+    raw = reader(body, source, nucleus)
+    if not raw:
+        raise InputError(f"{source}: no peaks found")
+    notes: list[str] = []
+    pl = PeakList(nucleus, _merge_duplicates(raw, notes, nucleus), source, notes)
+    return flag_solvent(pl, solvent)
+
+
+def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
+    """Read a peak file (.txt, .csv, .tsv, .json; anything else is read as text)."""
+    p = Path(path)
+    if not p.exists():
+        raise InputError(f"{p}: no such file")
+    try:
+        text = p.read_text(encoding="utf-8", errors="replace")
+    except OSError as exc:
+        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    ext = p.suffix.lower()
+    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(ext)
+    return parse_peaks(text, p.name, nucleus, fmt, solvent)
+
+
+__all__ = ["Peak", "PeakList", "parse_peaks", "read_peaks", "peaks_from_records", "flag_solvent", "SOLVENTS"]

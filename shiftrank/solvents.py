@@ -1,0 +1,86 @@
+"""Residual solvent signals in deuterated NMR solvents.
+
+Values are those of Fulmer, G. R. et al. (2010) Organometallics 29, 2176,
+Table 1 (residual 1H of the solvent and of water) and Table 2 (13C of the
+solvent), at 298 K, referenced to TMS.  Peaks that sit on these positions are
+set aside with a note rather than silently used or dropped.
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True)
+class Solvent:
+    key: str
+    name: str
+    residual_1h: tuple[float, ...]
+    water_1h: float | None
+    carbon_13c: tuple[float, ...]
+
+
+#: Fulmer et al. 2010, Tables 1 and 2.
+SOLVENTS = {
+    "CDCl3": Solvent("CDCl3", "chloroform-d", (7.26,), 1.56, (77.16,)),
+    "DMSO-d6": Solvent("DMSO-d6", "dimethyl sulfoxide-d6", (2.50,), 3.33, (39.52,)),
+    "CD3OD": Solvent("CD3OD", "methanol-d4", (3.31,), 4.87, (49.00,)),
+    "acetone-d6": Solvent("acetone-d6", "acetone-d6", (2.05,), 2.84, (29.84, 206.26)),
+    "C6D6": Solvent("C6D6", "benzene-d6", (7.16,), 0.40, (128.06,)),
+    "CD3CN": Solvent("CD3CN", "acetonitrile-d3", (1.94,), 2.13, (1.32, 118.26)),
+    "D2O": Solvent("D2O", "deuterium oxide", (4.79,), None, ()),
+    "CD2Cl2": Solvent("CD2Cl2", "dichloromethane-d2", (5.32,), 1.52, (53.84,)),
+    "THF-d8": Solvent("THF-d8", "tetrahydrofuran-d8", (1.72, 3.58), 2.46, (25.31, 67.21)),
+    "toluene-d8": Solvent("toluene-d8", "toluene-d8", (2.08, 6.97, 7.01, 7.09), 0.43, (20.43, 125.13, 127.96, 128.87, 137.48)),
+}
+
+_ALIASES = [
+    (r"cdcl3|chloroform", "CDCl3"),
+    (r"dmso|dimethyl ?sulph?oxide|c2d6so", "DMSO-d6"),
+    (r"cd3od|methanol|meod|cd4o", "CD3OD"),
+    (r"acetone|\(cd3\)2co|c3d6o", "acetone-d6"),
+    (r"c6d6|benzene", "C6D6"),
+    (r"cd3cn|acetonitrile|c2d3n", "CD3CN"),
+    (r"d2o|deuterium oxide|water", "D2O"),
+    (r"cd2cl2|dichloromethane|methylene chloride", "CD2Cl2"),
+    (r"thf|tetrahydrofuran", "THF-d8"),
+    (r"toluene", "toluene-d8"),
+]
+
+#: Half-width of the window in which a peak counts as a solvent signal.
+TOLERANCE = {"13C": 0.5, "1H": 0.05}
+
+
+def normalise_solvent(name: str | None) -> str | None:
+    """Canonical key for a solvent name, or None when unknown or unreported.
+
+    >>> normalise_solvent("Dimethylsulphoxide-D6 (DMSO-D6, C2D6SO))")
+    'DMSO-d6'
+    >>> normalise_solvent("Unreported") is None
+    True
+    """
+    if not name:
+        return None
+    s = name.strip().lower()
+    for key in SOLVENTS:
+        if s == key.lower():
+            return key
+    hits = {key for pattern, key in _ALIASES if re.search(pattern, s)}
+    return hits.pop() if len(hits) == 1 else None
+
+
+def solvent_signals(key: str, nucleus: str = "13C") -> tuple[float, ...]:
+    """Residual signals of a solvent (13C, or 1H including water)."""
+    sol = SOLVENTS[key]
+    if nucleus == "13C":
+        return sol.carbon_13c
+    return sol.residual_1h + ((sol.water_1h,) if sol.water_1h is not None else ())
+
+
+def match_solvent(shift: float, key: str, nucleus: str = "13C") -> float | None:
+    """The residual signal of ``key`` within tolerance of ``shift``, or None."""
+    tol = TOLERANCE[nucleus]
+    for ref in solvent_signals(key, nucleus):
+        if abs(shift - ref) <= tol:
+            return ref
+    return None

@@ -1,0 +1,128 @@
+"""Structure facts for a candidate: formula, masses, DBE, symmetry classes, CHn.
+
+>>> f = structure_facts("CC(C)Oc1ccc(OC(C)C)cc1")
+>>> f.formula, f.expected_13c_signals
+('C12H18O2', 4)
+"""
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass, field
+
+from rdkit import Chem
+
+from .formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight
+from .molecules import to_mol
+
+MULTIPLICITY = {0: "C", 1: "CH", 2: "CH2", 3: "CH3", 4: "CH4"}
+
+
+@dataclass
+class CarbonClass:
+    """Carbons that are topologically equivalent: one expected 13C signal."""
+
+    atoms: list[int]          # 0-based heavy-atom indices
+    multiplicity: str         # C, CH, CH2, CH3 (CH4 for methane)
+
+    @property
+    def size(self) -> int:
+        return len(self.atoms)
+
+
+@dataclass
+class StructureFacts:
+    """Everything the ranking needs to know about a candidate before any prediction."""
+
+    smiles: str
+    formula: str
+    counts: dict
+    average_mass: float
+    monoisotopic_mass: float
+    dbe: float
+    dbe_note: str | None
+    carbon_classes: list[CarbonClass]
+    hydrogen_classes: list[list[int]] = field(default_factory=list)  # heavy-atom indices carrying each H class
+
+    @property
+    def n_carbons(self) -> int:
+        return sum(c.size for c in self.carbon_classes)
+
+    @property
+    def expected_13c_signals(self) -> int:
+        return len(self.carbon_classes)
+
+    @property
+    def expected_1h_signals(self) -> int:
+        return len(self.hydrogen_classes)
+
+    def multiplicity_counts(self) -> dict:
+        """Signals per CHn type, e.g. ``{'CH3': 1, 'CH': 2, 'C': 1}``."""
+        return dict(Counter(c.multiplicity for c in self.carbon_classes))
+
+
+def element_counts(mol: Chem.Mol) -> Counter:
+    """Element counts including implicit hydrogens."""
+    c: Counter = Counter()
+    for a in mol.GetAtoms():
+        c[a.GetSymbol()] += 1
+        c["H"] += a.GetTotalNumHs()
+    if c["H"] == 0:
+        del c["H"]
+    return c
+
+
+def symmetry_ranks(mol: Chem.Mol) -> list[int]:
+    """Topological symmetry classes: RDKit canonical ranks without tie-breaking.
+
+    Stereochemistry is ignored, so diastereotopic groups (e.g. the two methyls
+    of an isopropyl group next to a stereocentre) count as equivalent.
+    """
+    return list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+
+
+def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[CarbonClass]:
+    """Group the carbons of ``mol`` into symmetry classes ordered by first atom index."""
+    ranks = symmetry_ranks(mol) if ranks is None else ranks
+    groups: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetAtomicNum() == 6:
+            groups.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    out = []
+    for atoms in sorted(groups.values(), key=lambda g: g[0]):
+        nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
+        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}")))
+    return out
+
+
+def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list[int]]:
+    """Heavy atoms carrying H, grouped by symmetry (one expected 1H signal per group)."""
+    ranks = symmetry_ranks(mol) if ranks is None else ranks
+    groups: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetTotalNumHs() > 0:
+            groups.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    return sorted(groups.values(), key=lambda g: g[0])
+
+
+def facts_from_mol(mol: Chem.Mol, smiles: str | None = None) -> StructureFacts:
+    """Structure facts of an RDKit molecule (hydrogens implicit or explicit)."""
+    mol = Chem.RemoveHs(mol)
+    counts = element_counts(mol)
+    ranks = symmetry_ranks(mol)
+    d = dbe(counts)
+    return StructureFacts(
+        smiles=smiles if smiles is not None else Chem.MolToSmiles(mol),
+        formula=hill(counts),
+        counts=dict(counts),
+        average_mass=average_weight(counts),
+        monoisotopic_mass=monoisotopic_weight(counts),
+        dbe=d,
+        dbe_note=dbe_note(d),
+        carbon_classes=carbon_classes(mol, ranks),
+        hydrogen_classes=hydrogen_classes(mol, ranks),
+    )
+
+
+def structure_facts(smiles: str) -> StructureFacts:
+    """Structure facts of a SMILES string; raises :class:`InputError` when it cannot be parsed."""
+    return facts_from_mol(to_mol(smiles), smiles)

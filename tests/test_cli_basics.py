@@ -1,0 +1,34 @@
+"""Command-line behaviour: help, exit codes, one-line errors."""
+import subprocess
+import sys
+
+
+def run(*args):
+    return subprocess.run([sys.executable, "-m", "shiftrank.cli", *args], capture_output=True, text=True)
+
+
+def test_help_lists_commands():
+    r = run("--help")
+    assert r.returncode == 0
+    for cmd in ("facts", "formula", "peaks", "demo"):
+        assert cmd in r.stdout
+
+
+def test_bad_input_is_one_line_exit_2(tmp_path):
+    p = tmp_path / "bad.txt"
+    p.write_text("12.0\nabc\n")
+    r = run("peaks", str(p))
+    assert r.returncode == 2
+    assert "Traceback" not in r.stderr
+    assert r.stderr.strip().count("\n") == 0
+    assert "bad.txt line 2" in r.stderr
+
+
+def test_missing_file_exit_2():
+    r = run("peaks", "/nonexistent/peaks.txt")
+    assert r.returncode == 2 and "no such file" in r.stderr
+
+
+def test_formula_command():
+    r = run("formula", "C6H5Br")
+    assert r.returncode == 0 and "DBE 4" in r.stdout

@@ -1,0 +1,80 @@
+"""Formula parsing, masses and DBE.
+
+Sources:
+- IUPAC CIAAW standard atomic weights, conventional values (Prohaska et al. 2022,
+  Pure Appl. Chem. 94, 573): H 1.008, C 12.011, N 14.007, O 15.999, Cl 35.45, Br 79.904.
+- Monoisotopic masses from the Atomic Mass Evaluation AME2020 (Wang et al. 2021,
+  Chin. Phys. C 45, 030003): 1H 1.00782503, 12C 12 exactly, 14N 14.00307401,
+  16O 15.99491462, 35Cl 34.96885268, 79Br 78.9183376 (values from memory).
+- DBE worked cases: the general formula DBE = 1 + 1/2 sum n_i (v_i - 2) (common practice).
+"""
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from shiftrank.errors import InputError
+from shiftrank.formula import average_weight, dbe, dbe_note, hill, ion_mz, monoisotopic_weight, parse_formula
+
+IUPAC_WEIGHT = {"H": 1.008, "C": 12.011, "N": 14.007, "O": 15.999, "Cl": 35.45, "Br": 79.904}
+AME_MASS = {"H": 1.00782503, "C": 12.0, "N": 14.00307401, "O": 15.99491462, "Cl": 34.96885268, "Br": 78.9183376}
+
+
+@pytest.mark.parametrize("formula", ["C9H9N3O2", "C6H5Br", "C2H6O", "C7H5ClO", "CH4N2O"])
+def test_masses_match_published_tables(formula):
+    counts = parse_formula(formula)
+    avg = sum(IUPAC_WEIGHT[s] * n for s, n in counts.items())
+    mono = sum(AME_MASS[s] * n for s, n in counts.items())
+    assert average_weight(counts) == pytest.approx(avg, abs=0.01)
+    assert monoisotopic_weight(counts) == pytest.approx(mono, abs=2e-5)
+
+
+def test_hill_order():
+    assert hill(parse_formula("O2N3H9C9")) == "C9H9N3O2"
+    assert hill(parse_formula("BrC6H5")) == "C6H5Br"
+    assert hill(parse_formula("ClNa")) == "ClNa"  # no carbon: alphabetical
+    assert hill(parse_formula("CH3CH2OH")) == "C2H6O"  # repeated symbols are summed
+
+
+@pytest.mark.parametrize("formula,expected", [
+    ("C5H12O", 0),      # acyclic, saturated: 0 (common practice)
+    ("C5H10O", 1),      # one ring or one C=O adds 1
+    ("C6H6O", 4),       # a benzene ring adds 4
+    ("C6H5Cl", 4),      # halogens count like H
+    ("C5H5N", 4),       # N adds 1/2 per atom: pyridine
+    ("C9H9N3O2", 7),
+    ("C2H3N", 2),       # nitrile triple bond
+    ("C4H4S", 3),       # thiophene with S counted divalent
+    ("C3H9O4P", 0),     # trimethyl phosphate with P counted trivalent: P=O is not counted
+])
+def test_dbe_worked_cases(formula, expected):
+    assert dbe(parse_formula(formula)) == expected
+
+
+def test_half_integer_dbe_is_flagged():
+    d = dbe(parse_formula("C6H7"))
+    assert d == 3.5
+    assert "half-integer" in dbe_note(d)
+    assert dbe_note(4.0) is None
+
+
+def test_ion_mz_protonated_ethanol():
+    # [C2H6O+H]+ = 2*12 + 7*1.00782503 + 15.99491462 - electron 0.00054858 (AME2020, CODATA)
+    assert ion_mz(parse_formula("C2H6O"), "M+H") == pytest.approx(47.04914, abs=1e-4)
+
+
+@pytest.mark.parametrize("bad,fragment", [
+    ("", "empty"), ("C2H3D3O", "isotope"), ("C6H5Xx", "not an element"), ("c6h6", "cannot read"),
+    ("C6H6+", "charge"), ("C6H0", "count 0"), ("(CH3)2O", "brackets"), ("C6 H6", "cannot read"),
+])
+def test_bad_formulas_are_refused_clearly(bad, fragment):
+    with pytest.raises(InputError, match=fragment):
+        parse_formula(bad)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(max_size=30))
+def test_random_text_never_crashes_formula_parser(text):
+    try:
+        counts = parse_formula(text)
+    except InputError:
+        return
+    assert all(n > 0 for n in counts.values())

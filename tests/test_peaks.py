@@ -1,0 +1,92 @@
+"""Peak lists and residual solvent signals.
+
+Solvent values: Fulmer, G. R. et al. (2010) Organometallics 29, 2176, Table 1
+(1H residual and water) and Table 2 (13C); values from memory of those tables.
+"""
+import json
+
+import pytest
+from hypothesis import given, settings, strategies as st
+
+from shiftrank.errors import InputError
+from shiftrank.peaks import parse_peaks, read_peaks
+from shiftrank.solvents import SOLVENTS, normalise_solvent
+
+FULMER_13C = {"CDCl3": [77.16], "DMSO-d6": [39.52], "CD3OD": [49.00], "acetone-d6": [29.84, 206.26],
+              "C6D6": [128.06], "CD3CN": [1.32, 118.26], "D2O": []}
+FULMER_1H = {"CDCl3": 7.26, "DMSO-d6": 2.50, "CD3OD": 3.31, "acetone-d6": 2.05, "C6D6": 7.16, "CD3CN": 1.94, "D2O": 4.79}
+FULMER_WATER = {"CDCl3": 1.56, "DMSO-d6": 3.33, "CD3OD": 4.87, "acetone-d6": 2.84, "C6D6": 0.40, "CD3CN": 2.13}
+
+
+@pytest.mark.parametrize("key", list(FULMER_13C))
+def test_solvent_table_matches_fulmer_2010(key):
+    sol = SOLVENTS[key]
+    assert list(sol.carbon_13c) == pytest.approx(FULMER_13C[key])
+    assert sol.residual_1h[0] == pytest.approx(FULMER_1H[key])
+    if key in FULMER_WATER:
+        assert sol.water_1h == pytest.approx(FULMER_WATER[key])
+
+
+@pytest.mark.parametrize("name,key", [("CDCl3", "CDCl3"), ("Chloroform-D1 (CDCl3)", "CDCl3"),
+                                      ("Dimethylsulphoxide-D6 (DMSO-D6, C2D6SO))", "DMSO-d6"),
+                                      ("Methanol-D4 (CD3OD)", "CD3OD"), ("Unreported", None), (None, None)])
+def test_solvent_names(name, key):
+    assert normalise_solvent(name) == key
+
+
+def test_text_peaks_with_comments_intensity_multiplicity():
+    pl = parse_peaks("# header\n128.4 1.0 CH\n21.3  CH3 # methyl\n170.2,s\n", source="p.txt")
+    assert [(p.shift, p.multiplicity) for p in pl.peaks] == [(21.3, "CH3"), (128.4, "CH"), (170.2, "C")]
+    assert pl.peaks[1].intensity == 1.0
+
+
+def test_csv_and_json_peaks(tmp_path):
+    c = tmp_path / "p.csv"
+    c.write_text("shift,multiplicity\n55.1,CH3\n160.0,C\n")
+    assert read_peaks(c).shifts == [55.1, 160.0]
+    j = tmp_path / "p.json"
+    j.write_text(json.dumps({"peaks": [{"shift": 14.1, "multiplicity": "CH3"}, 60.3]}))
+    assert read_peaks(j).shifts == [14.1, 60.3]
+
+
+def test_duplicates_merge_into_one_signal_with_a_note():
+    pl = parse_peaks("128.2 CH\n128.2 CH\n128.2 CH\n")
+    assert len(pl.peaks) == 1 and pl.peaks[0].count == 3
+    assert "3 times" in pl.notes[0]
+
+
+def test_solvent_peak_set_aside_with_note_unless_dept_says_protonated():
+    pl = parse_peaks("77.1\n77.2 CH\n30.0 CH2\n", solvent="CDCl3")
+    flagged = [p.shift for p in pl.peaks if p.solvent]
+    assert flagged == [77.1]
+    assert any("Fulmer" in n for n in pl.notes)
+    assert len(pl.sample_peaks()) == 2
+
+
+@pytest.mark.parametrize("text,fragment", [
+    ("12x.5\n", "line 1: shift '12x.5' is not a number"),
+    ("10\n300\n", "line 2: shift 300 ppm is outside"),
+    ("10 CH5\n", "multiplicity 'CH5'"),
+    ("", "empty"),
+    ("nan\n", "not a finite number"),
+    ('[{"ppm": 3}]', "no 'shift' field"),
+    ("shift,mult\n,CH\n", "line 2: missing shift"),
+])
+def test_bad_peaks_name_line_and_problem(text, fragment):
+    with pytest.raises(InputError, match=fragment):
+        parse_peaks(text)
+
+
+def test_1h_range():
+    with pytest.raises(InputError, match="1H range"):
+        parse_peaks("20.0\n", nucleus="1H")
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(max_size=80))
+def test_random_text_never_crashes_peak_parser(text):
+    try:
+        pl = parse_peaks(text)
+    except InputError:
+        return
+    assert all(-20 <= p.shift <= 250 for p in pl.peaks)
