@@ -1,2 +1,32 @@
-"""shiftrank: rank candidate structures against an observed 13C spectrum."""
+"""shiftrank: rank candidate structures against an observed 13C spectrum and the sample's history.
+
+>>> import shiftrank
+>>> shiftrank.structure_facts("COc1ccc(OC)cc1").expected_13c_signals
+3
+"""
 __version__ = "0.1.0"
+
+__all__ = ["predict", "rank", "rank_many", "structure_facts", "take_inventory", "read_peaks", "parse_peaks",
+           "InputError", "__version__"]
+
+
+def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
+    if name == "predict":
+        from .prediction_api import predict
+        return predict
+    if name in ("rank", "rank_many"):
+        from . import ranking
+        return getattr(ranking, name)
+    if name == "structure_facts":
+        from .structure import structure_facts
+        return structure_facts
+    if name == "take_inventory":
+        from .inventory import take_inventory
+        return take_inventory
+    if name in ("read_peaks", "parse_peaks"):
+        from . import peaks
+        return getattr(peaks, name)
+    if name == "InputError":
+        from .errors import InputError
+        return InputError
+    raise AttributeError(f"module 'shiftrank' has no attribute {name!r}")

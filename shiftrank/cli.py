@@ -8,6 +8,7 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from pathlib import Path
 
 from . import __version__
 from .errors import InputError
@@ -87,6 +88,209 @@ def cmd_peaks(args) -> int:
     return 0
 
 
+def cmd_predict(args) -> int:
+    from .model_files import default_manifest
+    from .molecules import read_molecules
+    from .prediction_api import predict_records
+    from .predictor import Z90
+
+    results = predict_records(read_molecules(args.file), args.solvent)
+    version = default_manifest().get("version")
+    n_bad = 0
+    for rec, pred, err in results:
+        if err:
+            n_bad += 1
+            if args.jsonl:
+                print(json.dumps({"id": rec.id, "error": err}))
+            else:
+                print(f"{rec.id}: error: {err}", file=sys.stderr)
+            continue
+        if args.jsonl:
+            print(json.dumps({
+                "id": rec.id,
+                "shifts": {str(c.atom): round(c.shift, 2) for c in pred.carbons},
+                "sigma": {str(c.atom): round(c.sigma, 2) for c in pred.carbons},
+                "interval90": {str(c.atom): [round(lo, 2), round(hi, 2)] for c in pred.carbons for lo, hi in [c.interval90]},
+                "model": version,
+            }))
+            continue
+        print(f"{rec.id}")
+        print(f"  {'atom':>4}  {'CHn':<4} {'shift':>7}  {'±90%':>6}  sphere match")
+        for c in pred.carbons:
+            a = rec.mol.GetAtomWithIdx(c.atom)
+            chn = {0: "C", 1: "CH", 2: "CH2", 3: "CH3"}.get(a.GetTotalNumHs(), "CH4")
+            arom = "ar" if a.GetIsAromatic() else ""
+            match = f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)"
+            print(f"  {c.atom:>4}  {chn + arom:<5}{c.shift:7.1f}  {Z90 * c.sigma:6.1f}  {match}")
+    if n_bad and not args.jsonl:
+        print(f"{n_bad} of {len(results)} records could not be predicted", file=sys.stderr)
+    return 2 if n_bad == len(results) else 0
+
+
+CAUTION = ("Caution: a ranking is evidence, not a certificate of identity. Confirm by orthogonal methods "
+           "and follow local regulations and validated procedures.")
+
+
+def _read_candidates(tokens: list[str]) -> list:
+    """Candidates from files (.sdf/.mol/.smi/.txt) and SMILES strings, in order; bad records kept for reporting."""
+    from pathlib import Path
+
+    from .molecules import read_molecules
+
+    out = []
+    for tok in tokens:
+        if Path(tok).exists():
+            for rec in read_molecules(tok):
+                if rec.error:
+                    out.append((rec.id, rec.source, rec.error))
+                else:
+                    from rdkit import Chem
+                    smi = rec.source if not rec.source.startswith(Path(tok).name + ":") else Chem.MolToSmiles(rec.mol)
+                    out.append((rec.id if rec.id != smi else None, smi, None))
+        else:
+            out.append((None, tok, None))
+    return out
+
+
+def _print_ranking(result, peaks_src: str, out=sys.stdout) -> None:
+    n_obs = sum(1 for p in result.peaks if not p.solvent)
+    n_solv = len(result.peaks) - n_obs
+    print(f"Peaks: {peaks_src}: {n_obs} signals" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+    for n in result.notes:
+        print(f"  note: {n}", file=out)
+    print(file=out)
+    print(f" {'#':>2}  {'p':>6}  {'MAE':>5} {'max':>5} {'>3σ':>4} {'signals':>8}  candidate", file=out)
+    for i, c in enumerate(result.candidates, 1):
+        label = f"{c.name}  {c.smiles}" if c.name else c.smiles
+        if c.error:
+            print(f" {i:>2}  {'-':>6}  {'':>5} {'':>5} {'':>4} {'':>8}  {label}\n       error: {c.error}", file=out)
+            continue
+        sig = f"{len(c.classes)}/{n_obs}"
+        print(f" {i:>2}  {c.probability:6.3f}  {c.mae:5.2f} {c.max_abs_deviation:5.1f} {c.beyond_3sigma:>4} {sig:>8}  {label}", file=out)
+        for fl in c.flags:
+            print(f"       ! {fl}", file=out)
+    print(f"\nVerdict: {result.verdict}", file=out)
+    best = result.best
+    if not best.error:
+        print(f"\nAssignment for #1 ({best.name or best.smiles}):", file=out)
+        print(f"  {'atoms':<12} {'CHn':<4} {'predicted':>9} {'±σ':>5} {'observed':>9} {'dev':>6}  note", file=out)
+        for row in best.assignment_table():
+            atoms = ",".join(str(a) for a in row["atoms"])
+            obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:9.2f}"
+            dev = "" if row["deviation"] is None else f"{row['deviation']:+6.2f}"
+            note = "unobserved" if row["peak"] is None else ""
+            if row["shared_peak"]:
+                note = "shares peak"
+            if row["z"] is not None and abs(row["z"]) > 3:
+                note += " >3σ"
+            if not row["multiplicity_ok"]:
+                note += " DEPT mismatch"
+            print(f"  {atoms:<12} {row['multiplicity']:<4} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>9} {dev:>6}  {note.strip()}", file=out)
+        for j in best.assignment.unmatched_peaks:
+            p = result.peaks[j]
+            why = "solvent" if p.solvent else "unexplained"
+            print(f"  {'-':<12} {p.multiplicity or '':<4} {'':>9} {'':>5} {p.shift:9.2f} {'':>6}  {why}", file=out)
+    print(f"\nModel {result.model_version}. {CAUTION}", file=out)
+
+
+def cmd_rank(args) -> int:
+    from .peaks import read_peaks
+    from .ranking import rank
+
+    pl = read_peaks(args.peaks, solvent=args.solvent)
+    result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass, solvent=args.solvent,
+                  id=Path(args.peaks).stem, demote_history_mismatch=not args.keep_mismatches)
+    if args.json:
+        print(json.dumps(result.to_dict(detail=True), indent=1))
+    else:
+        _print_ranking(result, args.peaks)
+    if args.report:
+        from .report import write_report
+        write_report([result], args.report, [pl], [_history(args)], [_inventory_for(args, pl)])
+        print(f"report written to {args.report}", file=sys.stderr)
+    return 0
+
+
+def cmd_batch(args) -> int:
+    from .batch import run_batch
+
+    out = open(args.output, "w") if args.output else sys.stdout
+    try:
+        summary = run_batch(args.cases, out, jobs=args.jobs, detail=args.detail,
+                            progress=True if args.progress else None)
+    finally:
+        if args.output:
+            out.close()
+    if summary["errors"]:
+        print(f"{summary['errors']} of {summary['cases']} cases had errors (see their 'error' fields)", file=sys.stderr)
+    return 0
+
+
+def _history(args) -> dict:
+    return {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
+
+
+def _inventory_for(args, pl):
+    from .inventory import take_inventory
+    from .peaks import read_peaks
+
+    h1 = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent) if getattr(args, "peaks_1h", None) else None
+    return take_inventory(pl, h1, args.formula, getattr(args, "mz", None), getattr(args, "ppm", 5.0))
+
+
+def cmd_inventory(args) -> int:
+    from dataclasses import asdict
+
+    from .peaks import read_peaks
+
+    pl = read_peaks(args.peaks, solvent=args.solvent)
+    inv = _inventory_for(args, pl)
+    if args.json:
+        print(json.dumps(asdict(inv), indent=1))
+        return 0
+    for n in pl.notes:
+        print(f"note: {n}")
+    for line in inv.lines():
+        print(line)
+    print("\nregions (common practice ranges):")
+    for s, m, h in inv.regions:
+        print(f"  {s:8.2f}  {m or '':<4} {h}")
+    return 0
+
+
+def cmd_report(args) -> int:
+    from .report import write_report
+
+    if args.batch:
+        from .batch import read_cases
+        from .ranking import rank_many
+
+        items = read_cases(args.batch)
+        cases = [c for _, c in items if isinstance(c, dict)]
+        ranked = [(c, r) for c, r in zip(cases, rank_many(cases)) if not isinstance(r, Exception)]
+        skipped = len(items) - len(ranked)
+        if not ranked:
+            raise InputError(f"{args.batch}: no case could be ranked")
+        results = [r for _, r in ranked]
+        hist = [{"formula": c.get("formula"), "mass": c.get("mass"), "solvent": c.get("solvent")} for c, _ in ranked]
+        write_report(results, args.output, histories=hist, title=f"shiftrank batch report: {Path(args.batch).name}")
+        if skipped:
+            print(f"{skipped} cases could not be ranked and are not in the report", file=sys.stderr)
+    else:
+        if not args.peaks or not args.candidates:
+            raise InputError("report: give --peaks and --candidates, or --batch CASES.jsonl")
+        from .peaks import read_peaks
+        from .ranking import rank
+
+        pl = read_peaks(args.peaks, solvent=args.solvent)
+        result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
+                      solvent=args.solvent, id=Path(args.peaks).stem)
+        inv = _inventory_for(args, pl)
+        write_report([result], args.output, [pl], [_history(args)], [inv])
+    print(f"report written to {args.output}")
+    return 0
+
+
 def cmd_demo(args) -> int:
     from .demo.runner import run_demo
 
@@ -112,6 +316,56 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
+
+    s = sub.add_parser("predict", help="predict 13C shifts for the structures in a file (SDF, mol, SMILES)")
+    s.add_argument("file", help=".sdf, .mol, .smi or .txt (one SMILES per line, optional id after whitespace)")
+    s.add_argument("--jsonl", action="store_true", help="one JSON object per record, carbons keyed by atom index")
+    s.add_argument("--solvent", help="NMR solvent (CDCl3, DMSO-d6, CD3OD; others are treated as unknown)")
+    s.set_defaults(func=cmd_predict)
+
+    s = sub.add_parser("rank", help="rank candidate structures against a 13C peak list")
+    s.add_argument("--peaks", required=True, help="13C peak list (.txt, .csv, .json)")
+    s.add_argument("--candidates", required=True, nargs="+", metavar="FILE_OR_SMILES",
+                   help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
+    s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
+    s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
+    s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
+    s.add_argument("--keep-mismatches", action="store_true", help="do not demote candidates contradicting formula/mass")
+    s.add_argument("--json", action="store_true", help="print the full result as JSON")
+    s.add_argument("--report", metavar="HTML", help="also write an HTML report")
+    s.add_argument("--peaks-1h", help="1H peak list with integrals, for the report's inventory")
+    s.set_defaults(func=cmd_rank)
+
+    s = sub.add_parser("batch", help="rank many cases from a JSON Lines file, one output line per case")
+    s.add_argument("cases", help="JSONL (.jsonl or .jsonl.gz), one case per line")
+    s.add_argument("-o", "--output", help="write JSONL here instead of standard output")
+    s.add_argument("--jobs", type=int, default=1, help="parallel worker processes (joblib)")
+    s.add_argument("--detail", action="store_true", help="include assignment tables")
+    s.add_argument("--progress", action="store_true", help="show a progress bar even when stderr is not a terminal")
+    s.set_defaults(func=cmd_batch)
+
+    s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
+    s.add_argument("--peaks", required=True, help="13C peak list (with DEPT multiplicities when known)")
+    s.add_argument("--peaks-1h", help="1H peak list with integrals (shift integral per line)")
+    s.add_argument("--formula", help="molecular formula of the sample")
+    s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
+    s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance in ppm (default 5)")
+    s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
+    s.add_argument("--json", action="store_true")
+    s.set_defaults(func=cmd_inventory)
+
+    s = sub.add_parser("report", help="write a self-contained HTML report for one sample or a batch")
+    s.add_argument("--peaks", help="13C peak list of one sample")
+    s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES")
+    s.add_argument("--batch", metavar="CASES.jsonl", help="rank a JSONL batch and report every case")
+    s.add_argument("--peaks-1h", help="1H peak list with integrals")
+    s.add_argument("--formula")
+    s.add_argument("--mass", type=float)
+    s.add_argument("--mz", type=float)
+    s.add_argument("--ppm", type=float, default=5.0)
+    s.add_argument("--solvent")
+    s.add_argument("-o", "--output", required=True, help="HTML file to write")
+    s.set_defaults(func=cmd_report)
 
     s = sub.add_parser("demo", help="run the bundled demo scenario (invented data) end to end")
     s.add_argument("-o", "--output", default="shiftrank-demo.html", help="where to write the HTML report")

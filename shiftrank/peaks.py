@@ -178,7 +178,7 @@ def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C") -> 
     return out
 
 
-def _merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[Peak]:
+def merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[Peak]:
     peaks = sorted(peaks, key=lambda p: p.shift)
     out: list[Peak] = []
     for p in peaks:
@@ -206,7 +206,7 @@ def flag_solvent(peaks: PeakList, solvent: str | None) -> PeakList:
     if key is None:
         return peaks
     for p in peaks.peaks:
-        if peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
+        if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
             continue
         ref = match_solvent(p.shift, key, peaks.nucleus)
         if ref is not None:
@@ -239,7 +239,7 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
     if not raw:
         raise InputError(f"{source}: no peaks found")
     notes: list[str] = []
-    pl = PeakList(nucleus, _merge_duplicates(raw, notes, nucleus), source, notes)
+    pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes)
     return flag_solvent(pl, solvent)
 
 

@@ -1,0 +1,109 @@
+"""13C predictor benchmark on the held-out test split (InChIKey-skeleton split of ../shared/data).
+
+    python benchmarks/bench_predictor.py [--data DIR]
+
+Reports MAE overall and by carbon type and molecule size, the 90 % interval
+coverage, coverage of carbons, load time and throughput (one thread).
+"""
+from __future__ import annotations
+
+import argparse
+import os
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+os.environ.setdefault("OMP_NUM_THREADS", "1")  # one core, as the target says
+
+import numpy as np  # noqa: E402
+from rdkit import Chem  # noqa: E402
+
+REPO = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(REPO))
+
+from training.data import DEFAULT_DATA, load_assigned  # noqa: E402
+
+
+def kind(atom) -> str:
+    if atom.GetIsAromatic():
+        return "aromatic"
+    hyb = atom.GetHybridization()
+    if hyb == Chem.HybridizationType.SP:
+        return "sp"
+    if hyb == Chem.HybridizationType.SP2:
+        for b in atom.GetBonds():
+            if b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(atom).GetSymbol() in ("O", "S"):
+                return "carbonyl"
+        return "sp2"
+    return "sp3"
+
+
+def main() -> int:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
+    args = ap.parse_args()
+    t = time.perf_counter()
+    from shiftrank.model_files import load_shift_model, read_manifest
+    model = load_shift_model()
+    load_s = time.perf_counter() - t
+    man = read_manifest()
+    from shiftrank.environment import environments
+
+    mols = [m for m in load_assigned(args.data) if m.split == "test"]
+    t = time.perf_counter()
+    envs = [environments(m.mol, m.solvent) for m in mols]
+    preds = model.predict_envs(envs)
+    batch_s = time.perf_counter() - t
+    n_pred = sum(len(p.carbons) for p in preds)
+    n_carbons = sum(sum(1 for a in m.mol.GetAtoms() if a.GetAtomicNum() == 6) for m in mols)
+    errs, sig, groups = [], [], {}
+    for m, p in zip(mols, preds):
+        mu, sg = p.shifts, p.sigmas
+        size = m.mol.GetNumAtoms()
+        sb = "<15" if size < 15 else "15-24" if size < 25 else "25-39" if size < 40 else ">=40"
+        for a, y in m.shifts.items():
+            e = mu[a] - y
+            errs.append(e)
+            sig.append(sg[a])
+            atom = m.mol.GetAtomWithIdx(a)
+            for key in (("CHn", ["C", "CH", "CH2", "CH3"][min(atom.GetTotalNumHs(), 3)]), ("type", kind(atom)), ("heavy atoms", sb)):
+                groups.setdefault(key, []).append(abs(e))
+    errs, sig = np.array(errs), np.array(sig)
+    print(f"model {man['version']}  (manifest test MAE {man['metrics']['test_mae']})")
+    print(f"test split: {len(mols)} molecules, {len(errs)} assigned carbons; predicted {n_pred}/{n_carbons} carbons (coverage {100 * n_pred / n_carbons:.1f} %)")
+    print(f"MAE {np.abs(errs).mean():.3f} ppm   RMSE {np.sqrt((errs ** 2).mean()):.3f}   median AE {np.median(np.abs(errs)):.3f}   >10 ppm {100 * np.mean(np.abs(errs) > 10):.2f} %")
+    print(f"90 % interval coverage {100 * np.mean(np.abs(errs) <= 1.6449 * sig):.1f} %")
+    for head in ("CHn", "type", "heavy atoms"):
+        parts = [f"{k[1]} {np.mean(v):.2f} (n={len(v)})" for k, v in sorted(groups.items()) if k[0] == head]
+        print(f"  by {head}: " + ", ".join(parts))
+    print(f"load {load_s:.2f} s")
+    print(f"batch after load, 1 thread: {n_pred / batch_s:,.0f} carbons/s ({batch_s:.2f} s incl. environments)")
+    sample = mols[:300]
+    t = time.perf_counter()
+    nc = 0
+    for m in sample:
+        nc += len(model.predict_mol(m.mol).carbons)
+    per = time.perf_counter() - t
+    print(f"one molecule per call: {nc / per:,.0f} carbons/s, {1000 * per / len(sample):.2f} ms per molecule")
+    with tempfile.TemporaryDirectory() as d:
+        smi = Path(d) / "test.smi"
+        smi.write_text("\n".join(f"{Chem.MolToSmiles(m.mol)} {m.id}" for m in mols) + "\n")
+        t = time.perf_counter()
+        r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", str(smi), "--jsonl"], capture_output=True, text=True)
+        whole = time.perf_counter() - t
+        assert r.returncode == 0, r.stderr
+    print(f"whole process (shiftrank predict --jsonl, start-up included): {n_carbons / whole:,.0f} carbons/s ({whole:.2f} s for {len(mols)} molecules)")
+    print("\nsmall molecules (reference: common practice / from memory of standard 13C tables):")
+    from shiftrank.prediction_api import predict
+    for smi, ref in [("c1ccccc1", "128.4"), ("CC#N", "CN ~117-118, CH3 ~1.8"), ("CC(=O)OCC", "C=O ~171"),
+                     ("CC(C)=O", "C=O ~206"), ("C1CC1C#N", "CN ~122"), ("c1ccncc1", "C2 150, C3 124, C4 136"),
+                     ("c1ccoc1", "C2 143, C3 110"), ("C1CCOC1", "68, 26"), ("OC(=O)C", "C=O ~177-178")]:
+        p = predict(smi)
+        print(f"  {smi:<12} {' '.join(f'{v:.1f}' for v in p.shifts.values()):<30} ref {ref}")
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,255 @@
+"""Sample-history inventory: what the peak lists account for, compared with the formula.
+
+What a practitioner does by hand before trusting any ranking:
+
+* count 13C signals by type (C, CH, CH2, CH3) and the H they carry;
+* normalise 1H integrals to the best small-integer ratio;
+* compare with the formula: which pieces must be duplicated by symmetry (formula has more C/H
+  than the signals account for) or which peaks are extra (impurity, solvent, rotamers);
+* DBE from the formula and what it suggests;
+* a region hint for each 13C peak;
+* a mass check of the formula against a measured m/z for [M]+, [M+H]+ and [M+Na]+.
+
+Shift ranges are common practice (typical 13C regions found in any spectroscopy textbook).
+"""
+from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+from .errors import InputError
+from .formula import dbe, dbe_note, hill, ion_mz, parse_formula
+from .peaks import PeakList
+
+H_OF = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
+ORDER = ("CH3", "CH2", "CH", "C")
+
+
+def region_hint(shift: float, multiplicity: str | None) -> str:
+    """Typical 13C region of a peak (common practice).
+
+    >>> region_hint(172.0, "C")
+    'carboxyl-type C=O (acid, ester, amide, 165-185 ppm)'
+    """
+    m = multiplicity
+    if shift >= 185:
+        if m == "CH":
+            return "aldehyde C=O (190-205 ppm)"
+        return "ketone/aldehyde C=O (185-220 ppm)"
+    if shift >= 165:
+        return "carboxyl-type C=O (acid, ester, amide, 165-185 ppm)"
+    if shift >= 100:
+        if m == "C" and 110 <= shift <= 125:
+            return "aromatic/alkene C, or nitrile C≡N (110-125 ppm)"
+        if shift >= 150 and m in ("C", None):
+            return "aromatic C bound to O/N, or C=N (150-165 ppm)"
+        if m in ("CH2",):
+            return "terminal alkene =CH2 (105-120 ppm)"
+        return "alkene/aromatic sp2 carbon (100-165 ppm)"
+    if shift >= 65 and m in ("C", "CH", None) and shift <= 90:
+        return "O-bound sp3 carbon (50-90 ppm), or alkyne carbon (65-90 ppm)"
+    if shift >= 45:
+        if m == "CH3":
+            return "O- or N-methyl (OCH3 50-62, NCH3 30-45 ppm)" if shift >= 50 else "N-methyl or alkyl"
+        return "heteroatom-bound sp3 carbon (C–N 40-60, C–O 50-90 ppm)"
+    if shift >= 0:
+        return "alkyl sp3 carbon (0-45 ppm)"
+    return "shielded carbon (below 0 ppm; e.g. Si–CH3, cyclopropane)"
+
+
+def integer_ratio(values: list[float], max_multiplier: int = 6, tolerance: float = 0.12) -> list[int]:
+    """Best small-integer set for 1H integrals, e.g. 2.0 : 3.1 : 0.98 → 2 : 3 : 1.
+
+    Divides by the smallest integral, then takes the smallest multiplier whose
+    products are all within ``tolerance`` (relative) of whole numbers; falls back
+    to the multiplier with the smallest total rounding error.
+
+    >>> integer_ratio([2.0, 3.1, 0.98])
+    [2, 3, 1]
+    """
+    vals = [float(v) for v in values]
+    if not vals or any(v <= 0 for v in vals):
+        raise InputError("integrals: need positive numbers")
+    unit = min(vals)
+    best = None
+    for k in range(1, max_multiplier + 1):
+        scaled = [v / unit * k for v in vals]
+        err = max(abs(s - round(s)) / max(round(s), 1) for s in scaled)
+        if err <= tolerance:
+            return [int(round(s)) for s in scaled]
+        total = sum(abs(s - round(s)) for s in scaled)
+        if best is None or total < best[0]:
+            best = (total, [max(1, int(round(s))) for s in scaled])
+    return best[1]
+
+
+@dataclass
+class MassCheck:
+    adduct: str
+    expected_mz: float
+    error_ppm: float
+    ok: bool
+
+
+@dataclass
+class Inventory:
+    """The arithmetic a practitioner does before looking at candidates."""
+
+    signals_by_type: dict
+    unknown_type_signals: int
+    carbons_observed: int
+    h_on_carbon_observed: int
+    h_ratio: list[int] | None = None
+    h_total_from_integrals: int | None = None
+    formula: str | None = None
+    dbe: float | None = None
+    tentative: str = ""
+    inferences: list[str] = field(default_factory=list)
+    findings: list[str] = field(default_factory=list)
+    regions: list[tuple[float, str | None, str]] = field(default_factory=list)
+    mass_checks: list[MassCheck] = field(default_factory=list)
+
+    def lines(self) -> list[str]:
+        out = []
+        kinds = ", ".join(f"{self.signals_by_type[k]} {k}" for k in ORDER if self.signals_by_type.get(k))
+        if self.unknown_type_signals:
+            kinds += f", {self.unknown_type_signals} of unknown type"
+        out.append(f"13C signals: {kinds}; {self.carbons_observed} carbons, {self.h_on_carbon_observed} H on carbon")
+        if self.h_ratio:
+            out.append(f"1H integrals as small integers: {':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
+        out.append(f"tentative piece count: {self.tentative}")
+        out.extend(f"inference: {i}" for i in self.inferences)
+        out.extend(self.findings)
+        for m in self.mass_checks:
+            out.append(f"mass check {m.adduct}: expected m/z {m.expected_mz:.4f}, error {m.error_ppm:+.1f} ppm — {'consistent' if m.ok else 'no'}")
+        return out
+
+
+def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> list[tuple[dict, int]]:
+    """Ways to add dC carbons and dH hydrogens (dH in dH_range) as extra copies of observed piece types.
+
+    At most one way per number of H left for heteroatoms (OH/NH), fewest such H first; for each,
+    a whole-spectrum k-fold copy when it fits (k-fold symmetry), else the way closest to duplicating
+    each observed type in proportion to its count.
+    """
+    types = [t for t in ORDER if counts.get(t)]
+    total = sum(counts[t] for t in types)
+    best: dict[int, tuple] = {}
+    for combo in itertools.product(range(dC + 1), repeat=len(types)):
+        if sum(combo) != dC:
+            continue
+        h = sum(n * H_OF[t] for n, t in zip(combo, types))
+        if h not in dH_range:
+            continue
+        k_fold = total and all(n == counts[t] * dC / total for n, t in zip(combo, types))
+        spread = -1.0 if k_fold else sum(abs(n - counts[t] * dC / total) for n, t in zip(combo, types))
+        if h not in best or spread < best[h][0]:
+            best[h] = (spread, {t: n for t, n in zip(types, combo) if n})
+    ordered = sorted(best.items(), key=lambda kv: -kv[0])
+    return [(pieces, h) for h, (_, pieces) in ordered[:limit]]
+
+
+def take_inventory(c13: PeakList, h1: PeakList | None = None, formula: str | None = None,
+                   mz: float | None = None, mz_tolerance_ppm: float = 5.0) -> Inventory:
+    """Inventory of a 13C list (and optional 1H list with integrals) against the sample history."""
+    peaks = c13.sample_peaks()
+    if not peaks:
+        raise InputError(f"{c13.source}: no sample peaks left after setting aside solvent signals")
+    by_type = {k: 0 for k in ORDER}
+    unknown = 0
+    carbons = h_on_c = 0
+    for p in peaks:
+        carbons += p.count
+        if p.multiplicity in H_OF:
+            by_type[p.multiplicity] += p.count
+            h_on_c += H_OF[p.multiplicity] * p.count
+        else:
+            unknown += p.count
+    inv = Inventory(by_type, unknown, carbons, h_on_c)
+    inv.regions = [(p.shift, p.multiplicity, region_hint(p.shift, p.multiplicity)) for p in peaks]
+
+    n_o_inferred = 0
+    for p in peaks:
+        if p.shift >= 185:
+            inv.inferences.append(f"{p.shift:g} ppm is a ketone/aldehyde carbonyl: at least one O (inference from shift)")
+            n_o_inferred += 1
+        elif p.shift >= 165 and p.multiplicity in ("C", None):
+            inv.inferences.append(f"{p.shift:g} ppm is a carboxyl-type carbon: O (and perhaps N) attached (inference from shift)")
+            n_o_inferred += 1
+    hetero = f" + ≥{n_o_inferred} O (inferred)" if n_o_inferred else ""
+    inv.tentative = f"C{carbons}H{h_on_c}{hetero}" + (f" (+{unknown} carbons of unknown CHn)" if unknown else "") + \
+        " — H on heteroatoms (OH, NH) not counted"
+
+    if h1 is not None:
+        ints = [p.intensity for p in h1.sample_peaks() if p.intensity is not None]
+        if ints and len(ints) == len(h1.sample_peaks()):
+            inv.h_ratio = integer_ratio(ints)
+            inv.h_total_from_integrals = sum(inv.h_ratio)
+
+    if formula:
+        fc = parse_formula(formula)
+        inv.formula = hill(fc)
+        inv.dbe = dbe(fc)
+        note = dbe_note(inv.dbe)
+        if note:
+            inv.findings.append(f"note: {note}")
+        nC, nH = fc.get("C", 0), fc.get("H", 0)
+        n_xh_max = fc.get("O", 0) + fc.get("N", 0) * 2 + fc.get("S", 0)
+        dC = nC - carbons
+        if inv.dbe is not None and inv.dbe >= 4:
+            n_arom = sum(1 for p in peaks if 110 <= p.shift <= 160)
+            msg = f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); {n_arom} 13C signals lie in 110-160 ppm"
+            if h1 is not None:
+                msg += f", {sum(1 for p in h1.sample_peaks() if p.shift > 6.5)} 1H signals above 6.5 ppm"
+            inv.findings.append(msg)
+        elif inv.dbe is not None:
+            inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
+        if dC > 0 and not unknown:
+            ways = _duplications(by_type, dC, range(max(0, nH - h_on_c - n_xh_max), nH - h_on_c + 1))
+            if ways:
+                texts = []
+                for pieces, dh in ways:
+                    xh = nH - h_on_c - dh
+                    k_fold = dC % carbons == 0 and all(pieces.get(t, 0) == by_type[t] * (dC // carbons) for t in ORDER if by_type[t])
+                    texts.append(" and ".join(f"{n} more {t}" for t, n in pieces.items())
+                                 + (f" ({xh} H on O/N)" if xh else " (no H on O/N)")
+                                 + (f": a {dC // carbons + 1}-fold symmetric molecule" if k_fold else ""))
+                inv.findings.append(f"the formula needs {dC} more C than the signals account for: symmetry-equivalent "
+                                    f"(or overlapping) carbons; possible duplicated pieces: " + "; or ".join(texts))
+            else:
+                inv.findings.append(f"the formula has {dC} more carbons than the signals account for; no duplication of the "
+                                    "observed CHn pieces fits its H count: check the multiplicities or the formula")
+        elif dC > 0:
+            inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap")
+        elif dC < 0:
+            inv.findings.append(f"{-dC} more carbon signals than the formula has carbons: extra peaks "
+                                "(impurity, residual solvent, rotamers or C–F coupled lines)")
+        else:
+            xh = nH - h_on_c
+            if unknown:
+                inv.findings.append("carbon count matches the formula (one carbon per signal)")
+            elif xh < 0:
+                inv.findings.append(f"the CHn pieces carry {h_on_c} H but the formula has only {nH}: check the multiplicities")
+            else:
+                inv.findings.append(f"carbon count matches the formula; {xh} H not on carbon (OH/NH)" if xh else
+                                    "carbon and hydrogen counts match the formula exactly")
+        if inv.h_total_from_integrals:
+            if nH % inv.h_total_from_integrals == 0 and nH != inv.h_total_from_integrals:
+                f = nH // inv.h_total_from_integrals
+                inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}; the formula has {nH} H: scale ×{f} "
+                                    f"({':'.join(str(x * f) for x in inv.h_ratio)}), a hint of {f}-fold symmetry")
+            elif nH == inv.h_total_from_integrals:
+                inv.findings.append(f"1H integrals sum to the formula's {nH} H")
+            else:
+                inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}, formula has {nH} H "
+                                    f"(ratio {Fraction(nH, inv.h_total_from_integrals)}): exchange-broadened or hidden signals?")
+        if mz is not None:
+            for adduct in ("M+", "M+H", "M+Na"):
+                exp = ion_mz(fc, adduct)
+                err = (mz - exp) / exp * 1e6
+                label = {"M+": "[M]+", "M+H": "[M+H]+", "M+Na": "[M+Na]+"}[adduct]
+                inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+    elif mz is not None:
+        raise InputError("mass check: a measured m/z needs a formula to compare with")
+    return inv

@@ -1,0 +1,105 @@
+"""13C shift prediction: sphere-code tables + a gradient-boosted correction, with uncertainty.
+
+The model combines two things learned from NMRShiftDB2 data:
+
+1. :class:`~shiftrank.sphere_tables.SphereTables` — median shift per sphere
+   code (HOSE-style, Bremser 1978), looked up from the widest sphere down;
+2. a ``HistGradientBoostingRegressor`` that predicts the shift from the
+   carbon's shell descriptors plus those table statistics, and a second one
+   that predicts the size of the error, scaled so that the stated 90 %
+   interval (±1.645 σ) covers about 90 % of held-out carbons.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from rdkit import Chem
+
+from .environment import MolEnvironments, environments
+from .sphere_tables import SphereTables, table_features, widest_match
+
+Z90 = 1.6448536269514722
+
+
+@dataclass
+class CarbonPrediction:
+    """Predicted shift of one carbon."""
+
+    atom: int
+    shift: float
+    sigma: float
+    sphere_radius: int        # widest sphere with a table match (0 = none)
+    sphere_count: int         # training carbons behind that match
+
+    @property
+    def interval90(self) -> tuple[float, float]:
+        return (self.shift - Z90 * self.sigma, self.shift + Z90 * self.sigma)
+
+
+@dataclass
+class MolPrediction:
+    """Predicted 13C shifts of one molecule, keyed by heavy-atom index."""
+
+    carbons: list[CarbonPrediction] = field(default_factory=list)
+
+    @property
+    def shifts(self) -> dict[int, float]:
+        return {c.atom: c.shift for c in self.carbons}
+
+    @property
+    def sigmas(self) -> dict[int, float]:
+        return {c.atom: c.sigma for c in self.carbons}
+
+
+class ShiftModel:
+    """Sphere tables + boosted correction + error model.
+
+    ``fit``-style training lives in ``training/``; this class only predicts.
+    """
+
+    def __init__(self, tables: SphereTables, regressor, sigma_regressor, sigma_scale: float = 1.0,
+                 sigma_floor: float = 0.3):
+        self.tables = tables
+        self.regressor = regressor
+        self.sigma_regressor = sigma_regressor
+        self.sigma_scale = sigma_scale
+        self.sigma_floor = sigma_floor
+
+    def design(self, env_feats: np.ndarray, codes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Model input rows and the raw lookup statistics for carbons given by descriptors and codes."""
+        stats = self.tables.lookup(codes)
+        return np.hstack([env_feats, table_features(stats)]), stats
+
+    def predict_arrays(self, env_feats: np.ndarray, codes: np.ndarray):
+        """Shift, sigma, widest radius and its count for rows of carbons."""
+        if len(env_feats) == 0:
+            z = np.zeros(0)
+            return z, z, z.astype(int), z.astype(int)
+        X, stats = self.design(env_feats, codes)
+        mu = self.regressor.predict(X)
+        X2 = np.hstack([X, mu[:, None]])
+        sigma = np.maximum(self.sigma_regressor.predict(X2) * self.sigma_scale, self.sigma_floor)
+        _, radius = widest_match(stats)
+        count = np.array([stats[i, r - 1, 2] if r > 0 else 0 for i, r in enumerate(radius)], dtype=int)
+        return mu, sigma, radius, count
+
+    def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
+        """Predict many molecules in one model call (fast path for batches)."""
+        if not envs:
+            return []
+        feats = np.vstack([e.features for e in envs])
+        codes = np.vstack([e.codes for e in envs])
+        mu, sigma, radius, count = self.predict_arrays(feats, codes)
+        out, k = [], 0
+        for e in envs:
+            n = len(e.carbons)
+            out.append(MolPrediction([CarbonPrediction(int(a), float(mu[k + j]), float(sigma[k + j]),
+                                                       int(radius[k + j]), int(count[k + j]))
+                                      for j, a in enumerate(e.carbons)]))
+            k += n
+        return out
+
+    def predict_mol(self, mol: Chem.Mol, solvent: str | None = None) -> MolPrediction:
+        """Predict every carbon of an RDKit molecule (hydrogens implicit)."""
+        return self.predict_envs([environments(mol, solvent)])[0]

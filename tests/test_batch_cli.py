@@ -1,0 +1,98 @@
+"""Batch and CLI contracts (../shared/GUIDE.md contracts 1 and 2)."""
+import json
+import subprocess
+import sys
+
+from rdkit import Chem
+
+PARA = "CCOC(=O)c1ccc(C)cc1"
+META = "CCOC(=O)c1cccc(C)c1"
+PEAKS = [{"shift": s, "multiplicity": m} for s, m in [(14.3, "CH3"), (21.6, "CH3"), (60.7, "CH2"), (127.8, "C"),
+                                                      (129.0, "CH"), (129.5, "CH"), (143.4, "C"), (166.6, "C")]]
+
+
+def run(*args, stdin=None):
+    return subprocess.run([sys.executable, "-m", "shiftrank.cli", *args], capture_output=True, text=True, input=stdin)
+
+
+def test_batch_order_errors_and_every_candidate_once(tmp_path):
+    cases = [
+        {"id": "a", "peaks": PEAKS, "candidates": [META, "not_a_smiles((", PARA], "formula": "C10H12O2"},
+        {"id": "b", "peaks": [], "candidates": [PARA]},
+        {"id": "c", "peaks": PEAKS, "candidates": [PARA, META], "truth": META},
+    ]
+    f = tmp_path / "cases.jsonl"
+    f.write_text("\n".join(json.dumps(c) for c in cases) + "\n{broken json\n")
+    r = run("batch", str(f))
+    assert r.returncode == 0, r.stderr
+    lines = [json.loads(x) for x in r.stdout.splitlines()]
+    assert [x["id"] for x in lines[:3]] == ["a", "b", "c"]
+    a = lines[0]
+    assert sorted(x["smiles"] for x in a["ranking"]) == sorted(cases[0]["candidates"])
+    assert a["ranking"][-1]["smiles"] == "not_a_smiles((" and "error" in a["ranking"][-1]
+    assert a["ranking"][0]["smiles"] == PARA
+    assert abs(sum(x["probability"] for x in a["ranking"]) - 1) < 1e-9
+    assert "empty" in lines[1]["error"]
+    assert lines[2]["ranking"][0]["smiles"] == PARA  # the 'truth' field is ignored
+    assert "invalid JSON" in lines[3]["error"] and "line 4" in lines[3]["error"]
+
+
+def test_batch_parallel_matches_serial(tmp_path):
+    cases = [{"id": str(i), "peaks": PEAKS, "candidates": [META, PARA]} for i in range(70)]
+    f = tmp_path / "c.jsonl"
+    f.write_text("\n".join(json.dumps(c) for c in cases))
+    serial = run("batch", str(f)).stdout
+    parallel = run("batch", str(f), "--jobs", "2").stdout
+    assert serial == parallel and len(serial.splitlines()) == 70
+
+
+def test_predict_jsonl_contract(tmp_path):
+    smi = tmp_path / "m.smi"
+    smi.write_text("OCc1ccccc1 benzyl_alcohol\nC1CC( broken\nN#CCC(=O)OC\n")
+    r = run("predict", str(smi), "--jsonl")
+    assert r.returncode == 0, r.stderr
+    out = [json.loads(x) for x in r.stdout.splitlines()]
+    assert [o["id"] for o in out] == ["benzyl_alcohol", "broken", "N#CCC(=O)OC"]
+    mol = Chem.MolFromSmiles("OCc1ccccc1")
+    carbons = [str(a.GetIdx()) for a in mol.GetAtoms() if a.GetAtomicNum() == 6]
+    assert list(out[0]["shifts"]) == carbons
+    assert "error" in out[1]
+
+
+def test_predict_sdf_keys_follow_file_atom_order(tmp_path):
+    mol = Chem.AddHs(Chem.MolFromSmiles("OC(=O)c1ccc(Cl)cc1"))
+    mol.SetProp("_Name", "acid-1")
+    sdf = tmp_path / "m.sdf"
+    w = Chem.SDWriter(str(sdf))
+    w.write(mol)
+    w.close()
+    r = run("predict", str(sdf), "--jsonl")
+    o = json.loads(r.stdout.splitlines()[0])
+    assert o["id"] == "acid-1"
+    assert set(o["shifts"]) == {"1", "3", "4", "5", "6", "8", "9"}
+    assert 165 < o["shifts"]["1"] < 180
+
+
+def test_predict_empty_file_exit_2(tmp_path):
+    f = tmp_path / "e.smi"
+    f.write_text("")
+    r = run("predict", str(f))
+    assert r.returncode == 2 and "empty" in r.stderr and "Traceback" not in r.stderr
+
+
+def test_rank_cli_table_and_json(tmp_path):
+    p = tmp_path / "peaks.txt"
+    p.write_text("\n".join(f"{x['shift']} {x['multiplicity']}" for x in PEAKS) + "\n77.16\n")
+    r = run("rank", "--peaks", str(p), "--candidates", META, PARA, "--formula", "C10H12O2", "--solvent", "CDCl3")
+    assert r.returncode == 0, r.stderr
+    assert "Verdict:" in r.stdout and "evidence, not a certificate" in r.stdout
+    rj = run("rank", "--peaks", str(p), "--candidates", META, PARA, "--json")
+    d = json.loads(rj.stdout)
+    assert d["ranking"][0]["smiles"] == PARA and "assignment" in d["ranking"][0]
+
+
+def test_rank_cli_bad_peaks_exit_2(tmp_path):
+    p = tmp_path / "peaks.txt"
+    p.write_text("12.5\n999\n")
+    r = run("rank", "--peaks", str(p), "--candidates", PARA)
+    assert r.returncode == 2 and "line 2" in r.stderr

@@ -1,0 +1,90 @@
+"""Inventory arithmetic, integral normalisation and the mass check.
+
+Monoisotopic masses: AME2020 (Wang et al. 2021, Chin. Phys. C 45, 030003) — 1H 1.00782503,
+12C 12, 16O 15.99491462, 23Na 22.98976928; electron 0.00054858 u (CODATA 2018); from memory.
+Shift ranges are common practice.
+"""
+import pytest
+
+from shiftrank.errors import InputError
+from shiftrank.inventory import integer_ratio, region_hint, take_inventory
+from shiftrank.peaks import parse_peaks
+
+
+def test_integral_normalisation_small_integers():
+    assert integer_ratio([2.0, 3.1, 0.98]) == [2, 3, 1]
+    assert integer_ratio([1.0, 1.5]) == [2, 3]       # needs the ×2 multiplier
+    assert integer_ratio([0.66, 1.0, 0.33]) == [2, 3, 1]
+    with pytest.raises(InputError):
+        integer_ratio([1.0, 0.0])
+
+
+def test_two_fold_symmetric_diester_inventory():
+    # diethyl succinate-like pieces, own choice: EtO2C-CH2CH2-CO2Et, C8H14O4: 4 signals for 8 carbons
+    c13 = parse_peaks("14.2 CH3\n29.0 CH2\n60.6 CH2\n172.3 C\n")
+    inv = take_inventory(c13, formula="C8H14O4")
+    assert inv.signals_by_type == {"CH3": 1, "CH2": 2, "CH": 0, "C": 1}
+    assert inv.carbons_observed == 4 and inv.h_on_carbon_observed == 7
+    dup = [f for f in inv.findings if "formula needs" in f][0]
+    assert "needs 4 more C" in dup
+    first = dup.split("possible duplicated pieces: ")[1].split("; or ")[0]
+    assert first == "1 more CH3 and 2 more CH2 and 1 more C (no H on O/N): a 2-fold symmetric molecule"
+
+
+def test_three_fold_symmetric_inventory():
+    # 1,3,5-trimethoxybenzene-type pieces (own choice), C9H12O3: 3 signals
+    c13 = parse_peaks("55.3 CH3\n93.0 CH\n161.6 C\n")
+    inv = take_inventory(c13, formula="C9H12O3")
+    assert any("3-fold symmetric" in f for f in inv.findings)
+
+
+def test_extra_peaks_reported_when_formula_has_fewer_carbons():
+    c13 = parse_peaks("14.1 CH3\n60.9 CH2\n171.0 C\n21.0 CH3\n30.9 CH3\n")
+    inv = take_inventory(c13, formula="C4H8O2")
+    assert any("1 more carbon signals than the formula" in f for f in inv.findings)
+
+
+def test_alternatives_with_heteroatom_h_are_listed():
+    # a para-disubstituted phenol ester (own choice), C8H8O3: 6 signals for 8 carbons
+    c13 = parse_peaks("51.8 CH3\n115.3 CH\n120.2 C\n131.4 CH\n162.1 C\n166.2 C\n")
+    dup = [f for f in take_inventory(c13, formula="C8H8O3").findings if "formula needs" in f][0]
+    assert "2 more CH (1 H on O/N)" in dup
+
+
+def test_dbe_hint_and_exchangeable_h():
+    c13 = parse_peaks("115.4 CH\n122.0 C\n132.0 CH\n160.8 C\n167.5 C\n")
+    inv = take_inventory(c13, formula="C7H6O3")
+    assert inv.dbe == 5
+    assert any("aromatic ring" in f and "common practice" in f for f in inv.findings)
+    assert any("2 more CH (2 H on O/N)" in f for f in inv.findings)
+
+
+def test_1h_integrals_hint_symmetry():
+    c13 = parse_peaks("14.2 CH3\n29.0 CH2\n60.6 CH2\n172.3 C\n")
+    h1 = parse_peaks("1.25 3.0\n2.62 2.1\n4.14 1.95\n", nucleus="1H")
+    inv = take_inventory(c13, h1, formula="C8H14O4")
+    assert inv.h_ratio == [3, 2, 2]
+    assert any("scale ×2" in f for f in inv.findings)
+
+
+def test_mass_check_against_monoisotopic_masses():
+    # C8H8O3: M = 8*12 + 8*1.00782503 + 3*15.99491462 = 152.04734; [M+H]+ = 153.05462 (AME2020)
+    c13 = parse_peaks("51.8 CH3\n115.3 CH\n120.2 C\n131.4 CH\n162.1 C\n166.2 C\n")
+    inv = take_inventory(c13, formula="C8H8O3", mz=153.0549)
+    checks = {m.adduct: m for m in inv.mass_checks}
+    assert checks["[M+H]+"].expected_mz == pytest.approx(153.05462, abs=2e-5)
+    assert checks["[M+H]+"].ok and not checks["[M]+"].ok and not checks["[M+Na]+"].ok
+    assert checks["[M+Na]+"].expected_mz == pytest.approx(152.04734 + 22.98976928 - 0.00054858, abs=2e-5)
+
+
+def test_inferences_are_marked():
+    inv = take_inventory(parse_peaks("25.0 CH3\n207.0 C\n45.0 CH2\n"))
+    assert any("inference" in i for i in inv.inferences)
+
+
+@pytest.mark.parametrize("shift,mult,fragment", [
+    (14.0, "CH3", "alkyl"), (55.5, "CH3", "O- or N-methyl"), (128.0, "CH", "aromatic"),
+    (118.5, "C", "nitrile"), (172.0, "C", "carboxyl"), (200.0, "CH", "aldehyde"), (208.0, "C", "ketone"),
+])
+def test_region_hints_common_practice(shift, mult, fragment):
+    assert fragment in region_hint(shift, mult)

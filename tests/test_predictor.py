@@ -1,0 +1,102 @@
+"""The shipped 13C model: integrity, reproducibility and textbook shifts.
+
+Reference shifts are typical values from standard 13C tables (Pretsch, Bühlmann &
+Badertscher, Structure Determination of Organic Compounds, 4th ed. 2009, 13C
+chapter), recalled from memory, or common practice where marked; tolerances of a
+few ppm reflect the predictor's stated accuracy.
+"""
+import json
+import shutil
+
+import numpy as np
+import pytest
+from rdkit import Chem
+
+from shiftrank.errors import InputError
+from shiftrank.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
+from shiftrank.prediction_api import predict
+
+
+def test_manifest_lists_hashes_licence_and_metrics():
+    man = read_manifest()
+    assert set(man["files"]) >= {"c13_tables.npz", "c13_boost.joblib"}
+    assert all(len(h) == 64 for h in man["files"].values())
+    assert "nmrshiftdb2" in man["licence"].lower()
+    assert man["metrics"]["test_mae"] > 0
+
+
+def test_model_reproduces_manifest_test_sample(shared_data):
+    """A broken or swapped model file fails here: the fixed test sample's MAE must match the manifest."""
+    from training.data import load_assigned
+    from training.features import rows_from_assigned
+
+    man = read_manifest()
+    ids = set(man["test_sample"]["nmrshiftdb2_ids"])
+    mols = [m for m in load_assigned(shared_data) if m.id in ids]
+    rows = rows_from_assigned(mols)
+    mu, _, _, _ = load_shift_model().predict_arrays(rows.feats, rows.codes)
+    assert len(rows) == man["test_sample"]["carbons"]
+    assert float(np.mean(np.abs(mu - rows.y))) == pytest.approx(man["test_sample"]["mae"], abs=0.005)
+
+
+def test_hash_mismatch_is_refused(tmp_path):
+    d = tmp_path / "models"
+    shutil.copytree(models_dir(), d)
+    with open(d / "c13_tables.npz", "ab") as f:
+        f.write(b"tampered")
+    with pytest.raises(ModelFileError, match="does not match the manifest"):
+        load_shift_model(d)
+
+
+def test_file_not_in_manifest_is_refused(tmp_path):
+    d = tmp_path / "models"
+    shutil.copytree(models_dir(), d)
+    man = json.loads((d / "manifest.json").read_text())
+    del man["files"]["c13_boost.joblib"]
+    (d / "manifest.json").write_text(json.dumps(man))
+    with pytest.raises(ModelFileError, match="not listed"):
+        load_shift_model(d)
+
+
+@pytest.mark.parametrize("smiles,atom,expected,tol,source", [
+    ("c1ccccc1", 0, 128.4, 2.0, "benzene 128.4 (Pretsch 2009, from memory)"),
+    ("CC#N", 1, 117.7, 3.0, "acetonitrile C≡N ~117-118 (Pretsch 2009, from memory)"),
+    ("N#Cc1ccccc1", 1, 118.8, 3.0, "benzonitrile C≡N ~119 (from memory)"),
+    ("N#Cc1ccccc1", 2, 112.4, 3.0, "benzonitrile ipso C ~112 (from memory)"),
+    ("CCOC(C)=O", 3, 171.0, 3.0, "ester C=O ~170-171 (common practice)"),
+    ("CC(=O)O", 1, 177.0, 4.0, "carboxylic acid C=O ~175-180 (common practice)"),
+    ("c1ccncc1", 2, 150.0, 3.0, "pyridine C2 ~150 (from memory)"),
+    ("c1ccncc1", 1, 123.8, 3.0, "pyridine C3 ~124 (from memory)"),
+    ("c1ccncc1", 0, 135.9, 3.0, "pyridine C4 ~136 (from memory)"),
+    ("c1ccoc1", 2, 142.8, 3.0, "furan C2 ~143 (from memory)"),
+    ("c1ccoc1", 0, 109.7, 4.0, "furan C3 ~110 (from memory)"),
+    ("C1CCOC1", 2, 67.97, 3.0, "THF OCH2 67.97 (Fulmer 2010, Table 2, THF in CDCl3)"),
+    ("C1CCOC1", 0, 25.62, 3.0, "THF CH2 25.62 (Fulmer 2010, Table 2, THF in CDCl3)"),
+    ("N#CC1CC1", 1, 122.0, 4.0, "cyclopropanecarbonitrile C≡N ~122 (from memory)"),
+    ("C1CO1", 0, 40.6, 4.0, "oxirane CH2 40.6, small-ring shielding (from memory)"),
+    ("C1COC1", 1, 72.6, 4.0, "oxetane OCH2 ~72.6 (from memory)"),
+    ("c1ccsc1", 2, 125.6, 3.0, "thiophene C2 ~125.6 (from memory)"),
+    ("CC(=O)N(C)C", 1, 170.5, 3.0, "amide C=O ~170 (common practice)"),
+])
+def test_textbook_shifts(smiles, atom, expected, tol, source):
+    assert predict(smiles).shifts[atom] == pytest.approx(expected, abs=tol), source
+
+
+def test_ketone_carbonyl_above_200():
+    # common practice: saturated ketone C=O above 200 ppm (cyclohexyl methyl ketone)
+    p = predict("CC(=O)C1CCCCC1")
+    assert p.shifts[1] > 200
+
+
+def test_every_carbon_gets_a_prediction_even_unseen_environments():
+    odd = "FC(F)(F)C1(C#CC2(Cl)CC2)OC(=S)N1[Si](C)(C)C"
+    p = predict(odd)
+    n_c = sum(1 for a in Chem.MolFromSmiles(odd).GetAtoms() if a.GetAtomicNum() == 6)
+    assert len(p.carbons) == n_c
+    assert all(np.isfinite(c.shift) and c.sigma > 0 for c in p.carbons)
+
+
+@pytest.mark.parametrize("smiles,fragment", [("C1CC", "cannot parse"), ("O", "no carbon"), ("C[Fe]C", "Fe"), ("", "empty")])
+def test_bad_molecules_raise_input_error(smiles, fragment):
+    with pytest.raises(InputError, match=fragment):
+        predict(smiles)

@@ -1,0 +1,42 @@
+"""HTML report: self-contained, every candidate, drawings and the stick plot."""
+import re
+import subprocess
+import sys
+
+from shiftrank.inventory import take_inventory
+from shiftrank.peaks import parse_peaks
+from shiftrank.ranking import rank
+from shiftrank.report import render_report
+
+PARA = "CCOC(=O)c1ccc(C)cc1"
+META = "CCOC(=O)c1cccc(C)c1"
+# INVENTED peak list shaped like the para ester's spectrum
+TEXT = "14.3 CH3\n21.6 CH3\n60.7 CH2\n127.8 C\n129.0 CH\n129.5 CH\n143.4 C\n166.6 C\n77.16\n"
+
+
+def test_report_has_every_candidate_plot_drawing_and_caution():
+    pl = parse_peaks(TEXT, solvent="CDCl3")
+    r = rank(pl, [META, PARA, "C1CC("], formula="C10H12O2", solvent="CDCl3", id="S-1")
+    html = render_report([r], [pl], [{"formula": "C10H12O2", "solvent": "CDCl3"}], [take_inventory(pl, formula="C10H12O2")])
+    for smi in (META, PARA, "C1CC("):
+        assert smi in html
+    assert html.count("<svg") >= 4          # two structures + two stick plots
+    assert "δ 13C (ppm)" in html            # the matplotlib axis label of the stick plot
+    assert "evidence, not a certificate of identity" in html
+    assert "NMRShiftDB2" in html
+    assert not re.search(r"(src|href)=['\"]https?:", html)  # no network resources
+    assert "Inventory" in html and "DBE" in html
+
+
+def test_batch_report_summary_links(tmp_path):
+    import json
+    cases = [{"id": f"S{i}", "peaks": [{"shift": float(x.split()[0])} for x in TEXT.splitlines()[:8]],
+              "candidates": [PARA, META]} for i in range(2)]
+    f = tmp_path / "c.jsonl"
+    f.write_text("\n".join(json.dumps(c) for c in cases))
+    out = tmp_path / "r.html"
+    r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "report", "--batch", str(f), "-o", str(out)],
+                       capture_output=True, text=True)
+    assert r.returncode == 0, r.stderr
+    html = out.read_text()
+    assert "Summary" in html and "href='#sample-1'" in html and "href='#sample-2'" in html

@@ -1,0 +1,152 @@
+"""Reading the NMRShiftDB2 development data and splitting it by InChIKey skeleton.
+
+The data stay in ../shared/data (or a directory given on the command line);
+nothing here is copied into the repository.
+"""
+from __future__ import annotations
+
+import csv
+import gzip
+import hashlib
+import json
+from collections import defaultdict
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+from rdkit import Chem, RDLogger
+
+from shiftrank.molecules import ORGANIC
+from shiftrank.solvents import normalise_solvent
+
+RDLogger.DisableLog("rdApp.*")
+
+DEFAULT_DATA = Path(__file__).resolve().parents[1].parent / "shared" / "data"
+#: Carbons whose spectra disagree by more than this are dropped as unreliable.
+MAX_SPECTRUM_DISAGREEMENT = 2.0
+SHIFT_RANGE = (-10.0, 240.0)
+
+
+def skeleton(inchikey: str) -> str:
+    """First InChIKey block: the connectivity skeleton (stereo variants share it)."""
+    return inchikey.split("-")[0]
+
+
+def split_of(skel: str) -> str:
+    """'train' (80 %), 'val' (10 %) or 'test' (10 %) from a hash of the skeleton."""
+    h = int(hashlib.sha256(f"shiftrank-split-v1:{skel}".encode()).hexdigest()[:8], 16) % 20
+    return "test" if h < 2 else "val" if h < 4 else "train"
+
+
+def sha256_file(path: Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as f:
+        for chunk in iter(lambda: f.read(1 << 20), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+@dataclass
+class AssignedMol:
+    id: str
+    mol: Chem.Mol
+    shifts: dict          # heavy-atom index (hydrogens removed) -> shift (median over spectra)
+    solvent: str | None
+    skeleton: str
+    split: str
+
+
+@dataclass
+class PeakMol:
+    id: str
+    smiles: str
+    skeleton: str
+    split: str
+    peaks: list = field(default_factory=list)   # [(shift, multiplicity or None)] one entry per carbon
+    solvent: str | None = None
+
+
+@dataclass
+class LoadReport:
+    counts: dict = field(default_factory=dict)
+
+    def add(self, key: str, n: int = 1) -> None:
+        self.counts[key] = self.counts.get(key, 0) + n
+
+
+def _organic(mol: Chem.Mol) -> bool:
+    syms = {a.GetSymbol() for a in mol.GetAtoms()}
+    return syms <= ORGANIC and "C" in syms
+
+
+def load_assigned(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None) -> list[AssignedMol]:
+    """Assigned 13C shifts joined to their structures (indices mapped to the H-free molecule)."""
+    report = report or LoadReport()
+    rows: dict = defaultdict(lambda: defaultdict(list))
+    solv: dict = defaultdict(list)
+    with gzip.open(data_dir / "assigned_13c.csv.gz", "rt") as f:
+        for r in csv.DictReader(f):
+            report.add("13c_rows")
+            rows[r["nmrshiftdb2_id"]][int(r["atom_index"])].append(float(r["shift_ppm"]))
+            solv[r["nmrshiftdb2_id"]].append(normalise_solvent(r["solvent"]))
+    out = []
+    sup = Chem.ForwardSDMolSupplier(gzip.open(data_dir / "assigned_structures.sdf.gz"), removeHs=False)
+    for mol in sup:
+        if mol is None:
+            report.add("sdf_unreadable")
+            continue
+        mid = mol.GetProp("_Name").strip()
+        if mid not in rows:
+            continue
+        for a in mol.GetAtoms():
+            a.SetIntProp("orig", a.GetIdx())
+        try:
+            heavy = Chem.RemoveHs(mol)
+        except Exception:  # noqa: BLE001 - a database record RDKit cannot clean
+            report.add("mol_unclean")
+            continue
+        if not _organic(heavy):
+            report.add("mol_not_organic")
+            continue
+        orig_to_new = {a.GetIntProp("orig"): a.GetIdx() for a in heavy.GetAtoms()}
+        shifts = {}
+        for idx, vals in rows[mid].items():
+            new = orig_to_new.get(idx)
+            if new is None or heavy.GetAtomWithIdx(new).GetAtomicNum() != 6:
+                report.add("carbon_index_not_carbon")
+                continue
+            if max(vals) - min(vals) > MAX_SPECTRUM_DISAGREEMENT:
+                report.add("carbon_dropped_spectra_disagree")
+                continue
+            v = float(np.median(vals))
+            if not SHIFT_RANGE[0] <= v <= SHIFT_RANGE[1]:
+                report.add("carbon_dropped_out_of_range")
+                continue
+            shifts[new] = v
+        if not shifts:
+            continue
+        s = [x for x in solv[mid] if x]
+        key = Chem.MolToInchiKey(heavy) or mid
+        sk = skeleton(key)
+        out.append(AssignedMol(mid, heavy, shifts, max(set(s), key=s.count) if s else None, sk, split_of(sk)))
+        report.add("molecules")
+        report.add("carbons", len(shifts))
+    return out
+
+
+def load_peaklists(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None) -> list[PeakMol]:
+    """Unassigned 13C peak lists (one entry per carbon) with multiplicities."""
+    report = report or LoadReport()
+    out = []
+    with gzip.open(data_dir / "peaklists.jsonl.gz", "rt") as f:
+        for line in f:
+            rec = json.loads(line)
+            spectra = [s for s in rec.get("spectra", []) if s.get("nucleus") == "13C" and s.get("peaks")]
+            if not spectra:
+                continue
+            report.add("peaklist_molecules_13c")
+            s = spectra[0]
+            sk = skeleton(rec["inchikey"])
+            peaks = [(float(p[0]), p[1] or None) for p in s["peaks"]]
+            out.append(PeakMol(str(rec["nmrshiftdb2_id"]), rec["smiles"], sk, split_of(sk), peaks, normalise_solvent(s.get("solvent"))))
+    return out

@@ -1,0 +1,144 @@
+"""Self-training: assign unassigned 13C peak lists to carbons with the current model.
+
+Each peak-list entry stands for one carbon, with its multiplicity.  Within
+each multiplicity the entries are assigned to the carbons by the Hungarian
+algorithm (``scipy.optimize.linear_sum_assignment``) on |predicted − observed|;
+symmetry-equivalent carbons must receive (nearly) the same value.  A class's
+label is kept only when it is confident: small residual against the current
+prediction and no other class that could have taken the value almost as well.
+"""
+from __future__ import annotations
+
+from collections import defaultdict
+
+import numpy as np
+from rdkit import Chem
+from scipy.optimize import linear_sum_assignment
+
+from shiftrank.environment import environments
+from shiftrank.molecules import ORGANIC
+from shiftrank.structure import MULTIPLICITY, symmetry_ranks
+from training.features import RowSet, fold_of
+
+CLASS_SPREAD = 1.0      # ppm: equivalent carbons must get values this close
+SWAP_LABEL_GAP = 1.5    # ppm: two labels closer than this are harmless if swapped
+SWAP_MARGIN = 1.0       # ppm: a rival class this close to explaining the value makes it ambiguous
+
+
+def _prepare(peakmols):
+    items = []
+    for pm in peakmols:
+        mol = Chem.MolFromSmiles(pm.smiles)
+        if mol is None or mol.GetNumAtoms() == 0:
+            continue
+        syms = {a.GetSymbol() for a in mol.GetAtoms()}
+        if not syms <= ORGANIC or "C" not in syms or "." in pm.smiles:
+            continue
+        env = environments(mol, pm.solvent)
+        if len(env.carbons) != len(pm.peaks):
+            ranks = symmetry_ranks(mol)
+            if len({ranks[int(a)] for a in env.carbons}) != len(pm.peaks):
+                continue  # neither one entry per carbon nor one per symmetry class
+        items.append((pm, mol, env))
+    return items
+
+
+def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
+    """Confident (row, label) pairs for one molecule, or None when its peaks cannot be matched.
+
+    Peaks stand either for single carbons (one entry per carbon) or for symmetry
+    classes (one entry per class); the Hungarian assignment runs on those units.
+    """
+    carbons = [int(a) for a in env.carbons]
+    pos = {a: k for k, a in enumerate(carbons)}
+    ranks = symmetry_ranks(mol)
+    classes = defaultdict(list)
+    for a in carbons:
+        classes[ranks[a]].append(pos[a])
+    cls_list = list(classes.values())
+    units = [[k] for k in range(len(carbons))] if len(peaks) == len(carbons) else cls_list
+    unit_mult = [MULTIPLICITY.get(mol.GetAtomWithIdx(carbons[u[0]]).GetTotalNumHs()) for u in units]
+    unit_mu = np.array([mu[u].mean() for u in units])
+    mults = [m for _, m in peaks]
+    if all(m is not None for m in mults):
+        key_u, key_p = unit_mult, mults
+    elif all(m is None for m in mults):
+        key_u, key_p = ["*"] * len(units), ["*"] * len(peaks)
+    else:
+        return None
+    groups_u, groups_p = defaultdict(list), defaultdict(list)
+    for k, m in enumerate(key_u):
+        groups_u[m].append(k)
+    for j, m in enumerate(key_p):
+        groups_p[m].append(j)
+    if {m: len(v) for m, v in groups_u.items()} != {m: len(v) for m, v in groups_p.items()}:
+        return None
+    obs = np.array([s for s, _ in peaks])
+    label = np.full(len(carbons), np.nan)
+    for m, ks in groups_u.items():
+        js = groups_p[m]
+        cost = np.abs(unit_mu[ks][:, None] - obs[js][None, :])
+        r, c = linear_sum_assignment(cost)
+        for uu, jj in zip(np.array(ks)[r], np.array(js)[c]):
+            label[units[uu]] = obs[jj]
+    cls_mult = {ks[0]: MULTIPLICITY.get(mol.GetAtomWithIdx(carbons[ks[0]]).GetTotalNumHs()) for ks in cls_list}
+    cls_label = {}
+    for ks in cls_list:
+        v = label[ks]
+        if np.ptp(v) > CLASS_SPREAD:
+            continue
+        cls_label[ks[0]] = float(v.mean())
+    out = []
+    for ks in cls_list:
+        if ks[0] not in cls_label:
+            continue
+        L = cls_label[ks[0]]
+        p, s = float(mu[ks].mean()), float(sigma[ks].mean())
+        err = abs(L - p)
+        if err > max_abs or err > max_z * s:
+            continue
+        ambiguous = False
+        for other in cls_list:
+            if other is ks or (key_u[0] != "*" and cls_mult[other[0]] != cls_mult[ks[0]]):
+                continue
+            Lo = cls_label.get(other[0])
+            if Lo is not None and abs(Lo - L) <= SWAP_LABEL_GAP:
+                continue
+            if abs(float(mu[other].mean()) - L) < err + SWAP_MARGIN:
+                ambiguous = True
+                break
+        if ambiguous:
+            continue
+        out.extend((k, L) for k in ks)
+    return out
+
+
+def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, max_abs: float = 6.0,
+                 weight: float = 1.0, stats: dict | None = None) -> RowSet:
+    """Confident pseudo-labelled rows from unassigned peak lists."""
+    stats = {} if stats is None else stats
+    items = _prepare(peakmols)
+    stats["molecules_usable"] = len(items)
+    feats = np.vstack([e.features for _, _, e in items])
+    codes = np.vstack([e.codes for _, _, e in items])
+    mu_all, sig_all, _, _ = model.predict_arrays(feats, codes)
+    codes_o, feats_o, ys, mi, ai, fo = [], [], [], [], [], []
+    k = 0
+    n_classes_kept = n_carbons_total = n_mol = 0
+    for i, (pm, mol, env) in enumerate(items):
+        n = len(env.carbons)
+        mu, sg = mu_all[k:k + n], sig_all[k:k + n]
+        k += n
+        n_carbons_total += n
+        res = _assign_one(mol, env, pm.peaks, mu, sg, max_z, max_abs)
+        if not res:
+            continue
+        n_mol += 1
+        for kk, L in res:
+            codes_o.append(env.codes[kk]); feats_o.append(env.features[kk]); ys.append(L)
+            mi.append(mol_offset + i); ai.append(int(env.carbons[kk])); fo.append(fold_of(pm.skeleton))
+            n_classes_kept += 1
+    stats.update(carbons_considered=n_carbons_total, carbons_labelled=n_classes_kept, molecules_labelled=n_mol)
+    return RowSet(np.array(codes_o, np.uint32).reshape(-1, env.codes.shape[1]), np.array(feats_o, np.float32),
+                  np.array(ys, np.float32), np.array(mi), np.array(ai), np.array(fo),
+                  np.full(len(ys), weight, np.float32))
