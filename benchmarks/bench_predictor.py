@@ -98,7 +98,7 @@ def main() -> int:
     print("\nsmall molecules (reference: common practice / from memory of standard 13C tables):")
     from shiftrank.prediction_api import predict
     for smi, ref in [("c1ccccc1", "128.4"), ("CC#N", "CN ~117-118, CH3 ~1.8"), ("CC(=O)OCC", "C=O ~171"),
-                     ("CC(C)=O", "C=O ~206"), ("C1CC1C#N", "CN ~122"), ("c1ccncc1", "C2 150, C3 124, C4 136"),
+                     ("CC(=O)C1CCCCC1", "C=O ~212"), ("C1CC1C#N", "CN ~122"), ("c1ccncc1", "C2 150, C3 124, C4 136"),
                      ("c1ccoc1", "C2 143, C3 110"), ("C1CCOC1", "68, 26"), ("OC(=O)C", "C=O ~177-178")]:
         p = predict(smi)
         print(f"  {smi:<12} {' '.join(f'{v:.1f}' for v in p.shifts.values()):<30} ref {ref}")

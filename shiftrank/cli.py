@@ -147,6 +147,8 @@ def _read_candidates(tokens: list[str]) -> list:
                     from rdkit import Chem
                     smi = rec.source if not rec.source.startswith(Path(tok).name + ":") else Chem.MolToSmiles(rec.mol)
                     out.append((rec.id if rec.id != smi else None, smi, None))
+        elif tok.lower().endswith((".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz")):
+            raise InputError(f"{tok}: no such file")
         else:
             out.append((None, tok, None))
     return out
@@ -204,6 +206,9 @@ def cmd_rank(args) -> int:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
         _print_ranking(result, args.peaks)
+    if all(c.error for c in result.candidates):
+        print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
+        return 2
     if args.report:
         from .report import write_report
         write_report([result], args.report, [pl], [_history(args)], [_inventory_for(args, pl)])

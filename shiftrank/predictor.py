@@ -81,7 +81,7 @@ class ShiftModel:
         X2 = np.hstack([X, mu[:, None]])
         sigma = np.maximum(self.sigma_regressor.predict(X2) * self.sigma_scale, self.sigma_floor)
         _, radius = widest_match(stats)
-        count = np.array([stats[i, r - 1, 2] if r > 0 else 0 for i, r in enumerate(radius)], dtype=int)
+        count = np.where(radius > 0, stats[np.arange(len(radius)), np.maximum(radius - 1, 0), 2], 0).astype(int)
         return mu, sigma, radius, count
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
