@@ -30,7 +30,8 @@ def models_dir() -> Path:
     return Path(str(resources.files("shiftrank.models")))
 
 
-def _sha256(path: Path) -> str:
+def sha256_file(path: Path) -> str:
+    """Hex SHA-256 of a file, read in 1 MiB chunks."""
     h = hashlib.sha256()
     with open(path, "rb") as f:
         for chunk in iter(lambda: f.read(1 << 20), b""):
@@ -57,7 +58,7 @@ def verified_path(name: str, manifest: dict, directory: Path) -> Path:
         raise ModelFileError(f"{name}: not listed in the model manifest; refusing to load it")
     if not path.exists():
         raise ModelFileError(f"{path}: model file missing")
-    got = _sha256(path)
+    got = sha256_file(path)
     if got != expected:
         raise ModelFileError(f"{path}: SHA-256 {got[:12]}… does not match the manifest ({expected[:12]}…); "
                              "the file was altered or corrupted, refusing to load it")

@@ -38,14 +38,6 @@ def split_of(skel: str) -> str:
     return "test" if h < 2 else "val" if h < 4 else "train"
 
 
-def sha256_file(path: Path) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as f:
-        for chunk in iter(lambda: f.read(1 << 20), b""):
-            h.update(chunk)
-    return h.hexdigest()
-
-
 @dataclass
 class AssignedMol:
     id: str
