@@ -39,43 +39,6 @@ _HYB = {Chem.HybridizationType.SP: 1, Chem.HybridizationType.SP2: 2, Chem.Hybrid
 _SOLVENT_CODE = {"CDCl3": 1, "DMSO-d6": 2, "CD3OD": 3}
 
 
-def _atom_type(a: Chem.Atom) -> str:
-    sym = a.GetSymbol()
-    hyb = a.GetHybridization()
-    if sym == "C":
-        if a.GetIsAromatic():
-            return "Car"
-        if hyb == Chem.HybridizationType.SP:
-            return "C1"
-        if hyb == Chem.HybridizationType.SP2:
-            for b in a.GetBonds():
-                if b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetSymbol() in ("O", "S"):
-                    return "C=O"
-            return "C2"
-        return "C3"
-    if sym == "N":
-        if a.GetFormalCharge() > 0:
-            return "N+"
-        if a.GetIsAromatic():
-            return "Nar"
-        if hyb == Chem.HybridizationType.SP:
-            return "N1"
-        if any(b.GetBondType() == Chem.BondType.DOUBLE for b in a.GetBonds()):
-            return "N2"
-        return "N3"
-    if sym == "O":
-        if a.GetFormalCharge() < 0:
-            return "O-"
-        if a.GetIsAromatic():
-            return "Oar"
-        if any(b.GetBondType() == Chem.BondType.DOUBLE for b in a.GetBonds()):
-            return "O2"
-        return "O3"
-    if sym == "S":
-        return "Sox" if a.GetDegree() + a.GetTotalNumHs() > 2 or a.GetFormalCharge() else "S"
-    return sym if sym in _TIDX else "other"
-
-
 def _ring_sizes(mol: Chem.Mol) -> list[set[int]]:
     sizes: list[set[int]] = [set() for _ in range(mol.GetNumAtoms())]
     for ring in mol.GetRingInfo().AtomRings():
@@ -144,7 +107,8 @@ class MolEnvironments:
 
 
 def _atom_types(Z, arom, hyb, chg, deg_tot, dbl_to_os, has_dbl) -> list[str]:
-    """Shell atom types from per-atom arrays (same rules as :func:`_atom_type`)."""
+    """Shell atom types (see ``_TYPES``) from per-atom arrays: element, aromaticity, hybridisation,
+    charge, total degree, a double bond to O/S, any double bond."""
     out = []
     for z, ar, hy, ch, dt, dos, hd in zip(Z, arom, hyb, chg, deg_tot, dbl_to_os, has_dbl):
         if z == 6:
