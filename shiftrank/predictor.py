@@ -77,9 +77,14 @@ class ShiftModel:
             z = np.zeros(0)
             return z, z, z.astype(int), z.astype(int)
         X, stats = self.design(env_feats, codes)
-        mu = self.regressor.predict(X)
-        X2 = np.hstack([X, mu[:, None]])
-        sigma = np.maximum(self.sigma_regressor.predict(X2) * self.sigma_scale, self.sigma_floor)
+        # identical rows (symmetry-equivalent carbons, shared parts of isomers) are predicted once
+        rows = np.ascontiguousarray(X).view(np.dtype((np.void, X.dtype.itemsize * X.shape[1]))).ravel()
+        _, first, back = np.unique(rows, return_index=True, return_inverse=True)
+        Xu = X[first]
+        mu_u = self.regressor.predict(Xu)
+        sigma_u = self.sigma_regressor.predict(np.hstack([Xu, mu_u[:, None]]))
+        mu = mu_u[back]
+        sigma = np.maximum(sigma_u[back] * self.sigma_scale, self.sigma_floor)
         _, radius = widest_match(stats)
         count = np.where(radius > 0, stats[np.arange(len(radius)), np.maximum(radius - 1, 0), 2], 0).astype(int)
         return mu, sigma, radius, count
