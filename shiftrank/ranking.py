@@ -16,6 +16,7 @@ probability 0 and the reason.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 from typing import Sequence
 
 import numpy as np
@@ -169,6 +170,19 @@ class _Prepared:
     error: str | None = None
 
 
+@lru_cache(maxsize=4096)
+def _describe(smiles: str, solvent: str | None) -> tuple[Chem.Mol | None, MolEnvironments | None, str | None]:
+    """Molecule and carbon environments of a SMILES (cached: batches often repeat candidates)."""
+    try:
+        mol = to_mol(smiles)
+        check_organic(mol, f"SMILES '{smiles}'")
+        return mol, environments(mol, solvent), None
+    except InputError as exc:
+        return None, None, str(exc)
+    except Exception as exc:  # noqa: BLE001 - report exotic RDKit failures per candidate
+        return None, None, f"SMILES '{smiles}': cannot describe atom environments ({exc})"
+
+
 def _prepare(cand, position: int, solvent: str | None) -> _Prepared:
     name = None
     if isinstance(cand, tuple):
@@ -176,21 +190,10 @@ def _prepare(cand, position: int, solvent: str | None) -> _Prepared:
         if rest and rest[0]:
             return _Prepared(str(cand), position, name, error=str(rest[0]))
     if isinstance(cand, Chem.Mol):
-        smi, mol = Chem.MolToSmiles(cand), Chem.RemoveHs(cand)
-    else:
-        smi = str(cand)
-        try:
-            mol = to_mol(smi)
-        except InputError as exc:
-            return _Prepared(smi, position, name, error=str(exc))
-    try:
-        check_organic(mol, f"SMILES '{smi}'")
-        env = environments(mol, solvent)
-    except InputError as exc:
-        return _Prepared(smi, position, name, error=str(exc))
-    except Exception as exc:  # noqa: BLE001 - report exotic RDKit failures per candidate
-        return _Prepared(smi, position, name, error=f"SMILES '{smi}': cannot describe atom environments ({exc})")
-    return _Prepared(smi, position, name, mol, env)
+        cand = Chem.MolToSmiles(Chem.RemoveHs(cand))
+    smi = str(cand)
+    mol, env, err = _describe(smi, solvent)
+    return _Prepared(smi, position, name, mol, env, err)
 
 
 def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
@@ -198,7 +201,7 @@ def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
     if prep.error:
         res.error = prep.error
         return res
-    facts = facts_from_mol(prep.mol, prep.smiles)
+    facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
     res.facts = facts
     mu = dict(zip(prep.env.carbons.tolist(), pred[0]))
     sg = dict(zip(prep.env.carbons.tolist(), pred[1]))

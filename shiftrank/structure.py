@@ -104,9 +104,13 @@ def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list
     return sorted(groups.values(), key=lambda g: g[0])
 
 
-def facts_from_mol(mol: Chem.Mol, smiles: str | None = None) -> StructureFacts:
-    """Structure facts of an RDKit molecule (hydrogens implicit or explicit)."""
-    mol = Chem.RemoveHs(mol)
+def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = True) -> StructureFacts:
+    """Structure facts of an RDKit molecule (hydrogens implicit or explicit).
+
+    ``hydrogens=False`` skips the hydrogen symmetry classes (the ranking does not need them).
+    """
+    if any(a.GetAtomicNum() == 1 for a in mol.GetAtoms()):
+        mol = Chem.RemoveHs(mol)
     counts = element_counts(mol)
     ranks = symmetry_ranks(mol)
     d = dbe(counts)
@@ -119,7 +123,7 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None) -> StructureFacts:
         dbe=d,
         dbe_note=dbe_note(d),
         carbon_classes=carbon_classes(mol, ranks),
-        hydrogen_classes=hydrogen_classes(mol, ranks),
+        hydrogen_classes=hydrogen_classes(mol, ranks) if hydrogens else [],
     )
 
 
