@@ -127,10 +127,6 @@ def cmd_predict(args) -> int:
     return 2 if n_bad == len(results) else 0
 
 
-CAUTION = ("Caution: a ranking is evidence, not a certificate of identity. Confirm by orthogonal methods "
-           "and follow local regulations and validated procedures.")
-
-
 def _read_candidates(tokens: list[str]) -> list:
     """Candidates from files (.sdf/.mol/.smi/.txt) and SMILES strings, in order; bad records kept for reporting."""
     from pathlib import Path
@@ -192,7 +188,9 @@ def _print_ranking(result, peaks_src: str, out=sys.stdout) -> None:
             p = result.peaks[j]
             why = "solvent" if p.solvent else "unexplained"
             print(f"  {'-':<12} {p.multiplicity or '':<4} {'':>9} {'':>5} {p.shift:9.2f} {'':>6}  {why}", file=out)
-    print(f"\nModel {result.model_version}. {CAUTION}", file=out)
+    from .ranking import CAUTION
+
+    print(f"\nModel {result.model_version}. Caution: {CAUTION}", file=out)
 
 
 def cmd_rank(args) -> int:

@@ -33,6 +33,8 @@ from .solvents import normalise_solvent
 from .structure import StructureFacts, facts_from_mol
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
+CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
+           "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
 
 
 @dataclass
