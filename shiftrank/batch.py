@@ -43,13 +43,14 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
         if not isinstance(obj, dict):
             out.append((n, InputError(f"{p.name} line {n}: expected a JSON object")))
             continue
+        case_id = str(obj["id"]) if obj.get("id") is not None else f"line {n}"
         case = {k: obj.get(k) for k in FIELDS}
-        if case["id"] is None:
-            case["id"] = f"line {n}"
-        case["id"] = str(case["id"])
+        case["id"] = case_id
         cands = case["candidates"]
         if not isinstance(cands, list) or not all(isinstance(c, str) for c in cands):
-            out.append((n, InputError(f"{p.name} line {n}: 'candidates' must be a list of SMILES strings")))
+            exc = InputError(f"{p.name} line {n}: 'candidates' must be a list of SMILES strings")
+            exc.case_id = case_id
+            out.append((n, exc))
             continue
         out.append((n, case))
     if not out:
@@ -72,7 +73,7 @@ def _rank_chunk(items, detail: bool) -> list[dict]:
     out = []
     for n, c in items:
         if not isinstance(c, dict):
-            out.append({"id": None, "error": str(c), "ranking": []})
+            out.append({"id": getattr(c, "case_id", None), "error": str(c), "ranking": []})
             continue
         r = next(results)
         out.append(_error_line(c, r, f"line {n}") if isinstance(r, Exception) else r.to_dict(detail))

@@ -292,7 +292,10 @@ def verdict(cands: list[CandidateResult]) -> str:
 def _check_priors(priors, n: int):
     if priors is None:
         return None
-    p = np.asarray(priors, dtype=float)
+    try:
+        p = np.asarray(priors, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"priors: need {n} positive numbers, one per candidate") from None
     if p.shape != (n,) or not np.all(np.isfinite(p)) or np.any(p <= 0):
         raise InputError(f"priors: need {n} positive numbers, one per candidate")
     return p / p.sum()
@@ -351,6 +354,8 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             staged.append((case, peaks, notes, fcounts, mass, priors, preps))
         except InputError as exc:
             staged.append(exc)
+        except (TypeError, ValueError, KeyError, AttributeError) as exc:  # malformed fields from JSON input
+            staged.append(InputError(f"case has a malformed field ({type(exc).__name__}: {exc})"))
     envs = [p.env for s in staged if not isinstance(s, Exception) for p in s[6] if p.env is not None]
     if envs:
         feats = np.vstack([e.features for e in envs])
@@ -370,8 +375,11 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
                 k += n
             else:
                 pred = None
-            r = _candidate(p, pred, peaks, costs)
-            _history_checks(r, fcounts, mass, mass_tolerance)
+            try:
+                r = _candidate(p, pred, peaks, costs)
+                _history_checks(r, fcounts, mass, mass_tolerance)
+            except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
+                r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
         _probabilities(results, temperature, priors, demote_history_mismatch)
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))

@@ -96,3 +96,23 @@ def test_rank_cli_bad_peaks_exit_2(tmp_path):
     p.write_text("12.5\n999\n")
     r = run("rank", "--peaks", str(p), "--candidates", PARA)
     assert r.returncode == 2 and "line 2" in r.stderr
+
+
+def test_batch_malformed_fields_never_crash(tmp_path):
+    lines = [
+        {"id": "p", "peaks": PEAKS, "candidates": [PARA, META], "priors": [0.5, "x"]},
+        {"id": "q", "peaks": [{"shift": "abc"}], "candidates": [PARA]},
+        {"id": "r", "peaks": PEAKS, "candidates": PARA},
+        {"id": "s", "peaks": PEAKS, "candidates": [PARA, "[Na+].[Cl-]", ""], "formula": "C10H12O2"},
+    ]
+    f = tmp_path / "bad.jsonl"
+    f.write_text("\n".join(json.dumps(x) for x in lines))
+    r = run("batch", str(f))
+    assert r.returncode == 0 and "Traceback" not in r.stderr
+    out = [json.loads(x) for x in r.stdout.splitlines()]
+    assert [o["id"] for o in out] == ["p", "q", "r", "s"]
+    assert "priors" in out[0]["error"] and "not a number" in out[1]["error"]
+    assert "list of SMILES" in out[2]["error"]
+    assert out[3]["ranking"][0]["smiles"] == PARA
+    assert [x["smiles"] for x in out[3]["ranking"][1:]] == ["[Na+].[Cl-]", ""]
+    assert all("error" in x for x in out[3]["ranking"][1:])
