@@ -128,6 +128,10 @@ def _pick(header: list[str], names: tuple[str, ...]) -> int | None:
     return None
 
 
+def _cell(row: list[str], i: int | None) -> str | None:
+    return row[i] if i is not None and i < len(row) else None
+
+
 def _from_csv(text: str, src: str, nucleus: str) -> list[Peak]:
     lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
     dialect = csv.excel_tab if "\t" in lines[0] and "," not in lines[0] else csv.excel
@@ -142,8 +146,7 @@ def _from_csv(text: str, src: str, nucleus: str) -> list[Peak]:
         where = f"{src} line {n}"
         if len(row) <= si or not row[si].strip():
             raise InputError(f"{where}: missing shift value")
-        get = lambda i: row[i] if i is not None and i < len(row) else None  # noqa: E731
-        out.append(_make_peak(row[si], get(mi), get(ii), where, nucleus, n))
+        out.append(_make_peak(row[si], _cell(row, mi), _cell(row, ii), where, nucleus, n))
     return out
 
 

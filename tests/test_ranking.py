@@ -1,6 +1,5 @@
 """Ranking engine: hand-made regioisomer cases (own molecules, INVENTED shift lists made to look
 like typical spectra of the two esters), symmetry and formula checks, probabilities."""
-import numpy as np
 import pytest
 
 from shiftrank.errors import InputError
