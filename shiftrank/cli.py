@@ -93,6 +93,7 @@ def cmd_predict(args) -> int:
     from .molecules import read_molecules
     from .prediction_api import predict_records
     from .predictor import Z90
+    from .structure import MULTIPLICITY
 
     results = predict_records(read_molecules(args.file), args.solvent)
     version = default_manifest().get("version")
@@ -118,7 +119,7 @@ def cmd_predict(args) -> int:
         print(f"  {'atom':>4}  {'CHn':<4} {'shift':>7}  {'±90%':>6}  sphere match")
         for c in pred.carbons:
             a = rec.mol.GetAtomWithIdx(c.atom)
-            chn = {0: "C", 1: "CH", 2: "CH2", 3: "CH3"}.get(a.GetTotalNumHs(), "CH4")
+            chn = MULTIPLICITY.get(a.GetTotalNumHs(), f"CH{a.GetTotalNumHs()}")
             arom = "ar" if a.GetIsAromatic() else ""
             match = f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)"
             print(f"  {c.atom:>4}  {chn + arom:<5}{c.shift:7.1f}  {Z90 * c.sigma:6.1f}  {match}")
@@ -129,7 +130,7 @@ def cmd_predict(args) -> int:
 
 def _read_candidates(tokens: list[str]) -> list:
     """Candidates from files (.sdf/.mol/.smi/.txt) and SMILES strings, in order; bad records kept for reporting."""
-    from pathlib import Path
+    from rdkit import Chem
 
     from .molecules import read_molecules
 
@@ -140,7 +141,6 @@ def _read_candidates(tokens: list[str]) -> list:
                 if rec.error:
                     out.append((rec.id, rec.source, rec.error))
                 else:
-                    from rdkit import Chem
                     smi = rec.source if not rec.source.startswith(Path(tok).name + ":") else Chem.MolToSmiles(rec.mol)
                     out.append((rec.id if rec.id != smi else None, smi, None))
         elif tok.lower().endswith((".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz")):
@@ -176,14 +176,7 @@ def _print_ranking(result, peaks_src: str, out=sys.stdout) -> None:
             atoms = ",".join(str(a) for a in row["atoms"])
             obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:9.2f}"
             dev = "" if row["deviation"] is None else f"{row['deviation']:+6.2f}"
-            note = "unobserved" if row["peak"] is None else ""
-            if row["shared_peak"]:
-                note = "shares peak"
-            if row["z"] is not None and abs(row["z"]) > 3:
-                note += " >3σ"
-            if not row["multiplicity_ok"]:
-                note += " DEPT mismatch"
-            print(f"  {atoms:<12} {row['multiplicity']:<4} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>9} {dev:>6}  {note.strip()}", file=out)
+            print(f"  {atoms:<12} {row['multiplicity']:<4} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>9} {dev:>6}  {', '.join(row['notes'])}", file=out)
         for j in best.assignment.unmatched_peaks:
             p = result.peaks[j]
             why = "solvent" if p.solvent else "unexplained"

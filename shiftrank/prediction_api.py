@@ -5,7 +5,7 @@ from typing import Iterable
 
 from rdkit import Chem
 
-from .environment import environments
+from .environment import MolEnvironments, environments
 from .errors import InputError
 from .model_files import default_model
 from .molecules import MolRecord, check_organic, to_mol
@@ -13,6 +13,15 @@ from .predictor import MolPrediction
 from .solvents import normalise_solvent
 
 CHUNK = 2000
+
+
+def checked_environments(mol: Chem.Mol, label: str, solvent: str | None = None) -> MolEnvironments:
+    """Carbon environments of ``mol`` after the organic check; any failure is an :class:`InputError` naming ``label``."""
+    check_organic(mol, label)
+    try:
+        return environments(mol, solvent)
+    except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
+        raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
 
 
 def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPrediction:
@@ -26,8 +35,8 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPredicti
     [0, 1]
     """
     mol = to_mol(molecule) if isinstance(molecule, str) else Chem.RemoveHs(molecule)
-    check_organic(mol, f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule")
-    return default_model().predict_mol(mol, normalise_solvent(solvent))
+    label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
+    return default_model().predict_envs([checked_environments(mol, label, normalise_solvent(solvent))])[0]
 
 
 def predict_records(records: Iterable[MolRecord], solvent: str | None = None) -> list[tuple[MolRecord, MolPrediction | None, str | None]]:
@@ -49,13 +58,9 @@ def predict_records(records: Iterable[MolRecord], solvent: str | None = None) ->
             out[-1] = (rec, None, rec.error or "unreadable record")
             continue
         try:
-            check_organic(rec.mol, f"record '{rec.id}'")
-            env = environments(rec.mol, key)
+            env = checked_environments(rec.mol, f"record '{rec.id}'", key)
         except InputError as exc:
             out[-1] = (rec, None, str(exc))
-            continue
-        except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
-            out[-1] = (rec, None, f"record '{rec.id}': cannot compute atom environments ({exc})")
             continue
         pending.append((len(out) - 1, rec, env))
         if len(pending) >= CHUNK:

@@ -22,12 +22,13 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from .environment import MolEnvironments, environments
+from .environment import MolEnvironments
 from .errors import InputError
 from .formula import hill, parse_formula
 from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
 from .model_files import default_manifest, default_model
-from .molecules import check_organic, to_mol
+from .molecules import to_mol
+from .prediction_api import checked_environments
 from .peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
 from .solvents import normalise_solvent
 from .structure import StructureFacts, facts_from_mol
@@ -94,13 +95,16 @@ class CandidateResult:
         return d
 
     def assignment_table(self) -> list[dict]:
+        """One row per symmetry class, with the notes a reader needs (unobserved, shared peak, >3σ, DEPT)."""
         rows = []
         for p in self.assignment.pairings:
             c = self.classes[p.cls]
+            notes = (["unobserved"] if p.peak is None else []) + (["shares a peak"] if p.shared else []) \
+                + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) + ([] if p.multiplicity_ok else ["DEPT mismatch"])
             rows.append({"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
                          "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2),
                          "peak": p.peak, "deviation": _r(p.deviation, 2), "z": _r(p.z, 2),
-                         "shared_peak": p.shared, "multiplicity_ok": p.multiplicity_ok})
+                         "shared_peak": p.shared, "multiplicity_ok": p.multiplicity_ok, "notes": notes})
         return rows
 
 
@@ -177,12 +181,9 @@ def _describe(smiles: str, solvent: str | None) -> tuple[Chem.Mol | None, MolEnv
     """Molecule and carbon environments of a SMILES (cached: batches often repeat candidates)."""
     try:
         mol = to_mol(smiles)
-        check_organic(mol, f"SMILES '{smiles}'")
-        return mol, environments(mol, solvent), None
+        return mol, checked_environments(mol, f"SMILES '{smiles}'", solvent), None
     except InputError as exc:
         return None, None, str(exc)
-    except Exception as exc:  # noqa: BLE001 - report exotic RDKit failures per candidate
-        return None, None, f"SMILES '{smiles}': cannot describe atom environments ({exc})"
 
 
 def _prepare(cand, position: int, solvent: str | None) -> _Prepared:

@@ -133,17 +133,10 @@ def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_p
     rows = []
     for row in c.assignment_table():
         obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:.2f}"
-        note = []
-        if row["peak"] is None:
-            note.append("unobserved")
-        if row["shared_peak"]:
-            note.append("shares a peak")
-        if not row["multiplicity_ok"]:
-            note.append("DEPT mismatch")
         sw = tint(row["z"])
         rows.append(f"<tr><td><span style='color:{sw}'>■</span> {','.join(map(str, row['atoms']))}</td><td>{row['multiplicity']}</td>"
                     f"<td class=num>{row['predicted']:.2f} ± {row['sigma']:.2f}</td><td class=num>{obs}</td>"
-                    f"<td class=num>{_fmt(row['deviation'])}</td><td>{', '.join(note)}</td></tr>")
+                    f"<td class=num>{_fmt(row['deviation'])}</td><td>{', '.join(row['notes'])}</td></tr>")
     for j in c.assignment.unmatched_peaks:
         pk = result.peaks[j]
         rows.append(f"<tr><td>–</td><td>{pk.multiplicity or ''}</td><td></td><td class=num>{pk.shift:.2f}</td><td></td>"
