@@ -64,39 +64,6 @@ SHELL_NAMES = [f"d{d}_{t}" for d in range(1, SHELLS + 1) for t in _TYPES]
 FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES
 
 
-def _gasteiger(mol: Chem.Mol) -> tuple[np.ndarray, np.ndarray]:
-    """Gasteiger partial charges of heavy atoms and of their implicit H (Gasteiger & Marsili 1980)."""
-    m = Chem.Mol(mol)
-    n = m.GetNumAtoms()
-    try:
-        rdPartialCharges.ComputeGasteigerCharges(m)
-        pairs = [(a.GetDoubleProp("_GasteigerCharge"),
-                  a.GetDoubleProp("_GasteigerHCharge") if a.HasProp("_GasteigerHCharge") else 0.0) for a in m.GetAtoms()]
-        q, qh = (np.array(col) for col in zip(*pairs))
-    except (RuntimeError, ValueError, KeyError):
-        q, qh = np.zeros(n), np.zeros(n)
-    q = np.clip(np.nan_to_num(q, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
-    qh = np.clip(np.nan_to_num(qh, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
-    return q, qh
-
-
-def _bfs_depths(adj: np.ndarray, rows: np.ndarray, depth: int) -> np.ndarray:
-    """Path lengths from atoms ``rows`` over the graph ``adj``, up to ``depth`` (0 beyond or unreached)."""
-    n = adj.shape[0]
-    dist = np.zeros((len(rows), n), dtype=np.int8)
-    frontier = np.zeros((len(rows), n), dtype=np.float32)
-    frontier[np.arange(len(rows)), rows] = 1.0
-    reached = frontier > 0
-    for d in range(1, depth + 1):
-        frontier = ((frontier @ adj) > 0) & ~reached
-        if not frontier.any():
-            break
-        dist[frontier] = d
-        reached |= frontier
-        frontier = frontier.astype(np.float32)
-    return dist
-
-
 @dataclass
 class MolEnvironments:
     """Per-carbon environment data of one molecule."""
@@ -106,27 +73,211 @@ class MolEnvironments:
     features: np.ndarray    # (n_carbons, len(FEATURE_NAMES)) float32
 
 
-def _atom_types(Z, arom, hyb, chg, deg_tot, dbl_to_os, has_dbl) -> list[str]:
-    """Shell atom types (see ``_TYPES``) from per-atom arrays: element, aromaticity, hybridisation,
-    charge, total degree, a double bond to O/S, any double bond."""
-    out = []
-    for z, ar, hy, ch, dt, dos, hd in zip(Z, arom, hyb, chg, deg_tot, dbl_to_os, has_dbl):
-        if z == 6:
-            t = "Car" if ar else "C1" if hy == 1 else ("C=O" if dos else "C2") if hy == 2 else "C3"
-        elif z == 7:
-            t = "N+" if ch > 0 else "Nar" if ar else "N1" if hy == 1 else "N2" if hd else "N3"
-        elif z == 8:
-            t = "O-" if ch < 0 else "Oar" if ar else "O2" if hd else "O3"
-        elif z == 16:
-            t = "Sox" if dt > 2 or ch else "S"
-        else:
-            t = _Z_TYPE.get(z, "other")
-        out.append(t)
-    return out
+
+@dataclass
+class MolParts:
+    """What RDKit tells about one molecule, gathered once; :func:`environments_of` turns many of these
+    into descriptors with array arithmetic over the whole batch."""
+
+    atoms: np.ndarray       # (n, 9) float64: Z, aromatic, hybridisation, charge, degree, H count, in ring, q, q_H
+    bonds: np.ndarray       # (n_bonds, 4) int64: begin, end, kind (see _BOND_KINDS), conjugated
+    carbons: np.ndarray     # heavy-atom indices of the carbons
+    dist: np.ndarray        # (n_carbons, n) topological distances from each carbon
+    codes: np.ndarray       # (n_carbons, MAX_RADIUS) uint32 sphere codes
+    rings: list             # atom index tuples of the smallest set of rings
+    solvent_code: int
 
 
-_Z_TYPE = {1: "H", 9: "F", 17: "Cl", 35: "Br", 53: "I", 14: "Si", 5: "B", 34: "Se", 15: "P"}
-_NB_Z = {6: 0, 7: 1, 8: 2, 16: 3, 9: 4, 17: 5, 35: 6, 53: 7, 15: 8}
+def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
+    """Per-molecule RDKit work: atom and bond properties, Gasteiger charges (Gasteiger & Marsili
+    1980), distances and sphere codes."""
+    n = mol.GetNumAtoms()
+    m = Chem.Mol(mol)  # charges are written as atom properties: keep the caller's molecule untouched
+    try:
+        rdPartialCharges.ComputeGasteigerCharges(m)
+        charged = True
+    except (RuntimeError, ValueError):
+        charged = False
+    atoms = [m.GetAtomWithIdx(i) for i in range(n)]
+    info = [(a.GetAtomicNum(), a.GetIsAromatic(), _HYB.get(a.GetHybridization(), 0), a.GetFormalCharge(),
+             a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
+    q = np.zeros((n, 2))
+    if charged and n:
+        try:
+            q = np.array([(a.GetDoubleProp("_GasteigerCharge"),
+                           a.GetDoubleProp("_GasteigerHCharge") if a.HasProp("_GasteigerHCharge") else 0.0) for a in atoms])
+        except (RuntimeError, ValueError, KeyError):
+            q = np.zeros((n, 2))
+    q = np.clip(np.nan_to_num(q, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
+    table = np.hstack([np.array(info, dtype=np.float64).reshape(n, 7), q])
+    bonds = np.array([(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
+                       b.GetIsConjugated() or b.GetIsAromatic()) for b in mol.GetBonds()], dtype=np.int64).reshape(-1, 4)
+    carbons = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
+    ao = rdFingerprintGenerator.AdditionalOutput()
+    ao.AllocateAtomToBits()
+    _GEN.GetSparseCountFingerprint(mol, additionalOutput=ao)
+    atom_bits = ao.GetAtomToBits()
+    codes = np.zeros((len(carbons), MAX_RADIUS), dtype=np.uint32)
+    for row, idx in enumerate(carbons):
+        bits = atom_bits[idx][1: MAX_RADIUS + 1]
+        codes[row, : len(bits)] = bits
+    dist = Chem.GetDistanceMatrix(mol)[carbons] if len(carbons) else np.zeros((0, n))
+    return MolParts(table, bonds, carbons, dist, codes, list(mol.GetRingInfo().AtomRings()),
+                    _SOLVENT_CODE.get(solvent or "", 0))
+
+
+_T_LOOKUP = np.full(128, _TIDX["other"], dtype=np.int64)
+for _z, _t in {1: "H", 9: "F", 17: "Cl", 35: "Br", 53: "I", 14: "Si", 5: "B", 34: "Se", 15: "P"}.items():
+    _T_LOOKUP[_z] = _TIDX[_t]
+_NB_LOOKUP = np.full(128, len(_NB_ELEMENTS), dtype=np.int64)
+for _z, _k in {6: 0, 7: 1, 8: 2, 16: 3, 9: 4, 17: 5, 35: 6, 53: 7, 15: 8}.items():
+    _NB_LOOKUP[_z] = _k
+_CONJ_LOOKUP = np.full(128, 5, dtype=np.int64)
+for _z, _k in _CONJ_EL.items():
+    _CONJ_LOOKUP[_z] = _k
+
+
+def _atom_types(Z, arom, hyb, chg, deg_tot, dbl_to_os, has_dbl) -> np.ndarray:
+    """Shell atom type index (see ``_TYPES``) of every atom."""
+    T = _TIDX
+    out = _T_LOOKUP[np.minimum(Z, 127)]
+    carbon = np.where(arom, T["Car"], np.where(hyb == 1, T["C1"], np.where(hyb == 2, np.where(dbl_to_os, T["C=O"], T["C2"]), T["C3"])))
+    nitrogen = np.where(chg > 0, T["N+"], np.where(arom, T["Nar"], np.where(hyb == 1, T["N1"], np.where(has_dbl, T["N2"], T["N3"]))))
+    oxygen = np.where(chg < 0, T["O-"], np.where(arom, T["Oar"], np.where(has_dbl, T["O2"], T["O3"])))
+    sulfur = np.where((deg_tot > 2) | (chg != 0), T["Sox"], T["S"])
+    out = np.where(Z == 6, carbon, out)
+    out = np.where(Z == 7, nitrogen, out)
+    out = np.where(Z == 8, oxygen, out)
+    return np.where(Z == 16, sulfur, out)
+
+
+def _sum_rows(rows: np.ndarray, cols: np.ndarray, weights: np.ndarray, shape: tuple[int, int]) -> np.ndarray:
+    """Dense (rows x cols) array of summed weights (a scatter-add through ``bincount``)."""
+    flat = np.bincount(rows * shape[1] + cols, weights=weights, minlength=shape[0] * shape[1])
+    return flat.reshape(shape)
+
+
+def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
+    """Sphere codes and descriptors of every carbon of many molecules, computed batch-wide."""
+    if not parts:
+        return []
+    sizes = np.array([p.atoms.shape[0] for p in parts], dtype=np.int64)
+    a_off = np.concatenate([[0], np.cumsum(sizes)])
+    ncs = np.array([len(p.carbons) for p in parts], dtype=np.int64)
+    c_off = np.concatenate([[0], np.cumsum(ncs)])
+    N, NC = int(a_off[-1]), int(c_off[-1])
+    A = np.vstack([p.atoms for p in parts]) if N else np.zeros((0, 9))
+    Z = A[:, 0].astype(np.int64)
+    arom, hyb, chg, deg, nH, inring, q, qh = (A[:, k] for k in range(1, 9))
+    arom = arom > 0
+    nbond = np.array([len(p.bonds) for p in parts], dtype=np.int64)
+    B = np.vstack([p.bonds for p in parts]) if nbond.sum() else np.zeros((0, 4), np.int64)
+    shift = np.repeat(a_off[:-1], nbond)
+    bi, bj, bk, bc = B[:, 0] + shift, B[:, 1] + shift, B[:, 2], B[:, 3].astype(bool)
+    carbons = np.concatenate([p.carbons + a_off[i] for i, p in enumerate(parts)]) if NC else np.zeros(0, np.int64)
+
+    # per-atom bond facts
+    ends, others, kinds = np.concatenate([bi, bj]), np.concatenate([bj, bi]), np.concatenate([bk, bk])
+    is_dbl = kinds == 1
+    has_dbl = np.zeros(N, bool)
+    has_dbl[ends[is_dbl]] = True
+    dbl_to_os = np.zeros(N, bool)
+    dbl_to_os[ends[is_dbl & np.isin(Z[others], (8, 16))]] = True
+    bond_counts = _sum_rows(ends, kinds, np.ones(len(ends)), (N, 4))
+    n_el = len(_NB_ELEMENTS) + 1
+    nb_all = _sum_rows(ends, kinds * n_el + _NB_LOOKUP[np.minimum(Z[others], 127)], np.ones(len(ends)), (N, 4 * n_el))
+    q_nb_min = np.full(N, np.inf)
+    q_nb_max = np.full(N, -np.inf)
+    np.minimum.at(q_nb_min, ends, q[others])
+    np.maximum.at(q_nb_max, ends, q[others])
+    q_nb_min[~np.isfinite(q_nb_min)] = 0.0
+    q_nb_max[~np.isfinite(q_nb_max)] = 0.0
+
+    # shells: (carbon row, atom, distance) for every pair up to SHELLS bonds apart
+    flat = np.concatenate([p.dist.ravel() for p in parts]) if NC else np.zeros(0)
+    block = ncs * sizes
+    b_off = np.concatenate([[0], np.cumsum(block)])
+    pos = np.flatnonzero((flat >= 1) & (flat <= SHELLS))
+    mol_of = np.searchsorted(b_off, pos, side="right") - 1
+    local = pos - b_off[mol_of]
+    crow = local // sizes[mol_of] + c_off[mol_of]
+    atom = local % sizes[mol_of] + a_off[mol_of]
+    d = flat[pos].astype(np.int64)
+    types = _atom_types(Z, arom, hyb, chg, deg + nH, dbl_to_os, has_dbl)
+    h_col = _TIDX["H"]
+    t = types[atom]
+    shell_rows = crow * SHELLS + (d - 1)
+    shells = _sum_rows(shell_rows, t, (t != h_col).astype(np.float64), (NC * SHELLS, _NT))
+    shells[:, h_col] += np.bincount(shell_rows, weights=nH[atom], minlength=NC * SHELLS)
+    shells = shells.reshape(NC, SHELLS * _NT)
+    q_shell = _sum_rows(crow, d - 1, q[atom], (NC, SHELLS))
+
+    # conjugated-path distances: breadth-first search over conjugated bonds from every carbon
+    conj_rows, conj_atoms, conj_d = _conjugated_bfs(N, bi[bc], bj[bc], carbons)
+    cw = np.zeros((len(conj_atoms), 7))
+    cw[np.arange(len(conj_atoms)), _CONJ_LOOKUP[np.minimum(Z[conj_atoms], 127)]] = 1.0
+    cw[:, 6] = q[conj_atoms]
+    conj = np.zeros((NC * CONJ_DEPTH, 7))
+    np.add.at(conj, conj_rows * CONJ_DEPTH + conj_d - 1, cw)
+    conj = conj.reshape(NC, CONJ_DEPTH * 7)
+
+    # ring sizes of each atom (smallest set of rings)
+    ring_atoms = np.array([a + a_off[i] for i, p in enumerate(parts) for r in p.rings for a in r], dtype=np.int64)
+    ring_size = np.array([len(r) for p in parts for r in p.rings for _ in r], dtype=np.int64)
+    uniq = np.sort(ring_atoms * 4096 + np.minimum(ring_size, 4095))
+    uniq = uniq[np.concatenate([[True], uniq[1:] != uniq[:-1]])] if len(uniq) else uniq
+    ua, us = uniq // 4096, uniq % 4096
+    flags = np.zeros((N, 6))
+    for k, size in enumerate((3, 4, 5, 6)):
+        flags[ua[us == size], k] = 1.0
+    flags[ua[us >= 7], 4] = 1.0
+    flags[:, 5] = np.bincount(ua, minlength=N)
+
+    c = carbons
+    solvent = np.repeat([p.solvent_code for p in parts], ncs)
+    selfs = np.column_stack([
+        nH[c], hyb[c], arom[c], inring[c], flags[c, :5], chg[c], deg[c],
+        bond_counts[c], solvent, flags[c, 5],
+        q[c], qh[c], q_shell[:, 0], q_nb_min[c], q_nb_max[c], q_shell[:, 1], q_shell[:, 2],
+    ])
+    features = np.hstack([selfs, nb_all[c], conj, shells]).astype(np.float32)
+    codes = np.vstack([p.codes for p in parts]) if NC else np.zeros((0, MAX_RADIUS), np.uint32)
+    return [MolEnvironments(p.carbons, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]])
+            for i, p in enumerate(parts)]
+
+
+def _conjugated_bfs(n_atoms: int, bi: np.ndarray, bj: np.ndarray, sources: np.ndarray):
+    """(source row, atom, path length) for atoms 1..CONJ_DEPTH conjugated bonds from each source."""
+    ends, others = np.concatenate([bi, bj]), np.concatenate([bj, bi])
+    order = np.argsort(ends, kind="stable")
+    nbr = others[order]
+    start = np.concatenate([[0], np.cumsum(np.bincount(ends, minlength=n_atoms))])
+    rows = np.arange(len(sources), dtype=np.int64)
+    f_rows, f_atoms = rows, sources.astype(np.int64)
+    reached = np.sort(rows * n_atoms + f_atoms)
+    out_r, out_a, out_d = [], [], []
+    for depth in range(1, CONJ_DEPTH + 1):
+        deg = start[f_atoms + 1] - start[f_atoms]
+        if not deg.sum():
+            break
+        r = np.repeat(f_rows, deg)
+        first = np.repeat(start[f_atoms], deg)
+        within = np.arange(len(r)) - np.repeat(np.cumsum(deg) - deg, deg)
+        keys = np.sort(r * n_atoms + nbr[first + within])
+        keys = keys[np.concatenate([[True], keys[1:] != keys[:-1]])] if len(keys) else keys
+        at = np.minimum(np.searchsorted(reached, keys), len(reached) - 1)
+        keys = keys[reached[at] != keys]
+        if not len(keys):
+            break
+        f_rows, f_atoms = keys // n_atoms, keys % n_atoms
+        out_r.append(f_rows)
+        out_a.append(f_atoms)
+        out_d.append(np.full(len(keys), depth, np.int64))
+        reached = np.sort(np.concatenate([reached, keys]))
+    if not out_r:
+        z = np.zeros(0, np.int64)
+        return z, z, z
+    return np.concatenate(out_r), np.concatenate(out_a), np.concatenate(out_d)
 
 
 def environments(mol: Chem.Mol, solvent: str | None = None) -> MolEnvironments:
@@ -136,74 +287,4 @@ def environments(mol: Chem.Mol, solvent: str | None = None) -> MolEnvironments:
     >>> env.carbons.tolist(), env.codes.shape
     ([0, 1], (2, 6))
     """
-    n = mol.GetNumAtoms()
-    ao = rdFingerprintGenerator.AdditionalOutput()
-    ao.AllocateAtomToBits()
-    _GEN.GetSparseCountFingerprint(mol, additionalOutput=ao)
-    atom_bits = ao.GetAtomToBits()
-
-    # one pass over atoms and one over bonds; everything else is array arithmetic
-    info = [(a.GetAtomicNum(), a.GetIsAromatic(), _HYB.get(a.GetHybridization(), 0), a.GetFormalCharge(),
-             a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in mol.GetAtoms()]
-    Z, arom, hyb, chg, deg, nH, inring = (np.array(col) for col in zip(*info))
-    bonds = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
-              b.GetIsConjugated() or b.GetIsAromatic()) for b in mol.GetBonds()]
-    bi, bj, bk, bc = (np.array(col, dtype=np.int64) for col in zip(*bonds)) if bonds else (np.zeros(0, np.int64),) * 4
-    ends = np.concatenate([bi, bj])
-    others = np.concatenate([bj, bi])
-    kinds = np.concatenate([bk, bk])
-    is_dbl = kinds == 1
-    has_dbl = np.zeros(n, bool)
-    has_dbl[ends[is_dbl]] = True
-    dbl_to_os = np.zeros(n, bool)
-    dbl_to_os[ends[is_dbl & np.isin(Z[others], (8, 16))]] = True
-
-    carbons = np.flatnonzero(Z == 6).astype(np.int64)
-    nc = len(carbons)
-    onehot = np.zeros((n, _NT), dtype=np.float32)
-    onehot[np.arange(n), [_TIDX[t] for t in _atom_types(Z, arom, hyb, chg, deg + nH, dbl_to_os, has_dbl)]] = 1.0
-    onehot[:, _TIDX["H"]] = nH
-    dist = Chem.GetDistanceMatrix(mol)[carbons]  # (nc, n)
-    shells = [((dist == d).astype(np.float32) @ onehot) for d in range(1, SHELLS + 1)]
-    q, qh = _gasteiger(mol)
-    q_shell = [(dist == d).astype(np.float32) @ q for d in (1, 2, 3)]
-    conj_onehot = np.zeros((n, 7), dtype=np.float32)
-    conj_onehot[np.arange(n), [_CONJ_EL.get(int(z), 5) for z in Z]] = 1.0
-    conj_onehot[:, 6] = q
-    adj = np.zeros((n, n), dtype=np.float32)
-    cb = bc.astype(bool)
-    adj[bi[cb], bj[cb]] = adj[bj[cb], bi[cb]] = 1.0
-    cdist = _bfs_depths(adj, carbons, CONJ_DEPTH)
-    conj = [((cdist == d).astype(np.float32) @ conj_onehot) for d in range(1, CONJ_DEPTH + 1)]
-
-    # per-atom bond counts by kind and bond-typed neighbour counts
-    n_el = len(_NB_ELEMENTS) + 1
-    bond_counts = np.zeros((n, 4), np.float32)
-    np.add.at(bond_counts, (ends, kinds), 1.0)
-    nb_all = np.zeros((n, 4 * n_el), np.float32)
-    np.add.at(nb_all, (ends, kinds * n_el + np.array([_NB_Z.get(int(z), n_el - 1) for z in Z[others]], dtype=np.int64)), 1.0)
-    q_nb_min = np.full(n, np.inf)
-    q_nb_max = np.full(n, -np.inf)
-    np.minimum.at(q_nb_min, ends, q[others])
-    np.maximum.at(q_nb_max, ends, q[others])
-    q_nb_min[~np.isfinite(q_nb_min)] = 0.0
-    q_nb_max[~np.isfinite(q_nb_max)] = 0.0
-
-    rings = _ring_sizes(mol)
-    ring_flags = np.array([[3 in rings[i], 4 in rings[i], 5 in rings[i], 6 in rings[i], any(s >= 7 for s in rings[i]),
-                            len(rings[i])] for i in carbons], dtype=np.float32).reshape(nc, 6)
-    solvent_code = _SOLVENT_CODE.get(solvent or "", 0)
-    c = carbons
-    selfs = np.column_stack([
-        nH[c], hyb[c], arom[c], inring[c], ring_flags[:, :5], chg[c], deg[c],
-        bond_counts[c, 0], bond_counts[c, 1], bond_counts[c, 2], bond_counts[c, 3],
-        np.full(nc, solvent_code), ring_flags[:, 5],
-        q[c], qh[c], q_shell[0], q_nb_min[c], q_nb_max[c], q_shell[1], q_shell[2],
-    ]).astype(np.float32) if nc else np.zeros((0, len(SELF_NAMES)), np.float32)
-    nbs = nb_all[c]
-    codes = np.zeros((nc, MAX_RADIUS), dtype=np.uint32)
-    for row, idx in enumerate(carbons):
-        bits = atom_bits[idx]
-        codes[row, : len(bits) - 1] = bits[1 : MAX_RADIUS + 1]
-    features = np.hstack([selfs, nbs] + conj + shells) if nc else np.zeros((0, len(FEATURE_NAMES)), np.float32)
-    return MolEnvironments(carbons, codes, features)
+    return environments_of([mol_parts(mol, solvent)])[0]

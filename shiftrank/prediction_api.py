@@ -5,7 +5,7 @@ from typing import Iterable
 
 from rdkit import Chem
 
-from .environment import MolEnvironments, environments
+from .environment import MolEnvironments, MolParts, environments, environments_of, mol_parts
 from .errors import InputError
 from .model_files import default_model
 from .molecules import MolRecord, check_organic, to_mol
@@ -22,6 +22,30 @@ def checked_environments(mol: Chem.Mol, label: str, solvent: str | None = None) 
         return environments(mol, solvent)
     except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
         raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
+
+
+def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None) -> MolParts:
+    """RDKit facts of ``mol`` for batch descriptors, after the organic check; failures name ``label``."""
+    check_organic(mol, label)
+    try:
+        return mol_parts(mol, solvent)
+    except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
+        raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
+
+
+def environments_isolated(parts: list[MolParts]) -> list[MolEnvironments | None]:
+    """Descriptors of many molecules in one batch; should the batch fail, each molecule on its own,
+    with ``None`` for one that cannot be described (so one bad record never stops the others)."""
+    try:
+        return environments_of(parts)
+    except Exception:  # noqa: BLE001
+        out: list[MolEnvironments | None] = []
+        for p in parts:
+            try:
+                out.append(environments_of([p])[0])
+            except Exception:  # noqa: BLE001
+                out.append(None)
+        return out
 
 
 def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPrediction:
@@ -47,8 +71,14 @@ def predict_records(records: Iterable[MolRecord], solvent: str | None = None) ->
     pending: list = []
 
     def flush():
-        preds = model.predict_envs([env for _, _, env in pending])
-        for (slot, rec, _), p in zip(pending, preds):
+        envs = environments_isolated([parts for _, _, parts in pending])
+        good = []
+        for (slot, rec, _), env in zip(pending, envs):
+            if env is None:
+                out[slot] = (rec, None, f"record '{rec.id}': cannot compute atom environments")
+            else:
+                good.append((slot, rec, env))
+        for (slot, rec, _), p in zip(good, model.predict_envs([env for _, _, env in good])):
             out[slot] = (rec, p, None)
         pending.clear()
 
@@ -58,11 +88,11 @@ def predict_records(records: Iterable[MolRecord], solvent: str | None = None) ->
             out[-1] = (rec, None, rec.error or "unreadable record")
             continue
         try:
-            env = checked_environments(rec.mol, f"record '{rec.id}'", key)
+            parts = checked_parts(rec.mol, f"record '{rec.id}'", key)
         except InputError as exc:
             out[-1] = (rec, None, str(exc))
             continue
-        pending.append((len(out) - 1, rec, env))
+        pending.append((len(out) - 1, rec, parts))
         if len(pending) >= CHUNK:
             flush()
     if pending:

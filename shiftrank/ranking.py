@@ -22,13 +22,13 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from .environment import MolEnvironments
+from .environment import MolParts
 from .errors import InputError
 from .formula import hill, parse_formula
 from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
 from .model_files import default_manifest, default_model
 from .molecules import to_mol
-from .prediction_api import checked_environments
+from .prediction_api import checked_parts, environments_isolated
 from .peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
 from .solvents import normalise_solvent
 from .structure import StructureFacts, facts_from_mol
@@ -172,16 +172,16 @@ class _Prepared:
     position: int
     name: str | None
     mol: Chem.Mol | None = None
-    env: MolEnvironments | None = None
+    parts: MolParts | None = None
     error: str | None = None
 
 
 @lru_cache(maxsize=4096)
-def _describe(smiles: str, solvent: str | None) -> tuple[Chem.Mol | None, MolEnvironments | None, str | None]:
-    """Molecule and carbon environments of a SMILES (cached: batches often repeat candidates)."""
+def _describe(smiles: str, solvent: str | None) -> tuple[Chem.Mol | None, MolParts | None, str | None]:
+    """Molecule and its RDKit facts for descriptors, from a SMILES (cached: batches often repeat candidates)."""
     try:
         mol = to_mol(smiles)
-        return mol, checked_environments(mol, f"SMILES '{smiles}'", solvent), None
+        return mol, checked_parts(mol, f"SMILES '{smiles}'", solvent), None
     except InputError as exc:
         return None, None, str(exc)
 
@@ -195,8 +195,8 @@ def _prepare(cand, position: int, solvent: str | None) -> _Prepared:
     if isinstance(cand, Chem.Mol):
         cand = Chem.MolToSmiles(Chem.RemoveHs(cand))
     smi = str(cand)
-    mol, env, err = _describe(smi, solvent)
-    return _Prepared(smi, position, name, mol, env, err)
+    mol, parts, err = _describe(smi, solvent)
+    return _Prepared(smi, position, name, mol, parts, err)
 
 
 def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
@@ -206,8 +206,8 @@ def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
         return res
     facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
     res.facts = facts
-    mu = dict(zip(prep.env.carbons.tolist(), pred[0]))
-    sg = dict(zip(prep.env.carbons.tolist(), pred[1]))
+    mu = dict(zip(prep.parts.carbons.tolist(), pred[0]))
+    sg = dict(zip(prep.parts.carbons.tolist(), pred[1]))
     res.classes = [SignalClass(c.atoms, c.multiplicity, float(np.mean([mu[a] for a in c.atoms])),
                                float(np.mean([sg[a] for a in c.atoms]))) for c in facts.carbon_classes]
     res.assignment = assign(res.classes, peaks, costs)
@@ -357,7 +357,13 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             staged.append(exc)
         except (TypeError, ValueError, KeyError, AttributeError) as exc:  # malformed fields from JSON input
             staged.append(InputError(f"case has a malformed field ({type(exc).__name__}: {exc})"))
-    envs = [p.env for s in staged if not isinstance(s, Exception) for p in s[6] if p.env is not None]
+    preps_ok = [p for s in staged if not isinstance(s, Exception) for p in s[6] if p.parts is not None]
+    envs = []
+    for p, env in zip(preps_ok, environments_isolated([p.parts for p in preps_ok])):
+        if env is None:
+            p.parts, p.error = None, f"SMILES '{p.smiles}': cannot compute atom environments"
+        else:
+            envs.append(env)
     if envs:
         feats = np.vstack([e.features for e in envs])
         codes = np.vstack([e.codes for e in envs])
@@ -370,8 +376,8 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         case, peaks, notes, fcounts, mass, priors, preps = s
         results = []
         for p in preps:
-            if p.env is not None:
-                n = len(p.env.carbons)
+            if p.parts is not None:
+                n = len(p.parts.carbons)
                 pred = (mu[k:k + n], sg[k:k + n])
                 k += n
             else:
