@@ -103,9 +103,10 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
              a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
     q = np.zeros((n, 2))
     if charged and n:
-        try:
+        try:  # the charge of implicit H is a descriptor of carbons only
             q = np.array([(a.GetDoubleProp("_GasteigerCharge"),
-                           a.GetDoubleProp("_GasteigerHCharge") if a.HasProp("_GasteigerHCharge") else 0.0) for a in atoms])
+                           a.GetDoubleProp("_GasteigerHCharge") if row[0] == 6 and a.HasProp("_GasteigerHCharge") else 0.0)
+                          for a, row in zip(atoms, info)])
         except (RuntimeError, ValueError, KeyError):
             q = np.zeros((n, 2))
     q = np.clip(np.nan_to_num(q, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
@@ -115,7 +116,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     carbons = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
     ao = rdFingerprintGenerator.AdditionalOutput()
     ao.AllocateAtomToBits()
-    _GEN.GetSparseCountFingerprint(mol, additionalOutput=ao)
+    _GEN.GetSparseCountFingerprint(mol, fromAtoms=carbons.tolist(), additionalOutput=ao)
     atom_bits = ao.GetAtomToBits()
     codes = np.zeros((len(carbons), MAX_RADIUS), dtype=np.uint32)
     for row, idx in enumerate(carbons):

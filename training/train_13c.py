@@ -37,6 +37,7 @@ from training.features import RowSet, masked_copies, oof_table_stats, rows_from_
 from training.pseudo_labels import pseudo_label
 
 SEED = 20261201
+RARE_RADIUS, RARE_COUNT = 3, 3  # environment shared by fewer carbons than this (out of fold): not judged an outlier
 MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere statistics hidden
 REPO = Path(__file__).resolve().parents[1]
 
@@ -59,7 +60,11 @@ def fit_shift_model(rows: RowSet, report: dict) -> tuple[ShiftModel, RowSet]:
     res = rows.y - reg.predict(X)
     scale = 1.4826 * np.median(np.abs(res - np.median(res)))
     limit = max(8.0, 5.0 * scale)
-    keep = np.abs(res) <= limit
+    # an outlier is a carbon that disagrees with its peers; one whose surroundings (3 bonds out) no other
+    # training carbon shares has no peers to disagree with, and is kept (small and unusual molecules)
+    rare = stats[:, RARE_RADIUS - 1, 2] < RARE_COUNT
+    keep = (np.abs(res) <= limit) | rare
+    report["rare_kept_beyond_limit"] = int(((np.abs(res) > limit) & rare).sum())
     report["outlier_limit_ppm"] = round(float(limit), 2)
     report["outliers_dropped"] = int((~keep).sum())
     rows = rows.subset(keep)
