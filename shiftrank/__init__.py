@@ -6,14 +6,14 @@
 """
 __version__ = "0.1.0"
 
-__all__ = ["predict", "rank", "rank_many", "structure_facts", "take_inventory", "read_peaks", "parse_peaks",
+__all__ = ["predict", "predict_many", "rank", "rank_many", "structure_facts", "take_inventory", "read_peaks", "parse_peaks",
            "InputError", "__version__"]
 
 
 def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
-    if name == "predict":
-        from .prediction_api import predict
-        return predict
+    if name in ("predict", "predict_many"):
+        from . import prediction_api
+        return getattr(prediction_api, name)
     if name in ("rank", "rank_many"):
         from . import ranking
         return getattr(ranking, name)

@@ -63,23 +63,55 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPredicti
     return default_model().predict_envs([checked_environments(mol, label, normalise_solvent(solvent))])[0]
 
 
+def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None) -> list[MolPrediction | InputError]:
+    """Predict many molecules (SMILES strings or RDKit molecules) in large batches, the fast path.
+
+    The result has one entry per input, in order: a :class:`MolPrediction`, or the
+    :class:`InputError` that says why that molecule could not be predicted.
+
+    >>> out = predict_many(["CC#N", "not a smiles"])
+    >>> sorted(out[0].shifts), type(out[1]).__name__
+    ([0, 1], 'InputError')
+    """
+    key = normalise_solvent(solvent)
+    out: list = []
+    for i, molecule in enumerate(molecules):
+        try:
+            if isinstance(molecule, str):
+                mol, label = to_mol(molecule), f"input {i} (SMILES '{molecule}')"
+            elif isinstance(molecule, Chem.Mol):
+                mol, label = Chem.RemoveHs(molecule), f"input {i}"
+            else:
+                raise InputError(f"input {i}: expected a SMILES string or an RDKit molecule, got {type(molecule).__name__}")
+            out.append(checked_parts(mol, label, key))
+        except InputError as exc:
+            out.append(exc if str(exc).startswith("input ") else InputError(f"input {i}: {exc}"))
+        except Exception as exc:  # noqa: BLE001 - RDKit refusing a molecule is that input's error
+            out.append(InputError(f"input {i}: {exc}"))
+    slots = [k for k, item in enumerate(out) if isinstance(item, MolParts)]
+    for start in range(0, len(slots), CHUNK):
+        chunk = slots[start:start + CHUNK]
+        for k, pred in zip(chunk, _predict_parts([out[k] for k in chunk])):
+            out[k] = pred if pred is not None else InputError(f"input {k}: cannot compute atom environments")
+    return out
+
+
+def _predict_parts(parts: list[MolParts]) -> list[MolPrediction | None]:
+    """Predictions for a batch of molecules' RDKit facts (None where descriptors failed)."""
+    envs = environments_isolated(parts)
+    preds = iter(default_model().predict_envs([e for e in envs if e is not None]))
+    return [None if e is None else next(preds) for e in envs]
+
+
 def predict_records(records: Iterable[MolRecord], solvent: str | None = None) -> list[tuple[MolRecord, MolPrediction | None, str | None]]:
     """Predict many records in large model calls; bad records come back with an error message."""
-    model = default_model()
     key = normalise_solvent(solvent)
     out: list = []
     pending: list = []
 
     def flush():
-        envs = environments_isolated([parts for _, _, parts in pending])
-        good = []
-        for (slot, rec, _), env in zip(pending, envs):
-            if env is None:
-                out[slot] = (rec, None, f"record '{rec.id}': cannot compute atom environments")
-            else:
-                good.append((slot, rec, env))
-        for (slot, rec, _), p in zip(good, model.predict_envs([env for _, _, env in good])):
-            out[slot] = (rec, p, None)
+        for (slot, rec, _), pred in zip(pending, _predict_parts([parts for _, _, parts in pending])):
+            out[slot] = (rec, pred, None) if pred is not None else (rec, None, f"record '{rec.id}': cannot compute atom environments")
         pending.clear()
 
     for rec in records:

@@ -102,3 +102,16 @@ def test_every_carbon_gets_a_prediction_even_unseen_environments():
 def test_bad_molecules_raise_input_error(smiles, fragment):
     with pytest.raises(InputError, match=fragment):
         predict(smiles)
+
+
+def test_predict_many_keeps_order_and_reports_each_bad_input():
+    from rdkit import Chem
+    from shiftrank import InputError, predict_many
+    out = predict_many(["CC#N", "C1CC(", "[Na+].[Cl-]", Chem.MolFromSmiles("c1ccncc1"), 7, "O"])
+    assert [type(o).__name__ for o in out] == ["MolPrediction", "InputError", "InputError", "MolPrediction",
+                                                 "InputError", "InputError"]
+    assert "input 1" in str(out[1]) and "Na" in str(out[2]) and "int" in str(out[4]) and "no carbon" in str(out[5])
+    assert isinstance(out[1], InputError)
+    # the batch path gives the same numbers as one molecule at a time
+    assert out[0].shifts == pytest.approx(predict("CC#N").shifts)
+    assert out[3].shifts == pytest.approx(predict("c1ccncc1").shifts)
