@@ -121,7 +121,8 @@ def cmd_predict(args) -> int:
             a = rec.mol.GetAtomWithIdx(c.atom)
             chn = MULTIPLICITY.get(a.GetTotalNumHs(), f"CH{a.GetTotalNumHs()}")
             arom = "ar" if a.GetIsAromatic() else ""
-            match = f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)"
+            match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
+                     f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
             print(f"  {c.atom:>4}  {chn + arom:<5}{c.shift:7.1f}  {Z90 * c.sigma:6.1f}  {match}")
     if n_bad and not args.jsonl:
         print(f"{n_bad} of {len(results)} records could not be predicted", file=sys.stderr)

@@ -1,16 +1,20 @@
 """Atom environments for 13C prediction.
 
-Two descriptions of each carbon's surroundings, both computed per molecule
-in one pass so that prediction stays fast:
+Two descriptions of each carbon's surroundings:
 
 * **sphere codes** in the spirit of HOSE codes (Bremser 1978, Anal. Chim. Acta
   103, 355): a canonical identifier of the atoms and bonds within 1, 2, … R bonds
-  of the carbon (element, H count, charge, ring membership, bond order and
-  aromaticity), computed by RDKit's circular-environment generator with
-  redundant environments kept, so every carbon has one code per radius;
-* **shell counts**: for distance d = 1 … D, how many atoms of each type lie d
-  bonds away, plus a description of the carbon itself (H count, hybridisation,
-  ring sizes, charge, neighbouring bond orders).
+  of the carbon, computed by RDKit's circular-environment generator with
+  redundant environments kept (so every carbon has one code per radius) and our
+  own atom description (element, heavy degree, H count, charge, aromaticity,
+  smallest ring size; bond orders come from the generator);
+* **descriptors**: for distance d = 1 … D, how many atoms of each type lie d
+  bonds away; the carbon itself (H count, hybridisation, ring sizes, charge,
+  bond orders, Gasteiger charges); bond-typed neighbours; atoms reached along
+  conjugated bonds; and the partner across a double bond with its substituents.
+
+:func:`mol_parts` does the RDKit work of one molecule; :func:`environments_of`
+turns a whole batch of those into arrays at once, which keeps prediction fast.
 """
 from __future__ import annotations
 
@@ -61,7 +65,13 @@ _NB_ELEMENTS = {"C": 0, "N": 1, "O": 2, "S": 3, "F": 4, "Cl": 5, "Br": 6, "I": 7
 #: Bond-typed first neighbours: (single, double, triple, aromatic) x (C, N, O, S, F, Cl, Br, I, P, other)
 NEIGHBOUR_NAMES = [f"nb_{b}_{e}" for b in ("single", "double", "triple", "arom") for e in list(_NB_ELEMENTS) + ["other"]]
 SHELL_NAMES = [f"d{d}_{t}" for d in range(1, SHELLS + 1) for t in _TYPES]
-FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES
+#: The atom at the other end of a carbon's (non-aromatic) double bond and what hangs on it: the
+#: substituents across a C=C or C=N set the polarisation of the carbon (enones, enol ethers, enamines).
+PARTNER_NAMES = (["dbl_partner", "dbl_partner_C", "dbl_partner_N", "dbl_partner_O", "dbl_partner_S",
+                  "dbl_partner_nH", "dbl_partner_degree", "dbl_partner_q"]
+                 + [f"dbl_partner_single_{e}" for e in list(_NB_ELEMENTS) + ["other"]]
+                 + ["dbl_partner_nb_aryl", "dbl_partner_nb_acyl", "dbl_partner_nb_triple", "dbl_partner_nb_alkenyl"])
+FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES
 
 
 @dataclass
@@ -71,6 +81,7 @@ class MolEnvironments:
     carbons: np.ndarray     # heavy-atom indices of the carbons
     codes: np.ndarray       # (n_carbons, MAX_RADIUS) uint32 sphere codes for radius 1..MAX_RADIUS
     features: np.ndarray    # (n_carbons, len(FEATURE_NAMES)) float32
+    eccentricity: np.ndarray | None = None  # bonds from each carbon to the farthest atom (large if fragments)
 
 
 
@@ -92,13 +103,15 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     """Per-molecule RDKit work: atom and bond properties, Gasteiger charges (Gasteiger & Marsili
     1980), distances and sphere codes."""
     n = mol.GetNumAtoms()
-    m = Chem.Mol(mol)  # charges are written as atom properties: keep the caller's molecule untouched
+    # charges are written as private atom properties of ``mol``; every caller in the package passes a
+    # molecule of its own making (parsed, or with hydrogens removed), never the user's object
+    m = mol
     try:
         rdPartialCharges.ComputeGasteigerCharges(m)
         charged = True
     except (RuntimeError, ValueError):
         charged = False
-    atoms = [m.GetAtomWithIdx(i) for i in range(n)]
+    atoms = list(map(m.GetAtomWithIdx, range(n)))
     info = [(a.GetAtomicNum(), a.GetIsAromatic(), _HYB.get(a.GetHybridization(), 0), a.GetFormalCharge(),
              a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
     q = np.zeros((n, 2))
@@ -112,19 +125,36 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     q = np.clip(np.nan_to_num(q, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
     table = np.hstack([np.array(info, dtype=np.float64).reshape(n, 7), q])
     bonds = np.array([(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
-                       b.GetIsConjugated() or b.GetIsAromatic()) for b in mol.GetBonds()], dtype=np.int64).reshape(-1, 4)
+                       b.GetIsConjugated() or b.GetIsAromatic())
+                      for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))], dtype=np.int64).reshape(-1, 4)
     carbons = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
+    rings = list(mol.GetRingInfo().AtomRings())
+    smallest = np.full(n, 99, dtype=np.int64)
+    for ring in rings:
+        idx = list(ring)
+        smallest[idx] = np.minimum(smallest[idx], len(ring))
+    smallest[smallest == 99] = 0
     ao = rdFingerprintGenerator.AdditionalOutput()
     ao.AllocateAtomToBits()
-    _GEN.GetSparseCountFingerprint(mol, fromAtoms=carbons.tolist(), additionalOutput=ao)
+    _GEN.GetSparseCountFingerprint(mol, fromAtoms=carbons.tolist(), additionalOutput=ao,
+                                   customAtomInvariants=_sphere_invariants(table[:, :7].astype(np.int64), smallest))
     atom_bits = ao.GetAtomToBits()
     codes = np.zeros((len(carbons), MAX_RADIUS), dtype=np.uint32)
     for row, idx in enumerate(carbons):
         bits = atom_bits[idx][1: MAX_RADIUS + 1]
         codes[row, : len(bits)] = bits
     dist = Chem.GetDistanceMatrix(mol)[carbons] if len(carbons) else np.zeros((0, n))
-    return MolParts(table, bonds, carbons, dist, codes, list(mol.GetRingInfo().AtomRings()),
-                    _SOLVENT_CODE.get(solvent or "", 0))
+    return MolParts(table, bonds, carbons, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0))
+
+
+def _sphere_invariants(info: np.ndarray, smallest_ring: np.ndarray) -> list[int]:
+    """Atom descriptions inside sphere codes: element, heavy degree, H count, charge, aromaticity and
+    the size of the smallest ring (HOSE codes mark ring closures; without ring sizes a circular code
+    cannot tell a cyclopropane CH2 from a cyclohexane CH2)."""
+    z, aromatic, charge, degree, n_h = info[:, 0], info[:, 1], info[:, 3], info[:, 4], info[:, 5]
+    inv = ((((np.minimum(z, 127) * 8 + np.minimum(degree, 7)) * 8 + np.minimum(n_h, 7)) * 8
+            + np.clip(charge + 4, 0, 7)) * 2 + aromatic) * 16 + np.minimum(smallest_ring, 15)
+    return inv.tolist()
 
 
 _T_LOOKUP = np.full(128, _TIDX["other"], dtype=np.int64)
@@ -241,10 +271,46 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
         bond_counts[c], solvent, flags[c, 5],
         q[c], qh[c], q_shell[:, 0], q_nb_min[c], q_nb_max[c], q_shell[:, 1], q_shell[:, 2],
     ])
-    features = np.hstack([selfs, nb_all[c], conj, shells]).astype(np.float32)
+    partner = _partner_block(N, Z, arom, nH, deg, q, nb_all, ends, others, kinds, dbl_to_os)[c]
+    features = np.hstack([selfs, nb_all[c], conj, shells, partner]).astype(np.float32)
     codes = np.vstack([p.codes for p in parts]) if NC else np.zeros((0, MAX_RADIUS), np.uint32)
-    return [MolEnvironments(p.carbons, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]])
+    return [MolEnvironments(p.carbons, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
+                            p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.carbons)))
             for i, p in enumerate(parts)]
+
+
+def _partner_block(N, Z, arom, nH, deg, q, nb_all, ends, others, kinds, dbl_to_os) -> np.ndarray:
+    """Per atom: :data:`PARTNER_NAMES` for the first non-aromatic double bond it carries (zeros if none)."""
+    out = np.zeros((N, len(PARTNER_NAMES)))
+    dbl = np.flatnonzero(kinds == 1)
+    if len(dbl) == 0:
+        return out
+    # bond rows are ordered by bond index within each molecule: keep each atom's first double bond
+    first = np.full(N, -1, np.int64)
+    first[ends[dbl[::-1]]] = others[dbl[::-1]]
+    has = first >= 0
+    p = first[has]
+    out[has, 0] = 1.0
+    for k, z in enumerate((6, 7, 8, 16)):
+        out[has, 1 + k] = Z[p] == z
+    out[has, 5], out[has, 6], out[has, 7] = nH[p], deg[p], q[p]
+    n_el = len(_NB_ELEMENTS) + 1
+    out[has, 8:8 + n_el] = nb_all[p, :n_el]          # single-bonded neighbours of the partner, by element
+    # what those single-bonded neighbours are: aryl, acyl (C=O/C=S carbon), triple-bond bearing, alkenyl
+    single = kinds == 0
+    e, o = ends[single], others[single]
+    has_triple = np.zeros(N, bool)
+    has_triple[ends[kinds == 2]] = True
+    cdbl = np.zeros(N, bool)
+    cdbl[ends[(kinds == 1) & (Z[others] == 6)]] = True
+    prof = np.zeros((N, 4))
+    carbon = Z[o] == 6
+    np.add.at(prof, (e, 0), (carbon & arom[o]).astype(float))
+    np.add.at(prof, (e, 1), (carbon & dbl_to_os[o]).astype(float))
+    np.add.at(prof, (e, 2), has_triple[o].astype(float))
+    np.add.at(prof, (e, 3), (carbon & ~arom[o] & cdbl[o]).astype(float))
+    out[has, 8 + n_el:] = prof[p]
+    return out
 
 
 def _conjugated_bfs(n_atoms: int, bi: np.ndarray, bj: np.ndarray, sources: np.ndarray):

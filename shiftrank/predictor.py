@@ -20,6 +20,9 @@ from .environment import MolEnvironments, environments
 from .sphere_tables import SphereTables, table_features, widest_match
 
 Z90 = 1.6448536269514722
+#: σ (ppm) of a shift taken from spectra of the same compound: solvent, concentration and
+#: referencing differences between spectra of one compound are about this size (common practice)
+EXACT_SIGMA = 1.0
 
 
 @dataclass
@@ -31,6 +34,7 @@ class CarbonPrediction:
     sigma: float
     sphere_radius: int        # widest sphere with a table match (0 = none)
     sphere_count: int         # training carbons behind that match
+    whole_molecule: bool = False  # the match covers the whole molecule: the shift is the measured one
 
     @property
     def interval90(self) -> tuple[float, float]:
@@ -71,8 +75,14 @@ class ShiftModel:
         stats = self.tables.lookup(codes)
         return np.hstack([env_feats, table_features(stats)]), stats
 
-    def predict_arrays(self, env_feats: np.ndarray, codes: np.ndarray):
-        """Shift, sigma, widest radius and its count for rows of carbons."""
+    def predict_arrays(self, env_feats: np.ndarray, codes: np.ndarray, eccentricity: np.ndarray | None = None):
+        """Shift, sigma, widest radius and its count for rows of carbons.
+
+        Where ``eccentricity`` is given and the widest sphere match reaches past every atom of the
+        molecule (all MAX_RADIUS spheres matched, no atom farther than MAX_RADIUS - 1 bonds), the
+        compound itself is in the training data: the measured median is returned instead of the
+        model's estimate, with the spread between its spectra (at least EXACT_SIGMA) as σ.
+        """
         if len(env_feats) == 0:
             z = np.zeros(0)
             return z, z, z.astype(int), z.astype(int)
@@ -88,6 +98,14 @@ class ShiftModel:
         sigma = np.maximum(sigma_u[back] * self.sigma_scale, self.sigma_floor)
         _, radius = widest_match(stats)
         count = np.where(radius > 0, stats[np.arange(len(radius)), np.maximum(radius - 1, 0), 2], 0).astype(int)
+        if eccentricity is not None:
+            R = stats.shape[1]
+            whole = (radius == R) & (np.asarray(eccentricity) <= R - 1)
+            if whole.any():
+                mu = np.where(whole, stats[:, R - 1, 0], mu)
+                spread = np.nan_to_num(stats[:, R - 1, 1], nan=EXACT_SIGMA)
+                sigma = np.where(whole, np.maximum(spread, EXACT_SIGMA), sigma)
+                radius = np.where(whole, R + 1, radius)  # R + 1 marks "whole molecule"
         return mu, sigma, radius, count
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
@@ -96,16 +114,20 @@ class ShiftModel:
             return []
         feats = np.vstack([e.features for e in envs])
         codes = np.vstack([e.codes for e in envs])
-        mu, sigma, radius, count = self.predict_arrays(feats, codes)
+        ecc = np.concatenate([e.eccentricity if e.eccentricity is not None else np.full(len(e.carbons), np.inf)
+                              for e in envs])
+        mu, sigma, radius, count = self.predict_arrays(feats, codes, ecc)
+        R = codes.shape[1]
+        rows = zip(np.concatenate([e.carbons for e in envs]).tolist(), mu.tolist(), sigma.tolist(),
+                   np.minimum(radius, R).tolist(), count.tolist(), (radius > R).tolist())
+        carbons = [CarbonPrediction(*row) for row in rows]
         out, k = [], 0
         for e in envs:
             n = len(e.carbons)
-            out.append(MolPrediction([CarbonPrediction(int(a), float(mu[k + j]), float(sigma[k + j]),
-                                                       int(radius[k + j]), int(count[k + j]))
-                                      for j, a in enumerate(e.carbons)]))
+            out.append(MolPrediction(carbons[k:k + n]))
             k += n
         return out
 
     def predict_mol(self, mol: Chem.Mol, solvent: str | None = None) -> MolPrediction:
         """Predict every carbon of an RDKit molecule (hydrogens implicit)."""
-        return self.predict_envs([environments(mol, solvent)])[0]
+        return self.predict_envs([environments(Chem.Mol(mol), solvent)])[0]  # a copy: descriptors add atom properties

@@ -31,12 +31,24 @@ def test_forced_label_beyond_the_sanity_bound_is_refused():
     assert _run("C1CO1", [(far, "CH2"), (far, "CH2")], {0: 51.0, 1: 51.0}) == {}
 
 
-def test_rival_classes_keep_the_residual_limit():
-    # 1-methoxybutane, 13C in CDCl3 (from memory): CH3O 58.5, OCH2 72.7, CH2 31.8, CH2 19.4, CH3 13.9.
-    # The predictions are constructed: the methoxy carbon is 10 ppm off, and another CH3 class exists,
-    # so that label is not trusted; the close ones are.
+def test_close_labels_with_rivals_are_kept():
+    # 1-methoxybutane, 13C in CDCl3 (from memory): CH3O 58.5, OCH2 72.7, CH2 31.8, CH2 19.4, CH3 13.9;
+    # constructed predictions within a ppm of each: every class is labelled
     peaks = [(13.9, "CH3"), (19.4, "CH2"), (31.8, "CH2"), (72.7, "CH2"), (58.5, "CH3")]
-    mu = {0: 14.2, 1: 19.6, 2: 31.5, 3: 72.4, 5: 48.5}
-    got = _run("CCCCOC", peaks, mu)
-    assert 5 not in got
-    assert got[0] == 13.9 and got[3] == 72.7
+    mu = {0: 14.2, 1: 19.6, 2: 31.5, 3: 72.4, 5: 58.0}
+    assert _run("CCCCOC", peaks, mu) == {0: 13.9, 1: 19.4, 2: 31.8, 3: 72.7, 5: 58.5}
+
+
+def test_far_label_is_kept_when_no_rival_comes_close():
+    # oxetane, NMRShiftDB2 peak list 10016041: CH2 22.9, OCH2 72.6 (x2). Two CH2 classes compete, but a
+    # model that says 61 for the OCH2 cannot have swapped it with the CH2 predicted at 23
+    got = _run("C1COC1", [(22.9, "CH2"), (72.6, "CH2"), (72.6, "CH2")], {0: 23.0, 1: 61.0, 3: 61.0})
+    assert got == {0: 22.9, 1: 72.6, 3: 72.6}
+
+
+def test_far_label_with_a_close_rival_is_refused():
+    # constructed values: the carbon predicted at 30 gets the 45 ppm peak, 15 ppm off, while another
+    # CH2 predicted at 60 is just as close to it: that label is not trusted
+    got = _run("OCCCCOC", [(45.0, "CH2"), (75.0, "CH2"), (25.0, "CH2"), (26.0, "CH2"), (58.0, "CH3")],
+               {1: 60.0, 2: 25.5, 3: 26.5, 4: 30.0, 6: 58.2})
+    assert 4 not in got and got[2] == 25.0

@@ -22,6 +22,7 @@ from scipy.optimize import minimize_scalar
 
 from shiftrank.matching import MatchCosts, assign
 from shiftrank.model_files import load_shift_model, read_manifest
+from shiftrank.environment import environments_of
 from shiftrank.ranking import _candidate, _prepare, as_peaklist, observed_peaks
 from training.data import DEFAULT_DATA, split_of
 
@@ -48,10 +49,11 @@ def staged(cases, model, drop_mult: bool):
         preps = [_prepare(s, i, None) for i, s in enumerate(c["candidates"])]
         preds = []
         for p in preps:
-            if p.env is None:
+            if p.parts is None:
                 preds.append(None)
                 continue
-            mu, sg, _, _ = model.predict_arrays(p.env.features, p.env.codes)
+            env = environments_of([p.parts])[0]
+            mu, sg, _, _ = model.predict_arrays(env.features, env.codes, env.eccentricity)
             preds.append((mu, sg))
         truth = c["candidates"].index(c["truth"])
         base = [_candidate(p, pr, peaks, MatchCosts()) if pr is not None else None for p, pr in zip(preps, preds)]

@@ -5,7 +5,7 @@ import hashlib
 
 import numpy as np
 
-from shiftrank.environment import environments
+from shiftrank.environment import environments_of, mol_parts
 from shiftrank.sphere_tables import SphereTables, table_features
 
 N_FOLDS = 5
@@ -39,8 +39,10 @@ class RowSet:
 
 def rows_from_assigned(mols) -> RowSet:
     codes, feats, ys, mi, ai, fo = [], [], [], [], [], []
-    for i, m in enumerate(mols):
-        env = environments(m.mol, m.solvent)
+    envs = []
+    for start in range(0, len(mols), 2000):
+        envs.extend(environments_of([mol_parts(m.mol, m.solvent) for m in mols[start:start + 2000]]))
+    for i, (m, env) in enumerate(zip(mols, envs)):
         pos = {int(a): k for k, a in enumerate(env.carbons)}
         for atom, shift in m.shifts.items():
             k = pos[atom]

@@ -24,6 +24,7 @@ CLASS_SPREAD = 1.0      # ppm: equivalent carbons must get values this close
 SWAP_LABEL_GAP = 1.5    # ppm: two labels closer than this are harmless if swapped
 SWAP_MARGIN = 1.0       # ppm: a rival class this close to explaining the value makes it ambiguous
 FORCED_MAX_ABS = 25.0   # ppm: a label no other class could take is kept unless this far from the prediction
+CLEAR_MARGIN = 10.0     # ppm: a far label is kept if every rival class is at least this much farther still
 
 
 def _prepare(peakmols):
@@ -104,7 +105,13 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
             if err <= FORCED_MAX_ABS:
                 out.extend((k, L) for k in ks)
             continue
+        if err > FORCED_MAX_ABS:
+            continue
         if err > max_abs or err > max_z * s:
+            # far from the prediction: kept only when no rival carbon comes within CLEAR_MARGIN of
+            # explaining the peak better (oxetane's OCH2 at 72.6 against its CH2 at 22.9)
+            if all(abs(float(mu[o].mean()) - L) >= err + CLEAR_MARGIN for o in rivals):
+                out.extend((k, L) for k in ks)
             continue
         ambiguous = False
         for other in cls_list:
