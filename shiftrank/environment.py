@@ -114,30 +114,32 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     atoms = list(map(m.GetAtomWithIdx, range(n)))
     info = [(a.GetAtomicNum(), a.GetIsAromatic(), _HYB.get(a.GetHybridization(), 0), a.GetFormalCharge(),
              a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
-    q = np.zeros((n, 2))
-    if charged and n:
-        try:  # the charge of implicit H is a descriptor of carbons only
-            q = np.array([(a.GetDoubleProp("_GasteigerCharge"),
+    rows = None
+    if charged:
+        try:  # the charge of implicit H is a descriptor of carbons only; NaN and extremes are cleaned batch-wide
+            rows = [row + (a.GetDoubleProp("_GasteigerCharge"),
                            a.GetDoubleProp("_GasteigerHCharge") if row[0] == 6 and a.HasProp("_GasteigerHCharge") else 0.0)
-                          for a, row in zip(atoms, info)])
+                    for a, row in zip(atoms, info)]
         except (RuntimeError, ValueError, KeyError):
-            q = np.zeros((n, 2))
-    q = np.clip(np.nan_to_num(q, nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
-    table = np.hstack([np.array(info, dtype=np.float64).reshape(n, 7), q])
+            rows = None
+    if rows is None:
+        rows = [row + (0.0, 0.0) for row in info]
+    table = np.array(rows, dtype=np.float64).reshape(n, 9)
     bonds = np.array([(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
                        b.GetIsConjugated() or b.GetIsAromatic())
                       for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))], dtype=np.int64).reshape(-1, 4)
     carbons = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
     rings = list(mol.GetRingInfo().AtomRings())
-    smallest = np.full(n, 99, dtype=np.int64)
+    smallest = [0] * n
     for ring in rings:
-        idx = list(ring)
-        smallest[idx] = np.minimum(smallest[idx], len(ring))
-    smallest[smallest == 99] = 0
+        size = len(ring)
+        for i in ring:
+            if not smallest[i] or size < smallest[i]:
+                smallest[i] = size
     ao = rdFingerprintGenerator.AdditionalOutput()
     ao.AllocateAtomToBits()
     _GEN.GetSparseCountFingerprint(mol, fromAtoms=carbons.tolist(), additionalOutput=ao,
-                                   customAtomInvariants=_sphere_invariants(table[:, :7].astype(np.int64), smallest))
+                                   customAtomInvariants=[_sphere_invariant(row, r) for row, r in zip(info, smallest)])
     atom_bits = ao.GetAtomToBits()
     codes = np.zeros((len(carbons), MAX_RADIUS), dtype=np.uint32)
     for row, idx in enumerate(carbons):
@@ -147,14 +149,13 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     return MolParts(table, bonds, carbons, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0))
 
 
-def _sphere_invariants(info: np.ndarray, smallest_ring: np.ndarray) -> list[int]:
-    """Atom descriptions inside sphere codes: element, heavy degree, H count, charge, aromaticity and
+def _sphere_invariant(info_row: tuple, smallest_ring: int) -> int:
+    """Atom description inside sphere codes: element, heavy degree, H count, charge, aromaticity and
     the size of the smallest ring (HOSE codes mark ring closures; without ring sizes a circular code
     cannot tell a cyclopropane CH2 from a cyclohexane CH2)."""
-    z, aromatic, charge, degree, n_h = info[:, 0], info[:, 1], info[:, 3], info[:, 4], info[:, 5]
-    inv = ((((np.minimum(z, 127) * 8 + np.minimum(degree, 7)) * 8 + np.minimum(n_h, 7)) * 8
-            + np.clip(charge + 4, 0, 7)) * 2 + aromatic) * 16 + np.minimum(smallest_ring, 15)
-    return inv.tolist()
+    z, aromatic, _hyb, charge, degree, n_h, _ring = info_row
+    return ((((min(z, 127) * 8 + min(degree, 7)) * 8 + min(n_h, 7)) * 8 + min(max(charge + 4, 0), 7)) * 2
+            + int(aromatic)) * 16 + min(smallest_ring, 15)
 
 
 _T_LOOKUP = np.full(128, _TIDX["other"], dtype=np.int64)
@@ -198,6 +199,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     c_off = np.concatenate([[0], np.cumsum(ncs)])
     N, NC = int(a_off[-1]), int(c_off[-1])
     A = np.vstack([p.atoms for p in parts]) if N else np.zeros((0, 9))
+    A[:, 7:] = np.clip(np.nan_to_num(A[:, 7:], nan=0.0, posinf=0.0, neginf=0.0), -2.0, 2.0)
     Z = A[:, 0].astype(np.int64)
     arom, hyb, chg, deg, nH, inring, q, qh = (A[:, k] for k in range(1, 9))
     arom = arom > 0

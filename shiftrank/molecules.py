@@ -49,7 +49,7 @@ def to_mol(smiles: str) -> Chem.Mol:
 
 def check_organic(mol: Chem.Mol, label: str) -> None:
     """Raise :class:`InputError` when ``mol`` has no carbon or contains a metal."""
-    syms = {a.GetSymbol() for a in mol.GetAtoms()}
+    syms = {a.GetSymbol() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms()))}
     other = sorted(syms - ORGANIC)
     if other:
         raise InputError(f"{label}: contains {', '.join(other)}; only organic molecules (no metals) are supported")
