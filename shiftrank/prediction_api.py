@@ -7,7 +7,7 @@ from typing import Iterable
 
 from rdkit import Chem
 
-from .environment import MolEnvironments, MolParts, environments, environments_of, mol_parts
+from .environment import MolEnvironments, MolParts, environments_of, mol_parts
 from .errors import InputError
 from .model_files import default_model
 from .molecules import MolRecord, check_organic, to_mol
@@ -15,15 +15,6 @@ from .predictor import MolPrediction
 from .solvents import normalise_solvent
 
 CHUNK = 2000
-
-
-def checked_environments(mol: Chem.Mol, label: str, solvent: str | None = None) -> MolEnvironments:
-    """Carbon environments of ``mol`` after the organic check; any failure is an :class:`InputError` naming ``label``."""
-    check_organic(mol, label)
-    try:
-        return environments(mol, solvent)
-    except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
-        raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
 
 
 def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None) -> MolParts:
@@ -62,7 +53,10 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPredicti
     """
     mol = to_mol(molecule) if isinstance(molecule, str) else Chem.RemoveHs(molecule)
     label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
-    return default_model().predict_envs([checked_environments(mol, label, normalise_solvent(solvent))])[0]
+    pred = _predict_parts([checked_parts(mol, label, normalise_solvent(solvent))])[0]
+    if pred is None:
+        raise InputError(f"{label}: cannot compute atom environments")
+    return pred
 
 
 def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None) -> list[MolPrediction | InputError]:
