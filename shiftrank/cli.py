@@ -107,13 +107,17 @@ def cmd_predict(args) -> int:
                 print(f"{rec.id}: error: {err}", file=sys.stderr)
             continue
         if args.jsonl:
-            print(json.dumps({
+            obj = {
                 "id": rec.id,
                 "shifts": {str(c.atom): round(c.shift, 2) for c in pred.carbons},
                 "sigma": {str(c.atom): round(c.sigma, 2) for c in pred.carbons},
                 "interval90": {str(c.atom): [round(lo, 2), round(hi, 2)] for c in pred.carbons for lo, hi in [c.interval90]},
                 "model": version,
-            }))
+            }
+            measured = [str(c.atom) for c in pred.carbons if c.whole_molecule]
+            if measured:  # the compound is in the training data: these values are its measured shifts
+                obj["measured_in_data"] = measured
+            print(json.dumps(obj))
             continue
         print(f"{rec.id}")
         print(f"  {'atom':>4}  {'CHn':<4} {'shift':>7}  {'±90%':>6}  sphere match")

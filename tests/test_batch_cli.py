@@ -59,6 +59,15 @@ def test_predict_jsonl_contract(tmp_path):
     assert "error" in out[1]
 
 
+def test_predict_jsonl_marks_measured_values(tmp_path):
+    # oxirane is in NMRShiftDB2's peak lists (record 10016036, 40.6 ppm): its values are measured ones
+    smi = tmp_path / "m.smi"
+    smi.write_text("C1CO1 oxirane\nN#CC1(C(F)(F)F)CC(OC2CC2)C1 unseen\n")
+    out = [json.loads(x) for x in run("predict", str(smi), "--jsonl").stdout.splitlines()]
+    assert out[0]["measured_in_data"] == ["0", "1"] and out[0]["shifts"]["0"] == 40.6
+    assert "measured_in_data" not in out[1]
+
+
 def test_predict_sdf_keys_follow_file_atom_order(tmp_path):
     mol = Chem.AddHs(Chem.MolFromSmiles("OC(=O)c1ccc(Cl)cc1"))
     mol.SetProp("_Name", "acid-1")
