@@ -81,7 +81,7 @@ class MolEnvironments:
     carbons: np.ndarray     # heavy-atom indices of the carbons
     codes: np.ndarray       # (n_carbons, MAX_RADIUS) uint32 sphere codes for radius 1..MAX_RADIUS
     features: np.ndarray    # (n_carbons, len(FEATURE_NAMES)) float32
-    eccentricity: np.ndarray | None = None  # bonds from each carbon to the farthest atom (large if fragments)
+    eccentricity: np.ndarray  # bonds from each carbon to the farthest atom (large if fragments)
 
 
 
@@ -105,13 +105,12 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     n = mol.GetNumAtoms()
     # charges are written as private atom properties of ``mol``; every caller in the package passes a
     # molecule of its own making (parsed, or with hydrogens removed), never the user's object
-    m = mol
     try:
-        rdPartialCharges.ComputeGasteigerCharges(m)
+        rdPartialCharges.ComputeGasteigerCharges(mol)
         charged = True
     except (RuntimeError, ValueError):
         charged = False
-    atoms = list(map(m.GetAtomWithIdx, range(n)))
+    atoms = list(map(mol.GetAtomWithIdx, range(n)))
     info = [(a.GetAtomicNum(), a.GetIsAromatic(), _HYB.get(a.GetHybridization(), 0), a.GetFormalCharge(),
              a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
     rows = None

@@ -108,16 +108,17 @@ class ShiftModel:
                 radius = np.where(whole, R + 1, radius)  # R + 1 marks "whole molecule"
         return mu, sigma, radius, count
 
+    def predict_env_arrays(self, envs: list[MolEnvironments]):
+        """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""
+        return self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
+                                   np.concatenate([e.eccentricity for e in envs]))
+
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
         """Predict many molecules in one model call (fast path for batches)."""
         if not envs:
             return []
-        feats = np.vstack([e.features for e in envs])
-        codes = np.vstack([e.codes for e in envs])
-        ecc = np.concatenate([e.eccentricity if e.eccentricity is not None else np.full(len(e.carbons), np.inf)
-                              for e in envs])
-        mu, sigma, radius, count = self.predict_arrays(feats, codes, ecc)
-        R = codes.shape[1]
+        mu, sigma, radius, count = self.predict_env_arrays(envs)
+        R = envs[0].codes.shape[1]
         rows = zip(np.concatenate([e.carbons for e in envs]).tolist(), mu.tolist(), sigma.tolist(),
                    np.minimum(radius, R).tolist(), count.tolist(), (radius > R).tolist())
         carbons = [CarbonPrediction(*row) for row in rows]

@@ -365,9 +365,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         else:
             envs.append(env)
     if envs:
-        feats = np.vstack([e.features for e in envs])
-        codes = np.vstack([e.codes for e in envs])
-        mu, sg, _, _ = model.predict_arrays(feats, codes, np.concatenate([e.eccentricity for e in envs]))
+        mu, sg, _, _ = model.predict_env_arrays(envs)
     out, k = [], 0
     for s in staged:
         if isinstance(s, Exception):

@@ -52,8 +52,7 @@ def staged(cases, model, drop_mult: bool):
             if p.parts is None:
                 preds.append(None)
                 continue
-            env = environments_of([p.parts])[0]
-            mu, sg, _, _ = model.predict_arrays(env.features, env.codes, env.eccentricity)
+            mu, sg, _, _ = model.predict_env_arrays(environments_of([p.parts]))
             preds.append((mu, sg))
         truth = c["candidates"].index(c["truth"])
         base = [_candidate(p, pr, peaks, MatchCosts()) if pr is not None else None for p, pr in zip(preps, preds)]
