@@ -41,6 +41,12 @@ def environments_isolated(parts: list[MolParts]) -> list[MolEnvironments | None]
         return out
 
 
+def _own_copy(molecule: Chem.Mol) -> Chem.Mol:
+    """A copy of a caller's molecule with hydrogens implicit (a plain copy when there are none to remove);
+    descriptors write atom properties, which must not land on the caller's object."""
+    return Chem.Mol(molecule) if molecule.GetNumAtoms() == molecule.GetNumHeavyAtoms() else Chem.RemoveHs(molecule)
+
+
 def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPrediction:
     """Predict the 13C shift and uncertainty of every carbon.
 
@@ -51,7 +57,7 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPredicti
     >>> sorted(p.shifts)
     [0, 1]
     """
-    mol = to_mol(molecule) if isinstance(molecule, str) else Chem.RemoveHs(molecule)
+    mol = to_mol(molecule) if isinstance(molecule, str) else _own_copy(molecule)
     label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
     pred = _predict_parts([checked_parts(mol, label, normalise_solvent(solvent))])[0]
     if pred is None:
@@ -76,9 +82,7 @@ def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None
             if isinstance(molecule, str):
                 mol, label = to_mol(molecule), f"input {i} (SMILES '{molecule}')"
             elif isinstance(molecule, Chem.Mol):
-                # our own copy, hydrogens implicit (a plain copy is cheaper when there are none to remove)
-                mol = Chem.Mol(molecule) if molecule.GetNumAtoms() == molecule.GetNumHeavyAtoms() else Chem.RemoveHs(molecule)
-                label = f"input {i}"
+                mol, label = _own_copy(molecule), f"input {i}"
             else:
                 raise InputError(f"input {i}: expected a SMILES string or an RDKit molecule, got {type(molecule).__name__}")
             out.append(checked_parts(mol, label, key))
