@@ -84,12 +84,12 @@ def main() -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     args = ap.parse_args()
     t = time.perf_counter()
-    from shiftrank.model_files import load_shift_model, read_manifest
+    from shiftrank.predict.model_files import load_shift_model, read_manifest
     model = load_shift_model()
     load_s = time.perf_counter() - t
     man = read_manifest()
-    from shiftrank.environment import environments_of, mol_parts
-    from shiftrank.prediction_api import predict_many
+    from shiftrank.predict.environment import environments_of, mol_parts
+    from shiftrank.predict.api import predict_many
 
     mols = [m for m in load_assigned(args.data) if m.split == "test"]
     preds = model.predict_envs(environments_of([mol_parts(m.mol, m.solvent) for m in mols]))
@@ -155,7 +155,7 @@ def main() -> int:
     print(f"whole process (shiftrank predict --jsonl, start-up included): {n_carbons / whole:,.0f} carbons/s ({whole:.2f} s for {len(mols)} molecules)")
     print("\nsmall molecules against reference values (Fulmer et al. 2010, Organometallics 29, 2176, Table 2,"
           " CDCl3; others recalled from standard 13C tables, from memory):")
-    from shiftrank.prediction_api import predict
+    from shiftrank.predict.api import predict
     devs, models_only = [], []
     for smi, atom, ref, src in SMALL_MOLECULES:
         p = predict(smi, solvent="CDCl3")

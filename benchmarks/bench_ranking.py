@@ -82,7 +82,7 @@ def main() -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--limit", type=int, default=None)
     args = ap.parse_args()
-    from shiftrank.ranking import rank_many
+    from shiftrank.score.ranking import rank_many
 
     all_p, all_ok, all_held = [], [], []
     n_total_cands = 0

@@ -12,19 +12,19 @@ __all__ = ["predict", "predict_many", "rank", "rank_many", "structure_facts", "t
 
 def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
     if name in ("predict", "predict_many"):
-        from . import prediction_api
-        return getattr(prediction_api, name)
+        from .predict import api
+        return getattr(api, name)
     if name in ("rank", "rank_many"):
-        from . import ranking
+        from .score import ranking
         return getattr(ranking, name)
     if name == "structure_facts":
-        from .structure import structure_facts
+        from .chem.structure import structure_facts
         return structure_facts
     if name == "take_inventory":
-        from .inventory import take_inventory
+        from .chem.inventory import take_inventory
         return take_inventory
     if name in ("read_peaks", "parse_peaks"):
-        from . import peaks
+        from .inputs import peaks
         return getattr(peaks, name)
     if name == "InputError":
         from .errors import InputError

@@ -29,8 +29,8 @@ def _print_facts(f, out=sys.stdout) -> None:
 
 
 def cmd_facts(args) -> int:
-    from .molecules import read_molecules
-    from .structure import facts_from_mol, structure_facts
+    from .inputs.molecules import read_molecules
+    from .chem.structure import facts_from_mol, structure_facts
     from pathlib import Path
 
     items = []
@@ -63,7 +63,7 @@ def cmd_facts(args) -> int:
 
 
 def cmd_formula(args) -> int:
-    from .formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight, parse_formula
+    from .chem.formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight, parse_formula
 
     c = parse_formula(args.formula)
     d = dbe(c)
@@ -75,7 +75,7 @@ def cmd_formula(args) -> int:
 
 
 def cmd_peaks(args) -> int:
-    from .peaks import read_peaks
+    from .inputs.peaks import read_peaks
 
     pl = read_peaks(args.file, nucleus=args.nucleus, solvent=args.solvent)
     for p in pl.peaks:
@@ -89,11 +89,11 @@ def cmd_peaks(args) -> int:
 
 
 def cmd_predict(args) -> int:
-    from .model_files import default_manifest
-    from .molecules import read_molecules
-    from .prediction_api import predict_records
-    from .predictor import Z90
-    from .structure import MULTIPLICITY
+    from .predict.model_files import default_manifest
+    from .inputs.molecules import read_molecules
+    from .predict.api import predict_records
+    from .predict.model import Z90
+    from .chem.structure import MULTIPLICITY
 
     results = predict_records(read_molecules(args.file), args.solvent)
     version = default_manifest().get("version")
@@ -137,7 +137,7 @@ def _read_candidates(tokens: list[str]) -> list:
     """Candidates from files (.sdf/.mol/.smi/.txt) and SMILES strings, in order; bad records kept for reporting."""
     from rdkit import Chem
 
-    from .molecules import read_molecules
+    from .inputs.molecules import read_molecules
 
     out = []
     for tok in tokens:
@@ -155,45 +155,10 @@ def _read_candidates(tokens: list[str]) -> list:
     return out
 
 
-def _print_ranking(result, peaks_src: str, out=sys.stdout) -> None:
-    n_obs = sum(1 for p in result.peaks if not p.solvent)
-    n_solv = len(result.peaks) - n_obs
-    print(f"Peaks: {peaks_src}: {n_obs} signals" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
-    for n in result.notes:
-        print(f"  note: {n}", file=out)
-    print(file=out)
-    print(f" {'#':>2}  {'p':>6}  {'MAE':>5} {'max':>5} {'>3σ':>4} {'signals':>8}  candidate", file=out)
-    for i, c in enumerate(result.candidates, 1):
-        label = f"{c.name}  {c.smiles}" if c.name else c.smiles
-        if c.error:
-            print(f" {i:>2}  {'-':>6}  {'':>5} {'':>5} {'':>4} {'':>8}  {label}\n       error: {c.error}", file=out)
-            continue
-        sig = f"{len(c.classes)}/{n_obs}"
-        print(f" {i:>2}  {c.probability:6.3f}  {c.mae:5.2f} {c.max_abs_deviation:5.1f} {c.beyond_3sigma:>4} {sig:>8}  {label}", file=out)
-        for fl in c.flags:
-            print(f"       ! {fl}", file=out)
-    print(f"\nVerdict: {result.verdict}", file=out)
-    best = result.best
-    if not best.error:
-        print(f"\nAssignment for #1 ({best.name or best.smiles}):", file=out)
-        print(f"  {'atoms':<12} {'CHn':<4} {'predicted':>9} {'±σ':>5} {'observed':>9} {'dev':>6}  note", file=out)
-        for row in best.assignment_table():
-            atoms = ",".join(str(a) for a in row["atoms"])
-            obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:9.2f}"
-            dev = "" if row["deviation"] is None else f"{row['deviation']:+6.2f}"
-            print(f"  {atoms:<12} {row['multiplicity']:<4} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>9} {dev:>6}  {', '.join(row['notes'])}", file=out)
-        for j in best.assignment.unmatched_peaks:
-            p = result.peaks[j]
-            why = "solvent" if p.solvent else "unexplained"
-            print(f"  {'-':<12} {p.multiplicity or '':<4} {'':>9} {'':>5} {p.shift:9.2f} {'':>6}  {why}", file=out)
-    from .ranking import CAUTION
-
-    print(f"\nModel {result.model_version}. Caution: {CAUTION}", file=out)
-
-
 def cmd_rank(args) -> int:
-    from .peaks import read_peaks
-    from .ranking import rank
+    from .outputs.terminal import print_ranking
+    from .inputs.peaks import read_peaks
+    from .score.ranking import rank
 
     pl = read_peaks(args.peaks, solvent=args.solvent)
     result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass, solvent=args.solvent,
@@ -201,19 +166,19 @@ def cmd_rank(args) -> int:
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
-        _print_ranking(result, args.peaks)
+        print_ranking(result, args.peaks)
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
     if args.report:
-        from .report import write_report
+        from .outputs.report import write_report
         write_report([result], args.report, [pl], [_history(args)], [_inventory_for(args, pl)])
         print(f"report written to {args.report}", file=sys.stderr)
     return 0
 
 
 def cmd_batch(args) -> int:
-    from .batch import run_batch
+    from .score.batch import run_batch
 
     out = open(args.output, "w") if args.output else sys.stdout
     try:
@@ -232,8 +197,8 @@ def _history(args) -> dict:
 
 
 def _inventory_for(args, pl):
-    from .inventory import take_inventory
-    from .peaks import read_peaks
+    from .chem.inventory import take_inventory
+    from .inputs.peaks import read_peaks
 
     h1 = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent) if getattr(args, "peaks_1h", None) else None
     return take_inventory(pl, h1, args.formula, getattr(args, "mz", None), getattr(args, "ppm", 5.0))
@@ -242,7 +207,7 @@ def _inventory_for(args, pl):
 def cmd_inventory(args) -> int:
     from dataclasses import asdict
 
-    from .peaks import read_peaks
+    from .inputs.peaks import read_peaks
 
     pl = read_peaks(args.peaks, solvent=args.solvent)
     inv = _inventory_for(args, pl)
@@ -260,11 +225,11 @@ def cmd_inventory(args) -> int:
 
 
 def cmd_report(args) -> int:
-    from .report import write_report
+    from .outputs.report import write_report
 
     if args.batch:
-        from .batch import read_cases
-        from .ranking import rank_many
+        from .score.batch import read_cases
+        from .score.ranking import rank_many
 
         items = read_cases(args.batch)
         cases = [c for _, c in items if isinstance(c, dict)]
@@ -280,8 +245,8 @@ def cmd_report(args) -> int:
     else:
         if not args.peaks or not args.candidates:
             raise InputError("report: give --peaks and --candidates, or --batch CASES.jsonl")
-        from .peaks import read_peaks
-        from .ranking import rank
+        from .inputs.peaks import read_peaks
+        from .score.ranking import rank
 
         pl = read_peaks(args.peaks, solvent=args.solvent)
         result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass,

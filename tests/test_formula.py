@@ -12,7 +12,7 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from shiftrank.errors import InputError
-from shiftrank.formula import average_weight, dbe, dbe_note, hill, ion_mz, monoisotopic_weight, parse_formula
+from shiftrank.chem.formula import average_weight, dbe, dbe_note, hill, ion_mz, monoisotopic_weight, parse_formula
 
 IUPAC_WEIGHT = {"H": 1.008, "C": 12.011, "N": 14.007, "O": 15.999, "Cl": 35.45, "Br": 79.904}
 AME_MASS = {"H": 1.00782503, "C": 12.0, "N": 14.00307401, "O": 15.99491462, "Cl": 34.96885268, "Br": 78.9183376}

@@ -7,8 +7,8 @@ Shift ranges are common practice.
 import pytest
 
 from shiftrank.errors import InputError
-from shiftrank.inventory import integer_ratio, region_hint, take_inventory
-from shiftrank.peaks import parse_peaks
+from shiftrank.chem.inventory import integer_ratio, region_hint, take_inventory
+from shiftrank.inputs.peaks import parse_peaks
 
 
 def test_integral_normalisation_small_integers():

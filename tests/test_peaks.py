@@ -9,8 +9,8 @@ import pytest
 from hypothesis import given, settings, strategies as st
 
 from shiftrank.errors import InputError
-from shiftrank.peaks import parse_peaks, read_peaks
-from shiftrank.solvents import SOLVENTS, normalise_solvent
+from shiftrank.inputs.peaks import parse_peaks, read_peaks
+from shiftrank.inputs.solvents import SOLVENTS, normalise_solvent
 
 FULMER_13C = {"CDCl3": [77.16], "DMSO-d6": [39.52], "CD3OD": [49.00], "acetone-d6": [29.84, 206.26],
               "C6D6": [128.06], "CD3CN": [1.32, 118.26], "D2O": []}

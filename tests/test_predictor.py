@@ -13,8 +13,8 @@ import pytest
 from rdkit import Chem
 
 from shiftrank.errors import InputError
-from shiftrank.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
-from shiftrank.prediction_api import predict
+from shiftrank.predict.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
+from shiftrank.predict.api import predict
 
 
 def test_manifest_lists_hashes_licence_and_metrics():
@@ -127,7 +127,7 @@ def test_predict_many_keeps_order_and_reports_each_bad_input():
 
 def test_sphere_codes_tell_ring_sizes_apart():
     # a circular code without ring sizes gives every CH2 of any cycloalkane the same code at all radii
-    from shiftrank.environment import environments
+    from shiftrank.predict.environment import environments
     c3 = environments(Chem.MolFromSmiles("C1CC1")).codes[0]
     c6 = environments(Chem.MolFromSmiles("C1CCCCC1")).codes[0]
     assert not set(c3.tolist()) & set(c6.tolist())

@@ -3,7 +3,7 @@ like typical spectra of the two esters), symmetry and formula checks, probabilit
 import pytest
 
 from shiftrank.errors import InputError
-from shiftrank.ranking import rank
+from shiftrank.score.ranking import rank
 
 PARA = "CCOC(=O)c1ccc(C)cc1"     # ethyl 4-methylbenzoate
 META = "CCOC(=O)c1cccc(C)c1"     # ethyl 3-methylbenzoate

@@ -3,10 +3,10 @@ import re
 import subprocess
 import sys
 
-from shiftrank.inventory import take_inventory
-from shiftrank.peaks import parse_peaks
-from shiftrank.ranking import rank
-from shiftrank.report import render_report
+from shiftrank.chem.inventory import take_inventory
+from shiftrank.inputs.peaks import parse_peaks
+from shiftrank.score.ranking import rank
+from shiftrank.outputs.report import render_report
 
 PARA = "CCOC(=O)c1ccc(C)cc1"
 META = "CCOC(=O)c1cccc(C)c1"

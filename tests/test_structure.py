@@ -8,7 +8,7 @@ import pytest
 from rdkit import Chem
 
 from shiftrank.errors import InputError
-from shiftrank.structure import structure_facts
+from shiftrank.chem.structure import structure_facts
 
 
 def test_mirror_symmetric_chain_has_fewer_signals():

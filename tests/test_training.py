@@ -6,7 +6,7 @@ fed to the rules are constructed to put each rule to work.
 import numpy as np
 from rdkit import Chem
 
-from shiftrank.environment import environments
+from shiftrank.predict.environment import environments
 from training.pseudo_labels import FORCED_MAX_ABS, _assign_one
 
 

@@ -20,10 +20,10 @@ from pathlib import Path
 import numpy as np
 from scipy.optimize import minimize_scalar
 
-from shiftrank.matching import MatchCosts, assign
-from shiftrank.model_files import load_shift_model, read_manifest
-from shiftrank.environment import environments_of
-from shiftrank.ranking import _candidate, _prepare, as_peaklist, observed_peaks
+from shiftrank.score.matching import MatchCosts, assign
+from shiftrank.predict.model_files import load_shift_model, read_manifest
+from shiftrank.predict.environment import environments_of
+from shiftrank.score.ranking import _candidate, _prepare, as_peaklist, observed_peaks
 from training.data import DEFAULT_DATA, split_of
 
 REPO = Path(__file__).resolve().parents[1]

@@ -16,8 +16,8 @@ from pathlib import Path
 import numpy as np
 from rdkit import Chem, RDLogger
 
-from shiftrank.molecules import ORGANIC
-from shiftrank.solvents import normalise_solvent
+from shiftrank.inputs.molecules import ORGANIC
+from shiftrank.inputs.solvents import normalise_solvent
 
 RDLogger.DisableLog("rdApp.*")
 

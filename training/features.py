@@ -5,8 +5,8 @@ import hashlib
 
 import numpy as np
 
-from shiftrank.environment import environments_of, mol_parts
-from shiftrank.sphere_tables import SphereTables, table_features
+from shiftrank.predict.environment import environments_of, mol_parts
+from shiftrank.predict.sphere_tables import SphereTables, table_features
 
 N_FOLDS = 5
 

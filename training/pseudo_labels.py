@@ -15,9 +15,9 @@ import numpy as np
 from rdkit import Chem
 from scipy.optimize import linear_sum_assignment
 
-from shiftrank.environment import environments
-from shiftrank.molecules import ORGANIC
-from shiftrank.structure import MULTIPLICITY, symmetry_ranks
+from shiftrank.predict.environment import environments
+from shiftrank.inputs.molecules import ORGANIC
+from shiftrank.chem.structure import MULTIPLICITY, symmetry_ranks
 from training.features import RowSet, fold_of
 
 CLASS_SPREAD = 1.0      # ppm: equivalent carbons must get values this close

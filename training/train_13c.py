@@ -28,10 +28,10 @@ import numpy as np
 from scipy import stats as sps
 from sklearn.ensemble import HistGradientBoostingRegressor
 
-from shiftrank.environment import FEATURE_NAMES
-from shiftrank.predictor import Z90, ShiftModel
-from shiftrank.sphere_tables import SphereTables, table_features
-from shiftrank.model_files import sha256_file
+from shiftrank.predict.environment import FEATURE_NAMES
+from shiftrank.predict.model import Z90, ShiftModel
+from shiftrank.predict.sphere_tables import SphereTables, table_features
+from shiftrank.predict.model_files import sha256_file
 from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
 from training.features import RowSet, masked_copies, oof_table_stats, rows_from_assigned
 from training.pseudo_labels import pseudo_label

@@ -3,10 +3,11 @@ from __future__ import annotations
 
 from importlib import resources
 
-from ..inventory import take_inventory
-from ..peaks import read_peaks
-from ..ranking import rank
-from ..report import write_report
+from ..chem.inventory import take_inventory
+from ..inputs.peaks import read_peaks
+from ..score.ranking import rank
+from ..outputs.report import write_report
+from ..outputs.terminal import print_ranking
 
 SAMPLES = [
     {"id": "LP-0412 SNAr product", "title": "SNAr of 2,4-difluoronitrobenzene with morpholine: which fluorine was replaced?",
@@ -32,8 +33,6 @@ def _candidates(path) -> list[tuple[str, str]]:
 
 
 def run_demo(output: str) -> int:
-    from ..cli import _print_ranking
-
     print("shiftrank demo — all peak lists are INVENTED for illustration; they are not measurements.\n")
     results, pls, hists, invs = [], [], [], []
     for s in SAMPLES:
@@ -51,7 +50,7 @@ def run_demo(output: str) -> int:
         for line in inv.lines():
             print(f"    {line}")
         print()
-        _print_ranking(result, s["peaks"])
+        print_ranking(result, s["peaks"])
         print()
         results.append(result); pls.append(pl); invs.append(inv)
         hists.append({"formula": s["formula"], "solvent": s["solvent"], "mass": None})

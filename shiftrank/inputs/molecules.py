@@ -13,7 +13,7 @@ from typing import Iterator
 
 from rdkit import Chem, RDLogger
 
-from .errors import InputError
+from ..errors import InputError
 
 RDLogger.DisableLog("rdApp.*")
 

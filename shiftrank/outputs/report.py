@@ -17,8 +17,8 @@ import matplotlib.pyplot as plt  # noqa: E402
 from rdkit import Chem  # noqa: E402
 from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 
-from . import __version__  # noqa: E402
-from .ranking import CAUTION, CandidateResult, RankResult  # noqa: E402
+from .. import __version__  # noqa: E402
+from ..score.ranking import CAUTION, CandidateResult, RankResult  # noqa: E402
 
 #: |deviation|/σ steps and their tints: our own scale, from calm to alarming.
 SCALE = [(1.0, "#1f7a8c", "within 1σ"), (2.0, "#7fb069", "1–2σ"), (3.0, "#e6aa68", "2–3σ"),

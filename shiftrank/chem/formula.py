@@ -12,7 +12,7 @@ import re
 from collections import Counter
 
 from .elements import average_mass, dbe_valence, is_element, monoisotopic_mass
-from .errors import InputError
+from ..errors import InputError
 
 _TOKEN = re.compile(r"([A-Z][a-z]?)(\d*)")
 _ELECTRON = 0.000548579909  # electron mass (u), CODATA 2018
@@ -86,7 +86,7 @@ def monoisotopic_weight(counts: Counter | dict) -> float:
 
 def dbe(counts: Counter | dict) -> float:
     """Degree of unsaturation, DBE = 1 + ½ Σ nᵢ(vᵢ − 2), with valences from
-    :func:`shiftrank.elements.dbe_valence` (S counted as 2, P as 3).
+    :func:`shiftrank.chem.elements.dbe_valence` (S counted as 2, P as 3).
 
     A half-integer result means the formula is not that of a neutral closed-shell
     molecule under those valences (a radical, an ion, or a typo); see :func:`dbe_note`.

@@ -2,7 +2,7 @@
 
 The model combines two things learned from NMRShiftDB2 data:
 
-1. :class:`~shiftrank.sphere_tables.SphereTables` — median shift per sphere
+1. :class:`~shiftrank.predict.sphere_tables.SphereTables` — median shift per sphere
    code (HOSE-style, Bremser 1978), looked up from the widest sphere down;
 2. a ``HistGradientBoostingRegressor`` that predicts the shift from the
    carbon's shell descriptors plus those table statistics, and a second one

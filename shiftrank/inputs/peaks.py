@@ -17,7 +17,7 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from .errors import InputError
+from ..errors import InputError
 from .solvents import SOLVENTS, match_solvent, normalise_solvent
 
 RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}

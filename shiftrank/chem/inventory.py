@@ -18,9 +18,9 @@ import itertools
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from .errors import InputError
+from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_mz, parse_formula
-from .peaks import PeakList
+from ..inputs.peaks import PeakList
 
 H_OF = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
 ORDER = ("CH3", "CH2", "CH", "C")

@@ -17,7 +17,7 @@ import joblib
 import numpy as np
 
 from .environment import FEATURE_NAMES
-from .predictor import ShiftModel
+from .model import ShiftModel
 from .sphere_tables import SphereTables
 
 

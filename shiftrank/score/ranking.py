@@ -1,7 +1,7 @@
 """Ranking candidate structures against an observed 13C peak list.
 
 For each candidate: structure facts (formula, DBE, symmetry classes), predicted
-shifts per class, the optimal peak assignment (:mod:`shiftrank.matching`), and
+shifts per class, the optimal peak assignment (:mod:`shiftrank.score.matching`), and
 a total cost in nats.  Probabilities across candidates follow DP4 (Smith &
 Goodman 2010, J. Am. Chem. Soc. 132, 12946): a product of Student-t
 likelihoods over carbons, here together with the overlap/missing/extra terms,
@@ -22,16 +22,16 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from .environment import MolParts
-from .errors import InputError
-from .formula import hill, parse_formula
+from ..predict.environment import MolParts
+from ..errors import InputError
+from ..chem.formula import hill, parse_formula
 from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
-from .model_files import default_manifest, default_model
-from .molecules import to_mol
-from .prediction_api import checked_parts, environments_isolated
-from .peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
-from .solvents import normalise_solvent
-from .structure import StructureFacts, facts_from_mol
+from ..predict.model_files import default_manifest, default_model
+from ..inputs.molecules import to_mol
+from ..predict.api import checked_parts, environments_isolated
+from ..inputs.peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
+from ..inputs.solvents import normalise_solvent
+from ..chem.structure import StructureFacts, facts_from_mol
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
@@ -310,7 +310,7 @@ def rank(peaks, candidates: Sequence, formula: str | None = None, mass: float | 
     A ``(name, source, error)`` triple stands for a record that could not be read;
     it is listed last with its error.
 
-    ``peaks`` is a :class:`~shiftrank.peaks.PeakList`, or a list of shifts or of
+    ``peaks`` is a :class:`~shiftrank.inputs.peaks.PeakList`, or a list of shifts or of
     ``{"shift": …, "multiplicity": …}`` objects.
 
     >>> r = rank([{"shift": 14.2, "multiplicity": "CH3"}, {"shift": 60.5, "multiplicity": "CH2"},

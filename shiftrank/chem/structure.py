@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from rdkit import Chem
 
 from .formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight
-from .molecules import to_mol
+from ..inputs.molecules import to_mol
 
 MULTIPLICITY = {0: "C", 1: "CH", 2: "CH2", 3: "CH3", 4: "CH4"}
 

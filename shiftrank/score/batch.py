@@ -13,7 +13,7 @@ import sys
 from pathlib import Path
 from typing import Iterator
 
-from .errors import InputError
+from ..errors import InputError
 from .ranking import rank_many
 
 CHUNK = 64

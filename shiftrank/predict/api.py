@@ -8,11 +8,11 @@ from typing import Iterable
 from rdkit import Chem
 
 from .environment import MolEnvironments, MolParts, environments_of, mol_parts
-from .errors import InputError
+from ..errors import InputError
 from .model_files import default_model
-from .molecules import MolRecord, check_organic, to_mol
-from .predictor import MolPrediction
-from .solvents import normalise_solvent
+from ..inputs.molecules import MolRecord, check_organic, to_mol
+from .model import MolPrediction
+from ..inputs.solvents import normalise_solvent
 
 CHUNK = 2000
 

@@ -1,0 +1,2 @@
+"""Stages 4 and 5, matching and scoring: observed peaks ↔ a candidate's symmetry classes, costs,
+probabilities across candidates, batches.  May call every stage before it; never prints."""
