@@ -44,6 +44,11 @@ class Peak:
     count: int = 1                    # identical entries merged into this peak
     line: int | None = None
     solvent: str | None = None        # note when the peak sits on a residual solvent signal
+    lo: float | None = None           # 1H: printed range (a multiplet 7.10–7.20), else None
+    hi: float | None = None
+    j: tuple = ()                     # coupling constants (Hz) as printed
+    coupling: str | None = None       # 13C: a printed heteronuclear pattern ('q' of a CF3), not a DEPT statement
+    note: str = ""                    # printed assignment note (kept, not used)
 
 
 @dataclass
@@ -77,6 +82,41 @@ def normalise_multiplicity(text: str | None, where: str) -> str | None:
     raise InputError(f"{where}: multiplicity '{t}' is not one of C, CH, CH2, CH3 (or s, d, t, q)")
 
 
+_MULT_WORDS = {
+    "s": "s", "singlet": "s", "d": "d", "doublet": "d", "t": "t", "triplet": "t", "q": "q", "quartet": "q",
+    "quint": "p", "quin": "p", "quintet": "p", "p": "p", "pent": "p", "pentet": "p",
+    "sext": "sext", "sextet": "sext", "hex": "sext", "sex": "sext", "sept": "sept", "septet": "sept", "hept": "sept",
+    "heptet": "sept", "oct": "oct", "octet": "oct", "non": "non", "nonet": "non",
+    "m": "m", "multiplet": "m", "mc": "m", "brm": "br m",
+    "br": "br", "broad": "br", "brs": "br s", "bs": "br s", "brd": "br d", "bd": "br d", "brt": "br t", "bt": "br t",
+    "brsinglet": "br s", "abq": "ABq", "ab": "ABq", "ab q": "ABq", "abx": "m", "aa'bb'": "m", "aabb": "m",
+}
+_COMBO = re.compile(r"^(?:[dtq]|quint|quin|p|sext|sept){1,4}$")
+
+
+def normalise_1h_multiplicity(text: str | None) -> str | None:
+    """Printed 1H multiplicity letters in one spelling, or None when ``text`` is not one.
+
+    >>> [normalise_1h_multiplicity(x) for x in ("br.s", "quint", "dd", "app t", "Multiplet", "bs", "CH3")]
+    ['br s', 'p', 'dd', 't', 'm', 'br s', None]
+    """
+    if text is None:
+        return None
+    c = re.sub(r"[\s.\-]", "", str(text).lower())
+    for word in ("apparent", "app", "pseudo"):
+        c = c.replace(word, "")
+    if c in _MULT_WORDS:
+        return _MULT_WORDS[c]
+    br = False
+    for pre in ("broad", "br", "b"):
+        if c.startswith(pre) and len(c) > len(pre) and _COMBO.match(c[len(pre):]):
+            c, br = c[len(pre):], True
+            break
+    if _COMBO.match(c):
+        return ("br " if br else "") + c.replace("quint", "p").replace("quin", "p")
+    return None
+
+
 def _number(text, where: str, what: str) -> float:
     try:
         v = float(str(text).strip().replace("−", "-"))
@@ -87,14 +127,38 @@ def _number(text, where: str, what: str) -> float:
     return v
 
 
-def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None) -> Peak:
+def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None, rng=None, j=None) -> Peak:
+    lo = hi = None
+    if rng is not None:
+        if not isinstance(rng, (list, tuple)) or len(rng) != 2:
+            raise InputError(f"{where}: 'range' must be two numbers [low, high]")
+        lo, hi = sorted((_number(rng[0], where, "range"), _number(rng[1], where, "range")))
+        if shift is None:
+            shift = (lo + hi) / 2
+    if shift is None:
+        raise InputError(f"{where}: no 'shift' (or 'range') given")
     s = _number(shift, where, "shift")
-    lo, hi = RANGES[nucleus]
-    if not lo <= s <= hi:
-        raise InputError(f"{where}: shift {s:g} ppm is outside the {nucleus} range {lo:g}…{hi:g} ppm")
-    m = normalise_multiplicity(mult, where) if nucleus == "13C" else (str(mult).strip() or None if mult is not None else None)
+    rlo, rhi = RANGES[nucleus]
+    for v in (s, lo, hi):
+        if v is not None and not rlo <= v <= rhi:
+            raise InputError(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm")
+    if nucleus == "13C":
+        m = normalise_multiplicity(mult, where)
+    else:
+        m = normalise_1h_multiplicity(mult) if mult not in (None, "") else None
     i = _number(inten, where, "intensity") if inten not in (None, "") else None
-    return Peak(s, m, i, 1, lineno)
+    if i is not None and i < 0:
+        raise InputError(f"{where}: intensity/integral {i:g} is negative")
+    js = ()
+    if j is not None:
+        if isinstance(j, (int, float)) and not isinstance(j, bool):
+            j = [j]
+        if not isinstance(j, (list, tuple)):
+            raise InputError(f"{where}: 'j' must be a list of coupling constants in Hz")
+        js = tuple(_number(x, where, "J") for x in j)
+        if any(x < 0 or x > 400 for x in js):
+            raise InputError(f"{where}: coupling constants must lie in 0…400 Hz")
+    return Peak(s, m, i, 1, lineno, lo=lo, hi=hi, j=js)
 
 
 def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
@@ -168,10 +232,11 @@ def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C") -> 
     for i, item in enumerate(data):
         where = f"{src} peak {i + 1}"
         if isinstance(item, dict):
-            if "shift" not in item:
+            if "shift" not in item and not (nucleus == "1H" and "range" in item):
                 raise InputError(f"{where}: object has no 'shift' field")
             inten = item.get("intensity", item.get("integral"))
-            out.append(_make_peak(item["shift"], item.get("multiplicity"), inten, where, nucleus, None))
+            out.append(_make_peak(item.get("shift"), item.get("multiplicity"), inten, where, nucleus, None,
+                                  item.get("range"), item.get("j")))
         elif isinstance(item, (int, float)) and not isinstance(item, bool):
             out.append(_make_peak(item, None, None, where, nucleus, None))
         elif isinstance(item, (list, tuple)) and item:

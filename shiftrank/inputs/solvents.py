@@ -35,8 +35,8 @@ SOLVENTS = {
 }
 
 _ALIASES = [
-    (r"cdcl3|chloroform", "CDCl3"),
-    (r"dmso|dimethyl ?sulph?oxide|c2d6so", "DMSO-d6"),
+    (r"cdcl3|cdci3|chcl3-d|chloroform", "CDCl3"),
+    (r"dmso|dimethyl ?sul(?:f|ph)oxide|c2d6so", "DMSO-d6"),
     (r"cd3od|methanol|meod|cd4o", "CD3OD"),
     (r"acetone|\(cd3\)2co|c3d6o", "acetone-d6"),
     (r"c6d6|benzene", "C6D6"),

@@ -1,0 +1,473 @@
+"""Characterisation text as chemists print it: ``1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), …``.
+
+:func:`read_nmr_text` splits a paragraph (or several) into nucleus sections, reads each section's
+conditions (spectrometer frequency, solvent) and its peaks: a shift or a shift range, the integral
+(``2H``), the multiplicity letters (``s``, ``dd``, ``br s``, ``m`` …), the coupling constants, a
+carbon count (``2C``) and the assignment note, which is kept but not used.  Real papers vary; the
+reader accepts ``(2H, d, J = 8 Hz)`` as well as ``(d, J = 8 Hz, 2H)``, ``δ =``, ``ppm``, unicode
+minus signs and dashes, ``br.s``, ``J1 = …, J2 = …``, several J values, text mangled by a wrong
+encoding (``Î´`` for δ), a missing frequency or solvent, and a 13C line with its C–F coupling
+(``124.4 (q, J = 272 Hz)`` is ONE carbon).  A fragment that cannot be read is named in a note;
+nothing is dropped silently.
+
+>>> t = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 7.20–7.10 (m, 3H), 3.80 (s, 3H); "
+...                   "13C NMR (101 MHz, CDCl3) δ 170.1, 128.4 (q, J = 32.5 Hz), 21.3.")
+>>> [(s.nucleus, s.solvent, len(s.peaks)) for s in t.sections]
+[('1H', 'CDCl3', 3), ('13C', 'CDCl3', 3)]
+>>> p = t.sections[0].peaks[1]
+>>> p.lo, p.hi, p.integral, p.multiplicity
+(7.1, 7.2, 3.0, 'm')
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+
+from ..errors import InputError
+from .peaks import RANGES, Peak, PeakList, flag_solvent, merge_duplicates, normalise_1h_multiplicity
+from .solvents import normalise_solvent
+
+#: Ratio of the 1H to the 13C Larmor frequency (gyromagnetic ratios; 400 MHz 1H ≈ 100.6 MHz 13C).
+H_TO_C = 3.9772
+#: A 13C section whose stated frequency exceeds this is quoting the spectrometer's 1H frequency.
+MAX_13C_MHZ = 250.0
+MAX_TEXT = 200_000  # characters; longer text is refused (a whole article, not a characterisation)
+
+_DASHES = "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\u2043\ufe63\uff0d"
+_MOJIBAKE = ("Î´", "â€", "Â", "Ã")
+
+# a nucleus header: 1H NMR, ¹H-NMR, 13C{1H} NMR, 13C-APT NMR, 19F NMR, "H NMR" …
+_HEADER = re.compile(
+    r"(?<![A-Za-z0-9])(?P<mass>1|13|19|31|15|11|2|29|77)?\s?(?P<el>H|C|F|P|N|B|D|Si|Se)"
+    r"(?:\s*\{\s*1?\s*H\s*\})?(?:[\s-]*(?:APT|DEPT(?:-?135)?|UDEFT|PENDANT|JMOD))?[\s-]*NMR\b"
+    r"|(?<![A-Za-z])(?P<el2>H|C)(?:\s*\{\s*1?\s*H\s*\})?[\s-]*NMR\b"
+    r"|(?<![A-Za-z0-9])(?P<mass3>1|13)(?P<el3>H|C)(?=\s*[(:])"
+    r"|(?<![A-Za-z0-9])(?P<bare>NMR)\b", re.I)
+_SUPER = str.maketrans("¹²³⁹⁵", "12395")
+_NUM = r"[+-]?\d+(?:\.\d+)?"
+_SHIFT_ITEM = re.compile(
+    rf"^\s*(?:and\s+|&\s*)?(?P<a>{_NUM})\s*(?:(?:-|to|–|~|\.\.)\s*(?P<b>{_NUM}))?\s*(?:ppm)?\s*(?P<rest>.*)$", re.S | re.I)
+_INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
+_CARBONS = re.compile(r"^(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b", re.I)
+_JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz)[A-Za-z])"   # a J value: not the '1' of '1H'
+_JVAL = re.compile(rf"(?<![A-Za-z])J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+_DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
+
+
+@dataclass
+class PrintedPeak:
+    """One printed signal."""
+
+    shift: float                    # the printed value, or the middle of a printed range
+    lo: float | None = None         # range, when printed as 7.20–7.10
+    hi: float | None = None
+    integral: float | None = None   # 1H: number of H (2H)
+    multiplicity: str | None = None  # printed letters, normalised: s, d, dd, td, br s, m, ABq …
+    j: tuple = ()                   # coupling constants (Hz) as printed
+    count: int = 1                  # 13C: carbons at this value ("2C")
+    dept: str | None = None         # 13C: C/CH/CH2/CH3 when printed (DEPT)
+    note: str = ""                  # assignment text, kept, not used
+    fragment: str = ""              # the printed text of this peak
+
+
+@dataclass
+class TextSection:
+    """One nucleus paragraph: conditions and peaks."""
+
+    nucleus: str                    # '1H', '13C', or another nucleus such as '19F' (read, not used)
+    header: str
+    field_mhz: float | None = None  # as printed
+    solvent: str | None = None      # canonical key (see shiftrank.inputs.solvents) or None
+    solvent_text: str | None = None
+    peaks: list[PrintedPeak] = field(default_factory=list)
+    notes: list[str] = field(default_factory=list)
+
+    @property
+    def carbon_mhz(self) -> float | None:
+        """13C observation frequency: a printed value above ~250 MHz is the 1H frequency (÷ 3.977)."""
+        if self.field_mhz is None:
+            return None
+        return self.field_mhz / H_TO_C if self.field_mhz > MAX_13C_MHZ else self.field_mhz
+
+
+@dataclass
+class NmrText:
+    sections: list[TextSection]
+    notes: list[str] = field(default_factory=list)
+
+    def section(self, nucleus: str) -> TextSection | None:
+        """The first section of ``nucleus`` that has peaks (or the first at all)."""
+        found = [s for s in self.sections if s.nucleus == nucleus]
+        with_peaks = [s for s in found if s.peaks]
+        return (with_peaks or found or [None])[0]
+
+    @property
+    def solvent(self) -> str | None:
+        for s in self.sections:
+            if s.solvent:
+                return s.solvent
+        return None
+
+    def peaklist(self, nucleus: str, solvent: str | None = None, source: str = "text") -> PeakList | None:
+        """The section's peaks as a :class:`~shiftrank.inputs.peaks.PeakList` (None when absent)."""
+        sec = self.section(nucleus)
+        if sec is None or not sec.peaks:
+            return None
+        return section_peaklist(sec, solvent, source)
+
+
+def section_peaklist(sec: TextSection, solvent: str | None = None, source: str = "text") -> PeakList:
+    lo, hi = RANGES[sec.nucleus]
+    notes = [f"{sec.nucleus} text: {n}" for n in sec.notes]
+    peaks = []
+    for p in sec.peaks:
+        if not lo <= p.shift <= hi:
+            notes.append(f"{sec.nucleus} text: '{p.fragment}' lies outside {lo:g}…{hi:g} ppm: set aside")
+            continue
+        if sec.nucleus == "13C":
+            pk = Peak(p.shift, p.dept, None, max(p.count, 1), None, None, coupling=_coupling(p), j=p.j)
+        else:
+            pk = Peak(p.shift, p.multiplicity, p.integral, 1, None, None, lo=p.lo, hi=p.hi, j=p.j)
+        pk.note = p.note
+        peaks.append(pk)
+    if sec.nucleus == "13C":
+        merged = merge_duplicates(peaks, notes, "13C")
+    else:
+        merged = sorted(peaks, key=lambda q: -q.shift)
+        merged.reverse()
+    pl = PeakList(sec.nucleus, merged, source, notes)
+    return flag_solvent(pl, solvent or sec.solvent)
+
+
+def _coupling(p: PrintedPeak) -> str | None:
+    m = p.multiplicity
+    return m if m and m not in ("s", "br s", "br") else None
+
+
+def _repair(text: str) -> str:
+    """Undo the usual encoding accident (UTF-8 read as Latin-1/cp1252) and normalise dashes and spaces."""
+    if any(m in text for m in _MOJIBAKE):
+        for enc in ("cp1252", "latin-1"):
+            try:
+                text = text.encode(enc).decode("utf-8")
+                break
+            except (UnicodeEncodeError, UnicodeDecodeError):
+                continue
+    text = text.translate(_SUPER)
+    for ch in _DASHES:
+        text = text.replace(ch, "-")
+    text = re.sub(r"[\u00a0\u2009\u202f\u2002\u2003\u200b\t]", " ", text)
+    text = text.replace("\u00d7", "×").replace("\u03b4", "δ").replace("\u2032", "'")
+    return text
+
+
+def _split_top(text: str, seps: str = ",;") -> list[str]:
+    """Split at separators outside brackets."""
+    out, depth, cur = [], 0, []
+    for ch in text:
+        if ch in "([{":
+            depth += 1
+        elif ch in ")]}":
+            depth = max(0, depth - 1)
+        if ch in seps and depth == 0:
+            out.append("".join(cur))
+            cur = []
+        else:
+            cur.append(ch)
+    out.append("".join(cur))
+    return out
+
+
+def _nucleus(m: re.Match) -> str | None:
+    if m.group("bare"):
+        return None  # "NMR (300 MHz, CDCl3) δ …": the nucleus is read from the values
+    el = (m.group("el") or m.group("el2") or m.group("el3") or "").upper()
+    el = {"SI": "Si", "SE": "Se"}.get(el, el)
+    mass = m.group("mass") or m.group("mass3")
+    if el == "H" and mass in (None, "1"):
+        return "1H"
+    if el == "C" and mass in (None, "13"):
+        return "13C"
+    if el == "D" or (el == "H" and mass == "2"):
+        return "2H"
+    return f"{mass or ''}{el}"
+
+
+def _read_conditions(sec: TextSection, cond: str) -> None:
+    m = re.search(r"(\d+(?:\.\d+)?)\s*MHz", cond, re.I)
+    if m:
+        sec.field_mhz = float(m.group(1))
+    for part in re.split(r"[,;:()]", cond):
+        part = part.strip()
+        if not part or re.search(r"MHz|^\d+\s*K$|^δ|ppm|^T\s*=|°C|^r\.?t\.?$|^\d+$", part, re.I):
+            continue
+        key = normalise_solvent(part)
+        if key is None and re.fullmatch(r"(?:d\d*-?)?dmso(?:-?d\d*)?", part, re.I):
+            key = "DMSO-d6"
+        if key is not None:
+            if sec.solvent and sec.solvent != key:
+                sec.notes.append(f"conditions '{cond.strip()}' name two solvents ({sec.solvent}, {key}); using {sec.solvent}")
+                continue
+            sec.solvent, sec.solvent_text = key, part
+        elif re.search(r"[a-z]{3,}", part, re.I) and re.search(r"d\d|\bD\d?O\b|CD|C6D6|cdcl|solvent", part, re.I):
+            sec.solvent_text = part
+            sec.notes.append(f"solvent '{part}' has no residual-signal table here; its signals are not set aside")
+
+
+_FIRST_SHIFT = re.compile(r"(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s*(?:(?:-|~|to)\s*\d{1,3}\.\d+\s*)?(?:ppm\s*)?(?:[(\[,;/]|and\b|$))")
+
+
+_FIRST_INTEGER = re.compile(r"(?<![A-Za-z0-9.,/])\d{1,3}(?=\s*[,;]\s*\d{1,3}\s*[,;]\s*\d{1,3}\b)")
+
+
+def _header_end(body: str) -> tuple[str, str]:
+    """Split a section body into (conditions text, peak text) at the first shift outside brackets.
+
+    Conditions may come in one or several brackets, before or after δ: '(400 MHz, CDCl3) δ',
+    'δ (400 MHz; CDCl3):', '(CDCl3, 400 MHz, δ ppm):', '(400 MHz, DMSO-d6) (Figure S31) δ:'.
+    """
+    depth = 0
+    depth_at = []
+    for ch in body:
+        if ch in "([{":
+            depth += 1
+        depth_at.append(depth)
+        if ch in ")]}":
+            depth = max(0, depth - 1)
+    for pattern in (_FIRST_SHIFT, _FIRST_INTEGER):  # shifts printed without decimals come second
+        for m in pattern.finditer(body):
+            if depth_at[m.start()] == 0:
+                return body[:m.start()], body[m.start():]
+    if "[" in body:  # peaks printed inside square brackets within prose: "[δH 7.85 (2H, d), 7.45 (2H, t)]"
+        return _header_end(body.replace("[", " ").replace("]", " "))
+    return body, ""
+
+
+def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]) -> None:
+    """Read '(d, J = 8.4 Hz, 2H, H-3)' into the peak's fields; unread words go to the note."""
+    d = detail
+    js: list[float] = []
+    for m in _JVAL.finditer(d):
+        js.extend(float(v) for v in re.findall(_NUM, m.group("vals")))
+    d = _JVAL.sub(" ", d)
+    leftovers = []
+    for part in _split_top(d, ",;"):
+        w = part.strip().strip(".").strip()
+        if not w:
+            continue
+        low = re.sub(r"\s+", " ", w.lower())
+        compact = low.replace(" ", "").replace(".", "")
+        m = _INTEGRAL.match(w.replace(" ", "")) or _INTEGRAL.match(w)
+        if m:
+            peak.integral = float(m.group("n") or m.group("n2"))
+            continue
+        m = _CARBONS.match(w)
+        if m and nucleus == "13C":
+            peak.count = max(1, int(m.group("n")))
+            rest = w[m.end():].strip()
+            if rest:
+                leftovers.append(rest)
+            continue
+        mult = normalise_1h_multiplicity(compact)
+        if mult is not None and peak.multiplicity is None:
+            peak.multiplicity = mult
+            continue
+        if nucleus == "13C" and compact in _DEPT and peak.dept is None:
+            peak.dept = _DEPT[compact]
+            continue
+        if re.fullmatch(rf"{_NUM}(\s*Hz)?", w) and (js or "hz" in low):
+            js.append(float(re.match(_NUM, w).group(0)))  # a J list continued after a comma: "J = 8.4, 2.0 Hz"
+            continue
+        if re.fullmatch(rf"{_NUM}\s*,?\s*{_NUM}?\s*Hz", w, re.I):
+            js.extend(float(v) for v in re.findall(_NUM, w))
+            continue
+        leftovers.append(w)
+    peak.j = tuple(js)
+    peak.note = ", ".join(leftovers)
+
+
+_LEAD = re.compile(r"^\s*(?:[:=,;)\]]|δ\s*[HC]?\b|δ|\[\s*δ?\s*,?\s*\(?ppm\)?\s*\]|\(\s*ppm\s*\)|/\s*ppm|(?:in\s+)?ppm\b|d(?=\s*[:=]?\s*\d))\s*", re.I)
+_LABEL = re.compile(r"^[A-Za-z][\w\[\]\-,' ]{0,40}:\s*(?=[+-]?\d)")
+
+
+def _strip_lead(text: str) -> str:
+    """Drop what may precede the first shift: ':', '=', 'δ', 'ppm', '[δ, ppm] =', 'd' standing for δ."""
+    prev = None
+    while prev != text:
+        prev = text
+        text = _LEAD.sub("", text, count=1)
+    return text
+
+
+_DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,3})(?=\s*(?:-\s*\d{1,3},\d{1,3}\s*)?[(\[])")
+_PEAK_START = re.compile(r"[,;]\s*(?=(?:and\s+)?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?[(\[])")
+
+
+def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> None:
+    body = _strip_lead(text.strip()).rstrip(".").strip()
+    body = re.sub(r"\s*ppm\s*\.?\s*$", "", body)
+    if not body:
+        return
+    fixed = _DECIMAL_COMMA.sub(r"\1.\2", body)
+    if fixed != body:
+        sec.notes.append("decimal commas read as decimal points (e.g. '6,98' as 6.98)")
+        body = fixed
+    if body.count("(") != body.count(")") or body.count("[") != body.count("]"):
+        # an unclosed bracket would swallow every later peak: split before each 'shift (' instead
+        sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift ('")
+        pending = _PEAK_START.split(body)
+    else:
+        pending = [c for c in _split_top(body, ",;")]
+    group_dept = start_dept
+    while pending:
+        frag = _strip_lead(pending.pop(0).strip().strip(".").strip())
+        lab = _LABEL.match(frag)  # "Azo: 8.18 (2H, d)" or "CH: 130.2": a group label before the shift
+        if lab:
+            word = frag[:lab.end()].rstrip(": ").lower().replace(" ", "")
+            if sec.nucleus == "13C" and word in _DEPT:
+                group_dept = _DEPT[word]
+            frag = frag[lab.end():]
+        if not frag:
+            continue
+        if re.fullmatch(r"(?:and|ppm|δ|\(?ppm\)?)", frag, re.I):
+            continue
+        label = frag.lower().replace(" ", "")
+        if sec.nucleus == "13C" and label in _DEPT:
+            group_dept = _DEPT[label]  # a DEPT label before the values it covers
+            continue
+        if frag.startswith("(") and sec.peaks and not sec.peaks[-1].fragment.rstrip().endswith(")"):
+            # "7.82, (dd, J = 8.0 Hz, 1H)": the detail of the peak before, separated by a stray comma
+            last = sec.peaks[-1]
+            _parse_detail(frag.strip("()"), last, sec.nucleus, sec.notes)
+            last.fragment += ", " + frag
+            continue
+        m = _SHIFT_ITEM.match(frag)
+        if not m:
+            sec.notes.append(f"cannot read '{frag[:60]}' as a peak")
+            continue
+        a = float(m.group("a"))
+        b = float(m.group("b")) if m.group("b") else None
+        rest = m.group("rest").strip()
+        twin = None
+        tm = (re.match(rf"^(?:and)\s*(?P<b>{_NUM})(?:\s*-\s*{_NUM})?\s*(?P<rest>[(\[].*)$", rest, re.S)
+              or re.match(rf"^/\s*(?P<b>{_NUM})(?:\s*-\s*{_NUM})?\s*(?P<rest>(?:[(\[].*)?)$", rest, re.S))
+        if tm:  # "8.36 and 8.19 (s, 1H)": two values sharing one description
+            twin, rest = float(tm.group("b")), tm.group("rest")
+        peak = PrintedPeak(a, fragment=frag)
+        if b is not None:
+            if b < 0 < a:  # "7.20-7.10" read as 7.20 and -7.10
+                b = abs(b)
+            lo, hi = min(a, b), max(a, b)
+            if hi - lo > (3.0 if sec.nucleus == "1H" else 30.0):
+                sec.notes.append(f"'{frag[:60]}': a range of {hi - lo:g} ppm is implausible; read its first value only")
+            else:
+                peak.lo, peak.hi, peak.shift = lo, hi, round((lo + hi) / 2, 4)
+        detail, extra = "", rest
+        pm = (re.match(r"^\((?P<d>(?:[^()]|\((?:[^()]|\([^()]*\))*\))*)\)\s*(?P<after>.*)$", rest, re.S)
+              or re.match(r"^\[(?P<d>[^\[\]]*)\]\s*(?P<after>.*)$", rest, re.S))
+        if pm:
+            detail, extra = pm.group("d"), pm.group("after").strip()
+        elif rest.startswith(("(", "[")):  # unclosed bracket: take the rest as the detail
+            detail, extra = rest[1:], ""
+        if detail:
+            _parse_detail(detail, peak, sec.nucleus, sec.notes)
+        if extra:
+            words = extra.strip(" .")
+            if re.match(rf"^(?:and\s+)?{_NUM}\b", words) and re.match(r"^(?:and\s+)?\d", words):
+                pending.insert(0, words)  # two peaks without a separator: "1.46 (s, 9H) 1.45-1.20 (m, 6H)"
+                peak.fragment = frag[:len(frag) - len(extra)].strip()
+            else:
+                mult = normalise_1h_multiplicity(words)
+                im = _INTEGRAL.match(words.replace(" ", ""))
+                if mult is not None and peak.multiplicity is None:
+                    peak.multiplicity = mult
+                elif im:
+                    peak.integral = float(im.group("n") or im.group("n2"))
+                elif not re.search(r"\d+\.\d+", words) and len(words) <= 60:
+                    peak.note = (peak.note + ", " + words).strip(", ")
+                else:
+                    sec.notes.append(f"'{frag[:60]}': could not read '{words[:40]}' after the shift")
+        if peak.dept is None and group_dept is not None:
+            peak.dept = group_dept
+        sec.peaks.append(peak)
+        if twin is not None:
+            each = "each" in detail
+            other = PrintedPeak(twin, None, None, peak.integral, peak.multiplicity, peak.j, peak.count, peak.dept,
+                                peak.note, frag)
+            if peak.integral and not each:
+                peak.integral = other.integral = peak.integral / 2
+            sec.peaks.append(other)
+
+
+def _infer_nucleus(peaks_text: str, hint: str | None) -> tuple[str, str]:
+    """1H or 13C from the printed values when the header does not say; returns (nucleus, reason)."""
+    vals = [float(v) for v in re.findall(r"(?<![\w.])\d{1,3}(?:\.\d+)?(?![\d.]|\s*(?:Hz|MHz|H\b|C\b))", peaks_text)]
+    if hint in ("1H", "13C"):
+        return hint, "as the caller said"
+    if vals and max(vals) > 20 and sum(v > 16 for v in vals) >= 0.3 * len(vals):
+        return "13C", "values up to %g ppm" % max(vals)
+    return "1H", "values within 0-16 ppm"
+
+
+def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -> NmrText:
+    """Read printed NMR characterisation text into sections of peaks.
+
+    Raises :class:`~shiftrank.errors.InputError` only when the text holds no peaks at all (or is
+    not text); unreadable fragments inside a section become notes.  Text without any NMR header is
+    read as one section whose nucleus is ``nucleus`` when given, else inferred from the values (noted).
+    """
+    if not isinstance(text, str):
+        raise InputError(f"{source}: expected characterisation text, got {type(text).__name__}")
+    if len(text) > MAX_TEXT:
+        raise InputError(f"{source}: text of {len(text):,} characters exceeds the limit of {MAX_TEXT:,}; "
+                         "give the characterisation paragraphs only")
+    t = _repair(text)
+    heads = list(_HEADER.finditer(t))
+    out = NmrText([])
+    spans = [(h.start(), h.end(), _nucleus(h), h.group(0).strip()) for h in heads]
+    if not spans:
+        spans = [(0, 0, None, "")]
+    pre = t[:spans[0][0]].strip()
+    if re.search(r"\d+\.\d+", pre):
+        out.notes.append(f"text before the first NMR header was not read: '{pre[:60]}'")
+    for k, (_, h_end, nuc, header) in enumerate(spans):
+        end = spans[k + 1][0] if k + 1 < len(spans) else len(t)
+        body = t[h_end:end]
+        cond, peaks_text = _header_end(body)
+        if nuc is None:
+            nuc, why = _infer_nucleus(peaks_text, nucleus)
+            sec = TextSection(nuc, header)
+            sec.notes.append(f"no nucleus in the header '{header}': read as {nuc} ({why})" if header else
+                             f"no NMR header: read as {nuc} ({why})")
+        else:
+            sec = TextSection(nuc, header)
+        stray = re.findall(r"(?<![\d.])\d{1,3}\.\d+(?![\d.])(?!\s*(?:MHz|K\b|°|Hz|ppm\)|ppm\s*\)))", cond)
+        if stray and peaks_text:
+            sec.notes.append(f"values before the peak list were not read as peaks: {', '.join(stray[:5])} (in '{cond.strip()[:60]}')")
+        # conditions may also trail the header without brackets: "1H NMR, CDCl3, 400 MHz: δ …"
+        if not cond.strip() and re.match(r"\s*[,:]", peaks_text):
+            m = re.match(r"\s*[,:]\s*([^δ\d]*?(?:\d+(?:\.\d+)?\s*MHz[^δ\d]*)?)(?=[δ\d])", peaks_text)
+            if m:
+                cond, peaks_text = m.group(1), peaks_text[m.end():]
+        _read_conditions(sec, cond)
+        peaks_text = _strip_trailer(peaks_text)
+        lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
+        _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
+        if sec.nucleus not in ("1H", "13C") and sec.peaks:
+            sec.notes.append(f"{sec.nucleus} section read ({len(sec.peaks)} peaks) but not used for ranking")
+        out.sections.append(sec)
+    if not any(s.peaks for s in out.sections):
+        why = "; ".join(n for s in out.sections for n in s.notes[:2])
+        raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))
+    return out
+
+
+def _clip(text: str, n: int = 60) -> str:
+    s = " ".join(str(text).split())
+    return s if len(s) <= n else s[:n] + "…"
+
+
+def _strip_trailer(text: str) -> str:
+    """Drop what follows the peak list in the same paragraph: HRMS, IR, m.p., elemental analysis."""
+    m = re.search(r"\b(HRMS|HR-MS|ESI|MS\s*\(|IR\s*\(|IR:|m\.p\.|mp\b|Anal\.|Elemental|UV|\[α\])", text)
+    return text[:m.start()] if m else text
