@@ -84,12 +84,12 @@ def main() -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     args = ap.parse_args()
     t = time.perf_counter()
-    from shiftrank.predict.model_files import load_shift_model, read_manifest
+    from shiftrank.prediction.model_files import load_shift_model, read_manifest
     model = load_shift_model()
     load_s = time.perf_counter() - t
     man = read_manifest()
-    from shiftrank.predict.environment import environments_of, mol_parts
-    from shiftrank.predict.api import predict_many
+    from shiftrank.prediction.environment import environments_of, mol_parts
+    from shiftrank.prediction.api import predict_many
 
     mols = [m for m in load_assigned(args.data) if m.split == "test"]
     preds = model.predict_envs(environments_of([mol_parts(m.mol, m.solvent) for m in mols]))
@@ -125,7 +125,7 @@ def main() -> int:
             for key in (("CHn", ["C", "CH", "CH2", "CH3"][min(atom.GetTotalNumHs(), 3)]), ("type", kind(atom)), ("heavy atoms", sb)):
                 groups.setdefault(key, []).append(abs(e))
     errs, sig = np.array(errs), np.array(sig)
-    print(f"model {man['version']}  (manifest test MAE {man['metrics']['test_mae']})")
+    print(f"model {man['nuclei']['13C']['version']}  (manifest test MAE {man['nuclei']['13C']['metrics']['test_mae']})")
     print(f"test split: {len(mols)} molecules, {len(errs)} assigned carbons; predicted {n_pred}/{n_carbons} carbons (coverage {100 * n_pred / n_carbons:.1f} %)")
     print(f"MAE {np.abs(errs).mean():.3f} ppm   RMSE {np.sqrt((errs ** 2).mean()):.3f}   median AE {np.median(np.abs(errs)):.3f}   >10 ppm {100 * np.mean(np.abs(errs) > 10):.2f} %")
     print(f"90 % interval coverage {100 * np.mean(np.abs(errs) <= 1.6449 * sig):.1f} %")
@@ -155,7 +155,7 @@ def main() -> int:
     print(f"whole process (shiftrank predict --jsonl, start-up included): {n_carbons / whole:,.0f} carbons/s ({whole:.2f} s for {len(mols)} molecules)")
     print("\nsmall molecules against reference values (Fulmer et al. 2010, Organometallics 29, 2176, Table 2,"
           " CDCl3; others recalled from standard 13C tables, from memory):")
-    from shiftrank.predict.api import predict
+    from shiftrank.prediction.api import predict
     devs, models_only = [], []
     for smi, atom, ref, src in SMALL_MOLECULES:
         p = predict(smi, solvent="CDCl3")

@@ -12,7 +12,7 @@ __all__ = ["predict", "predict_many", "rank", "rank_many", "structure_facts", "t
 
 def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
     if name in ("predict", "predict_many"):
-        from .predict import api
+        from .prediction import api
         return getattr(api, name)
     if name in ("rank", "rank_many"):
         from .score import ranking

@@ -89,10 +89,10 @@ def cmd_peaks(args) -> int:
 
 
 def cmd_predict(args) -> int:
-    from .predict.model_files import default_manifest
+    from .prediction.model_files import default_manifest
     from .inputs.molecules import read_molecules
-    from .predict.api import predict_records
-    from .predict.model import Z90
+    from .prediction.api import predict_records
+    from .prediction.model import Z90
     from .chem.structure import MULTIPLICITY
 
     results = predict_records(read_molecules(args.file), args.solvent)

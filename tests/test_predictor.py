@@ -13,8 +13,8 @@ import pytest
 from rdkit import Chem
 
 from shiftrank.errors import InputError
-from shiftrank.predict.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
-from shiftrank.predict.api import predict
+from shiftrank.prediction.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
+from shiftrank.prediction.api import predict
 
 
 def test_manifest_lists_hashes_licence_and_metrics():
@@ -22,21 +22,23 @@ def test_manifest_lists_hashes_licence_and_metrics():
     assert set(man["files"]) >= {"c13_tables.npz", "c13_boost.joblib"}
     assert all(len(h) == 64 for h in man["files"].values())
     assert "nmrshiftdb2" in man["licence"].lower()
-    assert man["metrics"]["test_mae"] > 0
+    assert man["nuclei"]["13C"]["metrics"]["test_mae"] > 0
 
 
-def test_model_reproduces_manifest_test_sample(shared_data):
+@pytest.mark.parametrize("nucleus,tol", [("13C", 0.005), ("1H", 0.0005)])
+def test_model_reproduces_manifest_test_sample(shared_data, nucleus, tol):
     """A broken or swapped model file fails here: the fixed test sample's MAE must match the manifest."""
     from training.data import load_assigned
     from training.features import rows_from_assigned
 
     man = read_manifest()
-    ids = set(man["test_sample"]["nmrshiftdb2_ids"])
-    mols = [m for m in load_assigned(shared_data) if m.id in ids]
-    rows = rows_from_assigned(mols)
-    mu, _, _, _ = load_shift_model().predict_arrays(rows.feats, rows.codes)
-    assert len(rows) == man["test_sample"]["carbons"]
-    assert float(np.mean(np.abs(mu - rows.y))) == pytest.approx(man["test_sample"]["mae"], abs=0.005)
+    sample = man["nuclei"][nucleus]["test_sample"]
+    ids = set(sample["nmrshiftdb2_ids"])
+    mols = [m for m in load_assigned(shared_data, nucleus=nucleus) if m.id in ids]
+    rows = rows_from_assigned(mols, nucleus)
+    mu, _, _, _ = load_shift_model(nucleus=nucleus).predict_arrays(rows.feats, rows.codes)
+    assert len(rows) == sample["atoms"]
+    assert float(np.mean(np.abs(mu - rows.y))) == pytest.approx(sample["mae"], abs=tol)
 
 
 def test_hash_mismatch_is_refused(tmp_path):
@@ -46,6 +48,10 @@ def test_hash_mismatch_is_refused(tmp_path):
         f.write(b"tampered")
     with pytest.raises(ModelFileError, match="does not match the manifest"):
         load_shift_model(d)
+    with open(d / "h1_boost.joblib", "ab") as f:
+        f.write(b"tampered")
+    with pytest.raises(ModelFileError, match="does not match the manifest"):
+        load_shift_model(d, nucleus="1H")
 
 
 def test_file_not_in_manifest_is_refused(tmp_path):
@@ -127,7 +133,7 @@ def test_predict_many_keeps_order_and_reports_each_bad_input():
 
 def test_sphere_codes_tell_ring_sizes_apart():
     # a circular code without ring sizes gives every CH2 of any cycloalkane the same code at all radii
-    from shiftrank.predict.environment import environments
+    from shiftrank.prediction.environment import environments
     c3 = environments(Chem.MolFromSmiles("C1CC1")).codes[0]
     c6 = environments(Chem.MolFromSmiles("C1CCCCC1")).codes[0]
     assert not set(c3.tolist()) & set(c6.tolist())

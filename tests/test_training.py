@@ -6,17 +6,17 @@ fed to the rules are constructed to put each rule to work.
 import numpy as np
 from rdkit import Chem
 
-from shiftrank.predict.environment import environments
+from shiftrank.prediction.environment import environments
 from training.pseudo_labels import FORCED_MAX_ABS, _assign_one
 
 
 def _run(smiles, peaks, mu_by_atom, sigma=1.0):
     mol = Chem.MolFromSmiles(smiles)
     env = environments(mol)
-    mu = np.array([mu_by_atom[int(a)] for a in env.carbons], float)
+    mu = np.array([mu_by_atom[int(a)] for a in env.centres], float)
     sg = np.full(len(mu), sigma)
     out = _assign_one(mol, env, peaks, mu, sg, max_z=3.0, max_abs=6.0)
-    return None if out is None else {int(env.carbons[k]): v for k, v in out}
+    return None if out is None else {int(env.centres[k]): v for k, v in out}
 
 
 def test_only_class_of_its_multiplicity_is_labelled_even_far_from_the_prediction():

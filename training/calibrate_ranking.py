@@ -21,8 +21,8 @@ import numpy as np
 from scipy.optimize import minimize_scalar
 
 from shiftrank.score.matching import MatchCosts, assign
-from shiftrank.predict.model_files import load_shift_model, read_manifest
-from shiftrank.predict.environment import environments_of
+from shiftrank.prediction.model_files import load_shift_model, read_manifest
+from shiftrank.prediction.environment import environments_of
 from shiftrank.score.ranking import _candidate, _prepare, as_peaklist, observed_peaks
 from training.data import DEFAULT_DATA, split_of
 
@@ -90,7 +90,7 @@ def main(argv=None) -> int:
     t0 = time.time()
     model = load_shift_model(args.models)
     man = read_manifest(args.models)
-    u = man["uncertainty"]
+    u = man["nuclei"]["13C"]["uncertainty"]
     cases = load(args.data, "val")
     with_m = staged(cases, model, False)
     no_m = staged(cases, model, True)

@@ -71,16 +71,44 @@ def _organic(mol: Chem.Mol) -> bool:
     return syms <= ORGANIC and "C" in syms
 
 
-def load_assigned(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None) -> list[AssignedMol]:
-    """Assigned 13C shifts joined to their structures (indices mapped to the H-free molecule)."""
-    report = report or LoadReport()
+#: 1H: spectra of one molecule that disagree on a heavy atom's protons by more than this are dropped.
+MAX_SPECTRUM_DISAGREEMENT_1H = 0.3
+SHIFT_RANGE_1H = (-2.0, 16.0)
+
+
+def _read_assigned_rows(data_dir: Path, nucleus: str, report: LoadReport):
+    """{id: {atom index: [one value per spectrum]}} and {id: [solvents]} from the assigned CSV of ``nucleus``.
+
+    1H rows are per proton; the protons of one heavy atom in one spectrum are averaged first (their
+    mean shift is what the 1H model predicts)."""
     rows: dict = defaultdict(lambda: defaultdict(list))
     solv: dict = defaultdict(list)
-    with gzip.open(data_dir / "assigned_13c.csv.gz", "rt") as f:
+    if nucleus == "13C":
+        with gzip.open(data_dir / "assigned_13c.csv.gz", "rt") as f:
+            for r in csv.DictReader(f):
+                report.add("13c_rows")
+                rows[r["nmrshiftdb2_id"]][int(r["atom_index"])].append(float(r["shift_ppm"]))
+                solv[r["nmrshiftdb2_id"]].append(normalise_solvent(r["solvent"]))
+        return rows, solv
+    per_spectrum: dict = defaultdict(list)
+    with gzip.open(data_dir / "assigned_1h.csv.gz", "rt") as f:
         for r in csv.DictReader(f):
-            report.add("13c_rows")
-            rows[r["nmrshiftdb2_id"]][int(r["atom_index"])].append(float(r["shift_ppm"]))
+            report.add("1h_rows")
+            per_spectrum[(r["nmrshiftdb2_id"], r["spectrum"], int(r["heavy_atom_index"]))].append(float(r["shift_ppm"]))
             solv[r["nmrshiftdb2_id"]].append(normalise_solvent(r["solvent"]))
+    for (mid, _, atom), vals in per_spectrum.items():
+        rows[mid][atom].append(float(np.mean(vals)))
+    return rows, solv
+
+
+def load_assigned(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None, nucleus: str = "13C") -> list[AssignedMol]:
+    """Assigned shifts of ``nucleus`` joined to their structures (indices mapped to the H-free molecule).
+
+    13C: one value per carbon; 1H: the mean shift of the protons on each heavy atom."""
+    report = report or LoadReport()
+    rows, solv = _read_assigned_rows(data_dir, nucleus, report)
+    limit = MAX_SPECTRUM_DISAGREEMENT if nucleus == "13C" else MAX_SPECTRUM_DISAGREEMENT_1H
+    lo, hi = SHIFT_RANGE if nucleus == "13C" else SHIFT_RANGE_1H
     out = []
     sup = Chem.ForwardSDMolSupplier(gzip.open(data_dir / "assigned_structures.sdf.gz"), removeHs=False)
     for mol in sup:
@@ -104,15 +132,19 @@ def load_assigned(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = Non
         shifts = {}
         for idx, vals in rows[mid].items():
             new = orig_to_new.get(idx)
-            if new is None or heavy.GetAtomWithIdx(new).GetAtomicNum() != 6:
-                report.add("carbon_index_not_carbon")
+            if nucleus == "13C":
+                if new is None or heavy.GetAtomWithIdx(new).GetAtomicNum() != 6:
+                    report.add("carbon_index_not_carbon")
+                    continue
+            elif new is None or heavy.GetAtomWithIdx(new).GetTotalNumHs() == 0:
+                report.add("heavy_atom_without_h")
                 continue
-            if max(vals) - min(vals) > MAX_SPECTRUM_DISAGREEMENT:
-                report.add("carbon_dropped_spectra_disagree")
+            if max(vals) - min(vals) > limit:
+                report.add("atom_dropped_spectra_disagree")
                 continue
             v = float(np.median(vals))
-            if not SHIFT_RANGE[0] <= v <= SHIFT_RANGE[1]:
-                report.add("carbon_dropped_out_of_range")
+            if not lo <= v <= hi:
+                report.add("atom_dropped_out_of_range")
                 continue
             shifts[new] = v
         if not shifts:
@@ -122,21 +154,22 @@ def load_assigned(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = Non
         sk = skeleton(key)
         out.append(AssignedMol(mid, heavy, shifts, max(set(s), key=s.count) if s else None, sk, split_of(sk)))
         report.add("molecules")
-        report.add("carbons", len(shifts))
+        report.add("atoms", len(shifts))
     return out
 
 
-def load_peaklists(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None) -> list[PeakMol]:
-    """Unassigned 13C peak lists (one entry per carbon) with multiplicities."""
+def load_peaklists(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = None, nucleus: str = "13C") -> list[PeakMol]:
+    """Unassigned peak lists of ``nucleus``: 13C with one entry per carbon and multiplicities; 1H with
+    one entry per signal (sometimes per proton), mostly without integrals or multiplicities."""
     report = report or LoadReport()
     out = []
     with gzip.open(data_dir / "peaklists.jsonl.gz", "rt") as f:
         for line in f:
             rec = json.loads(line)
-            spectra = [s for s in rec.get("spectra", []) if s.get("nucleus") == "13C" and s.get("peaks")]
+            spectra = [s for s in rec.get("spectra", []) if s.get("nucleus") == nucleus and s.get("peaks")]
             if not spectra:
                 continue
-            report.add("peaklist_molecules_13c")
+            report.add(f"peaklist_molecules_{nucleus}")
             s = spectra[0]
             sk = skeleton(rec["inchikey"])
             peaks = [(float(p[0]), p[1] or None) for p in s["peaks"]]

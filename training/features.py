@@ -5,8 +5,8 @@ import hashlib
 
 import numpy as np
 
-from shiftrank.predict.environment import environments_of, mol_parts
-from shiftrank.predict.sphere_tables import SphereTables, table_features
+from shiftrank.prediction.environment import environments_of, mol_parts
+from shiftrank.prediction.sphere_tables import SphereTables, table_features
 
 N_FOLDS = 5
 
@@ -37,13 +37,14 @@ class RowSet:
                       self.atom_idx[mask], self.fold[mask], self.weight[mask])
 
 
-def rows_from_assigned(mols) -> RowSet:
+def rows_from_assigned(mols, nucleus: str = "13C") -> RowSet:
+    """One row per assigned centre (carbon for 13C, H-bearing heavy atom for 1H)."""
     codes, feats, ys, mi, ai, fo = [], [], [], [], [], []
     envs = []
     for start in range(0, len(mols), 2000):
-        envs.extend(environments_of([mol_parts(m.mol, m.solvent) for m in mols[start:start + 2000]]))
+        envs.extend(environments_of([mol_parts(m.mol, m.solvent, nucleus) for m in mols[start:start + 2000]]))
     for i, (m, env) in enumerate(zip(mols, envs)):
-        pos = {int(a): k for k, a in enumerate(env.carbons)}
+        pos = {int(a): k for k, a in enumerate(env.centres)}
         for atom, shift in m.shifts.items():
             k = pos[atom]
             codes.append(env.codes[k]); feats.append(env.features[k]); ys.append(shift)

@@ -1,11 +1,16 @@
-"""Self-training: assign unassigned 13C peak lists to carbons with the current model.
+"""Self-training: assign unassigned peak lists to centres with the current model, for either nucleus.
 
-Each peak-list entry stands for one carbon, with its multiplicity.  Within
+13C: each peak-list entry stands for one carbon, with its multiplicity.  Within
 each multiplicity the entries are assigned to the carbons by the Hungarian
 algorithm (``scipy.optimize.linear_sum_assignment``) on |predicted − observed|;
 symmetry-equivalent carbons must receive (nearly) the same value.  A class's
 label is kept only when it is confident: small residual against the current
 prediction and no other class that could have taken the value almost as well.
+
+1H: entries stand for signals (sometimes repeated per proton), without integrals; several proton
+classes may share one signal and lists are often partial.  A class of C–H protons takes the
+nearest signal when it is close to the prediction and clearly closer than any other signal
+(:func:`_assign_1h`); exchangeable protons are never labelled.
 """
 from __future__ import annotations
 
@@ -15,7 +20,7 @@ import numpy as np
 from rdkit import Chem
 from scipy.optimize import linear_sum_assignment
 
-from shiftrank.predict.environment import environments
+from shiftrank.prediction.environment import environments
 from shiftrank.inputs.molecules import ORGANIC
 from shiftrank.chem.structure import MULTIPLICITY, symmetry_ranks
 from training.features import RowSet, fold_of
@@ -25,9 +30,12 @@ SWAP_LABEL_GAP = 1.5    # ppm: two labels closer than this are harmless if swapp
 SWAP_MARGIN = 1.0       # ppm: a rival class this close to explaining the value makes it ambiguous
 FORCED_MAX_ABS = 25.0   # ppm: a label no other class could take is kept unless this far from the prediction
 CLEAR_MARGIN = 10.0     # ppm: a far label is kept if every rival class is at least this much farther still
+H_MAX_ABS = 0.15        # 1H, ppm: a signal this close to the prediction (or within 2 sigma) may be taken
+H_MARGIN = 0.25         # 1H, ppm: ... when the next signal is at least this much (or 1 sigma) farther
+H_SOLE_MAX_ABS = 1.5    # 1H, ppm: the only C–H class and the only signal below 10 ppm belong together
 
 
-def _prepare(peakmols):
+def _prepare(peakmols, nucleus: str = "13C"):
     items = []
     for pm in peakmols:
         mol = Chem.MolFromSmiles(pm.smiles)
@@ -36,10 +44,14 @@ def _prepare(peakmols):
         syms = {a.GetSymbol() for a in mol.GetAtoms()}
         if not syms <= ORGANIC or "C" not in syms or "." in pm.smiles:
             continue
-        env = environments(mol, pm.solvent)
-        if len(env.carbons) != len(pm.peaks):
+        env = environments(mol, pm.solvent, nucleus)
+        if nucleus == "1H":
+            if len(env.centres):
+                items.append((pm, mol, env))
+            continue
+        if len(env.centres) != len(pm.peaks):
             ranks = symmetry_ranks(mol)
-            if len({ranks[int(a)] for a in env.carbons}) != len(pm.peaks):
+            if len({ranks[int(a)] for a in env.centres}) != len(pm.peaks):
                 continue  # neither one entry per carbon nor one per symmetry class
         items.append((pm, mol, env))
     return items
@@ -51,7 +63,7 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
     Peaks stand either for single carbons (one entry per carbon) or for symmetry
     classes (one entry per class); the Hungarian assignment runs on those units.
     """
-    carbons = [int(a) for a in env.carbons]
+    carbons = [int(a) for a in env.centres]
     pos = {a: k for k, a in enumerate(carbons)}
     ranks = symmetry_ranks(mol)
     classes = defaultdict(list)
@@ -129,32 +141,63 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
     return out
 
 
+def _assign_1h(mol, env, peaks, mu, sigma):
+    """Confident (row, label) pairs of C–H classes from a 1H signal list (see the module text)."""
+    ranks = symmetry_ranks(mol)
+    classes = defaultdict(list)
+    for k, a in enumerate(int(x) for x in env.centres):
+        if mol.GetAtomWithIdx(a).GetAtomicNum() == 6:
+            classes[ranks[a]].append(k)
+    obs = np.unique(np.round([s for s, _ in peaks], 4))
+    if not len(obs) or not classes:
+        return []
+    out = []
+    if len(classes) == 1:
+        ks = next(iter(classes.values()))
+        low = obs[obs < 10.0]  # above 10 ppm: acids, aldehydes' rivals, NH/OH of the same compound
+        if len(low) == 1 and abs(low[0] - float(mu[ks].mean())) <= H_SOLE_MAX_ABS:
+            return [(k, float(low[0])) for k in ks]
+    for ks in classes.values():
+        p, s = float(mu[ks].mean()), float(sigma[ks].mean())
+        d = np.abs(obs - p)
+        order = np.argsort(d)
+        d1 = d[order[0]]
+        d2 = d[order[1]] if len(order) > 1 else np.inf
+        if d1 <= max(H_MAX_ABS, 2 * s) and d2 - d1 >= max(H_MARGIN, s):
+            out.extend((k, float(obs[order[0]])) for k in ks)
+    return out
+
+
 def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, max_abs: float = 6.0,
                  weight: float = 1.0, stats: dict | None = None) -> RowSet:
-    """Confident pseudo-labelled rows from unassigned peak lists."""
+    """Confident pseudo-labelled rows from unassigned peak lists (the nucleus is the model's)."""
     stats = {} if stats is None else stats
-    items = _prepare(peakmols)
+    nucleus = getattr(model, "nucleus", "13C")
+    items = _prepare(peakmols, nucleus)
     stats["molecules_usable"] = len(items)
     feats = np.vstack([e.features for _, _, e in items])
     codes = np.vstack([e.codes for _, _, e in items])
     mu_all, sig_all, _, _ = model.predict_arrays(feats, codes)
     codes_o, feats_o, ys, mi, ai, fo = [], [], [], [], [], []
     k = 0
-    n_classes_kept = n_carbons_total = n_mol = 0
+    n_classes_kept = n_atoms_total = n_mol = 0
     for i, (pm, mol, env) in enumerate(items):
-        n = len(env.carbons)
+        n = len(env.centres)
         mu, sg = mu_all[k:k + n], sig_all[k:k + n]
         k += n
-        n_carbons_total += n
-        res = _assign_one(mol, env, pm.peaks, mu, sg, max_z, max_abs)
+        n_atoms_total += n
+        if nucleus == "1H":
+            res = _assign_1h(mol, env, pm.peaks, mu, sg)
+        else:
+            res = _assign_one(mol, env, pm.peaks, mu, sg, max_z, max_abs)
         if not res:
             continue
         n_mol += 1
         for kk, L in res:
             codes_o.append(env.codes[kk]); feats_o.append(env.features[kk]); ys.append(L)
-            mi.append(mol_offset + i); ai.append(int(env.carbons[kk])); fo.append(fold_of(pm.skeleton))
+            mi.append(mol_offset + i); ai.append(int(env.centres[kk])); fo.append(fold_of(pm.skeleton))
             n_classes_kept += 1
-    stats.update(carbons_considered=n_carbons_total, carbons_labelled=n_classes_kept, molecules_labelled=n_mol)
+    stats.update(atoms_considered=n_atoms_total, atoms_labelled=n_classes_kept, molecules_labelled=n_mol)
     return RowSet(np.array(codes_o, np.uint32).reshape(-1, env.codes.shape[1]), np.array(feats_o, np.float32),
                   np.array(ys, np.float32), np.array(mi), np.array(ai), np.array(fo),
                   np.full(len(ys), weight, np.float32))

@@ -1,22 +1,24 @@
-"""Assigning observed peaks to a candidate's symmetry classes (Hungarian algorithm).
+"""Assigning observed peaks to a candidate's symmetry classes (Hungarian algorithm), for either nucleus.
 
-Each symmetry class of carbons is one expected signal with a predicted shift
-μ, an uncertainty σ and a multiplicity.  The assignment minimises a total cost
-in nats (negative log-likelihood) with ``scipy.optimize.linear_sum_assignment``
-(Kuhn–Munkres) over a matrix that lets the spectrum deviate from the ideal:
+Each symmetry class is one expected signal with a predicted shift μ, an uncertainty σ and what
+else the nucleus tells (13C: the CHn multiplicity; 1H: the number of protons and the expected
+multiplet).  The assignment minimises a total cost in nats (negative log-likelihood) with
+``scipy.optimize.linear_sum_assignment`` (Kuhn–Munkres) over *units*:
 
-* class ↔ peak: Student-t error of (δ − μ)/σ (parameters fitted to the
-  predictor's held-out residuals, as DP4 does with its own errors — Smith &
-  Goodman 2010);
-* a second, third … class on the same peak (accidental overlap): the t cost
-  plus ``overlap`` nats;
-* a class with no peak (signal too weak or hidden): ``missing`` nats;
-* a peak no class takes (impurity, rotamer, solvent): ``extra`` nats, except
-  peaks flagged as residual solvent, which go unmatched for free;
-* a peak whose DEPT multiplicity differs from the class's CHn:
-  ``multiplicity_mismatch`` nats on top (finite, so one mislabelled peak
-  cannot veto an otherwise perfect candidate).  Peaks without multiplicity
-  match any class: partial DEPT information constrains only the peaks that carry it.
+* 13C, and 1H without integrals: a class is one unit and a peak takes any number of classes, the
+  second, third … at an ``overlap`` cost (two carbons printed at one value);
+* 1H with integrals: a class is as many units as it has protons and a multiplet offers as many units
+  as its integral, so a "m, 5H" takes five protons from one or several classes and a diastereotopic
+  CH2 may split over two 1H multiplets.  Each proton beyond a multiplet's integral, and each proton
+  of its integral that no class supplies, costs ``integral_mismatch``.
+
+The cost of a class ↔ peak pair is a Student-t error of (δ − μ)/σ (parameters fitted to the
+predictor's held-out residuals, as DP4 does with its own errors — Smith & Goodman 2010; a printed
+range counts as δ anywhere inside it), plus a finite mismatch cost when the peak's multiplicity
+contradicts the class (13C DEPT against CHn; 1H letters and J values against the expected
+multiplet), shared equally by the class's units.  A class left unassigned costs ``missing``
+(``missing_exchangeable`` for OH/NH/SH protons, which are often not seen); a peak left unexplained
+costs ``extra`` (shared by its units); residual solvent peaks go unmatched for free.
 """
 from __future__ import annotations
 
@@ -27,18 +29,22 @@ from scipy.optimize import linear_sum_assignment
 from scipy.special import gammaln
 
 BIG = 1e6
+MAX_EXCESS_COPIES = 4  # 1H: units a multiplet may hold beyond its integral
 
 
 @dataclass(frozen=True)
 class MatchCosts:
-    """Penalty terms in nats and the Student-t error model."""
+    """Penalty terms in nats and the Student-t error model of one nucleus."""
 
     t_df: float = 4.0
     t_scale: float = 1.0
     overlap: float = 2.5
     missing: float = 6.0
     extra: float = 6.0
-    multiplicity_mismatch: float = 9.0
+    multiplicity_mismatch: float = 9.0   # 13C: DEPT against CHn; 1H: printed letters against the expected multiplet
+    missing_exchangeable: float = 1.0    # 1H: an OH/NH/SH class not observed
+    j_mismatch: float = 1.0              # 1H: per printed J no expected coupling explains
+    integral_mismatch: float = 2.0       # 1H: per proton beyond, or missing from, a multiplet's integral
 
 
 @dataclass
@@ -46,16 +52,24 @@ class SignalClass:
     """One expected signal of a candidate."""
 
     atoms: list[int]
-    multiplicity: str
+    multiplicity: str           # 13C: C/CH/CH2/CH3; 1H: the expected multiplet in letters
     shift: float
     sigma: float
+    units: int = 1              # 1H with integrals: protons in the class
+    exchangeable: bool = False  # 1H: OH/NH/SH
+    expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
 
 
 @dataclass
 class ObservedPeak:
     shift: float
-    multiplicity: str | None = None
+    multiplicity: str | None = None   # 13C: CHn from DEPT; 1H: printed letters
     solvent: bool = False
+    lo: float | None = None           # printed range (1H multiplets)
+    hi: float | None = None
+    j: tuple = ()
+    capacity: int | None = None       # 1H: integral in protons; None when the peak takes any number of classes
+    count: int = 1                    # 13C: carbons printed at this value ("2C")
 
 
 @dataclass
@@ -64,11 +78,12 @@ class Pairing:
 
     cls: int                  # index into the candidate's classes
     peak: int | None          # index into the observed peaks, None when the class is unobserved
-    deviation: float | None   # observed − predicted (ppm)
+    deviation: float | None   # observed − predicted (ppm); 0 inside a printed range
     z: float | None           # deviation / sigma
     cost: float
     shared: bool = False      # this class shares its peak with another class
     multiplicity_ok: bool = True
+    units: int = 1            # protons of the class on this peak (1H with integrals)
 
 
 @dataclass
@@ -76,7 +91,7 @@ class Assignment:
     pairings: list[Pairing]
     unmatched_peaks: list[int]
     total_cost: float
-    parts: dict = field(default_factory=dict)   # cost by kind: deviation, overlap, missing, extra, multiplicity
+    parts: dict = field(default_factory=dict)   # cost by kind: deviation, overlap, missing, extra, multiplicity, …
 
 
 def t_cost(dev: np.ndarray, sigma: np.ndarray, costs: MatchCosts) -> np.ndarray:
@@ -88,8 +103,37 @@ def t_cost(dev: np.ndarray, sigma: np.ndarray, costs: MatchCosts) -> np.ndarray:
     return -(logc - (nu + 1) / 2 * np.log1p(z * z / nu)) + np.log(s)
 
 
-def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCosts = MatchCosts()) -> Assignment:
+def deviations(classes: list[SignalClass], peaks: list[ObservedPeak]) -> np.ndarray:
+    """(classes × peaks) observed − predicted; a printed range counts from its nearer edge (0 inside)."""
+    mu = np.array([c.shift for c in classes], dtype=float)
+    obs = np.array([p.shift for p in peaks], dtype=float)
+    dev = obs[None, :] - mu[:, None]
+    lo = np.array([p.lo if p.lo is not None else p.shift for p in peaks], dtype=float)
+    hi = np.array([p.hi if p.hi is not None else p.shift for p in peaks], dtype=float)
+    if np.any(hi > lo):
+        dev = np.where(mu[:, None] < lo[None, :], lo[None, :] - mu[:, None],
+                       np.where(mu[:, None] > hi[None, :], hi[None, :] - mu[:, None], 0.0))
+    return dev
+
+
+def _mismatch(classes, peaks, costs: MatchCosts, mismatch=None) -> tuple[np.ndarray, np.ndarray]:
+    """(cost matrix, boolean 'contradicts' matrix) of the multiplicity terms."""
+    nc, npk = len(classes), len(peaks)
+    if mismatch is not None:
+        cost = np.asarray(mismatch, dtype=float).reshape(nc, npk)
+        return cost, cost > 0
+    bad = np.array([[p.multiplicity is not None and p.multiplicity != c.multiplicity for p in peaks] for c in classes],
+                   dtype=bool).reshape(nc, npk)
+    return bad * costs.multiplicity_mismatch, bad
+
+
+def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCosts = MatchCosts(),
+           mismatch: np.ndarray | None = None) -> Assignment:
     """Optimal peak ↔ class assignment allowing overlap, missing classes and extra peaks.
+
+    ``mismatch`` (classes × peaks, nats) replaces the default multiplicity comparison (exact CHn
+    equality) with a nucleus's own, e.g. the 1H multiplet fit.  Units come from
+    ``SignalClass.units`` and ``ObservedPeak.capacity`` (see the module text).
 
     >>> cls = [SignalClass([0], "CH3", 20.0, 1.5), SignalClass([1], "C", 170.0, 2.0)]
     >>> a = assign(cls, [ObservedPeak(171.0, "C"), ObservedPeak(21.0, "CH3")])
@@ -97,20 +141,28 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     [(0, 1), (1, 0)]
     """
     nc, npk = len(classes), len(peaks)
-    mu = np.array([c.shift for c in classes])
-    sg = np.array([c.sigma for c in classes])
-    obs = np.array([p.shift for p in peaks])
-    dev = obs[None, :] - mu[:, None]
-    base = t_cost(dev, sg[:, None], costs)
-    mm = np.array([[p.multiplicity is not None and p.multiplicity != c.multiplicity for p in peaks] for c in classes],
-                  dtype=bool).reshape(nc, npk)
-    base = base + mm * costs.multiplicity_mismatch
+    sg = np.array([c.sigma for c in classes], dtype=float)
+    dev = deviations(classes, peaks) if npk else np.zeros((nc, 0))
+    dcost = t_cost(dev, sg[:, None], costs) if npk else dev
+    mcost, bad = _mismatch(classes, peaks, costs, mismatch) if npk else (dev, dev.astype(bool))
+    base = dcost + mcost
     extra = np.array([0.0 if p.solvent else costs.extra for p in peaks])
+    miss = np.array([costs.missing_exchangeable if c.exchangeable else costs.missing for c in classes])
+    units = np.array([max(1, int(c.units)) for c in classes])
+    if units.max(initial=1) == 1 and all(p.capacity is None for p in peaks):
+        return _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss)
+    return _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units)
+
+
+def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss) -> Assignment:
+    """One unit per class, any number of classes per peak (the second and later at an overlap cost)."""
+    nc, npk = len(classes), len(peaks)
+    sg = np.array([c.sigma for c in classes], dtype=float)
     copies = max(1, min(nc, int(np.ceil(nc / max(npk, 1))) + 1)) if npk else 0
     # columns: first copy of each peak (assigning it saves its 'extra' cost), further copies (overlap), 'missing'
     blocks = [base - extra[None, :]] + [base + costs.overlap] * (copies - 1)
     missing = np.full((nc, nc), BIG)
-    np.fill_diagonal(missing, costs.missing)
+    np.fill_diagonal(missing, miss)
     mat = np.hstack(blocks + [missing]) if npk else missing
     rows, cols = linear_sum_assignment(mat)
     pairings: list[Pairing] = []
@@ -118,26 +170,96 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0}
     for r, c in zip(rows, cols):
         if c >= npk * copies:
-            pairings.append(Pairing(int(r), None, None, None, costs.missing))
-            parts["missing"] += costs.missing
+            pairings.append(Pairing(int(r), None, None, None, float(miss[r])))
+            parts["missing"] += float(miss[r])
             continue
         j = int(c % npk)
         copy = c // npk
         used[j] += 1
         cst = float(base[r, j])
-        if mm[r, j]:
-            parts["multiplicity"] += costs.multiplicity_mismatch
-        parts["deviation"] += cst - (costs.multiplicity_mismatch if mm[r, j] else 0.0)
+        parts["multiplicity"] += float(mcost[r, j])
+        parts["deviation"] += float(dcost[r, j])
         if copy > 0:
             parts["overlap"] += costs.overlap
             cst += costs.overlap
         d = float(dev[r, j])
-        pairings.append(Pairing(int(r), j, d, float(d / sg[r]), cst, False, bool(not mm[r, j])))
+        pairings.append(Pairing(int(r), j, d, float(d / sg[r]), cst, False, bool(not bad[r, j])))
     for p in pairings:
         if p.peak is not None and used[p.peak] > 1:
             p.shared = True
     unmatched = [j for j in range(npk) if used[j] == 0]
     parts["extra"] = float(sum(extra[j] for j in unmatched))
     pairings.sort(key=lambda p: p.cls)
+    total = float(sum(parts.values()))
+    return Assignment(pairings, unmatched, total, parts)
+
+
+def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units) -> Assignment:
+    """Protons as units: a class spends ``units`` units, a multiplet offers ``capacity`` units."""
+    nc, npk = len(classes), len(peaks)
+    sg = np.array([c.sigma for c in classes], dtype=float)
+    row_cls = np.repeat(np.arange(nc), units)
+    n_rows = len(row_cls)
+    per_unit = base[row_cls] / units[row_cls, None]
+    cols, col_peak, col_kind = [], [], []   # kind 0: within capacity, 1: beyond it
+    caps = np.array([max(1, int(p.capacity)) if p.capacity is not None else 1 for p in peaks], dtype=int)
+    under = np.array([0.0 if p.solvent else costs.integral_mismatch for p in peaks])
+    for j, p in enumerate(peaks):
+        # the first unit of a peak saves its whole 'extra' cost (a peak explained by any proton is
+        # explained); each further unit up to the integral saves one 'integral_mismatch'
+        cols.append((per_unit[:, j] - extra[j])[:, None])
+        col_peak.append(j)
+        col_kind.append(0)
+        for _ in range(caps[j] - 1):
+            cols.append((per_unit[:, j] - under[j])[:, None])
+            col_peak.append(j)
+            col_kind.append(0)
+        over = costs.integral_mismatch if p.capacity is not None else costs.overlap
+        for _ in range(min(MAX_EXCESS_COPIES, n_rows)):
+            cols.append((per_unit[:, j] + over)[:, None])
+            col_peak.append(j)
+            col_kind.append(1)
+    missing = np.full((n_rows, n_rows), BIG)
+    np.fill_diagonal(missing, miss[row_cls] / units[row_cls])
+    mat = np.hstack(cols + [missing]) if cols else missing
+    r_idx, c_idx = linear_sum_assignment(mat)
+    n_pc = len(col_peak)
+    got: dict[tuple[int, int | None], list[int]] = {}
+    parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
+    used = np.zeros(npk, dtype=int)
+    for r, c in zip(r_idx, c_idx):
+        i = int(row_cls[r])
+        if c >= n_pc:
+            got.setdefault((i, None), []).append(0)
+            parts["missing"] += float(miss[i] / units[i])
+            continue
+        j = col_peak[c]
+        used[j] += 1
+        got.setdefault((i, j), []).append(col_kind[c])
+        parts["deviation"] += float(dcost[i, j] / units[i])
+        parts["multiplicity"] += float(mcost[i, j] / units[i])
+        if col_kind[c]:
+            if peaks[j].capacity is not None:
+                parts["integral"] += costs.integral_mismatch
+            else:
+                parts["overlap"] += costs.overlap
+    classes_on_peak = np.zeros(npk, dtype=int)
+    for (i, j) in got:
+        if j is not None:
+            classes_on_peak[j] += 1
+    pairings = []
+    for (i, j), kinds in sorted(got.items(), key=lambda kv: (kv[0][0], -1 if kv[0][1] is None else kv[0][1])):
+        n = len(kinds)
+        if j is None:
+            pairings.append(Pairing(i, None, None, None, float(miss[i] * n / units[i]), units=n))
+            continue
+        d = float(dev[i, j])
+        over = costs.integral_mismatch if peaks[j].capacity is not None else costs.overlap
+        cst = float(base[i, j] * n / units[i] + sum(kinds) * over)
+        pairings.append(Pairing(i, j, d, float(d / sg[i]), cst, bool(classes_on_peak[j] > 1), bool(not bad[i, j]), n))
+    unmatched = [j for j in range(npk) if used[j] == 0]
+    parts["extra"] = float(sum(extra[j] for j in unmatched))
+    # protons a multiplet's integral promises but no class supplies (an unexplained multiplet: beyond its first)
+    parts["integral"] += float(sum(under[j] * (caps[j] - max(1, min(used[j], caps[j]))) for j in range(npk)))
     total = float(sum(parts.values()))
     return Assignment(pairings, unmatched, total, parts)

@@ -22,13 +22,13 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from ..predict.environment import MolParts
+from ..prediction.environment import MolParts
 from ..errors import InputError
 from ..chem.formula import hill, parse_formula
 from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
-from ..predict.model_files import default_manifest, default_model
+from ..prediction.model_files import default_manifest, default_model
 from ..inputs.molecules import to_mol
-from ..predict.api import checked_parts, environments_isolated
+from ..prediction.api import checked_parts, environments_isolated
 from ..inputs.peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
 from ..inputs.solvents import normalise_solvent
 from ..chem.structure import StructureFacts, facts_from_mol
@@ -140,7 +140,7 @@ def _r(x, nd):
 def ranking_settings() -> tuple[MatchCosts, float]:
     """Match costs and temperature stored with the shipped model (fitted on development data)."""
     man = default_manifest()
-    u = man.get("uncertainty", {})
+    u = man.get("nuclei", {}).get("13C", {}).get("uncertainty", {})
     r = man.get("ranking", {})
     costs = MatchCosts(t_df=u.get("t_df", 4.0), t_scale=u.get("t_scale", 1.0),
                        **{k: r[k] for k in ("overlap", "missing", "extra", "multiplicity_mismatch") if k in r})
@@ -206,8 +206,8 @@ def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
         return res
     facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
     res.facts = facts
-    mu = dict(zip(prep.parts.carbons.tolist(), pred[0]))
-    sg = dict(zip(prep.parts.carbons.tolist(), pred[1]))
+    mu = dict(zip(prep.parts.centres.tolist(), pred[0]))
+    sg = dict(zip(prep.parts.centres.tolist(), pred[1]))
     res.classes = [SignalClass(c.atoms, c.multiplicity, float(np.mean([mu[a] for a in c.atoms])),
                                float(np.mean([sg[a] for a in c.atoms]))) for c in facts.carbon_classes]
     res.assignment = assign(res.classes, peaks, costs)
@@ -375,7 +375,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         results = []
         for p in preps:
             if p.parts is not None:
-                n = len(p.parts.carbons)
+                n = len(p.parts.centres)
                 pred = (mu[k:k + n], sg[k:k + n])
                 k += n
             else:

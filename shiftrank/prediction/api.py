@@ -1,4 +1,8 @@
-"""Public prediction functions: one molecule or many, from SMILES or RDKit molecules."""
+"""Public prediction functions: one molecule or many, from SMILES or RDKit molecules, for either nucleus.
+
+``nucleus="13C"`` predicts every carbon; ``nucleus="1H"`` predicts, for every heavy atom that carries
+hydrogen, the mean shift of its protons (keys are heavy-atom indices in both cases).
+"""
 from __future__ import annotations
 
 import gc
@@ -17,11 +21,11 @@ from ..inputs.solvents import normalise_solvent
 CHUNK = 2000
 
 
-def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None) -> MolParts:
+def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
     """RDKit facts of ``mol`` for batch descriptors, after the organic check; failures name ``label``."""
     check_organic(mol, label)
     try:
-        return mol_parts(mol, solvent)
+        return mol_parts(mol, solvent, nucleus)
     except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
         raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
 
@@ -47,8 +51,14 @@ def _own_copy(molecule: Chem.Mol) -> Chem.Mol:
     return Chem.Mol(molecule) if molecule.GetNumAtoms() == molecule.GetNumHeavyAtoms() else Chem.RemoveHs(molecule)
 
 
-def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPrediction:
-    """Predict the 13C shift and uncertainty of every carbon.
+def _check_nucleus(nucleus: str) -> str:
+    if nucleus not in ("13C", "1H"):
+        raise InputError(f"nucleus '{nucleus}': use 13C or 1H")
+    return nucleus
+
+
+def predict(molecule: str | Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolPrediction:
+    """Predict the shift and uncertainty of every carbon (13C) or of the protons on every heavy atom (1H).
 
     ``molecule`` is a SMILES string or an RDKit molecule; atom indices in the
     result are those of the molecule with hydrogens removed.
@@ -56,16 +66,20 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None) -> MolPredicti
     >>> p = predict("CC#N")
     >>> sorted(p.shifts)
     [0, 1]
+    >>> sorted(predict("OCC#N", nucleus="1H").shifts)
+    [0, 1]
     """
+    _check_nucleus(nucleus)
     mol = to_mol(molecule) if isinstance(molecule, str) else _own_copy(molecule)
     label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
-    pred = _predict_parts([checked_parts(mol, label, normalise_solvent(solvent))])[0]
+    pred = _predict_parts([checked_parts(mol, label, normalise_solvent(solvent), nucleus)])[0]
     if pred is None:
         raise InputError(f"{label}: cannot compute atom environments")
     return pred
 
 
-def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None) -> list[MolPrediction | InputError]:
+def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None,
+                 nucleus: str = "13C") -> list[MolPrediction | InputError]:
     """Predict many molecules (SMILES strings or RDKit molecules) in large batches, the fast path.
 
     The result has one entry per input, in order: a :class:`MolPrediction`, or the
@@ -76,6 +90,7 @@ def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None
     ([0, 1], 'InputError')
     """
     key = normalise_solvent(solvent)
+    _check_nucleus(nucleus)
     out: list = []
     for i, molecule in enumerate(molecules):
         try:
@@ -85,7 +100,7 @@ def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None
                 mol, label = _own_copy(molecule), f"input {i}"
             else:
                 raise InputError(f"input {i}: expected a SMILES string or an RDKit molecule, got {type(molecule).__name__}")
-            out.append(checked_parts(mol, label, key))
+            out.append(checked_parts(mol, label, key, nucleus))
         except InputError as exc:
             out.append(exc if str(exc).startswith("input ") else InputError(f"input {i}: {exc}"))
         except Exception as exc:  # noqa: BLE001 - RDKit refusing a molecule is that input's error
@@ -112,16 +127,20 @@ def _gc_paused():
 
 
 def _predict_parts(parts: list[MolParts]) -> list[MolPrediction | None]:
-    """Predictions for a batch of molecules' RDKit facts (None where descriptors failed)."""
+    """Predictions for a batch of molecules' RDKit facts, all of one nucleus (None where descriptors failed)."""
+    if not parts:
+        return []
     with _gc_paused():
         envs = environments_isolated(parts)
-        preds = iter(default_model().predict_envs([e for e in envs if e is not None]))
+        preds = iter(default_model(parts[0].nucleus).predict_envs([e for e in envs if e is not None]))
         return [None if e is None else next(preds) for e in envs]
 
 
-def predict_records(records: Iterable[MolRecord], solvent: str | None = None) -> list[tuple[MolRecord, MolPrediction | None, str | None]]:
+def predict_records(records: Iterable[MolRecord], solvent: str | None = None,
+                    nucleus: str = "13C") -> list[tuple[MolRecord, MolPrediction | None, str | None]]:
     """Predict many records in large model calls; bad records come back with an error message."""
     key = normalise_solvent(solvent)
+    _check_nucleus(nucleus)
     out: list = []
     pending: list = []
 
@@ -136,7 +155,7 @@ def predict_records(records: Iterable[MolRecord], solvent: str | None = None) ->
             out[-1] = (rec, None, rec.error or "unreadable record")
             continue
         try:
-            parts = checked_parts(rec.mol, f"record '{rec.id}'", key)
+            parts = checked_parts(rec.mol, f"record '{rec.id}'", key, nucleus)
         except InputError as exc:
             out[-1] = (rec, None, str(exc))
             continue

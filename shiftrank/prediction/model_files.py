@@ -1,4 +1,4 @@
-"""Loading the shipped model files, only from the package's own models/ directory.
+"""Loading the shipped model files (one model per nucleus), only from the package's own models/ directory.
 
 Every file's SHA-256 is checked against ``manifest.json`` before it is opened;
 a mismatch or a missing file is refused with a clear error.  There is no way to
@@ -16,7 +16,7 @@ from pathlib import Path
 import joblib
 import numpy as np
 
-from .environment import FEATURE_NAMES
+from .environment import feature_names
 from .model import ShiftModel
 from .sphere_tables import SphereTables
 
@@ -43,7 +43,7 @@ def read_manifest(directory: Path | None = None) -> dict:
     d = directory or models_dir()
     path = d / "manifest.json"
     if not path.exists():
-        raise ModelFileError(f"{path}: model manifest missing; reinstall shiftrank or run training/train_13c.py")
+        raise ModelFileError(f"{path}: model manifest missing; reinstall shiftrank or run python -m training.train_shifts")
     try:
         return json.loads(path.read_text())
     except json.JSONDecodeError as exc:
@@ -65,27 +65,50 @@ def verified_path(name: str, manifest: dict, directory: Path) -> Path:
     return path
 
 
-def load_shift_model(directory: Path | None = None) -> ShiftModel:
-    """Load and verify the 13C model.  ``directory`` exists for tests of the verification itself."""
+#: Model files of each nucleus: sphere tables (numpy, no pickle) and the boosted models (joblib).
+FILES = {"13C": ("c13_tables.npz", "c13_boost.joblib"), "1H": ("h1_tables.npz", "h1_boost.joblib")}
+
+
+def nucleus_entry(manifest: dict, nucleus: str) -> dict:
+    """The manifest's section for ``nucleus``; raises :class:`ModelFileError` when the model is not shipped."""
+    entry = manifest.get("nuclei", {}).get(nucleus)
+    if entry is None:
+        raise ModelFileError(f"no {nucleus} model in the model manifest; train it with "
+                             f"python -m training.train_shifts --nucleus {nucleus}")
+    return entry
+
+
+def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> ShiftModel:
+    """Load and verify the model of ``nucleus``.  ``directory`` exists for tests of the verification itself."""
+    if nucleus not in FILES:
+        raise ModelFileError(f"nucleus {nucleus!r}: models exist for {', '.join(FILES)}")
     d = directory or models_dir()
     man = read_manifest(d)
-    tables_path = verified_path("c13_tables.npz", man, d)
-    boost_path = verified_path("c13_boost.joblib", man, d)
+    entry = nucleus_entry(man, nucleus)
+    tables_name, boost_name = FILES[nucleus]
+    tables_path = verified_path(tables_name, man, d)
+    boost_path = verified_path(boost_name, man, d)
     with np.load(tables_path, allow_pickle=False) as z:
         tables = SphereTables.from_arrays({k: z[k] for k in z.files})
-    if man.get("feature_names") != FEATURE_NAMES:
-        raise ModelFileError(f"{d}: the model was trained with a different atom-environment feature set than this "
-                             "version of shiftrank computes; retrain with training/train_13c.py")
+    if entry.get("feature_names") != feature_names(nucleus):
+        raise ModelFileError(f"{d}: the {nucleus} model was trained with a different atom-environment feature set than "
+                             "this version of shiftrank computes; retrain with training/train_shifts.py")
     parts = joblib.load(boost_path)  # hash verified above: our own file
-    return ShiftModel(tables, parts["regressor"], parts["sigma_regressor"], parts["sigma_scale"], parts["sigma_floor"])
+    return ShiftModel(tables, parts["regressor"], parts["sigma_regressor"], parts["sigma_scale"], parts["sigma_floor"],
+                      nucleus)
 
 
-@lru_cache(maxsize=1)
-def default_model() -> ShiftModel:
-    """The shipped 13C model, loaded once per process."""
-    return load_shift_model()
+@lru_cache(maxsize=None)
+def default_model(nucleus: str = "13C") -> ShiftModel:
+    """The shipped model of ``nucleus``, loaded once per process."""
+    return load_shift_model(nucleus=nucleus)
 
 
 @lru_cache(maxsize=1)
 def default_manifest() -> dict:
     return read_manifest()
+
+
+def has_model(nucleus: str) -> bool:
+    """True when the package ships a model for ``nucleus``."""
+    return nucleus in default_manifest().get("nuclei", {})

@@ -1,13 +1,14 @@
-"""13C shift prediction: sphere-code tables + a gradient-boosted correction, with uncertainty.
+"""Shift prediction for one nucleus: sphere-code tables + a gradient-boosted correction, with uncertainty.
 
-The model combines two things learned from NMRShiftDB2 data:
+One class serves both nuclei; a 13C model predicts each carbon, a 1H model the mean shift of the
+protons on each heavy atom.  The model combines two things learned from NMRShiftDB2 data:
 
-1. :class:`~shiftrank.predict.sphere_tables.SphereTables` — median shift per sphere
+1. :class:`~shiftrank.prediction.sphere_tables.SphereTables` — median shift per sphere
    code (HOSE-style, Bremser 1978), looked up from the widest sphere down;
 2. a ``HistGradientBoostingRegressor`` that predicts the shift from the
    carbon's shell descriptors plus those table statistics, and a second one
    that predicts the size of the error, scaled so that the stated 90 %
-   interval (±1.645 σ) covers about 90 % of held-out carbons.
+   interval (±1.645 σ) covers about 90 % of held-out atoms.
 """
 from __future__ import annotations
 
@@ -22,18 +23,18 @@ from .sphere_tables import SphereTables, table_features, widest_match
 Z90 = 1.6448536269514722
 #: σ (ppm) of a shift taken from spectra of the same compound: solvent, concentration and
 #: referencing differences between spectra of one compound are about this size (common practice)
-EXACT_SIGMA = 1.0
+EXACT_SIGMA = {"13C": 1.0, "1H": 0.1}
 
 
 @dataclass
-class CarbonPrediction:
-    """Predicted shift of one carbon."""
+class AtomPrediction:
+    """Predicted shift of one centre: a carbon (13C) or the protons on one heavy atom (1H)."""
 
     atom: int
     shift: float
     sigma: float
     sphere_radius: int        # widest sphere with a table match (0 = none)
-    sphere_count: int         # training carbons behind that match
+    sphere_count: int         # training atoms behind that match
     whole_molecule: bool = False  # the match covers the whole molecule: the shift is the measured one
 
     @property
@@ -43,17 +44,23 @@ class CarbonPrediction:
 
 @dataclass
 class MolPrediction:
-    """Predicted 13C shifts of one molecule, keyed by heavy-atom index."""
+    """Predicted shifts of one molecule for one nucleus, keyed by heavy-atom index."""
 
-    carbons: list[CarbonPrediction] = field(default_factory=list)
+    atoms: list[AtomPrediction] = field(default_factory=list)
+    nucleus: str = "13C"
+
+    @property
+    def carbons(self) -> list[AtomPrediction]:
+        """The 13C predictions (the same list as :attr:`atoms` for a 13C prediction)."""
+        return self.atoms if self.nucleus == "13C" else []
 
     @property
     def shifts(self) -> dict[int, float]:
-        return {c.atom: c.shift for c in self.carbons}
+        return {c.atom: c.shift for c in self.atoms}
 
     @property
     def sigmas(self) -> dict[int, float]:
-        return {c.atom: c.sigma for c in self.carbons}
+        return {c.atom: c.sigma for c in self.atoms}
 
 
 class ShiftModel:
@@ -63,7 +70,8 @@ class ShiftModel:
     """
 
     def __init__(self, tables: SphereTables, regressor, sigma_regressor, sigma_scale: float = 1.0,
-                 sigma_floor: float = 0.3):
+                 sigma_floor: float = 0.3, nucleus: str = "13C"):
+        self.nucleus = nucleus
         self.tables = tables
         self.regressor = regressor
         self.sigma_regressor = sigma_regressor
@@ -103,8 +111,9 @@ class ShiftModel:
             whole = (radius == R) & (np.asarray(eccentricity) <= R - 1)
             if whole.any():
                 mu = np.where(whole, stats[:, R - 1, 0], mu)
-                spread = np.nan_to_num(stats[:, R - 1, 1], nan=EXACT_SIGMA)
-                sigma = np.where(whole, np.maximum(spread, EXACT_SIGMA), sigma)
+                floor = EXACT_SIGMA[self.nucleus]
+                spread = np.nan_to_num(stats[:, R - 1, 1], nan=floor)
+                sigma = np.where(whole, np.maximum(spread, floor), sigma)
                 radius = np.where(whole, R + 1, radius)  # R + 1 marks "whole molecule"
         return mu, sigma, radius, count
 
@@ -119,16 +128,17 @@ class ShiftModel:
             return []
         mu, sigma, radius, count = self.predict_env_arrays(envs)
         R = envs[0].codes.shape[1]
-        rows = zip(np.concatenate([e.carbons for e in envs]).tolist(), mu.tolist(), sigma.tolist(),
+        rows = zip(np.concatenate([e.centres for e in envs]).tolist(), mu.tolist(), sigma.tolist(),
                    np.minimum(radius, R).tolist(), count.tolist(), (radius > R).tolist())
-        carbons = [CarbonPrediction(*row) for row in rows]
+        atoms = [AtomPrediction(*row) for row in rows]
         out, k = [], 0
         for e in envs:
-            n = len(e.carbons)
-            out.append(MolPrediction(carbons[k:k + n]))
+            n = len(e.centres)
+            out.append(MolPrediction(atoms[k:k + n], self.nucleus))
             k += n
         return out
 
     def predict_mol(self, mol: Chem.Mol, solvent: str | None = None) -> MolPrediction:
-        """Predict every carbon of an RDKit molecule (hydrogens implicit)."""
-        return self.predict_envs([environments(Chem.Mol(mol), solvent)])[0]  # a copy: descriptors add atom properties
+        """Predict every centre of an RDKit molecule (hydrogens implicit)."""
+        # a copy: descriptors add atom properties
+        return self.predict_envs([environments(Chem.Mol(mol), solvent, self.nucleus)])[0]

@@ -1,13 +1,17 @@
-"""Train the shipped 13C model from ../shared/data (one command, fixed seeds).
+"""Train a shipped shift model from ../shared/data (one command per nucleus, fixed seeds).
 
-    python -m training.train_13c [--data DIR] [--out models/] [--rounds 2]
+    python -m training.train_shifts --nucleus 13C [--data DIR] [--out models/] [--rounds 3]
+    python -m training.train_shifts --nucleus 1H
 
-Steps (each reported in training/out/metrics.json and models/manifest.json):
-1. assigned carbons of NMRShiftDB2, split 80/10/10 by InChIKey skeleton;
+The same steps for both nuclei (each reported in training/out/metrics_<nucleus>.json and in the
+nucleus's section of models/manifest.json); only the data, the outlier floor and the self-training
+label rules differ:
+1. assigned centres of NMRShiftDB2 (13C: carbons; 1H: the mean shift of the protons on each heavy
+   atom), split 80/10/10 by InChIKey skeleton;
 2. sphere tables + gradient boosting on the training split (table features out-of-fold);
-3. outlier handling: training carbons whose in-sample residual exceeds
-   max(8 ppm, 5 × robust residual scale) are dropped and the model refitted, with 10 % of the
-   rows duplicated with their wider sphere statistics hidden (tiny molecules and new scaffolds
+3. outlier handling: training rows whose in-sample residual exceeds max(floor, 5 × robust residual
+   scale) are dropped (floor 8 ppm for 13C, 0.8 ppm for 1H) and the model refitted, with 10 % of
+   the rows duplicated with their wider sphere statistics hidden (tiny molecules and new scaffolds
    have no wide-sphere match; the copies teach the model to rely on its descriptors there);
 4. self-training: unassigned peak lists of training-split skeletons are assigned with the
    current model, confident labels added, model refitted; repeated ``--rounds`` times and kept
@@ -28,10 +32,10 @@ import numpy as np
 from scipy import stats as sps
 from sklearn.ensemble import HistGradientBoostingRegressor
 
-from shiftrank.predict.environment import FEATURE_NAMES
-from shiftrank.predict.model import Z90, ShiftModel
-from shiftrank.predict.sphere_tables import SphereTables, table_features
-from shiftrank.predict.model_files import sha256_file
+from shiftrank.prediction.environment import feature_names
+from shiftrank.prediction.model import Z90, ShiftModel
+from shiftrank.prediction.sphere_tables import SphereTables, table_features
+from shiftrank.prediction.model_files import FILES, read_manifest, sha256_file
 from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
 from training.features import RowSet, masked_copies, oof_table_stats, rows_from_assigned
 from training.pseudo_labels import pseudo_label
@@ -39,6 +43,10 @@ from training.pseudo_labels import pseudo_label
 SEED = 20261201
 RARE_RADIUS, RARE_COUNT = 3, 3  # environment shared by fewer carbons than this (out of fold): not judged an outlier
 MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere statistics hidden
+OUTLIER_FLOOR = {"13C": 8.0, "1H": 0.8}  # ppm: residuals below this are never called outliers
+SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
+VERSION = {"13C": "1.1.0", "1H": "1.0.0"}
+MODELS_VERSION = "1.2.0"  # the shipped set of models (both nuclei and the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
 
 
@@ -61,14 +69,14 @@ def _hgb(n_rows: int, quick: bool = False) -> HistGradientBoostingRegressor:
     return HistGradientBoostingRegressor(loss="squared_error", random_state=SEED, **kw)
 
 
-def fit_shift_model(rows: RowSet, report: dict) -> tuple[ShiftModel, RowSet]:
+def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C") -> tuple[ShiftModel, RowSet]:
     """Tables + regressor on ``rows`` with residual-based outlier removal."""
     stats = oof_table_stats(rows)
     X = np.hstack([rows.feats, table_features(stats)])
     reg = _hgb(len(rows), quick=True).fit(X, rows.y, sample_weight=rows.weight)
     res = rows.y - reg.predict(X)
     scale = 1.4826 * np.median(np.abs(res - np.median(res)))
-    limit = max(8.0, 5.0 * scale)
+    limit = max(OUTLIER_FLOOR[nucleus], 5.0 * scale)
     # an outlier is a carbon that disagrees with its peers; one whose surroundings (3 bonds out) no other
     # training carbon shares has no peers to disagree with, and is kept (small and unusual molecules)
     rare = stats[:, RARE_RADIUS - 1, 2] < RARE_COUNT
@@ -84,12 +92,21 @@ def fit_shift_model(rows: RowSet, report: dict) -> tuple[ShiftModel, RowSet]:
     reg = _hgb(len(Xa)).fit(Xa, np.concatenate([rows.y, rows.y[idx]]),
                             sample_weight=np.concatenate([rows.weight, rows.weight[idx]]))
     tables = SphereTables().fit(rows.codes, rows.y)
-    return ShiftModel(tables, reg, None), rows
+    return ShiftModel(tables, reg, None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus), rows
 
 
 def predict_mu(model: ShiftModel, rows: RowSet) -> np.ndarray:
     X, _ = model.design(rows.feats, rows.codes)
     return model.regressor.predict(X)
+
+
+def selection_mae(model: ShiftModel, val: RowSet) -> float:
+    """Validation MAE used to choose between self-training rounds: every carbon (13C); C–H protons
+    only (1H), as exchangeable protons move with concentration, water and temperature."""
+    err = np.abs(predict_mu(model, val) - val.y)
+    if model.nucleus == "1H":
+        err = err[val.feats[:, feature_names("1H").index("exchangeable")] == 0]
+    return float(err.mean())
 
 
 def fit_sigma(model: ShiftModel, val: RowSet) -> dict:
@@ -118,54 +135,70 @@ def fit_sigma(model: ShiftModel, val: RowSet) -> dict:
 
 
 def metrics(model: ShiftModel, rows: RowSet, mols, name: str) -> dict:
+    """MAE and friends on ``rows``; for 1H also on C–H rows only (exchangeable protons excluded)."""
     mu, sigma, radius, _ = model.predict_arrays(rows.feats, rows.codes)
     err = mu - rows.y
     ae = np.abs(err)
-    out = {"split": name, "carbons": int(len(rows)), "molecules": int(len(set(rows.mol_idx.tolist()))),
+    out = {"split": name, "atoms": int(len(rows)), "molecules": int(len(set(rows.mol_idx.tolist()))),
            "mae": float(ae.mean()), "rmse": float(np.sqrt((err ** 2).mean())), "median_ae": float(np.median(ae)),
-           "coverage90": float(np.mean(ae <= Z90 * sigma)), "beyond_10ppm": float(np.mean(ae > 10))}
+           "coverage90": float(np.mean(ae <= Z90 * sigma))}
     nh = rows.feats[:, 0]
-    out["by_multiplicity"] = {k: float(ae[nh == h].mean()) for h, k in enumerate(["C", "CH", "CH2", "CH3"]) if (nh == h).any()}
+    if model.nucleus == "13C":
+        out["beyond_10ppm"] = float(np.mean(ae > 10))
+        out["by_multiplicity"] = {k: float(ae[nh == h].mean()) for h, k in enumerate(["C", "CH", "CH2", "CH3"]) if (nh == h).any()}
+    else:
+        ch = rows.feats[:, feature_names("1H").index("exchangeable")] == 0
+        out.update(ch_atoms=int(ch.sum()), ch_mae=float(ae[ch].mean()), ch_coverage90=float(np.mean((ae <= Z90 * sigma)[ch])),
+                   exchangeable_mae=float(ae[~ch].mean()) if (~ch).any() else None, beyond_1ppm=float(np.mean(ae[ch] > 1.0)))
+        out["by_h_count"] = {k: float(ae[ch & (nh == h)].mean()) for h, k in ((1, "CH"), (2, "CH2"), (3, "CH3")) if (ch & (nh == h)).any()}
     return out
+
+
+def headline(report: dict, nucleus: str, split: str) -> float:
+    """The figure the targets speak of: all carbons (13C), C–H protons (1H)."""
+    m = report[split]
+    return m["mae"] if nucleus == "13C" else m["ch_mae"]
 
 
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--out", type=Path, default=REPO / "models")
     ap.add_argument("--rounds", type=int, default=3)
     ap.add_argument("--pseudo-weight", type=float, default=1.0)
     args = ap.parse_args(argv)
+    nucleus = args.nucleus
     np.random.seed(SEED)
     t0 = time.time()
-    report: dict = {"seed": SEED}
+    report: dict = {"seed": SEED, "nucleus": nucleus}
     lr = LoadReport()
-    mols = load_assigned(args.data, lr)
+    mols = load_assigned(args.data, lr, nucleus)
     split = np.array([m.split for m in mols])
-    rows = rows_from_assigned(mols)
+    rows = rows_from_assigned(mols, nucleus)
     rsplit = split[rows.mol_idx]
     train, val, test = (rows.subset(rsplit == s) for s in ("train", "val", "test"))
     report["load"] = lr.counts
     report["rows"] = {"train": len(train), "val": len(val), "test": len(test)}
-    log(f"assigned rows train/val/test {len(train)}/{len(val)}/{len(test)}")
+    log(f"{nucleus}: assigned rows train/val/test {len(train)}/{len(val)}/{len(test)}")
 
     fit_report: dict = {}
-    model, train_clean = fit_shift_model(train, fit_report)
+    model, train_clean = fit_shift_model(train, fit_report, nucleus)
     fit_sigma(model, val)
-    best_val = float(np.mean(np.abs(predict_mu(model, val) - val.y)))
+    best_val = selection_mae(model, val)
     history = [{"round": 0, "train_rows": len(train_clean), "val_mae": best_val, **fit_report}]
     log(f"round 0 (assigned only): val MAE {best_val:.3f}")
 
     assigned_ids = {m.id for m in mols}
-    peakmols = [p for p in load_peaklists(args.data, lr) if p.split == "train" and p.id not in assigned_ids]
+    peakmols = [p for p in load_peaklists(args.data, lr, nucleus) if p.split == "train" and p.id not in assigned_ids]
     report["peaklist_candidates"] = len(peakmols)
     for rnd in range(1, args.rounds + 1):
         st: dict = {}
         pseudo = pseudo_label(model, peakmols, weight=args.pseudo_weight, stats=st)
         fr: dict = {}
-        cand, cand_rows = fit_shift_model(RowSet.concat([train, pseudo]), fr)
+        cand, cand_rows = fit_shift_model(RowSet.concat([train, pseudo]), fr, nucleus)
         fit_sigma(cand, val)
-        v = float(np.mean(np.abs(predict_mu(cand, val) - val.y)))
+        v = selection_mae(cand, val)
         history.append({"round": rnd, "pseudo": st, "train_rows": len(cand_rows), "val_mae": v, **fr})
         log(f"round {rnd}: {st}; val MAE {v:.3f}")
         if v >= best_val:
@@ -177,39 +210,52 @@ def main(argv=None) -> int:
     report["uncertainty"] = fit_sigma(model, val)
     report["val"] = metrics(model, val, mols, "val")
     report["test"] = metrics(model, test, mols, "test")
-    log(f"test MAE {report['test']['mae']:.3f}, 90% coverage {report['test']['coverage90']:.3f}")
+    log(f"test MAE {headline(report, nucleus, 'test'):.3f}, 90% coverage {report['test']['coverage90']:.3f}")
 
     args.out.mkdir(parents=True, exist_ok=True)
-    np.savez_compressed(args.out / "c13_tables.npz", **model.tables.to_arrays())
+    tables_name, boost_name = FILES[nucleus]
+    np.savez_compressed(args.out / tables_name, **model.tables.to_arrays())
     joblib.dump({"regressor": model.regressor, "sigma_regressor": model.sigma_regressor,
-                 "sigma_scale": model.sigma_scale, "sigma_floor": model.sigma_floor}, args.out / "c13_boost.joblib", compress=3)
+                 "sigma_scale": model.sigma_scale, "sigma_floor": model.sigma_floor}, args.out / boost_name, compress=3)
     # fixed test sample for the regression test: ids of the first 300 test molecules
     test_ids = sorted({m.id for m in mols if m.split == "test"})[:300]
     sample = [m for m in mols if m.id in set(test_ids)]
-    sample_rows = rows_from_assigned(sample)
+    sample_rows = rows_from_assigned(sample, nucleus)
     smu, _, _, _ = model.predict_arrays(sample_rows.feats, sample_rows.codes)
-    files = {name: sha256_file(args.out / name) for name in ("c13_tables.npz", "c13_boost.joblib")}
-    manifest = {
-        "name": "shiftrank-13c", "version": "1.1.0", "created": time.strftime("%Y-%m-%d"),
-        "licence": "Derived from NMRShiftDB2 data; distributed under the nmrshiftdb2 database licence (ODbL-1.0 derived): attribution, share-alike.",
-        "data": {name: sha256_file(args.data / name) for name in ("assigned_structures.sdf.gz", "assigned_13c.csv.gz", "peaklists.jsonl.gz")},
-        "split": "InChIKey skeleton, sha256('shiftrank-split-v1:'+skeleton) mod 20: 0-1 test, 2-3 val, rest train",
-        "files": files,
+    data_file = "assigned_13c.csv.gz" if nucleus == "13C" else "assigned_1h.csv.gz"
+    entry = {
+        "version": VERSION[nucleus], "created": time.strftime("%Y-%m-%d"),
+        "data": {name: sha256_file(args.data / name) for name in ("assigned_structures.sdf.gz", data_file, "peaklists.jsonl.gz")},
+        "files": [tables_name, boost_name],
         "n_features": int(model.regressor.n_features_in_),
-        "boosting": BIG,
-        "feature_names": FEATURE_NAMES,
+        "boosting": {k: v for k, v in _hgb(len(train_clean)).get_params().items()
+                     if k in ("max_iter", "max_leaf_nodes", "learning_rate", "max_features", "min_samples_leaf", "l2_regularization")},
+        "feature_names": feature_names(nucleus),
         "uncertainty": report["uncertainty"],
         "metrics": {"val_mae": round(report["val"]["mae"], 3), "test_mae": round(report["test"]["mae"], 3),
                     "test_coverage90": round(report["test"]["coverage90"], 3)},
-        "test_sample": {"nmrshiftdb2_ids": test_ids, "carbons": len(sample_rows), "mae": round(float(np.mean(np.abs(smu - sample_rows.y))), 4)},
-        "sklearn": __import__("sklearn").__version__,
+        "test_sample": {"nmrshiftdb2_ids": test_ids, "atoms": len(sample_rows), "mae": round(float(np.mean(np.abs(smu - sample_rows.y))), 4)},
     }
-    (args.out / "manifest.json").write_text(json.dumps(manifest, indent=1))
+    if nucleus == "1H":
+        entry["metrics"].update(val_ch_mae=round(report["val"]["ch_mae"], 3), test_ch_mae=round(report["test"]["ch_mae"], 3),
+                                test_ch_coverage90=round(report["test"]["ch_coverage90"], 3))
+    man_path = args.out / "manifest.json"
+    man = read_manifest(args.out) if man_path.exists() else {}
+    man.update({
+        "name": "shiftrank-models", "version": MODELS_VERSION,
+        "licence": "Derived from NMRShiftDB2 data; distributed under the nmrshiftdb2 database licence (ODbL-1.0 derived): attribution, share-alike.",
+        "split": "InChIKey skeleton, sha256('shiftrank-split-v1:'+skeleton) mod 20: 0-1 test, 2-3 val, rest train",
+        "sklearn": __import__("sklearn").__version__,
+    })
+    man.setdefault("files", {}).update({name: sha256_file(args.out / name) for name in (tables_name, boost_name)})
+    man.setdefault("nuclei", {})[nucleus] = entry
+    man_path.write_text(json.dumps(man, indent=1))
     report["seconds"] = round(time.time() - t0)
     out_dir = REPO / "training" / "out"
     out_dir.mkdir(exist_ok=True)
-    (out_dir / "metrics.json").write_text(json.dumps(report, indent=1))
-    (REPO / "training" / "last_metrics.json").write_text(json.dumps(report, indent=1))
+    tag = "13c" if nucleus == "13C" else "1h"
+    (out_dir / f"metrics_{tag}.json").write_text(json.dumps(report, indent=1))
+    (REPO / "training" / f"last_metrics_{tag}.json").write_text(json.dumps(report, indent=1))
     log(f"done in {report['seconds']} s")
     return 0
 

@@ -1,6 +1,7 @@
-"""Atom environments for 13C prediction.
+"""Atom environments for shift prediction, for either nucleus.
 
-Two descriptions of each carbon's surroundings:
+The *centres* are the atoms whose shift is predicted: every carbon for 13C, every heavy atom that
+carries hydrogen for 1H (its protons' mean shift).  Two descriptions of each centre's surroundings:
 
 * **sphere codes** in the spirit of HOSE codes (Bremser 1978, Anal. Chim. Acta
   103, 355): a canonical identifier of the atoms and bonds within 1, 2, … R bonds
@@ -41,6 +42,7 @@ _TIDX = {t: i for i, t in enumerate(_TYPES)}
 _NT = len(_TYPES)
 _HYB = {Chem.HybridizationType.SP: 1, Chem.HybridizationType.SP2: 2, Chem.HybridizationType.SP3: 3}
 _SOLVENT_CODE = {"CDCl3": 1, "DMSO-d6": 2, "CD3OD": 3}
+NUCLEI = ("13C", "1H")
 
 
 def _ring_sizes(mol: Chem.Mol) -> list[set[int]]:
@@ -72,16 +74,25 @@ PARTNER_NAMES = (["dbl_partner", "dbl_partner_C", "dbl_partner_N", "dbl_partner_
                  + [f"dbl_partner_single_{e}" for e in list(_NB_ELEMENTS) + ["other"]]
                  + ["dbl_partner_nb_aryl", "dbl_partner_nb_acyl", "dbl_partner_nb_triple", "dbl_partner_nb_alkenyl"])
 FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES
+#: 1H only: the element carrying the protons (the sphere codes know it too; the boosted model needs it
+#: as a column) and whether they are exchangeable (on N, O or S).
+H_EXTRA_NAMES = ["centre_C", "centre_N", "centre_O", "centre_S", "centre_other", "exchangeable"]
+
+
+def feature_names(nucleus: str = "13C") -> list[str]:
+    """Descriptor column names of ``nucleus`` (13C: :data:`FEATURE_NAMES`; 1H adds :data:`H_EXTRA_NAMES`)."""
+    return FEATURE_NAMES + H_EXTRA_NAMES if nucleus == "1H" else list(FEATURE_NAMES)
 
 
 @dataclass
 class MolEnvironments:
-    """Per-carbon environment data of one molecule."""
+    """Per-centre environment data of one molecule."""
 
-    carbons: np.ndarray     # heavy-atom indices of the carbons
-    codes: np.ndarray       # (n_carbons, MAX_RADIUS) uint32 sphere codes for radius 1..MAX_RADIUS
-    features: np.ndarray    # (n_carbons, len(FEATURE_NAMES)) float32
-    eccentricity: np.ndarray  # bonds from each carbon to the farthest atom (large if fragments)
+    centres: np.ndarray     # heavy-atom indices of the centres (carbons for 13C, H-bearing atoms for 1H)
+    codes: np.ndarray       # (n_centres, MAX_RADIUS) uint32 sphere codes for radius 1..MAX_RADIUS
+    features: np.ndarray    # (n_centres, len(feature_names(nucleus))) float32
+    eccentricity: np.ndarray  # bonds from each centre to the farthest atom (large if fragments)
+    nucleus: str = "13C"
 
 
 
@@ -92,16 +103,19 @@ class MolParts:
 
     atoms: np.ndarray       # (n, 9) float64: Z, aromatic, hybridisation, charge, degree, H count, in ring, q, q_H
     bonds: np.ndarray       # (n_bonds, 4) int64: begin, end, kind (see _BOND_KINDS), conjugated
-    carbons: np.ndarray     # heavy-atom indices of the carbons
-    dist: np.ndarray        # (n_carbons, n) topological distances from each carbon
-    codes: np.ndarray       # (n_carbons, MAX_RADIUS) uint32 sphere codes
+    centres: np.ndarray     # heavy-atom indices of the centres
+    dist: np.ndarray        # (n_centres, n) topological distances from each centre
+    codes: np.ndarray       # (n_centres, MAX_RADIUS) uint32 sphere codes
     rings: list             # atom index tuples of the smallest set of rings
     solvent_code: int
+    nucleus: str = "13C"
 
 
-def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
+def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
     """Per-molecule RDKit work: atom and bond properties, Gasteiger charges (Gasteiger & Marsili
-    1980), distances and sphere codes."""
+    1980), distances and sphere codes of the centres of ``nucleus`` (13C: carbons; 1H: atoms with H)."""
+    if nucleus not in NUCLEI:
+        raise ValueError(f"nucleus {nucleus!r}: use 13C or 1H")
     n = mol.GetNumAtoms()
     # charges are written as private atom properties of ``mol``; every caller in the package passes a
     # molecule of its own making (parsed, or with hydrogens removed), never the user's object
@@ -115,9 +129,11 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
              a.GetDegree(), a.GetTotalNumHs(), a.IsInRing()) for a in atoms]
     rows = None
     if charged:
-        try:  # the charge of implicit H is a descriptor of carbons only; NaN and extremes are cleaned batch-wide
+        try:  # the charge of implicit H is a descriptor of centres only; NaN and extremes are cleaned batch-wide
+            h_centre = nucleus == "1H"
             rows = [row + (a.GetDoubleProp("_GasteigerCharge"),
-                           a.GetDoubleProp("_GasteigerHCharge") if row[0] == 6 and a.HasProp("_GasteigerHCharge") else 0.0)
+                           a.GetDoubleProp("_GasteigerHCharge")
+                           if (row[5] > 0 if h_centre else row[0] == 6) and a.HasProp("_GasteigerHCharge") else 0.0)
                     for a, row in zip(atoms, info)]
         except (RuntimeError, ValueError, KeyError):
             rows = None
@@ -127,7 +143,10 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
     bonds = np.array([(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
                        b.GetIsConjugated() or b.GetIsAromatic())
                       for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))], dtype=np.int64).reshape(-1, 4)
-    carbons = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
+    if nucleus == "13C":
+        centres = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
+    else:
+        centres = np.array([i for i, row in enumerate(info) if row[5] > 0], dtype=np.int64)
     rings = list(mol.GetRingInfo().AtomRings())
     smallest = [0] * n
     for ring in rings:
@@ -137,15 +156,15 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None) -> MolParts:
                 smallest[i] = size
     ao = rdFingerprintGenerator.AdditionalOutput()
     ao.AllocateAtomToBits()
-    _GEN.GetSparseCountFingerprint(mol, fromAtoms=carbons.tolist(), additionalOutput=ao,
+    _GEN.GetSparseCountFingerprint(mol, fromAtoms=centres.tolist(), additionalOutput=ao,
                                    customAtomInvariants=[_sphere_invariant(row, r) for row, r in zip(info, smallest)])
     atom_bits = ao.GetAtomToBits()
-    codes = np.zeros((len(carbons), MAX_RADIUS), dtype=np.uint32)
-    for row, idx in enumerate(carbons):
+    codes = np.zeros((len(centres), MAX_RADIUS), dtype=np.uint32)
+    for row, idx in enumerate(centres):
         bits = atom_bits[idx][1: MAX_RADIUS + 1]
         codes[row, : len(bits)] = bits
-    dist = Chem.GetDistanceMatrix(mol)[carbons] if len(carbons) else np.zeros((0, n))
-    return MolParts(table, bonds, carbons, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0))
+    dist = Chem.GetDistanceMatrix(mol)[centres] if len(centres) else np.zeros((0, n))
+    return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus)
 
 
 def _sphere_invariant(info_row: tuple, smallest_ring: int) -> int:
@@ -189,12 +208,15 @@ def _sum_rows(rows: np.ndarray, cols: np.ndarray, weights: np.ndarray, shape: tu
 
 
 def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
-    """Sphere codes and descriptors of every carbon of many molecules, computed batch-wide."""
+    """Sphere codes and descriptors of every centre of many molecules (all of one nucleus), computed batch-wide."""
     if not parts:
         return []
+    nucleus = parts[0].nucleus
+    if any(p.nucleus != nucleus for p in parts):
+        raise ValueError("environments_of: molecules described for different nuclei in one batch")
     sizes = np.array([p.atoms.shape[0] for p in parts], dtype=np.int64)
     a_off = np.concatenate([[0], np.cumsum(sizes)])
-    ncs = np.array([len(p.carbons) for p in parts], dtype=np.int64)
+    ncs = np.array([len(p.centres) for p in parts], dtype=np.int64)
     c_off = np.concatenate([[0], np.cumsum(ncs)])
     N, NC = int(a_off[-1]), int(c_off[-1])
     A = np.vstack([p.atoms for p in parts]) if N else np.zeros((0, 9))
@@ -206,7 +228,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     B = np.vstack([p.bonds for p in parts]) if nbond.sum() else np.zeros((0, 4), np.int64)
     shift = np.repeat(a_off[:-1], nbond)
     bi, bj, bk, bc = B[:, 0] + shift, B[:, 1] + shift, B[:, 2], B[:, 3].astype(bool)
-    carbons = np.concatenate([p.carbons + a_off[i] for i, p in enumerate(parts)]) if NC else np.zeros(0, np.int64)
+    centres = np.concatenate([p.centres + a_off[i] for i, p in enumerate(parts)]) if NC else np.zeros(0, np.int64)
 
     # per-atom bond facts
     ends, others, kinds = np.concatenate([bi, bj]), np.concatenate([bj, bi]), np.concatenate([bk, bk])
@@ -245,7 +267,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     q_shell = _sum_rows(crow, d - 1, q[atom], (NC, SHELLS))
 
     # conjugated-path distances: breadth-first search over conjugated bonds from every carbon
-    conj_rows, conj_atoms, conj_d = _conjugated_bfs(N, bi[bc], bj[bc], carbons)
+    conj_rows, conj_atoms, conj_d = _conjugated_bfs(N, bi[bc], bj[bc], centres)
     cw = np.zeros((len(conj_atoms), 7))
     cw[np.arange(len(conj_atoms)), _CONJ_LOOKUP[np.minimum(Z[conj_atoms], 127)]] = 1.0
     cw[:, 6] = q[conj_atoms]
@@ -265,7 +287,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     flags[ua[us >= 7], 4] = 1.0
     flags[:, 5] = np.bincount(ua, minlength=N)
 
-    c = carbons
+    c = centres
     solvent = np.repeat([p.solvent_code for p in parts], ncs)
     selfs = np.column_stack([
         nH[c], hyb[c], arom[c], inring[c], flags[c, :5], chg[c], deg[c],
@@ -273,10 +295,15 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
         q[c], qh[c], q_shell[:, 0], q_nb_min[c], q_nb_max[c], q_shell[:, 1], q_shell[:, 2],
     ])
     partner = _partner_block(N, Z, arom, nH, deg, q, nb_all, ends, others, kinds, dbl_to_os)[c]
-    features = np.hstack([selfs, nb_all[c], conj, shells, partner]).astype(np.float32)
+    blocks = [selfs, nb_all[c], conj, shells, partner]
+    if nucleus == "1H":
+        zc = Z[c]
+        el = np.column_stack([zc == 6, zc == 7, zc == 8, zc == 16, ~np.isin(zc, (6, 7, 8, 16)), np.isin(zc, (7, 8, 16))])
+        blocks.append(el.astype(np.float64))
+    features = np.hstack(blocks).astype(np.float32)
     codes = np.vstack([p.codes for p in parts]) if NC else np.zeros((0, MAX_RADIUS), np.uint32)
-    return [MolEnvironments(p.carbons, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
-                            p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.carbons)))
+    return [MolEnvironments(p.centres, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
+                            p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.centres)), nucleus)
             for i, p in enumerate(parts)]
 
 
@@ -348,11 +375,13 @@ def _conjugated_bfs(n_atoms: int, bi: np.ndarray, bj: np.ndarray, sources: np.nd
     return np.concatenate(out_r), np.concatenate(out_a), np.concatenate(out_d)
 
 
-def environments(mol: Chem.Mol, solvent: str | None = None) -> MolEnvironments:
-    """Sphere codes and shell descriptors for every carbon of ``mol`` (hydrogens implicit).
+def environments(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolEnvironments:
+    """Sphere codes and shell descriptors for every centre of ``mol`` (hydrogens implicit).
 
     >>> env = environments(Chem.MolFromSmiles("CC#N"))
-    >>> env.carbons.tolist(), env.codes.shape
+    >>> env.centres.tolist(), env.codes.shape
     ([0, 1], (2, 6))
+    >>> environments(Chem.MolFromSmiles("OCC#N"), nucleus="1H").centres.tolist()
+    [0, 1]
     """
-    return environments_of([mol_parts(mol, solvent)])[0]
+    return environments_of([mol_parts(mol, solvent, nucleus)])[0]

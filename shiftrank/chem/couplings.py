@@ -1,0 +1,312 @@
+"""Expected first-order 1H multiplets of a structure, and how well a printed multiplet fits one.
+
+For every class of symmetry-equivalent protons (the protons on one class of heavy atoms) the
+coupling partners are read from the structure: vicinal protons through sp3 and sp2 bonds, aromatic
+ortho and meta protons, alkene cis/trans partners, geminal and vicinal fluorine, phosphorus.  Each
+group of equivalent partners splits the signal into n + 1 lines; the expected multiplet is the
+first-order product of the groups (a CH2 between a CH3 and a CH2 is a "qt" when the two J differ,
+a sextet when they are equal).
+
+Typical J ranges (common practice; the values every textbook table gives, e.g. Pretsch, Bühlmann &
+Badertscher, *Structure Determination of Organic Compounds*, 4th ed., 2009, chapter on 1H coupling
+constants; the ranges below are recalled from such tables, "from memory", and deliberately wide):
+
+* vicinal H–C–C–H, freely rotating: 6–8 Hz (accepted 4.5–9);
+* aromatic ortho 7–9 Hz (6–10; five-membered heteroaromatic rings and pyridine C2–C3 smaller, 1.5–6);
+* aromatic meta 1–3 Hz (0.5–3.5), often unresolved;
+* alkene cis ≈ 10 Hz (6–12), trans ≈ 16 Hz (12–18), terminal =CH2 geminal 0–3 Hz;
+* aldehyde H–C(=O)–C–H 1–3 Hz;
+* H–C–F geminal 45–50 Hz; H–C–C–F vicinal 5–30 Hz; aromatic H/F ortho 6–11 Hz, meta 4–8 Hz;
+* H–C–P 10–25 Hz, H–C–X–P 3–25 Hz;
+* couplings to OH/NH protons (4–9 Hz) appear only when exchange is slow (DMSO-d6), so they are optional.
+
+The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
+constrain nothing; letters that no variant of the expected pattern produces, and J values that no
+expected coupling explains, cost a little (the costs are fitted in the ranking).
+"""
+from __future__ import annotations
+
+import itertools
+from dataclasses import dataclass, field
+
+from rdkit import Chem
+
+#: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
+J_RANGES = {
+    "vicinal": ((4.5, 9.0), False),
+    "vicinal-ring": ((2.0, 12.0), False),   # small rings and rigid rings vary widely
+    "ortho": ((6.0, 10.0), False),
+    "ortho-5": ((1.5, 6.0), False),          # five-membered heteroaromatic rings, pyridine C2–C3
+    "meta": ((0.5, 3.5), True),
+    "cis": ((6.0, 12.5), False),
+    "trans": ((12.0, 18.5), False),
+    "alkene": ((6.0, 18.5), False),           # C=C stereo not given
+    "geminal-alkene": ((0.0, 3.0), True),
+    "aldehyde": ((0.5, 3.5), True),
+    "exchangeable": ((3.0, 9.0), True),
+    "HF-geminal": ((42.0, 55.0), False),
+    "HF-vicinal": ((5.0, 30.0), False),
+    "HF-ortho": ((6.0, 11.5), False),
+    "HF-meta": ((3.5, 8.5), False),
+    "HP": ((3.0, 25.0), False),
+}
+_LETTERS = {"s": 1, "d": 2, "t": 3, "q": 4, "p": 5, "sext": 6, "sept": 7, "oct": 8, "non": 9}
+MAX_OPTIONAL = 4  # optional groups beyond this are always taken as unresolved (keeps the variants few)
+
+
+@dataclass(frozen=True)
+class CouplingGroup:
+    """Equivalent coupling partners of a proton class."""
+
+    kind: str
+    n: int                    # number of partner nuclei
+    partner: str = "H"        # H, F or P
+    key: int = -1             # symmetry class of the partner atom (groups of one key are equivalent)
+
+    @property
+    def j_range(self) -> tuple[float, float]:
+        return J_RANGES[self.kind][0]
+
+    @property
+    def optional(self) -> bool:
+        return J_RANGES[self.kind][1]
+
+
+@dataclass
+class ExpectedMultiplet:
+    """The protons of one symmetry class and their couplings."""
+
+    atoms: list[int]          # heavy atoms carrying the class's protons
+    n_h: int                  # protons in the class
+    groups: list[CouplingGroup] = field(default_factory=list)
+    exchangeable: bool = False
+
+    def patterns(self) -> set[tuple[int, ...]]:
+        """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
+        1s dropped, with optional groups in or out and groups of overlapping J merged or not."""
+        required = [g for g in self.groups if not g.optional]
+        optional = [g for g in self.groups if g.optional][:MAX_OPTIONAL]
+        out: set[tuple[int, ...]] = set()
+        for k in range(len(optional) + 1):
+            for extra in itertools.combinations(optional, k):
+                gs = required + list(extra)
+                out.add(_pattern(gs))
+                out.add(_pattern(_merge_overlapping(gs)))
+        return out
+
+    def label(self) -> str:
+        """Expected multiplet in letters with its couplings, e.g. ``'td (ortho 6-10 Hz x2, meta 0.5-3.5 Hz x1)'``."""
+        gs = sorted(self.groups, key=lambda g: -g.j_range[1])
+        letters = "".join(_letter(g.n + 1) for g in gs if not g.optional) or "s"
+        opt = [g for g in gs if g.optional]
+        text = ", ".join(f"{g.kind}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
+                         f"x{g.n}{' (may be unresolved)' if g.optional else ''}" for g in gs)
+        if self.exchangeable:
+            letters = "br s or " + letters if letters != "s" else "s or br s"
+        return f"{letters} ({text})" if gs else letters + (" (no coupled neighbours)" if not opt else "")
+
+    def j_ranges(self) -> list[tuple[float, float]]:
+        return [g.j_range for g in self.groups]
+
+
+def _letter(lines: int) -> str:
+    for k, v in _LETTERS.items():
+        if v == lines:
+            return k
+    return f"({lines})"
+
+
+def _pattern(groups) -> tuple[int, ...]:
+    return tuple(sorted((g.n + 1 for g in groups if g.n > 0), reverse=True))
+
+
+def _merge_overlapping(groups) -> list[CouplingGroup]:
+    """Groups whose J ranges overlap by half or more merged into one (equal couplings look like one group)."""
+    gs = sorted(groups, key=lambda g: -sum(g.j_range))
+    merged: list[list[CouplingGroup]] = []
+    for g in gs:
+        for bucket in merged:
+            lo = max(g.j_range[0], bucket[0].j_range[0])
+            hi = min(g.j_range[1], bucket[0].j_range[1])
+            width = min(g.j_range[1] - g.j_range[0], bucket[0].j_range[1] - bucket[0].j_range[0])
+            if hi - lo >= 0.5 * width:
+                bucket.append(g)
+                break
+        else:
+            merged.append([g])
+    return [CouplingGroup(b[0].kind, sum(x.n for x in b), b[0].partner) for b in merged]
+
+
+def observed_pattern(letters: str | None) -> tuple[int, ...] | None:
+    """Line-count pattern of printed letters (``'td'`` → (3, 2)); None when they say nothing ('m', 'br', none).
+
+    >>> observed_pattern("td"), observed_pattern("s"), observed_pattern("m"), observed_pattern("br s")
+    ((3, 2), (), None, None)
+    """
+    if not letters:
+        return None
+    s = letters.strip()
+    if s.startswith("br") or s in ("m", "ABq"):
+        return None
+    out = []
+    i = 0
+    while i < len(s):
+        for word in ("sext", "sept", "oct", "non", "s", "d", "t", "q", "p"):
+            if s.startswith(word, i):
+                out.append(_LETTERS[word])
+                i += len(word)
+                break
+        else:
+            return None
+    return tuple(sorted((n for n in out if n > 1), reverse=True))
+
+
+def fit_cost(expected: ExpectedMultiplet, letters: str | None, js: tuple = (), tolerance: float = 1.0) -> tuple[int, int]:
+    """(pattern misfit 0/1, number of printed J values no expected coupling explains).
+
+    The printed letters fit when some variant of the expected pattern has the same line counts;
+    a printed J fits when it lies within ``tolerance`` Hz of an expected coupling's range.
+    """
+    pat = observed_pattern(letters)
+    bad_pattern = 0
+    if pat is not None and not expected.exchangeable:
+        bad_pattern = int(pat not in expected.patterns())
+    bad_j = 0
+    if js and not expected.exchangeable:
+        ranges = expected.j_ranges()
+        for j in js:
+            if not any(lo - tolerance <= j <= hi + tolerance for lo, hi in ranges):
+                bad_j += 1
+    return bad_pattern, bad_j
+
+
+def _ring_of_size(mol: Chem.Mol, a: int, b: int) -> int:
+    """Size of the smallest ring holding the bond a–b (0 if none)."""
+    ri = mol.GetRingInfo()
+    sizes = [len(r) for r in ri.BondRings() if mol.GetBondBetweenAtoms(a, b).GetIdx() in r]
+    return min(sizes) if sizes else 0
+
+
+def _alkene_kind(mol: Chem.Mol, a: int, b: int) -> str:
+    """'cis', 'trans' or 'alkene' (stereo not given) for the single H on a and on b across a=b."""
+    bond = mol.GetBondBetweenAtoms(a, b)
+    ring = _ring_of_size(mol, a, b)
+    if ring and ring <= 8:
+        return "cis"  # a ring double bond of a small or medium ring is cis
+    stereo = bond.GetStereo()
+    if stereo in (Chem.BondStereo.STEREOE, Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS, Chem.BondStereo.STEREOTRANS):
+        # each carbon carries one H and one other substituent, so the protons are cis exactly when
+        # the substituents (the stereo reference atoms) are
+        return "cis" if stereo in (Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS) else "trans"
+    return "alkene"
+
+
+def _exchangeable(atom: Chem.Atom) -> bool:
+    return atom.GetAtomicNum() in (7, 8, 16)
+
+
+def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
+    """Expected multiplet of every proton class of ``mol`` (hydrogens implicit), ordered by first atom."""
+    if ranks is None:
+        ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+    classes: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetTotalNumHs() > 0:
+            classes.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    out = []
+    for atoms in sorted(classes.values(), key=lambda g: g[0]):
+        a = mol.GetAtomWithIdx(atoms[0])
+        n_h = sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in atoms)
+        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, a, ranks), _exchangeable(a)))
+    return out
+
+
+def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int]) -> list[CouplingGroup]:
+    counts: dict[tuple[str, str, int], int] = {}
+    ai = a.GetIdx()
+
+    def add(kind: str, n: int, partner: str, key: int) -> None:
+        if partner == "H" and key == ranks[ai] and kind != "geminal-alkene":
+            return  # protons of the same class do not split each other's signal (first order)
+        if n > 0:
+            counts[(kind, partner, key)] = counts.get((kind, partner, key), 0) + n
+
+    a_exch = _exchangeable(a)
+    a_carbonyl = a.GetAtomicNum() == 6 and any(
+        b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() == 8 for b in a.GetBonds())
+    for bond in a.GetBonds():
+        b = bond.GetOtherAtom(a)
+        bi = b.GetIdx()
+        zb = b.GetAtomicNum()
+        if zb == 9:
+            add("HF-geminal", 1, "F", ranks[bi])
+            continue
+        if zb == 15:
+            add("HP", 1, "P", ranks[bi])
+            continue
+        nb = b.GetTotalNumHs()
+        if nb:
+            if a_exch or _exchangeable(b):
+                add("exchangeable", nb, "H", ranks[bi])
+            elif bond.GetBondType() == Chem.BondType.AROMATIC or (a.GetIsAromatic() and b.GetIsAromatic()):
+                ring = _ring_of_size(mol, ai, bi)
+                kind = "ortho-5" if ring == 5 else "ortho"
+                if ring == 6 and _next_to_ring_n(mol, ai, bi):
+                    kind = "ortho-5"  # pyridine H2–H3 (4–6 Hz)
+                add(kind, nb, "H", ranks[bi])
+            elif bond.GetBondType() == Chem.BondType.DOUBLE:
+                if nb == 2:                   # =CH2 partner: one proton cis, one trans
+                    add("cis", 1, "H", ranks[bi])
+                    add("trans", 1, "H", ranks[bi])
+                elif a.GetTotalNumHs() == 2:  # each of this =CH2's protons sees the partner cis or trans
+                    add("alkene", 1, "H", ranks[bi])
+                else:
+                    add(_alkene_kind(mol, ai, bi), 1, "H", ranks[bi])
+            else:
+                b_carbonyl = zb == 6 and any(x.GetBondType() == Chem.BondType.DOUBLE and x.GetOtherAtom(b).GetAtomicNum() == 8
+                                             for x in b.GetBonds())
+                if a_carbonyl or b_carbonyl:
+                    add("aldehyde", nb, "H", ranks[bi])
+                else:
+                    ring = _ring_of_size(mol, ai, bi)
+                    add("vicinal-ring" if ring and ring <= 5 else "vicinal", nb, "H", ranks[bi])
+        # two bonds away: meta protons, fluorine and phosphorus
+        for bond2 in b.GetBonds():
+            c = bond2.GetOtherAtom(b)
+            ci = c.GetIdx()
+            if ci == ai:
+                continue
+            zc = c.GetAtomicNum()
+            if zc == 9:
+                add("HF-ortho" if a.GetIsAromatic() and b.GetIsAromatic() else "HF-vicinal", 1, "F", ranks[ci])
+            elif zc == 15:
+                add("HP", 1, "P", ranks[ci])
+            elif (a.GetIsAromatic() and b.GetIsAromatic() and c.GetIsAromatic() and c.GetTotalNumHs()
+                  and not mol.GetBondBetweenAtoms(ai, ci) and _same_ring(mol, ai, ci)):
+                add("meta", c.GetTotalNumHs(), "H", ranks[ci])
+            if a.GetIsAromatic() and b.GetIsAromatic() and c.GetIsAromatic():
+                for bond3 in c.GetBonds():
+                    d = bond3.GetOtherAtom(c)
+                    if d.GetAtomicNum() == 9 and _same_ring(mol, ai, ci):
+                        add("HF-meta", 1, "F", ranks[d.GetIdx()])
+    if a.GetTotalNumHs() == 2 and any(x.GetBondType() == Chem.BondType.DOUBLE and x.GetOtherAtom(a).GetAtomicNum() == 6
+                                      for x in a.GetBonds()):
+        add("geminal-alkene", 1, "H", ranks[ai])  # the two =CH2 protons are not equivalent in fact
+    if a_exch:
+        # exchangeable protons: couplings (if any) are optional; keep them so J values can be explained
+        return [CouplingGroup("exchangeable" if p == "H" else k, n, p, key) for (k, p, key), n in counts.items()]
+    return [CouplingGroup(k, n, p, key) for (k, p, key), n in counts.items()]
+
+
+def _same_ring(mol: Chem.Mol, i: int, j: int) -> bool:
+    return any(i in r and j in r for r in mol.GetRingInfo().AtomRings())
+
+
+def _next_to_ring_n(mol: Chem.Mol, i: int, j: int) -> bool:
+    """True when one of the two aromatic ring atoms is bonded to a ring nitrogen of a six-membered ring
+    (the H2–H3 coupling of pyridines is 4–6 Hz, common practice)."""
+    for k in (i, j):
+        for nb in mol.GetAtomWithIdx(k).GetNeighbors():
+            if nb.GetAtomicNum() == 7 and nb.GetIsAromatic() and nb.GetIdx() not in (i, j) and _same_ring(mol, k, nb.GetIdx()):
+                return True
+    return False

@@ -1,0 +1,58 @@
+"""Expected first-order 1H multiplets of structures of our own choosing.
+
+The patterns are the first-order rules every practitioner applies (common practice): n equivalent
+neighbours split a signal into n + 1 lines; protons of one symmetry class do not split each other;
+aromatic ortho couplings are large and meta couplings small and often unresolved.
+"""
+from rdkit import Chem
+
+from shiftrank.chem.couplings import expected_multiplets, fit_cost, observed_pattern
+
+
+def _by_atom(smiles):
+    return {tuple(e.atoms): e for e in expected_multiplets(Chem.MolFromSmiles(smiles))}
+
+
+def test_para_disubstituted_ring_gives_two_2h_doublets():
+    # ethyl 4-methylbenzoate (own choice)
+    ex = _by_atom("CCOC(=O)c1ccc(C)cc1")
+    ring = [e for e in ex.values() if len(e.atoms) == 2]
+    assert len(ring) == 2 and all(e.n_h == 2 and e.patterns() == {(2,)} for e in ring)
+
+
+def test_monosubstituted_ring_gives_2h_2h_1h():
+    # propiophenone ring (own choice): ortho d (2H), meta t-like (2H), para t (1H)
+    ex = _by_atom("CCC(=O)c1ccccc1")
+    ring = sorted((e for e in ex.values() if Chem.MolFromSmiles("CCC(=O)c1ccccc1").GetAtomWithIdx(e.atoms[0]).GetIsAromatic()),
+                  key=lambda e: e.atoms)
+    assert [e.n_h for e in ring] == [2, 2, 1]
+    ortho, meta, para = ring
+    assert (2,) in ortho.patterns() and (3,) in meta.patterns() and (3,) in para.patterns()
+
+
+def test_ethyl_group_is_quartet_and_triplet():
+    ex = _by_atom("CCOC(=O)c1ccc(C)cc1")
+    assert ex[(0,)].patterns() == {(3,)} and ex[(0,)].n_h == 3
+    assert ex[(1,)].patterns() == {(4,)} and ex[(1,)].n_h == 2
+
+
+def test_equal_couplings_merge_into_a_sextet():
+    # butanenitrile's middle CH2: q of t with different J, or a sextet when the J are equal
+    ex = _by_atom("CCCC#N")
+    assert {(4, 3), (6,)} <= ex[(1,)].patterns()
+
+
+def test_trans_alkene_and_fluorine_couplings():
+    ex = _by_atom("C/C=C/C(=O)OC")   # methyl (E)-but-2-enoate: the CH next to C=O is a d of ~15.5 Hz
+    e = ex[(2,)]
+    assert fit_cost(e, "d", (15.6,)) == (0, 0)
+    assert fit_cost(e, "d", (8.0,)) == (0, 1)     # a J of 8 Hz fits no trans coupling
+    f = _by_atom("Fc1ccc(C)cc1")                   # 4-fluorotoluene: H ortho to F couples to F as to H
+    ortho_f = f[(2, 7)]
+    assert fit_cost(ortho_f, "t", (8.7,)) == (0, 0) and fit_cost(ortho_f, "s") == (1, 0)
+
+
+def test_printed_letters():
+    assert observed_pattern("td") == (3, 2) and observed_pattern("dd") == (2, 2)
+    assert observed_pattern("s") == () and observed_pattern("m") is None and observed_pattern("br s") is None
+    assert observed_pattern("sept") == (7,)
