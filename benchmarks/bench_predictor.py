@@ -1,9 +1,11 @@
-"""13C predictor benchmark on the held-out test split (InChIKey-skeleton split of ../shared/data).
+"""Predictor benchmark on the held-out test split (InChIKey-skeleton split of ../shared/data).
 
-    python benchmarks/bench_predictor.py [--data DIR]
+    python benchmarks/bench_predictor.py [--data DIR] [--nucleus 13C|1H] [--accuracy-only]
 
-Reports MAE overall and by carbon type and molecule size, the 90 % interval
-coverage, coverage of carbons, load time and throughput (one thread).
+Reports MAE overall and by atom type and molecule size, aromatic ring atoms by ring type and by
+position relative to the ring's substituents (ipso / ortho / meta / para), the 90 % interval
+coverage, coverage of atoms, load time and throughput (one thread).  For 1H, the headline MAE is
+over C–H heavy atoms (the mean shift of their protons); OH/NH/SH are reported apart.
 """
 from __future__ import annotations
 
@@ -79,10 +81,100 @@ def kind(atom) -> str:
     return "sp3"
 
 
+def ring_position(mol, idx: int) -> str | None:
+    """For an aromatic ring atom: 'ipso' (bears a substituent), else the closest substituent's position
+    ('ortho', 'meta', 'para') around its ring, or 'bare' for an unsubstituted ring; None off rings."""
+    a = mol.GetAtomWithIdx(idx)
+    if not a.GetIsAromatic():
+        return None
+    rings = [r for r in mol.GetRingInfo().AtomRings() if idx in r and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
+    if not rings:
+        return None
+    r = max(rings, key=len)
+    rset = set(r)
+
+    def substituted(i):
+        return any(nb.GetIdx() not in rset for nb in mol.GetAtomWithIdx(i).GetNeighbors())
+    if substituted(idx):
+        return "ipso"
+    k0, n = r.index(idx), len(r)
+    for step, name in ((1, "ortho"), (2, "meta"), (3, "para")):
+        if step > n // 2:
+            break
+        if substituted(r[(k0 + step) % n]) or substituted(r[(k0 - step) % n]):
+            return name
+    return "bare"
+
+
+def ring_type(mol, idx: int) -> str | None:
+    a = mol.GetAtomWithIdx(idx)
+    if not a.GetIsAromatic():
+        return None
+    rings = [r for r in mol.GetRingInfo().AtomRings() if idx in r and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
+    if not rings:
+        return None
+    r = max(rings, key=len)
+    het = any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in r)
+    return f"{'hetero' if het else 'carbo'}cyclic {len(r)}-ring"
+
+
+def accuracy(args, nucleus: str) -> None:
+    from shiftrank.prediction.environment import environments_of, mol_parts
+    from shiftrank.prediction.model_files import load_shift_model, read_manifest
+
+    man = read_manifest()
+    model = load_shift_model(nucleus=nucleus)
+    mols = [m for m in load_assigned(args.data, nucleus=nucleus) if m.split == "test"]
+    preds = model.predict_envs(environments_of([mol_parts(m.mol, m.solvent, nucleus) for m in mols]))
+    rows = []  # (abs error, sigma, atom, mol)
+    for m, p in zip(mols, preds):
+        mu, sg = p.shifts, p.sigmas
+        for a, y in m.shifts.items():
+            rows.append((mu[a] - y, sg[a], m.mol.GetAtomWithIdx(a), m.mol))
+    err = np.array([r[0] for r in rows])
+    sig = np.array([r[1] for r in rows])
+    xh = np.array([r[2].GetAtomicNum() != 6 for r in rows])
+    entry = man["nuclei"][nucleus]
+    print(f"{nucleus} model {entry['version']}  (manifest test MAE {entry['metrics']['test_mae']})")
+    sel = ~xh if nucleus == "1H" else np.ones(len(err), bool)
+    what = "C-H heavy atoms" if nucleus == "1H" else "carbons"
+    print(f"test split: {len(mols)} molecules, {sel.sum()} assigned {what}")
+    e = err[sel]
+    print(f"MAE {np.abs(e).mean():.3f} ppm   RMSE {np.sqrt((e ** 2).mean()):.3f}   median AE {np.median(np.abs(e)):.3f}")
+    print(f"90 % interval coverage {100 * np.mean(np.abs(e) <= 1.6449 * sig[sel]):.1f} %")
+    if nucleus == "1H" and xh.any():
+        print(f"OH/NH/SH rows: {xh.sum()}, MAE {np.abs(err[xh]).mean():.3f}, coverage {100 * np.mean(np.abs(err[xh]) <= 1.6449 * sig[xh]):.1f} %")
+    groups: dict = {}
+    for (d, _, atom, mol), keep in zip(rows, sel):
+        if not keep:
+            continue
+        size = mol.GetNumAtoms()
+        sb = "<15" if size < 15 else "15-24" if size < 25 else "25-39" if size < 40 else ">=40"
+        nh = atom.GetTotalNumHs()
+        keys = [("heavy atoms", sb), ("CHn", ["C", "CH", "CH2", "CH3"][min(nh, 3)]), ("type", kind(atom))]
+        rt = ring_type(mol, atom.GetIdx())
+        if rt:
+            keys += [("aromatic ring", rt), ("aromatic position", ring_position(mol, atom.GetIdx())),
+                     ("aromatic by size", sb)]
+        for key in keys:
+            groups.setdefault(key, []).append(abs(d))
+    for head in ("CHn", "type", "heavy atoms", "aromatic ring", "aromatic position", "aromatic by size"):
+        parts = [f"{k[1]} {np.mean(v):.3f} (n={len(v)})" for k, v in sorted(groups.items()) if k[0] == head]
+        if parts:
+            print(f"  by {head}: " + ", ".join(parts))
+
+
 def main() -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
+    ap.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
+    ap.add_argument("--accuracy-only", action="store_true", help="skip the speed and small-molecule sections")
     args = ap.parse_args()
+    if args.nucleus == "1H" or args.accuracy_only:
+        accuracy(args, args.nucleus)
+        return 0
+    accuracy(args, "13C")
+    print()
     t = time.perf_counter()
     from shiftrank.prediction.model_files import load_shift_model, read_manifest
     model = load_shift_model()

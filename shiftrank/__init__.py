@@ -1,4 +1,4 @@
-"""shiftrank: rank candidate structures against an observed 13C spectrum and the sample's history.
+"""shiftrank: rank candidate structures against observed 13C and 1H spectra and the sample's history.
 
 >>> import shiftrank
 >>> shiftrank.structure_facts("COc1ccc(OC)cc1").expected_13c_signals
@@ -7,7 +7,7 @@
 __version__ = "0.1.0"
 
 __all__ = ["predict", "predict_many", "rank", "rank_many", "structure_facts", "take_inventory", "read_peaks", "parse_peaks",
-           "InputError", "__version__"]
+           "read_nmr_text", "isomers", "InputError", "__version__"]
 
 
 def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
@@ -26,6 +26,12 @@ def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start
     if name in ("read_peaks", "parse_peaks"):
         from .inputs import peaks
         return getattr(peaks, name)
+    if name == "read_nmr_text":
+        from .inputs.text import read_nmr_text
+        return read_nmr_text
+    if name == "isomers":
+        from .chem.isomers import isomers
+        return isomers
     if name == "InputError":
         from .errors import InputError
         return InputError

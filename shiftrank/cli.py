@@ -14,7 +14,8 @@ from . import __version__
 from .errors import InputError
 
 
-def _print_facts(f, out=sys.stdout) -> None:
+def _print_facts(f, out=None) -> None:
+    out = out or sys.stdout
     print(f"{f.smiles}", file=out)
     print(f"  formula {f.formula}   average mass {f.average_mass:.3f}   monoisotopic {f.monoisotopic_mass:.4f}   DBE {f.dbe:g}", file=out)
     if f.dbe_note:
@@ -28,16 +29,46 @@ def _print_facts(f, out=sys.stdout) -> None:
         print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}", file=out)
 
 
+_STRUCTURE_FILES = (".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz", ".sd", ".ism", ".can")
+
+
+def _structure_token(token: str) -> str:
+    """'file' or 'smiles' for a command-line structure argument, decided by content: an existing path is a
+    file; otherwise a string that RDKit parses is a SMILES; otherwise the message says both were tried."""
+    from .inputs.molecules import to_mol
+
+    try:
+        is_file = len(token) < 4096 and Path(token).exists()
+    except (OSError, ValueError):   # a long SMILES is not a path the system can even look up
+        is_file = False
+    if is_file:
+        return "file"
+    try:
+        to_mol(token)
+        return "smiles"
+    except InputError as exc:
+        if token.lower().endswith(_STRUCTURE_FILES) or "/" in token and not any(ch in token for ch in "=#()[]"):
+            raise InputError(f"{token}: no such file") from None
+        raise InputError(f"'{token[:60]}' is neither an existing file nor a SMILES RDKit can read ({exc})") from None
+
+
 def cmd_facts(args) -> int:
-    from .inputs.molecules import read_molecules
     from .chem.structure import facts_from_mol, structure_facts
-    from pathlib import Path
+    from .inputs.molecules import read_molecules
 
     items = []
     for token in args.structures:
-        if Path(token).exists():
+        try:
+            kind = _structure_token(token)
+        except InputError as exc:
+            items.append((token[:60], str(exc), None))
+            continue
+        if kind == "file":
             for rec in read_molecules(token):
-                items.append((rec.id, rec.error, None if rec.error else facts_from_mol(rec.mol, rec.source)))
+                try:
+                    items.append((rec.id, rec.error, None if rec.error else facts_from_mol(rec.mol, rec.source)))
+                except InputError as exc:
+                    items.append((rec.id, str(exc), None))
         else:
             try:
                 items.append((token, None, structure_facts(token)))
@@ -89,16 +120,19 @@ def cmd_peaks(args) -> int:
 
 
 def cmd_predict(args) -> int:
-    from .prediction.model_files import default_manifest
+    from .chem.structure import MULTIPLICITY
     from .inputs.molecules import read_molecules
     from .prediction.api import predict_records
     from .prediction.model import Z90
-    from .chem.structure import MULTIPLICITY
+    from .prediction.model_files import default_manifest
 
-    results = predict_records(read_molecules(args.file), args.solvent)
+    nuclei = ["13C", "1H"] if args.nucleus == "both" else [args.nucleus]
+    records = read_molecules(args.file)
+    runs = {n: predict_records(records, args.solvent, n) for n in nuclei}
     version = default_manifest().get("version")
     n_bad = 0
-    for rec, pred, err in results:
+    for k, rec in enumerate(records):
+        err = next((runs[n][k][2] for n in nuclei if runs[n][k][2]), None)
         if err:
             n_bad += 1
             if args.jsonl:
@@ -106,31 +140,42 @@ def cmd_predict(args) -> int:
             else:
                 print(f"{rec.id}: error: {err}", file=sys.stderr)
             continue
+        preds = {n: runs[n][k][1] for n in nuclei}
         if args.jsonl:
-            obj = {
-                "id": rec.id,
-                "shifts": {str(c.atom): round(c.shift, 2) for c in pred.carbons},
-                "sigma": {str(c.atom): round(c.sigma, 2) for c in pred.carbons},
-                "interval90": {str(c.atom): [round(lo, 2), round(hi, 2)] for c in pred.carbons for lo, hi in [c.interval90]},
-                "model": version,
-            }
-            measured = [str(c.atom) for c in pred.carbons if c.whole_molecule]
-            if measured:  # the compound is in the training data: these values are its measured shifts
-                obj["measured_in_data"] = measured
+            obj = {"id": rec.id}
+            for n, pred in preds.items():
+                tag = "" if n == "13C" else "_1h"
+                obj[f"shifts{tag}"] = {str(c.atom): round(c.shift, 2 if n == "13C" else 3) for c in pred.atoms}
+                obj[f"sigma{tag}"] = {str(c.atom): round(c.sigma, 2 if n == "13C" else 3) for c in pred.atoms}
+                obj[f"interval90{tag}"] = {str(c.atom): [round(lo, 2), round(hi, 2)] for c in pred.atoms
+                                           for lo, hi in [c.interval90]}
+                measured = [str(c.atom) for c in pred.atoms if c.whole_molecule]
+                if measured:  # the compound is in the training data: these values are its measured shifts
+                    obj[f"measured_in_data{tag}"] = measured
+            obj["model"] = version
+            notes = next(iter(preds.values())).notes
+            if notes:
+                obj["standardised"] = notes
             print(json.dumps(obj))
             continue
         print(f"{rec.id}")
-        print(f"  {'atom':>4}  {'CHn':<4} {'shift':>7}  {'±90%':>6}  sphere match")
-        for c in pred.carbons:
-            a = rec.mol.GetAtomWithIdx(c.atom)
-            chn = MULTIPLICITY.get(a.GetTotalNumHs(), f"CH{a.GetTotalNumHs()}")
-            arom = "ar" if a.GetIsAromatic() else ""
-            match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
-                     f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
-            print(f"  {c.atom:>4}  {chn + arom:<5}{c.shift:7.1f}  {Z90 * c.sigma:6.1f}  {match}")
+        for note in next(iter(preds.values())).notes:
+            print(f"  note: {note}")
+        for n, pred in preds.items():
+            nd = 1 if n == "13C" else 2
+            head = "CHn" if n == "13C" else "H on"
+            print(f"  {n}: {'atom':>4}  {head:<5} {'shift':>7}  {'±90%':>6}  sphere match")
+            for c in pred.atoms:
+                a = rec.mol.GetAtomWithIdx(c.atom)
+                nh = a.GetTotalNumHs()
+                what = (MULTIPLICITY.get(nh, f"CH{nh}") + ("ar" if a.GetIsAromatic() else "") if n == "13C"
+                        else f"{nh}H@{a.GetSymbol()}")
+                match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
+                         f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
+                print(f"       {c.atom:>4}  {what:<6}{c.shift:7.{nd}f}  {Z90 * c.sigma:6.{nd}f}  {match}")
     if n_bad and not args.jsonl:
-        print(f"{n_bad} of {len(results)} records could not be predicted", file=sys.stderr)
-    return 2 if n_bad == len(results) else 0
+        print(f"{n_bad} of {len(records)} records could not be predicted", file=sys.stderr)
+    return 2 if n_bad == len(records) else 0
 
 
 def _read_candidates(tokens: list[str]) -> list:
@@ -141,38 +186,78 @@ def _read_candidates(tokens: list[str]) -> list:
 
     out = []
     for tok in tokens:
-        if Path(tok).exists():
+        try:
+            kind = _structure_token(tok)
+        except InputError as exc:
+            if "no such file" in str(exc):
+                raise
+            out.append((None, tok, str(exc)))   # listed last with its error; the other candidates run
+            continue
+        if kind == "file":
             for rec in read_molecules(tok):
                 if rec.error:
                     out.append((rec.id, rec.source, rec.error))
                 else:
                     smi = rec.source if not rec.source.startswith(Path(tok).name + ":") else Chem.MolToSmiles(rec.mol)
                     out.append((rec.id if rec.id != smi else None, smi, None))
-        elif tok.lower().endswith((".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz")):
-            raise InputError(f"{tok}: no such file")
         else:
             out.append((None, tok, None))
     return out
 
 
+def _read_text_arg(spec: str) -> tuple[str, str]:
+    """Printed characterisation text from a file, or from standard input for '-': (text, source name)."""
+    if spec == "-":
+        return sys.stdin.read(), "stdin"
+    p = Path(spec)
+    if not p.exists():
+        raise InputError(f"{spec}: no such file (give a file of printed NMR text, or - for standard input)")
+    if p.is_dir():
+        raise InputError(f"{spec}: is a directory, expected a text file")
+    try:
+        return p.read_text(encoding="utf-8", errors="replace"), p.name
+    except OSError as exc:
+        raise InputError(f"{spec}: cannot read ({exc.strerror or exc})") from None
+
+
+def _case_from_args(args) -> tuple[dict, dict]:
+    """The ranking case the options describe, and the peak lists read (for the report and inventory)."""
+    from .inputs.peaks import read_peaks
+
+    if not (args.peaks or args.peaks_1h or args.text):
+        raise InputError("give --peaks (13C), --peaks-1h (1H) and/or --text (printed characterisation)")
+    lists = {}
+    case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
+    if args.peaks:
+        lists["13C"] = case["peaks"] = read_peaks(args.peaks, solvent=args.solvent)
+    if args.peaks_1h:
+        lists["1H"] = case["peaks_1h"] = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent)
+    if args.text:
+        case["text"], _ = _read_text_arg(args.text)
+    sources = [s for s in (args.peaks, args.peaks_1h, args.text) if s]
+    case["id"] = Path(sources[0]).stem if sources[0] != "-" else "stdin"
+    return case, lists
+
+
 def cmd_rank(args) -> int:
     from .outputs.terminal import print_ranking
-    from .inputs.peaks import read_peaks
-    from .score.ranking import rank
+    from .score.ranking import case_peaklists, rank
 
-    pl = read_peaks(args.peaks, solvent=args.solvent)
-    result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass, solvent=args.solvent,
-                  id=Path(args.peaks).stem, demote_history_mismatch=not args.keep_mismatches)
+    case, _ = _case_from_args(args)
+    result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
+                  solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
+                  peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False)
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
-        print_ranking(result, args.peaks)
+        print_ranking(result, ", ".join(s for s in (args.peaks, args.peaks_1h, args.text) if s))
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
     if args.report:
         from .outputs.report import write_report
-        write_report([result], args.report, [pl], [_history(args)], [_inventory_for(args, pl)])
+        lists, _, _ = case_peaklists(case)
+        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists)])
         print(f"report written to {args.report}", file=sys.stderr)
     return 0
 
@@ -180,10 +265,15 @@ def cmd_rank(args) -> int:
 def cmd_batch(args) -> int:
     from .score.batch import run_batch
 
-    out = open(args.output, "w") if args.output else sys.stdout
+    if args.jobs == 0 or args.jobs < -1:
+        raise InputError(f"--jobs {args.jobs}: use a positive number of processes (or -1 for every core)")
+    try:
+        out = open(args.output, "w") if args.output else sys.stdout
+    except OSError as exc:
+        raise InputError(f"{args.output}: cannot write ({exc.strerror or exc})") from None
     try:
         summary = run_batch(args.cases, out, jobs=args.jobs, detail=args.detail,
-                            progress=True if args.progress else None)
+                            progress=True if args.progress else None, dask=args.dask)
     finally:
         if args.output:
             out.close()
@@ -196,36 +286,38 @@ def _history(args) -> dict:
     return {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
 
 
-def _inventory_for(args, pl):
+def _inventory_for(args, lists: dict):
     from .chem.inventory import take_inventory
-    from .inputs.peaks import read_peaks
 
-    h1 = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent) if getattr(args, "peaks_1h", None) else None
-    return take_inventory(pl, h1, args.formula, getattr(args, "mz", None), getattr(args, "ppm", 5.0))
+    return take_inventory(lists.get("13C"), lists.get("1H"), args.formula, getattr(args, "mz", None),
+                          getattr(args, "ppm", 5.0))
 
 
 def cmd_inventory(args) -> int:
     from dataclasses import asdict
 
-    from .inputs.peaks import read_peaks
+    from .score.ranking import case_peaklists
 
-    pl = read_peaks(args.peaks, solvent=args.solvent)
-    inv = _inventory_for(args, pl)
+    case, _ = _case_from_args(args)
+    lists, _, notes = case_peaklists(case)
+    inv = _inventory_for(args, lists)
     if args.json:
         print(json.dumps(asdict(inv), indent=1))
         return 0
-    for n in pl.notes:
+    for n in notes:
         print(f"note: {n}")
     for line in inv.lines():
         print(line)
-    print("\nregions (common practice ranges):")
-    for s, m, h in inv.regions:
-        print(f"  {s:8.2f}  {m or '':<4} {h}")
+    if inv.regions:
+        print("\n13C regions (common practice ranges):")
+        for s, m, h in inv.regions:
+            print(f"  {s:8.2f}  {m or '':<4} {h}")
     return 0
 
 
 def cmd_report(args) -> int:
     from .outputs.report import write_report
+    from .score.ranking import case_peaklists
 
     if args.batch:
         from .score.batch import read_cases
@@ -239,21 +331,37 @@ def cmd_report(args) -> int:
             raise InputError(f"{args.batch}: no case could be ranked")
         results = [r for _, r in ranked]
         hist = [{"formula": c.get("formula"), "mass": c.get("mass"), "solvent": c.get("solvent")} for c, _ in ranked]
-        write_report(results, args.output, histories=hist, title=f"shiftrank batch report: {Path(args.batch).name}")
+        lists = [case_peaklists(c)[0] for c, _ in ranked]
+        write_report(results, args.output, lists, hist, title=f"shiftrank batch report: {Path(args.batch).name}")
         if skipped:
             print(f"{skipped} cases could not be ranked and are not in the report", file=sys.stderr)
     else:
-        if not args.peaks or not args.candidates:
-            raise InputError("report: give --peaks and --candidates, or --batch CASES.jsonl")
-        from .inputs.peaks import read_peaks
+        if not args.candidates:
+            raise InputError("report: give --candidates with --peaks/--peaks-1h/--text, or --batch CASES.jsonl")
         from .score.ranking import rank
 
-        pl = read_peaks(args.peaks, solvent=args.solvent)
-        result = rank(pl, _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
-                      solvent=args.solvent, id=Path(args.peaks).stem)
-        inv = _inventory_for(args, pl)
-        write_report([result], args.output, [pl], [_history(args)], [inv])
+        case, _ = _case_from_args(args)
+        result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
+                      solvent=args.solvent, id=case["id"], peaks_1h=case.get("peaks_1h"), text=case.get("text"))
+        lists, _, _ = case_peaklists(case)
+        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists)])
     print(f"report written to {args.output}")
+    return 0
+
+
+def cmd_isomers(args) -> int:
+    from .chem.isomers import isomers
+
+    if not args.smiles and not args.reaction:
+        raise InputError("isomers: give a SMILES, or --reaction SMARTS with --reactants")
+    alts = isomers(args.smiles, kinds=args.kind, reaction=args.reaction, reactants=args.reactants, limit=args.limit)
+    if args.jsonl:
+        for a in alts:
+            print(json.dumps(a.to_dict()))
+        return 0
+    print(f"{len(alts)} alternatives to {args.smiles or 'the reaction products'} ({args.kind}):")
+    for k, a in enumerate(alts, 1):
+        print(f"  {k:>3}  {a.kind:<10} {a.smiles:<45} {a.relation}")
     return 0
 
 
@@ -266,6 +374,7 @@ def cmd_demo(args) -> int:
 def build_parser() -> argparse.ArgumentParser:
     p = argparse.ArgumentParser(prog="shiftrank", description="Rank candidate structures against an observed 13C spectrum and the sample's history.")
     p.add_argument("--version", action="version", version=f"shiftrank {__version__}")
+    p.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")
 
     s = sub.add_parser("facts", help="formula, masses, DBE and symmetry classes of structures")
@@ -283,36 +392,44 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
 
-    s = sub.add_parser("predict", help="predict 13C shifts for the structures in a file (SDF, mol, SMILES)")
+    s = sub.add_parser("predict", help="predict 13C and/or 1H shifts for the structures in a file (SDF, mol, SMILES)")
     s.add_argument("file", help=".sdf, .mol, .smi or .txt (one SMILES per line, optional id after whitespace)")
-    s.add_argument("--jsonl", action="store_true", help="one JSON object per record, carbons keyed by atom index")
+    s.add_argument("--jsonl", action="store_true", help="one JSON object per record, atoms keyed by atom index")
+    s.add_argument("--nucleus", choices=["13C", "1H", "both"], default="13C",
+                   help="13C (each carbon), 1H (mean shift of the protons on each heavy atom) or both")
     s.add_argument("--solvent", help="NMR solvent (CDCl3, DMSO-d6, CD3OD; others are treated as unknown)")
     s.set_defaults(func=cmd_predict)
 
-    s = sub.add_parser("rank", help="rank candidate structures against a 13C peak list")
-    s.add_argument("--peaks", required=True, help="13C peak list (.txt, .csv, .json)")
+    s = sub.add_parser("rank", help="rank candidate structures against 13C and/or 1H peaks or printed NMR text")
+    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
+    s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H and/or 13C paragraphs); - reads stdin")
     s.add_argument("--candidates", required=True, nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
     s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
     s.add_argument("--keep-mismatches", action="store_true", help="do not demote candidates contradicting formula/mass")
+    s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
+                   help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
     s.add_argument("--json", action="store_true", help="print the full result as JSON")
     s.add_argument("--report", metavar="HTML", help="also write an HTML report")
-    s.add_argument("--peaks-1h", help="1H peak list with integrals, for the report's inventory")
     s.set_defaults(func=cmd_rank)
 
     s = sub.add_parser("batch", help="rank many cases from a JSON Lines file, one output line per case")
     s.add_argument("cases", help="JSONL (.jsonl or .jsonl.gz), one case per line")
     s.add_argument("-o", "--output", help="write JSONL here instead of standard output")
-    s.add_argument("--jobs", type=int, default=1, help="parallel worker processes (joblib)")
+    s.add_argument("--jobs", type=int, default=1, help="parallel worker processes on this machine (joblib)")
+    s.add_argument("--dask", metavar="local[:N]|tcp://HOST:PORT",
+                   help="rank on a Dask cluster: a local one of N workers, or a running scheduler")
     s.add_argument("--detail", action="store_true", help="include assignment tables")
     s.add_argument("--progress", action="store_true", help="show a progress bar even when stderr is not a terminal")
     s.set_defaults(func=cmd_batch)
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
-    s.add_argument("--peaks", required=True, help="13C peak list (with DEPT multiplicities when known)")
-    s.add_argument("--peaks-1h", help="1H peak list with integrals (shift integral per line)")
+    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known)")
+    s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line)")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text; - reads stdin")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
     s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance in ppm (default 5)")
@@ -325,6 +442,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES")
     s.add_argument("--batch", metavar="CASES.jsonl", help="rank a JSONL batch and report every case")
     s.add_argument("--peaks-1h", help="1H peak list with integrals")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text; - reads stdin")
     s.add_argument("--formula")
     s.add_argument("--mass", type=float)
     s.add_argument("--mz", type=float)
@@ -333,10 +451,23 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("-o", "--output", required=True, help="HTML file to write")
     s.set_defaults(func=cmd_report)
 
+    s = sub.add_parser("isomers", help="alternatives a reaction could have given: positional, ambident, tautomers")
+    s.add_argument("smiles", nargs="?", help="the intended product (SMILES)")
+    s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer")
+    s.add_argument("--reaction", metavar="SMARTS", help="a reaction SMARTS; every product is listed")
+    s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
+    s.add_argument("--limit", type=int, default=500, help="refuse to list more alternatives than this (default 500)")
+    s.add_argument("--jsonl", action="store_true", help="one JSON object per alternative: smiles, relation, kind")
+    s.set_defaults(func=cmd_isomers)
+
     s = sub.add_parser("demo", help="run the bundled demo scenario (invented data) end to end")
     s.add_argument("-o", "--output", default="shiftrank-demo.html", help="where to write the HTML report")
     s.set_defaults(func=cmd_demo)
     return p
+
+
+#: Exit status of an unexpected failure inside shiftrank (bad input is 2).
+INTERNAL_ERROR = 3
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -355,6 +486,13 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("shiftrank: interrupted", file=sys.stderr)
         return 130
+    except Exception as exc:  # noqa: BLE001 - the last line of defence: one line, a distinct status
+        if args.debug:
+            raise
+        what = " ".join(str(a) for a in (argv if argv is not None else sys.argv[1:]))[:120]
+        print(f"shiftrank {args.command}: internal error ({type(exc).__name__}: {str(exc)[:200]}) while running "
+              f"'{what}'; please report it (rerun with --debug for the traceback)", file=sys.stderr)
+        return INTERNAL_ERROR
 
 
 if __name__ == "__main__":

@@ -97,7 +97,7 @@ def test_rank_cli_table_and_json(tmp_path):
     assert "Verdict:" in r.stdout and "evidence, not a certificate" in r.stdout
     rj = run("rank", "--peaks", str(p), "--candidates", META, PARA, "--json")
     d = json.loads(rj.stdout)
-    assert d["ranking"][0]["smiles"] == PARA and "assignment" in d["ranking"][0]
+    assert d["ranking"][0]["smiles"] == PARA and "assignment" in d["ranking"][0]["nuclei"]["13C"]
 
 
 def test_rank_cli_bad_peaks_exit_2(tmp_path):

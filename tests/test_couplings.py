@@ -17,7 +17,9 @@ def test_para_disubstituted_ring_gives_two_2h_doublets():
     # ethyl 4-methylbenzoate (own choice)
     ex = _by_atom("CCOC(=O)c1ccc(C)cc1")
     ring = [e for e in ex.values() if len(e.atoms) == 2]
-    assert len(ring) == 2 and all(e.n_h == 2 and e.patterns() == {(2,)} for e in ring)
+    # a doublet each (a small long-range splitting may be resolved, nothing else)
+    assert len(ring) == 2 and all(e.n_h == 2 and (2,) in e.patterns() and e.label().startswith("d") for e in ring)
+    assert all(not any(p[0] > 2 for p in e.patterns()) for e in ring)
 
 
 def test_monosubstituted_ring_gives_2h_2h_1h():
@@ -33,7 +35,7 @@ def test_monosubstituted_ring_gives_2h_2h_1h():
 def test_ethyl_group_is_quartet_and_triplet():
     ex = _by_atom("CCOC(=O)c1ccc(C)cc1")
     assert ex[(0,)].patterns() == {(3,)} and ex[(0,)].n_h == 3
-    assert ex[(1,)].patterns() == {(4,)} and ex[(1,)].n_h == 2
+    assert ex[(1,)].patterns() == {(4,)} and ex[(1,)].n_h == 2   # no stereocentre: the CH2 protons are alike
 
 
 def test_equal_couplings_merge_into_a_sextet():
@@ -56,3 +58,9 @@ def test_printed_letters():
     assert observed_pattern("td") == (3, 2) and observed_pattern("dd") == (2, 2)
     assert observed_pattern("s") == () and observed_pattern("m") is None and observed_pattern("br s") is None
     assert observed_pattern("sept") == (7,)
+
+
+def test_diastereotopic_ch2_next_to_a_stereocentre_may_show_its_geminal_coupling():
+    # 2-amino-3-phenylpropanoic acid's CH2 (own choice): dd (geminal ~14 Hz, vicinal ~7 Hz), common practice
+    ex = _by_atom("NC(Cc1ccccc1)C(=O)O")
+    assert fit_cost(ex[(2,)], "dd", (14.0, 7.5)) == (0, 0)

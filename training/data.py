@@ -175,3 +175,10 @@ def load_peaklists(data_dir: Path = DEFAULT_DATA, report: LoadReport | None = No
             peaks = [(float(p[0]), p[1] or None) for p in s["peaks"]]
             out.append(PeakMol(str(rec["nmrshiftdb2_id"]), rec["smiles"], sk, split_of(sk), peaks, normalise_solvent(s.get("solvent"))))
     return out
+
+
+def literature_part(skel: str) -> str:
+    """'dev' or 'heldout' (half each) for a literature compound, from a hash of its InChIKey skeleton:
+    the dev half fits the ranking settings on printed text, the held-out half only measures."""
+    h = int(hashlib.sha256(f"shiftrank-literature-v1:{skel}".encode()).hexdigest()[:8], 16) % 2
+    return "dev" if h == 0 else "heldout"

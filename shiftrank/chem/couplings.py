@@ -12,13 +12,19 @@ Badertscher, *Structure Determination of Organic Compounds*, 4th ed., 2009, chap
 constants; the ranges below are recalled from such tables, "from memory", and deliberately wide):
 
 * vicinal H–C–C–H, freely rotating: 6–8 Hz (accepted 4.5–9);
-* aromatic ortho 7–9 Hz (6–10; five-membered heteroaromatic rings and pyridine C2–C3 smaller, 1.5–6);
+* aromatic ortho 7–9 Hz (6–10); five-membered heteroaromatic rings 1.5–6; pyridine-type C2–C3 4–7;
 * aromatic meta 1–3 Hz (0.5–3.5), often unresolved;
 * alkene cis ≈ 10 Hz (6–12), trans ≈ 16 Hz (12–18), terminal =CH2 geminal 0–3 Hz;
 * aldehyde H–C(=O)–C–H 1–3 Hz;
 * H–C–F geminal 45–50 Hz; H–C–C–F vicinal 5–30 Hz; aromatic H/F ortho 6–11 Hz, meta 4–8 Hz;
 * H–C–P 10–25 Hz, H–C–X–P 3–25 Hz;
-* couplings to OH/NH protons (4–9 Hz) appear only when exchange is slow (DMSO-d6), so they are optional.
+* couplings to OH/NH protons (4–9 Hz) appear only when exchange is slow (DMSO-d6), so they are optional;
+* geminal H–C–H of a CH2 whose protons differ (next to a stereocentre, in a ring): 10–18 Hz, optional;
+* long-range couplings (para, benzylic, allylic, W) below 1.5 Hz: optional, at most one per signal.
+
+13C lines split by fluorine and phosphorus (common practice, e.g. the same tables; from memory):
+¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho ≈ 21), ³J 2–12
+(aryl meta ≈ 8, CF3–C–C ≈ 4), ⁴J 0.5–4.5 (often unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz.
 
 The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
 constrain nothing; letters that no variant of the expected pattern produces, and J values that no
@@ -36,7 +42,8 @@ J_RANGES = {
     "vicinal": ((4.5, 9.0), False),
     "vicinal-ring": ((2.0, 12.0), False),   # small rings and rigid rings vary widely
     "ortho": ((6.0, 10.0), False),
-    "ortho-5": ((1.5, 6.0), False),          # five-membered heteroaromatic rings, pyridine C2–C3
+    "ortho-5": ((1.5, 6.0), False),          # five-membered heteroaromatic rings
+    "ortho-N": ((3.5, 7.0), False),          # six-membered ring, next to a ring nitrogen (pyridine C2–C3)
     "meta": ((0.5, 3.5), True),
     "cis": ((6.0, 12.5), False),
     "trans": ((12.0, 18.5), False),
@@ -49,6 +56,12 @@ J_RANGES = {
     "HF-ortho": ((6.0, 11.5), False),
     "HF-meta": ((3.5, 8.5), False),
     "HP": ((3.0, 25.0), False),
+    "geminal": ((10.0, 18.5), True),          # inequivalent CH2 protons (diastereotopic, ring)
+    "long-range": ((0.0, 1.5), True),          # para, benzylic, allylic, W couplings
+    # 13C lines split by fluorine or phosphorus, by the number of bonds between them (see carbon_multiplets)
+    "CF1": ((230.0, 300.0), False), "CF2": ((15.0, 45.0), False), "CF3": ((2.0, 12.0), False),
+    "CF4": ((0.5, 4.5), True), "CP1": ((100.0, 200.0), False), "CP2": ((2.0, 30.0), False),
+    "CP3": ((2.0, 30.0), True),
 }
 _LETTERS = {"s": 1, "d": 2, "t": 3, "q": 4, "p": 5, "sext": 6, "sept": 7, "oct": 8, "non": 9}
 MAX_OPTIONAL = 4  # optional groups beyond this are always taken as unresolved (keeps the variants few)
@@ -80,10 +93,16 @@ class ExpectedMultiplet:
     n_h: int                  # protons in the class
     groups: list[CouplingGroup] = field(default_factory=list)
     exchangeable: bool = False
+    _patterns: frozenset | None = field(default=None, repr=False, compare=False)
 
-    def patterns(self) -> set[tuple[int, ...]]:
+    def patterns(self) -> frozenset[tuple[int, ...]]:
         """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
         1s dropped, with optional groups in or out and groups of overlapping J merged or not."""
+        if self._patterns is None:
+            self._patterns = self._all_patterns()
+        return self._patterns
+
+    def _all_patterns(self) -> frozenset[tuple[int, ...]]:
         required = [g for g in self.groups if not g.optional]
         optional = [g for g in self.groups if g.optional][:MAX_OPTIONAL]
         out: set[tuple[int, ...]] = set()
@@ -92,17 +111,20 @@ class ExpectedMultiplet:
                 gs = required + list(extra)
                 out.add(_pattern(gs))
                 out.add(_pattern(_merge_overlapping(gs)))
-        return out
+        return frozenset(out)
 
     def label(self) -> str:
-        """Expected multiplet in letters with its couplings, e.g. ``'td (ortho 6-10 Hz x2, meta 0.5-3.5 Hz x1)'``."""
-        gs = sorted(self.groups, key=lambda g: -g.j_range[1])
-        letters = "".join(_letter(g.n + 1) for g in gs if not g.optional) or "s"
+        """Expected multiplet in letters, optional splittings in brackets, with its couplings, e.g.
+        ``'t(d) (ortho 6-10 Hz x2, meta 0.5-3.5 Hz x1 (may be unresolved))'``."""
+        gs = sorted((g for g in self.groups if g.kind != "long-range"), key=lambda g: -g.j_range[1])
+        letters = "".join(_letter(g.n + 1) if not g.optional else f"({_letter(g.n + 1)})" for g in gs) or "s"
+        if letters.startswith("("):
+            letters = "s" + letters
         opt = [g for g in gs if g.optional]
         text = ", ".join(f"{g.kind}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
                          f"x{g.n}{' (may be unresolved)' if g.optional else ''}" for g in gs)
         if self.exchangeable:
-            letters = "br s or " + letters if letters != "s" else "s or br s"
+            letters = "br s"
         return f"{letters} ({text})" if gs else letters + (" (no coupled neighbours)" if not opt else "")
 
     def j_ranges(self) -> list[tuple[float, float]]:
@@ -213,15 +235,16 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     for a in mol.GetAtoms():
         if a.GetTotalNumHs() > 0:
             classes.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    chiral = bool(Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False))
     out = []
     for atoms in sorted(classes.values(), key=lambda g: g[0]):
         a = mol.GetAtomWithIdx(atoms[0])
         n_h = sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in atoms)
-        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, a, ranks), _exchangeable(a)))
+        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, a, ranks, chiral), _exchangeable(a)))
     return out
 
 
-def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int]) -> list[CouplingGroup]:
+def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int], chiral: bool = False) -> list[CouplingGroup]:
     counts: dict[tuple[str, str, int], int] = {}
     ai = a.GetIdx()
 
@@ -252,7 +275,7 @@ def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int]) -> list[CouplingGroup
                 ring = _ring_of_size(mol, ai, bi)
                 kind = "ortho-5" if ring == 5 else "ortho"
                 if ring == 6 and _next_to_ring_n(mol, ai, bi):
-                    kind = "ortho-5"  # pyridine H2–H3 (4–6 Hz)
+                    kind = "ortho-N"  # pyridine H2–H3 (4–6 Hz)
                 add(kind, nb, "H", ranks[bi])
             elif bond.GetBondType() == Chem.BondType.DOUBLE:
                 if nb == 2:                   # =CH2 partner: one proton cis, one trans
@@ -292,6 +315,11 @@ def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int]) -> list[CouplingGroup
     if a.GetTotalNumHs() == 2 and any(x.GetBondType() == Chem.BondType.DOUBLE and x.GetOtherAtom(a).GetAtomicNum() == 6
                                       for x in a.GetBonds()):
         add("geminal-alkene", 1, "H", ranks[ai])  # the two =CH2 protons are not equivalent in fact
+    elif a.GetTotalNumHs() == 2 and a.GetAtomicNum() == 6 and not a.GetIsAromatic() and (chiral or a.IsInRing()):
+        add("geminal", 1, "H", -2)               # diastereotopic CH2 protons (stereocentre, ring) couple to each other
+    if a.GetAtomicNum() == 6 and (a.GetIsAromatic() or a.GetHybridization() == Chem.HybridizationType.SP2 or
+                                  any(nb.GetIsAromatic() for nb in a.GetNeighbors())):
+        add("long-range", 1, "H", -3)            # one small long-range coupling may be resolved
     if a_exch:
         # exchangeable protons: couplings (if any) are optional; keep them so J values can be explained
         return [CouplingGroup("exchangeable" if p == "H" else k, n, p, key) for (k, p, key), n in counts.items()]
@@ -310,3 +338,31 @@ def _next_to_ring_n(mol: Chem.Mol, i: int, j: int) -> bool:
             if nb.GetAtomicNum() == 7 and nb.GetIsAromatic() and nb.GetIdx() not in (i, j) and _same_ring(mol, k, nb.GetIdx()):
                 return True
     return False
+
+
+_CF_KIND = {("F", 1): "CF1", ("F", 2): "CF2", ("F", 3): "CF3", ("F", 4): "CF4",
+            ("P", 1): "CP1", ("P", 2): "CP2", ("P", 3): "CP3"}
+
+
+def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
+    """Expected C–F / C–P splitting of every carbon class (one to four bonds from F, one to three from P),
+    in the order of ``classes`` (objects with ``atoms``); a class far from F and P is a singlet."""
+    if ranks is None:
+        ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+    hetero = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() in (9, 15)]
+    out = []
+    if not hetero:
+        return [ExpectedMultiplet(list(c.atoms), len(c.atoms)) for c in classes]
+    dist = Chem.GetDistanceMatrix(mol)
+    for c in classes:
+        a = c.atoms[0]
+        counts: dict[tuple[str, int], int] = {}
+        for x in hetero:
+            d = int(dist[a, x])
+            el = mol.GetAtomWithIdx(x).GetSymbol()
+            kind = _CF_KIND.get((el, d))
+            if kind:
+                counts[(kind, ranks[x])] = counts.get((kind, ranks[x]), 0) + 1
+        groups = [CouplingGroup(k, n, "F" if k.startswith("CF") else "P", key) for (k, key), n in counts.items()]
+        out.append(ExpectedMultiplet(list(c.atoms), len(c.atoms), groups))
+    return out

@@ -120,3 +120,76 @@ def ion_mz(counts: Counter | dict, adduct: str) -> float:
     if adduct == "M+Na":
         return m + monoisotopic_mass("Na") - _ELECTRON
     raise InputError(f"adduct '{adduct}': use M+, M+H or M+Na")
+
+
+#: a trailing charge: '-', '+', '+2', '(2+)', or ' 2+' after a space (without a space the digits are the last count)
+_CHARGE = re.compile(r"^\[?(?P<body>[^\]\[]*?)\]?(?P<charge>\s*[+-]\d*|\s*\(\s*\d*[+-]\d*\s*\)|\s+\d+[+-])\s*$")
+_PART_SEP = re.compile(r"\s*(?:·|•|\u22c5|\*|\.|\s\+\s|;|,)\s*")
+
+
+def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
+    """The formula of a sample as chemists write it: element counts of the organic parent, its charge,
+    and notes on what was done.
+
+    A trailing charge (``C24H30N7O3-``, ``[C5H6N]+``, ``C8H10NO2(+)``) is removed and returned; a
+    salt or solvate written with a separator (``C17H19NO3·HCl``, ``C6H12O6 . H2O``,
+    ``C10H14N2 * 2 HCl``) is reduced to its largest carbon-containing part.
+
+    >>> c, q, notes = sample_formula("C17H19NO3·HCl")
+    >>> hill(c), q, len(notes)
+    ('C17H19NO3', 0, 1)
+    >>> hill(sample_formula("C24H30N7O3-")[0]), sample_formula("C24H30N7O3-")[1]
+    ('C24H30N7O3', -1)
+    """
+    if not isinstance(text, str):
+        raise InputError(f"formula: expected text, got {type(text).__name__}")
+    s = text.strip()
+    notes: list[str] = []
+    parts = [p for p in _PART_SEP.split(s) if p.strip()]
+    if len(parts) > 1:
+        parsed = []
+        for p in parts:
+            p2 = re.sub(r"^\d+\s*", "", p.strip())  # '2 HCl', '3H2O'
+            try:
+                parsed.append((p, *_one_part(p2)))
+            except InputError:
+                raise InputError(f"formula '{text}': cannot read the part '{p}'") from None
+        organic = [x for x in parsed if x[1].get("C", 0) > 0]
+        if not organic:
+            raise InputError(f"formula '{text}': no part contains carbon")
+        main = max(organic, key=lambda x: (x[1].get("C", 0), sum(x[1].values())))
+        dropped = [x[0] for x in parsed if x is not main]
+        notes.append(f"formula '{text}': compared on its organic part {hill(main[1])}"
+                     f"{' (charge ' + format(main[2], '+d') + ')' if main[2] else ''}; set aside: {', '.join(dropped)}")
+        return main[1], main[2], notes
+    counts, charge = _one_part(s)
+    if charge:
+        notes.append(f"formula '{text}' carries a charge ({charge:+d}): compared on its elements, allowing "
+                     f"{abs(charge)} H more or fewer for the neutral form")
+    return counts, charge, notes
+
+
+def _one_part(s: str) -> tuple[Counter, int]:
+    m = _CHARGE.match(s)
+    charge = 0
+    if m and re.search(r"[A-Z]", m.group("body")):
+        q = m.group("charge").strip("() ")
+        sign = -1 if "-" in q else 1
+        digits = q.replace("+", "").replace("-", "")
+        charge = sign * (int(digits) if digits else 1)
+        s = m.group("body")
+    return parse_formula(s.strip("[] ")), charge
+
+
+def formula_matches(candidate: dict, sample: Counter | dict, charge: int = 0) -> bool:
+    """True when a candidate's element counts equal the sample's, allowing |charge| H of difference
+    (protonation state) when the sample formula was given with a charge."""
+    a = {k: v for k, v in candidate.items() if v}
+    b = {k: v for k, v in dict(sample).items() if v}
+    if a == b:
+        return True
+    if not charge:
+        return False
+    if {k: v for k, v in a.items() if k != "H"} != {k: v for k, v in b.items() if k != "H"}:
+        return False
+    return abs(a.get("H", 0) - b.get("H", 0)) <= abs(charge)

@@ -3,7 +3,9 @@
 What a practitioner does by hand before trusting any ranking:
 
 * count 13C signals by type (C, CH, CH2, CH3) and the H they carry;
-* normalise 1H integrals to the best small-integer ratio;
+* normalise 1H integrals to the best small-integer ratio, count protons by region and read the
+  patterns a practitioner reads first (two 2H doublets in the aromatic region: a para-disubstituted
+  ring; a 3H triplet with a 2H quartet: an ethyl group);
 * compare with the formula: which pieces must be duplicated by symmetry (formula has more C/H
   than the signals account for) or which peaks are extra (impurity, solvent, rotamers);
 * DBE from the formula and what it suggests;
@@ -96,10 +98,10 @@ class MassCheck:
 class Inventory:
     """The arithmetic a practitioner does before looking at candidates."""
 
-    signals_by_type: dict
-    unknown_type_signals: int
-    carbons_observed: int
-    h_on_carbon_observed: int
+    signals_by_type: dict = field(default_factory=dict)
+    unknown_type_signals: int = 0
+    carbons_observed: int = 0
+    h_on_carbon_observed: int = 0
     h_ratio: list[int] | None = None
     h_total_from_integrals: int | None = None
     formula: str | None = None
@@ -110,15 +112,24 @@ class Inventory:
     regions: list[tuple[float, str | None, str]] = field(default_factory=list)
     mass_checks: list[MassCheck] = field(default_factory=list)
 
+    has_13c: bool = True
+    h_regions: list[tuple[str, int]] = field(default_factory=list)   # (region, protons) from 1H integrals
+    h_patterns: list[str] = field(default_factory=list)              # first-order patterns read from 1H
+
     def lines(self) -> list[str]:
         out = []
-        kinds = ", ".join(f"{self.signals_by_type[k]} {k}" for k in ORDER if self.signals_by_type.get(k))
-        if self.unknown_type_signals:
-            kinds += f", {self.unknown_type_signals} of unknown type"
-        out.append(f"13C signals: {kinds}; {self.carbons_observed} carbons, {self.h_on_carbon_observed} H on carbon")
+        if self.has_13c:
+            kinds = ", ".join(f"{self.signals_by_type[k]} {k}" for k in ORDER if self.signals_by_type.get(k))
+            if self.unknown_type_signals:
+                kinds += f", {self.unknown_type_signals} of unknown type"
+            out.append(f"13C signals: {kinds}; {self.carbons_observed} carbons, {self.h_on_carbon_observed} H on carbon")
         if self.h_ratio:
             out.append(f"1H integrals as small integers: {':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
-        out.append(f"tentative piece count: {self.tentative}")
+        if self.h_regions:
+            out.append("1H by region: " + ", ".join(f"{n} H {r}" for r, n in self.h_regions if n))
+        out.extend(f"1H pattern: {x}" for x in self.h_patterns)
+        if self.has_13c:
+            out.append(f"tentative piece count: {self.tentative}")
         out.extend(f"inference: {i}" for i in self.inferences)
         out.extend(self.findings)
         for m in self.mass_checks:
@@ -150,9 +161,13 @@ def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> lis
     return [(pieces, h) for h, (_, pieces) in ordered[:limit]]
 
 
-def take_inventory(c13: PeakList, h1: PeakList | None = None, formula: str | None = None,
+def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: str | None = None,
                    mz: float | None = None, mz_tolerance_ppm: float = 5.0) -> Inventory:
-    """Inventory of a 13C list (and optional 1H list with integrals) against the sample history."""
+    """Inventory of a 13C list and/or a 1H list with integrals against the sample history."""
+    if c13 is None and h1 is None:
+        raise InputError("inventory: give a 13C peak list, a 1H peak list or both")
+    if c13 is None:
+        return _proton_only(h1, formula, mz, mz_tolerance_ppm)
     peaks = c13.sample_peaks()
     if not peaks:
         raise InputError(f"{c13.source}: no sample peaks left after setting aside solvent signals")
@@ -182,10 +197,7 @@ def take_inventory(c13: PeakList, h1: PeakList | None = None, formula: str | Non
         " — H on heteroatoms (OH, NH) not counted"
 
     if h1 is not None:
-        ints = [p.intensity for p in h1.sample_peaks() if p.intensity is not None]
-        if ints and len(ints) == len(h1.sample_peaks()):
-            inv.h_ratio = integer_ratio(ints)
-            inv.h_total_from_integrals = sum(inv.h_ratio)
+        _read_protons(inv, h1)
 
     if formula:
         fc = parse_formula(formula)
@@ -244,6 +256,91 @@ def take_inventory(c13: PeakList, h1: PeakList | None = None, formula: str | Non
             else:
                 inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}, formula has {nH} H "
                                     f"(ratio {Fraction(nH, inv.h_total_from_integrals)}): exchange-broadened or hidden signals?")
+        if mz is not None:
+            for adduct in ("M+", "M+H", "M+Na"):
+                exp = ion_mz(fc, adduct)
+                err = (mz - exp) / exp * 1e6
+                label = {"M+": "[M]+", "M+H": "[M+H]+", "M+Na": "[M+Na]+"}[adduct]
+                inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+    elif mz is not None:
+        raise InputError("mass check: a measured m/z needs a formula to compare with")
+    return inv
+
+
+#: 1H regions (common practice ranges; boundaries are soft).
+H_REGIONS = [(9.0, 16.1, "above 9 ppm (CHO, COOH, NH/OH of amides, phenols, heteroaromatic CH)"),
+             (6.5, 9.0, "aromatic/heteroaromatic 6.5-9 ppm"), (4.5, 6.5, "alkene or O-CH-O/N-CH 4.5-6.5 ppm"),
+             (2.8, 4.5, "on C next to O/N or halogen 2.8-4.5 ppm"), (1.6, 2.8, "allylic/benzylic/alpha to C=O 1.6-2.8 ppm"),
+             (-2.1, 1.6, "alkyl below 1.6 ppm")]
+
+
+def _read_protons(inv: Inventory, h1: PeakList) -> None:
+    """Integer integrals, protons per region and the first-order patterns of a 1H list."""
+    sample = h1.sample_peaks()
+    ints = [p.intensity for p in sample if p.intensity is not None and p.intensity > 0]
+    if not ints or len(ints) != len(sample):
+        if sample:
+            inv.findings.append(f"1H: {len(sample)} signals; integrals missing for {len(sample) - len(ints)}, so no proton count")
+        return
+    inv.h_ratio = integer_ratio(ints, max_multiplier=8)
+    inv.h_total_from_integrals = sum(inv.h_ratio)
+    regions = []
+    for lo, hi, name in H_REGIONS:
+        regions.append((name, sum(n for p, n in zip(sample, inv.h_ratio) if lo <= p.shift < hi)))
+    inv.h_regions = regions
+    arom = [(p, n) for p, n in zip(sample, inv.h_ratio) if 6.5 <= p.shift < 8.6]
+    doublets_2h = [p for p, n in arom if n == 2 and p.multiplicity == "d" and (not p.j or any(6 <= j <= 10 for j in p.j))]
+    if len(arom) == 2 and len(doublets_2h) == 2:
+        inv.h_patterns.append("two 2H doublets in the aromatic region with an ortho J: a para-disubstituted benzene ring "
+                              "(AA'BB'; common practice)")
+    elif len(doublets_2h) >= 2:
+        inv.h_patterns.append(f"{len(doublets_2h)} aromatic 2H doublets: para-disubstituted ring(s) likely (common practice)")
+    if sum(n for _, n in arom) == 5 and len(arom) <= 3:
+        inv.h_patterns.append("5 aromatic H in at most three signals: a monosubstituted benzene ring is likely (common practice)")
+    trip3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "t" and p.shift < 1.6]
+    quart2 = [p for p, n in zip(sample, inv.h_ratio) if n == 2 and p.multiplicity == "q"]
+    if trip3 and quart2:
+        inv.h_patterns.append(f"a 3H triplet ({trip3[0].shift:g}) and a 2H quartet ({quart2[0].shift:g}): an ethyl group "
+                              "(common practice)" + (", on O (quartet above 3.5 ppm)" if quart2[0].shift > 3.5 else ""))
+    singlets3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "s"]
+    for p in singlets3:
+        where = "OCH3" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3 else "CH3 on a quaternary carbon"
+        inv.h_patterns.append(f"3H singlet at {p.shift:g}: an isolated methyl ({where}; common practice)")
+
+
+def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_tolerance_ppm: float) -> Inventory:
+    inv = Inventory(has_13c=False)
+    if not h1.sample_peaks():
+        raise InputError(f"{h1.source}: no sample peaks left after setting aside solvent signals")
+    _read_protons(inv, h1)
+    if formula:
+        fc = parse_formula(formula)
+        inv.formula = hill(fc)
+        inv.dbe = dbe(fc)
+        note = dbe_note(inv.dbe)
+        if note:
+            inv.findings.append(f"note: {note}")
+        nH = fc.get("H", 0)
+        if inv.dbe >= 4:
+            inv.findings.append(f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); "
+                                f"{sum(1 for p in h1.sample_peaks() if p.shift > 6.5)} 1H signals above 6.5 ppm")
+        else:
+            inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
+        if inv.h_total_from_integrals:
+            tot = inv.h_total_from_integrals
+            n_xh_max = fc.get("O", 0) + fc.get("N", 0) * 2 + fc.get("S", 0)
+            if nH == tot:
+                inv.findings.append(f"1H integrals sum to the formula's {nH} H")
+            elif nH % tot == 0:
+                f = nH // tot
+                inv.findings.append(f"1H integrals sum to {tot}; the formula has {nH} H: scale ×{f} "
+                                    f"({':'.join(str(x * f) for x in inv.h_ratio)}), a hint of {f}-fold symmetry")
+            elif 0 < nH - tot <= n_xh_max:
+                inv.findings.append(f"1H integrals sum to {tot}, the formula has {nH} H: {nH - tot} H not seen, "
+                                    "likely OH/NH exchanging with the solvent or its water")
+            else:
+                inv.findings.append(f"1H integrals sum to {tot}, formula has {nH} H (ratio {Fraction(nH, tot)}): "
+                                    "overlapped, exchange-broadened or extra signals?")
         if mz is not None:
             for adduct in ("M+", "M+H", "M+Na"):
                 exp = ion_mz(fc, adduct)

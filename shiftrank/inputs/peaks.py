@@ -59,6 +59,7 @@ class PeakList:
     peaks: list[Peak]
     source: str = "input"
     notes: list[str] = field(default_factory=list)
+    field_mhz: float | None = None    # observation frequency of this nucleus, when known (printed text)
 
     @property
     def shifts(self) -> list[float]:
@@ -141,7 +142,7 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
     rlo, rhi = RANGES[nucleus]
     for v in (s, lo, hi):
         if v is not None and not rlo <= v <= rhi:
-            raise InputError(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm")
+            raise OutOfRange(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm")
     if nucleus == "13C":
         m = normalise_multiplicity(mult, where)
     else:
@@ -162,6 +163,7 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
 
 
 def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
+    """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H)."""
     out = []
     for lineno, raw in enumerate(text.splitlines(), 1):
         line = raw.split("#", 1)[0].strip()
@@ -172,16 +174,28 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
         if not toks:
             raise InputError(f"{where}: no shift value in '{line}'")
         shift, rest = toks[0], toks[1:]
-        nums, words = [], []
+        rng = None
+        if nucleus == "1H":
+            m = re.fullmatch(r"([+-]?\d+(?:\.\d+)?)[-–−]([+-]?\d+(?:\.\d+)?)", shift.replace("–", "-"))
+            if m:
+                rng, shift = [m.group(1), m.group(2)], None
+        nums, words, after = [], [], []
         for t in rest:
             try:
                 float(t)
-                nums.append(t)
+                (after if words else nums).append(t)
             except ValueError:
                 words.append(t)
-        if len(nums) > 1 or len(words) > 1:
+        if nucleus == "1H":
+            if len(nums) > 1 or len(words) > 1:
+                raise InputError(f"{where}: expected 'shift-or-range [integral] [multiplicity] [J values]', got '{line}'")
+            out.append(_make_peak(shift, words[0] if words else None, nums[0] if nums else None, where, nucleus, lineno,
+                                  rng, after or None))
+            continue
+        if len(nums) + len(after) > 1 or len(words) > 1:
             raise InputError(f"{where}: expected 'shift [intensity] [multiplicity]', got '{line}'")
-        out.append(_make_peak(shift, words[0] if words else None, nums[0] if nums else None, where, nucleus, lineno))
+        num = (nums + after)[0] if nums + after else None
+        out.append(_make_peak(shift, words[0] if words else None, num, where, nucleus, lineno))
     return out
 
 
@@ -226,24 +240,51 @@ def _from_json(text: str, src: str, nucleus: str) -> list[Peak]:
     return peaks_from_records(data, src, nucleus)
 
 
-def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C") -> list[Peak]:
-    """Peaks from a list of numbers or of objects ``{"shift", "multiplicity", "intensity"}``."""
-    out = []
+class OutOfRange(InputError):
+    """A shift outside the nucleus's range (a typo, usually); lenient readers set it aside."""
+
+
+#: Lenient readers set aside out-of-range values (typos) only while they are this share of the list at most.
+MAX_OUT_OF_RANGE = 0.2
+
+
+def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C", notes: list[str] | None = None) -> list[Peak]:
+    """Peaks from a list of numbers or of objects ``{"shift", "multiplicity", "intensity"}`` (1H also
+    ``"integral"``, ``"j"`` and ``"range": [low, high]``).
+
+    With a ``notes`` list, a value outside the nucleus's range (a typo such as 1501 for 150.1) is set
+    aside with a note instead of failing the whole list, as long as such values are few.
+    """
+    if not isinstance(data, list):
+        raise InputError(f"{src}: expected a list of peaks, got {type(data).__name__}")
+    out, dropped = [], []
     for i, item in enumerate(data):
         where = f"{src} peak {i + 1}"
-        if isinstance(item, dict):
-            if "shift" not in item and not (nucleus == "1H" and "range" in item):
-                raise InputError(f"{where}: object has no 'shift' field")
-            inten = item.get("intensity", item.get("integral"))
-            out.append(_make_peak(item.get("shift"), item.get("multiplicity"), inten, where, nucleus, None,
-                                  item.get("range"), item.get("j")))
-        elif isinstance(item, (int, float)) and not isinstance(item, bool):
-            out.append(_make_peak(item, None, None, where, nucleus, None))
-        elif isinstance(item, (list, tuple)) and item:
-            out.append(_make_peak(item[0], item[1] if len(item) > 1 else None, None, where, nucleus, None))
-        else:
-            raise InputError(f"{where}: expected a number or an object with 'shift', got {json.dumps(item)[:40]}")
+        try:
+            out.append(_record_peak(item, where, nucleus))
+        except OutOfRange as exc:
+            if notes is None:
+                raise
+            dropped.append(str(exc))
+    if dropped:
+        if len(dropped) > MAX_OUT_OF_RANGE * len(data) or not out:
+            raise InputError(f"{src}: {len(dropped)} of {len(data)} shifts lie outside the {nucleus} range ({dropped[0]})")
+        notes.extend(f"{d}: set aside" for d in dropped)
     return out
+
+
+def _record_peak(item, where: str, nucleus: str) -> Peak:
+    if isinstance(item, dict):
+        if "shift" not in item and not (nucleus == "1H" and "range" in item):
+            raise InputError(f"{where}: object has no 'shift' field")
+        inten = item.get("intensity", item.get("integral"))
+        return _make_peak(item.get("shift"), item.get("multiplicity"), inten, where, nucleus, None,
+                          item.get("range"), item.get("j"))
+    if isinstance(item, (int, float)) and not isinstance(item, bool):
+        return _make_peak(item, None, None, where, nucleus, None)
+    if isinstance(item, (list, tuple)) and item:
+        return _make_peak(item[0], item[1] if len(item) > 1 else None, None, where, nucleus, None)
+    raise InputError(f"{where}: expected a number or an object with 'shift', got {json.dumps(item, default=str)[:40]}")
 
 
 def merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[Peak]:

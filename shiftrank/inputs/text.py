@@ -50,7 +50,7 @@ _SHIFT_ITEM = re.compile(
 _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
 _CARBONS = re.compile(r"^(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz)[A-Za-z])"   # a J value: not the '1' of '1H'
-_JVAL = re.compile(rf"(?<![A-Za-z])J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
 
@@ -135,7 +135,8 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
     else:
         merged = sorted(peaks, key=lambda q: -q.shift)
         merged.reverse()
-    pl = PeakList(sec.nucleus, merged, source, notes)
+    pl = PeakList(sec.nucleus, merged, source, notes,
+                  sec.carbon_mhz if sec.nucleus == "13C" else sec.field_mhz)
     return flag_solvent(pl, solvent or sec.solvent)
 
 

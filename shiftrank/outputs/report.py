@@ -1,8 +1,9 @@
-"""A self-contained HTML report (no network): ranking, structures, stick spectra, inventory.
+"""A self-contained HTML report (no network): ranking, structures, spectra per nucleus, inventory.
 
-Structure drawings come from RDKit (SVG) with every carbon labelled by its
-deviation (observed − predicted, ppm) and tinted on a four-step scale of
-|deviation| / σ; stick spectra are drawn with matplotlib and embedded as SVG.
+Structure drawings come from RDKit (SVG) with every carbon (13C) or every proton-bearing atom (1H)
+labelled by its deviation (observed − predicted, ppm) and tinted on a four-step scale of
+|deviation| / σ; spectra are drawn with matplotlib and embedded as SVG: 13C as sticks, 1H as
+multiplet bars whose width is the printed range and whose height is the integral.
 """
 from __future__ import annotations
 
@@ -36,6 +37,7 @@ th{background:#f4f4f4}.num{text-align:right;font-variant-numeric:tabular-nums}
 .bar span{display:block;height:12px;background:#1f7a8c}
 .card{border:1px solid #ddd;border-radius:6px;padding:10px;margin:14px 0}
 .cardrow{display:flex;flex-wrap:wrap;gap:12px;align-items:flex-start}
+.nuc{font-weight:600;color:#1f7a8c;margin-top:10px}
 .flag{color:#a33}.err{color:#a33;font-weight:bold}.note{color:#555;font-size:.9em}
 .key span{display:inline-block;width:12px;height:12px;margin:0 4px 0 12px;vertical-align:middle}
 .caution{margin-top:30px;padding:10px;background:#fff6e5;border:1px solid #e6aa68}
@@ -56,17 +58,23 @@ def _hex_rgb(h: str) -> tuple[float, float, float]:
     return tuple(int(h[i:i + 2], 16) / 255 for i in (1, 3, 5))
 
 
-def structure_svg(cand: CandidateResult, size=(340, 260)) -> str:
-    """RDKit drawing with each carbon labelled by its deviation and tinted by |z|."""
+def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) -> str:
+    """RDKit drawing with each observed atom labelled by its deviation and tinted by |z| (worst pairing)."""
+    res = cand.nuclei.get(nucleus)
     mol = Chem.MolFromSmiles(cand.smiles)
-    if mol is None:
+    if mol is None or res is None:
         return ""
+    worst: dict[int, tuple] = {}
+    for p in res.assignment.pairings:
+        for a in res.classes[p.cls].atoms:
+            key = abs(p.z) if p.z is not None else -1.0
+            if a not in worst or key > worst[a][0]:
+                worst[a] = (key, p)
     colours, notes = {}, {}
-    for p in cand.assignment.pairings:
-        cls = cand.classes[p.cls]
-        for a in cls.atoms:
-            colours[a] = _hex_rgb(tint(p.z))
-            notes[a] = "n/o" if p.deviation is None else f"{p.deviation:+.1f}"
+    nd = 1 if nucleus == "13C" else 2
+    for a, (_, p) in worst.items():
+        colours[a] = _hex_rgb(tint(p.z))
+        notes[a] = "n/o" if p.deviation is None else f"{p.deviation:+.{nd}f}"
     for a, text in notes.items():
         mol.GetAtomWithIdx(a).SetProp("atomNote", text)
     d = rdMolDraw2D.MolDraw2DSVG(*size)
@@ -80,31 +88,40 @@ def structure_svg(cand: CandidateResult, size=(340, 260)) -> str:
     return svg[svg.find("<svg"):]
 
 
-def spectrum_svg(result: RankResult, cand: CandidateResult) -> str:
-    """Stick plot: observed peaks up, the candidate's predicted signals down, assignment lines between."""
+def spectrum_svg(result: RankResult, cand: CandidateResult, nucleus: str = "13C") -> str:
+    """Observed peaks up (13C sticks, 1H multiplet bars), the candidate's predicted signals down,
+    assignment lines between; unexplained peaks crossed, unobserved classes circled."""
+    res = cand.nuclei[nucleus]
+    peaks = res.peaks
     fig, ax = plt.subplots(figsize=(6.4, 2.6))
-    peaks = result.peaks
-    matched = {p.peak for p in cand.assignment.pairings if p.peak is not None}
-    gap = 0.18  # observed sticks stand above +gap, predicted hang below −gap; assignment lines bridge the gap
+    matched = {p.peak for p in res.assignment.pairings if p.peak is not None}
+    gap = 0.18  # observed marks stand above +gap, predicted hang below −gap; assignment lines bridge the gap
+    top = max([p.capacity or 1 for p in peaks] + [1]) if nucleus == "1H" else 1
+    ctop = max([c.units for c in res.classes] + [1]) if nucleus == "1H" else 1
     for j, pk in enumerate(peaks):
         col = "#bbbbbb" if pk.solvent else ("#222222" if j in matched else "#c1443c")
-        ax.vlines(pk.shift, gap, 1, color=col, lw=1.6)
+        h = gap + (1 - gap) * ((pk.capacity or 1) / top if nucleus == "1H" else 1)
+        if pk.lo is not None and pk.hi is not None and pk.hi > pk.lo:
+            ax.fill_between([pk.lo, pk.hi], gap, h, color=col, alpha=0.45, lw=0)
+        ax.vlines(pk.shift, gap, h, color=col, lw=1.6)
         if j not in matched:
-            ax.plot(pk.shift, 1.07, marker="x", color=col, ms=6)
-    for p in cand.assignment.pairings:
-        c = cand.classes[p.cls]
+            ax.plot(pk.shift, h + 0.07, marker="x", color=col, ms=6)
+    for p in res.assignment.pairings:
+        c = res.classes[p.cls]
         col = tint(p.z)
-        ax.vlines(c.shift, -1, -gap, color=col, lw=1.6)
+        h = gap + (1 - gap) * (c.units / ctop if nucleus == "1H" else 1)
+        ax.vlines(c.shift, -h, -gap, color=col, lw=1.6)
         if p.peak is not None:
             ax.plot([c.shift, peaks[p.peak].shift], [-gap, gap], color=col, lw=0.9)
         else:
-            ax.plot(c.shift, -1.07, marker="o", mfc="none", color=UNOBSERVED, ms=5)
-    lo = min([p.shift for p in peaks] + [c.shift for c in cand.classes]) - 8
-    hi = max([p.shift for p in peaks] + [c.shift for c in cand.classes]) + 8
+            ax.plot(c.shift, -h - 0.07, marker="o", mfc="none", color=UNOBSERVED, ms=5)
+    pad = 8 if nucleus == "13C" else 0.4
+    lo = min([p.shift for p in peaks] + [c.shift for c in res.classes]) - pad
+    hi = max([p.shift for p in peaks] + [c.shift for c in res.classes]) + pad
     ax.set_xlim(hi, lo)
     ax.set_ylim(-1.2, 1.2)
     ax.set_yticks([-0.5, 0.5], ["predicted", "observed"])
-    ax.set_xlabel("δ 13C (ppm)")
+    ax.set_xlabel(f"δ {nucleus} (ppm)")
     for s in ("top", "right", "left"):
         ax.spines[s].set_visible(False)
     ax.tick_params(axis="y", length=0)
@@ -120,67 +137,93 @@ def _fmt(x, nd=2, dash="–"):
     return dash if x is None else f"{x:.{nd}f}"
 
 
+def _observed_text(pk) -> str:
+    s = f"{pk.lo:.2f}–{pk.hi:.2f}" if pk.lo is not None and pk.hi is not None and pk.hi > pk.lo else f"{pk.shift:.2f}"
+    bits = [b for b in (pk.multiplicity, ", ".join(f"{j:g}" for j in pk.j) + " Hz" if pk.j else None,
+                        f"{pk.capacity}H" if pk.capacity else None) if b]
+    return s + (f" ({'; '.join(bits)})" if bits else "")
+
+
+def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no: int, with_plots: bool) -> str:
+    e = html.escape
+    res = c.nuclei[nucleus]
+    rows = []
+    for row in res.assignment_table():
+        obs = "" if row["peak"] is None else e(_observed_text(res.peaks[row["peak"]]))
+        sw = tint(row["z"])
+        what = e(row["multiplicity"])
+        if nucleus == "1H":
+            n = row.get("protons_on_peak") or row.get("protons")
+            what = f"{n}H, expected {what}" if n else f"expected {what}"
+        rows.append(f"<tr><td><span style='color:{sw}'>■</span> {','.join(map(str, row['atoms']))}</td><td>{what}</td>"
+                    f"<td class=num>{row['predicted']:.2f} ± {row['sigma']:.2f}</td><td class=num>{obs}</td>"
+                    f"<td class=num>{_fmt(row['deviation'])}</td><td>{e(', '.join(row['notes']))}</td></tr>")
+    for j in res.assignment.unmatched_peaks:
+        pk = res.peaks[j]
+        rows.append(f"<tr><td>–</td><td></td><td></td><td class=num>{e(_observed_text(pk))}</td><td></td>"
+                    f"<td>{'residual solvent' if pk.solvent else 'not explained by this candidate'}</td></tr>")
+    head = "CHn" if nucleus == "13C" else "protons, expected multiplet"
+    table = (f"<table><tr><th>atoms</th><th>{head}</th><th>predicted ± σ</th><th>observed</th><th>deviation</th><th>note</th></tr>"
+             + "".join(rows) + "</table>")
+    pics = ""
+    if with_plots:
+        pics = f"<div class='cardrow'><div>{structure_svg(c, nucleus)}</div><div>{spectrum_svg(result, c, nucleus)}</div></div>"
+    summary = (f"{nucleus}: {len(res.classes)} expected signals, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
+               f"{res.beyond_3sigma} beyond 3σ · cost {res.cost:.1f} nats")
+    return (f"<div class='nuc'>{e(summary)}</div>{pics}<details{' open' if rank_no == 1 else ''}>"
+            f"<summary>{nucleus} assignment table</summary>{table}</details>")
+
+
 def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_plots: bool) -> str:
     e = html.escape
     title = f"#{rank_no} {e(c.name) + ' — ' if c.name else ''}<code>{e(c.smiles)}</code>"
     if c.error:
         return f'<div class="card"><b>{title}</b><p class="err">error: {e(c.error)}</p></div>'
     facts = c.facts
-    head = (f"<b>{title}</b><br><span class='note'>p = {c.probability:.3f} · {facts.formula} · DBE {facts.dbe:g} · "
-            f"{len(c.classes)} expected signals · MAE {_fmt(c.mae)} ppm · max {_fmt(c.max_abs_deviation, 1)} ppm · "
-            f"{c.beyond_3sigma} beyond 3σ</span>")
+    head = (f"<b>{title}</b><br><span class='note'>p = {c.probability:.3f} · {facts.formula} · DBE {facts.dbe:g}</span>")
     flags = "".join(f"<div class='flag'>⚑ {e(f)}</div>" for f in c.flags)
-    rows = []
-    for row in c.assignment_table():
-        obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:.2f}"
-        sw = tint(row["z"])
-        rows.append(f"<tr><td><span style='color:{sw}'>■</span> {','.join(map(str, row['atoms']))}</td><td>{row['multiplicity']}</td>"
-                    f"<td class=num>{row['predicted']:.2f} ± {row['sigma']:.2f}</td><td class=num>{obs}</td>"
-                    f"<td class=num>{_fmt(row['deviation'])}</td><td>{', '.join(row['notes'])}</td></tr>")
-    for j in c.assignment.unmatched_peaks:
-        pk = result.peaks[j]
-        rows.append(f"<tr><td>–</td><td>{pk.multiplicity or ''}</td><td></td><td class=num>{pk.shift:.2f}</td><td></td>"
-                    f"<td>{'residual solvent' if pk.solvent else 'not explained by this candidate'}</td></tr>")
-    table = ("<table><tr><th>atoms</th><th>CHn</th><th>predicted ± σ</th><th>observed</th><th>deviation</th><th>note</th></tr>"
-             + "".join(rows) + "</table>")
-    pics = ""
-    if with_plots:
-        pics = f"<div class='cardrow'><div>{structure_svg(c)}</div><div>{spectrum_svg(result, c)}</div></div>"
-    return f"<div class='card'>{head}{flags}{pics}<details{' open' if rank_no == 1 else ''}><summary>assignment table</summary>{table}</details></div>"
+    blocks = "".join(_nucleus_block(result, c, n, rank_no, with_plots) for n in result.nuclei if n in c.nuclei)
+    return f"<div class='card'>{head}{flags}{blocks}</div>"
 
 
-def _sample_section(k: int, result: RankResult, pl=None, history=None, inventory=None) -> str:
+def _sample_section(k: int, result: RankResult, lists=None, history=None, inventory=None) -> str:
     e = html.escape
     parts = [f"<h2 id='sample-{k}'>Sample {e(str(result.id or k))}</h2>"]
     hist = history or {}
     bits = [f"{n}: {e(str(v))}" for n, v in (("formula", hist.get("formula")), ("mass", hist.get("mass")),
                                                ("solvent", hist.get("solvent"))) if v]
-    n_obs = sum(1 for p in result.peaks if not p.solvent)
-    bits.append(f"{n_obs} 13C signals" + (f" (+{len(result.peaks) - n_obs} solvent)" if len(result.peaks) > n_obs else ""))
+    for n in result.nuclei:
+        ps = result.peaks[n]
+        n_obs = sum(1 for p in ps if not p.solvent)
+        bits.append(f"{n_obs} {n} signals" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")
     rows = []
+    nuc_heads = "".join(f"<th>MAE {n} (ppm)</th>" for n in result.nuclei)
     for i, c in enumerate(result.candidates, 1):
         label = e(c.name) if c.name else f"<code>{e(c.smiles)}</code>"
         if c.error:
-            rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan=4 class=err>{e(c.error)}</td></tr>")
+            rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan={3 + len(result.nuclei)} class=err>{e(c.error)}</td></tr>")
             continue
+        maes = "".join(f"<td class=num>{_fmt(c.nuclei[n].mae)}</td>" for n in result.nuclei)
         rows.append(f"<tr><td>{i}</td><td>{label}</td><td><div class='bar'><span style='width:{100 * c.probability:.1f}%'></span></div> "
-                    f"{c.probability:.3f}</td><td class=num>{_fmt(c.mae)}</td><td class=num>{c.beyond_3sigma}</td>"
+                    f"{c.probability:.3f}</td>{maes}<td class=num>{c.beyond_3sigma}</td>"
                     f"<td>{'✓' if c.formula_ok else ('✗' if c.formula_ok is False else '')}</td></tr>")
-    parts.append("<table><tr><th>#</th><th>candidate</th><th>probability</th><th>MAE (ppm)</th><th>&gt;3σ</th>"
+    parts.append(f"<table><tr><th>#</th><th>candidate</th><th>probability</th>{nuc_heads}<th>&gt;3σ</th>"
                  "<th>formula</th></tr>" + "".join(rows) + "</table>")
     if result.notes:
         parts.append("<div class='note'>" + "<br>".join(e(n) for n in result.notes) + "</div>")
     if inventory is not None:
         parts.append("<h3>Inventory and sample-history checks</h3><ul>" + "".join(f"<li>{e(x)}</li>" for x in inventory.lines()) + "</ul>")
-        parts.append("<details><summary>region of each peak (common practice ranges)</summary><table>"
-                     + "".join(f"<tr><td class=num>{s:.2f}</td><td>{m or ''}</td><td>{e(h)}</td></tr>" for s, m, h in inventory.regions)
-                     + "</table></details>")
+        if inventory.regions:
+            parts.append("<details><summary>region of each 13C peak (common practice ranges)</summary><table>"
+                         + "".join(f"<tr><td class=num>{s:.2f}</td><td>{m or ''}</td><td>{e(h)}</td></tr>" for s, m, h in inventory.regions)
+                         + "</table></details>")
     parts.append("<h3>Candidates</h3>")
     key = "".join(f"<span style='background:{col}'></span>{lab}" for _, col, lab in SCALE)
-    parts.append(f"<div class='key note'>carbon tint, |observed − predicted| / σ: {key}<span style='background:{UNOBSERVED}'></span>unobserved"
-                 " · labels on atoms: deviation in ppm · red sticks with × : peaks the candidate does not explain</div>")
+    parts.append(f"<div class='key note'>atom tint, |observed − predicted| / σ: {key}<span style='background:{UNOBSERVED}'></span>unobserved"
+                 " · labels on atoms: deviation in ppm (13C drawings: carbons; 1H drawings: the atoms carrying each proton class)"
+                 " · red marks with × : peaks the candidate does not explain · 1H bars: printed range, height ∝ integral</div>")
     for i, c in enumerate(result.candidates, 1):
         parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error))
     return "\n".join(parts)
@@ -196,8 +239,8 @@ def render_report(results: list[RankResult], peak_lists=None, histories=None, in
     inventories = inventories or [None] * n
     model = results[0].model_version if results else None
     out = [f"<!DOCTYPE html><html lang='en'><head><meta charset='utf-8'><title>{e(title)}</title><style>{CSS}</style></head><body>",
-           f"<h1>{e(title)}</h1><p class='sub'>shiftrank {__version__} · 13C model {e(str(model))} "
-           "(trained on NMRShiftDB2 data) · probabilities are DP4-style, over the candidates given only</p>"]
+           f"<h1>{e(title)}</h1><p class='sub'>shiftrank {__version__} · shift models {e(str(model))} "
+           "(13C and 1H, trained on NMRShiftDB2 data) · probabilities are DP4-style, over the candidates given only</p>"]
     if n > 1:
         rows = []
         for k, r in enumerate(results, 1):
@@ -209,7 +252,7 @@ def render_report(results: list[RankResult], peak_lists=None, histories=None, in
     for k, (r, pl, h, inv) in enumerate(zip(results, peak_lists, histories, inventories), 1):
         out.append(_sample_section(k, r, pl, h, inv))
     out.append(f"<div class='caution'><b>Caution.</b> {e(CAUTION)}</div>")
-    out.append("<p class='note'>Shift model derived from NMRShiftDB2 (Kuhn &amp; Schlörer 2015, Magn. Reson. Chem. 53, 582), "
+    out.append("<p class='note'>Shift models derived from NMRShiftDB2 (Kuhn &amp; Schlörer 2015, Magn. Reson. Chem. 53, 582), "
                "nmrshiftdb2 database licence.</p></body></html>")
     return "\n".join(out)
 
@@ -218,5 +261,9 @@ def write_report(results: list[RankResult], path, peak_lists=None, histories=Non
                  title: str = "shiftrank report") -> Path:
     """Write the report to ``path`` and return it."""
     p = Path(path)
-    p.write_text(render_report(results, peak_lists, histories, inventories, title), encoding="utf-8")
+    try:
+        p.write_text(render_report(results, peak_lists, histories, inventories, title), encoding="utf-8")
+    except OSError as exc:
+        from ..errors import InputError
+        raise InputError(f"{path}: cannot write the report ({exc.strerror or exc})") from None
     return p

@@ -6,35 +6,72 @@ import sys
 from ..score.ranking import CAUTION
 
 
-def print_ranking(result, peaks_src: str, out=sys.stdout) -> None:
-    n_obs = sum(1 for p in result.peaks if not p.solvent)
-    n_solv = len(result.peaks) - n_obs
-    print(f"Peaks: {peaks_src}: {n_obs} signals" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
-    for n in result.notes:
-        print(f"  note: {n}", file=out)
+def _fmt(x, spec: str, width: int) -> str:
+    return f"{x:{spec}}" if x is not None else " " * (width - 1) + "-"
+
+
+def print_ranking(result, peaks_src: str, out=None) -> None:
+    """The ranking of one case: peaks read, one line per candidate with its flags, the verdict, and the
+    carbon-by-carbon (and proton-by-proton) assignment of the best candidate."""
+    out = out or sys.stdout
+    nuclei = result.nuclei
+    for n in nuclei:
+        peaks = result.peaks[n]
+        n_obs = sum(1 for p in peaks if not p.solvent)
+        n_solv = len(peaks) - n_obs
+        print(f"{n} peaks: {peaks_src}: {n_obs} signals" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+    for note in result.notes:
+        print(f"  note: {note}", file=out)
     print(file=out)
-    print(f" {'#':>2}  {'p':>6}  {'MAE':>5} {'max':>5} {'>3σ':>4} {'signals':>8}  candidate", file=out)
+    head = "".join(f" {'MAE ' + n:>9} {'sig.':>6}" for n in nuclei)
+    print(f" {'#':>2}  {'p':>6} {head} {'>3σ':>4}  candidate", file=out)
     for i, c in enumerate(result.candidates, 1):
         label = f"{c.name}  {c.smiles}" if c.name else c.smiles
         if c.error:
-            print(f" {i:>2}  {'-':>6}  {'':>5} {'':>5} {'':>4} {'':>8}  {label}\n       error: {c.error}", file=out)
+            print(f" {i:>2}  {'-':>6} {' ' * len(head)} {'':>4}  {label}\n       error: {c.error}", file=out)
             continue
-        sig = f"{len(c.classes)}/{n_obs}"
-        print(f" {i:>2}  {c.probability:6.3f}  {c.mae:5.2f} {c.max_abs_deviation:5.1f} {c.beyond_3sigma:>4} {sig:>8}  {label}", file=out)
+        cols = ""
+        for n in nuclei:
+            r = c.nuclei[n]
+            cols += f" {_fmt(r.mae, '9.2f', 9)} {len(r.classes):>3}/{r.observed_signals:<2}"
+        print(f" {i:>2}  {c.probability:6.3f} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
         for fl in c.flags:
             print(f"       ! {fl}", file=out)
     print(f"\nVerdict: {result.verdict}", file=out)
     best = result.best
     if not best.error:
-        print(f"\nAssignment for #1 ({best.name or best.smiles}):", file=out)
-        print(f"  {'atoms':<12} {'CHn':<4} {'predicted':>9} {'±σ':>5} {'observed':>9} {'dev':>6}  note", file=out)
-        for row in best.assignment_table():
-            atoms = ",".join(str(a) for a in row["atoms"])
-            obs = "" if row["peak"] is None else f"{result.peaks[row['peak']].shift:9.2f}"
-            dev = "" if row["deviation"] is None else f"{row['deviation']:+6.2f}"
-            print(f"  {atoms:<12} {row['multiplicity']:<4} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>9} {dev:>6}  {', '.join(row['notes'])}", file=out)
-        for j in best.assignment.unmatched_peaks:
-            p = result.peaks[j]
-            why = "solvent" if p.solvent else "unexplained"
-            print(f"  {'-':<12} {p.multiplicity or '':<4} {'':>9} {'':>5} {p.shift:9.2f} {'':>6}  {why}", file=out)
-    print(f"\nModel {result.model_version}. Caution: {CAUTION}", file=out)
+        for n in nuclei:
+            print_assignment(best, n, out)
+    print(f"\nModels {result.model_version}. Caution: {CAUTION}", file=out)
+
+
+def print_assignment(cand, nucleus: str, out=None) -> None:
+    """The assignment table of one candidate for one nucleus."""
+    out = out or sys.stdout
+    r = cand.nuclei[nucleus]
+    what = "carbon" if nucleus == "13C" else "proton class"
+    print(f"\n{nucleus} assignment for {cand.name or cand.smiles}, {what} by {what}:", file=out)
+    kind = "CHn" if nucleus == "13C" else "expected"
+    nd = 2 if nucleus == "13C" else 2
+    print(f"  {'atoms':<12} {kind:<9} {'predicted':>9} {'±σ':>5} {'observed':>13} {'dev':>6}  note", file=out)
+    for row in r.assignment_table():
+        atoms = ",".join(str(a) for a in row["atoms"])
+        if len(atoms) > 12:
+            atoms = atoms[:11] + "…"
+        obs = ""
+        if row["peak"] is not None:
+            pk = r.peaks[row["peak"]]
+            obs = f"{pk.lo:.2f}-{pk.hi:.2f}" if pk.lo is not None and pk.hi != pk.lo else f"{pk.shift:.{nd}f}"
+            if nucleus == "1H" and pk.multiplicity:
+                obs += f" {pk.multiplicity}"
+        dev = "" if row["deviation"] is None else f"{row['deviation']:+6.2f}"
+        mult = row["multiplicity"]
+        if nucleus == "1H":
+            mult = f"{row.get('protons_on_peak') or row.get('protons') or ''}H {mult}"
+        print(f"  {atoms:<12} {mult[:9]:<9} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>13} {dev:>6}  "
+              f"{', '.join(row['notes'])}", file=out)
+    for j in r.assignment.unmatched_peaks:
+        p = r.peaks[j]
+        why = "solvent" if p.solvent else "unexplained"
+        shown = f"{p.lo:.2f}-{p.hi:.2f}" if p.lo is not None and p.hi != p.lo else f"{p.shift:.2f}"
+        print(f"  {'-':<12} {(p.multiplicity or '')[:9]:<9} {'':>9} {'':>5} {shown:>13} {'':>6}  {why}", file=out)

@@ -14,6 +14,7 @@ from rdkit import Chem
 from .environment import MolEnvironments, MolParts, environments_of, mol_parts
 from ..errors import InputError
 from .model_files import default_model
+from ..chem.standardise import standardise
 from ..inputs.molecules import MolRecord, check_organic, to_mol
 from .model import MolPrediction
 from ..inputs.solvents import normalise_solvent
@@ -28,6 +29,18 @@ def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None, nucleus
         return mol_parts(mol, solvent, nucleus)
     except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
         raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
+
+
+def standardised_parts(mol: Chem.Mol, label: str, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
+    """:func:`checked_parts` of the standardised parent of ``mol`` (largest organic fragment, neutralised,
+    isotopes read as elements; :mod:`shiftrank.chem.standardise`), remembering how to map its atoms back
+    to the input's atom order and what was done."""
+    std = standardise(mol, label)
+    parts = checked_parts(std.mol, label, solvent, nucleus)
+    if std.atom_map != list(range(len(std.atom_map))):
+        parts.atom_map = std.atom_map
+    parts.notes = std.notes
+    return parts
 
 
 def environments_isolated(parts: list[MolParts]) -> list[MolEnvironments | None]:
@@ -72,7 +85,7 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None, nucleus: str =
     _check_nucleus(nucleus)
     mol = to_mol(molecule) if isinstance(molecule, str) else _own_copy(molecule)
     label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
-    pred = _predict_parts([checked_parts(mol, label, normalise_solvent(solvent), nucleus)])[0]
+    pred = _predict_parts([standardised_parts(mol, label, normalise_solvent(solvent), nucleus)])[0]
     if pred is None:
         raise InputError(f"{label}: cannot compute atom environments")
     return pred
@@ -100,7 +113,7 @@ def predict_many(molecules: Iterable[str | Chem.Mol], solvent: str | None = None
                 mol, label = _own_copy(molecule), f"input {i}"
             else:
                 raise InputError(f"input {i}: expected a SMILES string or an RDKit molecule, got {type(molecule).__name__}")
-            out.append(checked_parts(mol, label, key, nucleus))
+            out.append(standardised_parts(mol, label, key, nucleus))
         except InputError as exc:
             out.append(exc if str(exc).startswith("input ") else InputError(f"input {i}: {exc}"))
         except Exception as exc:  # noqa: BLE001 - RDKit refusing a molecule is that input's error
@@ -133,7 +146,15 @@ def _predict_parts(parts: list[MolParts]) -> list[MolPrediction | None]:
     with _gc_paused():
         envs = environments_isolated(parts)
         preds = iter(default_model(parts[0].nucleus).predict_envs([e for e in envs if e is not None]))
-        return [None if e is None else next(preds) for e in envs]
+        out = [None if e is None else next(preds) for e in envs]
+    for p, pred in zip(parts, out):
+        if pred is None:
+            continue
+        if p.atom_map is not None:  # keys in the input's own atom order
+            for a in pred.atoms:
+                a.atom = p.atom_map[a.atom]
+        pred.notes = list(p.notes)
+    return out
 
 
 def predict_records(records: Iterable[MolRecord], solvent: str | None = None,
@@ -155,7 +176,7 @@ def predict_records(records: Iterable[MolRecord], solvent: str | None = None,
             out[-1] = (rec, None, rec.error or "unreadable record")
             continue
         try:
-            parts = checked_parts(rec.mol, f"record '{rec.id}'", key, nucleus)
+            parts = standardised_parts(rec.mol, f"record '{rec.id}'", key, nucleus)
         except InputError as exc:
             out[-1] = (rec, None, str(exc))
             continue

@@ -19,7 +19,7 @@ turns a whole batch of those into arrays at once, which keeps prediction fast.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from rdkit import Chem
@@ -73,7 +73,19 @@ PARTNER_NAMES = (["dbl_partner", "dbl_partner_C", "dbl_partner_N", "dbl_partner_
                   "dbl_partner_nH", "dbl_partner_degree", "dbl_partner_q"]
                  + [f"dbl_partner_single_{e}" for e in list(_NB_ELEMENTS) + ["other"]]
                  + ["dbl_partner_nb_aryl", "dbl_partner_nb_acyl", "dbl_partner_nb_triple", "dbl_partner_nb_alkenyl"])
-FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES
+#: Substituent classes on aromatic ring atoms, for the ring-position (substituent-increment) block.
+SUBST_CLASSES = ["alkyl", "CX3", "aryl", "vinyl", "acyl", "sp", "amine", "amide", "nitro", "N-aryl", "OH", "ether",
+                 "O-acyl", "O-", "S", "SO2", "F", "Cl", "Br", "I", "fused", "other"]
+_SC = {c: i for i, c in enumerate(SUBST_CLASSES)}
+RING_POSITIONS = ("ipso", "ortho", "meta", "para")
+#: The substituents of the aromatic ring around a centre by position (ipso/ortho/meta/para), ring
+#: heteroatoms by position, ring size, and whether the ring is the centre's own or that of its
+#: neighbour (a benzylic CH2, an ArCH3): additive substituent increments in the form a tree model
+#: can use (the classic benzene increment tables are built on the same positions, common practice).
+RING_NAMES = ([f"ring_{pos}_{c}" for pos in RING_POSITIONS for c in SUBST_CLASSES]
+              + ["ring_ortho_N", "ring_meta_N", "ring_para_N", "ring_ortho_OS", "ring_meta_OS",
+                 "ring_size5", "ring_size6", "ring_of_neighbour"])
+FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES + RING_NAMES
 #: 1H only: the element carrying the protons (the sphere codes know it too; the boosted model needs it
 #: as a column) and whether they are exchangeable (on N, O or S).
 H_EXTRA_NAMES = ["centre_C", "centre_N", "centre_O", "centre_S", "centre_other", "exchangeable"]
@@ -109,6 +121,9 @@ class MolParts:
     rings: list             # atom index tuples of the smallest set of rings
     solvent_code: int
     nucleus: str = "13C"
+    ringpos: np.ndarray | None = None  # (n_centres, len(RING_NAMES)) ring-position substituent block
+    atom_map: list | None = None       # atom index in the caller's input for each atom here (None: the same)
+    notes: list = field(default_factory=list)  # what standardisation did to the caller's input
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
@@ -164,7 +179,112 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -
         bits = atom_bits[idx][1: MAX_RADIUS + 1]
         codes[row, : len(bits)] = bits
     dist = Chem.GetDistanceMatrix(mol)[centres] if len(centres) else np.zeros((0, n))
-    return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus)
+    ringpos = _ring_positions(mol, atoms, rings, centres)
+    return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos)
+
+
+def _subst_class(x: Chem.Atom, b: Chem.Atom) -> int:
+    """Class (index into SUBST_CLASSES) of the substituent atom ``x`` on ring atom ``b``."""
+    z = x.GetAtomicNum()
+    bonds = x.GetBonds()
+    if z == 6:
+        if x.GetIsAromatic():
+            return _SC["aryl"]
+        dbl_os = any(bd.GetBondType() == Chem.BondType.DOUBLE and bd.GetOtherAtom(x).GetAtomicNum() in (7, 8, 16) for bd in bonds)
+        if dbl_os:
+            return _SC["acyl"]
+        hyb = x.GetHybridization()
+        if hyb == Chem.HybridizationType.SP:
+            return _SC["sp"]
+        if hyb == Chem.HybridizationType.SP2:
+            return _SC["vinyl"]
+        halo = sum(1 for nb in x.GetNeighbors() if nb.GetAtomicNum() in (9, 17))
+        return _SC["CX3"] if halo >= 2 else _SC["alkyl"]
+    if z == 7:
+        if x.GetFormalCharge() > 0 or sum(1 for nb in x.GetNeighbors() if nb.GetAtomicNum() == 8) >= 2:
+            return _SC["nitro"]
+        if x.GetIsAromatic():
+            return _SC["N-aryl"]
+        for nb in x.GetNeighbors():
+            if nb.GetIdx() != b.GetIdx() and any(bd.GetBondType() == Chem.BondType.DOUBLE and
+                                                 bd.GetOtherAtom(nb).GetAtomicNum() in (8, 16) for bd in nb.GetBonds()):
+                return _SC["amide"]
+        return _SC["amine"]
+    if z == 8:
+        if x.GetFormalCharge() < 0:
+            return _SC["O-"]
+        for nb in x.GetNeighbors():
+            if nb.GetIdx() != b.GetIdx() and (nb.GetAtomicNum() in (15, 16) or any(
+                    bd.GetBondType() == Chem.BondType.DOUBLE and bd.GetOtherAtom(nb).GetAtomicNum() == 8 for bd in nb.GetBonds())):
+                return _SC["O-acyl"]
+        return _SC["OH"] if x.GetTotalNumHs() else _SC["ether"]
+    if z == 16:
+        return _SC["SO2"] if sum(1 for nb in x.GetNeighbors() if nb.GetAtomicNum() == 8) >= 1 else _SC["S"]
+    return _SC.get({9: "F", 17: "Cl", 35: "Br", 53: "I"}.get(z, "other"), _SC["other"])
+
+
+_N_SC = len(SUBST_CLASSES)
+
+
+def _ring_positions(mol: Chem.Mol, atoms, rings, centres) -> np.ndarray:
+    """The :data:`RING_NAMES` block of every centre: substituents of its aromatic ring by position."""
+    out = np.zeros((len(centres), len(RING_NAMES)), dtype=np.float32)
+    arom = [r for r in rings if len(r) in (5, 6) and all(atoms[i].GetIsAromatic() for i in r)]
+    if not arom:
+        return out
+    ring_of: dict[int, tuple] = {}
+    for r in sorted(arom, key=lambda r: -len(r)):  # six-membered rings first
+        for i in r:
+            ring_of.setdefault(i, r)
+    in_any_ring = set(i for r in rings for i in r)
+    subst_cache: dict[tuple[int, tuple], list[int]] = {}
+
+    def substituents(bi: int, r: tuple) -> list[int]:
+        key = (bi, r)
+        if key not in subst_cache:
+            b = atoms[bi]
+            rset = set(r)
+            cl = []
+            for x in b.GetNeighbors():
+                xi = x.GetIdx()
+                if xi in rset:
+                    continue
+                cl.append(_SC["fused"] if xi in in_any_ring and any(xi in rr and bi in rr for rr in rings) else _subst_class(x, b))
+            subst_cache[key] = cl
+        return subst_cache[key]
+
+    het_col = len(RING_POSITIONS) * _N_SC
+    for row, c in enumerate(centres.tolist()):
+        anchor, from_neighbour = c, 0.0
+        if c not in ring_of:
+            nbs = [x.GetIdx() for x in atoms[c].GetNeighbors() if x.GetIdx() in ring_of]
+            if not nbs:
+                continue
+            anchor, from_neighbour = nbs[0], 1.0
+        r = ring_of[anchor]
+        size = len(r)
+        k0 = r.index(anchor)
+        for cl in substituents(anchor, r):
+            out[row, cl] += 1.0
+        if from_neighbour:
+            # the centre itself is the anchor's substituent: not counted as 'ipso'
+            own = _subst_class(atoms[c], atoms[anchor])
+            out[row, own] -= 1.0
+        for step in range(1, size // 2 + 1):
+            pos = min(step, 3)
+            targets = {r[(k0 + step) % size], r[(k0 - step) % size]}
+            for bi in targets:
+                for cl in substituents(bi, r):
+                    out[row, pos * _N_SC + cl] += 1.0
+                z = atoms[bi].GetAtomicNum()
+                if z == 7 and pos <= 3:
+                    out[row, het_col + pos - 1] += 1.0
+                elif z in (8, 16) and pos <= 2:
+                    out[row, het_col + 3 + pos - 1] += 1.0
+        out[row, het_col + 5] = 1.0 if size == 5 else 0.0
+        out[row, het_col + 6] = 1.0 if size == 6 else 0.0
+        out[row, het_col + 7] = from_neighbour
+    return out
 
 
 def _sphere_invariant(info_row: tuple, smallest_ring: int) -> int:
@@ -295,7 +415,8 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
         q[c], qh[c], q_shell[:, 0], q_nb_min[c], q_nb_max[c], q_shell[:, 1], q_shell[:, 2],
     ])
     partner = _partner_block(N, Z, arom, nH, deg, q, nb_all, ends, others, kinds, dbl_to_os)[c]
-    blocks = [selfs, nb_all[c], conj, shells, partner]
+    ringpos = np.vstack([p.ringpos for p in parts]) if NC else np.zeros((0, len(RING_NAMES)), np.float32)
+    blocks = [selfs, nb_all[c], conj, shells, partner, ringpos]
     if nucleus == "1H":
         zc = Z[c]
         el = np.column_stack([zc == 6, zc == 7, zc == 8, zc == 16, ~np.isin(zc, (6, 7, 8, 16)), np.isin(zc, (7, 8, 16))])

@@ -48,6 +48,7 @@ class MolPrediction:
 
     atoms: list[AtomPrediction] = field(default_factory=list)
     nucleus: str = "13C"
+    notes: list[str] = field(default_factory=list)   # what standardisation did to the input
 
     @property
     def carbons(self) -> list[AtomPrediction]:

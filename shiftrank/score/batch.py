@@ -1,9 +1,10 @@
 """Batch ranking of cases from JSON Lines, streaming results in input order.
 
-Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "candidates": [SMILES…],
-"formula"?, "mass"?, "solvent"?, "priors"?}``.  Output line: ``{"id", "ranking": [...]}``
-best first, every candidate once (invalid ones last with an ``"error"``).
-A line that cannot be read becomes an output line with an ``"error"``.
+Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "peaks_1h": [{"shift" or "range",
+"integral"?, "multiplicity"?, "j"?}], "text": "<printed paragraph(s)>", "candidates": [SMILES…],
+"formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?}``; any one of ``peaks``, ``peaks_1h``
+or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives.  Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
+last with an ``"error"``).  A line that cannot be read becomes an output line with an ``"error"``.
 """
 from __future__ import annotations
 
@@ -17,7 +18,7 @@ from ..errors import InputError
 from .ranking import rank_many
 
 CHUNK = 64
-FIELDS = ("id", "peaks", "candidates", "formula", "mass", "solvent", "priors")
+FIELDS = ("id", "peaks", "peaks_1h", "text", "candidates", "formula", "mass", "solvent", "priors", "with_isomers")
 
 
 def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
@@ -67,47 +68,93 @@ def _error_line(case, exc: Exception, where: str) -> dict:
     return {"id": cid, "error": msg, "ranking": ranking}
 
 
-def _rank_chunk(items, detail: bool) -> list[dict]:
+def rank_chunk(items, detail: bool = False) -> list[str]:
+    """JSON output lines of a chunk of (line number, case or error) items, in order.  Never raises: a
+    case that fails unexpectedly becomes an error line of its own (the others keep their results)."""
+    try:
+        return _rank_chunk(items, detail)
+    except Exception:  # noqa: BLE001 - find the case that failed; the rest still run
+        out = []
+        for item in items:
+            try:
+                out.extend(_rank_chunk([item], detail))
+            except Exception as exc:  # noqa: BLE001
+                n, c = item
+                out.append(json.dumps(_error_line(c if isinstance(c, dict) else {}, InputError(
+                    f"internal error ({type(exc).__name__}: {exc})"), f"line {n}")))
+        return out
+
+
+def _rank_chunk(items, detail: bool) -> list[str]:
     cases = [c for _, c in items if isinstance(c, dict)]
     results = iter(rank_many(cases))
     out = []
     for n, c in items:
         if not isinstance(c, dict):
-            out.append({"id": getattr(c, "case_id", None), "error": str(c), "ranking": []})
+            out.append(json.dumps({"id": getattr(c, "case_id", None), "error": str(c), "ranking": []}))
             continue
         r = next(results)
-        out.append(_error_line(c, r, f"line {n}") if isinstance(r, Exception) else r.to_dict(detail))
+        out.append(json.dumps(_error_line(c, r, f"line {n}") if isinstance(r, Exception) else r.to_dict(detail)))
     return out
 
 
-def _chunks(items, size) -> Iterator[list]:
-    for i in range(0, len(items), size):
-        yield items[i:i + size]
+def chunks_of(items, size: int = CHUNK) -> list[list]:
+    return [items[i:i + size] for i in range(0, len(items), size)]
 
 
-def run_batch(path, out=sys.stdout, jobs: int = 1, detail: bool = False, progress: bool | None = None) -> dict:
-    """Rank every case of ``path``, writing one JSON line per case to ``out`` in input order."""
+def run_batch(path, out=None, jobs: int = 1, detail: bool = False, progress: bool | None = None,
+              dask: str | None = None) -> dict:
+    """Rank every case of ``path``, writing one JSON line per case to ``out`` in input order.
+
+    ``jobs`` > 1 uses joblib worker processes on this machine; ``dask`` ('local', 'local:N' or a
+    scheduler address such as 'tcp://host:8786') uses a Dask cluster (:mod:`shiftrank.score.distributed`).
+    The output is the same either way."""
+    out = out or sys.stdout
     items = read_cases(path)
     total = len(items)
     show = sys.stderr.isatty() if progress is None else progress
     done = n_err = 0
-    chunks = list(_chunks(items, CHUNK))
-    if jobs != 1:
+    chunks = chunks_of(items)
+    if dask:
+        from .distributed import dask_stream
+        stream = dask_stream(chunks, detail, dask)
+    elif jobs != 1:
         from joblib import Parallel, delayed
-        stream = Parallel(n_jobs=jobs, return_as="generator")(delayed(_rank_chunk)(ch, detail) for ch in chunks)
+        stream = Parallel(n_jobs=jobs, return_as="generator")(delayed(rank_chunk)(ch, detail) for ch in chunks)
     else:
-        stream = (_rank_chunk(ch, detail) for ch in chunks)
+        stream = (rank_chunk(ch, detail) for ch in chunks)
+    bar = _progress(total) if show else None
     for lines in stream:
-        for d in lines:
-            n_err += "error" in d
-            out.write(json.dumps(d) + "\n")
+        for line in lines:
+            n_err += '"error": ' in line.split('"ranking"', 1)[0]  # an error key comes before the ranking
+            out.write(line + "\n")
         out.flush()
         done += len(lines)
-        if show:
-            width = 30
-            fill = int(width * done / total)
-            sys.stderr.write(f"\r[{'#' * fill}{'.' * (width - fill)}] {done}/{total} cases")
-            sys.stderr.flush()
-    if show:
+        if bar is not None:
+            bar.update(len(lines))
+    if bar is not None:
+        bar.close()
+    return {"cases": total, "errors": int(n_err)}
+
+
+def _progress(total: int):
+    """A progress bar on stderr (tqdm when installed, else a plain one)."""
+    try:
+        from tqdm import tqdm
+        return tqdm(total=total, unit="case", file=sys.stderr, leave=False)
+    except ImportError:
+        return _PlainBar(total)
+
+
+class _PlainBar:
+    def __init__(self, total: int):
+        self.total, self.done = total, 0
+
+    def update(self, n: int) -> None:
+        self.done += n
+        fill = int(30 * self.done / max(self.total, 1))
+        sys.stderr.write(f"\r[{'#' * fill}{'.' * (30 - fill)}] {self.done}/{self.total} cases")
+        sys.stderr.flush()
+
+    def close(self) -> None:
         sys.stderr.write("\n")
-    return {"cases": total, "errors": n_err}

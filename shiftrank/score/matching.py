@@ -17,8 +17,11 @@ predictor's held-out residuals, as DP4 does with its own errors — Smith & Good
 range counts as δ anywhere inside it), plus a finite mismatch cost when the peak's multiplicity
 contradicts the class (13C DEPT against CHn; 1H letters and J values against the expected
 multiplet), shared equally by the class's units.  A class left unassigned costs ``missing``
-(``missing_exchangeable`` for OH/NH/SH protons, which are often not seen); a peak left unexplained
-costs ``extra`` (shared by its units); residual solvent peaks go unmatched for free.
+(``missing_exchangeable`` for OH/NH/SH protons, which are often not seen; optionally less for a
+quaternary carbon or a class predicted next to another, which printed lists often leave out); a
+peak left unexplained costs ``extra`` (shared by its units); residual solvent peaks go unmatched for
+free.  The overlap cost may depend on how close a class's prediction is to its nearest neighbour's:
+two carbons predicted 0.3 ppm apart are often printed as one value, two predicted 15 ppm apart are not.
 """
 from __future__ import annotations
 
@@ -43,8 +46,31 @@ class MatchCosts:
     extra: float = 6.0
     multiplicity_mismatch: float = 9.0   # 13C: DEPT against CHn; 1H: printed letters against the expected multiplet
     missing_exchangeable: float = 1.0    # 1H: an OH/NH/SH class not observed
-    j_mismatch: float = 1.0              # 1H: per printed J no expected coupling explains
+    j_mismatch: float = 1.0              # per printed J no expected coupling explains (1H: H–H/H–F; 13C: C–F/C–P)
     integral_mismatch: float = 2.0       # 1H: per proton beyond, or missing from, a multiplet's integral
+    overlap_far: float | None = None     # overlap cost of a class whose nearest other class is predicted ≥ near_scale away
+    near_scale: float = 2.0              # ppm: how close two predictions must be for a shared peak to be likely
+    missing_quaternary: float | None = None  # 13C: an unlisted quaternary carbon (weak lines are often not printed)
+    missing_near: float | None = None    # a class predicted within near_scale of another class, unlisted
+
+    def overlap_for(self, gap: np.ndarray) -> np.ndarray:
+        """Overlap cost per class from the gap (ppm) to the nearest other class's prediction: ``overlap``
+        for twins, rising linearly to ``overlap_far`` at ``near_scale`` (constant when it is None)."""
+        if self.overlap_far is None:
+            return np.full(len(gap), self.overlap)
+        w = np.clip(gap / max(self.near_scale, 1e-6), 0.0, 1.0)
+        return self.overlap + (self.overlap_far - self.overlap) * w
+
+    def missing_for(self, classes, gap: np.ndarray) -> np.ndarray:
+        """Cost of leaving each class unlisted: ``missing`` (``missing_exchangeable`` for OH/NH/SH), lowered to
+        ``missing_quaternary`` for quaternary carbons and ``missing_near`` next to another class's prediction."""
+        out = np.array([self.missing_exchangeable if c.exchangeable else self.missing for c in classes], dtype=float)
+        if self.missing_quaternary is not None:
+            q = np.array([c.multiplicity == "C" for c in classes], dtype=bool)
+            out = np.where(q, np.minimum(out, self.missing_quaternary), out)
+        if self.missing_near is not None:
+            out = np.where(gap < self.near_scale, np.minimum(out, self.missing_near), out)
+        return out
 
 
 @dataclass
@@ -70,6 +96,8 @@ class ObservedPeak:
     j: tuple = ()
     capacity: int | None = None       # 1H: integral in protons; None when the peak takes any number of classes
     count: int = 1                    # 13C: carbons printed at this value ("2C")
+    coupling: str | None = None       # 13C: printed C–F/C–P splitting letters ('q' of a CF3)
+    field: float | None = None        # 13C observation frequency (MHz) when the text gives it
 
 
 @dataclass
@@ -147,20 +175,27 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     mcost, bad = _mismatch(classes, peaks, costs, mismatch) if npk else (dev, dev.astype(bool))
     base = dcost + mcost
     extra = np.array([0.0 if p.solvent else costs.extra for p in peaks])
-    miss = np.array([costs.missing_exchangeable if c.exchangeable else costs.missing for c in classes])
+    mu = np.array([c.shift for c in classes], dtype=float)
+    gap = np.full(nc, np.inf)
+    if nc > 1:
+        d = np.abs(mu[:, None] - mu[None, :])
+        np.fill_diagonal(d, np.inf)
+        gap = d.min(axis=1)
+    miss = costs.missing_for(classes, gap)
+    over = costs.overlap_for(gap)
     units = np.array([max(1, int(c.units)) for c in classes])
     if units.max(initial=1) == 1 and all(p.capacity is None for p in peaks):
-        return _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss)
-    return _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units)
+        return _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over)
+    return _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over)
 
 
-def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss) -> Assignment:
+def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over) -> Assignment:
     """One unit per class, any number of classes per peak (the second and later at an overlap cost)."""
     nc, npk = len(classes), len(peaks)
     sg = np.array([c.sigma for c in classes], dtype=float)
     copies = max(1, min(nc, int(np.ceil(nc / max(npk, 1))) + 1)) if npk else 0
     # columns: first copy of each peak (assigning it saves its 'extra' cost), further copies (overlap), 'missing'
-    blocks = [base - extra[None, :]] + [base + costs.overlap] * (copies - 1)
+    blocks = [base - extra[None, :]] + [base + over[:, None]] * (copies - 1)
     missing = np.full((nc, nc), BIG)
     np.fill_diagonal(missing, miss)
     mat = np.hstack(blocks + [missing]) if npk else missing
@@ -180,8 +215,8 @@ def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, 
         parts["multiplicity"] += float(mcost[r, j])
         parts["deviation"] += float(dcost[r, j])
         if copy > 0:
-            parts["overlap"] += costs.overlap
-            cst += costs.overlap
+            parts["overlap"] += float(over[r])
+            cst += float(over[r])
         d = float(dev[r, j])
         pairings.append(Pairing(int(r), j, d, float(d / sg[r]), cst, False, bool(not bad[r, j])))
     for p in pairings:
@@ -194,7 +229,7 @@ def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, 
     return Assignment(pairings, unmatched, total, parts)
 
 
-def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units) -> Assignment:
+def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over) -> Assignment:
     """Protons as units: a class spends ``units`` units, a multiplet offers ``capacity`` units."""
     nc, npk = len(classes), len(peaks)
     sg = np.array([c.sigma for c in classes], dtype=float)
@@ -214,9 +249,9 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
             cols.append((per_unit[:, j] - under[j])[:, None])
             col_peak.append(j)
             col_kind.append(0)
-        over = costs.integral_mismatch if p.capacity is not None else costs.overlap
+        extra_unit = np.full(n_rows, costs.integral_mismatch) if p.capacity is not None else over[row_cls]
         for _ in range(min(MAX_EXCESS_COPIES, n_rows)):
-            cols.append((per_unit[:, j] + over)[:, None])
+            cols.append((per_unit[:, j] + extra_unit)[:, None])
             col_peak.append(j)
             col_kind.append(1)
     missing = np.full((n_rows, n_rows), BIG)
@@ -242,7 +277,7 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
             if peaks[j].capacity is not None:
                 parts["integral"] += costs.integral_mismatch
             else:
-                parts["overlap"] += costs.overlap
+                parts["overlap"] += float(over[i])
     classes_on_peak = np.zeros(npk, dtype=int)
     for (i, j) in got:
         if j is not None:
@@ -254,8 +289,8 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
             pairings.append(Pairing(i, None, None, None, float(miss[i] * n / units[i]), units=n))
             continue
         d = float(dev[i, j])
-        over = costs.integral_mismatch if peaks[j].capacity is not None else costs.overlap
-        cst = float(base[i, j] * n / units[i] + sum(kinds) * over)
+        unit_over = costs.integral_mismatch if peaks[j].capacity is not None else float(over[i])
+        cst = float(base[i, j] * n / units[i] + sum(kinds) * unit_over)
         pairings.append(Pairing(i, j, d, float(d / sg[i]), cst, bool(classes_on_peak[j] > 1), bool(not bad[i, j]), n))
     unmatched = [j for j in range(npk) if used[j] == 0]
     parts["extra"] = float(sum(extra[j] for j in unmatched))

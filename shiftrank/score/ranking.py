@@ -1,17 +1,19 @@
-"""Ranking candidate structures against an observed 13C peak list.
+"""Ranking candidate structures against observed 13C and/or 1H peaks and the sample's history.
 
-For each candidate: structure facts (formula, DBE, symmetry classes), predicted
-shifts per class, the optimal peak assignment (:mod:`shiftrank.score.matching`), and
-a total cost in nats.  Probabilities across candidates follow DP4 (Smith &
-Goodman 2010, J. Am. Chem. Soc. 132, 12946): a product of Student-t
-likelihoods over carbons, here together with the overlap/missing/extra terms,
-normalised over the candidates with the given priors (equal by default).  A
-temperature fitted on development cases tempers the product, because errors of
-carbons in one molecule are correlated.
+For each candidate: structure facts (formula, DBE, symmetry classes), predicted shifts for every
+nucleus observed, the optimal peak assignment per nucleus (:mod:`shiftrank.score.evidence`, one
+shared matcher in :mod:`shiftrank.score.matching`), and a total cost in nats.  Probabilities across
+candidates follow DP4 (Smith & Goodman 2010, J. Am. Chem. Soc. 132, 12946): a product of Student-t
+likelihoods over atoms — here together with the signal-count and multiplicity terms — over the
+nuclei observed (DP4 combines nuclei the same way), normalised over the candidates with the given
+priors (equal by default).  Temperatures fitted on development cases temper each nucleus's product
+and the joint one, because errors of atoms in one molecule are correlated.
 
-A candidate whose formula contradicts the sample's formula (or whose mass
-contradicts the given mass) is flagged and, by default, ranked last with
-probability 0 and the reason.
+Peaks come as lists (``peaks`` for 13C, ``peaks_1h`` for 1H) or as printed characterisation text
+(``text``), which :func:`shiftrank.inputs.text.read_nmr_text` reads; any one is enough.
+
+A candidate whose formula contradicts the sample's formula (or whose mass contradicts the given
+mass) is flagged and, by default, ranked last with probability 0 and the reason.
 """
 from __future__ import annotations
 
@@ -22,60 +24,75 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from ..prediction.environment import MolParts
+from ..chem.formula import formula_matches, hill, sample_formula
+from ..chem.standardise import Standardised, standardise
+from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
 from ..errors import InputError
-from ..chem.formula import hill, parse_formula
-from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
-from ..prediction.model_files import default_manifest, default_model
-from ..inputs.molecules import to_mol
-from ..prediction.api import checked_parts, environments_isolated
+from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
 from ..inputs.solvents import normalise_solvent
-from ..chem.structure import StructureFacts, facts_from_mol
+from ..inputs.text import NmrText, read_nmr_text
+from ..prediction.api import checked_parts, environments_isolated
+from ..prediction.environment import MolParts
+from ..prediction.model_files import default_manifest, default_model
+from .evidence import EVIDENCE, NucleusResult
+from .matching import MatchCosts, ObservedPeak
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
+NUCLEI = ("13C", "1H")
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
            "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
 
 
+def _r(x, nd):
+    return None if x is None or (isinstance(x, float) and not np.isfinite(x)) else round(float(x), nd)
+
+
 @dataclass
 class CandidateResult:
-    """How one candidate explains the spectrum."""
+    """How one candidate explains the spectra."""
 
     smiles: str
     position: int                      # 0-based position in the input list
     name: str | None = None
     error: str | None = None
     facts: StructureFacts | None = None
-    classes: list[SignalClass] = field(default_factory=list)
-    assignment: Assignment | None = None
+    nuclei: dict = field(default_factory=dict)   # nucleus -> NucleusResult
     cost: float = float("inf")         # total cost in nats (lower is better)
-    score: float = float("-inf")       # −cost/temperature: higher is better
+    score: float = float("-inf")       # −(tempered cost): higher is better
     probability: float = 0.0
     flags: list[str] = field(default_factory=list)
     formula_ok: bool | None = None
 
     @property
-    def deviations(self) -> list[float]:
-        if not self.assignment:
-            return []
-        return [p.deviation for p in self.assignment.pairings if p.deviation is not None]
+    def main(self) -> NucleusResult | None:
+        """The 13C result when 13C was observed, else the 1H one."""
+        return self.nuclei.get("13C") or self.nuclei.get("1H")
+
+    # single-nucleus views (13C first), for tables and older callers
+    @property
+    def classes(self):
+        return self.main.classes if self.main else []
+
+    @property
+    def assignment(self):
+        return self.main.assignment if self.main else None
 
     @property
     def mae(self) -> float | None:
-        d = self.deviations
-        return float(np.mean(np.abs(d))) if d else None
+        return self.main.mae if self.main else None
 
     @property
     def max_abs_deviation(self) -> float | None:
-        d = self.deviations
-        return float(np.max(np.abs(d))) if d else None
+        return self.main.max_abs_deviation if self.main else None
 
     @property
     def beyond_3sigma(self) -> int:
-        if not self.assignment:
-            return 0
-        return sum(1 for p in self.assignment.pairings if p.z is not None and abs(p.z) > 3)
+        return sum(r.beyond_3sigma for r in self.nuclei.values())
+
+    def assignment_table(self, nucleus: str | None = None) -> list[dict]:
+        res = self.nuclei.get(nucleus) if nucleus else self.main
+        return res.assignment_table() if res else []
 
     def to_dict(self, detail: bool = False) -> dict:
         d = {"smiles": self.smiles, "score": _r(self.score, 4), "probability": _r(self.probability, 6)}
@@ -85,36 +102,18 @@ class CandidateResult:
             d["error"] = self.error
             return d
         d.update({"formula": self.facts.formula, "dbe": self.facts.dbe, "formula_ok": self.formula_ok,
-                  "expected_signals": len(self.classes), "mae": _r(self.mae, 3),
-                  "max_deviation": _r(self.max_abs_deviation, 2), "beyond_3sigma": self.beyond_3sigma,
-                  "cost": _r(self.cost, 3), "cost_parts": {k: _r(v, 3) for k, v in self.assignment.parts.items()},
-                  "flags": self.flags})
-        if detail:
-            d["assignment"] = self.assignment_table()
-            d["unmatched_peaks"] = self.assignment.unmatched_peaks
+                  "cost": _r(self.cost, 3), "flags": self.flags,
+                  "nuclei": {n: r.to_dict(detail) for n, r in self.nuclei.items()}})
         return d
-
-    def assignment_table(self) -> list[dict]:
-        """One row per symmetry class, with the notes a reader needs (unobserved, shared peak, >3σ, DEPT)."""
-        rows = []
-        for p in self.assignment.pairings:
-            c = self.classes[p.cls]
-            notes = (["unobserved"] if p.peak is None else []) + (["shares a peak"] if p.shared else []) \
-                + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) + ([] if p.multiplicity_ok else ["DEPT mismatch"])
-            rows.append({"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
-                         "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2),
-                         "peak": p.peak, "deviation": _r(p.deviation, 2), "z": _r(p.z, 2),
-                         "shared_peak": p.shared, "multiplicity_ok": p.multiplicity_ok, "notes": notes})
-        return rows
 
 
 @dataclass
 class RankResult:
-    """Ranked candidates (best first) with the verdict and the peaks used."""
+    """Ranked candidates (best first) with the verdict and the peaks used, per nucleus."""
 
     id: str | None
     candidates: list[CandidateResult]
-    peaks: list[ObservedPeak]
+    peaks: dict                        # nucleus -> list[ObservedPeak]
     verdict: str
     notes: list[str] = field(default_factory=list)
     model_version: str | None = None
@@ -123,47 +122,80 @@ class RankResult:
     def best(self) -> CandidateResult:
         return self.candidates[0]
 
+    @property
+    def nuclei(self) -> list[str]:
+        return [n for n in NUCLEI if n in self.peaks]
+
     def to_dict(self, detail: bool = False) -> dict:
-        d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict}
+        d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
+             "nuclei": self.nuclei}
         if self.notes:
             d["notes"] = self.notes
         if detail:
-            d["peaks"] = [{"shift": p.shift, "multiplicity": p.multiplicity, "solvent": p.solvent} for p in self.peaks]
+            d["peaks"] = {n: [_peak_dict(p) for p in ps] for n, ps in self.peaks.items()}
         d["model"] = self.model_version
         return d
 
 
-def _r(x, nd):
-    return None if x is None or (isinstance(x, float) and not np.isfinite(x)) else round(float(x), nd)
+def _peak_dict(p: ObservedPeak) -> dict:
+    d = {"shift": p.shift, "multiplicity": p.multiplicity, "solvent": p.solvent}
+    if p.lo is not None:
+        d["range"] = [p.lo, p.hi]
+    if p.j:
+        d["j"] = list(p.j)
+    if p.capacity is not None:
+        d["integral"] = p.capacity
+    return d
 
 
-def ranking_settings() -> tuple[MatchCosts, float]:
-    """Match costs and temperature stored with the shipped model (fitted on development data)."""
+@dataclass(frozen=True)
+class RankingSettings:
+    costs: dict                 # nucleus -> MatchCosts
+    temperature: dict           # nucleus -> T alone; "joint" -> {nucleus: T} when several nuclei are observed
+
+    def divisor(self, nucleus: str, joint: bool) -> float:
+        return self.temperature["joint"][nucleus] if joint else self.temperature[nucleus]
+
+
+def ranking_settings() -> RankingSettings:
+    """Match costs and temperatures stored with the shipped models (fitted on development data)."""
     man = default_manifest()
-    u = man.get("nuclei", {}).get("13C", {}).get("uncertainty", {})
     r = man.get("ranking", {})
-    costs = MatchCosts(t_df=u.get("t_df", 4.0), t_scale=u.get("t_scale", 1.0),
-                       **{k: r[k] for k in ("overlap", "missing", "extra", "multiplicity_mismatch") if k in r})
-    return costs, float(r.get("temperature", 1.0))
+    costs, temps = {}, {}
+    for n in NUCLEI:
+        u = man.get("nuclei", {}).get(n, {}).get("uncertainty", {})
+        rn = r.get(n, {})
+        kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in ("t_df", "t_scale")}
+        costs[n] = MatchCosts(t_df=u.get("t_df", 4.0), t_scale=u.get("t_scale", 1.0), **kw)
+        temps[n] = float(rn.get("temperature", 1.0))
+    joint = r.get("joint", {})
+    temps["joint"] = {n: float(joint.get(n, {}).get("temperature", temps[n])) if isinstance(joint.get(n), dict)
+                      else temps[n] for n in NUCLEI}
+    return RankingSettings(costs, temps)
 
 
-def as_peaklist(peaks, solvent: str | None = None) -> PeakList:
+def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> PeakList:
     """Normalise the accepted peak inputs (PeakList, list of Peak, numbers or dicts) and flag solvent."""
     if isinstance(peaks, PeakList):
         pl = peaks
     else:
-        if peaks is None or len(peaks) == 0:
-            raise InputError("peaks: the peak list is empty")
-        items = list(peaks) if all(isinstance(p, Peak) for p in peaks) else peaks_from_records(list(peaks))
+        if peaks is None or not isinstance(peaks, (list, tuple)) or len(peaks) == 0:
+            raise InputError(f"{'peaks' if nucleus == '13C' else 'peaks_1h'}: the peak list is empty or not a list")
         notes: list[str] = []
-        pl = PeakList("13C", merge_duplicates(items, notes, "13C"), "peaks", notes)
+        items = list(peaks) if all(isinstance(p, Peak) for p in peaks) else \
+            peaks_from_records(list(peaks), "peaks" if nucleus == "13C" else "peaks_1h", nucleus, notes)
+        if nucleus == "13C":
+            items = merge_duplicates(items, notes, nucleus)
+        else:
+            items = sorted(items, key=lambda p: p.shift)
+        pl = PeakList(nucleus, items, "peaks", notes)
     if not pl.peaks:
         raise InputError(f"{pl.source}: the peak list is empty")
     return flag_solvent(pl, solvent)
 
 
 def observed_peaks(pl: PeakList) -> list[ObservedPeak]:
-    return [ObservedPeak(p.shift, p.multiplicity, p.solvent is not None) for p in pl.peaks]
+    return EVIDENCE[pl.nucleus].observed(pl)
 
 
 @dataclass
@@ -172,21 +204,43 @@ class _Prepared:
     position: int
     name: str | None
     mol: Chem.Mol | None = None
-    parts: MolParts | None = None
+    parts: dict = field(default_factory=dict)   # nucleus -> MolParts
     error: str | None = None
+    preds: dict = field(default_factory=dict)   # nucleus -> (shifts, sigmas) of the centres
 
 
 @lru_cache(maxsize=4096)
-def _describe(smiles: str, solvent: str | None) -> tuple[Chem.Mol | None, MolParts | None, str | None]:
-    """Molecule and its RDKit facts for descriptors, from a SMILES (cached: batches often repeat candidates)."""
+def _parse(smiles: str) -> tuple[Chem.Mol | None, tuple | None, str | None]:
+    """Standardised parent molecule and its symmetry ranks from a SMILES (cached: batches often repeat
+    candidates); the standardisation record is kept in :func:`_standardised`."""
     try:
-        mol = to_mol(smiles)
-        return mol, checked_parts(mol, f"SMILES '{smiles}'", solvent), None
+        std = _standardised(smiles)
+        return std.mol, tuple(symmetry_ranks(std.mol)), None
     except InputError as exc:
         return None, None, str(exc)
 
 
-def _prepare(cand, position: int, solvent: str | None) -> _Prepared:
+@lru_cache(maxsize=4096)
+def _standardised(smiles: str) -> Standardised:
+    mol = to_mol(smiles)
+    std = standardise(mol, f"SMILES '{smiles}'")
+    check_organic(std.mol, f"SMILES '{smiles}'")
+    return std
+
+
+@lru_cache(maxsize=8192)
+def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts | None, str | None]:
+    """RDKit facts of a candidate for the descriptors of ``nucleus`` (cached per SMILES and solvent)."""
+    mol, _, err = _parse(smiles)
+    if err:
+        return None, err
+    try:
+        return checked_parts(mol, f"SMILES '{smiles}'", solvent, nucleus), None
+    except InputError as exc:
+        return None, str(exc)
+
+
+def _prepare(cand, position: int, solvent: str | None, nuclei) -> _Prepared:
     name = None
     if isinstance(cand, tuple):
         name, cand, *rest = cand
@@ -194,49 +248,56 @@ def _prepare(cand, position: int, solvent: str | None) -> _Prepared:
             return _Prepared(str(cand), position, name, error=str(rest[0]))
     if isinstance(cand, Chem.Mol):
         cand = Chem.MolToSmiles(Chem.RemoveHs(cand))
-    smi = str(cand)
-    mol, parts, err = _describe(smi, solvent)
-    return _Prepared(smi, position, name, mol, parts, err)
+    if not isinstance(cand, str):
+        return _Prepared(str(cand), position, name, error=f"candidate {position + 1}: expected a SMILES string, "
+                                                            f"got {type(cand).__name__}")
+    prep = _Prepared(cand, position, name)
+    mol, _, err = _parse(cand)
+    if err:
+        prep.error = err
+        return prep
+    prep.mol = mol
+    for n in nuclei:
+        parts, err = _describe(cand, solvent, n)
+        if err:
+            prep.error, prep.parts = err, {}
+            return prep
+        prep.parts[n] = parts
+    return prep
 
 
-def _candidate(prep: _Prepared, pred, peaks, costs) -> CandidateResult:
+def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: RankingSettings) -> CandidateResult:
     res = CandidateResult(prep.smiles, prep.position, prep.name)
     if prep.error:
         res.error = prep.error
         return res
-    facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
-    res.facts = facts
-    mu = dict(zip(prep.parts.centres.tolist(), pred[0]))
-    sg = dict(zip(prep.parts.centres.tolist(), pred[1]))
-    res.classes = [SignalClass(c.atoms, c.multiplicity, float(np.mean([mu[a] for a in c.atoms])),
-                               float(np.mean([sg[a] for a in c.atoms]))) for c in facts.carbon_classes]
-    res.assignment = assign(res.classes, peaks, costs)
-    res.cost = res.assignment.total_cost
-    n_obs = sum(1 for p in peaks if not p.solvent)
-    a = res.assignment
-    n_unexplained = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent)
-    if len(res.classes) != n_obs:
-        n_shared = sum(1 for p in a.pairings if p.shared)
-        n_missing = sum(1 for p in a.pairings if p.peak is None)
-        res.flags.append(f"expects {len(res.classes)} signals by symmetry, {n_obs} observed"
-                         + (f"; {n_shared} classes share peaks" if n_shared else "")
-                         + (f"; {n_missing} classes unobserved" if n_missing else "")
-                         + (f"; {n_unexplained} peaks unexplained" if n_unexplained else ""))
-    elif n_unexplained:
-        res.flags.append(f"{n_unexplained} peaks unexplained")
-    if res.beyond_3sigma:
-        res.flags.append(f"{res.beyond_3sigma} carbons deviate by more than 3σ")
-    n_mm = sum(1 for p in res.assignment.pairings if not p.multiplicity_ok)
-    if n_mm:
-        res.flags.append(f"{n_mm} peaks assigned against their DEPT multiplicity")
+    _, ranks, _ = _parse(prep.smiles)
+    std = _standardised(prep.smiles)
+    res.facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
+    if std.notes:
+        res.flags.append("standardised (formula and prediction use the parent): " + "; ".join(std.notes))
+    identity = std.atom_map == list(range(len(std.atom_map)))
+    total = 0.0
+    for n, obs in peaks.items():
+        centres = prep.parts[n].centres.tolist()
+        mu = dict(zip(centres, preds[n][0]))
+        sg = dict(zip(centres, preds[n][1]))
+        r = EVIDENCE[n].evaluate(prep.mol, list(ranks), mu, sg, obs, settings.costs[n])
+        if not identity:  # tables speak of the atoms as the user drew them
+            for c in r.classes:
+                c.atoms = [std.atom_map[a] for a in c.atoms]
+        res.nuclei[n] = r
+        res.flags.extend(r.flags)
+        total += r.cost / settings.divisor(n, len(peaks) > 1)
+    res.cost = total
     return res
 
 
-def _history_checks(res: CandidateResult, formula_counts, mass: float | None, mass_tol: float) -> None:
+def _history_checks(res: CandidateResult, formula_counts, mass: float | None, mass_tol: float, charge: int = 0) -> None:
     if res.error:
         return
     if formula_counts is not None:
-        res.formula_ok = dict(res.facts.counts) == dict(formula_counts)
+        res.formula_ok = formula_matches(res.facts.counts, formula_counts, charge)
         if not res.formula_ok:
             res.flags.insert(0, f"formula {res.facts.formula} contradicts the sample formula {hill(formula_counts)}")
     if mass is not None:
@@ -247,10 +308,10 @@ def _history_checks(res: CandidateResult, formula_counts, mass: float | None, ma
                                 f"contradicts the sample mass {mass:g} ± {mass_tol:g}")
 
 
-def _probabilities(cands: list[CandidateResult], temperature: float, priors, demote: bool) -> None:
+def _probabilities(cands: list[CandidateResult], priors, demote: bool) -> None:
     valid = [c for c in cands if not c.error]
     for c in valid:
-        c.score = -c.cost / temperature
+        c.score = -c.cost
     pool = [c for c in valid if c.formula_ok is not False] if demote else valid
     if not pool:
         pool = valid
@@ -267,7 +328,7 @@ def _order_key(c: CandidateResult, demote: bool):
     return (c.error is not None, demote and c.formula_ok is False, -c.probability, c.cost, c.position)
 
 
-def verdict(cands: list[CandidateResult]) -> str:
+def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> str:
     """One line on the best candidate: clear winner, indistinguishable pair, leaning, or no fit."""
     valid = [c for c in cands if not c.error]
     if not valid:
@@ -276,18 +337,45 @@ def verdict(cands: list[CandidateResult]) -> str:
     label = best.name or best.smiles
     if best.formula_ok is False:
         return "no candidate fits the sample history (formula/mass)"
-    n = max(len(best.classes), 1)
-    poor = (best.mae is not None and best.mae > 4.0) or best.beyond_3sigma > max(1, 0.25 * n) \
-        or len(best.assignment.unmatched_peaks) > max(2, 0.3 * n)
+    spectra = " + ".join(nuclei) if nuclei else "the spectra"
+    poor = []
+    for n, r in best.nuclei.items():
+        k = max(len(r.classes), 1)
+        limit = 4.0 if n == "13C" else 0.6
+        unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent)
+        if (r.mae is not None and r.mae > limit) or r.beyond_3sigma > max(1, 0.25 * k) or unexplained > max(2, 0.3 * k):
+            poor.append(f"{n} MAE {r.mae:.2f} ppm, {r.beyond_3sigma} classes beyond 3σ, {unexplained} peaks unexplained"
+                        if r.mae is not None else f"{n}: nothing assigned")
     if poor:
-        return f"no candidate fits well: the best ({label}) has MAE {best.mae:.1f} ppm and {best.beyond_3sigma} carbons beyond 3σ"
+        return f"no candidate fits well: the best ({label}) has " + "; ".join(poor)
+    count_note = _count_misfit(valid)
+    if count_note:
+        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}"
     if best.probability >= 0.9:
         return f"clear winner: {label} (p = {best.probability:.2f})"
     second = valid[1] if len(valid) > 1 else None
     if second is not None and best.probability + second.probability >= 0.9 and second.probability >= 0.2:
-        return (f"two candidates indistinguishable from 13C alone: {label} (p = {best.probability:.2f}) and "
+        return (f"two candidates indistinguishable from {spectra} alone: {label} (p = {best.probability:.2f}) and "
                 f"{second.name or second.smiles} (p = {second.probability:.2f})")
     return f"leaning to {label} (p = {best.probability:.2f}); not decisive"
+
+
+def _count_misfit(valid: list[CandidateResult]) -> str | None:
+    """A note when the number of observed 13C signals matches no candidate's symmetry-expected count: the
+    ranking then rests on which mismatch is cheaper, not on a fit.  (1H multiplet counts differ from
+    class counts too often, through overlap and diastereotopic protons, to say so.)"""
+    for n in ("13C",):
+        rs = [c.nuclei[n] for c in valid if n in c.nuclei]
+        if not rs:
+            continue
+        observed = rs[0].observed_signals
+        if all(len(r.classes) != r.observed_signals for r in rs):
+            expected = sorted({len(r.classes) for r in rs})
+            span = f"{expected[0]}" if len(expected) == 1 else f"{expected[0]}–{expected[-1]}"
+            return (f"the {observed} {n} signals observed fit no candidate's symmetry-expected count ({span}): "
+                    "check for overlapped, missing or extra lines before trusting the order")
+        return None
+    return None
 
 
 def _check_priors(priors, n: int):
@@ -302,16 +390,63 @@ def _check_priors(priors, n: int):
     return p / p.sum()
 
 
-def rank(peaks, candidates: Sequence, formula: str | None = None, mass: float | None = None,
+def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
+    """Peak lists per nucleus of one case (from ``peaks``, ``peaks_1h`` and/or ``text``), its solvent
+    and the notes made while reading them.  Raises :class:`InputError` when no peaks are given."""
+    notes: list[str] = []
+    solvent = normalise_solvent(case.get("solvent")) if isinstance(case.get("solvent"), str) else None
+    if case.get("solvent") is not None and not isinstance(case.get("solvent"), str):
+        raise InputError("solvent: expected a solvent name such as CDCl3")
+    text = case.get("text")
+    parsed: NmrText | None = None
+    if text is not None:
+        if isinstance(text, (list, tuple)) and all(isinstance(t, str) for t in text):
+            text = "\n".join(text)
+        if not isinstance(text, str):
+            raise InputError("text: expected the characterisation paragraph(s) as a string")
+        parsed = read_nmr_text(text, "text")
+        notes.extend(f"text: {n}" for n in parsed.notes)
+    out: dict = {}
+    for nucleus, key in (("13C", "peaks"), ("1H", "peaks_1h")):
+        given = case.get(key)
+        sec_solvent = solvent
+        if parsed is not None and given is None:
+            sec = parsed.section(nucleus)
+            if sec is not None and sec.peaks:
+                sec_solvent = solvent or sec.solvent
+                pl = parsed.peaklist(nucleus, sec_solvent, source=f"{nucleus} text")
+                out[nucleus] = pl
+                notes.extend(pl.notes)
+            continue
+        if given is None or (isinstance(given, (list, tuple)) and len(given) == 0 and nucleus == "1H"):
+            continue
+        pl = as_peaklist(given, sec_solvent, nucleus)
+        out[nucleus] = pl
+        notes.extend(pl.notes)
+    if not out:
+        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H) or 'text' (printed characterisation)")
+    if parsed is not None:
+        for sec in parsed.sections:
+            if sec.nucleus not in NUCLEI and sec.peaks:
+                notes.append(f"text: {sec.nucleus} peaks read but not used")
+    if solvent is None and parsed is not None and parsed.solvent:
+        solvent = parsed.solvent
+    return out, solvent, notes
+
+
+def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass: float | None = None,
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
-         demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE) -> RankResult:
+         demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
+         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
-    A ``(name, source, error)`` triple stands for a record that could not be read;
-    it is listed last with its error.
-
-    ``peaks`` is a :class:`~shiftrank.inputs.peaks.PeakList`, or a list of shifts or of
-    ``{"shift": …, "multiplicity": …}`` objects.
+    ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects or lists of
+    shifts or of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"`` and
+    ``"range": [low, high]``); ``text`` is a printed characterisation paragraph.  Any one is enough.
+    ``with_isomers`` (True, or kinds such as ``"positional,ambident"``) adds the alternatives a reaction
+    could have given to each candidate (:func:`shiftrank.chem.isomers.isomers`), named by their relation.
+    A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
+    with its error.
 
     >>> r = rank([{"shift": 14.2, "multiplicity": "CH3"}, {"shift": 60.5, "multiplicity": "CH2"},
     ...           {"shift": 171.1, "multiplicity": "C"}, {"shift": 21.0, "multiplicity": "CH3"}],
@@ -319,74 +454,157 @@ def rank(peaks, candidates: Sequence, formula: str | None = None, mass: float | 
     >>> r.best.smiles
     'CCOC(C)=O'
     """
-    result = rank_many([dict(id=id, peaks=peaks, candidates=candidates, formula=formula, mass=mass, solvent=solvent,
-                             priors=priors)], demote_history_mismatch, mass_tolerance)[0]
+    result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
+                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers)],
+                       demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
     return result
 
 
-def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE) -> list:
-    """Rank several cases with one model call (the fast path for batches).
+def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list, list[str]]:
+    """The candidates followed by the alternatives :func:`shiftrank.chem.isomers.isomers` generates for
+    each of them (named by their relation), without duplicates; notes on what was added."""
+    from ..chem.isomers import isomers, structure_key
 
-    Each case is a dict with keys of :func:`rank`.  A case whose peaks, formula or
-    priors are invalid comes back as the :class:`InputError` instance (not raised).
-    """
-    model = default_model()
-    costs, temperature = ranking_settings()
-    version = default_manifest().get("version")
+    if kinds is True:
+        kinds = "positional,ambident"
+    seen, out, notes = set(), list(cands), []
+    for c in cands:
+        smi = c[1] if isinstance(c, tuple) else c
+        if not isinstance(smi, str):
+            continue
+        mol, _, err = _parse(smi)
+        if err:
+            continue
+        seen.add(structure_key(mol))
+    for c in cands:
+        smi = c[1] if isinstance(c, tuple) else c
+        if not isinstance(smi, str) or _parse(smi)[2]:
+            continue
+        added = 0
+        for alt in isomers(smi, kinds=kinds):
+            k = structure_key(Chem.MolFromSmiles(alt.smiles))
+            if k in seen:
+                continue
+            seen.add(k)
+            out.append((f"{alt.relation} (from {smi})" if len(cands) > 1 else alt.relation, alt.smiles))
+            added += 1
+        notes.append(f"{added} generated alternatives of {smi} added ({kinds})")
+    return out, notes
+
+
+def _stage(case: dict, nuclei_models) -> tuple:
+    cands = case.get("candidates")
+    if isinstance(cands, (str, bytes)) or not isinstance(cands, (list, tuple)):
+        raise InputError("candidates: expected a list of SMILES strings")
+    cands = list(cands)
+    if not cands:
+        raise InputError("candidates: no candidate structures given")
+    iso_notes: list[str] = []
+    if case.get("with_isomers"):
+        cands, iso_notes = expand_with_isomers(cands, case["with_isomers"])
+    lists, solvent, notes = case_peaklists(case)
+    notes = iso_notes + notes
+    peaks = {n: observed_peaks(pl) for n, pl in lists.items()}
+    missing = [n for n in peaks if n not in nuclei_models]
+    if missing:
+        raise InputError(f"no {', '.join(missing)} model is installed")
+    f = case.get("formula")
+    if f is not None and not isinstance(f, str):
+        raise InputError("formula: expected a formula string such as C9H9N3O2")
+    fcounts, charge = None, 0
+    if f:
+        fcounts, charge, fnotes = sample_formula(f)
+        notes.extend(fnotes)
+    mass = case.get("mass")
+    if mass is not None:
+        if isinstance(mass, bool) or not isinstance(mass, (int, float, str)):
+            raise InputError("mass: expected a number (Da)")
+        try:
+            mass = float(mass)
+        except ValueError:
+            raise InputError(f"mass: '{mass}' is not a number") from None
+        if not np.isfinite(mass) or mass <= 0:
+            raise InputError(f"mass: {mass} is not a positive number")
+    priors = _check_priors(case.get("priors"), len(cands))
+    preps = [_prepare(c, i, solvent, tuple(peaks)) for i, c in enumerate(cands)]
+    return case, peaks, notes, (fcounts, charge), mass, priors, preps
+
+
+def stage_cases(cases: list[dict]) -> list:
+    """Read every case (peaks, text, formula, candidates) and predict every candidate with one model call
+    per nucleus.  Each item is the case's :class:`InputError` or a tuple
+    ``(case, peaks, notes, (formula counts, charge), mass, priors, preps)`` whose preps carry ``preds``."""
+    man = default_manifest()
+    available = tuple(n for n in NUCLEI if n in man.get("nuclei", {}))
     staged = []
     for case in cases:
         try:
-            cands = list(case.get("candidates") or [])
-            if not cands:
-                raise InputError("candidates: no candidate structures given")
-            solvent = normalise_solvent(case.get("solvent"))
-            pl = as_peaklist(case.get("peaks"), solvent)
-            peaks, notes = observed_peaks(pl), list(pl.notes)
-            fcounts = parse_formula(case["formula"]) if case.get("formula") else None
-            mass = case.get("mass")
-            if mass is not None:
-                mass = float(mass)
-                if not np.isfinite(mass) or mass <= 0:
-                    raise InputError(f"mass: {mass} is not a positive number")
-            priors = _check_priors(case.get("priors"), len(cands))
-            preps = [_prepare(c, i, solvent) for i, c in enumerate(cands)]
-            staged.append((case, peaks, notes, fcounts, mass, priors, preps))
+            staged.append(_stage(case, available))
         except InputError as exc:
             staged.append(exc)
         except (TypeError, ValueError, KeyError, AttributeError) as exc:  # malformed fields from JSON input
             staged.append(InputError(f"case has a malformed field ({type(exc).__name__}: {exc})"))
-    preps_ok = [p for s in staged if not isinstance(s, Exception) for p in s[6] if p.parts is not None]
-    envs = []
-    for p, env in zip(preps_ok, environments_isolated([p.parts for p in preps_ok])):
-        if env is None:
-            p.parts, p.error = None, f"SMILES '{p.smiles}': cannot compute atom environments"
-        else:
-            envs.append(env)
-    if envs:
-        mu, sg, _, _ = model.predict_env_arrays(envs)
-    out, k = [], 0
+    flat: dict = {n: [] for n in NUCLEI}
     for s in staged:
+        if isinstance(s, Exception):
+            continue
+        for p in s[6]:
+            if p.error is None:
+                for n in s[1]:
+                    flat[n].append(p)
+    for n, plist in flat.items():
+        if not plist:
+            continue
+        envs, owners = [], []
+        for p, env in zip(plist, environments_isolated([p.parts[n] for p in plist])):
+            if env is None:
+                p.error = f"SMILES '{p.smiles}': cannot compute atom environments"
+            else:
+                envs.append(env)
+                owners.append(p)
+        if envs:
+            mu, sg, _, _ = default_model(n).predict_env_arrays(envs)
+            k = 0
+            for p, env in zip(owners, envs):
+                m = len(env.centres)
+                p.preds[n] = (mu[k:k + m], sg[k:k + m])
+                k += m
+    return staged
+
+
+def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
+              client=None) -> list:
+    """Rank several cases with one model call per nucleus (the fast path for batches).
+
+    Each case is a dict with keys of :func:`rank`.  A case whose peaks, text, formula or priors are
+    invalid comes back as the :class:`InputError` instance (not raised).  With a ``dask.distributed``
+    ``client`` the cases are spread over its cluster (:mod:`shiftrank.score.distributed`); the results
+    are the same, in the same order.
+    """
+    if client is not None:
+        from .distributed import rank_many_on
+        return rank_many_on(client, cases, demote_history_mismatch)
+    settings = ranking_settings()
+    version = default_manifest().get("version")
+    out = []
+    for s in stage_cases(cases):
         if isinstance(s, Exception):
             out.append(s)
             continue
-        case, peaks, notes, fcounts, mass, priors, preps = s
+        case, peaks, notes, (fcounts, charge), mass, priors, preps = s
         results = []
         for p in preps:
-            if p.parts is not None:
-                n = len(p.parts.centres)
-                pred = (mu[k:k + n], sg[k:k + n])
-                k += n
-            else:
-                pred = None
             try:
-                r = _candidate(p, pred, peaks, costs)
-                _history_checks(r, fcounts, mass, mass_tolerance)
+                if p.error is None and any(n not in p.preds for n in peaks):
+                    p.error = f"SMILES '{p.smiles}': could not be predicted"
+                r = _score_candidate(p, p.preds, peaks, settings)
+                _history_checks(r, fcounts, mass, mass_tolerance, charge)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
-        _probabilities(results, temperature, priors, demote_history_mismatch)
+        _probabilities(results, priors, demote_history_mismatch)
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
-        out.append(RankResult(case.get("id"), results, peaks, verdict(results), notes, version))
+        out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
     return out

@@ -1,0 +1,152 @@
+"""Printed-text benchmark: the reader on literature paragraphs, and ranking from printed text.
+
+    python benchmarks/bench_text.py [--data DIR] [--part heldout|dev|all] [--limit N]
+
+Data: ``literature_dev.jsonl.gz`` (608 compounds with their 1H and 13C paragraphs as printed in
+open-access articles; NMRExtractor, MIT licence) and the ranking cases built from them
+(``dev_cases_text_regio.jsonl.gz``: the structure against its positional isomers;
+``dev_cases_text_isomers.jsonl.gz``: against same-formula NMRShiftDB2 structures).
+
+The compounds are split in two halves by a hash of their InChIKey skeleton
+(:func:`training.data.literature_part`): the *dev* half is used to fit the ranking settings
+(``training/calibrate_text.py``), the *held-out* half only here.  The 'truth' field is never
+passed to the ranker.
+
+Reader: printed peaks are counted independently of the reader (every decimal number outside
+brackets after the δ, a range counted once), and the peaks the reader returns are compared with
+that count per paragraph; crashes are counted (there must be none).
+"""
+from __future__ import annotations
+
+import argparse
+import gzip
+import json
+import os
+import re
+import sys
+import time
+from pathlib import Path
+
+os.environ.setdefault("OMP_NUM_THREADS", "1")
+
+import numpy as np  # noqa: E402
+
+REPO = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(REPO))
+
+from training.data import DEFAULT_DATA, literature_part  # noqa: E402
+
+
+def printed_count(text: str) -> int:
+    """Peaks as printed, counted without the reader: decimal numbers (or ranges) outside brackets after δ."""
+    from shiftrank.inputs.text import _repair
+
+    t = _repair(text)
+    prev = None
+    while prev != t:
+        prev = t
+        t = re.sub(r"\([^()]*\)|\[[^\[\]]*\]", " ", t)
+    i = t.find("δ")
+    if i >= 0:
+        t = t[i:]
+    t = re.sub(r"\d+(\.\d+)?\s*MHz", " ", t)
+    return len(re.findall(r"(?<![\d.])\d{1,3}\.\d+(?:\s*(?:-|–|~|to)\s*\d{1,3}\.\d+)?", t))
+
+
+def reader_figures(records) -> None:
+    from shiftrank.errors import InputError
+    from shiftrank.inputs.text import read_nmr_text
+
+    tot = {"1H": [0, 0, 0], "13C": [0, 0, 0]}  # printed, recovered (capped per paragraph), paragraphs
+    crashes, refused, slow = 0, 0, []
+    for r in records:
+        for key, nuc in (("text_1h", "1H"), ("text_13c", "13C")):
+            text = r[key]
+            exp = printed_count(text)
+            t = time.perf_counter()
+            try:
+                got = sum(len(s.peaks) for s in read_nmr_text(text).sections if s.nucleus in ("1H", "13C"))
+            except InputError:
+                got = 0
+                refused += 1
+            except Exception as exc:  # noqa: BLE001 - counted: the target is none
+                crashes += 1
+                print(f"  CRASH on {r['id']} {key}: {type(exc).__name__}: {exc}")
+                got = 0
+            slow.append(time.perf_counter() - t)
+            tot[nuc][0] += exp
+            tot[nuc][1] += min(got, exp)
+            tot[nuc][2] += 1
+    for nuc, (exp, got, n) in tot.items():
+        print(f"  {nuc}: {n} paragraphs, printed peaks {exp}, recovered {got} ({100 * got / max(exp, 1):.1f} %)")
+    print(f"  crashes: {crashes}; paragraphs refused with a clear error (no peaks at all): {refused}; "
+          f"median {1000 * np.median(slow):.2f} ms per paragraph")
+
+
+def load_cases(path: Path, part: str, limit: int | None):
+    out = []
+    with gzip.open(path, "rt") as f:
+        for line in f:
+            c = json.loads(line)
+            if part != "all" and literature_part(c["truth_skeleton"]) != part:
+                continue
+            out.append(c)
+            if limit and len(out) >= limit:
+                break
+    return out
+
+
+def as_case(c: dict, which: str) -> dict:
+    cands = c["candidates"]
+    if isinstance(cands, str):  # some cases store the list as its Python text
+        import ast
+        cands = ast.literal_eval(cands)
+    text = {"both": c["text_1h"] + "\n" + c["text_13c"], "1H": c["text_1h"], "13C": c["text_13c"]}[which]
+    d = {"id": c["id"], "text": text, "candidates": cands, "formula": c.get("formula")}
+    return d, cands.index(c["truth"])
+
+
+def ranking_figures(cases, label: str) -> dict:
+    from shiftrank.score.ranking import rank_many
+
+    out = {}
+    for which in ("both", "1H", "13C"):
+        built = [as_case(c, which) for c in cases]
+        t = time.perf_counter()
+        res = rank_many([b for b, _ in built])
+        dt = time.perf_counter() - t
+        ranks, errors = [], 0
+        for (case, truth), r in zip(built, res):
+            if isinstance(r, Exception):
+                errors += 1
+                ranks.append(len(case["candidates"]))
+                continue
+            order = [x.smiles for x in r.candidates]
+            ranks.append(order.index(case["candidates"][truth]) + 1)
+        ranks = np.array(ranks)
+        n_c = sum(len(b["candidates"]) for b, _ in built)
+        out[which] = float(np.mean(ranks == 1))
+        print(f"  {label:<9} {which:<5} n={len(ranks):4d}  top-1 {100 * np.mean(ranks == 1):5.1f} %  top-2 "
+              f"{100 * np.mean(ranks <= 2):5.1f} %  MRR {np.mean(1 / ranks):.3f}  case errors {errors}  "
+              f"({n_c / dt:,.0f} candidates/s in-process)")
+    return out
+
+
+def main() -> int:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
+    ap.add_argument("--part", choices=["heldout", "dev", "all"], default="heldout")
+    ap.add_argument("--limit", type=int, default=None)
+    args = ap.parse_args()
+    lit = [json.loads(line) for line in gzip.open(args.data / "literature_dev.jsonl.gz", "rt")]
+    part = [r for r in lit if args.part == "all" or literature_part(r["id"].split(":")[-1]) == args.part]
+    print(f"== reader on the {args.part} part of the literature paragraphs ({len(part)} compounds) ==")
+    reader_figures(part)
+    print(f"\n== ranking from printed text, {args.part} part ==")
+    for name, label in (("dev_cases_text_regio.jsonl.gz", "regio"), ("dev_cases_text_isomers.jsonl.gz", "isomers")):
+        ranking_figures(load_cases(args.data / name, args.part, args.limit), label)
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

@@ -1,0 +1,392 @@
+"""Alternatives a reaction could have given: positional isomers, ambident alternatives, tautomers,
+and the products of a reaction SMARTS.
+
+A chemist has the product they meant to make; the question is which of its alternatives the
+spectrum supports.  :func:`isomers` generates them with a short relation label each:
+
+* **positional**: every substituent of an aromatic or heteroaromatic ring (five- and six-membered
+  rings and fused ring systems) moved to every other free position (a ring atom carrying H) of its
+  ring system, and every pair of substituents on one ring system swapped;
+* **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways);
+  N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
+  benzimidazole); C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
+* **tautomer**: RDKit's tautomer enumerator;
+* a **reaction SMARTS** with its reactants: every product RDKit's reaction engine gives.
+
+Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
+constitution whatever the stereochemistry or the Kekulé form; the given structure included) are removed; more alternatives than ``limit`` end
+in a clear error.
+
+>>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
+['F moved from ring atom 5 to ring atom 4 (now meta to C)', 'F moved from ring atom 5 to ring atom 3 (now ortho to C)']
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from rdkit import Chem
+from rdkit.Chem import AllChem
+from rdkit.Chem.MolStandardize import rdMolStandardize
+
+from ..errors import InputError
+from ..inputs.molecules import to_mol
+
+KINDS = ("positional", "ambident", "tautomer")
+DEFAULT_KINDS = ("positional", "ambident")
+LIMIT = 500
+
+
+@dataclass(frozen=True)
+class Alternative:
+    """One generated alternative: its SMILES and how it relates to the given structure."""
+
+    smiles: str
+    relation: str
+    kind: str
+
+    def to_dict(self) -> dict:
+        return {"smiles": self.smiles, "relation": self.relation, "kind": self.kind}
+
+
+def structure_key(mol: Chem.Mol) -> str:
+    """Identity of a constitution regardless of stereochemistry and of how its double bonds are drawn
+    (Kekulé or resonance forms): canonical SMILES of the graph with every bond single, keeping
+    each atom's element, charge and H count."""
+    rw = Chem.RWMol(mol)
+    for a in rw.GetAtoms():
+        a.SetNumExplicitHs(a.GetTotalNumHs())
+        a.SetNoImplicit(True)
+        a.SetIsAromatic(False)
+        a.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
+    for b in rw.GetBonds():
+        b.SetBondType(Chem.BondType.SINGLE)
+        b.SetIsAromatic(False)
+        b.SetStereo(Chem.BondStereo.STEREONONE)
+    m = rw.GetMol()
+    m.UpdatePropertyCache(strict=False)
+    return Chem.MolToSmiles(m, isomericSmiles=False, allHsExplicit=True)
+
+
+_key = structure_key
+
+
+def _finish(rw: Chem.RWMol) -> Chem.Mol | None:
+    """Sanitised copy of an edited molecule (aromaticity re-perceived), or None when RDKit refuses it."""
+    try:
+        m = rw.GetMol()
+        m.UpdatePropertyCache(strict=False)
+        smi = Chem.MolToSmiles(m)
+        out = Chem.MolFromSmiles(smi)
+        return out
+    except Exception:  # noqa: BLE001 - an impossible edit is simply not an alternative
+        return None
+
+
+def _ring_systems(mol: Chem.Mol) -> list[set[int]]:
+    """Aromatic ring systems: fused aromatic 5- and 6-membered rings merged."""
+    rings = [set(r) for r in mol.GetRingInfo().AtomRings()
+             if len(r) in (5, 6) and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
+    systems: list[set[int]] = []
+    for r in rings:
+        merged = [s for s in systems if len(s & r) >= 2]
+        for s in merged:
+            systems.remove(s)
+            r = r | s
+        systems.append(r)
+    return systems
+
+
+def _side(mol: Chem.Mol, root: int, cut: int) -> list[int]:
+    """Atoms reachable from ``root`` without passing through ``cut`` (the substituent's atoms)."""
+    seen, stack = {root}, [root]
+    while stack:
+        a = stack.pop()
+        for nb in mol.GetAtomWithIdx(a).GetNeighbors():
+            j = nb.GetIdx()
+            if j != cut and j not in seen:
+                seen.add(j)
+                stack.append(j)
+    return sorted(seen)
+
+
+def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
+    atoms = _side(mol, root, ring_atom)
+    if ring_atom in atoms:  # the substituent closes back onto the ring: not a simple substituent
+        return ""
+    smi = Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=False)
+    return smi if len(smi) <= 24 else smi[:22] + "…"
+
+
+def _substituents(mol: Chem.Mol, system: set[int]) -> list[tuple[int, int, str]]:
+    """(ring atom, substituent root atom, name) of every single-bonded, non-ring substituent of a ring system."""
+    out = []
+    for r in sorted(system):
+        for b in mol.GetAtomWithIdx(r).GetBonds():
+            x = b.GetOtherAtomIdx(r)
+            if x in system or b.IsInRing() or b.GetBondType() != Chem.BondType.SINGLE:
+                continue
+            name = _fragment_name(mol, x, r)
+            if name:
+                out.append((r, x, name))
+    return out
+
+
+def _free(mol: Chem.Mol, i: int) -> bool:
+    a = mol.GetAtomWithIdx(i)
+    return a.GetTotalNumHs() > 0 and a.GetAtomicNum() in (6, 7)
+
+
+def _reattach(mol: Chem.Mol, moves: list[tuple[int, int, int]], keep_h_off: bool = False) -> Chem.Mol | None:
+    """Move substituent roots: each (old ring atom, root, new ring atom).  A ring N that loses its
+    substituent takes an H ([nH]) unless ``keep_h_off`` (an azole N1 → N2 move: it becomes pyridine-like)."""
+    rw = Chem.RWMol(mol)
+    for old, root, new in moves:
+        rw.RemoveBond(old, root)
+    for old, root, new in moves:
+        rw.AddBond(new, root, Chem.BondType.SINGLE)
+    touched = {old for old, _, _ in moves} | {new for _, _, new in moves}
+    for i in touched:
+        a = rw.GetAtomWithIdx(i)
+        a.SetNoImplicit(False)
+        a.SetNumExplicitHs(0)
+    for i in touched:  # ring N: [nH] when it lost its substituent and needs the H, plain n when it gained one
+        a = rw.GetAtomWithIdx(i)
+        if a.GetAtomicNum() == 7 and a.GetIsAromatic():
+            heavy = a.GetDegree()
+            a.SetNoImplicit(True)
+            a.SetNumExplicitHs(1 if heavy == 2 and not keep_h_off and not a.GetFormalCharge()
+                               and mol.GetAtomWithIdx(i).GetTotalNumHs() == 0 and any(o == i for o, _, _ in moves) else 0)
+    return _finish(rw)
+
+
+def _relative(mol: Chem.Mol, system: set[int], target: int, others: list[tuple[int, str]]) -> str:
+    """'ortho/meta/para to X' for a six-membered ring with one other substituent (else '')."""
+    rings = [r for r in mol.GetRingInfo().AtomRings() if target in r and len(r) == 6 and set(r) <= system]
+    if not rings or len(others) != 1:
+        return ""
+    ring = rings[0]
+    r_other, name = others[0]
+    if r_other not in ring:
+        return ""
+    d = abs(ring.index(target) - ring.index(r_other))
+    d = min(d, 6 - d)
+    return f" (now {['ipso', 'ortho', 'meta', 'para'][d]} to {name})" if d else ""
+
+
+def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    out = []
+    for system in _ring_systems(mol):
+        # a group on a neutral five-ring nitrogen is an N-substituent: its alternatives are the other ring
+        # N (ambident); groups on carbons and on charged six-ring N (pyridinium, N-oxide) move around
+        subs = [s for s in _substituents(mol, system) if mol.GetAtomWithIdx(s[0]).GetAtomicNum() == 6
+                or (mol.GetAtomWithIdx(s[0]).GetFormalCharge() > 0 and mol.GetAtomWithIdx(s[0]).IsInRingSize(6))]
+        free = [i for i in sorted(system) if _free(mol, i)]
+        for r, x, name in subs:
+            others = [(r2, n2) for r2, x2, n2 in subs if (r2, x2) != (r, x)]
+            for t in free:
+                if t == r:
+                    continue
+                m = _reattach(mol, [(r, x, t)])
+                if m is not None:
+                    out.append((m, f"{name} moved from ring atom {r + 1} to ring atom {t + 1}"
+                                   f"{_relative(mol, system, t, others)}"))
+        for k, (r1, x1, n1) in enumerate(subs):
+            for r2, x2, n2 in subs[k + 1:]:
+                if r1 == r2 or n1 == n2:
+                    continue
+                m = _reattach(mol, [(r1, x1, r2), (r2, x2, r1)])
+                if m is not None:
+                    out.append((m, f"{n1} and {n2} swapped (ring atoms {r1 + 1} and {r2 + 1})"))
+    return out
+
+
+def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """N1 ↔ N2 (↔ N3 …) of an N-substituted azole: the substituent moved to every other ring nitrogen
+    of the same five-membered aromatic ring (or its fused system) that carries neither H nor substituent."""
+    out = []
+    for system in _ring_systems(mol):
+        five = [set(r) for r in mol.GetRingInfo().AtomRings() if len(r) == 5 and set(r) <= system]
+        if not five:
+            continue
+        ring_n = [i for i in sorted(system) if mol.GetAtomWithIdx(i).GetAtomicNum() == 7]
+        for r, x, name in _substituents(mol, system):
+            if r not in ring_n or not any(r in f for f in five):
+                continue
+            for t in ring_n:
+                a = mol.GetAtomWithIdx(t)
+                if t == r or a.GetDegree() != 2 or a.GetTotalNumHs() or a.GetFormalCharge():
+                    continue
+                if not any(t in f for f in five):
+                    continue  # a pyridine-type N of a fused six-membered ring does not take the group
+                m = _reattach(mol, [(r, x, t)], keep_h_off=True)
+                if m is not None:
+                    out.append((m, f"{name} on ring N (atom {t + 1}) instead of ring N (atom {r + 1})"))
+    return out
+
+
+# C- against O-alkylation of 1,3-dicarbonyls, on the Kekulé form: (reaction SMARTS, relation)
+_DICARBONYL = [
+    ("[C;!$(C=*):1](-[CX4:6])(-[C:2]=[O:3])-[C:4]=[O:5]>>[C:1](=[C:2]-[O:3]-[C:6])-[C:4]=[O:5]",
+     "O-alkyl enol ether instead of C-alkyl (1,3-dicarbonyl)"),
+    ("[C:1](=[C:2]-[O:3]-[CX4:6])-[C:4]=[O:5]>>[C:1](-[C:6])(-[C:2]=[O:3])-[C:4]=[O:5]",
+     "C-alkyl instead of O-alkyl enol ether (1,3-dicarbonyl)"),
+]
+_DICARBONYL_RXNS = None
+
+
+def _group_kind(mol: Chem.Mol, root: int) -> str | None:
+    """'alkyl' (sp3 carbon), 'acyl' (C=O carbon) or None for a group that does not migrate between N and O."""
+    a = mol.GetAtomWithIdx(root)
+    if a.GetAtomicNum() != 6 or a.GetIsAromatic():
+        return None
+    if any(b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() == 8 for b in a.GetBonds()):
+        return "acyl"
+    return "alkyl" if a.GetHybridization() == Chem.HybridizationType.SP3 else None
+
+
+def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """N- against O-alkylation/acylation of amides, lactams and pyridones, both ways (manual edit, so
+    that aromatic pyridones and alkoxy-azines keep their aromatic form)."""
+    out = []
+    for c in mol.GetAtoms():
+        if c.GetAtomicNum() != 6:
+            continue
+        for bo in c.GetBonds():
+            o = bo.GetOtherAtom(c)
+            if o.GetAtomicNum() != 8:
+                continue
+            for bn in c.GetBonds():
+                n = bn.GetOtherAtom(c)
+                if n.GetAtomicNum() != 7 or n.GetFormalCharge() or o.GetFormalCharge():
+                    continue
+                # N-R amide / lactam / pyridone  ->  O-R imidate / alkoxy-azine
+                if bo.GetBondType() == Chem.BondType.DOUBLE and not n.GetTotalNumHs():
+                    for bx in n.GetBonds():
+                        x = bx.GetOtherAtom(n)
+                        if x.GetIdx() == c.GetIdx() or bx.IsInRing() or bx.GetBondType() != Chem.BondType.SINGLE:
+                            continue
+                        kind = _group_kind(mol, x.GetIdx())
+                        if kind is None or n.GetDegree() > 3:
+                            continue
+                        rw = Chem.RWMol(mol)
+                        rw.RemoveBond(n.GetIdx(), x.GetIdx())
+                        rw.AddBond(o.GetIdx(), x.GetIdx(), Chem.BondType.SINGLE)
+                        rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(Chem.BondType.SINGLE)
+                        if not bn.GetIsAromatic():
+                            rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(Chem.BondType.DOUBLE)
+                        rn = rw.GetAtomWithIdx(n.GetIdx())
+                        rn.SetNoImplicit(True)
+                        rn.SetNumExplicitHs(0)
+                        m = _finish(rw)
+                        if m is not None:
+                            out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx() + 1} to O atom {o.GetIdx() + 1})"))
+                # O-R imidate / alkoxy-azine  ->  N-R amide / pyridone
+                if bo.GetBondType() == Chem.BondType.SINGLE and not bo.GetIsAromatic() and o.GetDegree() == 2 \
+                        and not n.GetTotalNumHs() and n.GetDegree() == 2 and \
+                        (bn.GetBondType() == Chem.BondType.DOUBLE or bn.GetIsAromatic()):
+                    x = next(b.GetOtherAtom(o) for b in o.GetBonds() if b.GetOtherAtom(o).GetIdx() != c.GetIdx())
+                    kind = _group_kind(mol, x.GetIdx())
+                    if kind is None:
+                        continue
+                    rw = Chem.RWMol(mol)
+                    rw.RemoveBond(o.GetIdx(), x.GetIdx())
+                    rw.AddBond(n.GetIdx(), x.GetIdx(), Chem.BondType.SINGLE)
+                    rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(Chem.BondType.DOUBLE)
+                    if not bn.GetIsAromatic():
+                        rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(Chem.BondType.SINGLE)
+                    rn = rw.GetAtomWithIdx(n.GetIdx())
+                    rn.SetNoImplicit(True)
+                    rn.SetNumExplicitHs(0)
+                    m = _finish(rw)
+                    if m is not None:
+                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx() + 1} to N atom {n.GetIdx() + 1})"))
+    return out
+
+
+def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    global _DICARBONYL_RXNS
+    if _DICARBONYL_RXNS is None:
+        _DICARBONYL_RXNS = [(AllChem.ReactionFromSmarts(s), lab) for s, lab in _DICARBONYL]
+    out = _azole_moves(mol) + _n_o_moves(mol)
+    kek = Chem.Mol(mol)
+    try:
+        Chem.Kekulize(kek, clearAromaticFlags=True)
+    except Exception:  # noqa: BLE001
+        return out
+    for rxn, label in _DICARBONYL_RXNS:
+        for prods in rxn.RunReactants((kek,)):
+            m = _finish(Chem.RWMol(prods[0]))
+            if m is not None:
+                out.append((m, label))
+    return out
+
+
+def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    enum = rdMolStandardize.TautomerEnumerator()
+    enum.SetMaxTautomers(50)
+    return [(m, "tautomer") for m in enum.Enumerate(mol)]
+
+
+def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
+    try:
+        rxn = AllChem.ReactionFromSmarts(smarts)
+    except Exception as exc:  # noqa: BLE001 - RDKit's parse error, reported to the user
+        raise InputError(f"reaction SMARTS '{smarts}': RDKit cannot read it ({exc})") from None
+    if rxn is None or rxn.GetNumReactantTemplates() == 0:
+        raise InputError(f"reaction SMARTS '{smarts}': no reactant templates")
+    mols = [to_mol(s) for s in reactants.split(".")] if reactants else []
+    n = rxn.GetNumReactantTemplates()
+    if len(mols) != n:
+        raise InputError(f"reaction SMARTS '{smarts}' takes {n} reactant(s); --reactants gave {len(mols)} "
+                         "(separate them with '.')")
+    out = []
+    for k, prods in enumerate(rxn.RunReactants(tuple(mols))):
+        for j, p in enumerate(prods):
+            m = _finish(Chem.RWMol(p))
+            if m is not None:
+                out.append((m, f"reaction product (outcome {k + 1}, product {j + 1})"))
+    return out
+
+
+def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None, reactants: str | None = None,
+            limit: int = LIMIT) -> list[Alternative]:
+    """Alternatives to ``smiles`` of the given ``kinds`` (any of :data:`KINDS`) and/or the products of
+    ``reaction`` (a reaction SMARTS) applied to ``reactants`` ('.'-separated SMILES).
+
+    The given structure itself is never returned; duplicates are removed by canonical SMILES without
+    stereochemistry.  Raises :class:`InputError` for a bad SMILES, an unknown kind, or more than
+    ``limit`` alternatives.
+    """
+    if isinstance(kinds, str):
+        kinds = tuple(k.strip() for k in kinds.split(",") if k.strip())
+    bad = [k for k in kinds if k not in KINDS]
+    if bad:
+        raise InputError(f"kind '{bad[0]}': use {', '.join(KINDS)}")
+    if smiles is None and not reaction:
+        raise InputError("isomers: give a SMILES, or a reaction SMARTS with its reactants")
+    mol = to_mol(smiles) if smiles is not None else None
+    if mol is not None and mol.GetNumHeavyAtoms() > 200:
+        raise InputError(f"SMILES '{smiles[:40]}…': {mol.GetNumHeavyAtoms()} heavy atoms; isomer generation is "
+                         "limited to 200")
+    found: list[tuple[Chem.Mol, str, str]] = []
+    if mol is not None:
+        if "positional" in kinds:
+            found += [(m, lab, "positional") for m, lab in _positional(mol)]
+        if "ambident" in kinds:
+            found += [(m, lab, "ambident") for m, lab in _ambident(mol)]
+        if "tautomer" in kinds:
+            found += [(m, lab, "tautomer") for m, lab in _tautomers(mol)]
+    if reaction:
+        found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
+    seen = {_key(mol)} if mol is not None else set()
+    out: list[Alternative] = []
+    for m, lab, kind in found:
+        k = _key(m)
+        if k in seen:
+            continue
+        seen.add(k)
+        out.append(Alternative(Chem.MolToSmiles(m), lab, kind))
+        if len(out) > limit:
+            raise InputError(f"more than {limit} alternatives for '{smiles or reaction}'; narrow the kinds "
+                             "(--kind positional) or raise the limit (--limit)")
+    return out

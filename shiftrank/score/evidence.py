@@ -1,0 +1,335 @@
+"""What one nucleus's spectrum says about one candidate: classes, observed peaks, assignment, flags.
+
+One small strategy object per nucleus (:class:`CarbonEvidence`, :class:`ProtonEvidence`) turns a
+candidate's predicted shifts and its symmetry classes into :class:`~shiftrank.score.matching.SignalClass`
+objects, a printed or typed peak list into :class:`~shiftrank.score.matching.ObservedPeak` objects, and
+runs the shared assignment (:func:`shiftrank.score.matching.assign`).  The nucleus decides only:
+
+* 13C: one class per set of equivalent carbons with its CHn; a DEPT multiplicity that differs costs
+  ``multiplicity_mismatch``;
+* 1H: one class per set of equivalent H-bearing atoms with its number of protons and its expected
+  first-order multiplet (:mod:`shiftrank.chem.couplings`); with printed integrals the assignment runs
+  over protons; printed letters and J values that the expected multiplet cannot produce cost
+  ``multiplicity_mismatch`` and ``j_mismatch``; an unobserved OH/NH/SH class is cheap.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+from rdkit import Chem
+
+from ..chem.couplings import carbon_multiplets, expected_multiplets, fit_cost
+from ..chem.inventory import integer_ratio
+from ..chem.structure import carbon_classes
+from ..errors import InputError
+from ..inputs.peaks import PeakList
+from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
+
+#: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
+INTEGRAL_SHARE = 0.8
+
+
+def _r(x, nd):
+    return None if x is None or (isinstance(x, float) and not np.isfinite(x)) else round(float(x), nd)
+
+
+@dataclass
+class NucleusResult:
+    """How a candidate explains one nucleus's peaks."""
+
+    nucleus: str
+    classes: list[SignalClass]
+    peaks: list[ObservedPeak]
+    assignment: Assignment
+    flags: list[str] = field(default_factory=list)
+    by_protons: bool = False          # 1H: assignment over protons (integrals given)
+
+    @property
+    def cost(self) -> float:
+        return self.assignment.total_cost
+
+    @property
+    def deviations(self) -> list[float]:
+        return [p.deviation for p in self.assignment.pairings if p.deviation is not None]
+
+    @property
+    def mae(self) -> float | None:
+        d = self.deviations
+        return float(np.mean(np.abs(d))) if d else None
+
+    @property
+    def max_abs_deviation(self) -> float | None:
+        d = self.deviations
+        return float(np.max(np.abs(d))) if d else None
+
+    @property
+    def beyond_3sigma(self) -> int:
+        return len({p.cls for p in self.assignment.pairings if p.z is not None and abs(p.z) > 3})
+
+    @property
+    def observed_signals(self) -> int:
+        return sum(1 for p in self.peaks if not p.solvent)
+
+    def assignment_table(self) -> list[dict]:
+        """One row per class and peak it takes (unobserved classes too), with the notes a reader needs."""
+        rows = []
+        for p in self.assignment.pairings:
+            c = self.classes[p.cls]
+            notes = (["unobserved" + (" (exchangeable)" if c.exchangeable else "")] if p.peak is None else []) \
+                + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
+                + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"])
+            row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
+                   "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2), "peak": p.peak,
+                   "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
+                   "deviation": _r(p.deviation, 2), "z": _r(p.z, 2), "shared_peak": p.shared,
+                   "multiplicity_ok": p.multiplicity_ok, "notes": notes}
+            if self.nucleus == "1H":
+                row["protons"] = c.units if self.by_protons else (c.expected.n_h if c.expected is not None else None)
+                if self.by_protons:
+                    row["protons_on_peak"] = p.units
+                if p.peak is not None:
+                    pk = self.peaks[p.peak]
+                    row["observed_multiplicity"] = pk.multiplicity
+                    row["observed_range"] = [pk.lo, pk.hi] if pk.lo is not None else None
+            rows.append(row)
+        return rows
+
+    def to_dict(self, detail: bool = False) -> dict:
+        d = {"expected_signals": len(self.classes), "observed_signals": self.observed_signals,
+             "mae": _r(self.mae, 3), "max_deviation": _r(self.max_abs_deviation, 2),
+             "beyond_3sigma": self.beyond_3sigma, "cost": _r(self.cost, 3),
+             "cost_parts": {k: _r(v, 3) for k, v in self.assignment.parts.items()}, "flags": self.flags}
+        if detail:
+            d["assignment"] = self.assignment_table()
+            d["unmatched_peaks"] = self.assignment.unmatched_peaks
+        return d
+
+
+@dataclass
+class Prepared:
+    """What a nucleus's comparison needs that does not depend on the cost settings: the candidate's
+    classes, the peaks as this candidate reads them (13C: C–F/C–P lines printed separately may be read
+    as one carbon), 0/1 misfit matrices (classes × peaks) and notes."""
+
+    classes: list[SignalClass]
+    peaks: list[ObservedPeak]
+    bad_pattern: np.ndarray     # printed multiplicity the class cannot show (DEPT for 13C, letters for 1H)
+    bad_j: np.ndarray           # printed J values the class cannot explain (13C: C–F/C–P; 1H: H–H, H–F …)
+    notes: list[str] = field(default_factory=list)
+
+
+class _Evidence:
+    nucleus = ""
+
+    def mismatch(self, prepared: Prepared, costs: MatchCosts) -> np.ndarray:
+        return prepared.bad_pattern * costs.multiplicity_mismatch + prepared.bad_j * costs.j_mismatch
+
+    def evaluate(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], costs: MatchCosts,
+                 prepared: Prepared | None = None) -> NucleusResult:
+        pr = prepared or self.prepare(mol, ranks, mu, sg, peaks)
+        a = assign(pr.classes, pr.peaks, costs, self.mismatch(pr, costs))
+        res = NucleusResult(self.nucleus, pr.classes, pr.peaks, a,
+                            by_protons=any(p.capacity is not None for p in pr.peaks))
+        res.flags = list(pr.notes) + self.flags(res)
+        return res
+
+
+class CarbonEvidence(_Evidence):
+    """13C: carbons by symmetry class and CHn; DEPT multiplicities compared exactly; printed C–F and
+    C–P splittings compared with the candidate's carbons one to four bonds from F (three from P)."""
+
+    nucleus = "13C"
+
+    def observed(self, pl: PeakList) -> list[ObservedPeak]:
+        return [ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
+                             coupling=p.coupling, field=pl.field_mhz) for p in pl.peaks]
+
+    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks) -> list[SignalClass]:
+        return [SignalClass(c.atoms, c.multiplicity, float(np.mean([mu[a] for a in c.atoms])),
+                            float(np.mean([sg[a] for a in c.atoms]))) for c in carbon_classes(mol, ranks)]
+
+    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak]) -> Prepared:
+        classes = self.classes(mol, ranks, mu, sg, peaks)
+        couplings = carbon_multiplets(mol, classes, ranks)
+        for c, e in zip(classes, couplings):
+            c.expected = e
+        notes: list[str] = []
+        if any(e.groups for e in couplings):
+            peaks, notes = collapse_split_lines(classes, peaks)
+        bad_p = np.array([[p.multiplicity is not None and p.multiplicity != c.multiplicity for p in peaks]
+                          for c in classes], dtype=float).reshape(len(classes), len(peaks))
+        bad_j = np.zeros_like(bad_p)
+        for j, p in enumerate(peaks):
+            if p.coupling is None and not p.j:
+                continue
+            for i, c in enumerate(classes):
+                pat, nj = fit_cost(c.expected, p.coupling, p.j, tolerance=2.0)
+                bad_j[i, j] = pat + nj
+        return Prepared(classes, peaks, bad_p, bad_j, notes)
+
+    def flags(self, res: NucleusResult) -> list[str]:
+        out = _count_flags(res, "signals") + _quality_flags(res, "carbons")
+        n_mm = sum(1 for p in res.assignment.pairings if not p.multiplicity_ok)
+        if n_mm:
+            out.append(f"{n_mm} 13C peaks assigned against their printed multiplicity (DEPT, C–F or C–P splitting)")
+        return out
+
+
+#: Lines of a printed C–F/C–P multiplet: equal spacing within this fraction (or 0.03 ppm) counts as equal.
+SPACING_TOLERANCE = 0.12
+#: 13C frequencies assumed when the text does not give one (MHz).
+FIELD_RANGE = (75.0, 151.0)
+
+
+def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) -> tuple[list[ObservedPeak], list[str]]:
+    """Read lines printed separately as one split carbon where this candidate has a carbon that splits
+    so: the expected number of lines, equally spaced by a J the carbon's distance from F or P allows at
+    the stated frequency, centred within reach of the carbon's prediction.  Never on spacing alone: a
+    candidate without such a carbon keeps every line."""
+    free = [j for j, p in enumerate(peaks) if not p.solvent and p.coupling is None and not p.j]
+    used: set[int] = set()
+    merged: list[ObservedPeak] = []
+    notes: list[str] = []
+    order = sorted(range(len(classes)), key=lambda i: -max((g.j_range[1] for g in classes[i].expected.groups), default=0))
+    for i in order:
+        c = classes[i]
+        req = [g for g in c.expected.groups if not g.optional]
+        if len(req) != 1:
+            continue
+        g = req[0]
+        lines = g.n + 1
+        field = next((peaks[j].field for j in free if peaks[j].field), None)
+        fmin, fmax = (field, field) if field else FIELD_RANGE
+        smin, smax = g.j_range[0] / fmax, g.j_range[1] / fmin
+        cand = sorted((peaks[j].shift, j) for j in free if j not in used)
+        best = None
+        for a in range(len(cand)):
+            for b in range(a + 1, len(cand)):
+                s = cand[b][0] - cand[a][0]
+                if s > smax:
+                    break
+                if s < smin:
+                    continue
+                chosen = [cand[a][1], cand[b][1]]
+                pos = cand[b][0]
+                for _ in range(lines - 2):
+                    target = pos + s
+                    hit = min(((abs(x - target), j) for x, j in cand if j not in chosen), default=(np.inf, None))
+                    if hit[0] > max(0.03, SPACING_TOLERANCE * s):
+                        break
+                    chosen.append(hit[1])
+                    pos = peaks[hit[1]].shift
+                if len(chosen) != lines:
+                    continue
+                centre = float(np.mean([peaks[j].shift for j in chosen]))
+                miss = abs(centre - c.shift)
+                if miss <= 3 * c.sigma + 2.0 and (best is None or miss < best[0]):
+                    best = (miss, chosen, centre, s)
+        if best is None:
+            continue
+        _, chosen, centre, s = best
+        used.update(chosen)
+        letter = {2: "d", 3: "t", 4: "q"}.get(lines, "m")
+        j_hz = (s * field,) if field else ()
+        merged.append(ObservedPeak(round(centre, 3), None, False, coupling=letter, j=j_hz, field=field))
+        shown = "/".join(f"{peaks[j].shift:g}" for j in sorted(chosen, key=lambda j: peaks[j].shift))
+        notes.append(f"{lines} lines {shown} read as one carbon split by {g.partner} ({letter}, "
+                     + (f"J ≈ {s * field:.0f} Hz at {field:g} MHz" if field else f"spacing {s:.2f} ppm") + f") for atoms "
+                     + ",".join(str(a) for a in c.atoms))
+    if not used:
+        return peaks, []
+    out = [p for j, p in enumerate(peaks) if j not in used] + merged
+    out.sort(key=lambda p: p.shift)
+    return out, notes
+
+
+class ProtonEvidence(_Evidence):
+    """1H: proton classes with their counts and expected multiplets; integrals as units when printed."""
+
+    nucleus = "1H"
+
+    def observed(self, pl: PeakList) -> list[ObservedPeak]:
+        sample = [p for p in pl.peaks if p.solvent is None]
+        ints = [p.intensity for p in sample if p.intensity is not None and p.intensity > 0]
+        caps: dict[int, int] = {}
+        if sample and len(ints) >= INTEGRAL_SHARE * len(sample):
+            vals = np.array(ints, dtype=float)
+            if np.max(np.abs(vals - np.round(vals))) <= 0.2 and np.all(np.round(vals) >= 1):
+                scaled = np.round(vals).astype(int)
+            else:  # relative areas: the best small-integer ratio (inventory's rule)
+                try:
+                    scaled = np.array(integer_ratio(list(vals), max_multiplier=8), dtype=int)
+                except InputError:
+                    scaled = np.maximum(1, np.round(vals)).astype(int)
+            it = iter(scaled.tolist())
+            for k, p in enumerate(pl.peaks):
+                if p.solvent is None and p.intensity is not None and p.intensity > 0:
+                    caps[k] = max(1, int(next(it)))
+        out = []
+        for k, p in enumerate(pl.peaks):
+            out.append(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, p.lo, p.hi, tuple(p.j),
+                                    caps.get(k) if caps else None))
+        return out
+
+    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks) -> list[SignalClass]:
+        by_protons = any(p.capacity is not None for p in peaks)
+        out = []
+        for e in expected_multiplets(mol, ranks):
+            out.append(SignalClass(e.atoms, e.label().split(" (")[0], float(np.mean([mu[a] for a in e.atoms])),
+                                   float(np.mean([sg[a] for a in e.atoms])), e.n_h if by_protons else 1,
+                                   e.exchangeable, e))
+        return out
+
+    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak]) -> Prepared:
+        """Classes, and per class × peak the printed-letter misfit (0/1) and the unexplained J count."""
+        classes = self.classes(mol, ranks, mu, sg, peaks)
+        bad_p = np.zeros((len(classes), len(peaks)))
+        bad_j = np.zeros((len(classes), len(peaks)))
+        for j, p in enumerate(peaks):
+            if p.multiplicity is None and not p.j:
+                continue
+            for i, c in enumerate(classes):
+                bad_p[i, j], bad_j[i, j] = fit_cost(c.expected, p.multiplicity, p.j)
+        return Prepared(classes, peaks, bad_p, bad_j)
+
+    def flags(self, res: NucleusResult) -> list[str]:
+        out = _count_flags(res, "1H signals") + _quality_flags(res, "proton classes")
+        classes, peaks, a = res.classes, res.peaks, res.assignment
+        if res.by_protons:
+            n_h = sum(c.units for c in classes)
+            n_x = sum(c.units for c in classes if c.exchangeable)
+            printed = sum(p.capacity or 0 for p in peaks if not p.solvent)
+            if printed != n_h:
+                out.append(f"integrals sum to {printed} H; the candidate has {n_h} H"
+                           + (f" ({n_x} on O/N/S, often not seen)" if n_x else ""))
+        n_mm = len({p.cls for p in a.pairings if not p.multiplicity_ok})
+        if n_mm:
+            out.append(f"{n_mm} proton classes whose printed multiplet their neighbours cannot produce")
+        return out
+
+
+def _count_flags(res: NucleusResult, what: str) -> list[str]:
+    a, peaks = res.assignment, res.peaks
+    n_obs = res.observed_signals
+    n_unexplained = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent)
+    missing = [p for p in a.pairings if p.peak is None]
+    n_missing = len({p.cls for p in missing})
+    n_missing_x = len({p.cls for p in missing if res.classes[p.cls].exchangeable})
+    n_shared = len({p.cls for p in a.pairings if p.shared})
+    if len(res.classes) != n_obs:
+        return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
+                + (f"; {n_shared} classes share peaks" if n_shared else "")
+                + (f"; {n_missing} classes unobserved" if n_missing else "")
+                + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
+                + (f"; {n_unexplained} peaks unexplained" if n_unexplained else "")]
+    return [f"{n_unexplained} {res.nucleus} peaks unexplained"] if n_unexplained else []
+
+
+def _quality_flags(res: NucleusResult, what: str) -> list[str]:
+    n = res.beyond_3sigma
+    return [f"{n} {what} deviate by more than 3σ ({res.nucleus})"] if n else []
+
+
+EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence()}
+

@@ -1,0 +1,82 @@
+"""Generated alternatives against hand enumeration (molecules of our own choosing).
+
+Counting rules (common practice): positional isomers of a substituted benzene are the distinct
+arrangements of its substituents up to the ring's symmetry; an N-alkyl azole has one alternative per
+other ring N that can carry the group; an N-alkyl 2-pyridone has its O-alkyl (2-alkoxypyridine)
+alternative, and the other way round.
+"""
+import gzip
+import json
+
+import pytest
+from rdkit import Chem
+
+from shiftrank.chem.isomers import isomers, structure_key
+from shiftrank.errors import InputError
+
+
+def keys(alts):
+    return {structure_key(Chem.MolFromSmiles(a.smiles)) for a in alts}
+
+
+def key(smi):
+    return structure_key(Chem.MolFromSmiles(smi))
+
+
+def test_trisubstituted_benzene_gives_the_five_other_dichlorotoluenes():
+    # 2,4-dichlorotoluene: the six dichlorotoluenes are 2,3-, 2,4-, 2,5-, 2,6-, 3,4- and 3,5- (hand count);
+    # one move or one swap reaches each of the other five
+    alts = isomers("Cc1ccc(Cl)cc1Cl", kinds=("positional",))
+    expected = {key(s) for s in ("Cc1cccc(Cl)c1Cl", "Cc1cc(Cl)ccc1Cl", "Cc1c(Cl)cccc1Cl", "Cc1ccc(Cl)c(Cl)c1",
+                                 "Cc1cc(Cl)cc(Cl)c1")}
+    assert keys(alts) == expected and len(alts) == 5
+
+
+def test_n_alkyl_indazole_gives_its_n2_isomer():
+    alts = isomers("CCn1ncc2ccccc21")
+    assert keys(alts) == {key("CCn1cc2ccccc2n1")}
+    assert "instead of ring N" in alts[0].relation and alts[0].kind == "ambident"
+
+
+def test_pyridone_n_and_o_alkylation_both_ways():
+    assert keys(isomers("Cn1ccccc1=O")) == {key("COc1ccccn1")}
+    n_alt = [a for a in isomers("COc1ccccn1") if a.kind == "ambident"]
+    assert keys(n_alt) == {key("Cn1ccccc1=O")} and "N-alkyl instead of O-alkyl" in n_alt[0].relation
+
+
+def test_naphthalene_substituent_visits_the_other_position():
+    # 1-methylnaphthalene: 2-methylnaphthalene is the only other methylnaphthalene (hand count)
+    assert keys(isomers("Cc1cccc2ccccc12")) == {key("Cc1ccc2ccccc2c1")}
+
+
+def test_dicarbonyl_c_and_o_alkylation():
+    assert keys(isomers("CC(=O)C(C)C(C)=O", kinds=("ambident",))) == {key("COC(C)=CC(C)=O")}
+
+
+def test_given_structure_and_duplicates_are_not_repeated():
+    alts = isomers("Cc1ccc(C)cc1", kinds=("positional",))   # p-xylene: o- and m-xylene only
+    assert keys(alts) == {key("Cc1ccccc1C"), key("Cc1cccc(C)c1")}
+
+
+def test_reaction_smarts_products_and_errors():
+    alts = isomers(None, kinds=(), reaction="[c:1][OH:2].[CH3:3][Br]>>[c:1][O:2][CH3:3]", reactants="Oc1ccc(O)cc1.CBr")
+    assert keys(alts) == {key("COc1ccc(O)cc1")}
+    with pytest.raises(InputError, match="takes 2 reactant"):
+        isomers(None, kinds=(), reaction="[c:1][OH:2].[CH3:3][Br]>>[c:1][O:2][CH3:3]", reactants="Oc1ccccc1")
+    with pytest.raises(InputError, match="kind 'regio'"):
+        isomers("c1ccccc1C", kinds=("regio",))
+    with pytest.raises(InputError, match="more than 3 alternatives"):
+        isomers("Cc1ccc(Cl)cc1Br", kinds=("positional",), limit=3)
+
+
+def test_development_regio_cases_are_reproduced(shared_data):
+    """Every candidate of the development regio cases is a one-substituent move of the truth."""
+    missing = []
+    with gzip.open(shared_data / "dev_cases_regio.jsonl.gz", "rt") as f:
+        for n, line in enumerate(f):
+            if n >= 300:
+                break
+            c = json.loads(line)
+            made = keys(isomers(c["truth"], kinds=("positional",))) | {key(c["truth"])}
+            missing += [s for s in c["candidates"] if key(s) not in made]
+    assert not missing, missing[:5]
