@@ -1,121 +1,248 @@
-"""Fit the ranking's penalty terms and temperature on development cases (run after train_13c).
+"""Fit the ranking's costs and temperatures on development cases (run after the models are trained).
 
-    python -m training.calibrate_ranking [--data DIR] [--models models/]
+    python -m training.calibrate_ranking [--data DIR] [--models models/] [--steps 13C,1H,joint]
 
-Only cases whose true structure's skeleton lies in the predictor's *validation*
-split are used (the predictor never trained on them); cases in the *test*
-split are kept for the reliability table in benchmarks/bench_ranking.py.
-The 'truth' field is used here only to score the settings, never passed to
-the ranker.  Writes the chosen values into models/manifest.json under "ranking".
+Development cases, never the test split nor the held-out half of the literature:
+
+* database cases (``dev_cases_isomers``, ``dev_cases_regio``) whose true structure's skeleton lies
+  in the predictor's *validation* split, ranked with and without DEPT multiplicities;
+* printed-text cases (``dev_cases_text_regio``, ``dev_cases_text_isomers``) of the *dev* half of the
+  literature split (:func:`training.data.literature_part`), ranked from the 13C paragraph, from the
+  1H paragraph, and from both.
+
+Steps:
+
+* ``13C``: the 13C costs (overlap for near and far twins, missing for any / quaternary / crowded
+  classes, extra peaks, DEPT and C–F/C–P mismatches) by coordinate descent over small grids; the
+  objective is the mean top-1 over the three 13C sets (database with multiplicities, database shifts
+  only, printed 13C), ties broken by the log-likelihood of the truth; then the 13C temperature by
+  maximum likelihood over the same sets;
+* ``1H``: the same for the 1H costs on the printed 1H paragraphs;
+* ``joint``: the two temperatures used when both nuclei are observed, by maximum likelihood on cases
+  ranked from both paragraphs.
+
+The 'truth' field only scores the settings; it never reaches the ranker.  Writes the values into
+``models/manifest.json`` under ``ranking``.
 """
 from __future__ import annotations
 
 import argparse
+import ast
 import gzip
-import itertools
 import json
 import time
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
-from scipy.optimize import minimize_scalar
+from scipy.optimize import minimize
 
+from shiftrank.score.evidence import EVIDENCE
 from shiftrank.score.matching import MatchCosts, assign
-from shiftrank.prediction.model_files import load_shift_model, read_manifest
-from shiftrank.prediction.environment import environments_of
-from shiftrank.score.ranking import _candidate, _prepare, as_peaklist, observed_peaks
-from training.data import DEFAULT_DATA, split_of
+from shiftrank.score.ranking import _parse, ranking_settings, stage_cases
+from training.data import DEFAULT_DATA, literature_part, split_of
 
 REPO = Path(__file__).resolve().parents[1]
-FILES = ("dev_cases_isomers.jsonl.gz", "dev_cases_regio.jsonl.gz")
+DB_FILES = ("dev_cases_isomers.jsonl.gz", "dev_cases_regio.jsonl.gz")
+TEXT_FILES = ("dev_cases_text_regio.jsonl.gz", "dev_cases_text_isomers.jsonl.gz")
+GRID = {
+    "13C": {
+        "overlap": [0.5, 1.0, 2.0, 3.0, 4.5],
+        "overlap_far": [None, 2.0, 4.0, 6.0, 9.0],
+        "near_scale": [0.5, 1.0, 2.0, 4.0],
+        "missing": [2.0, 3.0, 4.5, 6.0, 9.0],
+        "missing_quaternary": [None, 1.0, 2.0, 3.0],
+        "missing_near": [None, 1.0, 2.0, 3.0],
+        "extra": [3.0, 6.0, 9.0, 12.0],
+        "multiplicity_mismatch": [4.0, 6.0, 9.0, 12.0],
+        "j_mismatch": [1.0, 2.0, 4.0, 6.0],
+    },
+    "1H": {
+        "overlap": [0.5, 1.0, 2.0, 3.0],
+        "overlap_far": [None, 1.0, 2.0, 4.0],
+        "near_scale": [0.05, 0.1, 0.2, 0.4],
+        "missing": [1.5, 3.0, 5.0, 8.0],
+        "extra": [1.0, 2.0, 4.0, 6.0, 9.0],
+        "multiplicity_mismatch": [0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
+        "j_mismatch": [0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
+        "missing_exchangeable": [0.1, 0.5, 1.0, 2.0],
+        "integral_mismatch": [0.5, 1.0, 1.5, 2.5, 4.0],
+    },
+}
+KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale")]
 
 
-def load(data: Path, which: str):
-    cases = []
-    for name in FILES:
+def load_db_cases(data: Path, split: str = "val") -> list[dict]:
+    out = []
+    for name in DB_FILES:
         with gzip.open(data / name, "rt") as f:
             for line in f:
                 c = json.loads(line)
-                if split_of(c["truth_skeleton"]) == which:
-                    cases.append(c)
-    return cases
-
-
-def staged(cases, model, drop_mult: bool):
-    out = []
-    for c in cases:
-        pk = [{"shift": p["shift"]} if drop_mult else p for p in c["peaks"]]
-        peaks = observed_peaks(as_peaklist(pk))
-        preps = [_prepare(s, i, None) for i, s in enumerate(c["candidates"])]
-        preds = []
-        for p in preps:
-            if p.parts is None:
-                preds.append(None)
-                continue
-            mu, sg, _, _ = model.predict_env_arrays(environments_of([p.parts]))
-            preds.append((mu, sg))
-        truth = c["candidates"].index(c["truth"])
-        base = [_candidate(p, pr, peaks, MatchCosts()) if pr is not None else None for p, pr in zip(preps, preds)]
-        out.append((peaks, base, truth))
+                if split_of(c["truth_skeleton"]) == split:
+                    out.append(c)
     return out
 
 
-def case_costs(stage, costs: MatchCosts):
+def load_text_cases(data: Path, part: str = "dev") -> list[dict]:
+    out = []
+    for name in TEXT_FILES:
+        with gzip.open(data / name, "rt") as f:
+            for line in f:
+                c = json.loads(line)
+                if literature_part(c["truth_skeleton"]) == part:
+                    if isinstance(c["candidates"], str):
+                        c["candidates"] = ast.literal_eval(c["candidates"])
+                    out.append(c)
+    return out
+
+
+def build(c: dict, mode: str) -> dict:
+    """The ranking case of development case ``c`` for ``mode``: db (with DEPT), db-shifts, 13C, 1H, both."""
+    base = {"id": c["id"], "candidates": c["candidates"], "formula": c.get("formula"), "solvent": c.get("solvent")}
+    if mode == "db":
+        return {**base, "peaks": c["peaks"]}
+    if mode == "db-shifts":
+        return {**base, "peaks": [{"shift": p["shift"]} for p in c["peaks"]]}
+    text = {"both": c["text_1h"] + "\n" + c["text_13c"], "1H": c["text_1h"], "13C": c["text_13c"]}[mode]
+    return {**base, "text": text}
+
+
+def stage(cases: list[dict], mode: str) -> list:
+    """Per case: (truth index, {nucleus: (peaks, [Prepared or None per candidate])})."""
+    out = []
+    for c, s in zip(cases, stage_cases([build(c, mode) for c in cases])):
+        if isinstance(s, Exception):
+            continue
+        case, peaks, notes, _, _, _, preps = s
+        per = {}
+        for n, obs in peaks.items():
+            rows = []
+            for p in preps:
+                if p.error or n not in p.preds:
+                    rows.append(None)
+                    continue
+                _, ranks, _ = _parse(p.smiles)
+                centres = p.parts[n].centres.tolist()
+                mu, sg = dict(zip(centres, p.preds[n][0])), dict(zip(centres, p.preds[n][1]))
+                rows.append(EVIDENCE[n].prepare(p.mol, list(ranks), mu, sg, obs))
+            per[n] = (obs, rows)
+        out.append((c["candidates"].index(c["truth"]), per))
+    return out
+
+
+def raw_costs(staged, nucleus: str, costs: MatchCosts) -> list[tuple[np.ndarray, int]]:
+    ev = EVIDENCE[nucleus]
     rows = []
-    for peaks, base, truth in stage:
-        cs = np.array([assign(b.classes, peaks, costs).total_cost if b is not None else np.inf for b in base])
+    for truth, per in staged:
+        if nucleus not in per:
+            continue
+        _, preps = per[nucleus]
+        cs = np.array([assign(pr.classes, pr.peaks, costs, ev.mismatch(pr, costs)).total_cost if pr is not None else np.inf
+                       for pr in preps])
         rows.append((cs, truth))
     return rows
 
 
-def top1(rows) -> float:
-    return float(np.mean([np.argmin(cs) == t for cs, t in rows]))
-
-
-def nll(rows, T: float) -> float:
+def nll(rows, temps: np.ndarray) -> float:
+    """Mean negative log-probability of the truth; cost arrays per nucleus stacked in rows of 2-D arrays."""
     tot = 0.0
     for cs, t in rows:
-        z = -cs / T
-        z = z - np.max(z[np.isfinite(z)])
-        z[~np.isfinite(z)] = -np.inf
-        tot -= z[t] - np.log(np.sum(np.exp(z)))
-    return tot / len(rows)
+        z = -(cs / temps[:, None]).sum(axis=0) if cs.ndim == 2 else -cs / temps[0]
+        finite = np.isfinite(z)
+        z = np.where(finite, z - z[finite].max(), -np.inf)
+        tot -= z[t] - np.log(np.sum(np.exp(z[finite])))
+    return tot / max(len(rows), 1)
+
+
+def top1(rows) -> float:
+    return float(np.mean([np.argmin(cs if cs.ndim == 1 else cs.sum(axis=0)) == t for cs, t in rows]))
+
+
+def fit_temperature(rows) -> float:
+    return float(min(np.exp(np.linspace(-2, 4, 61)), key=lambda T: nll(rows, np.array([T]))))
+
+
+def objective(sets: list, nucleus: str, costs: MatchCosts) -> tuple[float, float]:
+    """Mean top-1 over the sets, then the log-likelihood at the best common temperature."""
+    rows_per = [raw_costs(s, nucleus, costs) for s in sets]
+    T = fit_temperature([r for rows in rows_per for r in rows])
+    return float(np.mean([top1(r) for r in rows_per])), -float(np.mean([nll(r, np.array([T])) for r in rows_per]))
+
+
+def fit_costs(sets: list, nucleus: str, start: MatchCosts, passes: int = 2) -> tuple[MatchCosts, tuple]:
+    cur = start
+    best = objective(sets, nucleus, cur)
+    print(f"  start {nucleus}: top-1 {best[0]:.4f}, log-lik {best[1]:.4f}", flush=True)
+    for _ in range(passes):
+        changed = False
+        for name, values in GRID[nucleus].items():
+            for v in values:
+                if v == getattr(cur, name):
+                    continue
+                cand = replace(cur, **{name: v})
+                score = objective(sets, nucleus, cand)
+                if score > best:
+                    best, cur, changed = score, cand, True
+                    print(f"    {name} = {v}: top-1 {score[0]:.4f}, log-lik {score[1]:.4f}", flush=True)
+        if not changed:
+            break
+    return cur, best
 
 
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=REPO / "models")
+    ap.add_argument("--steps", default="13C,1H,joint")
     args = ap.parse_args(argv)
+    steps = args.steps.split(",")
     t0 = time.time()
-    model = load_shift_model(args.models)
-    man = read_manifest(args.models)
-    u = man["nuclei"]["13C"]["uncertainty"]
-    cases = load(args.data, "val")
-    with_m = staged(cases, model, False)
-    no_m = staged(cases, model, True)
-    print(f"{len(cases)} validation-split cases staged in {time.time() - t0:.0f} s", flush=True)
-    best = None
-    grid = itertools.product([1.0, 2.5, 4.0], [3.0, 6.0, 9.0], [3.0, 6.0, 9.0], [4.0, 9.0, 15.0])
-    for ov, mi, ex, mm in grid:
-        costs = MatchCosts(u["t_df"], u["t_scale"], ov, mi, ex, mm)
-        a = top1(case_costs(with_m, costs))
-        b = top1(case_costs(no_m, costs))
-        score = a + b
-        if best is None or score > best[0]:
-            best = (score, costs, a, b)
-            print(f"  overlap {ov} missing {mi} extra {ex} mult {mm}: top-1 {a:.3f} / no mult {b:.3f}", flush=True)
-    _, costs, a, b = best
-    rows = case_costs(with_m, costs) + case_costs(no_m, costs)
-    res = minimize_scalar(lambda lt: nll(rows, float(np.exp(lt))), bounds=(-3, 4), method="bounded")
-    T = float(np.exp(res.x))
-    man["ranking"] = {"overlap": costs.overlap, "missing": costs.missing, "extra": costs.extra,
-                      "multiplicity_mismatch": costs.multiplicity_mismatch, "temperature": round(T, 4),
-                      "fitted_on": f"{len(cases)} development cases with truth skeleton in the validation split, "
-                                   "with and without multiplicities",
-                      "val_top1": round(a, 4), "val_top1_no_multiplicity": round(b, 4)}
-    (args.models / "manifest.json").write_text(json.dumps(man, indent=1))
-    print(f"chosen {man['ranking']} in {time.time() - t0:.0f} s")
+    settings = ranking_settings()
+    man_path = args.models / "manifest.json"
+    man = json.loads(man_path.read_text())
+    ranking = man.setdefault("ranking", {})
+    text_cases = load_text_cases(args.data, "dev")
+    print(f"{len(text_cases)} dev-half printed-text cases", flush=True)
+    fitted = dict(settings.costs)
+    if "13C" in steps:
+        db = load_db_cases(args.data, "val")
+        sets = [stage(db, "db"), stage(db, "db-shifts"), stage(text_cases, "13C")]
+        print(f"13C: {len(db)} validation-split database cases and {len(sets[2])} text cases staged "
+              f"in {time.time() - t0:.0f} s", flush=True)
+        costs, score = fit_costs(sets, "13C", settings.costs["13C"])
+        fitted["13C"] = costs
+        T = fit_temperature([r for s in sets for r in raw_costs(s, "13C", costs)])
+        ranking["13C"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
+                          "fitted_on": f"{len(db)} validation-split database cases (with and without DEPT) and "
+                                       f"{len(sets[2])} dev-half printed 13C paragraphs",
+                          "dev_top1": {"database": round(top1(raw_costs(sets[0], "13C", costs)), 4),
+                                       "database_shifts_only": round(top1(raw_costs(sets[1], "13C", costs)), 4),
+                                       "printed": round(top1(raw_costs(sets[2], "13C", costs)), 4)}}
+        print(f"  13C: {ranking['13C']}", flush=True)
+    if "1H" in steps:
+        sets = [stage(text_cases, "1H")]
+        costs, score = fit_costs(sets, "1H", settings.costs["1H"])
+        fitted["1H"] = costs
+        T = fit_temperature(raw_costs(sets[0], "1H", costs))
+        ranking["1H"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
+                         "fitted_on": f"{len(sets[0])} dev-half printed 1H paragraphs",
+                         "dev_top1": {"printed": round(score[0], 4)}}
+        print(f"  1H: {ranking['1H']}", flush=True)
+    if "joint" in steps:
+        both = [(t, per) for t, per in stage(text_cases, "both") if "13C" in per and "1H" in per]
+        c13 = raw_costs(both, "13C", fitted["13C"])
+        c1h = raw_costs(both, "1H", fitted["1H"])
+        rows = [(np.vstack([a, b]), t) for (a, t), (b, _) in zip(c13, c1h)]
+        x0 = np.log([ranking["13C"]["temperature"], ranking["1H"]["temperature"]])
+        res = minimize(lambda lt: nll(rows, np.exp(lt)), x0=x0, method="Nelder-Mead")
+        T13, T1 = (float(x) for x in np.exp(res.x))
+        ranking["joint"] = {"13C": {"temperature": round(T13, 4)}, "1H": {"temperature": round(T1, 4)},
+                            "fitted_on": f"{len(rows)} dev-half printed-text cases ranked from both paragraphs",
+                            "dev_top1": round(float(np.mean([np.argmin((cs / np.array([[T13], [T1]])).sum(axis=0)) == t
+                                                             for cs, t in rows])), 4)}
+        print(f"  joint: {ranking['joint']}", flush=True)
+    man_path.write_text(json.dumps(man, indent=1))
+    print(f"done in {time.time() - t0:.0f} s")
     return 0
 
 

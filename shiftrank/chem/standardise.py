@@ -50,7 +50,7 @@ def _smiles(m: Chem.Mol) -> str:
 
 def check_open_shell(mol: Chem.Mol, label: str) -> None:
     """Refuse radicals and carbenes: the shift models know closed-shell molecules only."""
-    bad = [a for a in mol.GetAtoms() if a.GetNumRadicalElectrons()]
+    bad = [a for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())) if a.GetNumRadicalElectrons()]
     if bad:
         a = bad[0]
         raise InputError(f"{label}: atom {a.GetIdx() + 1} ({a.GetSymbol()}) carries {a.GetNumRadicalElectrons()} unpaired "
@@ -65,6 +65,12 @@ def check_organometallic(mol: Chem.Mol, label: str) -> None:
             metal = b.GetBeginAtom() if z1 in _METALS else b.GetEndAtom()
             raise InputError(f"{label}: {metal.GetSymbol()} is bonded to carbon: organometallic compounds are not "
                              "supported")
+
+
+def plain(smiles: str) -> bool:
+    """True for a SMILES that standardisation cannot change: one fragment and no bracket atom (charges,
+    isotopes, radicals and explicit hydrogens all need brackets), so the parent is the molecule itself."""
+    return "." not in smiles and "[" not in smiles
 
 
 def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
@@ -98,7 +104,8 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         mol = parent
     if mol.GetNumHeavyAtoms() > MAX_HEAVY_ATOMS:
         raise InputError(f"{label}: {mol.GetNumHeavyAtoms()} heavy atoms; the limit is {MAX_HEAVY_ATOMS}")
-    iso = [a for a in mol.GetAtoms() if a.GetIsotope()]
+    atoms = list(map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
+    iso = [a for a in atoms if a.GetIsotope()]
     if iso:
         mol = Chem.Mol(mol)
         deut = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() == 1 and a.GetIsotope()]
@@ -111,7 +118,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
             heavy_before = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() > 1]
             mol = Chem.RemoveHs(mol, sanitize=True)
             atom_map = [atom_map[i] for i in heavy_before]
-    charged = any(a.GetFormalCharge() for a in mol.GetAtoms())
+    charged = any(a.GetFormalCharge() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     if charged:
         before = _smiles(mol)
         try:

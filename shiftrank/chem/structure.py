@@ -60,10 +60,15 @@ class StructureFacts:
         return dict(Counter(c.multiplicity for c in self.carbon_classes))
 
 
+def _atoms(mol: Chem.Mol):
+    """The atoms of ``mol`` (direct indexing: several times faster than RDKit's Python atom sequence)."""
+    return map(mol.GetAtomWithIdx, range(mol.GetNumAtoms()))
+
+
 def element_counts(mol: Chem.Mol) -> Counter:
     """Element counts including implicit hydrogens."""
     c: Counter = Counter()
-    for a in mol.GetAtoms():
+    for a in _atoms(mol):
         c[a.GetSymbol()] += 1
         c["H"] += a.GetTotalNumHs()
     if c["H"] == 0:
@@ -84,7 +89,7 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
     """Group the carbons of ``mol`` into symmetry classes ordered by first atom index."""
     ranks = symmetry_ranks(mol) if ranks is None else ranks
     groups: dict[int, list[int]] = {}
-    for a in mol.GetAtoms():
+    for a in _atoms(mol):
         if a.GetAtomicNum() == 6:
             groups.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
     out = []
@@ -98,21 +103,38 @@ def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list
     """Heavy atoms carrying H, grouped by symmetry (one expected 1H signal per group)."""
     ranks = symmetry_ranks(mol) if ranks is None else ranks
     groups: dict[int, list[int]] = {}
-    for a in mol.GetAtoms():
+    for a in _atoms(mol):
         if a.GetTotalNumHs() > 0:
             groups.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
     return sorted(groups.values(), key=lambda g: g[0])
 
 
-def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = True) -> StructureFacts:
+def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = True,
+                   ranks: list[int] | None = None) -> StructureFacts:
     """Structure facts of an RDKit molecule (hydrogens implicit or explicit).
 
-    ``hydrogens=False`` skips the hydrogen symmetry classes (the ranking does not need them).
+    ``hydrogens=False`` skips the hydrogen symmetry classes (the ranking does not need them);
+    ``ranks`` are the symmetry ranks when the caller has them already.
     """
-    if any(a.GetAtomicNum() == 1 for a in mol.GetAtoms()):
+    if mol.GetNumAtoms() != mol.GetNumHeavyAtoms():
         mol = Chem.RemoveHs(mol)
-    counts = element_counts(mol)
-    ranks = symmetry_ranks(mol)
+        ranks = None
+    ranks = symmetry_ranks(mol) if ranks is None else list(ranks)
+    # one pass over the atoms for the counts and the carbon classes (the batch path calls this often)
+    counts: Counter = Counter()
+    groups: dict[int, list[int]] = {}
+    h_of: dict[int, int] = {}
+    for a in _atoms(mol):
+        nh = a.GetTotalNumHs()
+        counts[a.GetSymbol()] += 1
+        counts["H"] += nh
+        if a.GetAtomicNum() == 6:
+            i = a.GetIdx()
+            groups.setdefault(ranks[i], []).append(i)
+            h_of[i] = nh
+    if counts["H"] == 0:
+        del counts["H"]
+    classes = [CarbonClass(g, MULTIPLICITY.get(h_of[g[0]], f"CH{h_of[g[0]]}")) for g in sorted(groups.values(), key=lambda g: g[0])]
     d = dbe(counts)
     return StructureFacts(
         smiles=smiles if smiles is not None else Chem.MolToSmiles(mol),
@@ -122,7 +144,7 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
         monoisotopic_mass=monoisotopic_weight(counts),
         dbe=d,
         dbe_note=dbe_note(d),
-        carbon_classes=carbon_classes(mol, ranks),
+        carbon_classes=classes,
         hydrogen_classes=hydrogen_classes(mol, ranks) if hydrogens else [],
     )
 

@@ -304,18 +304,21 @@ def merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[
     return out
 
 
-def flag_solvent(peaks: PeakList, solvent: str | None) -> PeakList:
+def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = False) -> PeakList:
     """Mark peaks on a residual solvent signal (Fulmer et al. 2010) and note each one.
 
     13C peaks with a DEPT multiplicity other than C are never solvent (a
-    deuterated carbon carries no H).  Flagged peaks stay in the list; the
-    ranking lets them go unmatched at no cost.
+    deuterated carbon carries no H); with ``keep_integrated`` (printed 1H text, where authors integrate
+    their compound's signals, not the solvent's) a 1H peak with an integral is never solvent either.
+    Flagged peaks stay in the list; the ranking lets them go unmatched at no cost.
     """
     key = normalise_solvent(solvent)
     if key is None:
         return peaks
     for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
+            continue
+        if keep_integrated and peaks.nucleus == "1H" and p.intensity is not None:
             continue
         ref = match_solvent(p.shift, key, peaks.nucleus)
         if ref is not None:

@@ -137,7 +137,7 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
         merged.reverse()
     pl = PeakList(sec.nucleus, merged, source, notes,
                   sec.carbon_mhz if sec.nucleus == "13C" else sec.field_mhz)
-    return flag_solvent(pl, solvent or sec.solvent)
+    return flag_solvent(pl, solvent or sec.solvent, keep_integrated=True)
 
 
 def _coupling(p: PrintedPeak) -> str | None:

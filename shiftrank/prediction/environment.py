@@ -124,6 +124,7 @@ class MolParts:
     ringpos: np.ndarray | None = None  # (n_centres, len(RING_NAMES)) ring-position substituent block
     atom_map: list | None = None       # atom index in the caller's input for each atom here (None: the same)
     notes: list = field(default_factory=list)  # what standardisation did to the caller's input
+    preds: tuple | None = None         # (shifts, sigmas) once predicted, for a caller that caches these parts
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
@@ -226,64 +227,80 @@ def _subst_class(x: Chem.Atom, b: Chem.Atom) -> int:
 _N_SC = len(SUBST_CLASSES)
 
 
+def _position_matrices(size: int) -> list[np.ndarray]:
+    """For a ring of ``size`` atoms: 0/1 matrices selecting, for each ring position, the atoms one, two
+    (and three) steps away around the ring (ortho, meta, para)."""
+    out = []
+    for step in range(1, size // 2 + 1):
+        P = np.zeros((size, size), dtype=np.float32)
+        for k in range(size):
+            P[k, (k + step) % size] = 1.0
+            P[k, (k - step) % size] = 1.0
+        out.append(P)
+    return out
+
+
+_POSITION_MATRICES = {5: _position_matrices(5), 6: _position_matrices(6)}
+
+
 def _ring_positions(mol: Chem.Mol, atoms, rings, centres) -> np.ndarray:
-    """The :data:`RING_NAMES` block of every centre: substituents of its aromatic ring by position."""
+    """The :data:`RING_NAMES` block of every centre: substituents of its aromatic ring by position.
+
+    Per aromatic ring (six-membered rings first), the substituent classes on each ring atom form a
+    (ring size × classes) count matrix; the ortho/meta/para blocks of a ring position are sums of its
+    rolled rows, so every centre of the ring is filled with array arithmetic."""
     out = np.zeros((len(centres), len(RING_NAMES)), dtype=np.float32)
     arom = [r for r in rings if len(r) in (5, 6) and all(atoms[i].GetIsAromatic() for i in r)]
     if not arom:
         return out
-    ring_of: dict[int, tuple] = {}
-    for r in sorted(arom, key=lambda r: -len(r)):  # six-membered rings first
+    arom.sort(key=lambda r: -len(r))
+    ring_of: dict[int, int] = {}
+    for k, r in enumerate(arom):
         for i in r:
-            ring_of.setdefault(i, r)
-    in_any_ring = set(i for r in rings for i in r)
-    subst_cache: dict[tuple[int, tuple], list[int]] = {}
-
-    def substituents(bi: int, r: tuple) -> list[int]:
-        key = (bi, r)
-        if key not in subst_cache:
+            ring_of.setdefault(i, k)
+    ring_sets = [set(r) for r in rings]
+    het_col = len(RING_POSITIONS) * _N_SC
+    blocks = []  # per aromatic ring: (size, RING_NAMES) rows for an anchor at each ring position
+    for r in arom:
+        size = len(r)
+        rset = set(r)
+        sub = np.zeros((size, _N_SC), dtype=np.float32)
+        n_het = np.zeros(size, dtype=np.float32)
+        os_het = np.zeros(size, dtype=np.float32)
+        for k, bi in enumerate(r):
             b = atoms[bi]
-            rset = set(r)
-            cl = []
+            z = b.GetAtomicNum()
+            n_het[k] = z == 7
+            os_het[k] = z in (8, 16)
             for x in b.GetNeighbors():
                 xi = x.GetIdx()
                 if xi in rset:
                     continue
-                cl.append(_SC["fused"] if xi in in_any_ring and any(xi in rr and bi in rr for rr in rings) else _subst_class(x, b))
-            subst_cache[key] = cl
-        return subst_cache[key]
-
-    het_col = len(RING_POSITIONS) * _N_SC
+                fused = any(xi in rr and bi in rr for rr in ring_sets)
+                sub[k, _SC["fused"] if fused else _subst_class(x, b)] += 1.0
+        block = np.zeros((size, len(RING_NAMES)), dtype=np.float32)
+        block[:, :_N_SC] = sub
+        for pos, P in enumerate(_POSITION_MATRICES[size], start=1):   # ortho, meta (, para)
+            block[:, pos * _N_SC:(pos + 1) * _N_SC] = P @ sub
+            block[:, het_col + pos - 1] = P @ n_het
+            if pos <= 2:
+                block[:, het_col + 3 + pos - 1] = P @ os_het
+        block[:, het_col + 5] = size == 5
+        block[:, het_col + 6] = size == 6
+        blocks.append(block)
     for row, c in enumerate(centres.tolist()):
-        anchor, from_neighbour = c, 0.0
-        if c not in ring_of:
-            nbs = [x.GetIdx() for x in atoms[c].GetNeighbors() if x.GetIdx() in ring_of]
-            if not nbs:
-                continue
-            anchor, from_neighbour = nbs[0], 1.0
-        r = ring_of[anchor]
-        size = len(r)
-        k0 = r.index(anchor)
-        for cl in substituents(anchor, r):
-            out[row, cl] += 1.0
-        if from_neighbour:
-            # the centre itself is the anchor's substituent: not counted as 'ipso'
-            own = _subst_class(atoms[c], atoms[anchor])
-            out[row, own] -= 1.0
-        for step in range(1, size // 2 + 1):
-            pos = min(step, 3)
-            targets = {r[(k0 + step) % size], r[(k0 - step) % size]}
-            for bi in targets:
-                for cl in substituents(bi, r):
-                    out[row, pos * _N_SC + cl] += 1.0
-                z = atoms[bi].GetAtomicNum()
-                if z == 7 and pos <= 3:
-                    out[row, het_col + pos - 1] += 1.0
-                elif z in (8, 16) and pos <= 2:
-                    out[row, het_col + 3 + pos - 1] += 1.0
-        out[row, het_col + 5] = 1.0 if size == 5 else 0.0
-        out[row, het_col + 6] = 1.0 if size == 6 else 0.0
-        out[row, het_col + 7] = from_neighbour
+        if c in ring_of:
+            k = ring_of[c]
+            out[row] = blocks[k][arom[k].index(c)]
+            continue
+        nbs = [x for x in atoms[c].GetNeighbors() if x.GetIdx() in ring_of]
+        if not nbs:
+            continue
+        anchor = nbs[0].GetIdx()
+        k = ring_of[anchor]
+        out[row] = blocks[k][arom[k].index(anchor)]
+        out[row, _subst_class(atoms[c], atoms[anchor])] -= 1.0   # the centre itself is not its own 'ipso' group
+        out[row, het_col + 7] = 1.0
     return out
 
 

@@ -36,13 +36,25 @@ def _client(spec: str):
         if not 1 <= workers <= 256:
             raise InputError(f"--dask {spec}: use 1 to 256 local workers")
         cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None)
-        return Client(cluster), cluster
+        client = Client(cluster)
+        client.run(warm_up)   # every worker loads (and verifies) the models before the first chunk arrives
+        return client, cluster
     if "://" not in spec:
         raise InputError(f"--dask {spec}: use local, local:N or a scheduler address such as tcp://host:8786")
     try:
         return Client(spec, timeout="20s"), None
     except (OSError, TimeoutError) as exc:
         raise InputError(f"--dask {spec}: cannot reach the scheduler ({exc})") from None
+
+
+def warm_up() -> str:
+    """Load and verify the shipped models in this worker process; returns the model set's version."""
+    from ..prediction.model_files import default_manifest, default_model, has_model
+
+    for n in ("13C", "1H"):
+        if has_model(n):
+            default_model(n)
+    return str(default_manifest().get("version"))
 
 
 def stream_on(client, chunks: list, detail: bool = False) -> Iterator[list[str]]:

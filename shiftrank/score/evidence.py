@@ -19,15 +19,49 @@ from dataclasses import dataclass, field
 import numpy as np
 from rdkit import Chem
 
-from ..chem.couplings import carbon_multiplets, expected_multiplets, fit_cost
+from ..chem.couplings import ExpectedMultiplet, carbon_multiplets, expected_multiplets, fit_cost
 from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
 from ..inputs.peaks import PeakList
-from .matching import Assignment, MatchCosts, ObservedPeak, SignalClass, assign
+from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign
 
 #: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
 INTEGRAL_SHARE = 0.8
+
+
+_MCODE = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3, "CH4": 4}
+
+
+class ClassMeans:
+    """Predicted shifts and sigmas of a molecule's centres, averaged per class with array arithmetic.
+
+    ``centres`` are heavy-atom indices in the order of ``mu``/``sg``; a class is a list of atoms."""
+
+    def __init__(self, centres, mu, sg):
+        self.pos = {int(a): k for k, a in enumerate(centres)}
+        self.mu, self.sg = np.asarray(mu, dtype=float), np.asarray(sg, dtype=float)
+        self._member: dict = {}
+
+    def of(self, classes: list[list[int]]):
+        key = tuple(len(c) for c in classes), tuple(c[0] for c in classes)
+        member = self._member.get(key)
+        if member is None:
+            member = np.empty(len(self.mu), dtype=np.int64)
+            member.fill(-1)
+            for k, atoms in enumerate(classes):
+                for a in atoms:
+                    member[self.pos[a]] = k
+            member = self._member[key] = (member, np.bincount(member[member >= 0], minlength=len(classes)))
+        idx, size = member
+        ok = idx >= 0
+        m = np.bincount(idx[ok], weights=self.mu[ok], minlength=len(size)) / size
+        s = np.bincount(idx[ok], weights=self.sg[ok], minlength=len(size)) / size
+        return m, s
+
+
+def _mean(values: dict, atoms) -> float:
+    return float(sum(values[a] for a in atoms) / len(atoms))
 
 
 def _r(x, nd):
@@ -44,6 +78,7 @@ class NucleusResult:
     assignment: Assignment
     flags: list[str] = field(default_factory=list)
     by_protons: bool = False          # 1H: assignment over protons (integrals given)
+    _n_obs: int | None = field(default=None, repr=False)
 
     @property
     def cost(self) -> float:
@@ -69,7 +104,9 @@ class NucleusResult:
 
     @property
     def observed_signals(self) -> int:
-        return sum(1 for p in self.peaks if not p.solvent)
+        if self._n_obs is None:
+            self._n_obs = sum(1 for p in self.peaks if not p.solvent)
+        return self._n_obs
 
     def assignment_table(self) -> list[dict]:
         """One row per class and peak it takes (unobserved classes too), with the notes a reader needs."""
@@ -126,8 +163,8 @@ class _Evidence:
         return prepared.bad_pattern * costs.multiplicity_mismatch + prepared.bad_j * costs.j_mismatch
 
     def evaluate(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], costs: MatchCosts,
-                 prepared: Prepared | None = None) -> NucleusResult:
-        pr = prepared or self.prepare(mol, ranks, mu, sg, peaks)
+                 prepared: Prepared | None = None, facts=None) -> NucleusResult:
+        pr = prepared or self.prepare(mol, ranks, mu, sg, peaks, facts)
         a = assign(pr.classes, pr.peaks, costs, self.mismatch(pr, costs))
         res = NucleusResult(self.nucleus, pr.classes, pr.peaks, a,
                             by_protons=any(p.capacity is not None for p in pr.peaks))
@@ -142,30 +179,39 @@ class CarbonEvidence(_Evidence):
     nucleus = "13C"
 
     def observed(self, pl: PeakList) -> list[ObservedPeak]:
-        return [ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
-                             coupling=p.coupling, field=pl.field_mhz) for p in pl.peaks]
+        return PeakSet(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
+                                    coupling=p.coupling, field=pl.field_mhz) for p in pl.peaks)
 
-    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks) -> list[SignalClass]:
-        return [SignalClass(c.atoms, c.multiplicity, float(np.mean([mu[a] for a in c.atoms])),
-                            float(np.mean([sg[a] for a in c.atoms]))) for c in carbon_classes(mol, ranks)]
+    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
+        cc = facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)
+        if isinstance(mu, ClassMeans):
+            m, s = mu.of([c.atoms for c in cc])
+            return [SignalClass(c.atoms, c.multiplicity, a, b) for c, a, b in zip(cc, m.tolist(), s.tolist())]
+        return [SignalClass(c.atoms, c.multiplicity, _mean(mu, c.atoms), _mean(sg, c.atoms)) for c in cc]
 
-    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak]) -> Prepared:
-        classes = self.classes(mol, ranks, mu, sg, peaks)
-        couplings = carbon_multiplets(mol, classes, ranks)
-        for c, e in zip(classes, couplings):
-            c.expected = e
+    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
+        classes = self.classes(mol, ranks, mu, sg, peaks, facts)
         notes: list[str] = []
-        if any(e.groups for e in couplings):
-            peaks, notes = collapse_split_lines(classes, peaks)
-        bad_p = np.array([[p.multiplicity is not None and p.multiplicity != c.multiplicity for p in peaks]
-                          for c in classes], dtype=float).reshape(len(classes), len(peaks))
+        if facts is None or any(k in facts.counts for k in ("F", "P")):
+            couplings = carbon_multiplets(mol, classes, ranks)
+            for c, e in zip(classes, couplings):
+                c.expected = e
+            if any(e.groups for e in couplings):
+                peaks, notes = collapse_split_lines(classes, peaks)
+        elif any(p.coupling is not None or p.j for p in peaks):
+            for c in classes:   # printed splittings a molecule without F or P cannot show
+                c.expected = ExpectedMultiplet(c.atoms, len(c.atoms))
+        cls_m = np.array([_MCODE.get(c.multiplicity, 9) for c in classes])
+        pk_m = np.array([_MCODE.get(p.multiplicity, 9) if p.multiplicity is not None else -1 for p in peaks])
+        bad_p = ((pk_m[None, :] >= 0) & (pk_m[None, :] != cls_m[:, None])).astype(float)
         bad_j = np.zeros_like(bad_p)
         for j, p in enumerate(peaks):
             if p.coupling is None and not p.j:
                 continue
             for i, c in enumerate(classes):
-                pat, nj = fit_cost(c.expected, p.coupling, p.j, tolerance=2.0)
-                bad_j[i, j] = pat + nj
+                if c.expected is not None:
+                    pat, nj = fit_cost(c.expected, p.coupling, p.j, tolerance=2.0)
+                    bad_j[i, j] = pat + nj
         return Prepared(classes, peaks, bad_p, bad_j, notes)
 
     def flags(self, res: NucleusResult) -> list[str]:
@@ -239,8 +285,7 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
                      + ",".join(str(a) for a in c.atoms))
     if not used:
         return peaks, []
-    out = [p for j, p in enumerate(peaks) if j not in used] + merged
-    out.sort(key=lambda p: p.shift)
+    out = PeakSet(sorted([p for j, p in enumerate(peaks) if j not in used] + merged, key=lambda p: p.shift))
     return out, notes
 
 
@@ -266,24 +311,31 @@ class ProtonEvidence(_Evidence):
             for k, p in enumerate(pl.peaks):
                 if p.solvent is None and p.intensity is not None and p.intensity > 0:
                     caps[k] = max(1, int(next(it)))
-        out = []
+        out = PeakSet()
         for k, p in enumerate(pl.peaks):
             out.append(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, p.lo, p.hi, tuple(p.j),
                                     caps.get(k) if caps else None))
         return out
 
-    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks) -> list[SignalClass]:
+    def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
         by_protons = any(p.capacity is not None for p in peaks)
         out = []
-        for e in expected_multiplets(mol, ranks):
-            out.append(SignalClass(e.atoms, e.label().split(" (")[0], float(np.mean([mu[a] for a in e.atoms])),
-                                   float(np.mean([sg[a] for a in e.atoms])), e.n_h if by_protons else 1,
-                                   e.exchangeable, e))
+        ems = expected_multiplets(mol, ranks)
+        if isinstance(mu, ClassMeans):
+            means, sigmas = (x.tolist() for x in mu.of([e.atoms for e in ems]))
+        else:
+            means = [_mean(mu, e.atoms) for e in ems]
+            sigmas = [_mean(sg, e.atoms) for e in ems]
+        for e, m_, s_ in zip(ems, means, sigmas):
+            splittable = len(e.atoms) == 1 and any(g.kind in ("geminal", "geminal-alkene") for g in e.groups)
+            out.append(SignalClass(e.atoms, e.label().split(" (")[0], float(m_), float(s_),
+                                   e.n_h if by_protons else 1,
+                                   exchangeable=e.exchangeable, splittable=splittable, expected=e))
         return out
 
-    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak]) -> Prepared:
+    def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
         """Classes, and per class × peak the printed-letter misfit (0/1) and the unexplained J count."""
-        classes = self.classes(mol, ranks, mu, sg, peaks)
+        classes = self.classes(mol, ranks, mu, sg, peaks, facts)
         bad_p = np.zeros((len(classes), len(peaks)))
         bad_j = np.zeros((len(classes), len(peaks)))
         for j, p in enumerate(peaks):

@@ -73,7 +73,7 @@ class MatchCosts:
         return out
 
 
-@dataclass
+@dataclass(slots=True)
 class SignalClass:
     """One expected signal of a candidate."""
 
@@ -83,6 +83,7 @@ class SignalClass:
     sigma: float
     units: int = 1              # 1H with integrals: protons in the class
     exchangeable: bool = False  # 1H: OH/NH/SH
+    splittable: bool = False    # 1H: a CH2 whose two protons may differ (may show two multiplets)
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
 
 
@@ -100,7 +101,7 @@ class ObservedPeak:
     field: float | None = None        # 13C observation frequency (MHz) when the text gives it
 
 
-@dataclass
+@dataclass(slots=True)
 class Pairing:
     """One line of the assignment table."""
 
@@ -122,26 +123,52 @@ class Assignment:
     parts: dict = field(default_factory=dict)   # cost by kind: deviation, overlap, missing, extra, multiplicity, …
 
 
+_LOGC: dict[float, float] = {}
+
+
 def t_cost(dev: np.ndarray, sigma: np.ndarray, costs: MatchCosts) -> np.ndarray:
     """−log density of a Student-t with scale σ·t_scale for deviations ``dev`` (nats)."""
     nu = costs.t_df
     s = sigma * costs.t_scale
     z = dev / s
-    logc = gammaln((nu + 1) / 2) - gammaln(nu / 2) - 0.5 * np.log(nu * np.pi)
-    return -(logc - (nu + 1) / 2 * np.log1p(z * z / nu)) + np.log(s)
+    logc = _LOGC.get(nu)
+    if logc is None:
+        logc = _LOGC[nu] = float(gammaln((nu + 1) / 2) - gammaln(nu / 2) - 0.5 * np.log(nu * np.pi))
+    return (nu + 1) / 2 * np.log1p(z * z / nu) - logc + np.log(s)
 
 
-def deviations(classes: list[SignalClass], peaks: list[ObservedPeak]) -> np.ndarray:
+class PeakSet(list):
+    """A list of :class:`ObservedPeak` that keeps its shift arrays once computed (the same observed peaks
+    are matched against every candidate of a case)."""
+
+    _arrays = None
+
+    def arrays(self):
+        if self._arrays is None:
+            obs = np.array([p.shift for p in self], dtype=float)
+            lo = np.array([p.lo if p.lo is not None else p.shift for p in self], dtype=float)
+            hi = np.array([p.hi if p.hi is not None else p.shift for p in self], dtype=float)
+            extra_free = np.array([p.solvent for p in self], dtype=bool)
+            flexible = all(p.capacity is None for p in self)
+            self._arrays = (obs, lo, hi, bool(np.any(hi > lo)), extra_free, flexible)
+        return self._arrays
+
+
+def _arrays(peaks):
+    if isinstance(peaks, PeakSet):
+        return peaks.arrays()
+    return PeakSet(peaks).arrays()
+
+
+def deviations(classes: list[SignalClass], peaks: list[ObservedPeak], mu: np.ndarray | None = None) -> np.ndarray:
     """(classes × peaks) observed − predicted; a printed range counts from its nearer edge (0 inside)."""
-    mu = np.array([c.shift for c in classes], dtype=float)
-    obs = np.array([p.shift for p in peaks], dtype=float)
-    dev = obs[None, :] - mu[:, None]
-    lo = np.array([p.lo if p.lo is not None else p.shift for p in peaks], dtype=float)
-    hi = np.array([p.hi if p.hi is not None else p.shift for p in peaks], dtype=float)
-    if np.any(hi > lo):
-        dev = np.where(mu[:, None] < lo[None, :], lo[None, :] - mu[:, None],
-                       np.where(mu[:, None] > hi[None, :], hi[None, :] - mu[:, None], 0.0))
-    return dev
+    if mu is None:
+        mu = np.array([c.shift for c in classes], dtype=float)
+    obs, lo, hi, ranged, _, _ = _arrays(peaks)
+    if ranged:
+        return np.where(mu[:, None] < lo[None, :], lo[None, :] - mu[:, None],
+                        np.where(mu[:, None] > hi[None, :], hi[None, :] - mu[:, None], 0.0))
+    return obs[None, :] - mu[:, None]
 
 
 def _mismatch(classes, peaks, costs: MatchCosts, mismatch=None) -> tuple[np.ndarray, np.ndarray]:
@@ -170,12 +197,16 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     """
     nc, npk = len(classes), len(peaks)
     sg = np.array([c.sigma for c in classes], dtype=float)
-    dev = deviations(classes, peaks) if npk else np.zeros((nc, 0))
+    mu = np.array([c.shift for c in classes], dtype=float)
+    dev = deviations(classes, peaks, mu) if npk else np.zeros((nc, 0))
     dcost = t_cost(dev, sg[:, None], costs) if npk else dev
     mcost, bad = _mismatch(classes, peaks, costs, mismatch) if npk else (dev, dev.astype(bool))
     base = dcost + mcost
-    extra = np.array([0.0 if p.solvent else costs.extra for p in peaks])
-    mu = np.array([c.shift for c in classes], dtype=float)
+    if npk:
+        _, _, _, _, solvent, flexible = _arrays(peaks)
+        extra = np.where(solvent, 0.0, costs.extra)
+    else:
+        extra, flexible = np.zeros(0), True
     gap = np.full(nc, np.inf)
     if nc > 1:
         d = np.abs(mu[:, None] - mu[None, :])
@@ -184,7 +215,7 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     miss = costs.missing_for(classes, gap)
     over = costs.overlap_for(gap)
     units = np.array([max(1, int(c.units)) for c in classes])
-    if units.max(initial=1) == 1 and all(p.capacity is None for p in peaks):
+    if units.max(initial=1) == 1 and flexible:
         return _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over)
     return _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over)
 
@@ -192,39 +223,40 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
 def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over) -> Assignment:
     """One unit per class, any number of classes per peak (the second and later at an overlap cost)."""
     nc, npk = len(classes), len(peaks)
-    sg = np.array([c.sigma for c in classes], dtype=float)
     copies = max(1, min(nc, int(np.ceil(nc / max(npk, 1))) + 1)) if npk else 0
     # columns: first copy of each peak (assigning it saves its 'extra' cost), further copies (overlap), 'missing'
-    blocks = [base - extra[None, :]] + [base + over[:, None]] * (copies - 1)
-    missing = np.full((nc, nc), BIG)
-    np.fill_diagonal(missing, miss)
-    mat = np.hstack(blocks + [missing]) if npk else missing
-    rows, cols = linear_sum_assignment(mat)
-    pairings: list[Pairing] = []
-    used = np.zeros(npk, dtype=int)
-    parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0}
-    for r, c in zip(rows, cols):
-        if c >= npk * copies:
-            pairings.append(Pairing(int(r), None, None, None, float(miss[r])))
-            parts["missing"] += float(miss[r])
-            continue
-        j = int(c % npk)
-        copy = c // npk
-        used[j] += 1
-        cst = float(base[r, j])
-        parts["multiplicity"] += float(mcost[r, j])
-        parts["deviation"] += float(dcost[r, j])
-        if copy > 0:
-            parts["overlap"] += float(over[r])
-            cst += float(over[r])
-        d = float(dev[r, j])
-        pairings.append(Pairing(int(r), j, d, float(d / sg[r]), cst, False, bool(not bad[r, j])))
-    for p in pairings:
-        if p.peak is not None and used[p.peak] > 1:
-            p.shared = True
-    unmatched = [j for j in range(npk) if used[j] == 0]
-    parts["extra"] = float(sum(extra[j] for j in unmatched))
-    pairings.sort(key=lambda p: p.cls)
+    width = npk * copies
+    mat = np.full((nc, width + nc), BIG)
+    if npk:
+        mat[:, :npk] = base - extra[None, :]
+        if copies > 1:
+            mat[:, npk:width] = np.tile(base + over[:, None], (1, copies - 1))
+    mat[np.arange(nc), width + np.arange(nc)] = miss
+    rows, cols = linear_sum_assignment(mat)   # rows come back in order 0..nc-1
+    observed = cols < width
+    j = np.where(observed, cols % max(npk, 1), -1)
+    shared_copy = observed & (cols >= npk)
+    used = np.bincount(j[observed], minlength=npk) if npk else np.zeros(0, dtype=int)
+    r_obs = rows[observed]
+    j_obs = j[observed]
+    d = dev[r_obs, j_obs]
+    sg = np.array([c.sigma for c in classes], dtype=float)
+    parts = {"deviation": float(dcost[r_obs, j_obs].sum()), "overlap": float(over[rows[shared_copy]].sum()),
+             "missing": float(miss[rows[~observed]].sum()), "extra": 0.0, "multiplicity": float(mcost[r_obs, j_obs].sum())}
+    cost_row = np.where(observed, base[rows, np.maximum(j, 0)] if npk else 0.0, miss[rows]) + np.where(shared_copy, over[rows], 0.0)
+    dev_row = np.full(nc, np.nan)
+    dev_row[observed] = d
+    z_row = dev_row / sg[rows]
+    ok_row = np.ones(nc, dtype=bool)
+    ok_row[observed] = ~bad[r_obs, j_obs]
+    sh_row = np.zeros(nc, dtype=bool)
+    if npk:
+        sh_row[observed] = used[j_obs] > 1
+    pairings = [Pairing(r, (jj if jj >= 0 else None), (dv if jj >= 0 else None), (zz if jj >= 0 else None), cst, sh, ok)
+                for r, jj, dv, zz, cst, sh, ok in zip(rows.tolist(), j.tolist(), dev_row.tolist(), z_row.tolist(),
+                                                      cost_row.tolist(), sh_row.tolist(), ok_row.tolist())]
+    unmatched = np.flatnonzero(used == 0).tolist() if npk else []
+    parts["extra"] = float(extra[unmatched].sum()) if unmatched else 0.0
     total = float(sum(parts.values()))
     return Assignment(pairings, unmatched, total, parts)
 
@@ -257,8 +289,26 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     missing = np.full((n_rows, n_rows), BIG)
     np.fill_diagonal(missing, miss[row_cls] / units[row_cls])
     mat = np.hstack(cols + [missing]) if cols else missing
-    r_idx, c_idx = linear_sum_assignment(mat)
     n_pc = len(col_peak)
+    col_peak_arr = np.array(col_peak + [-1] * n_rows)
+    r_idx, c_idx = linear_sum_assignment(mat)
+    # equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
+    # =CH2) may split over multiplets; any other class split by the optimum is tied to the target that
+    # holds most of its protons and the assignment solved again (a few rounds at most)
+    for _ in range(4):
+        target = col_peak_arr[c_idx[np.argsort(r_idx)]]
+        bad_split = [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
+        if not bad_split:
+            break
+        for i in bad_split:
+            vals, counts = np.unique(target[row_cls == i], return_counts=True)
+            keep = int(vals[np.argmax(counts)])
+            rows = np.flatnonzero(row_cls == i)
+            allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
+            if keep < 0:
+                allowed[n_pc:] = True   # all unobserved
+            mat[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
+        r_idx, c_idx = linear_sum_assignment(mat)
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)

@@ -25,7 +25,7 @@ import numpy as np
 from rdkit import Chem
 
 from ..chem.formula import formula_matches, hill, sample_formula
-from ..chem.standardise import Standardised, standardise
+from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
@@ -35,7 +35,7 @@ from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
-from .evidence import EVIDENCE, NucleusResult
+from .evidence import EVIDENCE, ClassMeans, NucleusResult
 from .matching import MatchCosts, ObservedPeak
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
@@ -209,7 +209,7 @@ class _Prepared:
     preds: dict = field(default_factory=dict)   # nucleus -> (shifts, sigmas) of the centres
 
 
-@lru_cache(maxsize=4096)
+@lru_cache(maxsize=16384)
 def _parse(smiles: str) -> tuple[Chem.Mol | None, tuple | None, str | None]:
     """Standardised parent molecule and its symmetry ranks from a SMILES (cached: batches often repeat
     candidates); the standardisation record is kept in :func:`_standardised`."""
@@ -220,15 +220,26 @@ def _parse(smiles: str) -> tuple[Chem.Mol | None, tuple | None, str | None]:
         return None, None, str(exc)
 
 
-@lru_cache(maxsize=4096)
+@lru_cache(maxsize=16384)
 def _standardised(smiles: str) -> Standardised:
     mol = to_mol(smiles)
-    std = standardise(mol, f"SMILES '{smiles}'")
+    if plain(smiles):   # nothing to standardise: skip the checks (the batch fast path)
+        std = Standardised(mol, list(range(mol.GetNumAtoms())))
+    else:
+        std = standardise(mol, f"SMILES '{smiles}'")
     check_organic(std.mol, f"SMILES '{smiles}'")
+    if std.mol.GetNumHeavyAtoms() > MAX_HEAVY_ATOMS:
+        raise InputError(f"SMILES '{smiles[:40]}…': {std.mol.GetNumHeavyAtoms()} heavy atoms; the limit is {MAX_HEAVY_ATOMS}")
     return std
 
 
-@lru_cache(maxsize=8192)
+@lru_cache(maxsize=16384)
+def _facts(smiles: str) -> StructureFacts:
+    mol, ranks, _ = _parse(smiles)
+    return facts_from_mol(mol, smiles, hydrogens=False, ranks=ranks)
+
+
+@lru_cache(maxsize=32768)
 def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts | None, str | None]:
     """RDKit facts of a candidate for the descriptors of ``nucleus`` (cached per SMILES and solvent)."""
     mol, _, err = _parse(smiles)
@@ -273,16 +284,17 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         return res
     _, ranks, _ = _parse(prep.smiles)
     std = _standardised(prep.smiles)
-    res.facts = facts_from_mol(prep.mol, prep.smiles, hydrogens=False)
+    res.facts = _facts(prep.smiles)
     if std.notes:
         res.flags.append("standardised (formula and prediction use the parent): " + "; ".join(std.notes))
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
     for n, obs in peaks.items():
-        centres = prep.parts[n].centres.tolist()
-        mu = dict(zip(centres, preds[n][0]))
-        sg = dict(zip(centres, preds[n][1]))
-        r = EVIDENCE[n].evaluate(prep.mol, list(ranks), mu, sg, obs, settings.costs[n])
+        parts = prep.parts[n]
+        means = getattr(parts, "class_means", None)
+        if means is None or means.mu is not preds[n][0]:
+            means = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
+        r = EVIDENCE[n].evaluate(prep.mol, ranks, means, None, obs, settings.costs[n], facts=res.facts)
         if not identity:  # tables speak of the atoms as the user drew them
             for c in r.classes:
                 c.atoms = [std.atom_map[a] for a in c.atoms]
@@ -546,32 +558,52 @@ def stage_cases(cases: list[dict]) -> list:
             staged.append(exc)
         except (TypeError, ValueError, KeyError, AttributeError) as exc:  # malformed fields from JSON input
             staged.append(InputError(f"case has a malformed field ({type(exc).__name__}: {exc})"))
-    flat: dict = {n: [] for n in NUCLEI}
-    for s in staged:
-        if isinstance(s, Exception):
+    # one model call per nucleus, each distinct candidate description predicted once for the whole batch
+    for n in NUCLEI:
+        owners: dict[int, list] = {}
+        for s in staged:
+            if isinstance(s, Exception) or n not in s[1]:
+                continue
+            for p in s[6]:
+                if p.error is None:
+                    owners.setdefault(id(p.parts[n]), []).append(p)
+        if not owners:
             continue
-        for p in s[6]:
-            if p.error is None:
-                for n in s[1]:
-                    flat[n].append(p)
-    for n, plist in flat.items():
-        if not plist:
-            continue
-        envs, owners = [], []
-        for p, env in zip(plist, environments_isolated([p.parts[n] for p in plist])):
-            if env is None:
-                p.error = f"SMILES '{p.smiles}': cannot compute atom environments"
+        groups = []
+        for g in owners.values():
+            cached = getattr(g[0].parts[n], "preds", None)   # predicted earlier in this process (a repeated candidate)
+            if cached is not None:
+                for p in g:
+                    p.preds[n] = cached
             else:
-                envs.append(env)
-                owners.append(p)
-        if envs:
-            mu, sg, _, _ = default_model(n).predict_env_arrays(envs)
+                groups.append(g)
+        envs = environments_isolated([g[0].parts[n] for g in groups]) if groups else []
+        kept = []
+        for g, env in zip(groups, envs):
+            if env is None:
+                for p in g:
+                    p.error = f"SMILES '{p.smiles}': cannot compute atom environments"
+            else:
+                kept.append((g, env))
+        if kept:
+            mu, sg, _, _ = default_model(n).predict_env_arrays([env for _, env in kept])
             k = 0
-            for p, env in zip(owners, envs):
+            for g, env in kept:
                 m = len(env.centres)
-                p.preds[n] = (mu[k:k + m], sg[k:k + m])
+                pred = (mu[k:k + m], sg[k:k + m])
+                _keep_prediction(g[0].parts[n], pred)   # the parts are cached per SMILES, solvent and nucleus
+                for p in g:
+                    p.preds[n] = pred
                 k += m
     return staged
+
+
+def _keep_prediction(parts: MolParts, pred: tuple) -> None:
+    """Store a cached candidate's prediction on its parts and drop what only the descriptors needed
+    (distance matrix, codes, atom and bond tables): a long batch keeps many candidates in its cache."""
+    parts.preds = pred
+    parts.dist = parts.codes = parts.atoms = parts.bonds = parts.ringpos = None
+    parts.rings = []
 
 
 def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
