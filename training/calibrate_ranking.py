@@ -38,7 +38,7 @@ import numpy as np
 from scipy.optimize import minimize
 
 from shiftrank.score.evidence import EVIDENCE
-from shiftrank.score.matching import MatchCosts, assign
+from shiftrank.score.matching import MatchCosts
 from shiftrank.score.ranking import _parse, ranking_settings, stage_cases
 from training.data import DEFAULT_DATA, literature_part, split_of
 
@@ -137,8 +137,7 @@ def raw_costs(staged, nucleus: str, costs: MatchCosts) -> list[tuple[np.ndarray,
         if nucleus not in per:
             continue
         _, preps = per[nucleus]
-        cs = np.array([assign(pr.classes, pr.peaks, costs, ev.mismatch(pr, costs)).total_cost if pr is not None else np.inf
-                       for pr in preps])
+        cs = np.array([ev.best_assignment(pr, costs)[0].total_cost if pr is not None else np.inf for pr in preps])
         rows.append((cs, truth))
     return rows
 

@@ -118,17 +118,20 @@ class Inventory:
 
     def lines(self) -> list[str]:
         out = []
-        if self.has_13c:
+        typed = any(self.signals_by_type.get(k) for k in ORDER)
+        if self.has_13c and typed:
             kinds = ", ".join(f"{self.signals_by_type[k]} {k}" for k in ORDER if self.signals_by_type.get(k))
             if self.unknown_type_signals:
                 kinds += f", {self.unknown_type_signals} of unknown type"
             out.append(f"13C signals: {kinds}; {self.carbons_observed} carbons, {self.h_on_carbon_observed} H on carbon")
+        elif self.has_13c:
+            out.append(f"13C signals: {self.carbons_observed} (no DEPT multiplicities, so no CHn or H count from 13C)")
         if self.h_ratio:
             out.append(f"1H integrals as small integers: {':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
         if self.h_regions:
             out.append("1H by region: " + ", ".join(f"{n} H {r}" for r, n in self.h_regions if n))
         out.extend(f"1H pattern: {x}" for x in self.h_patterns)
-        if self.has_13c:
+        if self.has_13c and typed:
             out.append(f"tentative piece count: {self.tentative}")
         out.extend(f"inference: {i}" for i in self.inferences)
         out.extend(self.findings)

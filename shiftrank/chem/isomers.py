@@ -53,12 +53,14 @@ def structure_key(mol: Chem.Mol) -> str:
     (Kekulé or resonance forms): canonical SMILES of the graph with every bond single, keeping
     each atom's element, charge and H count."""
     rw = Chem.RWMol(mol)
-    for a in rw.GetAtoms():
+    for i in range(rw.GetNumAtoms()):
+        a = rw.GetAtomWithIdx(i)
         a.SetNumExplicitHs(a.GetTotalNumHs())
         a.SetNoImplicit(True)
         a.SetIsAromatic(False)
         a.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
-    for b in rw.GetBonds():
+    for i in range(rw.GetNumBonds()):
+        b = rw.GetBondWithIdx(i)
         b.SetBondType(Chem.BondType.SINGLE)
         b.SetIsAromatic(False)
         b.SetStereo(Chem.BondStereo.STEREONONE)
@@ -71,13 +73,13 @@ _key = structure_key
 
 
 def _finish(rw: Chem.RWMol) -> Chem.Mol | None:
-    """Sanitised copy of an edited molecule (aromaticity re-perceived), or None when RDKit refuses it."""
+    """Sanitised copy of an edited molecule (Kekulé form and aromaticity re-perceived), or None when
+    RDKit refuses it."""
     try:
         m = rw.GetMol()
         m.UpdatePropertyCache(strict=False)
-        smi = Chem.MolToSmiles(m)
-        out = Chem.MolFromSmiles(smi)
-        return out
+        Chem.SanitizeMol(m)
+        return m
     except Exception:  # noqa: BLE001 - an impossible edit is simply not an alternative
         return None
 

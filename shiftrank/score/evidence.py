@@ -154,6 +154,7 @@ class Prepared:
     bad_pattern: np.ndarray     # printed multiplicity the class cannot show (DEPT for 13C, letters for 1H)
     bad_j: np.ndarray           # printed J values the class cannot explain (13C: C–F/C–P; 1H: H–H, H–F …)
     notes: list[str] = field(default_factory=list)
+    alternative: "Prepared | None" = None   # 13C: the peaks read line by line, when some were read as one split carbon
 
 
 class _Evidence:
@@ -162,10 +163,19 @@ class _Evidence:
     def mismatch(self, prepared: Prepared, costs: MatchCosts) -> np.ndarray:
         return prepared.bad_pattern * costs.multiplicity_mismatch + prepared.bad_j * costs.j_mismatch
 
+    def best_assignment(self, pr: Prepared, costs: MatchCosts) -> tuple[Assignment, Prepared]:
+        """The assignment of ``pr``, or of its alternative reading of the peaks when that costs less (a
+        reading of split lines as one carbon is a hypothesis the candidate must earn)."""
+        a = assign(pr.classes, pr.peaks, costs, self.mismatch(pr, costs))
+        if pr.alternative is not None:
+            b = assign(pr.alternative.classes, pr.alternative.peaks, costs, self.mismatch(pr.alternative, costs))
+            if b.total_cost <= a.total_cost:
+                return b, pr.alternative
+        return a, pr
+
     def evaluate(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], costs: MatchCosts,
                  prepared: Prepared | None = None, facts=None) -> NucleusResult:
-        pr = prepared or self.prepare(mol, ranks, mu, sg, peaks, facts)
-        a = assign(pr.classes, pr.peaks, costs, self.mismatch(pr, costs))
+        a, pr = self.best_assignment(prepared or self.prepare(mol, ranks, mu, sg, peaks, facts), costs)
         res = NucleusResult(self.nucleus, pr.classes, pr.peaks, a,
                             by_protons=any(p.capacity is not None for p in pr.peaks))
         res.flags = list(pr.notes) + self.flags(res)
@@ -191,16 +201,22 @@ class CarbonEvidence(_Evidence):
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
-        notes: list[str] = []
         if facts is None or any(k in facts.counts for k in ("F", "P")):
             couplings = carbon_multiplets(mol, classes, ranks)
             for c, e in zip(classes, couplings):
                 c.expected = e
             if any(e.groups for e in couplings):
-                peaks, notes = collapse_split_lines(classes, peaks)
+                merged, notes = collapse_split_lines(classes, peaks)
+                if notes:
+                    pr = self._matrices(classes, merged, notes)
+                    pr.alternative = self._matrices(classes, peaks, [])
+                    return pr
         elif any(p.coupling is not None or p.j for p in peaks):
             for c in classes:   # printed splittings a molecule without F or P cannot show
                 c.expected = ExpectedMultiplet(c.atoms, len(c.atoms))
+        return self._matrices(classes, peaks, [])
+
+    def _matrices(self, classes, peaks, notes) -> Prepared:
         cls_m = np.array([_MCODE.get(c.multiplicity, 9) for c in classes])
         pk_m = np.array([_MCODE.get(p.multiplicity, 9) if p.multiplicity is not None else -1 for p in peaks])
         bad_p = ((pk_m[None, :] >= 0) & (pk_m[None, :] != cls_m[:, None])).astype(float)
@@ -212,7 +228,7 @@ class CarbonEvidence(_Evidence):
                 if c.expected is not None:
                     pat, nj = fit_cost(c.expected, p.coupling, p.j, tolerance=2.0)
                     bad_j[i, j] = pat + nj
-        return Prepared(classes, peaks, bad_p, bad_j, notes)
+        return Prepared(classes, peaks, bad_p, bad_j, list(notes))
 
     def flags(self, res: NucleusResult) -> list[str]:
         out = _count_flags(res, "signals") + _quality_flags(res, "carbons")
@@ -257,21 +273,27 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
                     break
                 if s < smin:
                     continue
+                tol = max(0.03, SPACING_TOLERANCE * s)
                 chosen = [cand[a][1], cand[b][1]]
-                pos = cand[b][0]
+                pos, worst = cand[b][0], 0.0
                 for _ in range(lines - 2):
                     target = pos + s
                     hit = min(((abs(x - target), j) for x, j in cand if j not in chosen), default=(np.inf, None))
-                    if hit[0] > max(0.03, SPACING_TOLERANCE * s):
+                    if hit[0] > tol:
                         break
                     chosen.append(hit[1])
                     pos = peaks[hit[1]].shift
+                    worst = max(worst, hit[0])
                 if len(chosen) != lines:
                     continue
                 centre = float(np.mean([peaks[j].shift for j in chosen]))
                 miss = abs(centre - c.shift)
-                if miss <= 3 * c.sigma + 2.0 and (best is None or miss < best[0]):
-                    best = (miss, chosen, centre, s)
+                if miss > 3 * c.sigma + 2.0:
+                    continue
+                # equal spacing first (the lines of one multiplet are evenly spaced), then nearness to the prediction
+                score = worst / tol + miss / (3 * c.sigma + 2.0)
+                if best is None or score < best[0]:
+                    best = (score, chosen, centre, s)
         if best is None:
             continue
         _, chosen, centre, s = best

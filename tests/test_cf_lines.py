@@ -1,0 +1,39 @@
+"""C–F split lines printed as separate values, read as one carbon only where the candidate can split so.
+
+Source: the 13C paragraph of PMC9501377 (NMRExtractor, MIT licence), a 4-CF3 nitrophenylamine:
+"124.93 (d, J = 271.6 Hz)" (the CF3 carbon, a quartet) and "118.86 (q, J = 34.4 Hz)" (the ring carbon
+bearing it), at 101 MHz.  Here those two quartets are written out as the four lines each that a
+list printed without the coupling would show (centre ± 0.5 J and ± 1.5 J, in ppm at 101 MHz); the
+other values are as printed.  C–F coupling constants: see shiftrank.chem.couplings (common practice,
+from memory).
+"""
+from shiftrank.chem.isomers import isomers
+from shiftrank.score.ranking import rank
+
+TRUTH = "O=[N+]([O-])c1cc(C(F)(F)F)ccc1Nc1ccc(OCCN2CCCC2)cc1"
+
+
+def _lines(centre, j_hz, field=101.0, n=4):
+    s = j_hz / field
+    return [round(centre + (k - (n - 1) / 2) * s, 2) for k in range(n)]
+
+
+VALUES = ([158.00, 146.47, 131.81, 131.40, 130.14, 127.52] + _lines(124.93, 271.6) + [124.83] + _lines(118.86, 34.4)
+          + [116.64, 116.00, 67.52, 55.14, 54.90, 23.63])
+TEXT = "13C NMR (101 MHz, CDCl3) δ " + ", ".join(f"{v:.2f}" for v in sorted(VALUES, reverse=True))
+
+
+def test_split_lines_are_read_as_one_carbon_and_the_right_isomer_wins():
+    cands = [a.smiles for a in isomers(TRUTH, kinds=("positional",))] + [TRUTH]
+    r = rank(text=TEXT, candidates=cands)
+    assert r.best.smiles == TRUTH
+    notes = " ".join(r.best.flags)
+    assert "read as one carbon split by F (q, J ≈ 272 Hz" in notes and "(q, J ≈ 34 Hz" in notes
+    assert r.best.nuclei["13C"].observed_signals == len(VALUES) - 6   # two quartets, four lines each, read as two
+
+
+def test_a_candidate_without_fluorine_keeps_every_line():
+    r = rank(text=TEXT, candidates=[TRUTH.replace("C(F)(F)F", "C")])
+    res = r.best.nuclei["13C"]
+    assert res.observed_signals == len(VALUES)
+    assert not any("read as one carbon" in f for f in r.best.flags)
