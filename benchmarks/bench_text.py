@@ -132,6 +132,32 @@ def ranking_figures(cases, label: str) -> dict:
     return out
 
 
+def batch_speed(cases) -> None:
+    """Whole-process ``shiftrank batch`` on the same cases from the 13C paragraph alone, the 1H paragraph
+    alone, and both (a fresh process each, so no run profits from another's caches)."""
+    import subprocess
+    import tempfile
+
+    n = sum(len(as_case(c, "13C")[0]["candidates"]) for c in cases)
+    times = {}
+    with tempfile.TemporaryDirectory() as d:
+        for which in ("13C", "1H", "both"):
+            path = Path(d) / f"{which}.jsonl"
+            path.write_text("\n".join(json.dumps(as_case(c, which)[0]) for c in cases) + "\n")
+            best = None
+            for _ in range(2):
+                t = time.perf_counter()
+                r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "batch", str(path), "-o", str(path) + ".out"],
+                                   capture_output=True, text=True)
+                dt = time.perf_counter() - t
+                assert r.returncode == 0, r.stderr
+                best = dt if best is None else min(best, dt)
+            times[which] = best
+            print(f"  shiftrank batch from the {which:<4} paragraph(s): {n} candidates in {best:.1f} s = {n / best:,.0f}/s "
+                  f"(whole process, best of 2)")
+    print(f"  1H + 13C takes {times['both'] / times['13C']:.2f}x the time of 13C alone")
+
+
 def main() -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
@@ -143,8 +169,13 @@ def main() -> int:
     print(f"== reader on the {args.part} part of the literature paragraphs ({len(part)} compounds) ==")
     reader_figures(part)
     print(f"\n== ranking from printed text, {args.part} part ==")
+    every = []
     for name, label in (("dev_cases_text_regio.jsonl.gz", "regio"), ("dev_cases_text_isomers.jsonl.gz", "isomers")):
-        ranking_figures(load_cases(args.data / name, args.part, args.limit), label)
+        cases = load_cases(args.data / name, args.part, args.limit)
+        every += cases
+        ranking_figures(cases, label)
+    print(f"\n== batch speed, {args.part} part, regio and isomer cases together ==")
+    batch_speed(every)
     return 0
 
 

@@ -34,6 +34,7 @@ from __future__ import annotations
 
 import itertools
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 from rdkit import Chem
 
@@ -183,13 +184,18 @@ def observed_pattern(letters: str | None) -> tuple[int, ...] | None:
     return tuple(sorted((n for n in out if n > 1), reverse=True))
 
 
+@lru_cache(maxsize=4096)
+def _pattern_of(letters: str | None) -> tuple[int, ...] | None:
+    return observed_pattern(letters)
+
+
 def fit_cost(expected: ExpectedMultiplet, letters: str | None, js: tuple = (), tolerance: float = 1.0) -> tuple[int, int]:
     """(pattern misfit 0/1, number of printed J values no expected coupling explains).
 
     The printed letters fit when some variant of the expected pattern has the same line counts;
     a printed J fits when it lies within ``tolerance`` Hz of an expected coupling's range.
     """
-    pat = observed_pattern(letters)
+    pat = _pattern_of(letters)
     bad_pattern = 0
     if pat is not None and not expected.exchangeable:
         bad_pattern = int(pat not in expected.patterns())
@@ -202,11 +208,43 @@ def fit_cost(expected: ExpectedMultiplet, letters: str | None, js: tuple = (), t
     return bad_pattern, bad_j
 
 
+class _RingIndex:
+    """Ring facts of one molecule, looked up many times while its multiplets are worked out."""
+
+    def __init__(self, mol: Chem.Mol):
+        ri = mol.GetRingInfo()
+        self.bond_size: dict[int, int] = {}
+        for r in ri.BondRings():
+            for b in r:
+                if b not in self.bond_size or len(r) < self.bond_size[b]:
+                    self.bond_size[b] = len(r)
+        self.atom_rings: dict[int, set[int]] = {}
+        for k, r in enumerate(ri.AtomRings()):
+            for a in r:
+                self.atom_rings.setdefault(a, set()).add(k)
+
+    def same(self, i: int, j: int) -> bool:
+        return bool(self.atom_rings.get(i, set()) & self.atom_rings.get(j, set()))
+
+
+_RINGS: dict[int, _RingIndex] = {}
+
+
+def _rings(mol: Chem.Mol) -> _RingIndex:
+    key = id(mol)
+    idx = _RINGS.get(key)
+    if idx is None or idx.mol is not mol:
+        idx = _RingIndex(mol)
+        idx.mol = mol
+        if len(_RINGS) > 64:
+            _RINGS.clear()
+        _RINGS[key] = idx
+    return idx
+
+
 def _ring_of_size(mol: Chem.Mol, a: int, b: int) -> int:
     """Size of the smallest ring holding the bond a–b (0 if none)."""
-    ri = mol.GetRingInfo()
-    sizes = [len(r) for r in ri.BondRings() if mol.GetBondBetweenAtoms(a, b).GetIdx() in r]
-    return min(sizes) if sizes else 0
+    return _rings(mol).bond_size.get(mol.GetBondBetweenAtoms(a, b).GetIdx(), 0)
 
 
 def _alkene_kind(mol: Chem.Mol, a: int, b: int) -> str:
@@ -223,6 +261,16 @@ def _alkene_kind(mol: Chem.Mol, a: int, b: int) -> str:
     return "alkene"
 
 
+def _stereocentre(a: Chem.Atom, ranks) -> bool:
+    """A tetrahedral carbon whose four substituents differ topologically (hydrogen counting as one)."""
+    if a.GetAtomicNum() != 6 or a.GetIsAromatic() or a.GetHybridization() != Chem.HybridizationType.SP3:
+        return False
+    nh = a.GetTotalNumHs()
+    if nh > 1 or a.GetDegree() + nh != 4:
+        return False
+    return len({ranks[n.GetIdx()] for n in a.GetNeighbors()}) + nh == 4
+
+
 def _exchangeable(atom: Chem.Atom) -> bool:
     return atom.GetAtomicNum() in (7, 8, 16)
 
@@ -232,10 +280,11 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     if ranks is None:
         ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     classes: dict[int, list[int]] = {}
-    for a in mol.GetAtoms():
+    atoms_ = list(map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
+    for a in atoms_:
         if a.GetTotalNumHs() > 0:
             classes.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
-    chiral = bool(Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False))
+    chiral = any(_stereocentre(a, ranks) for a in atoms_)
     out = []
     for atoms in sorted(classes.values(), key=lambda g: g[0]):
         a = mol.GetAtomWithIdx(atoms[0])
@@ -327,7 +376,7 @@ def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int], chiral: bool = False)
 
 
 def _same_ring(mol: Chem.Mol, i: int, j: int) -> bool:
-    return any(i in r and j in r for r in mol.GetRingInfo().AtomRings())
+    return _rings(mol).same(i, j)
 
 
 def _next_to_ring_n(mol: Chem.Mol, i: int, j: int) -> bool:

@@ -42,6 +42,7 @@ class StructureFacts:
     dbe_note: str | None
     carbon_classes: list[CarbonClass]
     hydrogen_classes: list[list[int]] = field(default_factory=list)  # heavy-atom indices carrying each H class
+    proton_multiplets: list | None = None   # expected 1H multiplets, filled in by the scoring when needed
 
     @property
     def n_carbons(self) -> int:

@@ -342,7 +342,11 @@ class ProtonEvidence(_Evidence):
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
         by_protons = any(p.capacity is not None for p in peaks)
         out = []
-        ems = expected_multiplets(mol, ranks)
+        ems = getattr(facts, "proton_multiplets", None) if facts is not None else None
+        if ems is None:   # the same for every case a candidate appears in: kept with its (cached) facts
+            ems = expected_multiplets(mol, ranks)
+            if facts is not None:
+                facts.proton_multiplets = ems
         if isinstance(mu, ClassMeans):
             means, sigmas = (x.tolist() for x in mu.of([e.atoms for e in ems]))
         else:
