@@ -17,6 +17,9 @@ from ..errors import InputError
 
 RDLogger.DisableLog("rdApp.*")
 
+#: Longest SMILES string read (far beyond any molecule within the heavy-atom limit).
+MAX_SMILES = 5000
+
 #: Elements an organic molecule may contain for prediction.
 ORGANIC = frozenset({"H", "B", "C", "N", "O", "F", "Si", "P", "S", "Cl", "Se", "Br", "I", "Ge", "As", "Sn", "Te"})
 
@@ -39,6 +42,8 @@ def to_mol(smiles: str) -> Chem.Mol:
     """
     if not isinstance(smiles, str) or not smiles.strip():
         raise InputError("SMILES: empty string")
+    if len(smiles) > MAX_SMILES:
+        raise InputError(f"SMILES '{smiles[:40]}…': {len(smiles):,} characters; the limit is {MAX_SMILES:,}")
     mol = Chem.MolFromSmiles(smiles.strip())
     if mol is None:
         raise InputError(f"SMILES '{smiles}': RDKit cannot parse it (check brackets, ring closures and valences)")

@@ -21,6 +21,13 @@ from ..errors import InputError
 from .solvents import SOLVENTS, match_solvent, normalise_solvent
 
 RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}
+#: Most peaks one list may hold (a spectrum's peak list, not a raw data dump).
+MAX_PEAKS = 2000
+
+
+def check_count(n: int, src: str) -> None:
+    if n > MAX_PEAKS:
+        raise InputError(f"{src}: {n:,} peaks; the limit is {MAX_PEAKS:,} per list (give the picked peaks, not the raw data)")
 
 #: DEPT-style multiplicities; s/d/t/q is the off-resonance notation (common practice).
 _MULT = {
@@ -257,6 +264,7 @@ def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C", not
     """
     if not isinstance(data, list):
         raise InputError(f"{src}: expected a list of peaks, got {type(data).__name__}")
+    check_count(len(data), src)
     out, dropped = [], []
     for i, item in enumerate(data):
         where = f"{src} peak {i + 1}"
@@ -350,6 +358,7 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
     raw = reader(body, source, nucleus)
     if not raw:
         raise InputError(f"{source}: no peaks found")
+    check_count(len(raw), source)
     notes: list[str] = []
     pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes)
     return flag_solvent(pl, solvent)

@@ -24,7 +24,7 @@ import re
 from dataclasses import dataclass, field
 
 from ..errors import InputError
-from .peaks import RANGES, Peak, PeakList, flag_solvent, merge_duplicates, normalise_1h_multiplicity
+from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, merge_duplicates, normalise_1h_multiplicity
 from .solvents import normalise_solvent
 
 #: Ratio of the 1H to the 13C Larmor frequency (gyromagnetic ratios; 400 MHz 1H ≈ 100.6 MHz 13C).
@@ -117,6 +117,7 @@ class NmrText:
 
 
 def section_peaklist(sec: TextSection, solvent: str | None = None, source: str = "text") -> PeakList:
+    check_count(len(sec.peaks), f"{source} ({sec.nucleus})")
     lo, hi = RANGES[sec.nucleus]
     notes = [f"{sec.nucleus} text: {n}" for n in sec.notes]
     peaks = []

@@ -18,6 +18,7 @@ from ..errors import InputError
 from .ranking import rank_many
 
 CHUNK = 64
+MAX_LINE = 5_000_000   # characters in one JSON line (one case)
 FIELDS = ("id", "peaks", "peaks_1h", "text", "candidates", "formula", "mass", "solvent", "priors", "with_isomers")
 
 
@@ -35,6 +36,9 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
     out = []
     for n, line in enumerate(lines, 1):
         if not line.strip():
+            continue
+        if len(line) > MAX_LINE:
+            out.append((n, InputError(f"{p.name} line {n}: {len(line):,} characters; the limit is {MAX_LINE:,} per case")))
             continue
         try:
             obj = json.loads(line)

@@ -39,6 +39,7 @@ from .evidence import EVIDENCE, ClassMeans, NucleusResult
 from .matching import MatchCosts, ObservedPeak
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
+MAX_CANDIDATES = 1000  # per case, generated alternatives included
 NUCLEI = ("13C", "1H")
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
            "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
@@ -495,7 +496,14 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         if not isinstance(smi, str) or _parse(smi)[2]:
             continue
         added = 0
-        for alt in isomers(smi, kinds=kinds):
+        try:
+            alts = isomers(smi, kinds=kinds)
+        except InputError as exc:
+            if "kind '" in str(exc):
+                raise
+            notes.append(f"no alternatives generated for {smi[:40]}: {exc}")
+            continue
+        for alt in alts:
             k = structure_key(Chem.MolFromSmiles(alt.smiles))
             if k in seen:
                 continue
@@ -514,8 +522,16 @@ def _stage(case: dict, nuclei_models) -> tuple:
     if not cands:
         raise InputError("candidates: no candidate structures given")
     iso_notes: list[str] = []
+    if len(cands) > MAX_CANDIDATES:
+        raise InputError(f"candidates: {len(cands):,} given; the limit is {MAX_CANDIDATES:,} per case (split the case)")
     if case.get("with_isomers"):
-        cands, iso_notes = expand_with_isomers(cands, case["with_isomers"])
+        kinds = case["with_isomers"]
+        if not isinstance(kinds, (bool, str)):
+            raise InputError("with_isomers: expected true or a kinds string such as 'positional,ambident'")
+        cands, iso_notes = expand_with_isomers(cands, kinds)
+        if len(cands) > MAX_CANDIDATES:
+            raise InputError(f"candidates: {len(cands):,} with the generated alternatives; the limit is {MAX_CANDIDATES:,} "
+                             "per case (narrow the isomer kinds)")
     lists, solvent, notes = case_peaklists(case)
     notes = iso_notes + notes
     peaks = {n: observed_peaks(pl) for n, pl in lists.items()}
