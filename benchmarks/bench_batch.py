@@ -138,52 +138,72 @@ def main() -> int:
         best = min(dt for dt, _ in runs)
         print(f"shiftrank batch, whole process, one core: {best:.2f} s = {n / best:,.0f} candidates/s "
               f"(best of 3; runs {', '.join(f'{dt:.2f}' for dt, _ in runs)} s); {best / ref:.1f}x the RDKit reference")
+        if not args.skip_dask:
+            # before the in-process stages below, which grow this process (forked workers would inherit it)
+            dask_figures(cases, n, args.dask_candidates, Path(d))
         t = stages(cases)
         total = sum(t.values())
         print(f"per stage, in-process ({total:.2f} s, {n / total:,.0f} candidates/s):")
         for k, v in t.items():
             print(f"  {k:<40} {v:6.2f} s  {100 * v / total:5.1f} %  {1e6 * v / n:7.1f} µs/candidate")
-        if args.skip_dask:
-            return 0
-        reps = max(1, args.dask_candidates // n)
-        big = Path(d) / "big.jsonl"
-        with open(big, "w") as f:
-            for r in range(reps):
-                for c in cases:
-                    f.write(json.dumps({**c, "id": f"{c['id']}#{r}"}) + "\n")
-        nb = n * reps
-        serial_dt, serial_out = whole_process(big)
-        print(f"\nDask, {nb:,} candidates ({reps} copies of the batch); serial whole process {serial_dt:.1f} s "
-              f"= {nb / serial_dt:,.0f}/s")
-        speeds = {}
-        for workers in (1, 2):
-            dt, out = whole_process(big, ["--dask", f"local:{workers}"])
-            speeds[workers] = nb / dt
-            print(f"  LocalCluster {workers} worker(s): {dt:.1f} s = {nb / dt:,.0f} candidates/s (start-up included); "
-                  f"output identical to serial: {out == serial_out}")
-        print(f"  scaling 2 vs 1 worker: {speeds[2] / speeds[1]:.2f}x")
-        print(peak_memory(big))
     return 0
 
 
-def peak_memory(path: Path) -> str:
-    """Peak resident memory of each worker of a 2-worker LocalCluster ranking ``path``."""
+def dask_figures(cases, n: int, target: int, d: Path) -> None:
+    """Whole-process Dask runs with 1 and 2 local workers against the serial run, then the steady state."""
+    reps = max(1, target // n)
+    big = d / "big.jsonl"
+    with open(big, "w") as f:
+        for r in range(reps):
+            for c in cases:
+                f.write(json.dumps({**c, "id": f"{c['id']}#{r}"}) + "\n")
+    nb = n * reps
+    serial_dt, serial_out = whole_process(big)
+    print(f"\nDask, {nb:,} candidates ({reps} copies of the batch); serial whole process {serial_dt:.1f} s "
+          f"= {nb / serial_dt:,.0f}/s")
+    speeds = {}
+    for workers in (1, 2):
+        dt, out = whole_process(big, ["--dask", f"local:{workers}"])
+        speeds[workers] = nb / dt
+        print(f"  LocalCluster {workers} worker(s): {dt:.1f} s = {nb / dt:,.0f} candidates/s (start-up included); "
+              f"output identical to serial: {out == serial_out}")
+    print(f"  scaling 2 vs 1 worker: {speeds[2] / speeds[1]:.2f}x")
+    print(peak_memory(big))
+
+
+def _worker_memory():
+    import resource
+
+    import psutil
+    return psutil.Process().memory_info().rss / 2 ** 20, resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
+
+
+def steady_state(path: Path, workers: int) -> tuple[float, dict]:
+    """Seconds to rank ``path`` on a LocalCluster whose workers have already loaded the models, and each
+    worker's (resident, peak resident) memory in MB afterwards."""
     from dask.distributed import Client, LocalCluster
 
     from shiftrank.score.batch import chunks_of, read_cases
-    from shiftrank.score.distributed import stream_on
+    from shiftrank.score.distributed import stream_on, warm_up
 
-    with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None) as cluster, \
+    items = read_cases(path)
+    with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None) as cluster, \
             Client(cluster) as client:
-        for _ in stream_on(client, chunks_of(read_cases(path))):
+        client.run(warm_up)
+        t = time.perf_counter()
+        for _ in stream_on(client, chunks_of(items)):
             pass
+        dt = time.perf_counter() - t
+        return dt, client.run(_worker_memory)
 
-        def peak():
-            import resource
-            return resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
 
-        mem = client.run(peak)
-    return "  peak resident memory per worker: " + ", ".join(f"{v:,.0f} MB" for v in mem.values())
+def peak_memory(path: Path) -> str:
+    """Steady-state scaling (models loaded first) and each worker's memory."""
+    t1, _ = steady_state(path, 1)
+    t2, mem = steady_state(path, 2)
+    return (f"  steady state (models loaded before timing): 1 worker {t1:.1f} s, 2 workers {t2:.1f} s: {t1 / t2:.2f}x\n"
+            "  memory per worker after the batch (resident / peak resident): "
+            + ", ".join(f"{a:,.0f} / {b:,.0f} MB" for a, b in mem.values()))
 
 
 if __name__ == "__main__":
