@@ -77,6 +77,24 @@ def reliability(top_p, top_ok) -> list[str]:
     return lines
 
 
+def by_size_and_count(ranks, held, cases) -> str:
+    """Held-out top-1 by the true structure's size (heavy atoms) and by the number of candidates."""
+    from rdkit import Chem
+
+    sizes = np.array([Chem.MolFromSmiles(c["candidates"][0]).GetNumHeavyAtoms() for c in cases])
+    counts = np.array([len(c["candidates"]) for c in cases])
+    out = []
+    for name, values, bins in (("heavy atoms", sizes, [(0, 15), (15, 25), (25, 35), (35, 999)]),
+                               ("candidates", counts, [(2, 3), (3, 5), (5, 7), (7, 99)])):
+        parts = []
+        for lo, hi in bins:
+            m = held & (values >= lo) & (values < hi)
+            if m.any():
+                parts.append(f"{lo}-{hi - 1 if hi < 99 else '+'}: {100 * np.mean(ranks[m] == 1):.1f} % (n={m.sum()})")
+        out.append(f"      held-out top-1 by {name}: " + ", ".join(parts))
+    return "\n".join(out)
+
+
 def main() -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
@@ -99,6 +117,8 @@ def main() -> int:
             print(f"  {label:<20} all      {summary(ranks, np.ones(len(ranks), bool))}   ({dt:.1f} s in-process)")
             print(f"  {label:<20} held-out {summary(ranks, held)}   (val+test skeletons)")
             print(f"  {label:<20} test     {summary(ranks, test_only)}   (untouched by any fitting)")
+            if name == "dev_cases_regio.jsonl.gz":
+                print(by_size_and_count(ranks, held, cases))
             if label == "with multiplicities":
                 all_p.append(top_p); all_ok.append(top_ok); all_held.append(test_only)
                 n_total_cands += sum(len(c["candidates"]) for c in cases)

@@ -126,9 +126,17 @@ def ranking_figures(cases, label: str) -> dict:
         ranks = np.array(ranks)
         n_c = sum(len(b["candidates"]) for b, _ in built)
         out[which] = float(np.mean(ranks == 1))
+        from rdkit import Chem
+        sizes = np.array([Chem.MolFromSmiles(b["candidates"][0]).GetNumHeavyAtoms() for b, _ in built])
+        parts = []
+        for lo, hi in ((0, 20), (20, 30), (30, 40), (40, 999)):
+            m = (sizes >= lo) & (sizes < hi)
+            if m.any():
+                parts.append(f"{lo}-{hi - 1 if hi < 999 else '+'}: {100 * np.mean(ranks[m] == 1):.0f} % (n={m.sum()})")
         print(f"  {label:<9} {which:<5} n={len(ranks):4d}  top-1 {100 * np.mean(ranks == 1):5.1f} %  top-2 "
               f"{100 * np.mean(ranks <= 2):5.1f} %  MRR {np.mean(1 / ranks):.3f}  case errors {errors}  "
               f"({n_c / dt:,.0f} candidates/s in-process)")
+        print(f"        by heavy atoms: " + ", ".join(parts))
     return out
 
 

@@ -96,23 +96,17 @@ class ExpectedMultiplet:
     exchangeable: bool = False
     _patterns: frozenset | None = field(default=None, repr=False, compare=False)
 
+    @property
+    def signature(self) -> tuple:
+        """What the comparison with a printed multiplet depends on (many classes share it)."""
+        return tuple((g.kind, g.n, g.partner) for g in self.groups), self.exchangeable
+
     def patterns(self) -> frozenset[tuple[int, ...]]:
         """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
         1s dropped, with optional groups in or out and groups of overlapping J merged or not."""
         if self._patterns is None:
-            self._patterns = self._all_patterns()
+            self._patterns = _patterns_of(self.signature[0])
         return self._patterns
-
-    def _all_patterns(self) -> frozenset[tuple[int, ...]]:
-        required = [g for g in self.groups if not g.optional]
-        optional = [g for g in self.groups if g.optional][:MAX_OPTIONAL]
-        out: set[tuple[int, ...]] = set()
-        for k in range(len(optional) + 1):
-            for extra in itertools.combinations(optional, k):
-                gs = required + list(extra)
-                out.add(_pattern(gs))
-                out.add(_pattern(_merge_overlapping(gs)))
-        return frozenset(out)
 
     def label(self) -> str:
         """Expected multiplet in letters, optional splittings in brackets, with its couplings, e.g.
@@ -130,6 +124,20 @@ class ExpectedMultiplet:
 
     def j_ranges(self) -> list[tuple[float, float]]:
         return [g.j_range for g in self.groups]
+
+
+@lru_cache(maxsize=8192)
+def _patterns_of(groups_sig: tuple) -> frozenset[tuple[int, ...]]:
+    groups = [CouplingGroup(k, n, p) for k, n, p in groups_sig]
+    required = [g for g in groups if not g.optional]
+    optional = [g for g in groups if g.optional][:MAX_OPTIONAL]
+    out: set[tuple[int, ...]] = set()
+    for k in range(len(optional) + 1):
+        for extra in itertools.combinations(optional, k):
+            gs = required + list(extra)
+            out.add(_pattern(gs))
+            out.add(_pattern(_merge_overlapping(gs)))
+    return frozenset(out)
 
 
 def _letter(lines: int) -> str:
@@ -195,13 +203,19 @@ def fit_cost(expected: ExpectedMultiplet, letters: str | None, js: tuple = (), t
     The printed letters fit when some variant of the expected pattern has the same line counts;
     a printed J fits when it lies within ``tolerance`` Hz of an expected coupling's range.
     """
+    return _fit(expected.signature, letters, tuple(js), tolerance)
+
+
+@lru_cache(maxsize=65536)
+def _fit(signature: tuple, letters: str | None, js: tuple, tolerance: float) -> tuple[int, int]:
+    groups_sig, exchangeable = signature
+    if exchangeable:
+        return 0, 0
     pat = _pattern_of(letters)
-    bad_pattern = 0
-    if pat is not None and not expected.exchangeable:
-        bad_pattern = int(pat not in expected.patterns())
+    bad_pattern = int(pat is not None and pat not in _patterns_of(groups_sig))
     bad_j = 0
-    if js and not expected.exchangeable:
-        ranges = expected.j_ranges()
+    if js:
+        ranges = [J_RANGES[k][0] for k, _, _ in groups_sig]
         for j in js:
             if not any(lo - tolerance <= j <= hi + tolerance for lo, hi in ranges):
                 bad_j += 1
@@ -275,104 +289,131 @@ def _exchangeable(atom: Chem.Atom) -> bool:
     return atom.GetAtomicNum() in (7, 8, 16)
 
 
+class _Table:
+    """Atom and bond facts of one molecule as plain Python lists (RDKit object access is slow in loops)."""
+
+    _BT = {Chem.BondType.SINGLE: 1, Chem.BondType.DOUBLE: 2, Chem.BondType.TRIPLE: 3, Chem.BondType.AROMATIC: 4}
+
+    def __init__(self, mol: Chem.Mol):
+        n = mol.GetNumAtoms()
+        atoms = [mol.GetAtomWithIdx(i) for i in range(n)]
+        self.z = [a.GetAtomicNum() for a in atoms]
+        self.arom = [a.GetIsAromatic() for a in atoms]
+        self.nh = [a.GetTotalNumHs() for a in atoms]
+        self.sp2 = [a.GetHybridization() == Chem.HybridizationType.SP2 for a in atoms]
+        self.in_ring = [a.IsInRing() for a in atoms]
+        self.adj: list[list[tuple[int, int, int]]] = [[] for _ in range(n)]   # (neighbour, bond type, bond index)
+        for k in range(mol.GetNumBonds()):
+            b = mol.GetBondWithIdx(k)
+            i, j = b.GetBeginAtomIdx(), b.GetEndAtomIdx()
+            t = self._BT.get(b.GetBondType(), 1)
+            self.adj[i].append((j, t, k))
+            self.adj[j].append((i, t, k))
+        self.carbonyl = [self.z[i] == 6 and any(t == 2 and self.z[j] == 8 for j, t, _ in self.adj[i]) for i in range(n)]
+        self.dbl_c = [any(t == 2 and self.z[j] == 6 for j, t, _ in self.adj[i]) for i in range(n)]
+        self.exch = [z in (7, 8, 16) for z in self.z]
+
+
 def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
     """Expected multiplet of every proton class of ``mol`` (hydrogens implicit), ordered by first atom."""
     if ranks is None:
         ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+    T = _Table(mol)
+    R = _rings(mol)
     classes: dict[int, list[int]] = {}
-    atoms_ = list(map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
-    for a in atoms_:
-        if a.GetTotalNumHs() > 0:
-            classes.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
-    chiral = any(_stereocentre(a, ranks) for a in atoms_)
+    for i, nh in enumerate(T.nh):
+        if nh > 0:
+            classes.setdefault(ranks[i], []).append(i)
+    chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
+                 if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
     out = []
     for atoms in sorted(classes.values(), key=lambda g: g[0]):
-        a = mol.GetAtomWithIdx(atoms[0])
-        n_h = sum(mol.GetAtomWithIdx(i).GetTotalNumHs() for i in atoms)
-        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, a, ranks, chiral), _exchangeable(a)))
+        n_h = sum(T.nh[i] for i in atoms)
+        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]]))
     return out
 
 
-def _groups(mol: Chem.Mol, a: Chem.Atom, ranks: list[int], chiral: bool = False) -> list[CouplingGroup]:
+def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], chiral: bool = False) -> list[CouplingGroup]:
     counts: dict[tuple[str, str, int], int] = {}
-    ai = a.GetIdx()
+    own = ranks[ai]
 
     def add(kind: str, n: int, partner: str, key: int) -> None:
-        if partner == "H" and key == ranks[ai] and kind != "geminal-alkene":
+        if partner == "H" and key == own and kind != "geminal-alkene":
             return  # protons of the same class do not split each other's signal (first order)
         if n > 0:
             counts[(kind, partner, key)] = counts.get((kind, partner, key), 0) + n
 
-    a_exch = _exchangeable(a)
-    a_carbonyl = a.GetAtomicNum() == 6 and any(
-        b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() == 8 for b in a.GetBonds())
-    for bond in a.GetBonds():
-        b = bond.GetOtherAtom(a)
-        bi = b.GetIdx()
-        zb = b.GetAtomicNum()
+    z, arom, nh = T.z, T.arom, T.nh
+    a_exch = T.exch[ai]
+    a_carbonyl = T.carbonyl[ai]
+    for bi, btype, bidx in T.adj[ai]:
+        zb = z[bi]
         if zb == 9:
             add("HF-geminal", 1, "F", ranks[bi])
             continue
         if zb == 15:
             add("HP", 1, "P", ranks[bi])
             continue
-        nb = b.GetTotalNumHs()
+        nb = nh[bi]
         if nb:
-            if a_exch or _exchangeable(b):
+            if a_exch or T.exch[bi]:
                 add("exchangeable", nb, "H", ranks[bi])
-            elif bond.GetBondType() == Chem.BondType.AROMATIC or (a.GetIsAromatic() and b.GetIsAromatic()):
-                ring = _ring_of_size(mol, ai, bi)
+            elif btype == 4 or (arom[ai] and arom[bi]):
+                ring = R.bond_size.get(bidx, 0)
                 kind = "ortho-5" if ring == 5 else "ortho"
-                if ring == 6 and _next_to_ring_n(mol, ai, bi):
+                if ring == 6 and _next_to_ring_n_t(T, R, ai, bi):
                     kind = "ortho-N"  # pyridine H2–H3 (4–6 Hz)
                 add(kind, nb, "H", ranks[bi])
-            elif bond.GetBondType() == Chem.BondType.DOUBLE:
+            elif btype == 2:
                 if nb == 2:                   # =CH2 partner: one proton cis, one trans
                     add("cis", 1, "H", ranks[bi])
                     add("trans", 1, "H", ranks[bi])
-                elif a.GetTotalNumHs() == 2:  # each of this =CH2's protons sees the partner cis or trans
+                elif nh[ai] == 2:             # each of this =CH2's protons sees the partner cis or trans
                     add("alkene", 1, "H", ranks[bi])
                 else:
                     add(_alkene_kind(mol, ai, bi), 1, "H", ranks[bi])
             else:
-                b_carbonyl = zb == 6 and any(x.GetBondType() == Chem.BondType.DOUBLE and x.GetOtherAtom(b).GetAtomicNum() == 8
-                                             for x in b.GetBonds())
-                if a_carbonyl or b_carbonyl:
+                if a_carbonyl or T.carbonyl[bi]:
                     add("aldehyde", nb, "H", ranks[bi])
                 else:
-                    ring = _ring_of_size(mol, ai, bi)
+                    ring = R.bond_size.get(bidx, 0)
                     add("vicinal-ring" if ring and ring <= 5 else "vicinal", nb, "H", ranks[bi])
         # two bonds away: meta protons, fluorine and phosphorus
-        for bond2 in b.GetBonds():
-            c = bond2.GetOtherAtom(b)
-            ci = c.GetIdx()
+        for ci, _, _ in T.adj[bi]:
             if ci == ai:
                 continue
-            zc = c.GetAtomicNum()
+            zc = z[ci]
             if zc == 9:
-                add("HF-ortho" if a.GetIsAromatic() and b.GetIsAromatic() else "HF-vicinal", 1, "F", ranks[ci])
+                add("HF-ortho" if arom[ai] and arom[bi] else "HF-vicinal", 1, "F", ranks[ci])
             elif zc == 15:
                 add("HP", 1, "P", ranks[ci])
-            elif (a.GetIsAromatic() and b.GetIsAromatic() and c.GetIsAromatic() and c.GetTotalNumHs()
-                  and not mol.GetBondBetweenAtoms(ai, ci) and _same_ring(mol, ai, ci)):
-                add("meta", c.GetTotalNumHs(), "H", ranks[ci])
-            if a.GetIsAromatic() and b.GetIsAromatic() and c.GetIsAromatic():
-                for bond3 in c.GetBonds():
-                    d = bond3.GetOtherAtom(c)
-                    if d.GetAtomicNum() == 9 and _same_ring(mol, ai, ci):
-                        add("HF-meta", 1, "F", ranks[d.GetIdx()])
-    if a.GetTotalNumHs() == 2 and any(x.GetBondType() == Chem.BondType.DOUBLE and x.GetOtherAtom(a).GetAtomicNum() == 6
-                                      for x in a.GetBonds()):
-        add("geminal-alkene", 1, "H", ranks[ai])  # the two =CH2 protons are not equivalent in fact
-    elif a.GetTotalNumHs() == 2 and a.GetAtomicNum() == 6 and not a.GetIsAromatic() and (chiral or a.IsInRing()):
+            elif (arom[ai] and arom[bi] and arom[ci] and nh[ci]
+                  and not any(x == ci for x, _, _ in T.adj[ai]) and R.same(ai, ci)):
+                add("meta", nh[ci], "H", ranks[ci])
+            if arom[ai] and arom[bi] and arom[ci]:
+                for di, _, _ in T.adj[ci]:
+                    if z[di] == 9 and R.same(ai, ci):
+                        add("HF-meta", 1, "F", ranks[di])
+    if nh[ai] == 2 and T.dbl_c[ai]:
+        add("geminal-alkene", 1, "H", own)       # the two =CH2 protons are not equivalent in fact
+    elif nh[ai] == 2 and z[ai] == 6 and not arom[ai] and (chiral or T.in_ring[ai]):
         add("geminal", 1, "H", -2)               # diastereotopic CH2 protons (stereocentre, ring) couple to each other
-    if a.GetAtomicNum() == 6 and (a.GetIsAromatic() or a.GetHybridization() == Chem.HybridizationType.SP2 or
-                                  any(nb.GetIsAromatic() for nb in a.GetNeighbors())):
+    if z[ai] == 6 and (arom[ai] or T.sp2[ai] or any(arom[x] for x, _, _ in T.adj[ai])):
         add("long-range", 1, "H", -3)            # one small long-range coupling may be resolved
     if a_exch:
         # exchangeable protons: couplings (if any) are optional; keep them so J values can be explained
         return [CouplingGroup("exchangeable" if p == "H" else k, n, p, key) for (k, p, key), n in counts.items()]
     return [CouplingGroup(k, n, p, key) for (k, p, key), n in counts.items()]
+
+
+def _next_to_ring_n_t(T: _Table, R: _RingIndex, i: int, j: int) -> bool:
+    """True when one of the two aromatic ring atoms is bonded to another aromatic ring N of a shared ring
+    (the H2–H3 coupling of pyridines is 4–6 Hz, common practice)."""
+    for k in (i, j):
+        for n, _, _ in T.adj[k]:
+            if T.z[n] == 7 and T.arom[n] and n not in (i, j) and R.same(k, n):
+                return True
+    return False
 
 
 def _same_ring(mol: Chem.Mol, i: int, j: int) -> bool:
