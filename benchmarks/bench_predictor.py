@@ -81,16 +81,20 @@ def kind(atom) -> str:
     return "sp3"
 
 
+def aromatic_ring(mol, idx: int) -> tuple | None:
+    """The largest fully aromatic ring holding atom ``idx``, or None."""
+    if not mol.GetAtomWithIdx(idx).GetIsAromatic():
+        return None
+    rings = [r for r in mol.GetRingInfo().AtomRings() if idx in r and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
+    return max(rings, key=len) if rings else None
+
+
 def ring_position(mol, idx: int) -> str | None:
     """For an aromatic ring atom: 'ipso' (bears a substituent), else the closest substituent's position
     ('ortho', 'meta', 'para') around its ring, or 'bare' for an unsubstituted ring; None off rings."""
-    a = mol.GetAtomWithIdx(idx)
-    if not a.GetIsAromatic():
+    r = aromatic_ring(mol, idx)
+    if r is None:
         return None
-    rings = [r for r in mol.GetRingInfo().AtomRings() if idx in r and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
-    if not rings:
-        return None
-    r = max(rings, key=len)
     rset = set(r)
 
     def substituted(i):
@@ -107,13 +111,9 @@ def ring_position(mol, idx: int) -> str | None:
 
 
 def ring_type(mol, idx: int) -> str | None:
-    a = mol.GetAtomWithIdx(idx)
-    if not a.GetIsAromatic():
+    r = aromatic_ring(mol, idx)
+    if r is None:
         return None
-    rings = [r for r in mol.GetRingInfo().AtomRings() if idx in r and all(mol.GetAtomWithIdx(i).GetIsAromatic() for i in r)]
-    if not rings:
-        return None
-    r = max(rings, key=len)
     het = any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in r)
     return f"{'hetero' if het else 'carbo'}cyclic {len(r)}-ring"
 

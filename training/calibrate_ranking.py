@@ -72,28 +72,26 @@ GRID = {
 KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale")]
 
 
-def load_db_cases(data: Path, split: str = "val") -> list[dict]:
+def _read_cases(data: Path, names, keep) -> list[dict]:
+    """Development cases from the gzipped JSON-lines files ``names`` whose truth skeleton passes ``keep``."""
     out = []
-    for name in DB_FILES:
+    for name in names:
         with gzip.open(data / name, "rt") as f:
             for line in f:
                 c = json.loads(line)
-                if split_of(c["truth_skeleton"]) == split:
-                    out.append(c)
-    return out
-
-
-def load_text_cases(data: Path, part: str = "dev") -> list[dict]:
-    out = []
-    for name in TEXT_FILES:
-        with gzip.open(data / name, "rt") as f:
-            for line in f:
-                c = json.loads(line)
-                if literature_part(c["truth_skeleton"]) == part:
+                if keep(c["truth_skeleton"]):
                     if isinstance(c["candidates"], str):
                         c["candidates"] = ast.literal_eval(c["candidates"])
                     out.append(c)
     return out
+
+
+def load_db_cases(data: Path, split: str = "val") -> list[dict]:
+    return _read_cases(data, DB_FILES, lambda sk: split_of(sk) == split)
+
+
+def load_text_cases(data: Path, part: str = "dev") -> list[dict]:
+    return _read_cases(data, TEXT_FILES, lambda sk: literature_part(sk) == part)
 
 
 def build(c: dict, mode: str) -> dict:

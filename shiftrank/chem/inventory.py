@@ -203,12 +203,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
         _read_protons(inv, h1)
 
     if formula:
-        fc = parse_formula(formula)
-        inv.formula = hill(fc)
-        inv.dbe = dbe(fc)
-        note = dbe_note(inv.dbe)
-        if note:
-            inv.findings.append(f"note: {note}")
+        fc = _formula_findings(inv, formula)
         nC, nH = fc.get("C", 0), fc.get("H", 0)
         n_xh_max = fc.get("O", 0) + fc.get("N", 0) * 2 + fc.get("S", 0)
         dC = nC - carbons
@@ -260,11 +255,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
                 inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}, formula has {nH} H "
                                     f"(ratio {Fraction(nH, inv.h_total_from_integrals)}): exchange-broadened or hidden signals?")
         if mz is not None:
-            for adduct in ("M+", "M+H", "M+Na"):
-                exp = ion_mz(fc, adduct)
-                err = (mz - exp) / exp * 1e6
-                label = {"M+": "[M]+", "M+H": "[M+H]+", "M+Na": "[M+Na]+"}[adduct]
-                inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+            _mass_checks(inv, fc, mz, mz_tolerance_ppm)
     elif mz is not None:
         raise InputError("mass check: a measured m/z needs a formula to compare with")
     return inv
@@ -311,18 +302,32 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         inv.h_patterns.append(f"3H singlet at {p.shift:g}: an isolated methyl ({where}; common practice)")
 
 
+def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -> None:
+    """Compare a measured m/z with the formula's [M]+, [M+H]+ and [M+Na]+ ions."""
+    for adduct, label in (("M+", "[M]+"), ("M+H", "[M+H]+"), ("M+Na", "[M+Na]+")):
+        exp = ion_mz(fc, adduct)
+        err = (mz - exp) / exp * 1e6
+        inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+
+
+def _formula_findings(inv: Inventory, formula: str) -> dict:
+    """Parse the sample formula into ``inv`` (Hill formula, DBE and its note); return the counts."""
+    fc = parse_formula(formula)
+    inv.formula = hill(fc)
+    inv.dbe = dbe(fc)
+    note = dbe_note(inv.dbe)
+    if note:
+        inv.findings.append(f"note: {note}")
+    return fc
+
+
 def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_tolerance_ppm: float) -> Inventory:
     inv = Inventory(has_13c=False)
     if not h1.sample_peaks():
         raise InputError(f"{h1.source}: no sample peaks left after setting aside solvent signals")
     _read_protons(inv, h1)
     if formula:
-        fc = parse_formula(formula)
-        inv.formula = hill(fc)
-        inv.dbe = dbe(fc)
-        note = dbe_note(inv.dbe)
-        if note:
-            inv.findings.append(f"note: {note}")
+        fc = _formula_findings(inv, formula)
         nH = fc.get("H", 0)
         if inv.dbe >= 4:
             inv.findings.append(f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); "
@@ -345,11 +350,7 @@ def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_toleran
                 inv.findings.append(f"1H integrals sum to {tot}, formula has {nH} H (ratio {Fraction(nH, tot)}): "
                                     "overlapped, exchange-broadened or extra signals?")
         if mz is not None:
-            for adduct in ("M+", "M+H", "M+Na"):
-                exp = ion_mz(fc, adduct)
-                err = (mz - exp) / exp * 1e6
-                label = {"M+": "[M]+", "M+H": "[M+H]+", "M+Na": "[M+Na]+"}[adduct]
-                inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+            _mass_checks(inv, fc, mz, mz_tolerance_ppm)
     elif mz is not None:
         raise InputError("mass check: a measured m/z needs a formula to compare with")
     return inv

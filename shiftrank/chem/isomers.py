@@ -270,16 +270,7 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                         kind = _group_kind(mol, x.GetIdx())
                         if kind is None or n.GetDegree() > 3:
                             continue
-                        rw = Chem.RWMol(mol)
-                        rw.RemoveBond(n.GetIdx(), x.GetIdx())
-                        rw.AddBond(o.GetIdx(), x.GetIdx(), Chem.BondType.SINGLE)
-                        rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(Chem.BondType.SINGLE)
-                        if not bn.GetIsAromatic():
-                            rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(Chem.BondType.DOUBLE)
-                        rn = rw.GetAtomWithIdx(n.GetIdx())
-                        rn.SetNoImplicit(True)
-                        rn.SetNumExplicitHs(0)
-                        m = _finish(rw)
+                        m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=True, aromatic_cn=bn.GetIsAromatic())
                         if m is not None:
                             out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx() + 1} to O atom {o.GetIdx() + 1})"))
                 # O-R imidate / alkoxy-azine  ->  N-R amide / pyridone
@@ -290,19 +281,27 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     kind = _group_kind(mol, x.GetIdx())
                     if kind is None:
                         continue
-                    rw = Chem.RWMol(mol)
-                    rw.RemoveBond(o.GetIdx(), x.GetIdx())
-                    rw.AddBond(n.GetIdx(), x.GetIdx(), Chem.BondType.SINGLE)
-                    rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(Chem.BondType.DOUBLE)
-                    if not bn.GetIsAromatic():
-                        rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(Chem.BondType.SINGLE)
-                    rn = rw.GetAtomWithIdx(n.GetIdx())
-                    rn.SetNoImplicit(True)
-                    rn.SetNumExplicitHs(0)
-                    m = _finish(rw)
+                    m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=False, aromatic_cn=bn.GetIsAromatic())
                     if m is not None:
                         out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx() + 1} to N atom {n.GetIdx() + 1})"))
     return out
+
+
+def _move_between_n_and_o(mol: Chem.Mol, c, o, n, x, to_oxygen: bool, aromatic_cn: bool) -> Chem.Mol | None:
+    """Move group atom ``x`` between the N and the O of an N-C=O / N=C-O unit and swap the
+    C-O / C-N bond orders to match (amide/lactam <-> imidate/alkoxy-azine)."""
+    single, double = Chem.BondType.SINGLE, Chem.BondType.DOUBLE
+    frm, to = (n, o) if to_oxygen else (o, n)
+    rw = Chem.RWMol(mol)
+    rw.RemoveBond(frm.GetIdx(), x.GetIdx())
+    rw.AddBond(to.GetIdx(), x.GetIdx(), single)
+    rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(single if to_oxygen else double)
+    if not aromatic_cn:
+        rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(double if to_oxygen else single)
+    rn = rw.GetAtomWithIdx(n.GetIdx())
+    rn.SetNoImplicit(True)
+    rn.SetNumExplicitHs(0)
+    return _finish(rw)
 
 
 def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
