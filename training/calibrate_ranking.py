@@ -67,6 +67,7 @@ GRID = {
         "j_mismatch": [0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
         "missing_exchangeable": [0.1, 0.5, 1.0, 2.0],
         "integral_mismatch": [0.5, 1.0, 1.5, 2.5, 4.0],
+        "t_widen": [1.0, 1.25, 1.5, 2.0, 2.5],
     },
 }
 KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale")]

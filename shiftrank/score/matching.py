@@ -41,6 +41,7 @@ class MatchCosts:
 
     t_df: float = 4.0
     t_scale: float = 1.0
+    t_widen: float = 1.0                 # printed shifts scatter more than the model's own residuals: scale × this
     overlap: float = 2.5
     missing: float = 6.0
     extra: float = 6.0
@@ -127,9 +128,9 @@ _LOGC: dict[float, float] = {}
 
 
 def t_cost(dev: np.ndarray, sigma: np.ndarray, costs: MatchCosts) -> np.ndarray:
-    """−log density of a Student-t with scale σ·t_scale for deviations ``dev`` (nats)."""
+    """−log density of a Student-t with scale σ·t_scale·t_widen for deviations ``dev`` (nats)."""
     nu = costs.t_df
-    s = sigma * costs.t_scale
+    s = sigma * (costs.t_scale * costs.t_widen)
     z = dev / s
     logc = _LOGC.get(nu)
     if logc is None:
@@ -293,22 +294,27 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     col_peak_arr = np.array(col_peak + [-1] * n_rows)
     r_idx, c_idx = linear_sum_assignment(mat)
     # equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
-    # =CH2) may split over multiplets; any other class split by the optimum is tied to the target that
-    # holds most of its protons and the assignment solved again (a few rounds at most)
+    # =CH2) may split over multiplets; any other class split by the optimum is tied to one of the
+    # targets it was split over - the one giving the cheapest assignment - and solved again
     for _ in range(4):
         target = col_peak_arr[c_idx[np.argsort(r_idx)]]
         bad_split = [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
         if not bad_split:
             break
         for i in bad_split:
-            vals, counts = np.unique(target[row_cls == i], return_counts=True)
-            keep = int(vals[np.argmax(counts)])
             rows = np.flatnonzero(row_cls == i)
-            allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
-            if keep < 0:
-                allowed[n_pc:] = True   # all unobserved
-            mat[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
-        r_idx, c_idx = linear_sum_assignment(mat)
+            best = None
+            for keep in np.unique(target[rows]).tolist():
+                allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
+                if keep < 0:
+                    allowed[n_pc:] = True   # all unobserved
+                trial = mat.copy()
+                trial[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
+                tr, tc = linear_sum_assignment(trial)
+                total = float(trial[tr, tc].sum())
+                if best is None or total < best[0]:
+                    best = (total, trial, tr, tc)
+            _, mat, r_idx, c_idx = best
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)

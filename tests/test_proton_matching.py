@@ -1,0 +1,33 @@
+"""1H assignment over integral units, on 1H paragraphs printed in open-access articles (the
+``literature_dev.jsonl.gz`` extraction; the article is named beside each check)."""
+from shiftrank.score.ranking import rank
+
+# PMC6272727: a trimethoxyphenyl chalcone; the printed 3H and 6H methoxy singlets are 0.01 ppm apart
+CHALCONE_1H = ("1H-NMR (CDCl3, 300 MHz): δ: 3.92 (s, 3H, OCH3), 3.93 (s, 6H, 2 × OCH3), 7.22 (s, 2H, Ar-), "
+               "7.42 (d, 1H, J = 15.6 Hz, CH=), 7.48 (d, 2H, J = 8.0 Hz, Ar-), 7.54 (d, 2H, J = 8.0 Hz, Ar-), "
+               "7.72 (d, 1H, J = 15.6 Hz, CH=) ppm")
+CHALCONE = "COc1cc(C(=O)/C=C/c2ccc(Br)cc2)cc(OC)c1OC"          # the structure the article reports
+CHALCONE_245 = "COc1cc(OC)c(C(=O)/C=C/c2ccc(Br)cc2)cc1OC"       # a positional isomer
+
+# PMC6768133: a 1,3-diketone printed as a keto/enol mixture with fractional integrals
+DIKETONE_1H = ("1H NMR [CDCl3, δ(ppm)]: 2.24 (s, 3H, Pz-CH3); 3.78 (s, 3H, CH3–N); 4.54 (s, 0.1H, keto, CH2); "
+               "6.54 (s, 0.9H, enol, C–H); 7.39 (m, 3H, Ar-2H, Pz–H); 7.91(m, 2H, Ar–H)")
+DIKETONE = "Cc1cc(C(=O)/C=C(\\O)c2cccc(Br)c2)nn1C"
+
+
+def test_equivalent_methoxys_take_the_6h_singlet_whole():
+    # a 6H class first split 3 + 3 over two nearly coincident singlets must end on the 6H one, not the 3H one
+    r = rank(text=CHALCONE_1H, candidates=[CHALCONE_245, CHALCONE])
+    truth = next(c for c in r.candidates if c.smiles == CHALCONE)
+    res = truth.nuclei["1H"]
+    assert res.assignment.parts["integral"] == 0.0
+    six = next(row for row in res.assignment_table() if row["protons"] == 6)
+    assert six["observed"] == 3.93
+    assert r.best.smiles == CHALCONE
+
+
+def test_fractional_integrals_of_a_tautomer_mixture_are_rounded_not_rescaled():
+    r = rank(text=DIKETONE_1H, candidates=[DIKETONE])
+    res = r.best.nuclei["1H"]
+    assert [p.capacity for p in res.peaks if not p.solvent] == [3, 3, 1, 1, 3, 2]
+    assert res.assignment.parts["integral"] <= 2 * 2.5   # before: ~265 nats from a ×10 rescaling
