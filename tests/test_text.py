@@ -94,6 +94,14 @@ def test_integral_first_order_and_dept_groups():
     assert sum(counts) == 18  # 14 printed values standing for 18 carbons (11 + 2 + 2 + 3)
 
 
+def test_carbon_count_written_after_the_letter():
+    # PMC6273472 prints "154.10 (C × 2)": 12 values standing for 16 carbons
+    text = ("13C-NMR (CDCl3) δ 167.66, 154.10 (C × 2), 139.64, 134.83, 127.43, 127.34 (C × 2), 126.65, 126.27, "
+            "115.65, 114.23 (C × 2), 96.58, 56.15 (C × 2)")
+    counts = [p.count for p in read_nmr_text(text).section("13C").peaks]
+    assert len(counts) == 12 and sum(counts) == 16
+
+
 def test_the_missing_integral_stays_missing_and_j_does_not_eat_it():
     h = read_nmr_text(PRINTED[8][1]).section("1H")
     assert h.peaks[3].j == (10.0,) and h.peaks[3].integral == 1.0

@@ -48,7 +48,8 @@ _NUM = r"[+-]?\d+(?:\.\d+)?"
 _SHIFT_ITEM = re.compile(
     rf"^\s*(?:and\s+|&\s*)?(?P<a>{_NUM})\s*(?:(?:-|to|–|~|\.\.)\s*(?P<b>{_NUM}))?\s*(?:ppm)?\s*(?P<rest>.*)$", re.S | re.I)
 _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
-_CARBONS = re.compile(r"^(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b", re.I)
+_CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
+                      r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz)[A-Za-z])"   # a J value: not the '1' of '1H'
 _JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
@@ -265,7 +266,7 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             continue
         m = _CARBONS.match(w)
         if m and nucleus == "13C":
-            peak.count = max(1, int(m.group("n")))
+            peak.count = max(1, int(m.group("n") or m.group("n2")))
             rest = w[m.end():].strip()
             if rest:
                 leftovers.append(rest)
