@@ -64,3 +64,23 @@ def test_diastereotopic_ch2_next_to_a_stereocentre_may_show_its_geminal_coupling
     # 2-amino-3-phenylpropanoic acid's CH2 (own choice): dd (geminal ~14 Hz, vicinal ~7 Hz), common practice
     ex = _by_atom("NC(Cc1ccccc1)C(=O)O")
     assert fit_cost(ex[(2,)], "dd", (14.0, 7.5)) == (0, 0)
+
+
+def test_printed_j_values_must_belong_to_the_splittings_the_letters_name():
+    # Printed 1H paragraph of 4-(4-propylanilino)pyridine-2-carboxylic acid (PMC10155833, CD3OD):
+    # δ 7.26 (dd, J = 2.3, 7.3 Hz), 7.48 (d, J = 2.3 Hz), 8.32 (d, J = 7.3 Hz).  A doublet of 2.3 Hz is
+    # a proton with only a meta partner (H-3 here); in the 2,6-disubstituted isomer every ring proton
+    # has an ortho neighbour (7-9 Hz, common practice), so that doublet fits none of them.
+    def pyridine_protons(smiles):
+        mol = Chem.MolFromSmiles(smiles)
+        ring = next(set(r) for r in mol.GetRingInfo().AtomRings() if any(mol.GetAtomWithIdx(i).GetSymbol() == "N" for i in r))
+        return [e for e in _by_atom(smiles).values() if e.atoms[0] in ring]
+    t_ring = pyridine_protons("CCCc1ccc(Nc2ccnc(C(=O)O)c2)cc1")
+    o_ring = pyridine_protons("CCCc1ccc(Nc2cccc(C(=O)O)n2)cc1")
+    assert len(t_ring) == 3 and len(o_ring) == 3
+    assert min(sum(fit_cost(e, "d", (2.3,))) for e in t_ring) == 0
+    assert min(sum(fit_cost(e, "d", (2.3,))) for e in o_ring) == 1
+    # both J of the doublet of doublets are explained in the right structure, one J at a time
+    assert min(sum(fit_cost(e, "dd", (2.3, 7.3))) for e in t_ring) == 0
+    # the letters fit but the J value does not: counted as an unexplained J, not a letter misfit
+    assert fit_cost(o_ring[0], "d", (2.3,)) == (0, 1)

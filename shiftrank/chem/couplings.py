@@ -213,13 +213,45 @@ def _fit(signature: tuple, letters: str | None, js: tuple, tolerance: float) -> 
         return 0, 0
     pat = _pattern_of(letters)
     bad_pattern = int(pat is not None and pat not in _patterns_of(groups_sig))
-    bad_j = 0
-    if js:
-        ranges = [J_RANGES[k][0] for k, _, _ in groups_sig]
-        for j in js:
-            if not any(lo - tolerance <= j <= hi + tolerance for lo, hi in ranges):
-                bad_j += 1
-    return bad_pattern, bad_j
+    if not js:
+        return bad_pattern, 0
+    if pat is not None and not bad_pattern and len(js) <= 6:
+        # the letters fit: the printed J values must then belong to the splittings of a variant with
+        # those letters, one J per splitting ('d, J = 2.3 Hz' cannot be a proton with an ortho neighbour)
+        return 0, min(_unexplained(js, ranges, tolerance) for p, ranges in _variants_of(groups_sig) if p == pat)
+    ranges = [J_RANGES[k][0] for k, _, _ in groups_sig]
+    return bad_pattern, sum(1 for j in js if not any(lo - tolerance <= j <= hi + tolerance for lo, hi in ranges))
+
+
+def _unexplained(js: tuple, ranges: tuple, tolerance: float) -> int:
+    """Printed J values left over by the best one-to-one pairing of J values with coupling ranges."""
+    ok = [[lo - tolerance <= j <= hi + tolerance for lo, hi in ranges] for j in js]
+    n = min(len(js), len(ranges))
+    best = 0
+    if len(js) <= len(ranges):
+        pairings = ((ok[i][r] for i, r in enumerate(perm)) for perm in itertools.permutations(range(len(ranges)), n))
+    else:
+        pairings = ((ok[i][r] for r, i in enumerate(perm)) for perm in itertools.permutations(range(len(js)), n))
+    for pairs in pairings:
+        best = max(best, sum(pairs))
+        if best == n:
+            break
+    return len(js) - best
+
+
+@lru_cache(maxsize=8192)
+def _variants_of(groups_sig: tuple) -> tuple[tuple[tuple[int, ...], tuple], ...]:
+    """(line-count pattern, J ranges of its resolved splittings) of every variant :func:`_patterns_of` counts."""
+    groups = [CouplingGroup(k, n, p) for k, n, p in groups_sig]
+    required = [g for g in groups if not g.optional]
+    optional = [g for g in groups if g.optional][:MAX_OPTIONAL]
+    out: set = set()
+    for k in range(len(optional) + 1):
+        for extra in itertools.combinations(optional, k):
+            gs = required + list(extra)
+            for v in (gs, _merge_overlapping(gs)):
+                out.add((_pattern(v), tuple(sorted(g.j_range for g in v if g.n > 0))))
+    return tuple(sorted(out))
 
 
 class _RingIndex:
