@@ -181,17 +181,13 @@ def _worker_memory():
 def steady_state(path: Path, workers: int) -> tuple[float, dict]:
     """Seconds to rank ``path`` on a LocalCluster whose workers have already loaded the models, and each
     worker's (resident, peak resident) memory in MB afterwards."""
-    from dask.distributed import Client, LocalCluster
-
-    from shiftrank.score.batch import chunks_of, read_cases
-    from shiftrank.score.distributed import stream_on, warm_up
+    from shiftrank.score.batch import read_cases
+    from shiftrank.score.distributed import dask_local, stream_on
 
     items = read_cases(path)
-    with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None) as cluster, \
-            Client(cluster) as client:
-        client.run(warm_up)
+    with dask_local(workers) as (client, cluster):
         t = time.perf_counter()
-        for _ in stream_on(client, chunks_of(items)):
+        for _ in stream_on(client, items):
             pass
         dt = time.perf_counter() - t
         return dt, client.run(_worker_memory)

@@ -24,7 +24,10 @@ def client():
 def _batch(tmp_path):
     lines = []
     for k in range(9):
-        lines.append(json.dumps({"id": f"s{k}", "peaks": PEAKS, "candidates": [PARA, META] + (["C1CC("] if k == 4 else [])}))
+        case = {"id": f"s{k}", "peaks": PEAKS, "candidates": [PARA, META] + (["C1CC("] if k == 4 else [])}
+        if k % 2:
+            case["formula"] = "C10H12O2"   # two affinity keys: the cases are spread over both workers
+        lines.append(json.dumps(case))
     lines.insert(3, json.dumps({"id": "bad", "peaks": "none", "candidates": [PARA]}))
     lines.insert(6, "not json")
     path = tmp_path / "cases.jsonl"
@@ -40,7 +43,7 @@ def test_dask_output_is_byte_identical_to_serial(tmp_path, client, monkeypatch):
     batch.run_batch(path, serial)
     monkeypatch.setattr(batch, "CHUNK", 3)   # several chunks, so order across tasks is tested
     items = batch.read_cases(path)
-    lines = [line for chunk in dist.stream_on(client, batch.chunks_of(items, 3)) for line in chunk]
+    lines = [line for chunk in dist.stream_on(client, items, size=3) for line in chunk]
     assert "\n".join(lines) + "\n" == serial.getvalue()
     out = [json.loads(x) for x in lines]
     assert [d.get("id") for d in out][:4] == ["s0", "s1", "s2", "bad"] and "error" in out[3]
@@ -79,3 +82,19 @@ def test_bad_dask_address_is_a_clear_error():
         _client("somewhere")
     with pytest.raises(InputError, match="whole number"):
         _client("local:two")
+
+
+def test_plan_keeps_cases_that_share_candidates_on_one_worker():
+    from shiftrank.score.distributed import plan
+
+    keys = ["C7H8O", "C8H10", "C7H8O", "C9H12", "C8H10", "C7H8O", None]
+    items = [(n, {"formula": k, "candidates": ["C", "CC"]} if k else ValueError("unreadable")) for n, k in enumerate(keys, 1)]
+    chunks = list(plan(items, 2, size=2))
+    seen = sorted(p for _, pos in chunks for p in pos)
+    assert seen == list(range(len(items)))                      # every case exactly once
+    assert all(pos == sorted(pos) for _, pos in chunks)          # input order inside a chunk
+    worker_of = {p: w for w, pos in chunks for p in pos}
+    for k in set(keys) - {None}:
+        assert len({worker_of[i] for i, kk in enumerate(keys) if kk == k}) == 1
+    assert {w for w, _ in chunks} == {0, 1}
+    assert [pos for _, pos in plan(items, 1, size=3)] == [[0, 1, 2], [3, 4, 5], [6]]

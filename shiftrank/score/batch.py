@@ -121,7 +121,7 @@ def run_batch(path, out=None, jobs: int = 1, detail: bool = False, progress: boo
     chunks = chunks_of(items)
     if dask:
         from .distributed import dask_stream
-        stream = dask_stream(chunks, detail, dask)
+        stream = dask_stream(items, detail, dask)
     elif jobs != 1:
         from joblib import Parallel, delayed
         stream = Parallel(n_jobs=jobs, return_as="generator")(delayed(rank_chunk)(ch, detail) for ch in chunks)

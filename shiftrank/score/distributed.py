@@ -13,10 +13,11 @@ are in flight, so memory stays flat however long the batch.
 from __future__ import annotations
 
 from collections import deque
+from contextlib import contextmanager
 from typing import Iterable, Iterator
 
 from ..errors import InputError
-from .batch import rank_chunk
+from .batch import CHUNK, rank_chunk
 
 RETRIES = 3
 WINDOW_PER_WORKER = 4
@@ -24,7 +25,7 @@ WINDOW_PER_WORKER = 4
 
 def _client(spec: str):
     try:
-        from dask.distributed import Client, LocalCluster
+        from dask.distributed import Client
     except ImportError:
         raise InputError("--dask needs the optional Dask packages: pip install -e '.[dask]'") from None
     if spec == "local" or spec.startswith("local:"):
@@ -35,16 +36,39 @@ def _client(spec: str):
             raise InputError(f"--dask {spec}: the number of local workers must be a whole number") from None
         if not 1 <= workers <= 256:
             raise InputError(f"--dask {spec}: use 1 to 256 local workers")
-        cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None)
-        client = Client(cluster)
-        client.run(warm_up)   # every worker loads (and verifies) the models before the first chunk arrives
-        return client, cluster
+        return local_cluster(workers)
     if "://" not in spec:
         raise InputError(f"--dask {spec}: use local, local:N or a scheduler address such as tcp://host:8786")
     try:
         return Client(spec, timeout="20s"), None
     except (OSError, TimeoutError) as exc:
         raise InputError(f"--dask {spec}: cannot reach the scheduler ({exc})") from None
+
+
+def local_cluster(workers: int):
+    """(client, cluster) of ``workers`` single-threaded worker processes on this machine, models loaded."""
+    import dask
+    from dask.distributed import Client, LocalCluster
+
+    warm_up()   # loaded and verified here once: the workers are forked from this process with the models in memory
+    # the workers' sampling profiler is off: it interrupts the ranking thread every few milliseconds
+    with dask.config.set({"distributed.worker.multiprocessing-method": "fork",
+                          "distributed.worker.profile.enabled": False}):
+        cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None)
+    client = Client(cluster)
+    client.run(warm_up)   # a no-op in forked workers; verifies the models where a worker was started afresh
+    return client, cluster
+
+
+@contextmanager
+def dask_local(workers: int):
+    """:func:`local_cluster` as a context manager (closed on exit)."""
+    client, cluster = local_cluster(workers)
+    try:
+        yield client, cluster
+    finally:
+        client.close()
+        cluster.close()
 
 
 def warm_up() -> str:
@@ -57,29 +81,95 @@ def warm_up() -> str:
     return str(default_manifest().get("version"))
 
 
-def stream_on(client, chunks: list, detail: bool = False) -> Iterator[list[str]]:
-    """Output lines of each chunk, in order, computed on ``client``'s cluster."""
-    n_workers = max(1, len(client.scheduler_info().get("workers", {})))
+#: cases planned together: chunks are formed within a block, so memory stays bounded however long the batch
+BLOCK = 4096
+
+
+def _affinity(case) -> str | None:
+    """Cases with the same key tend to share candidates (same-formula isomers, the same proposals): they
+    go to the same worker, whose per-process caches then parse and predict each structure once."""
+    if not isinstance(case, dict):
+        return None
+    f = case.get("formula")
+    if isinstance(f, str) and f.strip():
+        return f.strip()
+    cands = case.get("candidates")
+    return cands[0] if isinstance(cands, list) and cands and isinstance(cands[0], str) else None
+
+
+def plan(items: list, n_workers: int, size: int) -> Iterator[tuple[int, list[int]]]:
+    """(worker index, positions in ``items``) of each chunk, in submission order.
+
+    Within each :data:`BLOCK` of items, items of one affinity key stay on one worker (largest groups
+    first, each to the least-loaded worker, load = candidates); each worker's items keep input order
+    and are cut into chunks of ``size``; chunks are interleaved across workers.  One worker: plain
+    consecutive chunks."""
+    for b0 in range(0, len(items), BLOCK):
+        block = range(b0, min(b0 + BLOCK, len(items)))
+        if n_workers <= 1:
+            for i in range(block.start, block.stop, size):
+                yield 0, list(range(i, min(i + size, block.stop)))
+            continue
+        groups: dict = {}
+        for i in block:
+            key = _affinity(items[i][1])
+            groups.setdefault(key if key is not None else ("line", i), []).append(i)
+
+        def weight(ix):
+            return sum(max(1, len(items[i][1].get("candidates") or []) if isinstance(items[i][1], dict) else 1) for i in ix)
+        load = [0] * n_workers
+        mine: list[list[int]] = [[] for _ in range(n_workers)]
+        for ix in sorted(groups.values(), key=lambda ix: (-weight(ix), ix[0])):
+            w = load.index(min(load))
+            load[w] += weight(ix)
+            mine[w].extend(ix)
+        per_worker = [[sorted(m)[i:i + size] for i in range(0, len(m), size)] for m in mine]
+        for k in range(max(len(c) for c in per_worker)):
+            for w, cs in enumerate(per_worker):
+                if k < len(cs):
+                    yield w, cs[k]
+
+
+def stream_on(client, items: list, detail: bool = False, size: int = CHUNK) -> Iterator[list[str]]:
+    """Output lines of ``items`` ((line number, case or error), as read), in input order, computed on
+    ``client``'s cluster; each yielded list continues where the previous one ended."""
+    workers = sorted(client.scheduler_info().get("workers", {}))
+    n_workers = max(1, len(workers))
     window = WINDOW_PER_WORKER * n_workers
     pending: deque = deque()
-    it = iter(chunks)
-    for ch in it:
-        pending.append(client.submit(rank_chunk, ch, detail, pure=False, retries=RETRIES))
+    done: dict[int, str] = {}
+    nxt = 0
+
+    def submit(w: int, pos: list[int]):
+        # a preference, not a requirement: a worker that died has its chunks run elsewhere
+        where = {"workers": [workers[w]], "allow_other_workers": True} if len(workers) > 1 else {}
+        fut = client.submit(rank_chunk, [items[i] for i in pos], detail, pure=False, retries=RETRIES, **where)
+        pending.append((pos, fut))
+
+    chunks = plan(items, n_workers, size)
+    for w, pos in chunks:
+        submit(w, pos)
         if len(pending) >= window:
             break
     while pending:
-        fut = pending.popleft()
-        yield fut.result()
-        nxt = next(it, None)
-        if nxt is not None:
-            pending.append(client.submit(rank_chunk, nxt, detail, pure=False, retries=RETRIES))
+        pos, fut = pending.popleft()
+        done.update(zip(pos, fut.result()))
+        out = []
+        while nxt in done:
+            out.append(done.pop(nxt))
+            nxt += 1
+        if out:
+            yield out
+        following = next(chunks, None)
+        if following is not None:
+            submit(*following)
 
 
-def dask_stream(chunks: list, detail: bool, spec: str) -> Iterable[list[str]]:
+def dask_stream(items: list, detail: bool, spec: str) -> Iterable[list[str]]:
     """Like :func:`stream_on`, on a cluster described by ``spec`` (closed when the stream ends)."""
     client, cluster = _client(spec)
     try:
-        yield from stream_on(client, chunks, detail)
+        yield from stream_on(client, items, detail)
     finally:
         client.close()
         if cluster is not None:
