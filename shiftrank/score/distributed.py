@@ -12,6 +12,7 @@ are in flight, so memory stays flat however long the batch.
 """
 from __future__ import annotations
 
+import sys
 from collections import deque
 from contextlib import contextmanager
 from typing import Iterable, Iterator
@@ -52,7 +53,9 @@ def local_cluster(workers: int):
 
     warm_up()   # loaded and verified here once: the workers are forked from this process with the models in memory
     # the workers' sampling profiler is off: it interrupts the ranking thread every few milliseconds
-    with dask.config.set({"distributed.worker.multiprocessing-method": "fork",
+    # (fork on Linux only; elsewhere the workers start afresh and load the models themselves)
+    method = "fork" if sys.platform.startswith("linux") else dask.config.get("distributed.worker.multiprocessing-method")
+    with dask.config.set({"distributed.worker.multiprocessing-method": method,
                           "distributed.worker.profile.enabled": False}):
         cluster = LocalCluster(n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None)
     client = Client(cluster)
