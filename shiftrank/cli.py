@@ -222,10 +222,11 @@ def _read_text_arg(spec: str) -> tuple[str, str]:
 
 def _case_from_args(args) -> tuple[dict, dict]:
     """The ranking case the options describe, and the peak lists read (for the report and inventory)."""
-    from .inputs.peaks import read_peaks
+    from .inputs.peaks import read_hsqc, read_peaks
 
-    if not (args.peaks or args.peaks_1h or args.text):
-        raise InputError("give --peaks (13C), --peaks-1h (1H) and/or --text (printed characterisation)")
+    hsqc = getattr(args, "hsqc", None)
+    if not (args.peaks or args.peaks_1h or args.text or hsqc):
+        raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc (cross peaks) and/or --text (printed characterisation)")
     lists = {}
     case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
     if args.peaks:
@@ -234,7 +235,9 @@ def _case_from_args(args) -> tuple[dict, dict]:
         lists["1H"] = case["peaks_1h"] = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent)
     if args.text:
         case["text"], _ = _read_text_arg(args.text)
-    sources = [s for s in (args.peaks, args.peaks_1h, args.text) if s]
+    if hsqc:
+        case["hsqc"] = read_hsqc(hsqc).pairs
+    sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc) if s]
     case["id"] = Path(sources[0]).stem if sources[0] != "-" else "stdin"
     return case, lists
 
@@ -246,11 +249,12 @@ def cmd_rank(args) -> int:
     case, _ = _case_from_args(args)
     result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
                   solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
-                  peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False)
+                  peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
+                  hsqc=case.get("hsqc"))
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
-        print_ranking(result, ", ".join(s for s in (args.peaks, args.peaks_1h, args.text) if s))
+        print_ranking(result, ", ".join(s for s in (args.peaks, args.peaks_1h, args.text, args.hsqc) if s))
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
@@ -289,6 +293,8 @@ def _history(args) -> dict:
 def _inventory_for(args, lists: dict):
     from .chem.inventory import take_inventory
 
+    if lists.get("13C") is None and lists.get("1H") is None:
+        return None   # cross peaks alone: nothing to count pieces from
     return take_inventory(lists.get("13C"), lists.get("1H"), args.formula, getattr(args, "mz", None),
                           getattr(args, "ppm", 5.0))
 
@@ -337,12 +343,13 @@ def cmd_report(args) -> int:
             print(f"{skipped} cases could not be ranked and are not in the report", file=sys.stderr)
     else:
         if not args.candidates:
-            raise InputError("report: give --candidates with --peaks/--peaks-1h/--text, or --batch CASES.jsonl")
+            raise InputError("report: give --candidates with --peaks/--peaks-1h/--hsqc/--text, or --batch CASES.jsonl")
         from .score.ranking import rank
 
         case, _ = _case_from_args(args)
         result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
-                      solvent=args.solvent, id=case["id"], peaks_1h=case.get("peaks_1h"), text=case.get("text"))
+                      solvent=args.solvent, id=case["id"], peaks_1h=case.get("peaks_1h"), text=case.get("text"),
+                      hsqc=case.get("hsqc"))
         lists, _, _ = case_peaklists(case)
         write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists)])
     print(f"report written to {args.output}")
@@ -404,6 +411,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H and/or 13C paragraphs); - reads stdin")
+    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
     s.add_argument("--candidates", required=True, nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
@@ -443,6 +451,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--batch", metavar="CASES.jsonl", help="rank a JSONL batch and report every case")
     s.add_argument("--peaks-1h", help="1H peak list with integrals")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text; - reads stdin")
+    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line, or a JSON list of pairs")
     s.add_argument("--formula")
     s.add_argument("--mass", type=float)
     s.add_argument("--mz", type=float)

@@ -1,6 +1,6 @@
 """Fit the ranking's costs and temperatures on development cases (run after the models are trained).
 
-    python -m training.calibrate_ranking [--data DIR] [--models models/] [--steps 13C,1H,joint]
+    python -m training.calibrate_ranking [--data DIR] [--models models/] [--steps 13C,1H,joint,HSQC]
 
 Development cases, never the test split nor the held-out half of the literature:
 
@@ -19,7 +19,9 @@ Steps:
   maximum likelihood over the same sets;
 * ``1H``: the same for the 1H costs on the printed 1H paragraphs;
 * ``joint``: the two temperatures used when both nuclei are observed, by maximum likelihood on cases
-  ranked from both paragraphs.
+  ranked from both paragraphs;
+* ``HSQC``: the HSQC temperature alone and beside a 13C list, by maximum likelihood on validation-split
+  compounds whose assigned 13C and 1H shifts give the cross peaks (:func:`training.data.hsqc_cases`).
 
 The 'truth' field only scores the settings; it never reaches the ranker.  Writes the values into
 ``models/manifest.json`` under ``ranking``.
@@ -37,10 +39,10 @@ from pathlib import Path
 import numpy as np
 from scipy.optimize import minimize
 
-from shiftrank.score.evidence import EVIDENCE
+from shiftrank.score.evidence import EVIDENCE, MODELS_FOR, ClassMeans
 from shiftrank.score.matching import MatchCosts
 from shiftrank.score.ranking import _parse, ranking_settings, stage_cases
-from training.data import DEFAULT_DATA, literature_part, split_of
+from training.data import DEFAULT_DATA, hsqc_cases, literature_part, split_of
 
 REPO = Path(__file__).resolve().parents[1]
 DB_FILES = ("dev_cases_isomers.jsonl.gz", "dev_cases_regio.jsonl.gz")
@@ -70,7 +72,7 @@ GRID = {
         "t_widen": [1.0, 1.25, 1.5, 2.0, 2.5],
     },
 }
-KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale")]
+KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale", "h_t_df", "h_t_scale")]
 
 
 def _read_cases(data: Path, names, keep) -> list[dict]:
@@ -102,6 +104,10 @@ def build(c: dict, mode: str) -> dict:
         return {**base, "peaks": c["peaks"]}
     if mode == "db-shifts":
         return {**base, "peaks": [{"shift": p["shift"]} for p in c["peaks"]]}
+    if mode == "hsqc":
+        return {**base, "hsqc": c["hsqc"]}
+    if mode == "hsqc+13C":
+        return {**base, "hsqc": c["hsqc"], "peaks": c["peaks"]}
     text = {"both": c["text_1h"] + "\n" + c["text_13c"], "1H": c["text_1h"], "13C": c["text_13c"]}[mode]
     return {**base, "text": text}
 
@@ -117,12 +123,15 @@ def stage(cases: list[dict], mode: str) -> list:
         for n, obs in peaks.items():
             rows = []
             for p in preps:
-                if p.error or n not in p.preds:
+                if p.error or any(m not in p.preds for m in MODELS_FOR[n]):
                     rows.append(None)
                     continue
                 _, ranks, _ = _parse(p.smiles)
-                centres = p.parts[n].centres.tolist()
-                mu, sg = dict(zip(centres, p.preds[n][0])), dict(zip(centres, p.preds[n][1]))
+                if n == "HSQC":   # both predictions, as class means
+                    mu, sg = tuple(ClassMeans(p.parts[m].centres, *p.preds[m]) for m in ("13C", "1H")), None
+                else:
+                    centres = p.parts[n].centres.tolist()
+                    mu, sg = dict(zip(centres, p.preds[n][0])), dict(zip(centres, p.preds[n][1]))
                 rows.append(EVIDENCE[n].prepare(p.mol, list(ranks), mu, sg, obs))
             per[n] = (obs, rows)
         out.append((c["candidates"].index(c["truth"]), per))
@@ -191,7 +200,7 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=REPO / "models")
-    ap.add_argument("--steps", default="13C,1H,joint")
+    ap.add_argument("--steps", default="13C,1H,joint,HSQC")
     args = ap.parse_args(argv)
     steps = args.steps.split(",")
     t0 = time.time()
@@ -239,6 +248,23 @@ def main(argv=None) -> int:
                             "dev_top1": round(float(np.mean([np.argmin((cs / np.array([[T13], [T1]])).sum(axis=0)) == t
                                                              for cs, t in rows])), 4)}
         print(f"  joint: {ranking['joint']}", flush=True)
+    if "HSQC" in steps:
+        hc = [c for c in hsqc_cases(args.data) if c["split"] == "val"]
+        alone = raw_costs(stage(hc, "hsqc"), "HSQC", settings.costs["HSQC"])
+        T = fit_temperature(alone)
+        both = stage(hc, "hsqc+13C")
+        c13, ch = raw_costs(both, "13C", fitted["13C"]), raw_costs(both, "HSQC", settings.costs["HSQC"])
+        rows = [(np.vstack([a, b]), t) for (a, t), (b, _) in zip(c13, ch)]
+        T13 = ranking.get("joint", {}).get("13C", {}).get("temperature", ranking["13C"]["temperature"])
+        Th = float(min(np.exp(np.linspace(-2, 4, 61)), key=lambda x: nll(rows, np.array([T13, x]))))
+        ranking["HSQC"] = {"temperature": round(T, 4),
+                           "fitted_on": f"{len(alone)} validation-split NMRShiftDB2 compounds with assigned 13C and 1H "
+                                        "shifts against their positional isomers (cross peaks from the assignments)",
+                           "dev_top1": {"hsqc": round(top1(alone), 4)}}
+        ranking.setdefault("joint", {})["HSQC"] = {"temperature": round(Th, 4),
+                                                   "fitted_on": f"the same {len(rows)} cases with their 13C lists "
+                                                                "(13C joint temperature held fixed)"}
+        print(f"  HSQC: {ranking['HSQC']}; with 13C: {ranking['joint']['HSQC']}", flush=True)
     man_path.write_text(json.dumps(man, indent=1))
     print(f"done in {time.time() - t0:.0f} s")
     return 0

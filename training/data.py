@@ -182,3 +182,44 @@ def literature_part(skel: str) -> str:
     the dev half fits the ranking settings on printed text, the held-out half only measures."""
     h = int(hashlib.sha256(f"shiftrank-literature-v1:{skel}".encode()).hexdigest()[:8], 16) % 2
     return "dev" if h == 0 else "heldout"
+
+
+
+def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[dict]:
+    """Positional-isomer ranking cases with HSQC cross peaks built from measured data.
+
+    Every NMRShiftDB2 compound with assigned 13C and 1H shifts gives one (δC, δH) pair per protonated
+    carbon (the 13C value and the mean of its protons' shifts; symmetry-equivalent carbons give one
+    pair); the candidates are the compound and its positional isomers from moving one ring substituent
+    (:func:`shiftrank.chem.isomers.isomers`, the rule the development regio cases were built by), at most
+    ``max_candidates``, sorted by SMILES so the truth has no fixed place.  Compounds without such isomers
+    are skipped.  'truth' and 'split' (of the skeleton) are for scoring only."""
+    from shiftrank.chem.isomers import isomers
+
+    hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
+    out = []
+    for m in load_assigned(data_dir, nucleus="13C"):
+        hm = hmols.get(m.id)
+        if hm is None:
+            continue
+        pairs = sorted({(round(m.shifts[a], 2), round(hm.shifts[a], 2)) for a in m.shifts
+                        if a in hm.shifts and m.mol.GetAtomWithIdx(a).GetTotalNumHs() > 0})
+        if len(pairs) < 2:
+            continue
+        truth = Chem.MolToSmiles(m.mol)
+        try:
+            alts = [a.smiles for a in isomers(truth, kinds="positional")]
+        except Exception:  # noqa: BLE001 - a structure the generator refuses has no case
+            continue
+        if not alts:
+            continue
+        cands = sorted({truth, *alts[: max_candidates - 1]})
+        ranks = list(Chem.CanonicalRankAtoms(m.mol, breakTies=False))
+        carbons = {}
+        for a, v in m.shifts.items():   # the 13C list as a database gives it: one line per class of equivalent carbons
+            atom = m.mol.GetAtomWithIdx(a)
+            carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
+                                          + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
+        out.append({"id": m.id, "hsqc": [list(p) for p in pairs], "candidates": cands, "solvent": m.solvent,
+                    "peaks": sorted(carbons.values(), key=lambda p: p["shift"]), "truth": truth, "split": m.split})
+    return out

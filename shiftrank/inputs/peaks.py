@@ -378,4 +378,84 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     return parse_peaks(text, p.name, nucleus, fmt, solvent)
 
 
-__all__ = ["Peak", "PeakList", "parse_peaks", "read_peaks", "peaks_from_records", "flag_solvent", "SOLVENTS"]
+@dataclass
+class HsqcList:
+    """(δC, δH) cross peaks of an HSQC spectrum, as given."""
+
+    pairs: list[tuple[float, float]]
+    source: str = "hsqc"
+    notes: list[str] = field(default_factory=list)
+    nucleus: str = "HSQC"
+
+
+def hsqc_list(records, source: str = "hsqc") -> HsqcList:
+    """Read cross peaks given as ``[δC, δH]`` pairs or ``{"c": δC, "h": δH}`` objects; a clear error
+    names the entry that cannot be read.
+
+    >>> hsqc_list([[128.4, 7.31], {"c": 21.3, "h": 2.35}]).pairs
+    [(128.4, 7.31), (21.3, 2.35)]
+    """
+    if not isinstance(records, (list, tuple)) or not records:
+        raise InputError(f"{source}: expected a non-empty list of [δC, δH] cross peaks")
+    pairs = []
+    for k, r in enumerate(records, 1):
+        if isinstance(r, dict):
+            c, h = r.get("c", r.get("13C")), r.get("h", r.get("1H"))
+        elif isinstance(r, (list, tuple)) and len(r) == 2:
+            c, h = r
+        else:
+            raise InputError(f"{source} entry {k}: expected [δC, δH] or {{\"c\": δC, \"h\": δH}}, got {str(r)[:40]!r}")
+        try:
+            if isinstance(c, bool) or isinstance(h, bool):
+                raise TypeError
+            c, h = float(c), float(h)
+        except (TypeError, ValueError):
+            raise InputError(f"{source} entry {k}: δC and δH must be numbers, got {str(r)[:40]!r}") from None
+        if not (math.isfinite(c) and -20.0 <= c <= 250.0):
+            raise InputError(f"{source} entry {k}: δC {c:g} ppm is outside -20…250 ppm")
+        if not (math.isfinite(h) and -2.0 <= h <= 20.0):
+            raise InputError(f"{source} entry {k}: δH {h:g} ppm is outside -2…20 ppm")
+        pairs.append((c, h))
+    if len(pairs) > 2000:
+        raise InputError(f"{source}: {len(pairs):,} cross peaks; the limit is 2,000")
+    return HsqcList(pairs, source)
+
+
+def read_hsqc(path: str | Path) -> HsqcList:
+    """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
+    by spaces, a comma, a semicolon or a tab; '#' starts a comment; a header line without numbers is skipped)."""
+    p = Path(path)
+    if not p.exists():
+        raise InputError(f"{p}: no such file")
+    try:
+        text = p.read_text(encoding="utf-8", errors="replace")
+    except OSError as exc:
+        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    if p.suffix.lower() == ".json":
+        try:
+            return hsqc_list(json.loads(text), p.name)
+        except json.JSONDecodeError as exc:
+            raise InputError(f"{p.name}: invalid JSON ({exc.msg}, line {exc.lineno})") from None
+    pairs = []
+    for n, line in enumerate(text.splitlines(), 1):
+        line = line.split("#", 1)[0].strip()
+        if not line:
+            continue
+        fields = [f for f in re.split(r"[\s,;]+", line) if f]
+        try:
+            nums = [float(f) for f in fields]
+        except ValueError:
+            if not pairs and not any(re.fullmatch(r"-?\d+(\.\d+)?", f) for f in fields):
+                continue   # a header line
+            raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {line[:40]!r}") from None
+        if len(nums) != 2:
+            raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {len(nums)}")
+        pairs.append(nums)
+    if not pairs:
+        raise InputError(f"{p.name}: no cross peaks found")
+    out = hsqc_list(pairs, p.name)
+    return out
+
+
+__all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "peaks_from_records",
+           "flag_solvent", "SOLVENTS"]

@@ -139,6 +139,8 @@ def _fmt(x, nd=2, dash="–"):
 
 def _observed_text(pk) -> str:
     s = f"{pk.lo:.2f}–{pk.hi:.2f}" if pk.lo is not None and pk.hi is not None and pk.hi > pk.lo else f"{pk.shift:.2f}"
+    if pk.h_lo is not None:   # HSQC cross peak: δC / δH
+        return s + (f" / {pk.h_lo:.2f}" if pk.h_hi == pk.h_lo else f" / {pk.h_lo:.2f}–{pk.h_hi:.2f}")
     bits = [b for b in (pk.multiplicity, ", ".join(f"{j:g}" for j in pk.j) + " Hz" if pk.j else None,
                         f"{pk.capacity}H" if pk.capacity else None) if b]
     return s + (f" ({'; '.join(bits)})" if bits else "")
@@ -155,18 +157,22 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
         if nucleus == "1H":
             n = row.get("protons_on_peak") or row.get("protons")
             what = f"{n}H, expected {what}" if n else f"expected {what}"
+        pred, dev = f"{row['predicted']:.2f} ± {row['sigma']:.2f}", _fmt(row["deviation"])
+        if nucleus == "HSQC":
+            pred += f" / {row['predicted_h']:.2f} ± {row['sigma_h']:.2f}"
+            dev += f" / {_fmt(row.get('deviation_h'))}" if row["peak"] is not None else ""
         rows.append(f"<tr><td><span style='color:{sw}'>■</span> {','.join(map(str, row['atoms']))}</td><td>{what}</td>"
-                    f"<td class=num>{row['predicted']:.2f} ± {row['sigma']:.2f}</td><td class=num>{obs}</td>"
-                    f"<td class=num>{_fmt(row['deviation'])}</td><td>{e(', '.join(row['notes']))}</td></tr>")
+                    f"<td class=num>{pred}</td><td class=num>{obs}</td>"
+                    f"<td class=num>{dev}</td><td>{e(', '.join(row['notes']))}</td></tr>")
     for j in res.assignment.unmatched_peaks:
         pk = res.peaks[j]
         rows.append(f"<tr><td>–</td><td></td><td></td><td class=num>{e(_observed_text(pk))}</td><td></td>"
                     f"<td>{'residual solvent' if pk.solvent else 'not explained by this candidate'}</td></tr>")
-    head = "CHn" if nucleus == "13C" else "protons, expected multiplet"
+    head = "protons, expected multiplet" if nucleus == "1H" else "CHn"
     table = (f"<table><tr><th>atoms</th><th>{head}</th><th>predicted ± σ</th><th>observed</th><th>deviation</th><th>note</th></tr>"
              + "".join(rows) + "</table>")
     pics = ""
-    if with_plots:
+    if with_plots and nucleus != "HSQC":   # HSQC: the table (δC / δH) is the picture
         pics = f"<div class='cardrow'><div>{structure_svg(c, nucleus)}</div><div>{spectrum_svg(result, c, nucleus)}</div></div>"
     summary = (f"{nucleus}: {len(res.classes)} expected signals, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
                f"{res.beyond_3sigma} beyond 3σ · cost {res.cost:.1f} nats")

@@ -49,11 +49,13 @@ def print_assignment(cand, nucleus: str, out=None) -> None:
     """The assignment table of one candidate for one nucleus."""
     out = out or sys.stdout
     r = cand.nuclei[nucleus]
-    what = "carbon" if nucleus == "13C" else "proton class"
+    what = {"13C": "carbon", "1H": "proton class", "HSQC": "protonated carbon"}[nucleus]
     print(f"\n{nucleus} assignment for {cand.name or cand.smiles}, {what} by {what}:", file=out)
-    kind = "CHn" if nucleus == "13C" else "expected"
-    nd = 2 if nucleus == "13C" else 2
-    print(f"  {'atoms':<12} {kind:<9} {'predicted':>9} {'±σ':>5} {'observed':>13} {'dev':>6}  note", file=out)
+    kind = "expected" if nucleus == "1H" else "CHn"
+    nd = 2
+    hsqc = nucleus == "HSQC"
+    print(f"  {'atoms':<12} {kind:<9} {'predicted':>9} {'±σ':>5} {'observed':>13} {'dev':>6}  "
+          + ("δH pred  δH obs   dev  " if hsqc else "") + "note", file=out)
     for row in r.assignment_table():
         atoms = ",".join(str(a) for a in row["atoms"])
         if len(atoms) > 12:
@@ -68,10 +70,18 @@ def print_assignment(cand, nucleus: str, out=None) -> None:
         mult = row["multiplicity"]
         if nucleus == "1H":
             mult = f"{row.get('protons_on_peak') or row.get('protons') or ''}H {mult}"
-        print(f"  {atoms:<12} {mult[:9]:<9} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>13} {dev:>6}  "
+        h = ""
+        if hsqc:
+            oh = row.get("observed_h")
+            oh = "" if oh is None else (f"{oh:.2f}" if not isinstance(oh, list) else f"{oh[0]:.2f}/{oh[1]:.2f}")
+            dh = "" if row.get("deviation_h") is None else f"{row['deviation_h']:+.2f}"
+            h = f"{row['predicted_h']:7.2f} {oh:>9} {dh:>5}  "
+        print(f"  {atoms:<12} {mult[:9]:<9} {row['predicted']:9.2f} {row['sigma']:5.2f} {obs:>13} {dev:>6}  {h}"
               f"{', '.join(row['notes'])}", file=out)
     for j in r.assignment.unmatched_peaks:
         p = r.peaks[j]
         why = "solvent" if p.solvent else "unexplained"
         shown = f"{p.lo:.2f}-{p.hi:.2f}" if p.lo is not None and p.hi != p.lo else f"{p.shift:.2f}"
+        if p.h_lo is not None:
+            shown += f" / {p.h_lo:.2f}"
         print(f"  {'-':<12} {(p.multiplicity or '')[:9]:<9} {'':>9} {'':>5} {shown:>13} {'':>6}  {why}", file=out)

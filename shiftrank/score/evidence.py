@@ -10,7 +10,10 @@ runs the shared assignment (:func:`shiftrank.score.matching.assign`).  The nucle
 * 1H: one class per set of equivalent H-bearing atoms with its number of protons and its expected
   first-order multiplet (:mod:`shiftrank.chem.couplings`); with printed integrals the assignment runs
   over protons; printed letters and J values that the expected multiplet cannot produce cost
-  ``multiplicity_mismatch`` and ``j_mismatch``; an unobserved OH/NH/SH class is cheap.
+  ``multiplicity_mismatch`` and ``j_mismatch``; an unobserved OH/NH/SH class is cheap;
+* HSQC: one class per set of equivalent protonated carbons, with the 13C and the 1H prediction; a
+  cross peak (δC, δH) costs the Student-t error of both dimensions (each with its own model's fitted
+  error); cross peaks at one δC with two δH (the two protons of a CH2) are read as one carbon.
 """
 from __future__ import annotations
 
@@ -23,8 +26,8 @@ from ..chem.couplings import ExpectedMultiplet, carbon_multiplets, expected_mult
 from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
-from ..inputs.peaks import PeakList
-from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign
+from ..inputs.peaks import HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
+from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
 
 #: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
 INTEGRAL_SHARE = 0.8
@@ -121,6 +124,12 @@ class NucleusResult:
                    "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
                    "deviation": _r(p.deviation, 2), "z": _r(p.z, 2), "shared_peak": p.shared,
                    "multiplicity_ok": p.multiplicity_ok, "notes": notes}
+            if self.nucleus == "HSQC":
+                row["predicted_h"], row["sigma_h"] = _r(c.shift_h, 2), _r(c.sigma_h, 2)
+                if p.peak is not None:
+                    pk = self.peaks[p.peak]
+                    row["observed_h"] = _r(pk.h_lo, 3) if pk.h_lo == pk.h_hi else [_r(pk.h_lo, 3), _r(pk.h_hi, 3)]
+                    row["deviation_h"] = _r(float(proton_deviations([c], [pk])[0, 0]), 2)
             if self.nucleus == "1H":
                 row["protons"] = c.units if self.by_protons else (c.expected.n_h if c.expected is not None else None)
                 if self.by_protons:
@@ -411,5 +420,49 @@ def _quality_flags(res: NucleusResult, what: str) -> list[str]:
     return [f"{n} {what} deviate by more than 3σ ({res.nucleus})"] if n else []
 
 
-EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence()}
+#: HSQC: cross peaks whose carbon shifts differ by less than this (ppm) are one carbon with two protons
+SAME_CARBON = 0.15
+
+
+class HsqcEvidence(_Evidence):
+    """HSQC: protonated carbon classes with both predictions against (δC, δH) cross peaks."""
+
+    nucleus = "HSQC"
+
+    def observed(self, pl: "HsqcList") -> list[ObservedPeak]:
+        pairs = sorted(pl.pairs)
+        out, k = [], 0
+        while k < len(pairs):
+            group = [pairs[k]]
+            while k + len(group) < len(pairs) and pairs[k + len(group)][0] - group[0][0] < SAME_CARBON:
+                group.append(pairs[k + len(group)])
+            k += len(group)
+            hs = [h for _, h in group]
+            if len(group) > 2 or max(hs) - min(hs) > 1.5:   # more than one carbon at this δC: keep them apart
+                out.extend(ObservedPeak(c, h_lo=h, h_hi=h) for c, h in group)
+            else:
+                out.append(ObservedPeak(float(np.mean([c for c, _ in group])), h_lo=min(hs), h_hi=max(hs)))
+        return PeakSet(out)
+
+    def classes(self, mol: Chem.Mol, ranks, mu, sg, peaks, facts=None) -> list[SignalClass]:
+        means_c, means_h = mu   # ClassMeans of the 13C and of the 1H prediction
+        cc = [c for c in (facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)) if c.multiplicity != "C"]
+        atoms = [c.atoms for c in cc]
+        mc, sc = means_c.of(atoms)
+        mh, sh = means_h.of(atoms)
+        return [SignalClass(c.atoms, c.multiplicity, a, b, shift_h=x, sigma_h=y)
+                for c, a, b, x, y in zip(cc, mc.tolist(), sc.tolist(), mh.tolist(), sh.tolist())]
+
+    def prepare(self, mol: Chem.Mol, ranks, mu, sg, peaks: list[ObservedPeak], facts=None) -> Prepared:
+        classes = self.classes(mol, ranks, mu, sg, peaks, facts)
+        z = np.zeros((len(classes), len(peaks)))
+        return Prepared(classes, peaks, z, z.copy())
+
+    def flags(self, res: NucleusResult) -> list[str]:
+        return _count_flags(res, "HSQC cross peaks (protonated carbons)") + _quality_flags(res, "protonated carbons")
+
+
+EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence(), "HSQC": HsqcEvidence()}
+#: the shift models each kind of spectrum needs
+MODELS_FOR = {"13C": ("13C",), "1H": ("1H",), "HSQC": ("13C", "1H")}
 

@@ -25,7 +25,7 @@ two carbons predicted 0.3 ppm apart are often printed as one value, two predicte
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 from scipy.optimize import linear_sum_assignment
@@ -53,6 +53,8 @@ class MatchCosts:
     near_scale: float = 2.0              # ppm: how close two predictions must be for a shared peak to be likely
     missing_quaternary: float | None = None  # 13C: an unlisted quaternary carbon (weak lines are often not printed)
     missing_near: float | None = None    # a class predicted within near_scale of another class, unlisted
+    h_t_df: float | None = None          # HSQC: Student-t of the proton dimension (None: no proton dimension)
+    h_t_scale: float = 1.0
 
     def overlap_for(self, gap: np.ndarray) -> np.ndarray:
         """Overlap cost per class from the gap (ppm) to the nearest other class's prediction: ``overlap``
@@ -86,6 +88,8 @@ class SignalClass:
     exchangeable: bool = False  # 1H: OH/NH/SH
     splittable: bool = False    # 1H: a CH2 whose two protons may differ (may show two multiplets)
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
+    shift_h: float | None = None  # HSQC: predicted mean shift of the carbon's protons, and its σ
+    sigma_h: float | None = None
 
 
 @dataclass
@@ -100,6 +104,8 @@ class ObservedPeak:
     count: int = 1                    # 13C: carbons printed at this value ("2C")
     coupling: str | None = None       # 13C: printed C–F/C–P splitting letters ('q' of a CF3)
     field: float | None = None        # 13C observation frequency (MHz) when the text gives it
+    h_lo: float | None = None         # HSQC: proton shift of the cross peak (a range: the two protons of one CH2)
+    h_hi: float | None = None
 
 
 @dataclass(slots=True)
@@ -172,6 +178,15 @@ def deviations(classes: list[SignalClass], peaks: list[ObservedPeak], mu: np.nda
     return obs[None, :] - mu[:, None]
 
 
+def proton_deviations(classes: list[SignalClass], peaks: list[ObservedPeak]) -> np.ndarray:
+    """HSQC: (classes × cross peaks) observed − predicted proton shift, 0 inside a cross peak's proton range."""
+    mu = np.array([c.shift_h for c in classes], dtype=float)
+    lo = np.array([p.h_lo for p in peaks], dtype=float)
+    hi = np.array([p.h_hi for p in peaks], dtype=float)
+    return np.where(mu[:, None] < lo[None, :], lo[None, :] - mu[:, None],
+                    np.where(mu[:, None] > hi[None, :], hi[None, :] - mu[:, None], 0.0))
+
+
 def _mismatch(classes, peaks, costs: MatchCosts, mismatch=None) -> tuple[np.ndarray, np.ndarray]:
     """(cost matrix, boolean 'contradicts' matrix) of the multiplicity terms."""
     nc, npk = len(classes), len(peaks)
@@ -201,6 +216,9 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     mu = np.array([c.shift for c in classes], dtype=float)
     dev = deviations(classes, peaks, mu) if npk else np.zeros((nc, 0))
     dcost = t_cost(dev, sg[:, None], costs) if npk else dev
+    if npk and nc and costs.h_t_df is not None:
+        dcost = dcost + t_cost(proton_deviations(classes, peaks), np.array([c.sigma_h for c in classes], float)[:, None],
+                               replace(costs, t_df=costs.h_t_df, t_scale=costs.h_t_scale, t_widen=1.0))
     mcost, bad = _mismatch(classes, peaks, costs, mismatch) if npk else (dev, dev.astype(bool))
     base = dcost + mcost
     if npk:

@@ -35,12 +35,14 @@ from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
-from .evidence import EVIDENCE, ClassMeans, NucleusResult
+from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from .matching import MatchCosts, ObservedPeak
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
 NUCLEI = ("13C", "1H")
+#: the kinds of observed spectra: the two nuclei and HSQC (which needs both models)
+SPECTRA = ("13C", "1H", "HSQC")
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
            "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
 
@@ -125,7 +127,7 @@ class RankResult:
 
     @property
     def nuclei(self) -> list[str]:
-        return [n for n in NUCLEI if n in self.peaks]
+        return [n for n in SPECTRA if n in self.peaks]
 
     def to_dict(self, detail: bool = False) -> dict:
         d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
@@ -146,6 +148,8 @@ def _peak_dict(p: ObservedPeak) -> dict:
         d["j"] = list(p.j)
     if p.capacity is not None:
         d["integral"] = p.capacity
+    if p.h_lo is not None:
+        d["h"] = p.h_lo if p.h_lo == p.h_hi else [p.h_lo, p.h_hi]
     return d
 
 
@@ -169,9 +173,17 @@ def ranking_settings() -> RankingSettings:
         kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in ("t_df", "t_scale")}
         costs[n] = MatchCosts(t_df=u.get("t_df", 4.0), t_scale=u.get("t_scale", 1.0), **kw)
         temps[n] = float(rn.get("temperature", 1.0))
+    # HSQC: the carbon dimension has the 13C model's error, the proton dimension the 1H model's
+    uc = man.get("nuclei", {}).get("13C", {}).get("uncertainty", {})
+    uh = man.get("nuclei", {}).get("1H", {}).get("uncertainty", {})
+    rn = r.get("HSQC", {})
+    kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in ("t_df", "t_scale", "h_t_df", "h_t_scale")}
+    costs["HSQC"] = MatchCosts(t_df=uc.get("t_df", 4.0), t_scale=uc.get("t_scale", 1.0), h_t_df=uh.get("t_df", 4.0),
+                               h_t_scale=uh.get("t_scale", 1.0), **kw)
+    temps["HSQC"] = float(rn.get("temperature", 1.0))
     joint = r.get("joint", {})
     temps["joint"] = {n: float(joint.get(n, {}).get("temperature", temps[n])) if isinstance(joint.get(n), dict)
-                      else temps[n] for n in NUCLEI}
+                      else temps[n] for n in SPECTRA}
     return RankingSettings(costs, temps)
 
 
@@ -290,12 +302,15 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         res.flags.append("standardised (formula and prediction use the parent): " + "; ".join(std.notes))
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
-    for n, obs in peaks.items():
+    means = {}
+    for n in {m for s in peaks for m in MODELS_FOR[s]}:
         parts = prep.parts[n]
-        means = getattr(parts, "class_means", None)
-        if means is None or means.mu is not preds[n][0]:
-            means = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
-        r = EVIDENCE[n].evaluate(prep.mol, ranks, means, None, obs, settings.costs[n], facts=res.facts)
+        means[n] = getattr(parts, "class_means", None)
+        if means[n] is None or means[n].mu is not preds[n][0]:
+            means[n] = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
+    for n, obs in peaks.items():
+        mu = (means["13C"], means["1H"]) if n == "HSQC" else means[n]
+        r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs[n], facts=res.facts)
         if not identity:  # tables speak of the atoms as the user drew them
             for c in r.classes:
                 c.atoms = [std.atom_map[a] for a in c.atoms]
@@ -354,7 +369,7 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
     poor = []
     for n, r in best.nuclei.items():
         k = max(len(r.classes), 1)
-        limit = 4.0 if n == "13C" else 0.6
+        limit = 0.6 if n == "1H" else 4.0
         unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent)
         if (r.mae is not None and r.mae > limit) or r.beyond_3sigma > max(1, 0.25 * k) or unexplained > max(2, 0.3 * k):
             poor.append(f"{n} MAE {r.mae:.2f} ppm, {r.beyond_3sigma} classes beyond 3σ, {unexplained} peaks unexplained"
@@ -436,8 +451,10 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
         pl = as_peaklist(given, sec_solvent, nucleus)
         out[nucleus] = pl
         notes.extend(pl.notes)
+    if case.get("hsqc") is not None:
+        out["HSQC"] = hsqc_list(case["hsqc"], "hsqc")
     if not out:
-        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H) or 'text' (printed characterisation)")
+        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
     if parsed is not None:
         for sec in parsed.sections:
             if sec.nucleus not in NUCLEI and sec.peaks:
@@ -450,12 +467,13 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
 def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass: float | None = None,
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
-         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False) -> RankResult:
+         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
     ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects or lists of
     shifts or of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"`` and
-    ``"range": [low, high]``); ``text`` is a printed characterisation paragraph.  Any one is enough.
+    ``"range": [low, high]``); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
+    ``[δC, δH]`` cross peaks.  Any one is enough.
     ``with_isomers`` (True, or kinds such as ``"positional,ambident"``) adds the alternatives a reaction
     could have given to each candidate (:func:`shiftrank.chem.isomers.isomers`), named by their relation.
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
@@ -468,7 +486,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     'CCOC(C)=O'
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
-                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers)],
+                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
@@ -535,7 +553,8 @@ def _stage(case: dict, nuclei_models) -> tuple:
     lists, solvent, notes = case_peaklists(case)
     notes = iso_notes + notes
     peaks = {n: observed_peaks(pl) for n, pl in lists.items()}
-    missing = [n for n in peaks if n not in nuclei_models]
+    needed = tuple(n for n in NUCLEI if any(n in MODELS_FOR[s] for s in peaks))
+    missing = [n for n in needed if n not in nuclei_models]
     if missing:
         raise InputError(f"no {', '.join(missing)} model is installed")
     f = case.get("formula")
@@ -556,7 +575,7 @@ def _stage(case: dict, nuclei_models) -> tuple:
         if not np.isfinite(mass) or mass <= 0:
             raise InputError(f"mass: {mass} is not a positive number")
     priors = _check_priors(case.get("priors"), len(cands))
-    preps = [_prepare(c, i, solvent, tuple(peaks)) for i, c in enumerate(cands)]
+    preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
     return case, peaks, notes, (fcounts, charge), mass, priors, preps
 
 
@@ -578,7 +597,7 @@ def stage_cases(cases: list[dict]) -> list:
     for n in NUCLEI:
         owners: dict[int, list] = {}
         for s in staged:
-            if isinstance(s, Exception) or n not in s[1]:
+            if isinstance(s, Exception) or not any(n in MODELS_FOR[k] for k in s[1]):
                 continue
             for p in s[6]:
                 if p.error is None:
@@ -645,7 +664,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         results = []
         for p in preps:
             try:
-                if p.error is None and any(n not in p.preds for n in peaks):
+                if p.error is None and any(n not in p.preds for k in peaks for n in MODELS_FOR[k]):
                     p.error = f"SMILES '{p.smiles}': could not be predicted"
                 r = _score_candidate(p, p.preds, peaks, settings)
                 _history_checks(r, fcounts, mass, mass_tolerance, charge)

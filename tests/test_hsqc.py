@@ -1,0 +1,74 @@
+"""HSQC cross peaks: reading them, reading one CH2's two protons as one carbon, and ranking with both
+dimensions.
+
+Reference values: ethyl acetate in CDCl3, Fulmer et al. 2010 (Organometallics 29, 2176), table of
+common impurities (from memory): 1H 2.05 (CH3CO), 4.12 (OCH2), 1.26 (CH3); 13C 21.04 (CH3CO),
+60.49 (OCH2), 14.19 (CH3).
+"""
+import json
+
+import pytest
+
+from shiftrank.cli import main
+from shiftrank.errors import InputError
+from shiftrank.inputs.peaks import hsqc_list, read_hsqc
+from shiftrank.score.evidence import EVIDENCE
+from shiftrank.score.ranking import rank
+
+ETOAC = "CCOC(C)=O"
+MEPROP = "CCC(=O)OC"   # methyl propanoate: same formula, CH2 and CH3O swapped roles
+FULMER_ETOAC = [[21.04, 2.05], [60.49, 4.12], [14.19, 1.26]]
+
+
+def test_cross_peaks_are_read_from_pairs_objects_and_files(tmp_path):
+    assert hsqc_list([[21.04, 2.05], {"c": 60.49, "h": 4.12}]).pairs == [(21.04, 2.05), (60.49, 4.12)]
+    f = tmp_path / "hsqc.txt"
+    f.write_text("dC dH\n21.04 2.05\n60.49, 4.12  # OCH2\n14.19;1.26\n")
+    assert read_hsqc(f).pairs == [(21.04, 2.05), (60.49, 4.12), (14.19, 1.26)]
+    f.write_text("21.04 2.05\n60.49\n")
+    with pytest.raises(InputError, match="line 2: expected two numbers"):
+        read_hsqc(f)
+    with pytest.raises(InputError, match="entry 2: δH 42 ppm is outside"):
+        hsqc_list([[21.0, 2.0], [30.0, 42]])
+    with pytest.raises(InputError, match="entry 1: δC and δH must be numbers"):
+        hsqc_list([["x", 2.0]])
+
+
+def test_two_protons_at_one_carbon_shift_are_one_carbon():
+    # a CH2 next to a stereocentre shows two cross peaks at one δC (common practice)
+    obs = EVIDENCE["HSQC"].observed(hsqc_list([[40.10, 2.90], [40.12, 3.10], [128.4, 7.31]]))
+    assert len(obs) == 2 and (obs[0].h_lo, obs[0].h_hi) == (2.90, 3.10)
+    # two protons 5 ppm apart at one δC are two carbons, not one CH2
+    assert len(EVIDENCE["HSQC"].observed(hsqc_list([[40.1, 2.0], [40.1, 7.0]]))) == 2
+
+
+def test_hsqc_alone_ranks_the_published_compound_first_and_pairs_both_dimensions():
+    r = rank(hsqc=FULMER_ETOAC, candidates=[MEPROP, ETOAC])
+    assert r.best.smiles == ETOAC and r.best.probability > 0.9
+    table = r.best.nuclei["HSQC"].assignment_table()
+    by_c = {row["observed"]: row for row in table}
+    assert by_c[60.49]["observed_h"] == 4.12 and abs(by_c[60.49]["deviation_h"]) < 0.3
+    # the proton dimension counts: the same carbon shifts with the protons swapped between the
+    # OCH2 and the CH3CO cost the right structure more
+    swapped = [[21.04, 4.12], [60.49, 2.05], [14.19, 1.26]]
+    cost = lambda hs: rank(hsqc=hs, candidates=[ETOAC]).best.nuclei["HSQC"].cost
+    assert cost(swapped) > cost(FULMER_ETOAC) + 5
+
+
+def test_rank_cli_and_batch_take_cross_peaks(tmp_path, capsys):
+    f = tmp_path / "etoac_hsqc.txt"
+    f.write_text("\n".join(f"{c} {h}" for c, h in FULMER_ETOAC) + "\n")
+    assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC, MEPROP]) == 0
+    out = capsys.readouterr().out
+    assert "HSQC assignment for CCOC(C)=O" in out and "δH obs" in out
+    f.write_text("21.0 2.05\nnot numbers here\n")
+    assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC]) == 2
+    assert "line 2" in capsys.readouterr().err
+    cases = tmp_path / "cases.jsonl"
+    cases.write_text(json.dumps({"id": "ok", "hsqc": FULMER_ETOAC, "candidates": [MEPROP, ETOAC]}) + "\n"
+                     + json.dumps({"id": "bad", "hsqc": [[21.0]], "candidates": [ETOAC]}) + "\n")
+    out_path = tmp_path / "out.jsonl"
+    main(["batch", str(cases), "-o", str(out_path)])
+    ok, bad = [json.loads(x) for x in out_path.read_text().splitlines()]
+    assert ok["ranking"][0]["smiles"] == ETOAC and "HSQC" in ok["ranking"][0]["nuclei"]
+    assert "hsqc entry 1" in bad["error"]
