@@ -169,7 +169,9 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
         rows.append(f"<tr><td>–</td><td></td><td></td><td class=num>{e(_observed_text(pk))}</td><td></td>"
                     f"<td>{'residual solvent' if pk.solvent else 'not explained by this candidate'}</td></tr>")
     head = "protons, expected multiplet" if nucleus == "1H" else "CHn"
-    table = (f"<table><tr><th>atoms</th><th>{head}</th><th>predicted ± σ</th><th>observed</th><th>deviation</th><th>note</th></tr>"
+    dims = " δC / δH" if nucleus == "HSQC" else ""
+    table = (f"<table><tr><th>atoms</th><th>{head}</th><th>predicted{dims} ± σ</th><th>observed{dims}</th>"
+             f"<th>deviation{dims}</th><th>note</th></tr>"
              + "".join(rows) + "</table>")
     pics = ""
     if with_plots and nucleus != "HSQC":   # HSQC: the table (δC / δH) is the picture
