@@ -7,7 +7,8 @@ gives its cross peaks (one per protonated carbon: the carbon's shift and its pro
 its 13C list with multiplicities; the candidates are the compound and its positional isomers (one
 ring substituent moved).  Only compounds whose skeleton lies in the predictor's validation or test
 split are measured (the HSQC temperature was fitted on the validation split; the test split is also
-shown alone).  For comparison the same cross peaks are ranked as two plain lists: their carbon shifts
+shown alone).  The edited variant adds the phase a multiplicity-edited spectrum shows (CH2 against
+CH/CH3), from the structure's own CHn.  For comparison the same cross peaks are ranked as two plain lists: their carbon shifts
 as a 13C list without multiplicities, their proton shifts as a 1H list without integrals.
 """
 from __future__ import annotations
@@ -28,6 +29,7 @@ from training.data import DEFAULT_DATA, hsqc_cases  # noqa: E402
 
 MODES = {
     "HSQC cross peaks": lambda c: {"hsqc": c["hsqc"]},
+    "edited HSQC (CH2 phase apart)": lambda c: {"hsqc": c["hsqc_edited"]},
     "their δC alone (13C list, no DEPT)": lambda c: {"peaks": sorted({h[0] for h in c["hsqc"]})},
     "their δH alone (1H list, no integrals)": lambda c: {"peaks_1h": sorted({h[1] for h in c["hsqc"]})},
     "full 13C list with DEPT": lambda c: {"peaks": c["peaks"]},

@@ -26,7 +26,7 @@ def test_cross_peaks_are_read_from_pairs_objects_and_files(tmp_path):
     f.write_text("dC dH\n21.04 2.05\n60.49, 4.12  # OCH2\n14.19;1.26\n")
     assert read_hsqc(f).pairs == [(21.04, 2.05), (60.49, 4.12), (14.19, 1.26)]
     f.write_text("21.04 2.05\n60.49\n")
-    with pytest.raises(InputError, match="line 2: expected two numbers"):
+    with pytest.raises(InputError, match="line 2: expected δC δH"):
         read_hsqc(f)
     with pytest.raises(InputError, match="entry 2: δH 42 ppm is outside"):
         hsqc_list([[21.0, 2.0], [30.0, 42]])
@@ -72,3 +72,15 @@ def test_rank_cli_and_batch_take_cross_peaks(tmp_path, capsys):
     ok, bad = [json.loads(x) for x in out_path.read_text().splitlines()]
     assert ok["ranking"][0]["smiles"] == ETOAC and "HSQC" in ok["ranking"][0]["nuclei"]
     assert "hsqc entry 1" in bad["error"]
+
+
+def test_edited_hsqc_phase_is_checked_against_chn():
+    # multiplicity-edited HSQC: CH2 cross peaks have the opposite phase to CH and CH3 (common practice)
+    edited = [[21.04, 2.05, "CH/CH3"], [60.49, 4.12, "CH2"], [14.19, 1.26, "CH/CH3"]]
+    right = rank(hsqc=edited, candidates=[ETOAC]).best.nuclei["HSQC"]
+    assert right.assignment.parts["multiplicity"] == 0
+    wrong = [[21.04, 2.05, "CH2"], [60.49, 4.12, "CH/CH3"], [14.19, 1.26, "CH/CH3"]]
+    res = rank(hsqc=wrong, candidates=[ETOAC]).best.nuclei["HSQC"]
+    assert res.cost > right.cost + 5 and not all(p.multiplicity_ok for p in res.assignment.pairings)
+    with pytest.raises(InputError, match="entry 1: phase 'up'"):
+        hsqc_list([[21.0, 2.0, "up"]])

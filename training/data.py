@@ -190,7 +190,7 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
 
     Every NMRShiftDB2 compound with assigned 13C and 1H shifts gives one (δC, δH) pair per protonated
     carbon (the 13C value and the mean of its protons' shifts; symmetry-equivalent carbons give one
-    pair); the candidates are the compound and its positional isomers from moving one ring substituent
+    pair; 'hsqc_edited' adds the phase a multiplicity-edited spectrum would show); the candidates are the compound and its positional isomers from moving one ring substituent
     (:func:`shiftrank.chem.isomers.isomers`, the rule the development regio cases were built by), at most
     ``max_candidates``, sorted by SMILES so the truth has no fixed place.  Compounds without such isomers
     are skipped.  'truth' and 'split' (of the skeleton) are for scoring only."""
@@ -202,7 +202,8 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         hm = hmols.get(m.id)
         if hm is None:
             continue
-        pairs = sorted({(round(m.shifts[a], 2), round(hm.shifts[a], 2)) for a in m.shifts
+        phase = {a: "CH2" if m.mol.GetAtomWithIdx(a).GetTotalNumHs() == 2 else "CH/CH3" for a in m.shifts}
+        pairs = sorted({(round(m.shifts[a], 2), round(hm.shifts[a], 2), phase[a]) for a in m.shifts
                         if a in hm.shifts and m.mol.GetAtomWithIdx(a).GetTotalNumHs() > 0})
         if len(pairs) < 2:
             continue
@@ -220,6 +221,7 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
             atom = m.mol.GetAtomWithIdx(a)
             carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
                                           + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
-        out.append({"id": m.id, "hsqc": [list(p) for p in pairs], "candidates": cands, "solvent": m.solvent,
+        out.append({"id": m.id, "hsqc": [list(p[:2]) for p in pairs], "hsqc_edited": [list(p) for p in pairs],
+                    "candidates": cands, "solvent": m.solvent,
                     "peaks": sorted(carbons.values(), key=lambda p: p["shift"]), "truth": truth, "split": m.split})
     return out

@@ -386,23 +386,47 @@ class HsqcList:
     source: str = "hsqc"
     notes: list[str] = field(default_factory=list)
     nucleus: str = "HSQC"
+    #: per cross peak, the phase of a multiplicity-edited HSQC when given: "CH2" or "CH/CH3" (None: not edited)
+    kinds: list | None = None
+
+
+#: multiplicity-edited HSQC phases as people write them, and the CHn each allows
+HSQC_KINDS = {"CH2": "CH2", "CH/CH3": "CH/CH3", "CH3/CH": "CH/CH3", "CH,CH3": "CH/CH3", "CH": "CH", "CH3": "CH3",
+              "negative": "CH2", "positive": "CH/CH3", "-": "CH2", "+": "CH/CH3"}
+HSQC_ALLOWS = {"CH2": {"CH2"}, "CH/CH3": {"CH", "CH3"}, "CH": {"CH"}, "CH3": {"CH3"}}
+
+
+def _hsqc_kind(value, where: str) -> str | None:
+    if value is None:
+        return None
+    kind = HSQC_KINDS.get(str(value).strip().replace(" ", "")) or HSQC_KINDS.get(str(value).strip().lower())
+    if kind is None:
+        raise InputError(f"{where}: phase {str(value)[:20]!r} is not one of CH2, CH/CH3, CH, CH3 (or negative/positive)")
+    return kind
 
 
 def hsqc_list(records, source: str = "hsqc") -> HsqcList:
-    """Read cross peaks given as ``[δC, δH]`` pairs or ``{"c": δC, "h": δH}`` objects; a clear error
-    names the entry that cannot be read.
+    """Read cross peaks given as ``[δC, δH]`` pairs (or ``[δC, δH, phase]``) or ``{"c": δC, "h": δH,
+    "phase": …}`` objects; the phase of a multiplicity-edited spectrum is "CH2" or "CH/CH3" (also
+    "negative"/"positive").  A clear error names the entry that cannot be read.
 
     >>> hsqc_list([[128.4, 7.31], {"c": 21.3, "h": 2.35}]).pairs
     [(128.4, 7.31), (21.3, 2.35)]
+    >>> hsqc_list([[40.1, 2.9, "CH2"], [21.3, 2.35, "CH/CH3"]]).kinds
+    ['CH2', 'CH/CH3']
     """
     if not isinstance(records, (list, tuple)) or not records:
         raise InputError(f"{source}: expected a non-empty list of [δC, δH] cross peaks")
-    pairs = []
+    pairs, kinds = [], []
     for k, r in enumerate(records, 1):
+        kind = None
         if isinstance(r, dict):
             c, h = r.get("c", r.get("13C")), r.get("h", r.get("1H"))
-        elif isinstance(r, (list, tuple)) and len(r) == 2:
-            c, h = r
+            kind = _hsqc_kind(r.get("phase", r.get("multiplicity")), f"{source} entry {k}")
+        elif isinstance(r, (list, tuple)) and len(r) in (2, 3):
+            c, h = r[0], r[1]
+            if len(r) == 3:
+                kind = _hsqc_kind(r[2], f"{source} entry {k}")
         else:
             raise InputError(f"{source} entry {k}: expected [δC, δH] or {{\"c\": δC, \"h\": δH}}, got {str(r)[:40]!r}")
         try:
@@ -416,14 +440,16 @@ def hsqc_list(records, source: str = "hsqc") -> HsqcList:
         if not (math.isfinite(h) and -2.0 <= h <= 20.0):
             raise InputError(f"{source} entry {k}: δH {h:g} ppm is outside -2…20 ppm")
         pairs.append((c, h))
+        kinds.append(kind)
     if len(pairs) > 2000:
         raise InputError(f"{source}: {len(pairs):,} cross peaks; the limit is 2,000")
-    return HsqcList(pairs, source)
+    return HsqcList(pairs, source, kinds=kinds if any(kinds) else None)
 
 
 def read_hsqc(path: str | Path) -> HsqcList:
     """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
-    by spaces, a comma, a semicolon or a tab; '#' starts a comment; a header line without numbers is skipped)."""
+    by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
+    (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped."""
     p = Path(path)
     if not p.exists():
         raise InputError(f"{p}: no such file")
@@ -443,18 +469,18 @@ def read_hsqc(path: str | Path) -> HsqcList:
             continue
         fields = [f for f in re.split(r"[\s,;]+", line) if f]
         try:
-            nums = [float(f) for f in fields]
+            nums = [float(f) for f in fields[:2]]
         except ValueError:
             if not pairs and not any(re.fullmatch(r"-?\d+(\.\d+)?", f) for f in fields):
                 continue   # a header line
             raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {line[:40]!r}") from None
-        if len(nums) != 2:
-            raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {len(nums)}")
-        pairs.append(nums)
+        if len(nums) != 2 or len(fields) > 3:
+            raise InputError(f"{p.name} line {n}: expected δC δH and optionally the edited phase (CH2, CH/CH3), "
+                             f"got {line[:40]!r}")
+        pairs.append(nums + fields[2:])
     if not pairs:
         raise InputError(f"{p.name}: no cross peaks found")
-    out = hsqc_list(pairs, p.name)
-    return out
+    return hsqc_list(pairs, p.name)
 
 
 __all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "peaks_from_records",

@@ -13,7 +13,9 @@ runs the shared assignment (:func:`shiftrank.score.matching.assign`).  The nucle
   ``multiplicity_mismatch`` and ``j_mismatch``; an unobserved OH/NH/SH class is cheap;
 * HSQC: one class per set of equivalent protonated carbons, with the 13C and the 1H prediction; a
   cross peak (δC, δH) costs the Student-t error of both dimensions (each with its own model's fitted
-  error); cross peaks at one δC with two δH (the two protons of a CH2) are read as one carbon.
+  error); cross peaks at one δC with two δH (the two protons of a CH2) are read as one carbon; the
+  phase of a multiplicity-edited spectrum (CH2 against CH/CH3) that the class cannot show costs
+  ``multiplicity_mismatch``, as DEPT does for 13C.
 """
 from __future__ import annotations
 
@@ -26,7 +28,7 @@ from ..chem.couplings import ExpectedMultiplet, carbon_multiplets, expected_mult
 from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
-from ..inputs.peaks import HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
+from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
 from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
 
 #: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
@@ -429,19 +431,21 @@ class HsqcEvidence(_Evidence):
 
     nucleus = "HSQC"
 
-    def observed(self, pl: "HsqcList") -> list[ObservedPeak]:
-        pairs = sorted(pl.pairs)
+    def observed(self, pl: HsqcList) -> list[ObservedPeak]:
+        kinds = pl.kinds or [None] * len(pl.pairs)
+        pairs = sorted(zip(pl.pairs, kinds), key=lambda x: x[0])
         out, k = [], 0
         while k < len(pairs):
             group = [pairs[k]]
-            while k + len(group) < len(pairs) and pairs[k + len(group)][0] - group[0][0] < SAME_CARBON:
+            while k + len(group) < len(pairs) and pairs[k + len(group)][0][0] - group[0][0][0] < SAME_CARBON:
                 group.append(pairs[k + len(group)])
             k += len(group)
-            hs = [h for _, h in group]
-            if len(group) > 2 or max(hs) - min(hs) > 1.5:   # more than one carbon at this δC: keep them apart
-                out.extend(ObservedPeak(c, h_lo=h, h_hi=h) for c, h in group)
+            hs = [h for (_, h), _ in group]
+            gk = {kd for _, kd in group}
+            if len(group) > 2 or max(hs) - min(hs) > 1.5 or len(gk) > 1:   # more than one carbon at this δC
+                out.extend(ObservedPeak(c, kd, h_lo=h, h_hi=h) for (c, h), kd in group)
             else:
-                out.append(ObservedPeak(float(np.mean([c for c, _ in group])), h_lo=min(hs), h_hi=max(hs)))
+                out.append(ObservedPeak(float(np.mean([c for (c, _), _ in group])), group[0][1], h_lo=min(hs), h_hi=max(hs)))
         return PeakSet(out)
 
     def classes(self, mol: Chem.Mol, ranks, mu, sg, peaks, facts=None) -> list[SignalClass]:
@@ -455,8 +459,11 @@ class HsqcEvidence(_Evidence):
 
     def prepare(self, mol: Chem.Mol, ranks, mu, sg, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
-        z = np.zeros((len(classes), len(peaks)))
-        return Prepared(classes, peaks, z, z.copy())
+        bad = np.zeros((len(classes), len(peaks)))
+        for j, p in enumerate(peaks):   # the phase of an edited spectrum against the class's CHn
+            if p.multiplicity is not None:
+                bad[:, j] = [c.multiplicity not in HSQC_ALLOWS[p.multiplicity] for c in classes]
+        return Prepared(classes, peaks, bad, np.zeros_like(bad))
 
     def flags(self, res: NucleusResult) -> list[str]:
         return _count_flags(res, "HSQC cross peaks (protonated carbons)") + _quality_flags(res, "protonated carbons")
