@@ -1,5 +1,7 @@
 """1H assignment over integral units, on 1H paragraphs printed in open-access articles (the
 ``literature_dev.jsonl.gz`` extraction; the article is named beside each check)."""
+import pytest
+
 from shiftrank.score.ranking import rank
 
 # PMC6272727: a trimethoxyphenyl chalcone; the printed 3H and 6H methoxy singlets are 0.01 ppm apart
@@ -31,3 +33,23 @@ def test_fractional_integrals_of_a_tautomer_mixture_are_rounded_not_rescaled():
     res = r.best.nuclei["1H"]
     assert [p.capacity for p in res.peaks if not p.solvent] == [3, 3, 1, 1, 3, 2]
     assert res.assignment.parts["integral"] <= 2 * 2.5   # before: ~265 nats from a ×10 rescaling
+
+
+def test_two_different_protons_in_one_clean_doublet_cost_more_than_in_an_m():
+    # the chalcone's printed '7.48 (d, 2H)' and '7.54 (d, 2H)' are the two symmetric pairs of its
+    # 4-bromophenyl ring (PMC6272727); a structure that must put two different protons into one
+    # printed doublet pays for the coincidence, while an 'm' (which promises nothing) does not
+    from dataclasses import replace
+
+    from shiftrank.score.matching import MatchCosts, ObservedPeak, SignalClass, assign
+
+    classes = [SignalClass([0], "d", 7.47, 0.1, units=1), SignalClass([1], "d", 7.49, 0.1, units=1)]
+    costs = replace(MatchCosts(), shared_multiplet=5.0)
+    fits = [[0.0], [0.0]]   # both letters fit both classes: only the sharing is at stake
+    d2 = assign(classes, [ObservedPeak(7.48, "d", capacity=2)], costs, fits)
+    m2 = assign(classes, [ObservedPeak(7.48, "m", capacity=2)], costs, fits)
+    assert d2.total_cost == pytest.approx(m2.total_cost + 5.0)
+    assert assign(classes, [ObservedPeak(7.48, "d", capacity=2)], MatchCosts(), fits).total_cost == pytest.approx(m2.total_cost)
+    # one class of two equivalent protons in the doublet is not a coincidence
+    pair = [SignalClass([0, 1], "d", 7.48, 0.1, units=2)]
+    assert assign(pair, [ObservedPeak(7.48, "d", capacity=2)], costs, [[0.0]]).parts["overlap"] == 0.0

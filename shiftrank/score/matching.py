@@ -10,7 +10,8 @@ multiplet).  The assignment minimises a total cost in nats (negative log-likelih
 * 1H with integrals: a class is as many units as it has protons and a multiplet offers as many units
   as its integral, so a "m, 5H" takes five protons from one or several classes and a diastereotopic
   CH2 may split over two 1H multiplets.  Each proton beyond a multiplet's integral, and each proton
-  of its integral that no class supplies, costs ``integral_mismatch``.
+  of its integral that no class supplies, costs ``integral_mismatch``; each further class inside a
+  printed first-order multiplet (a clean d, t, dd …, not an 'm') costs ``shared_multiplet``.
 
 The cost of a class ↔ peak pair is a Student-t error of (δ − μ)/σ (parameters fitted to the
 predictor's held-out residuals, as DP4 does with its own errors — Smith & Goodman 2010; a printed
@@ -53,6 +54,7 @@ class MatchCosts:
     near_scale: float = 2.0              # ppm: how close two predictions must be for a shared peak to be likely
     missing_quaternary: float | None = None  # 13C: an unlisted quaternary carbon (weak lines are often not printed)
     missing_near: float | None = None    # a class predicted within near_scale of another class, unlisted
+    shared_multiplet: float = 0.0        # 1H: per further class inside one printed first-order multiplet (d, t, dd …)
     h_t_df: float | None = None          # HSQC: Student-t of the proton dimension (None: no proton dimension)
     h_t_scale: float = 1.0
 
@@ -356,6 +358,12 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     for (i, j) in got:
         if j is not None:
             classes_on_peak[j] += 1
+    if costs.shared_multiplet:
+        # a clean doublet or triplet holding two different protons is a coincidence, unlike an 'm'
+        # (charged after the assignment, which it does not steer)
+        from ..chem.couplings import observed_pattern
+        parts["overlap"] += costs.shared_multiplet * float(sum(
+            classes_on_peak[j] - 1 for j in range(npk) if classes_on_peak[j] > 1 and observed_pattern(peaks[j].multiplicity) is not None))
     pairings = []
     for (i, j), kinds in sorted(got.items(), key=lambda kv: (kv[0][0], -1 if kv[0][1] is None else kv[0][1])):
         n = len(kinds)
