@@ -57,6 +57,7 @@ GRID = {
         "missing_near": [None, 1.0, 2.0, 3.0],
         "extra": [3.0, 6.0, 9.0, 12.0],
         "multiplicity_mismatch": [4.0, 6.0, 9.0, 12.0],
+        "t_widen": [0.8, 1.0, 1.25, 1.5],
         "j_mismatch": [1.0, 2.0, 4.0, 6.0],
     },
     "1H": {
