@@ -84,3 +84,12 @@ def test_edited_hsqc_phase_is_checked_against_chn():
     assert res.cost > right.cost + 5 and not all(p.multiplicity_ok for p in res.assignment.pairings)
     with pytest.raises(InputError, match="entry 1: phase 'up'"):
         hsqc_list([[21.0, 2.0, "up"]])
+
+
+def test_phase_column_of_a_file_reaches_the_ranking(tmp_path, capsys):
+    f = tmp_path / "edited.txt"
+    f.write_text("21.04 2.05 CH2\n60.49 4.12 CH2\n14.19 1.26 CH/CH3\n")   # CH3CO given the wrong phase
+    assert read_hsqc(f).records()[0] == [21.04, 2.05, "CH2"]
+    assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC, "--json"]) == 0
+    res = json.loads(capsys.readouterr().out)["ranking"][0]["nuclei"]["HSQC"]
+    assert res["cost_parts"]["multiplicity"] > 0

@@ -4,14 +4,15 @@ from __future__ import annotations
 from importlib import resources
 
 from ..chem.inventory import take_inventory
-from ..inputs.peaks import read_peaks
+from ..inputs.peaks import read_hsqc, read_peaks
 from ..outputs.report import write_report
 from ..outputs.terminal import print_ranking
 from ..score.ranking import case_peaklists, rank
 
 SAMPLES = [
     {"id": "LP-0412 SNAr product", "title": "SNAr of 2,4-difluoronitrobenzene with morpholine: which fluorine was replaced?",
-     "peaks": "snar_13c.txt", "candidates": "snar_candidates.smi", "solvent": "CDCl3", "formula": "C10H11FN2O3"},
+     "peaks": "snar_13c.txt", "hsqc": "snar_hsqc.txt", "candidates": "snar_candidates.smi", "solvent": "CDCl3",
+     "formula": "C10H11FN2O3"},
     {"id": "QC-bottle 7731", "title": "Bottle labelled methyl 4-hydroxybenzoate: does the label hold? (13C and 1H)",
      "peaks": "bottle_13c.txt", "peaks_1h": "bottle_1h.txt", "candidates": "bottle_candidates.smi",
      "solvent": "DMSO-d6", "formula": "C8H8O3", "mz": 153.0549},
@@ -45,6 +46,9 @@ def run_demo(output: str) -> int:
         if s.get("peaks_1h"):
             with _file(s["peaks_1h"]) as hp:
                 case["peaks_1h"] = read_peaks(hp, nucleus="1H", solvent=s.get("solvent"))
+        if s.get("hsqc"):
+            with _file(s["hsqc"]) as hq:
+                case["hsqc"] = read_hsqc(hq).records()
         if s.get("text"):
             with _file(s["text"]) as tp:
                 case["text"] = tp.read_text(encoding="utf-8")
@@ -54,7 +58,8 @@ def run_demo(output: str) -> int:
         else:
             cands = [("intended product", s["intended"])]
         result = rank(case.get("peaks"), cands, formula=s["formula"], solvent=s.get("solvent"), id=s["id"],
-                      peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=not s.get("candidates"))
+                      peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=not s.get("candidates"),
+                      hsqc=case.get("hsqc"))
         pls, _, _ = case_peaklists(case)
         inv = take_inventory(pls.get("13C"), pls.get("1H"), s["formula"], s.get("mz"))
         print(f"=== {s['id']}: {s['title']}")
@@ -63,7 +68,7 @@ def run_demo(output: str) -> int:
         for line in inv.lines():
             print(f"    {line}")
         print()
-        print_ranking(result, ", ".join(s[k] for k in ("peaks", "peaks_1h", "text") if s.get(k)))
+        print_ranking(result, ", ".join(s[k] for k in ("peaks", "peaks_1h", "hsqc", "text") if s.get(k)))
         print()
         results.append(result)
         lists.append(pls)

@@ -389,6 +389,11 @@ class HsqcList:
     #: per cross peak, the phase of a multiplicity-edited HSQC when given: "CH2" or "CH/CH3" (None: not edited)
     kinds: list | None = None
 
+    def records(self) -> list[list]:
+        """The cross peaks as ``[δC, δH]`` or ``[δC, δH, phase]`` lists (what :func:`hsqc_list` reads)."""
+        kinds = self.kinds or [None] * len(self.pairs)
+        return [[c, h, k] if k else [c, h] for (c, h), k in zip(self.pairs, kinds)]
+
 
 #: multiplicity-edited HSQC phases as people write them, and the CHn each allows
 HSQC_KINDS = {"CH2": "CH2", "CH/CH3": "CH/CH3", "CH3/CH": "CH/CH3", "CH,CH3": "CH/CH3", "CH": "CH", "CH3": "CH3",
