@@ -45,8 +45,8 @@ RARE_RADIUS, RARE_COUNT = 3, 3  # environment shared by fewer carbons than this 
 MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere statistics hidden
 OUTLIER_FLOOR = {"13C": 8.0, "1H": 0.8}  # ppm: residuals below this are never called outliers
 SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
-VERSION = {"13C": "1.2.0", "1H": "1.0.0"}
-MODELS_VERSION = "1.2.0"  # the shipped set of models (both nuclei and the ranking settings)
+VERSION = {"13C": "1.3.0", "1H": "1.0.0"}
+MODELS_VERSION = "1.3.0"  # the shipped set of models (both nuclei and the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
 
 
@@ -97,7 +97,7 @@ def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C") -> tuple[S
 
 def predict_mu(model: ShiftModel, rows: RowSet) -> np.ndarray:
     X, _ = model.design(rows.feats, rows.codes)
-    return model.regressor.predict(X)
+    return model.predict_mu(X)
 
 
 def selection_mae(model: ShiftModel, val: RowSet) -> float:
@@ -112,7 +112,7 @@ def selection_mae(model: ShiftModel, val: RowSet) -> float:
 def fit_sigma(model: ShiftModel, val: RowSet) -> dict:
     """Error model on validation residuals; scale from a 2-fold cross-fit so coverage is honest."""
     X, _ = model.design(val.feats, val.codes)
-    mu = model.regressor.predict(X)
+    mu = model.predict_mu(X)
     X2 = np.hstack([X, mu[:, None]])
     absres = np.abs(val.y - mu)
     folds = val.mol_idx % 2
@@ -158,6 +158,48 @@ def headline(report: dict, nucleus: str, split: str) -> float:
     """The figure the targets speak of: all carbons (13C), C–H protons (1H)."""
     m = report[split]
     return m["mae"] if nucleus == "13C" else m["ch_mae"]
+
+
+def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nucleus: str, n_train_rows: int) -> None:
+    """Write the model files of ``nucleus`` into ``out`` and its manifest entry (hashes, metrics, sample)."""
+    out.mkdir(parents=True, exist_ok=True)
+    tables_name, boost_name = FILES[nucleus]
+    np.savez_compressed(out / tables_name, **model.tables.to_arrays())
+    joblib.dump({"regressor": model.regressor, "sigma_regressor": model.sigma_regressor,  # one member or a list
+                 "sigma_scale": model.sigma_scale, "sigma_floor": model.sigma_floor}, out / boost_name, compress=3)
+    # fixed test sample for the regression test: ids of the first 300 test molecules
+    test_ids = sorted({m.id for m in mols if m.split == "test"})[:300]
+    sample = [m for m in mols if m.id in set(test_ids)]
+    sample_rows = rows_from_assigned(sample, nucleus)
+    smu, _, _, _ = model.predict_arrays(sample_rows.feats, sample_rows.codes)
+    data_file = "assigned_13c.csv.gz" if nucleus == "13C" else "assigned_1h.csv.gz"
+    entry = {
+        "version": VERSION[nucleus], "created": time.strftime("%Y-%m-%d"),
+        "data": {name: sha256_file(data / name) for name in ("assigned_structures.sdf.gz", data_file, "peaklists.jsonl.gz")},
+        "files": [tables_name, boost_name],
+        "n_features": int(model.regressors[0].n_features_in_),
+        "boosting": {k: v for k, v in _hgb(n_train_rows).get_params().items()
+                     if k in ("max_iter", "max_leaf_nodes", "learning_rate", "max_features", "min_samples_leaf", "l2_regularization")},
+        "feature_names": feature_names(nucleus),
+        "uncertainty": report["uncertainty"],
+        "metrics": {"val_mae": round(report["val"]["mae"], 3), "test_mae": round(report["test"]["mae"], 3),
+                    "test_coverage90": round(report["test"]["coverage90"], 3)},
+        "test_sample": {"nmrshiftdb2_ids": test_ids, "atoms": len(sample_rows), "mae": round(float(np.mean(np.abs(smu - sample_rows.y))), 4)},
+    }
+    if nucleus == "1H":
+        entry["metrics"].update(val_ch_mae=round(report["val"]["ch_mae"], 3), test_ch_mae=round(report["test"]["ch_mae"], 3),
+                                test_ch_coverage90=round(report["test"]["ch_coverage90"], 3))
+    man_path = out / "manifest.json"
+    man = read_manifest(out) if man_path.exists() else {}
+    man.update({
+        "name": "shiftrank-models", "version": MODELS_VERSION,
+        "licence": "Derived from NMRShiftDB2 data; distributed under the nmrshiftdb2 database licence (ODbL-1.0 derived): attribution, share-alike.",
+        "split": "InChIKey skeleton, sha256('shiftrank-split-v1:'+skeleton) mod 20: 0-1 test, 2-3 val, rest train",
+        "sklearn": __import__("sklearn").__version__,
+    })
+    man.setdefault("files", {}).update({name: sha256_file(out / name) for name in (tables_name, boost_name)})
+    man.setdefault("nuclei", {})[nucleus] = entry
+    man_path.write_text(json.dumps(man, indent=1))
 
 
 def main(argv=None) -> int:
@@ -212,44 +254,7 @@ def main(argv=None) -> int:
     report["test"] = metrics(model, test, mols, "test")
     log(f"test MAE {headline(report, nucleus, 'test'):.3f}, 90% coverage {report['test']['coverage90']:.3f}")
 
-    args.out.mkdir(parents=True, exist_ok=True)
-    tables_name, boost_name = FILES[nucleus]
-    np.savez_compressed(args.out / tables_name, **model.tables.to_arrays())
-    joblib.dump({"regressor": model.regressor, "sigma_regressor": model.sigma_regressor,
-                 "sigma_scale": model.sigma_scale, "sigma_floor": model.sigma_floor}, args.out / boost_name, compress=3)
-    # fixed test sample for the regression test: ids of the first 300 test molecules
-    test_ids = sorted({m.id for m in mols if m.split == "test"})[:300]
-    sample = [m for m in mols if m.id in set(test_ids)]
-    sample_rows = rows_from_assigned(sample, nucleus)
-    smu, _, _, _ = model.predict_arrays(sample_rows.feats, sample_rows.codes)
-    data_file = "assigned_13c.csv.gz" if nucleus == "13C" else "assigned_1h.csv.gz"
-    entry = {
-        "version": VERSION[nucleus], "created": time.strftime("%Y-%m-%d"),
-        "data": {name: sha256_file(args.data / name) for name in ("assigned_structures.sdf.gz", data_file, "peaklists.jsonl.gz")},
-        "files": [tables_name, boost_name],
-        "n_features": int(model.regressor.n_features_in_),
-        "boosting": {k: v for k, v in _hgb(len(train_clean)).get_params().items()
-                     if k in ("max_iter", "max_leaf_nodes", "learning_rate", "max_features", "min_samples_leaf", "l2_regularization")},
-        "feature_names": feature_names(nucleus),
-        "uncertainty": report["uncertainty"],
-        "metrics": {"val_mae": round(report["val"]["mae"], 3), "test_mae": round(report["test"]["mae"], 3),
-                    "test_coverage90": round(report["test"]["coverage90"], 3)},
-        "test_sample": {"nmrshiftdb2_ids": test_ids, "atoms": len(sample_rows), "mae": round(float(np.mean(np.abs(smu - sample_rows.y))), 4)},
-    }
-    if nucleus == "1H":
-        entry["metrics"].update(val_ch_mae=round(report["val"]["ch_mae"], 3), test_ch_mae=round(report["test"]["ch_mae"], 3),
-                                test_ch_coverage90=round(report["test"]["ch_coverage90"], 3))
-    man_path = args.out / "manifest.json"
-    man = read_manifest(args.out) if man_path.exists() else {}
-    man.update({
-        "name": "shiftrank-models", "version": MODELS_VERSION,
-        "licence": "Derived from NMRShiftDB2 data; distributed under the nmrshiftdb2 database licence (ODbL-1.0 derived): attribution, share-alike.",
-        "split": "InChIKey skeleton, sha256('shiftrank-split-v1:'+skeleton) mod 20: 0-1 test, 2-3 val, rest train",
-        "sklearn": __import__("sklearn").__version__,
-    })
-    man.setdefault("files", {}).update({name: sha256_file(args.out / name) for name in (tables_name, boost_name)})
-    man.setdefault("nuclei", {})[nucleus] = entry
-    man_path.write_text(json.dumps(man, indent=1))
+    save_model(model, report, mols, args.out, args.data, nucleus, len(train_clean))
     report["seconds"] = round(time.time() - t0)
     out_dir = REPO / "training" / "out"
     out_dir.mkdir(exist_ok=True)

@@ -79,6 +79,19 @@ class ShiftModel:
         self.sigma_scale = sigma_scale
         self.sigma_floor = sigma_floor
 
+    @property
+    def regressors(self) -> list:
+        """The boosted members: one, or several whose mean is the estimate (an ensemble over seeds)."""
+        return list(self.regressor) if isinstance(self.regressor, (list, tuple)) else [self.regressor]
+
+    def predict_mu(self, X: np.ndarray) -> np.ndarray:
+        """The boosted estimate for design rows ``X``: the mean over the members."""
+        members = self.regressors
+        mu = members[0].predict(X)
+        for m in members[1:]:
+            mu = mu + m.predict(X)
+        return mu / len(members)
+
     def design(self, env_feats: np.ndarray, codes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Model input rows and the raw lookup statistics for carbons given by descriptors and codes."""
         stats = self.tables.lookup(codes)
@@ -101,7 +114,7 @@ class ShiftModel:
         _, first, back = np.unique(rows, return_index=True, return_inverse=True)
         # column-major input: the tree walk reads one feature across many rows, 2-3x faster than row-major
         Xu = np.asfortranarray(X[first], dtype=np.float64)
-        mu_u = self.regressor.predict(Xu)
+        mu_u = self.predict_mu(Xu)
         sigma_u = self.sigma_regressor.predict(np.asfortranarray(np.hstack([Xu, mu_u[:, None]])))
         mu = mu_u[back]
         sigma = np.maximum(sigma_u[back] * self.sigma_scale, self.sigma_floor)
