@@ -364,15 +364,20 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
     return flag_solvent(pl, solvent)
 
 
-def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
-    """Read a peak file (.txt, .csv, .tsv, .json; anything else is read as text)."""
+def _read_file(path: str | Path) -> tuple[Path, str]:
+    """The path and text of a user's file, or a clear error naming it."""
     p = Path(path)
     if not p.exists():
         raise InputError(f"{p}: no such file")
     try:
-        text = p.read_text(encoding="utf-8", errors="replace")
+        return p, p.read_text(encoding="utf-8", errors="replace")
     except OSError as exc:
         raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+
+
+def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
+    """Read a peak file (.txt, .csv, .tsv, .json; anything else is read as text)."""
+    p, text = _read_file(path)
     ext = p.suffix.lower()
     fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(ext)
     return parse_peaks(text, p.name, nucleus, fmt, solvent)
@@ -455,13 +460,7 @@ def read_hsqc(path: str | Path) -> HsqcList:
     """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
     (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped."""
-    p = Path(path)
-    if not p.exists():
-        raise InputError(f"{p}: no such file")
-    try:
-        text = p.read_text(encoding="utf-8", errors="replace")
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    p, text = _read_file(path)
     if p.suffix.lower() == ".json":
         try:
             return hsqc_list(json.loads(text), p.name)

@@ -65,6 +65,11 @@ class ClassMeans:
         return m, s
 
 
+def _carbon_classes(mol: Chem.Mol, ranks, facts=None):
+    """The carbon symmetry classes, from the candidate's cached facts when given."""
+    return facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)
+
+
 def _mean(values: dict, atoms) -> float:
     return float(sum(values[a] for a in atoms) / len(atoms))
 
@@ -204,7 +209,7 @@ class CarbonEvidence(_Evidence):
                                     coupling=p.coupling, field=pl.field_mhz) for p in pl.peaks)
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
-        cc = facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)
+        cc = _carbon_classes(mol, ranks, facts)
         if isinstance(mu, ClassMeans):
             m, s = mu.of([c.atoms for c in cc])
             return [SignalClass(c.atoms, c.multiplicity, a, b) for c, a, b in zip(cc, m.tolist(), s.tolist())]
@@ -450,7 +455,7 @@ class HsqcEvidence(_Evidence):
 
     def classes(self, mol: Chem.Mol, ranks, mu, sg, peaks, facts=None) -> list[SignalClass]:
         means_c, means_h = mu   # ClassMeans of the 13C and of the 1H prediction
-        cc = [c for c in (facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)) if c.multiplicity != "C"]
+        cc = [c for c in _carbon_classes(mol, ranks, facts) if c.multiplicity != "C"]
         atoms = [c.atoms for c in cc]
         mc, sc = means_c.of(atoms)
         mh, sh = means_h.of(atoms)

@@ -32,6 +32,8 @@ import numpy as np
 from scipy.optimize import linear_sum_assignment
 from scipy.special import gammaln
 
+from ..chem.couplings import observed_pattern
+
 BIG = 1e6
 MAX_EXCESS_COPIES = 4  # 1H: units a multiplet may hold beyond its integral
 
@@ -361,7 +363,6 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     if costs.shared_multiplet:
         # a clean doublet or triplet holding two different protons is a coincidence, unlike an 'm'
         # (charged after the assignment, which it does not steer)
-        from ..chem.couplings import observed_pattern
         parts["overlap"] += costs.shared_multiplet * float(sum(
             classes_on_peak[j] - 1 for j in range(npk) if classes_on_peak[j] > 1 and observed_pattern(peaks[j].multiplicity) is not None))
     pairings = []

@@ -167,20 +167,17 @@ def ranking_settings() -> RankingSettings:
     man = default_manifest()
     r = man.get("ranking", {})
     costs, temps = {}, {}
-    for n in NUCLEI:
-        u = man.get("nuclei", {}).get(n, {}).get("uncertainty", {})
+    error_fields = ("t_df", "t_scale", "h_t_df", "h_t_scale")
+    for n in SPECTRA:
+        # the error model of each dimension is its shift model's (HSQC: 13C for the carbon, 1H for the proton)
+        us = [man.get("nuclei", {}).get(m, {}).get("uncertainty", {}) for m in MODELS_FOR[n]]
+        fixed = {"t_df": us[0].get("t_df", 4.0), "t_scale": us[0].get("t_scale", 1.0)}
+        if len(us) > 1:
+            fixed.update(h_t_df=us[1].get("t_df", 4.0), h_t_scale=us[1].get("t_scale", 1.0))
         rn = r.get(n, {})
-        kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in ("t_df", "t_scale")}
-        costs[n] = MatchCosts(t_df=u.get("t_df", 4.0), t_scale=u.get("t_scale", 1.0), **kw)
+        kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in error_fields}
+        costs[n] = MatchCosts(**fixed, **kw)
         temps[n] = float(rn.get("temperature", 1.0))
-    # HSQC: the carbon dimension has the 13C model's error, the proton dimension the 1H model's
-    uc = man.get("nuclei", {}).get("13C", {}).get("uncertainty", {})
-    uh = man.get("nuclei", {}).get("1H", {}).get("uncertainty", {})
-    rn = r.get("HSQC", {})
-    kw = {k: rn[k] for k in MatchCosts.__dataclass_fields__ if k in rn and k not in ("t_df", "t_scale", "h_t_df", "h_t_scale")}
-    costs["HSQC"] = MatchCosts(t_df=uc.get("t_df", 4.0), t_scale=uc.get("t_scale", 1.0), h_t_df=uh.get("t_df", 4.0),
-                               h_t_scale=uh.get("t_scale", 1.0), **kw)
-    temps["HSQC"] = float(rn.get("temperature", 1.0))
     joint = r.get("joint", {})
     temps["joint"] = {n: float(joint.get(n, {}).get("temperature", temps[n])) if isinstance(joint.get(n), dict)
                       else temps[n] for n in SPECTRA}
