@@ -57,8 +57,8 @@ def main(argv=None) -> int:
     T.log(f"member fitted ({len(member_rows)} rows), alone: val MAE {T.selection_mae(member, val):.3f}")
     before = T.selection_mae(model, val)
     model.regressor = model.regressors + member.regressors
-    report_path = T.REPO / "training" / f"last_metrics_{'13c' if n == '13C' else '1h'}.json"
-    report = json.loads(report_path.read_text()) if report_path.exists() else {"nucleus": n}
+    path = T.report_path(n)
+    report = json.loads(path.read_text()) if path.exists() else {"nucleus": n}
     report["ensemble"] = report.get("ensemble", []) + [{"seed": args.seed, "pseudo": st, "train_rows": len(member_rows),
                                                          "val_mae_before": before, **fr}]
     report["uncertainty"] = T.fit_sigma(model, val)
@@ -69,11 +69,7 @@ def main(argv=None) -> int:
           f"test MAE {T.headline(report, n, 'test'):.3f}, 90% coverage {report['test']['coverage90']:.3f}")
     T.save_model(model, report, mols, args.models, args.data, n, len(member_rows))
     report["seconds_ensemble"] = round(time.time() - t0)
-    out_dir = T.REPO / "training" / "out"
-    out_dir.mkdir(exist_ok=True)
-    tag = "13c" if n == "13C" else "1h"
-    (out_dir / f"metrics_{tag}.json").write_text(json.dumps(report, indent=1))
-    report_path.write_text(json.dumps(report, indent=1))
+    T.write_report(report, n)
     return 0
 
 

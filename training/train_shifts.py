@@ -160,6 +160,19 @@ def headline(report: dict, nucleus: str, split: str) -> float:
     return m["mae"] if nucleus == "13C" else m["ch_mae"]
 
 
+def report_path(nucleus: str) -> Path:
+    """The committed training report of ``nucleus`` (a copy also goes to training/out/)."""
+    return REPO / "training" / f"last_metrics_{'13c' if nucleus == '13C' else '1h'}.json"
+
+
+def write_report(report: dict, nucleus: str) -> None:
+    out_dir = REPO / "training" / "out"
+    out_dir.mkdir(exist_ok=True)
+    text = json.dumps(report, indent=1)
+    (out_dir / f"metrics_{'13c' if nucleus == '13C' else '1h'}.json").write_text(text)
+    report_path(nucleus).write_text(text)
+
+
 def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nucleus: str, n_train_rows: int) -> None:
     """Write the model files of ``nucleus`` into ``out`` and its manifest entry (hashes, metrics, sample)."""
     out.mkdir(parents=True, exist_ok=True)
@@ -256,11 +269,7 @@ def main(argv=None) -> int:
 
     save_model(model, report, mols, args.out, args.data, nucleus, len(train_clean))
     report["seconds"] = round(time.time() - t0)
-    out_dir = REPO / "training" / "out"
-    out_dir.mkdir(exist_ok=True)
-    tag = "13c" if nucleus == "13C" else "1h"
-    (out_dir / f"metrics_{tag}.json").write_text(json.dumps(report, indent=1))
-    (REPO / "training" / f"last_metrics_{tag}.json").write_text(json.dumps(report, indent=1))
+    write_report(report, nucleus)
     log(f"done in {report['seconds']} s")
     return 0
 
