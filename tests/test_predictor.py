@@ -19,7 +19,7 @@ from shiftrank.prediction.api import predict
 
 def test_manifest_lists_hashes_licence_and_metrics():
     man = read_manifest()
-    assert set(man["files"]) >= {"c13_tables.npz", "c13_boost.joblib"}
+    assert set(man["files"]) >= {"c13_tables.npz", "c13_trees.npz"}
     assert all(len(h) == 64 for h in man["files"].values())
     assert "nmrshiftdb2" in man["licence"].lower()
     assert man["nuclei"]["13C"]["metrics"]["test_mae"] > 0
@@ -48,7 +48,7 @@ def test_hash_mismatch_is_refused(tmp_path):
         f.write(b"tampered")
     with pytest.raises(ModelFileError, match="does not match the manifest"):
         load_shift_model(d)
-    with open(d / "h1_boost.joblib", "ab") as f:
+    with open(d / "h1_trees.npz", "ab") as f:
         f.write(b"tampered")
     with pytest.raises(ModelFileError, match="does not match the manifest"):
         load_shift_model(d, nucleus="1H")
@@ -58,7 +58,7 @@ def test_file_not_in_manifest_is_refused(tmp_path):
     d = tmp_path / "models"
     shutil.copytree(models_dir(), d)
     man = json.loads((d / "manifest.json").read_text())
-    del man["files"]["c13_boost.joblib"]
+    del man["files"]["c13_trees.npz"]
     (d / "manifest.json").write_text(json.dumps(man))
     with pytest.raises(ModelFileError, match="not listed"):
         load_shift_model(d)

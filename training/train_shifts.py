@@ -27,7 +27,6 @@ import json
 import time
 from pathlib import Path
 
-import joblib
 import numpy as np
 from scipy import stats as sps
 from sklearn.ensemble import HistGradientBoostingRegressor
@@ -35,7 +34,7 @@ from sklearn.ensemble import HistGradientBoostingRegressor
 from shiftrank.prediction.environment import feature_names
 from shiftrank.prediction.model import Z90, ShiftModel
 from shiftrank.prediction.sphere_tables import SphereTables, table_features
-from shiftrank.prediction.model_files import FILES, read_manifest, sha256_file
+from shiftrank.prediction.model_files import FILES, boost_arrays, read_manifest, sha256_file
 from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
 from training.features import RowSet, masked_copies, oof_table_stats, rows_from_assigned
 from training.pseudo_labels import pseudo_label
@@ -178,8 +177,7 @@ def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nuc
     out.mkdir(parents=True, exist_ok=True)
     tables_name, boost_name = FILES[nucleus]
     np.savez_compressed(out / tables_name, **model.tables.to_arrays())
-    joblib.dump({"regressor": model.regressor, "sigma_regressor": model.sigma_regressor,  # one member or a list
-                 "sigma_scale": model.sigma_scale, "sigma_floor": model.sigma_floor}, out / boost_name, compress=3)
+    np.savez_compressed(out / boost_name, **boost_arrays(model))  # trees as flat arrays, no pickle
     # fixed test sample for the regression test: ids of the first 300 test molecules
     test_ids = sorted({m.id for m in mols if m.split == "test"})[:300]
     sample = [m for m in mols if m.id in set(test_ids)]

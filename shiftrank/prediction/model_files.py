@@ -13,12 +13,12 @@ from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 
-import joblib
 import numpy as np
 
 from .environment import feature_names
 from .model import ShiftModel
 from .sphere_tables import SphereTables
+from .trees import Forest
 
 
 class ModelFileError(RuntimeError):
@@ -65,8 +65,29 @@ def verified_path(name: str, manifest: dict, directory: Path) -> Path:
     return path
 
 
-#: Model files of each nucleus: sphere tables (numpy, no pickle) and the boosted models (joblib).
-FILES = {"13C": ("c13_tables.npz", "c13_boost.joblib"), "1H": ("h1_tables.npz", "h1_boost.joblib")}
+#: Model files of each nucleus: sphere tables and the boosted trees, both plain numpy arrays (no pickle).
+FILES = {"13C": ("c13_tables.npz", "c13_trees.npz"), "1H": ("h1_tables.npz", "h1_trees.npz")}
+
+
+def boost_arrays(model: ShiftModel) -> dict[str, np.ndarray]:
+    """The boosted parts of ``model`` as named arrays: members ``m0_…``, ``m1_…``, the error model ``sigma_…``."""
+    out = {}
+    for i, member in enumerate(model.regressors):
+        out.update(Forest.of(member).to_arrays(f"m{i}_"))
+    out.update(Forest.of(model.sigma_regressor).to_arrays("sigma_"))
+    out["sigma_scale_floor"] = np.array([model.sigma_scale, model.sigma_floor])
+    return out
+
+
+def _boost_from_arrays(z) -> tuple[list[Forest], Forest, float, float]:
+    names = set(z.files)
+    members = []
+    while f"m{len(members)}_scalars" in names:
+        members.append(Forest.from_arrays(z, f"m{len(members)}_"))
+    if not members:
+        raise ValueError("no boosted member in the file")
+    scale, floor = z["sigma_scale_floor"]
+    return members, Forest.from_arrays(z, "sigma_"), float(scale), float(floor)
 
 
 def nucleus_entry(manifest: dict, nucleus: str) -> dict:
@@ -93,9 +114,12 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
     if entry.get("feature_names") != feature_names(nucleus):
         raise ModelFileError(f"{d}: the {nucleus} model was trained with a different atom-environment feature set than "
                              "this version of shiftrank computes; retrain with training/train_shifts.py")
-    parts = joblib.load(boost_path)  # hash verified above: our own file
-    return ShiftModel(tables, parts["regressor"], parts["sigma_regressor"], parts["sigma_scale"], parts["sigma_floor"],
-                      nucleus)
+    try:
+        with np.load(boost_path, allow_pickle=False) as z:
+            members, sigma, scale, floor = _boost_from_arrays(z)
+    except (ValueError, KeyError, OSError) as exc:
+        raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
+    return ShiftModel(tables, members, sigma, scale, floor, nucleus, remember_rows=True)
 
 
 @lru_cache(maxsize=None)

@@ -1,0 +1,82 @@
+"""The flat-array tree evaluator against scikit-learn's own HistGradientBoostingRegressor.predict
+(the reference library): same numbers, bit for bit, on data with missing values; and a damaged tree
+file is refused instead of walked."""
+from __future__ import annotations
+
+import numpy as np
+import pytest
+from sklearn.ensemble import HistGradientBoostingRegressor
+
+from shiftrank.prediction.model_files import default_model
+from shiftrank.prediction.trees import Forest
+
+
+@pytest.fixture(scope="module")
+def fitted():
+    rng = np.random.default_rng(3)
+    X = rng.normal(size=(3000, 12))
+    X[rng.random(X.shape) < 0.05] = np.nan          # missing values take their learned side
+    y = np.nan_to_num(X[:, 0]) * 3 + np.sin(np.nan_to_num(X[:, 1])) + rng.normal(scale=0.1, size=3000)
+    reg = HistGradientBoostingRegressor(max_iter=60, max_leaf_nodes=31, random_state=0).fit(X, y)
+    Xt = rng.normal(size=(5000, 12))
+    Xt[rng.random(Xt.shape) < 0.05] = np.nan
+    return reg, Xt
+
+
+def test_forest_equals_sklearn_bit_for_bit(fitted):
+    reg, Xt = fitted
+    forest = Forest.of(reg)
+    assert np.array_equal(forest.predict(Xt), reg.predict(Xt))
+    # row-major input and a round trip through the stored arrays give the same numbers
+    again = Forest.from_arrays(forest.to_arrays("m0_"), "m0_")
+    assert np.array_equal(again.predict(np.ascontiguousarray(Xt)), reg.predict(Xt))
+
+
+def test_damaged_arrays_are_refused(fitted):
+    reg, _ = fitted
+    arrays = Forest.of(reg).to_arrays("m0_")
+    inner = np.flatnonzero(~arrays["m0_leaf"])[0]
+    arrays["m0_left"] = arrays["m0_left"].copy()
+    arrays["m0_left"][inner] = 0                      # a child pointing back at the root: an endless walk
+    with pytest.raises(ValueError, match="inconsistent"):
+        Forest.from_arrays(arrays, "m0_")
+
+
+def test_wrong_width_is_refused(fitted):
+    reg, Xt = fitted
+    with pytest.raises(ValueError, match="12 features"):
+        Forest.of(reg).predict(Xt[:, :5])
+
+
+def test_shipped_models_are_flat_forests():
+    for nucleus in ("13C", "1H"):
+        m = default_model(nucleus)
+        assert all(isinstance(r, Forest) for r in m.regressors) and isinstance(m.sigma_regressor, Forest)
+        assert len(m.regressors) == 2
+
+
+def test_remembered_rows_give_the_same_numbers_and_new_members_forget_them():
+    """A loaded model predicts each design row once per process; the remembered values must be the
+    very numbers a fresh prediction gives, and replacing the members must drop them."""
+    from shiftrank.prediction.environment import environments
+    from shiftrank.prediction.model import ShiftModel
+    from rdkit import Chem
+
+    m = default_model("13C")
+    fresh = ShiftModel(m.tables, m.regressors, m.sigma_regressor, m.sigma_scale, m.sigma_floor, "13C")
+    envs = [environments(Chem.MolFromSmiles(s), None, "13C") for s in ("Cc1ccc(Cl)cc1O", "Cc1ccc(O)cc1Cl")]
+    first = m.predict_env_arrays(envs)
+    again = m.predict_env_arrays(envs[::-1])            # now taken from memory, in another order
+    ref = fresh.predict_env_arrays(envs[::-1])
+    for a, b in zip(again, ref):
+        assert np.array_equal(a, b)
+    n = len(envs[0].centres)
+    assert np.array_equal(first[0][:n], again[0][-n:])
+    copy = ShiftModel(m.tables, m.regressors, m.sigma_regressor, m.sigma_scale, m.sigma_floor, "13C",
+                      remember_rows=True)
+    copy.predict_env_arrays(envs)
+    assert copy._memo
+    copy.regressor = m.regressors[:1]                   # one member only: other numbers
+    assert not copy._memo
+    one = copy.predict_env_arrays(envs)[0]
+    assert not np.array_equal(one, first[0])
