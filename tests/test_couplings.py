@@ -84,3 +84,24 @@ def test_printed_j_values_must_belong_to_the_splittings_the_letters_name():
     assert min(sum(fit_cost(e, "dd", (2.3, 7.3))) for e in t_ring) == 0
     # the letters fit but the J value does not: counted as an unexplained J, not a letter misfit
     assert fit_cost(o_ring[0], "d", (2.3,)) == (0, 1)
+
+
+def test_ch_next_to_a_diastereotopic_ch2_may_be_dd_or_t():
+    # Methyl 2-amino-3-phenylpropanoate's alpha-CH (own choice): its CH2 neighbour's two protons differ
+    # (stereocentre), so the alpha-H is usually printed 'dd, J = 7.8, 5.3 Hz', sometimes 't' when the two J
+    # are alike (the ABX pattern of amino-acid esters; common practice, J values from memory).
+    ex = _by_atom("COC(=O)C(N)Cc1ccccc1")
+    alpha = ex[(4,)]
+    assert fit_cost(alpha, "dd", (7.8, 5.3)) == (0, 0)
+    assert fit_cost(alpha, "t", (6.6,)) == (0, 0)
+    assert fit_cost(alpha, "q", (6.6,))[0] == 1
+    # without a stereocentre or ring the CH2 protons are alike: butanenitrile's CH3 stays a plain triplet
+    assert _by_atom("CCCC#N")[(0,)].patterns() == {(3,)}
+
+
+def test_two_nearly_equal_ring_couplings_may_print_as_a_triplet():
+    # 1-alkyl-3-hydroxypyridin-2(1H)-one's H-5 (own choice of substituent): couples to H-4 and H-6 with
+    # J ~ 7 Hz each (2-pyridone ring, from memory), printed 't, J = 7.0 Hz' in PMC6332087 (DMSO-d6)
+    ex = _by_atom("COC(=O)CCn1cccc(O)c1=O")
+    h5 = ex[(8,)]
+    assert fit_cost(h5, "t", (7.0,)) == (0, 0) and fit_cost(h5, "dd", (7.2, 6.8)) == (0, 0)

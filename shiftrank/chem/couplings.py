@@ -57,6 +57,8 @@ J_RANGES = {
     "HF-ortho": ((6.0, 11.5), False),
     "HF-meta": ((3.5, 8.5), False),
     "HP": ((3.0, 25.0), False),
+    "vicinal-pair": ((4.5, 9.0), False),     # to the two diastereotopic protons of one CH2: one J or two
+    "vicinal-ring-pair": ((2.0, 12.0), False),
     "geminal": ((10.0, 18.5), True),          # inequivalent CH2 protons (diastereotopic, ring)
     "long-range": ((0.0, 1.5), True),          # para, benzylic, allylic, W couplings
     # 13C lines split by fluorine or phosphorus, by the number of bonds between them (see carbon_multiplets)
@@ -116,7 +118,7 @@ class ExpectedMultiplet:
         if letters.startswith("("):
             letters = "s" + letters
         opt = [g for g in gs if g.optional]
-        text = ", ".join(f"{g.kind}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
+        text = ", ".join(f"{g.kind.replace('-pair', ' to a diastereotopic CH2 (one J or two)')}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
                          f"x{g.n}{' (may be unresolved)' if g.optional else ''}" for g in gs)
         if self.exchangeable:
             letters = "br s"
@@ -128,16 +130,20 @@ class ExpectedMultiplet:
 
 @lru_cache(maxsize=8192)
 def _patterns_of(groups_sig: tuple) -> frozenset[tuple[int, ...]]:
-    groups = [CouplingGroup(k, n, p) for k, n, p in groups_sig]
-    required = [g for g in groups if not g.optional]
-    optional = [g for g in groups if g.optional][:MAX_OPTIONAL]
-    out: set[tuple[int, ...]] = set()
-    for k in range(len(optional) + 1):
-        for extra in itertools.combinations(optional, k):
-            gs = required + list(extra)
-            out.add(_pattern(gs))
-            out.add(_pattern(_merge_overlapping(gs)))
-    return frozenset(out)
+    return frozenset(p for p, _ in _variants_of(groups_sig))
+
+
+def _concrete(groups: list[CouplingGroup]) -> list[list[CouplingGroup]]:
+    """The group lists a signal may show: a '-pair' group (the two diastereotopic protons of a CH2) as one
+    group of two equal couplings or as two groups of one."""
+    out: list[list[CouplingGroup]] = [[]]
+    for g in groups:
+        if g.kind.endswith("-pair"):
+            one = CouplingGroup(g.kind, 1, g.partner, g.key)
+            out = [v + w for v in out for w in ([g], [one, one])]
+        else:
+            out = [v + [g] for v in out]
+    return out
 
 
 def _letter(lines: int) -> str:
@@ -152,7 +158,8 @@ def _pattern(groups) -> tuple[int, ...]:
 
 
 def _merge_overlapping(groups) -> list[CouplingGroup]:
-    """Groups whose J ranges overlap by half or more merged into one (equal couplings look like one group)."""
+    """Groups whose J ranges overlap by half the narrower range, or by 1 Hz, merged into one (equal couplings
+    look like one group: a 'dd' with J = 7.0 and 6.8 Hz is printed as a 't')."""
     gs = sorted(groups, key=lambda g: -sum(g.j_range))
     merged: list[list[CouplingGroup]] = []
     for g in gs:
@@ -160,7 +167,7 @@ def _merge_overlapping(groups) -> list[CouplingGroup]:
             lo = max(g.j_range[0], bucket[0].j_range[0])
             hi = min(g.j_range[1], bucket[0].j_range[1])
             width = min(g.j_range[1] - g.j_range[0], bucket[0].j_range[1] - bucket[0].j_range[0])
-            if hi - lo >= 0.5 * width:
+            if hi - lo >= min(0.5 * width, 1.0):
                 bucket.append(g)
                 break
         else:
@@ -248,9 +255,9 @@ def _variants_of(groups_sig: tuple) -> tuple[tuple[tuple[int, ...], tuple], ...]
     out: set = set()
     for k in range(len(optional) + 1):
         for extra in itertools.combinations(optional, k):
-            gs = required + list(extra)
-            for v in (gs, _merge_overlapping(gs)):
-                out.add((_pattern(v), tuple(sorted(g.j_range for g in v if g.n > 0))))
+            for gs in _concrete(required + list(extra)):
+                for v in (gs, _merge_overlapping(gs)):
+                    out.add((_pattern(v), tuple(sorted(g.j_range for g in v if g.n > 0))))
     return tuple(sorted(out))
 
 
@@ -409,7 +416,12 @@ def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], 
                     add("aldehyde", nb, "H", ranks[bi])
                 else:
                     ring = R.bond_size.get(bidx, 0)
-                    add("vicinal-ring" if ring and ring <= 5 else "vicinal", nb, "H", ranks[bi])
+                    kind = "vicinal-ring" if ring and ring <= 5 else "vicinal"
+                    if nb == 2 and zb == 6 and not arom[bi] and (chiral or T.in_ring[bi]):
+                        # a diastereotopic CH2 partner: its two protons may couple with different J,
+                        # so the signal is a 'dd' as often as a 't' (see _concrete)
+                        kind += "-pair"
+                    add(kind, nb, "H", ranks[bi])
         # two bonds away: meta protons, fluorine and phosphorus
         for ci, _, _ in T.adj[bi]:
             if ci == ai:
