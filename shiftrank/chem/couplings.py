@@ -38,6 +38,8 @@ from functools import lru_cache
 
 from rdkit import Chem
 
+from .structure import symmetry_ranks
+
 #: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
 J_RANGES = {
     "vicinal": ((4.5, 9.0), False),
@@ -356,7 +358,7 @@ class _Table:
 def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
     """Expected multiplet of every proton class of ``mol`` (hydrogens implicit), ordered by first atom."""
     if ranks is None:
-        ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+        ranks = symmetry_ranks(mol)
     T = _Table(mol)
     R = _rings(mol)
     classes: dict[int, list[int]] = {}
@@ -482,7 +484,7 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
     """Expected C–F / C–P splitting of every carbon class (one to four bonds from F, one to three from P),
     in the order of ``classes`` (objects with ``atoms``); a class far from F and P is a singlet."""
     if ranks is None:
-        ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+        ranks = symmetry_ranks(mol)
     hetero = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() in (9, 15)]
     out = []
     if not hetero:

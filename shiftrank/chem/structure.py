@@ -19,7 +19,7 @@ MULTIPLICITY = {0: "C", 1: "CH", 2: "CH2", 3: "CH3", 4: "CH4"}
 
 @dataclass
 class CarbonClass:
-    """Carbons that are topologically equivalent: one expected 13C signal."""
+    """Carbons that are equivalent by symmetry: one expected 13C signal."""
 
     atoms: list[int]          # 0-based heavy-atom indices
     multiplicity: str         # C, CH, CH2, CH3 (CH4 for methane)
@@ -77,13 +77,51 @@ def element_counts(mol: Chem.Mol) -> Counter:
     return c
 
 
-def symmetry_ranks(mol: Chem.Mol) -> list[int]:
-    """Topological symmetry classes: RDKit canonical ranks without tie-breaking.
+_TETRAHEDRAL = {Chem.ChiralType.CHI_TETRAHEDRAL_CW: Chem.ChiralType.CHI_TETRAHEDRAL_CCW,
+                Chem.ChiralType.CHI_TETRAHEDRAL_CCW: Chem.ChiralType.CHI_TETRAHEDRAL_CW}
 
-    Stereochemistry is ignored, so diastereotopic groups (e.g. the two methyls
-    of an isopropyl group next to a stereocentre) count as equivalent.
+
+def symmetry_ranks(mol: Chem.Mol) -> list[int]:
+    """Symmetry classes of the atoms (one expected signal per class): RDKit canonical ranks without
+    tie-breaking.
+
+    Where the structure gives stereocentres, atoms that are alike in constitution but differ in
+    configuration are told apart (the two halves of a tetrasubstituted ring whose stereocentres
+    do not repeat by symmetry show two sets of signals); atoms exchanged by a mirror plane of an
+    achiral (meso) molecule stay together, since enantiotopic nuclei are isochronous in an achiral
+    solvent (common practice).  Atoms with no configuration of their own are never split, so the
+    two methyls of an isopropyl group next to a stereocentre still count as one class.
     """
-    return list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+    plain = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
+    tagged = [a.GetIdx() for a in mol.GetAtoms() if a.GetChiralTag() in _TETRAHEDRAL]
+    if not tagged or len(set(plain)) == len(plain):
+        return plain
+    chiral = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=True))
+    if len(set(chiral)) == len(set(plain)):
+        return plain
+    mirror = Chem.Mol(mol)
+    for i in tagged:
+        a = mirror.GetAtomWithIdx(i)
+        a.SetChiralTag(_TETRAHEDRAL[a.GetChiralTag()])
+    if Chem.MolToSmiles(mirror) == Chem.MolToSmiles(mol):
+        # achiral: atom i of the mirror image is atom i's mirror partner in the molecule itself
+        mirrored = list(Chem.CanonicalRankAtoms(mirror, breakTies=False, includeChirality=True))
+        parent = {r: r for r in chiral}
+
+        def find(r: int) -> int:
+            while parent[r] != r:
+                parent[r] = parent[parent[r]]
+                r = parent[r]
+            return r
+
+        for r, m in zip(chiral, mirrored):
+            if m in parent:
+                a, b = find(r), find(m)
+                if a != b:
+                    parent[max(a, b)] = min(a, b)
+        chiral = [find(r) for r in chiral]
+    # never merge what the constitution separates
+    return [p * (len(plain) + 1) + c for p, c in zip(plain, chiral)]
 
 
 def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[CarbonClass]:

@@ -17,6 +17,8 @@ from collections import deque
 from contextlib import contextmanager
 from typing import Iterable, Iterator
 
+import numpy as np
+
 from ..errors import InputError
 from .batch import CHUNK, rank_chunk
 
@@ -80,7 +82,9 @@ def warm_up() -> str:
 
     for n in ("13C", "1H"):
         if has_model(n):
-            default_model(n)
+            m = default_model(n)
+            # the compiled tree walk is loaded once here too, so forked workers inherit it
+            m.sigma_regressor.predict(np.zeros((1, m.sigma_regressor.n_features_in_)))
     return str(default_manifest().get("version"))
 
 
