@@ -1,6 +1,10 @@
 """Predictor benchmark on the held-out test split (InChIKey-skeleton split of ../shared/data).
 
     python benchmarks/bench_predictor.py [--data DIR] [--nucleus 13C|1H] [--accuracy-only]
+    python benchmarks/bench_predictor.py --tree-counts 100,200,300,400 [--nucleus 13C|1H]
+
+``--tree-counts``: validation-split MAE of the boosted estimate when every member keeps only its
+first N trees (what a faster, smaller model would cost), nothing else.
 
 Reports MAE overall and by atom type and molecule size, aromatic ring atoms by ring type and by
 position relative to the ring's substituents (ipso / ortho / meta / para), the 90 % interval
@@ -164,12 +168,42 @@ def accuracy(args, nucleus: str) -> None:
             print(f"  by {head}: " + ", ".join(parts))
 
 
+def tree_counts(args, counts: list[int]) -> None:
+    """Validation MAE of the members' mean with each member cut to its first N trees."""
+    from dataclasses import replace
+
+    from shiftrank.prediction.model_files import load_shift_model
+    from training.features import rows_from_assigned
+
+    model = load_shift_model(nucleus=args.nucleus)
+    mols = load_assigned(args.data, nucleus=args.nucleus)
+    split = np.array([m.split for m in mols])
+    rows = rows_from_assigned(mols, args.nucleus)
+    val = rows.subset(split[rows.mol_idx] == "val")
+    X, _ = model.design(val.feats, val.codes)
+    X = np.asfortranarray(X, dtype=np.float64)
+    sizes = [len(m.offsets) for m in model.regressors]
+    print(f"{args.nucleus}: {len(model.regressors)} members of {sizes} trees; {len(X)} validation-split rows "
+          "(1H: every heavy atom with H)")
+    model.regressors[0].predict(X[:1])   # the compiled walk loaded before timing
+    for n in counts:
+        t = time.perf_counter()
+        mu = np.mean([replace(m, offsets=m.offsets[:n]).predict(X) for m in model.regressors], axis=0)
+        dt = time.perf_counter() - t
+        print(f"  first {n:4d} trees per member: validation MAE {np.mean(np.abs(mu - val.y)):.4f}  "
+              f"({1e6 * dt / len(X):.1f} µs per row, one thread)")
+
+
 def main() -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
     ap.add_argument("--accuracy-only", action="store_true", help="skip the speed and small-molecule sections")
+    ap.add_argument("--tree-counts", default=None, help="e.g. 100,200,300,400: validation MAE with fewer trees")
     args = ap.parse_args()
+    if args.tree_counts:
+        tree_counts(args, [int(x) for x in args.tree_counts.split(",")])
+        return 0
     if args.nucleus == "1H" or args.accuracy_only:
         accuracy(args, args.nucleus)
         return 0
