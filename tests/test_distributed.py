@@ -52,6 +52,22 @@ def test_dask_output_is_byte_identical_to_serial(tmp_path, client, monkeypatch):
     assert invalid["ranking"][-1]["smiles"] == "C1CC(" and "error" in invalid["ranking"][-1]
 
 
+@pytest.mark.parametrize("window,ahead", [(1, 1), (2, 1), (4, 64)])
+def test_refilling_per_worker_keeps_input_order(tmp_path, client, monkeypatch, window, ahead):
+    """Workers are refilled as their own chunks finish and finished lines wait for earlier ones; with the
+    smallest look-ahead nothing may stall or be lost, and the order must still be the serial one."""
+    from shiftrank.score import batch, distributed as dist
+
+    path = _batch(tmp_path)
+    serial = io.StringIO()
+    batch.run_batch(path, serial)
+    monkeypatch.setattr(dist, "WINDOW_PER_WORKER", window)
+    monkeypatch.setattr(dist, "AHEAD_CHUNKS", ahead)
+    items = batch.read_cases(path)
+    lines = [line for chunk in dist.stream_on(client, items, size=1) for line in chunk]
+    assert "\n".join(lines) + "\n" == serial.getvalue()
+
+
 def test_rank_many_with_a_client_returns_the_same_results(client):
     from shiftrank.score.ranking import rank_many
 

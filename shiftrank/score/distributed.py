@@ -24,6 +24,8 @@ from .batch import CHUNK, rank_chunk
 
 RETRIES = 3
 WINDOW_PER_WORKER = 4
+#: chunks' worth of finished lines that may wait for an earlier chunk before no further chunk is started
+AHEAD_CHUNKS = 64
 
 
 def _client(spec: str):
@@ -139,27 +141,52 @@ def plan(items: list, n_workers: int, size: int) -> Iterator[tuple[int, list[int
 
 def stream_on(client, items: list, detail: bool = False, size: int = CHUNK) -> Iterator[list[str]]:
     """Output lines of ``items`` ((line number, case or error), as read), in input order, computed on
-    ``client``'s cluster; each yielded list continues where the previous one ended."""
+    ``client``'s cluster; each yielded list continues where the previous one ended.
+
+    Each worker keeps up to :data:`WINDOW_PER_WORKER` of its planned chunks in flight and is refilled
+    as soon as one of its own chunks finishes, so a fast worker does not wait for a slow one's chunk
+    to be collected.  Finished lines wait for earlier ones before they are written; while more than
+    :data:`AHEAD_CHUNKS` chunks' worth wait, no further chunk is started (memory stays bounded)."""
+    from dask.distributed import as_completed
+
     workers = sorted(client.scheduler_info().get("workers", {}))
     n_workers = max(1, len(workers))
-    window = WINDOW_PER_WORKER * n_workers
-    pending: deque = deque()
+    chunks = plan(items, n_workers, size)
+    queued: list[deque] = [deque() for _ in range(n_workers)]   # planned chunks not yet submitted
+    in_flight = [0] * n_workers
+    owner: dict = {}
     done: dict[int, str] = {}
     nxt = 0
+    running = as_completed()
 
-    def submit(w: int, pos: list[int]):
-        # a preference, not a requirement: a worker that died has its chunks run elsewhere
-        where = {"workers": [workers[w]], "allow_other_workers": True} if len(workers) > 1 else {}
-        fut = client.submit(rank_chunk, [items[i] for i in pos], detail, pure=False, retries=RETRIES, **where)
-        pending.append((pos, fut))
+    def next_for(w: int):
+        while not queued[w]:
+            item = next(chunks, None)
+            if item is None:
+                return None
+            queued[item[0]].append(item[1])
+        return queued[w].popleft()
 
-    chunks = plan(items, n_workers, size)
-    for w, pos in chunks:
-        submit(w, pos)
-        if len(pending) >= window:
-            break
-    while pending:
-        pos, fut = pending.popleft()
+    def top_up(w: int) -> None:
+        # the look-ahead bound applies only while something runs: the chunk holding the next line to
+        # write is always the first of its worker's queue, so it is started when nothing else is
+        while in_flight[w] < WINDOW_PER_WORKER and (running.is_empty() or -(-len(done) // size) < AHEAD_CHUNKS):
+            pos = next_for(w)
+            if pos is None:
+                return
+            # a preference, not a requirement: a worker that died has its chunks run elsewhere
+            where = {"workers": [workers[w]], "allow_other_workers": True} if len(workers) > 1 else {}
+            fut = client.submit(rank_chunk, [items[i] for i in pos], detail, pure=False, retries=RETRIES, **where)
+            owner[fut.key] = (w, pos)
+            in_flight[w] += 1
+            running.add(fut)
+
+    for w in range(n_workers):
+        top_up(w)
+    while not running.is_empty():
+        fut = next(running)
+        w, pos = owner.pop(fut.key)
+        in_flight[w] -= 1
         done.update(zip(pos, fut.result()))
         out = []
         while nxt in done:
@@ -167,9 +194,8 @@ def stream_on(client, items: list, detail: bool = False, size: int = CHUNK) -> I
             nxt += 1
         if out:
             yield out
-        following = next(chunks, None)
-        if following is not None:
-            submit(*following)
+        for k in [w] + [x for x in range(n_workers) if x != w]:
+            top_up(k)
 
 
 def dask_stream(items: list, detail: bool, spec: str) -> Iterable[list[str]]:
