@@ -54,29 +54,3 @@ def test_shipped_models_are_flat_forests():
         assert all(isinstance(r, Forest) for r in m.regressors) and isinstance(m.sigma_regressor, Forest)
         assert len(m.regressors) == {"13C": 3, "1H": 2}[nucleus]   # members averaged (model set 1.4.0)
 
-
-def test_remembered_rows_give_the_same_numbers_and_new_members_forget_them():
-    """A loaded model predicts each design row once per process; the remembered values must be the
-    very numbers a fresh prediction gives, and replacing the members must drop them."""
-    from shiftrank.prediction.environment import environments
-    from shiftrank.prediction.model import ShiftModel
-    from rdkit import Chem
-
-    m = default_model("13C")
-    fresh = ShiftModel(m.tables, m.regressors, m.sigma_regressor, m.sigma_scale, m.sigma_floor, "13C")
-    envs = [environments(Chem.MolFromSmiles(s), None, "13C") for s in ("Cc1ccc(Cl)cc1O", "Cc1ccc(O)cc1Cl")]
-    first = m.predict_env_arrays(envs)
-    again = m.predict_env_arrays(envs[::-1])            # now taken from memory, in another order
-    ref = fresh.predict_env_arrays(envs[::-1])
-    for a, b in zip(again, ref):
-        assert np.array_equal(a, b)
-    n = len(envs[0].centres)
-    assert np.array_equal(first[0][:n], again[0][-n:])
-    copy = ShiftModel(m.tables, m.regressors, m.sigma_regressor, m.sigma_scale, m.sigma_floor, "13C",
-                      remember_rows=True)
-    copy.predict_env_arrays(envs)
-    assert copy._memo
-    copy.regressor = m.regressors[:1]                   # one member only: other numbers
-    assert not copy._memo
-    one = copy.predict_env_arrays(envs)[0]
-    assert not np.array_equal(one, first[0])

@@ -12,7 +12,6 @@ protons on each heavy atom.  The model combines two things learned from NMRShift
 """
 from __future__ import annotations
 
-import hashlib
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -72,35 +71,13 @@ class ShiftModel:
     """
 
     def __init__(self, tables: SphereTables, regressor, sigma_regressor, sigma_scale: float = 1.0,
-                 sigma_floor: float = 0.3, nucleus: str = "13C", remember_rows: bool = False):
+                 sigma_floor: float = 0.3, nucleus: str = "13C"):
         self.nucleus = nucleus
         self.tables = tables
-        self._regressor = regressor
-        self._sigma_regressor = sigma_regressor
+        self.regressor = regressor
+        self.sigma_regressor = sigma_regressor
         self.sigma_scale = sigma_scale
         self.sigma_floor = sigma_floor
-        # design row digest -> (mu, raw sigma); only for a model that no longer changes (loaded from files)
-        self._memo: dict[bytes, tuple[float, float]] | None = {} if remember_rows else None
-
-    @property
-    def regressor(self):
-        return self._regressor
-
-    @regressor.setter
-    def regressor(self, value) -> None:   # new members: remembered rows no longer hold
-        self._regressor = value
-        if self._memo is not None:
-            self._memo.clear()
-
-    @property
-    def sigma_regressor(self):
-        return self._sigma_regressor
-
-    @sigma_regressor.setter
-    def sigma_regressor(self, value) -> None:
-        self._sigma_regressor = value
-        if self._memo is not None:
-            self._memo.clear()
 
     @property
     def regressors(self) -> list:
@@ -135,7 +112,7 @@ class ShiftModel:
         # identical rows (symmetry-equivalent carbons, shared parts of isomers) are predicted once
         rows = np.ascontiguousarray(X).view(np.dtype((np.void, X.dtype.itemsize * X.shape[1]))).ravel()
         _, first, back = np.unique(rows, return_index=True, return_inverse=True)
-        mu_u, sigma_u = self._predict_rows(X[first], rows[first])
+        mu_u, sigma_u = self._trees(X[first])
         mu = mu_u[back]
         sigma = np.maximum(sigma_u[back] * self.sigma_scale, self.sigma_floor)
         _, radius = widest_match(stats)
@@ -151,35 +128,12 @@ class ShiftModel:
                 radius = np.where(whole, R + 1, radius)  # R + 1 marks "whole molecule"
         return mu, sigma, radius, count
 
-    #: rows remembered across calls (a batch ranks its cases chunk by chunk; isomers share environments)
-    MEMO_ROWS = 500_000
-
     def _trees(self, X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Boosted estimate and raw error estimate of design rows ``X``."""
         # column-major input: the tree walk reads one feature across many rows, 2-3x faster than row-major
         Xu = np.asfortranarray(X, dtype=np.float64)
         mu = self.predict_mu(Xu)
         return mu, self.sigma_regressor.predict(np.asfortranarray(np.hstack([Xu, mu[:, None]])))
-
-    def _predict_rows(self, X: np.ndarray, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """Boosted estimate and raw error estimate of distinct design rows ``X`` (``rows``: the same rows as
-        one void item each).  A model loaded from files predicts each row once per process: later calls
-        take the remembered values (the same numbers)."""
-        memo = self._memo
-        if memo is None:
-            return self._trees(X)
-        keys = [hashlib.blake2b(r.tobytes(), digest_size=16).digest() for r in rows]
-        if len(memo) + len(keys) > self.MEMO_ROWS:
-            memo.clear()
-        todo = [i for i, k in enumerate(keys) if k not in memo]
-        if todo:
-            mu_t, sigma_t = self._trees(X[todo])
-            for i, m, s in zip(todo, mu_t.tolist(), sigma_t.tolist()):
-                memo[keys[i]] = (m, s)
-        pairs = [memo[k] for k in keys] if len(todo) < len(keys) else None
-        if pairs is None:
-            return mu_t, sigma_t
-        out = np.array(pairs, dtype=np.float64).reshape(len(keys), 2)
-        return out[:, 0], out[:, 1]
 
     def predict_env_arrays(self, envs: list[MolEnvironments]):
         """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""

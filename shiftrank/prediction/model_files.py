@@ -119,7 +119,7 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
             members, sigma, scale, floor = _boost_from_arrays(z)
     except (ValueError, KeyError, OSError) as exc:
         raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
-    return ShiftModel(tables, members, sigma, scale, floor, nucleus, remember_rows=True)
+    return ShiftModel(tables, members, sigma, scale, floor, nucleus)
 
 
 @lru_cache(maxsize=None)
