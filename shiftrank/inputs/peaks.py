@@ -169,14 +169,19 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
     return Peak(s, m, i, 1, lineno, lo=lo, hi=hi, j=js)
 
 
+def _token_lines(text: str):
+    """(line number, line, fields) of each line that is not empty once a '#' comment is cut off; fields
+    are separated by spaces, tabs, commas or semicolons."""
+    for lineno, raw in enumerate(text.splitlines(), 1):
+        line = raw.split("#", 1)[0].strip()
+        if line:
+            yield lineno, line, [t for t in re.split(r"[\s,;]+", line) if t]
+
+
 def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
     """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H)."""
     out = []
-    for lineno, raw in enumerate(text.splitlines(), 1):
-        line = raw.split("#", 1)[0].strip()
-        if not line:
-            continue
-        toks = [t for t in re.split(r"[\s,;]+", line) if t]
+    for lineno, line, toks in _token_lines(text):
         where = f"{src} line {lineno}"
         if not toks:
             raise InputError(f"{where}: no shift value in '{line}'")
@@ -467,11 +472,7 @@ def read_hsqc(path: str | Path) -> HsqcList:
         except json.JSONDecodeError as exc:
             raise InputError(f"{p.name}: invalid JSON ({exc.msg}, line {exc.lineno})") from None
     pairs = []
-    for n, line in enumerate(text.splitlines(), 1):
-        line = line.split("#", 1)[0].strip()
-        if not line:
-            continue
-        fields = [f for f in re.split(r"[\s,;]+", line) if f]
+    for n, line, fields in _token_lines(text):
         try:
             nums = [float(f) for f in fields[:2]]
         except ValueError:
