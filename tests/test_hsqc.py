@@ -32,6 +32,10 @@ def test_cross_peaks_are_read_from_pairs_objects_and_files(tmp_path):
         hsqc_list([[21.0, 2.0], [30.0, 42]])
     with pytest.raises(InputError, match="entry 1: δC and δH must be numbers"):
         hsqc_list([["x", 2.0]])
+    j = tmp_path / "hsqc.json"
+    j.write_text('[[21.04, 2.05],\n [60.49 4.12]]\n')   # the same wording as a peak list's JSON error
+    with pytest.raises(InputError, match=r"hsqc.json line 2: invalid JSON \("):
+        read_hsqc(j)
 
 
 def test_two_protons_at_one_carbon_shift_are_one_carbon():

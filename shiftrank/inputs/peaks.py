@@ -470,7 +470,7 @@ def read_hsqc(path: str | Path) -> HsqcList:
         try:
             return hsqc_list(json.loads(text), p.name)
         except json.JSONDecodeError as exc:
-            raise InputError(f"{p.name}: invalid JSON ({exc.msg}, line {exc.lineno})") from None
+            raise InputError(f"{p.name} line {exc.lineno}: invalid JSON ({exc.msg})") from None
     pairs = []
     for n, line, fields in _token_lines(text):
         try:
