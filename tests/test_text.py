@@ -108,6 +108,24 @@ def test_the_missing_integral_stays_missing_and_j_does_not_eat_it():
     assert h.peaks[-1].integral is None
 
 
+def test_numbers_of_an_assignment_note_after_the_j_list_are_not_couplings():
+    # PMC6268566 (NMRExtractor dev file): "7.20 (d, 2H, J = 7.9 Hz, CH3-Ph-3,5)" is one doublet with one J;
+    # the '5' of the ring positions once became a second coupling constant
+    h = read_nmr_text("1H-NMR (CDCl3) δ 7.20 (d, 2H, J = 7.9 Hz, CH3-Ph-3,5), 6.90 (d, 1H, J = 6.8 Hz, H-6)").section("1H")
+    assert [p.j for p in h.peaks] == [(7.9,), (6.8,)] and "3, 5" in h.peaks[0].note
+    # a list continued after 'Hz' with its own unit still is one list
+    assert read_nmr_text("1H NMR δ 6.80 (dd, J = 8.4 Hz, 2.0 Hz, 1H)").section("1H").peaks[0].j == (8.4, 2.0)
+
+
+def test_a_proton_count_printed_without_its_h_after_the_letters():
+    # PMC6767028 (NMRExtractor dev file): "(t, 2, J = 7.1 Hz, CH2Cl)"; PMC2839550: "6.1 (2), 5.6 (1)" are
+    # atom labels, not integrals (no multiplicity letters before them)
+    h = read_nmr_text("1H NMR (600 MHz, (CD3)2CO) δ: 6.76 (d, 1, J = 8.2 Hz, H-6), 3.70 (t, 2, J = 7.1 Hz, CH2Cl)")
+    assert [(p.integral, p.j) for p in h.section("1H").peaks] == [(1.0, (8.2,)), (2.0, (7.1,))]
+    labels = read_nmr_text("1H NMR (CH3OH-d4): δ = 6.1 (2), 5.6 (1), 1.95 (12) ppm").section("1H")
+    assert [p.integral for p in labels.peaks] == [None, None, None]
+
+
 def test_peaklists_from_text_set_solvent_aside():
     # the CDCl3 triplet printed among the peaks (PMC10216335's 13C line)
     t = read_nmr_text("13C-NMR (CDCl3, 400 MHz) Î´ 24.2, 25.8, 27.5, 40.9, 54.4, 57.6, 76.8, 77.2, 77.5")

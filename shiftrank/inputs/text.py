@@ -252,10 +252,17 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
     js: list[float] = []
     for m in _JVAL.finditer(d):
         js.extend(float(v) for v in re.findall(_NUM, m.group("vals")))
-    d = _JVAL.sub(" ", d)
+    # the J list leaves a mark: open when it did not end in 'Hz' (a bare number after it may continue it)
+    d = _JVAL.sub(lambda m: " \x00closed " if m.group(0).rstrip().lower().endswith("hz") else " \x00open ", d)
     leftovers = []
+    open_list = False
     for part in _split_top(d, ",;"):
         w = part.strip().strip(".").strip()
+        if "\x00" in w:
+            open_list = "\x00open" in w
+            w = w.replace("\x00open", " ").replace("\x00closed", " ").strip()
+            if not w:
+                continue
         if not w:
             continue
         low = re.sub(r"\s+", " ", w.lower())
@@ -278,11 +285,21 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if nucleus == "13C" and compact in _DEPT and peak.dept is None:
             peak.dept = _DEPT[compact]
             continue
-        if re.fullmatch(rf"{_NUM}(\s*Hz)?", w) and (js or "hz" in low):
-            js.append(float(re.match(_NUM, w).group(0)))  # a J list continued after a comma: "J = 8.4, 2.0 Hz"
+        if re.fullmatch(rf"{_NUM}(\s*Hz)?", w) and (open_list or "hz" in low):
+            # a J list continued after a comma ("J = 8.4 Hz, 2.0 Hz"); a bare number after a list closed by
+            # 'Hz' is part of an assignment note ("CH3-Ph-3,5"), not a coupling
+            js.append(float(re.match(_NUM, w).group(0)))
+            open_list = "hz" not in low
             continue
+        open_list = False
         if re.fullmatch(rf"{_NUM}\s*,?\s*{_NUM}?\s*Hz", w, re.I):
             js.extend(float(v) for v in re.findall(_NUM, w))
+            continue
+        if (nucleus == "1H" and peak.multiplicity is not None and peak.integral is None and not leftovers
+                and re.fullmatch(r"[1-9]\d?", w)):
+            # "(t, 2, J = 7.1 Hz, CH2Cl)": the proton count without its 'H', after the letters; a bare
+            # number alone ("6.1 (2)") is an atom label
+            peak.integral = float(w)
             continue
         leftovers.append(w)
     peak.j = tuple(js)
