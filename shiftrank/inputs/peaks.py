@@ -107,15 +107,24 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
 
     >>> [normalise_1h_multiplicity(x) for x in ("br.s", "quint", "dd", "app t", "Multiplet", "bs", "CH3")]
     ['br s', 'p', 'dd', 't', 'm', 'br s', None]
+    >>> [normalise_1h_multiplicity(x) for x in ("d of d", "ps t", "s (br)", "dd~t")]
+    ['dd', 't', 'br s', None]
     """
     if text is None:
         return None
     c = re.sub(r"[\s.\-]", "", str(text).lower())
     for word in ("apparent", "app", "pseudo"):
         c = c.replace(word, "")
+    if c.startswith("ps") and _COMBO.match(c[2:]):   # 'ps t': pseudo-triplet
+        c = c[2:]
     if c in _MULT_WORDS:
         return _MULT_WORDS[c]
+    if re.fullmatch(r"(?:[dtq]of)+[dtq]", c):          # 'd of d', 'd of t'
+        c = c.replace("of", "")
     br = False
+    if c.endswith("(br)") or c.endswith("(broad)"):  # 's (br)'
+        inner = normalise_1h_multiplicity(c[:c.index("(")])
+        return None if inner is None else inner if inner.startswith("br") else "br " + inner
     for pre in ("broad", "br", "b"):
         if c.startswith(pre) and len(c) > len(pre) and _COMBO.match(c[len(pre):]):
             c, br = c[len(pre):], True
