@@ -53,3 +53,32 @@ def test_two_different_protons_in_one_clean_doublet_cost_more_than_in_an_m():
     # one class of two equivalent protons in the doublet is not a coincidence
     pair = [SignalClass([0, 1], "d", 7.48, 0.1, units=2)]
     assert assign(pair, [ObservedPeak(7.48, "d", capacity=2)], costs, [[0.0]]).parts["overlap"] == 0.0
+
+
+# PMC9146377: lines picked by a program, printed with J values no H–H coupling reaches (26.3, 33.7 Hz)
+PICKED_1H = ("1H NMR (400 MHz, CDCl3) δ 8.00–7.80 (m, 1H), 7.57 (ddd, J =26.3, 23.6, 7.9 Hz, 2H), "
+             "7.36 (ddd, J = 33.7, 17.4, 6.9 Hz, 1H), 7.06 (dd, J = 16.0, 8.0 Hz, 1H)")
+
+
+def test_impossible_hh_couplings_set_a_peak_aside_unless_f_or_p_could_explain_them():
+    from rdkit import Chem
+
+    from shiftrank.score.evidence import EVIDENCE, MAX_HH_J
+    from shiftrank.score.ranking import case_peaklists, observed_peaks
+
+    assert MAX_HH_J > 18.5   # geminal and trans-alkene H–H couplings reach about 18.5 Hz (common practice)
+    peaks = observed_peaks(case_peaklists({"text": PICKED_1H})[0]["1H"])
+    ev = EVIDENCE["1H"]
+
+    def misfit(smiles):
+        mol = Chem.MolFromSmiles(smiles)
+        n = mol.GetNumAtoms()
+        pr = ev.prepare(mol, list(range(n)), {a: 7.5 for a in range(n)}, {a: 0.3 for a in range(n)}, peaks)
+        return (pr.bad_pattern + pr.bad_j).sum(axis=0)
+
+    plain = misfit("Ic1cccc(-c2cnc[nH]2)c1")           # the article's aryl-imidazole part, no F or P
+    shifts = [p.shift for p in peaks]
+    odd = [shifts.index(7.36), shifts.index(7.57)]
+    assert plain[odd].sum() == 0 and plain[shifts.index(7.06)] > 0   # 33.7/26.3 Hz lines not compared; 16/8 Hz is
+    fluoro = misfit("Fc1cccc(-c2cnc[nH]2)c1")          # an aryl fluoride could split by that much: compared
+    assert fluoro[odd].sum() > 0

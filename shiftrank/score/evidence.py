@@ -327,6 +327,12 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
     return out, notes
 
 
+#: Hz: no H–H coupling exceeds this (geminal and trans-alkene couplings reach about 18.5 Hz, common
+#: practice); a larger printed J in a compound without F or P comes from lines picked by a program,
+#: and that peak's letters and J values are not compared with the candidate's multiplets
+MAX_HH_J = 19.5
+
+
 class ProtonEvidence(_Evidence):
     """1H: proton classes with their counts and expected multiplets; integrals as units when printed."""
 
@@ -382,9 +388,15 @@ class ProtonEvidence(_Evidence):
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
         bad_p = np.zeros((len(classes), len(peaks)))
         bad_j = np.zeros((len(classes), len(peaks)))
+        hetero = None
         for j, p in enumerate(peaks):
             if p.multiplicity is None and not p.j:
                 continue
+            if p.j and max(p.j) > MAX_HH_J:
+                if hetero is None:
+                    hetero = any(a.GetAtomicNum() in (9, 15) for a in mol.GetAtoms())
+                if not hetero:   # no H–H coupling is this large: machine-picked lines, letters and J set aside
+                    continue
             for i, c in enumerate(classes):
                 bad_p[i, j], bad_j[i, j] = fit_cost(c.expected, p.multiplicity, p.j)
         return Prepared(classes, peaks, bad_p, bad_j)
