@@ -52,3 +52,39 @@ def test_far_label_with_a_close_rival_is_refused():
     got = _run("OCCCCOC", [(45.0, "CH2"), (75.0, "CH2"), (25.0, "CH2"), (26.0, "CH2"), (58.0, "CH3")],
                {1: 60.0, 2: 25.5, 3: 26.5, 4: 30.0, 6: 58.2})
     assert 4 not in got and got[2] == 25.0
+
+
+# --- labels from printed paragraphs (training/literature_labels.py) ---------------------------------
+from types import SimpleNamespace  # noqa: E402
+
+from shiftrank.score.matching import MatchCosts, ObservedPeak, SignalClass, assign  # noqa: E402
+from training.literature_labels import _labels  # noqa: E402
+
+
+def _printed(classes, peaks, nucleus):
+    a = assign(classes, peaks, MatchCosts())
+    return sorted((tuple(atoms), v) for atoms, v in _labels(SimpleNamespace(classes=classes, peaks=peaks, assignment=a),
+                                                            nucleus))
+
+
+def test_printed_values_label_clearly_separated_classes():
+    # 4-bromoanisole in CDCl3, 1H (from memory): 7.37 (d, 2H), 6.78 (d, 2H), 3.77 (s, 3H);
+    # constructed predictions a little off, far apart from each other: every class takes its value
+    cls = [SignalClass([2, 6], "d", 7.30, 0.15), SignalClass([3, 5], "d", 6.85, 0.15), SignalClass([8], "s", 3.80, 0.1)]
+    peaks = [ObservedPeak(7.37, "d"), ObservedPeak(6.78, "d"), ObservedPeak(3.77, "s")]
+    assert _printed(cls, peaks, "1H") == [((2, 6), 7.37), ((3, 5), 6.78), ((8,), 3.77)]
+
+
+def test_two_classes_predicted_close_together_give_no_label():
+    # the same values, with the two ring classes predicted 0.05 ppm apart: which is which is a guess
+    cls = [SignalClass([2, 6], "d", 7.10, 0.3), SignalClass([3, 5], "d", 7.05, 0.3), SignalClass([8], "s", 3.80, 0.1)]
+    peaks = [ObservedPeak(7.37, "d"), ObservedPeak(6.78, "d"), ObservedPeak(3.77, "s")]
+    assert _printed(cls, peaks, "1H") == [((8,), 3.77)]
+
+
+def test_far_values_and_shared_13c_values_give_no_label():
+    # constructed: the methyl printed 5 sigma from its prediction; two carbons on one printed 13C value
+    cls = [SignalClass([8], "s", 3.80, 0.05), SignalClass([2, 6], "d", 7.37, 0.15)]
+    assert _printed(cls, [ObservedPeak(4.05, "s"), ObservedPeak(7.37, "d")], "1H") == [((2, 6), 7.37)]
+    c13 = [SignalClass([0], "CH", 128.9, 1.0), SignalClass([1], "CH", 129.1, 1.0), SignalClass([2], "C", 160.0, 1.0)]
+    assert _printed(c13, [ObservedPeak(129.0), ObservedPeak(159.5)], "13C") == [((2,), 159.5)]

@@ -36,6 +36,7 @@ def main(argv=None) -> int:
     ap.add_argument("--seed", type=int, default=7)
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=T.REPO / "models")
+    ap.add_argument("--literature-weight", type=float, default=T.LITERATURE_WEIGHT)
     args = ap.parse_args(argv)
     n = args.nucleus
     t0 = time.time()
@@ -45,6 +46,7 @@ def main(argv=None) -> int:
     rows = rows_from_assigned(mols, n)
     rsplit = split[rows.mol_idx]
     train, val, test = (rows.subset(rsplit == s) for s in ("train", "val", "test"))
+    train = RowSet.concat([train, T.literature_training_rows(args.data, n, args.literature_weight, {})])
     ids = {m.id for m in mols}
     peakmols = [p for p in load_peaklists(args.data, LoadReport(), n) if p.split == "train" and p.id not in ids]
     st: dict = {}

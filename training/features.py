@@ -28,7 +28,7 @@ class RowSet:
 
     @classmethod
     def concat(cls, parts):
-        parts = [p for p in parts if len(p)]
+        parts = [p for p in parts if p is not None and len(p)]   # None: no rows of that kind
         return cls(*(np.concatenate([getattr(p, k) for p in parts]) for k in
                      ("codes", "feats", "y", "mol_idx", "atom_idx", "fold", "weight")))
 

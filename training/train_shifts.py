@@ -47,6 +47,7 @@ SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
 VERSION = {"13C": "1.4.0", "1H": "1.1.0"}
 MODELS_VERSION = "1.4.0"  # the shipped set of models (both nuclei and the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
+LITERATURE_WEIGHT = 0.0  # labels from printed paragraphs (training.literature_labels); 0: not used
 
 
 def log(msg: str) -> None:
@@ -213,6 +214,19 @@ def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nuc
     man_path.write_text(json.dumps(man, indent=1))
 
 
+def literature_training_rows(data: Path, nucleus: str, weight: float, report: dict) -> RowSet | None:
+    """Labels from the dev half's printed paragraphs (:mod:`training.literature_labels`), or None."""
+    if weight <= 0:
+        return None
+    from training.literature_labels import literature_rows
+
+    st: dict = {"weight": weight}
+    rows = literature_rows(data, nucleus, weight=weight, stats=st)
+    report["literature_labels"] = st
+    log(f"{nucleus}: labels from printed paragraphs {st}")
+    return rows
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
@@ -220,6 +234,8 @@ def main(argv=None) -> int:
     ap.add_argument("--out", type=Path, default=REPO / "models")
     ap.add_argument("--rounds", type=int, default=3)
     ap.add_argument("--pseudo-weight", type=float, default=1.0)
+    ap.add_argument("--literature-weight", type=float, default=LITERATURE_WEIGHT,
+                    help="weight of the labels read from the dev half's printed paragraphs (0: none)")
     args = ap.parse_args(argv)
     nucleus = args.nucleus
     np.random.seed(SEED)
@@ -235,6 +251,8 @@ def main(argv=None) -> int:
     report["rows"] = {"train": len(train), "val": len(val), "test": len(test)}
     log(f"{nucleus}: assigned rows train/val/test {len(train)}/{len(val)}/{len(test)}")
 
+    lit = literature_training_rows(args.data, nucleus, args.literature_weight, report)
+    train = RowSet.concat([train, lit])
     fit_report: dict = {}
     model, train_clean = fit_shift_model(train, fit_report, nucleus)
     fit_sigma(model, val)
