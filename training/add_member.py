@@ -21,12 +21,10 @@ import json
 import time
 from pathlib import Path
 
-import numpy as np
-
 import training.train_shifts as T
 from shiftrank.prediction.model_files import load_shift_model
-from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
-from training.features import RowSet, rows_from_assigned
+from training.data import DEFAULT_DATA, LoadReport
+from training.features import RowSet
 from training.pseudo_labels import pseudo_label
 
 
@@ -41,14 +39,9 @@ def main(argv=None) -> int:
     n = args.nucleus
     t0 = time.time()
     model = load_shift_model(args.models, n)
-    mols = load_assigned(args.data, LoadReport(), n)
-    split = np.array([m.split for m in mols])
-    rows = rows_from_assigned(mols, n)
-    rsplit = split[rows.mol_idx]
-    train, val, test = (rows.subset(rsplit == s) for s in ("train", "val", "test"))
+    mols, train, val, test = T.assigned_splits(args.data, n, LoadReport())
     train = RowSet.concat([train, T.literature_training_rows(args.data, n, args.literature_weight, {})])
-    ids = {m.id for m in mols}
-    peakmols = [p for p in load_peaklists(args.data, LoadReport(), n) if p.split == "train" and p.id not in ids]
+    peakmols = T.unassigned_peaklists(args.data, n, LoadReport(), mols)
     st: dict = {}
     pseudo = pseudo_label(model, peakmols, stats=st)
     T.log(f"{n}: {len(train)} assigned training rows, pseudo-labels {st}")

@@ -214,6 +214,21 @@ def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nuc
     man_path.write_text(json.dumps(man, indent=1))
 
 
+def assigned_splits(data: Path, nucleus: str, lr: LoadReport) -> tuple[list, RowSet, RowSet, RowSet]:
+    """The assigned molecules of ``nucleus`` and their rows split train / val / test by skeleton."""
+    mols = load_assigned(data, lr, nucleus)
+    split = np.array([m.split for m in mols])
+    rows = rows_from_assigned(mols, nucleus)
+    rsplit = split[rows.mol_idx]
+    return (mols, *(rows.subset(rsplit == s) for s in ("train", "val", "test")))
+
+
+def unassigned_peaklists(data: Path, nucleus: str, lr: LoadReport, mols) -> list:
+    """Peak lists of training-split molecules not among the assigned ones (for self-training labels)."""
+    ids = {m.id for m in mols}
+    return [p for p in load_peaklists(data, lr, nucleus) if p.split == "train" and p.id not in ids]
+
+
 def literature_training_rows(data: Path, nucleus: str, weight: float, report: dict) -> RowSet | None:
     """Labels from the dev half's printed paragraphs (:mod:`training.literature_labels`), or None."""
     if weight <= 0:
@@ -242,11 +257,7 @@ def main(argv=None) -> int:
     t0 = time.time()
     report: dict = {"seed": SEED, "nucleus": nucleus}
     lr = LoadReport()
-    mols = load_assigned(args.data, lr, nucleus)
-    split = np.array([m.split for m in mols])
-    rows = rows_from_assigned(mols, nucleus)
-    rsplit = split[rows.mol_idx]
-    train, val, test = (rows.subset(rsplit == s) for s in ("train", "val", "test"))
+    mols, train, val, test = assigned_splits(args.data, nucleus, lr)
     report["load"] = lr.counts
     report["rows"] = {"train": len(train), "val": len(val), "test": len(test)}
     log(f"{nucleus}: assigned rows train/val/test {len(train)}/{len(val)}/{len(test)}")
@@ -260,8 +271,7 @@ def main(argv=None) -> int:
     history = [{"round": 0, "train_rows": len(train_clean), "val_mae": best_val, **fit_report}]
     log(f"round 0 (assigned only): val MAE {best_val:.3f}")
 
-    assigned_ids = {m.id for m in mols}
-    peakmols = [p for p in load_peaklists(args.data, lr, nucleus) if p.split == "train" and p.id not in assigned_ids]
+    peakmols = unassigned_peaklists(args.data, nucleus, lr, mols)
     report["peaklist_candidates"] = len(peakmols)
     for rnd in range(1, args.rounds + 1):
         st: dict = {}
