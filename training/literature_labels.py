@@ -75,7 +75,7 @@ def _labels(res, nucleus: str) -> list[tuple[list[int], float]]:
             continue
         if nucleus == "1H" and (hi - lo > H_RANGE_MAX or classes[p.cls].exchangeable):
             continue
-        if getattr(pk, "count", 1) > 1:   # '2C' printed: two classes may stand behind it
+        if pk.count > 1:   # '2C' printed: two classes may stand behind it
             continue
         value[p.cls] = (lo + hi) / 2
     peak_of = {p.cls: p.peak for p in a.pairings if p.peak is not None}

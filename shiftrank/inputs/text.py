@@ -261,8 +261,6 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if "\x00" in w:
             open_list = "\x00open" in w
             w = w.replace("\x00open", " ").replace("\x00closed", " ").strip()
-            if not w:
-                continue
         if not w:
             continue
         low = re.sub(r"\s+", " ", w.lower())

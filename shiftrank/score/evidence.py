@@ -70,6 +70,13 @@ def _carbon_classes(mol: Chem.Mol, ranks, facts=None):
     return facts.carbon_classes if facts is not None else carbon_classes(mol, ranks)
 
 
+def _has_f_or_p(mol: Chem.Mol, facts=None) -> bool:
+    """Whether the candidate has fluorine or phosphorus (from its cached facts when given)."""
+    if facts is not None:
+        return any(k in facts.counts for k in ("F", "P"))
+    return any(a.GetAtomicNum() in (9, 15) for a in mol.GetAtoms())
+
+
 def _mean(values: dict, atoms) -> float:
     return float(sum(values[a] for a in atoms) / len(atoms))
 
@@ -217,7 +224,7 @@ class CarbonEvidence(_Evidence):
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
-        if facts is None or any(k in facts.counts for k in ("F", "P")):
+        if facts is None or _has_f_or_p(mol, facts):
             couplings = carbon_multiplets(mol, classes, ranks)
             for c, e in zip(classes, couplings):
                 c.expected = e
@@ -394,7 +401,7 @@ class ProtonEvidence(_Evidence):
                 continue
             if p.j and max(p.j) > MAX_HH_J:
                 if hetero is None:
-                    hetero = any(a.GetAtomicNum() in (9, 15) for a in mol.GetAtoms())
+                    hetero = _has_f_or_p(mol, facts)
                 if not hetero:   # no H–H coupling is this large: machine-picked lines, letters and J set aside
                     continue
             for i, c in enumerate(classes):
