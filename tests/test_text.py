@@ -126,6 +126,24 @@ def test_a_proton_count_printed_without_its_h_after_the_letters():
     assert [p.integral for p in labels.peaks] == [None, None, None]
 
 
+def test_j_lists_joined_by_and_are_read():
+    # PMC8537530 (NMRExtractor dev file): "7.08 (dd, 1H, J = 7.9 and 4.8 Hz, H5)"; PMC6268817: three J values
+    # with the last two joined by 'and' and no unit.  The J values were once lost (a number before a word
+    # was taken for the '1' of '1H').
+    h = read_nmr_text("1H-NMR (CDCl3): 7.08 (dd, 1H, J = 7.9 and 4.8 Hz, H5), "
+                      "1.70 (ddd, J = 15.2, 11.7 and 3.5 Hz, 1H, one of CH2-3), 3.81 (s, 3H)").section("1H")
+    assert [p.j for p in h.peaks] == [(7.9, 4.8), (15.2, 11.7, 3.5), ()]
+    assert [p.integral for p in h.peaks] == [1.0, 1.0, 3.0]
+
+
+def test_peaks_gathered_in_brackets_under_a_label_are_read():
+    # PMC6274057 (NMRExtractor dev file) prints its aromatic doublets as "Ar-H [7.39 (d, …), 7.88 (d, …)]"
+    h = read_nmr_text("1H-NMR (400 MHz, DMSO-d6) δ, ppm: 2.38 (s, 3H, CH3), 5.12 (s, 2H, CH2), "
+                      "Ar-H [7.39 (d, J = 8.1 Hz, 2H), 7.88 (d, J = 8.1 Hz, 2H)]").section("1H")
+    assert [(p.shift, p.multiplicity, p.j, p.integral) for p in h.peaks][2:] == [(7.39, "d", (8.1,), 2.0), (7.88, "d", (8.1,), 2.0)]
+    assert not h.notes
+
+
 def test_peaklists_from_text_set_solvent_aside():
     # the CDCl3 triplet printed among the peaks (PMC10216335's 13C line)
     t = read_nmr_text("13C-NMR (CDCl3, 400 MHz) Î´ 24.2, 25.8, 27.5, 40.9, 54.4, 57.6, 76.8, 77.2, 77.5")

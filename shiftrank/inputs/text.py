@@ -50,7 +50,7 @@ _SHIFT_ITEM = re.compile(
 _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b)", re.I)
-_JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz)[A-Za-z])"   # a J value: not the '1' of '1H'
+_JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
 _JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
@@ -318,6 +318,7 @@ def _strip_lead(text: str) -> str:
 
 
 _DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,3})(?=\s*(?:-\s*\d{1,3},\d{1,3}\s*)?[(\[])")
+_GROUP = re.compile(r"^[A-Za-z][\w\-' ]{0,30}\s*\[(?P<inner>\s*[+-]?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?\(.*)\]$", re.S)
 _PEAK_START = re.compile(r"[,;]\s*(?=(?:and\s+)?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?[(\[])")
 
 
@@ -358,6 +359,10 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
             last = sec.peaks[-1]
             _parse_detail(frag.strip("()"), last, sec.nucleus, sec.notes)
             last.fragment += ", " + frag
+            continue
+        gm = _GROUP.match(frag)
+        if gm:  # "Ar-H [7.39 (d, 2H), 7.88 (d, 2H)]": peaks gathered under a label, read one by one
+            pending[0:0] = _split_top(gm.group("inner"), ",;")
             continue
         m = _SHIFT_ITEM.match(frag)
         if not m:
