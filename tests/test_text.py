@@ -144,6 +144,19 @@ def test_peaks_gathered_in_brackets_under_a_label_are_read():
     assert not h.notes
 
 
+def test_13c_values_in_brackets_and_lists_with_a_stray_bracket_are_read():
+    # PMC6274057 (NMRExtractor dev file): "Ar-C [120.5, 127.1, 130.5, 143.1], (C=N) [163.1, 165.5]";
+    # PMC6272449: "9.6, 11.1, 19.2 CH3), 61.2 (CH2), 115.2, 116.3, …" has a ')' without its '(' and once
+    # lost 14 of its 18 values
+    c = read_nmr_text("13C-NMR (100 MHz, DMSO-d6) δ, ppm: 21.5 (CH3), 33.7 (CH2), Ar-C [120.5, 127.1, 130.5, 143.1], "
+                      "(C=N) [163.1, 165.5]").section("13C")
+    assert [p.shift for p in c.peaks] == [21.5, 33.7, 120.5, 127.1, 130.5, 143.1, 163.1, 165.5] and not c.notes
+    c = read_nmr_text("13C-NMR: δ = 9.6, 11.1, 19.2 CH3), 61.2 (CH2), 115.2, 116.3, 116.4, 117.2, 118.3, 119.2, 120.6, "
+                      "120.8, 122.3, 124.4, 126.3, 137.4, 151.2 (Ar-C), 166.3 (CO)").section("13C")
+    assert len(c.peaks) == 18 and c.peaks[1].shift == 11.1 and c.peaks[3].dept == "CH2"
+    assert any("unbalanced" in n for n in c.notes)
+
+
 def test_peaklists_from_text_set_solvent_aside():
     # the CDCl3 triplet printed among the peaks (PMC10216335's 13C line)
     t = read_nmr_text("13C-NMR (CDCl3, 400 MHz) Î´ 24.2, 25.8, 27.5, 40.9, 54.4, 57.6, 76.8, 77.2, 77.5")

@@ -318,7 +318,8 @@ def _strip_lead(text: str) -> str:
 
 
 _DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,3})(?=\s*(?:-\s*\d{1,3},\d{1,3}\s*)?[(\[])")
-_GROUP = re.compile(r"^[A-Za-z][\w\-' ]{0,30}\s*\[(?P<inner>\s*[+-]?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?\(.*)\]$", re.S)
+#: peaks gathered in square brackets under a label: "Ar-H [7.39 (d, 2H), 7.88 (d, 2H)]", "(C=N) [163.1, 165.5]"
+_GROUP = re.compile(r"^(?:[A-Za-z][\w\-' ]{0,30}|\([^()]{1,20}\))\s*\[(?P<inner>\s*[+-]?\d{1,3}\.\d+\s*[-,(].*)\]$", re.S)
 _PEAK_START = re.compile(r"[,;]\s*(?=(?:and\s+)?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?[(\[])")
 
 
@@ -333,8 +334,8 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         body = fixed
     if body.count("(") != body.count(")") or body.count("[") != body.count("]"):
         # an unclosed bracket would swallow every later peak: split before each 'shift (' instead
-        sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift ('")
-        pending = _PEAK_START.split(body)
+        sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift (' and at commas outside brackets")
+        pending = [piece for chunk in _PEAK_START.split(body) for piece in _split_top(chunk, ",;")]
     else:
         pending = [c for c in _split_top(body, ",;")]
     group_dept = start_dept
@@ -354,15 +355,15 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         if sec.nucleus == "13C" and label in _DEPT:
             group_dept = _DEPT[label]  # a DEPT label before the values it covers
             continue
+        gm = _GROUP.match(frag)
+        if gm:  # "Ar-H [7.39 (d, 2H), 7.88 (d, 2H)]": peaks gathered under a label, read one by one
+            pending[0:0] = _split_top(gm.group("inner"), ",;")
+            continue
         if frag.startswith("(") and sec.peaks and not sec.peaks[-1].fragment.rstrip().endswith(")"):
             # "7.82, (dd, J = 8.0 Hz, 1H)": the detail of the peak before, separated by a stray comma
             last = sec.peaks[-1]
             _parse_detail(frag.strip("()"), last, sec.nucleus, sec.notes)
             last.fragment += ", " + frag
-            continue
-        gm = _GROUP.match(frag)
-        if gm:  # "Ar-H [7.39 (d, 2H), 7.88 (d, 2H)]": peaks gathered under a label, read one by one
-            pending[0:0] = _split_top(gm.group("inner"), ",;")
             continue
         m = _SHIFT_ITEM.match(frag)
         if not m:
