@@ -136,6 +136,12 @@ def test_j_lists_joined_by_and_are_read():
     assert [p.integral for p in h.peaks] == [1.0, 1.0, 3.0]
 
 
+def test_a_dash_for_the_equals_sign_of_j():
+    # PMC10057653 (NMRExtractor dev file) prints "6.96 (d, J–8), 7.13 (dd, J1–2, J2–8)"
+    h = read_nmr_text("1H NMR (CDCl3, 500 MHz) δ 6.96 (d, J–8), 7.13 (dd, J1–2, J2–8), 7.56 (d, J–2) ppm").section("1H")
+    assert [p.j for p in h.peaks] == [(8.0,), (2.0, 8.0), (2.0,)]
+
+
 def test_peaks_gathered_in_brackets_under_a_label_are_read():
     # PMC6274057 (NMRExtractor dev file) prints its aromatic doublets as "Ar-H [7.39 (d, …), 7.88 (d, …)]"
     h = read_nmr_text("1H-NMR (400 MHz, DMSO-d6) δ, ppm: 2.38 (s, 3H, CH3), 5.12 (s, 2H, CH2), "
