@@ -51,7 +51,7 @@ _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
-_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s)\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
 
