@@ -333,7 +333,7 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         sec.notes.append("decimal commas read as decimal points (e.g. '6,98' as 6.98)")
         body = fixed
     if body.count("(") != body.count(")") or body.count("[") != body.count("]"):
-        # an unclosed bracket would swallow every later peak: split before each 'shift (' instead
+        # an unclosed bracket would swallow every later peak: split before each 'shift (' and at top-level commas
         sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift (' and at commas outside brackets")
         pending = [piece for chunk in _PEAK_START.split(body) for piece in _split_top(chunk, ",;")]
     else:
