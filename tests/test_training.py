@@ -88,3 +88,14 @@ def test_far_values_and_shared_13c_values_give_no_label():
     assert _printed(cls, [ObservedPeak(4.05, "s"), ObservedPeak(7.37, "d")], "1H") == [((2, 6), 7.37)]
     c13 = [SignalClass([0], "CH", 128.9, 1.0), SignalClass([1], "CH", 129.1, 1.0), SignalClass([2], "C", 160.0, 1.0)]
     assert _printed(c13, [ObservedPeak(129.0), ObservedPeak(159.5)], "13C") == [((2,), 159.5)]
+
+
+def test_regio_candidates_of_a_cresol_are_the_three_cresols():
+    # hand enumeration: moving OH (or CH3) round the ring of 4-methylphenol gives 2- and 3-methylphenol;
+    # swapping the two substituents gives the same three
+    from training.data import regio_candidates
+
+    got = regio_candidates("Cc1ccc(O)cc1")
+    canon = sorted(Chem.MolToSmiles(Chem.MolFromSmiles(s)) for s in ("Cc1ccc(O)cc1", "Cc1cccc(O)c1", "Cc1ccccc1O"))
+    assert got == canon
+    assert regio_candidates("CCO") is None   # no ring substituent to move

@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 from rdkit import Chem, RDLogger
+from rdkit.Chem import rdMolDescriptors
 
 from shiftrank.inputs.molecules import ORGANIC
 from shiftrank.inputs.solvents import normalise_solvent
@@ -185,6 +186,48 @@ def literature_part(skel: str) -> str:
 
 
 
+def regio_candidates(truth: str, max_candidates: int = 12) -> list[str] | None:
+    """The structure and its positional isomers from moving one ring substituent
+    (:func:`shiftrank.chem.isomers.isomers`, the rule the development regio cases were built by), at most
+    ``max_candidates``, sorted by SMILES so the truth has no fixed place; None when there are none."""
+    from shiftrank.chem.isomers import isomers
+
+    try:
+        alts = [a.smiles for a in isomers(truth, kinds="positional")]
+    except Exception:  # noqa: BLE001 - a structure the generator refuses has no case
+        return None
+    return sorted({truth, *alts[: max_candidates - 1]}) if alts else None
+
+
+def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), max_candidates: int = 12) -> list[dict]:
+    """Positional-isomer ranking cases from the unassigned 13C peak lists of the given splits (never
+    trained on: self-training reads the training split only), about ten times as many as the held-out
+    development regio cases, for measuring changes with less noise.
+
+    A molecule gives a case when its list has one value per carbon (incomplete lists are skipped) and it
+    has positional isomers (:func:`regio_candidates`).  The peaks are one entry per distinct value with
+    its multiplicity, as in the development cases.  'truth' and 'split' are for scoring only."""
+    out = []
+    for m in load_peaklists(data_dir):
+        if m.split not in splits or "." in m.smiles:
+            continue
+        mol = Chem.MolFromSmiles(m.smiles)
+        if mol is None or sum(a.GetAtomicNum() == 6 for a in mol.GetAtoms()) != len(m.peaks):
+            continue
+        truth = Chem.MolToSmiles(mol)
+        cands = regio_candidates(truth, max_candidates)
+        if cands is None:
+            continue
+        distinct = {}
+        for v, mult in m.peaks:
+            distinct.setdefault(round(v, 2), mult)
+        peaks = [{"shift": v, "multiplicity": mult} if mult else {"shift": v} for v, mult in sorted(distinct.items())]
+        out.append({"id": m.id, "peaks": peaks, "candidates": cands, "solvent": m.solvent,
+                    "formula": rdMolDescriptors.CalcMolFormula(mol),
+                    "truth": truth, "split": m.split})
+    return out
+
+
 def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[dict]:
     """Positional-isomer ranking cases with HSQC cross peaks built from measured data.
 
@@ -194,8 +237,6 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
     (:func:`shiftrank.chem.isomers.isomers`, the rule the development regio cases were built by), at most
     ``max_candidates``, sorted by SMILES so the truth has no fixed place.  Compounds without such isomers
     are skipped.  'truth' and 'split' (of the skeleton) are for scoring only."""
-    from shiftrank.chem.isomers import isomers
-
     hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
     out = []
     for m in load_assigned(data_dir, nucleus="13C"):
@@ -208,13 +249,9 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         if len(pairs) < 2:
             continue
         truth = Chem.MolToSmiles(m.mol)
-        try:
-            alts = [a.smiles for a in isomers(truth, kinds="positional")]
-        except Exception:  # noqa: BLE001 - a structure the generator refuses has no case
+        cands = regio_candidates(truth, max_candidates)
+        if cands is None:
             continue
-        if not alts:
-            continue
-        cands = sorted({truth, *alts[: max_candidates - 1]})
         ranks = list(Chem.CanonicalRankAtoms(m.mol, breakTies=False))
         carbons = {}
         for a, v in m.shifts.items():   # the 13C list as a database gives it: one line per class of equivalent carbons
