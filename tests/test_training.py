@@ -99,3 +99,46 @@ def test_regio_candidates_of_a_cresol_are_the_three_cresols():
     canon = sorted(Chem.MolToSmiles(Chem.MolFromSmiles(s)) for s in ("Cc1ccc(O)cc1", "Cc1cccc(O)c1", "Cc1ccccc1O"))
     assert got == canon
     assert regio_candidates("CCO") is None   # no ring substituent to move
+
+
+def _run_novel(smiles, peaks, mu_by_atom, novel_atoms):
+    mol = Chem.MolFromSmiles(smiles)
+    env = environments(mol)
+    mu = np.array([mu_by_atom[int(a)] for a in env.centres], float)
+    novel = np.array([int(a) in novel_atoms for a in env.centres])
+    out = _assign_one(mol, env, peaks, mu, np.full(len(mu), 1.0), 3.0, 6.0, novel)
+    return {int(env.centres[k]): v for k, v in out}
+
+
+# 4-iodoanisole, 13C in CDCl3 (from memory): C–O 159.5, CH ortho to I 138.2, CH ortho to OMe 116.4,
+# C–I 82.7, OCH3 55.3.  Constructed predictions: right within a ppm except C–I, where a model that
+# never saw iodine says ~132 (the shipped 1.4.0 model said 131.8).
+ANISOLE_I = "COc1ccc(I)cc1"
+ANISOLE_I_PEAKS = [(159.5, "C"), (138.2, "CH"), (138.2, "CH"), (116.4, "CH"), (116.4, "CH"), (82.7, "C"), (55.3, "CH3")]
+ANISOLE_I_MU = {0: 55.0, 2: 159.0, 3: 116.0, 4: 138.5, 5: 131.8, 7: 138.5, 8: 116.0}
+
+
+def test_never_seen_carbon_takes_the_value_the_others_leave():
+    got = _run_novel(ANISOLE_I, ANISOLE_I_PEAKS, ANISOLE_I_MU, novel_atoms={5})
+    assert got[5] == 82.7 and got[2] == 159.5 and got[0] == 55.3
+
+
+def test_without_the_novelty_mark_the_far_value_is_refused():
+    got = _run_novel(ANISOLE_I, ANISOLE_I_PEAKS, ANISOLE_I_MU, novel_atoms=set())
+    assert 5 not in got
+
+
+def test_elimination_needs_every_rival_confident():
+    # the C–O carbon predicted 9 ppm off: not confident, so the leftover value is not trusted either
+    mu = {**ANISOLE_I_MU, 2: 150.0}
+    got = _run_novel(ANISOLE_I, ANISOLE_I_PEAKS, mu, novel_atoms={5})
+    assert 5 not in got
+
+
+def test_two_never_seen_classes_of_one_multiplicity_are_not_labelled():
+    # 2,4-diiodoanisole (constructed values): two C–I classes could swap their values
+    smi = "COc1ccc(I)cc1I"
+    peaks = [(158.3, "C"), (147.4, "CH"), (138.6, "CH"), (112.9, "CH"), (87.0, "C"), (83.5, "C"), (56.6, "CH3")]
+    mu = {0: 56.5, 2: 158.0, 3: 112.5, 4: 138.0, 5: 131.0, 7: 147.0, 8: 131.0}
+    got = _run_novel(smi, peaks, mu, novel_atoms={5, 8})
+    assert 5 not in got and 8 not in got and got[2] == 158.3

@@ -6,6 +6,12 @@ algorithm (``scipy.optimize.linear_sum_assignment``) on |predicted − observed|
 symmetry-equivalent carbons must receive (nearly) the same value.  A class's
 label is kept only when it is confident: small residual against the current
 prediction and no other class that could have taken the value almost as well.
+A carbon whose environment the model has never seen (no sphere match even one bond
+out, e.g. C–I before any iodo compound is labelled: NMRShiftDB2's assigned set has
+none, and iodine moves its carbon by about −35 ppm, far outside every window) gets
+its value by elimination: its prediction is ignored in the assignment, and it keeps
+the entry the others leave when it is the only such class of its multiplicity and
+every other class of that multiplicity was labelled confidently.
 
 1H: entries stand for signals (sometimes repeated per proton), without integrals; several proton
 classes may share one signal and lists are often partial.  A class of C–H protons takes the
@@ -33,6 +39,7 @@ CLEAR_MARGIN = 10.0     # ppm: a far label is kept if every rival class is at le
 H_MAX_ABS = 0.15        # 1H, ppm: a signal this close to the prediction (or within 2 sigma) may be taken
 H_MARGIN = 0.25         # 1H, ppm: ... when the next signal is at least this much (or 1 sigma) farther
 H_SOLE_MAX_ABS = 1.5    # 1H, ppm: the only C–H class and the only signal below 10 ppm belong together
+NOVEL_MAX_ABS = 80.0    # ppm: a label by elimination (never-seen environment) is refused beyond this
 
 
 def _prepare(peakmols, nucleus: str = "13C"):
@@ -57,11 +64,13 @@ def _prepare(peakmols, nucleus: str = "13C"):
     return items
 
 
-def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
+def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
     """Confident (row, label) pairs for one molecule, or None when its peaks cannot be matched.
 
     Peaks stand either for single carbons (one entry per carbon) or for symmetry
     classes (one entry per class); the Hungarian assignment runs on those units.
+    ``novel`` (per centre, optional) marks environments the model has never seen: they are
+    labelled by elimination only (see the module text).
     """
     carbons = [int(a) for a in env.centres]
     pos = {a: k for k, a in enumerate(carbons)}
@@ -73,6 +82,8 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
     units = [[k] for k in range(len(carbons))] if len(peaks) == len(carbons) else cls_list
     unit_mult = [MULTIPLICITY.get(mol.GetAtomWithIdx(carbons[u[0]]).GetTotalNumHs()) for u in units]
     unit_mu = np.array([mu[u].mean() for u in units])
+    novel = np.zeros(len(carbons), bool) if novel is None else np.asarray(novel, bool)
+    unit_novel = np.array([bool(novel[u].all()) for u in units])
     mults = [m for _, m in peaks]
     if all(m is not None for m in mults):
         key_u, key_p = unit_mult, mults
@@ -92,6 +103,7 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
     for m, ks in groups_u.items():
         js = groups_p[m]
         cost = np.abs(unit_mu[ks][:, None] - obs[js][None, :])
+        cost[unit_novel[ks]] = 0.0   # a never-seen environment takes what the others leave
         r, c = linear_sum_assignment(cost)
         for uu, jj in zip(np.array(ks)[r], np.array(js)[c]):
             label[units[uu]] = obs[jj]
@@ -102,6 +114,10 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
         if np.ptp(v) > CLASS_SPREAD:
             continue
         cls_label[ks[0]] = float(v.mean())
+    def confident(ks) -> bool:
+        L = cls_label.get(ks[0])
+        return L is not None and abs(L - float(mu[ks].mean())) <= min(max_abs, max_z * float(sigma[ks].mean()))
+
     out = []
     for ks in cls_list:
         if ks[0] not in cls_label:
@@ -109,6 +125,13 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
         L = cls_label[ks[0]]
         p, s = float(mu[ks].mean()), float(sigma[ks].mean())
         err = abs(L - p)
+        if novel[ks].all():
+            # by elimination: every other class of its multiplicity is labelled confidently and
+            # none of them is novel too, so the entry left over is this class's
+            others = [o for o in cls_list if o is not ks and (key_u[0] == "*" or cls_mult[o[0]] == cls_mult[ks[0]])]
+            if err <= NOVEL_MAX_ABS and all(not novel[o].any() and confident(o) for o in others):
+                out.extend((k, L) for k in ks)
+            continue
         # the only class of its multiplicity (or the only class): its peak cannot belong to another
         # carbon, so the label is right even where the model is far off (tiny molecules, rare rings);
         # these are the labels that teach the model what it does not know yet
@@ -127,8 +150,8 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs):
             continue
         ambiguous = False
         for other in cls_list:
-            if other is ks or (key_u[0] != "*" and cls_mult[other[0]] != cls_mult[ks[0]]):
-                continue
+            if other is ks or (key_u[0] != "*" and cls_mult[other[0]] != cls_mult[ks[0]]) or novel[other].all():
+                continue   # (a never-seen environment's prediction says nothing about who owns a value)
             Lo = cls_label.get(other[0])
             if Lo is not None and abs(Lo - L) <= SWAP_LABEL_GAP:
                 continue
@@ -177,19 +200,19 @@ def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, m
     stats["molecules_usable"] = len(items)
     feats = np.vstack([e.features for _, _, e in items])
     codes = np.vstack([e.codes for _, _, e in items])
-    mu_all, sig_all, _, _ = model.predict_arrays(feats, codes)
+    mu_all, sig_all, radius_all, _ = model.predict_arrays(feats, codes)
     codes_o, feats_o, ys, mi, ai, fo = [], [], [], [], [], []
     k = 0
     n_classes_kept = n_atoms_total = n_mol = 0
     for i, (pm, mol, env) in enumerate(items):
         n = len(env.centres)
-        mu, sg = mu_all[k:k + n], sig_all[k:k + n]
+        mu, sg, novel = mu_all[k:k + n], sig_all[k:k + n], radius_all[k:k + n] == 0
         k += n
         n_atoms_total += n
         if nucleus == "1H":
             res = _assign_1h(mol, env, pm.peaks, mu, sg)
         else:
-            res = _assign_one(mol, env, pm.peaks, mu, sg, max_z, max_abs)
+            res = _assign_one(mol, env, pm.peaks, mu, sg, max_z, max_abs, novel)
         if not res:
             continue
         n_mol += 1
