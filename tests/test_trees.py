@@ -52,5 +52,5 @@ def test_shipped_models_are_flat_forests():
     for nucleus in ("13C", "1H"):
         m = default_model(nucleus)
         assert all(isinstance(r, Forest) for r in m.regressors) and isinstance(m.sigma_regressor, Forest)
-        assert len(m.regressors) == {"13C": 3, "1H": 2}[nucleus]   # members averaged (model set 1.4.0)
+        assert len(m.regressors) == {"13C": 3, "1H": 2}[nucleus]   # members averaged (model set 1.5.0)
 
