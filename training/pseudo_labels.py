@@ -114,6 +114,7 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
         if np.ptp(v) > CLASS_SPREAD:
             continue
         cls_label[ks[0]] = float(v.mean())
+
     def confident(ks) -> bool:
         L = cls_label.get(ks[0])
         return L is not None and abs(L - float(mu[ks].mean())) <= min(max_abs, max_z * float(sigma[ks].mean()))
