@@ -142,3 +142,19 @@ def test_two_never_seen_classes_of_one_multiplicity_are_not_labelled():
     mu = {0: 56.5, 2: 158.0, 3: 112.5, 4: 138.0, 5: 131.0, 7: 147.0, 8: 131.0}
     got = _run_novel(smi, peaks, mu, novel_atoms={5, 8})
     assert 5 not in got and 8 not in got and got[2] == 158.3
+
+
+def test_peaklist_regio_cases_come_from_never_trained_skeletons(shared_data):
+    # the premise of benchmarks/bench_regio_peaklists.py: only validation/test skeletons (self-training
+    # reads the training split only), the truth among its candidates, one peak per distinct value
+    from rdkit.Chem.inchi import MolToInchiKey
+
+    from training.data import peaklist_regio_cases, skeleton, split_of
+
+    cases = peaklist_regio_cases(shared_data, splits=("test",))
+    assert len(cases) > 500
+    for c in cases[:200]:
+        assert c["truth"] in c["candidates"] and len(c["candidates"]) >= 2
+        assert split_of(skeleton(MolToInchiKey(Chem.MolFromSmiles(c["truth"])))) == "test"
+        shifts = [p["shift"] for p in c["peaks"]]
+        assert len(shifts) == len(set(shifts))
