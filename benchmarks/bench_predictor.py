@@ -181,11 +181,11 @@ def peaklist_accuracy(args) -> None:
     from collections import defaultdict
 
     from rdkit import RDLogger
-    from scipy.optimize import linear_sum_assignment
 
     from shiftrank.chem.structure import MULTIPLICITY
     from shiftrank.prediction.api import predict_many
     from training.data import load_peaklists
+    from training.pseudo_labels import match_by_multiplicity
 
     RDLogger.DisableLog("rdApp.*")
     splits = ("val", "test") if args.split == "both" else (args.split,)
@@ -201,26 +201,21 @@ def peaklist_accuracy(args) -> None:
     for (m, mol), p in zip(todo, preds):
         if isinstance(p, Exception):
             continue
-        atoms_by, obs_by = defaultdict(list), defaultdict(list)
-        for a in mol.GetAtoms():
-            if a.GetAtomicNum() == 6:
-                atoms_by[MULTIPLICITY.get(a.GetTotalNumHs())].append(a.GetIdx())
-        for v, mult in m.peaks:
-            obs_by[mult].append(v)
-        if {k: len(v) for k, v in atoms_by.items()} != {k: len(v) for k, v in obs_by.items()}:
+        atoms = [a for a in mol.GetAtoms() if a.GetAtomicNum() == 6]
+        mu, obs = np.array([p.shifts[a.GetIdx()] for a in atoms]), np.array([v for v, _ in m.peaks])
+        pairs = match_by_multiplicity([MULTIPLICITY.get(a.GetTotalNumHs()) for a in atoms], mu,
+                                      [mult for _, mult in m.peaks], obs)
+        if pairs is None:
             continue
         n_mol += 1
-        for mult, atoms in atoms_by.items():
-            mu, obs = np.array([p.shifts[a] for a in atoms]), np.array(obs_by[mult])
-            r, c = linear_sum_assignment(np.abs(mu[:, None] - obs[None, :]))
-            for i, j in zip(r, c):
-                atom = mol.GetAtomWithIdx(atoms[i])
-                hetero = sorted({n.GetSymbol() for n in atom.GetNeighbors() if n.GetAtomicNum() != 6})
-                where = "aromatic" if atom.GetIsAromatic() else "other"
-                d = obs[j] - mu[i]
-                groups[("all", "")].append(d)
-                for e in hetero:
-                    groups[(e, where)].append(d)
+        for i, j in pairs:
+            atom = atoms[i]
+            hetero = sorted({n.GetSymbol() for n in atom.GetNeighbors() if n.GetAtomicNum() != 6})
+            where = "aromatic" if atom.GetIsAromatic() else "other"
+            d = obs[j] - mu[i]
+            groups[("all", "")].append(d)
+            for e in hetero:
+                groups[(e, where)].append(d)
     print(f"13C on peak lists of {'/'.join(splits)} skeletons: {n_mol} molecules, {len(groups[('all', '')])} carbons "
           "(labels by optimal assignment within each multiplicity)")
     print(f"  all carbons: MAE {np.mean(np.abs(groups[('all', '')])):.2f} ppm")

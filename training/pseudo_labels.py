@@ -64,6 +64,28 @@ def _prepare(peakmols, nucleus: str = "13C"):
     return items
 
 
+def match_by_multiplicity(unit_keys, unit_mu, peak_keys, obs, free=None) -> list[tuple[int, int]] | None:
+    """(unit, peak) pairs: within each multiplicity (key), the peaks go to the units by the Hungarian
+    algorithm on |predicted − observed|; None when the counts per key differ.  Units marked ``free``
+    cost nothing anywhere: they take the peaks the others leave."""
+    groups_u, groups_p = defaultdict(list), defaultdict(list)
+    for k, m in enumerate(unit_keys):
+        groups_u[m].append(k)
+    for j, m in enumerate(peak_keys):
+        groups_p[m].append(j)
+    if {m: len(v) for m, v in groups_u.items()} != {m: len(v) for m, v in groups_p.items()}:
+        return None
+    pairs = []
+    for m, ks in groups_u.items():
+        js = groups_p[m]
+        cost = np.abs(unit_mu[ks][:, None] - obs[js][None, :])
+        if free is not None:
+            cost[free[ks]] = 0.0   # a never-seen environment takes what the others leave
+        r, c = linear_sum_assignment(cost)
+        pairs.extend(zip(np.array(ks)[r].tolist(), np.array(js)[c].tolist()))
+    return pairs
+
+
 def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
     """Confident (row, label) pairs for one molecule, or None when its peaks cannot be matched.
 
@@ -91,22 +113,13 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
         key_u, key_p = ["*"] * len(units), ["*"] * len(peaks)
     else:
         return None
-    groups_u, groups_p = defaultdict(list), defaultdict(list)
-    for k, m in enumerate(key_u):
-        groups_u[m].append(k)
-    for j, m in enumerate(key_p):
-        groups_p[m].append(j)
-    if {m: len(v) for m, v in groups_u.items()} != {m: len(v) for m, v in groups_p.items()}:
-        return None
     obs = np.array([s for s, _ in peaks])
+    pairs = match_by_multiplicity(key_u, unit_mu, key_p, obs, unit_novel)
+    if pairs is None:
+        return None
     label = np.full(len(carbons), np.nan)
-    for m, ks in groups_u.items():
-        js = groups_p[m]
-        cost = np.abs(unit_mu[ks][:, None] - obs[js][None, :])
-        cost[unit_novel[ks]] = 0.0   # a never-seen environment takes what the others leave
-        r, c = linear_sum_assignment(cost)
-        for uu, jj in zip(np.array(ks)[r], np.array(js)[c]):
-            label[units[uu]] = obs[jj]
+    for uu, jj in pairs:
+        label[units[uu]] = obs[jj]
     cls_mult = {ks[0]: MULTIPLICITY.get(mol.GetAtomWithIdx(carbons[ks[0]]).GetTotalNumHs()) for ks in cls_list}
     cls_label = {}
     for ks in cls_list:
