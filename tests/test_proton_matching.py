@@ -82,3 +82,41 @@ def test_impossible_hh_couplings_set_a_peak_aside_unless_f_or_p_could_explain_th
     assert plain[odd].sum() == 0 and plain[shifts.index(7.06)] > 0   # 33.7/26.3 Hz lines not compared; 16/8 Hz is
     fluoro = misfit("Fc1cccc(-c2cnc[nH]2)c1")          # an aryl fluoride could split by that much: compared
     assert fluoro[odd].sum() > 0
+
+
+# PMC6864965: 2-amino-4-methylbenzamide in DMSO-d6; the amide NH2 printed as two 1H broad singlets
+# (7.62, 6.92), the aniline NH2 as one 2H broad singlet (6.53)
+AMIDE_1H = ("1H-NMR (d6-DMSO, 400 MHz) δ 7.62 (bs, 1H), 7.43 (d, J = 8.1 Hz, 1H), 6.92 (bs, 1H), 6.53 (bs, 2H), "
+            "6.47 (s, 1H), 6.29 (d, J = 8.5 Hz, 1H), 2.16 (s, 3H)")
+AMIDE = "Cc1ccc(C(N)=O)c(N)c1"
+AMIDE_ISOMERS = ["Cc1ccc(C(N)=O)cc1N", "Cc1cc(N)cc(C(N)=O)c1", "Cc1ccc(N)c(C(N)=O)c1", "Cc1cccc(C(N)=O)c1N",
+                 "Cc1cc(N)ccc1C(N)=O", "Cc1cccc(N)c1C(N)=O"]
+
+
+def test_primary_amide_nh2_may_show_two_signals_an_aniline_nh2_one():
+    # slow rotation about the amide C–N bond makes the two NH2 protons differ (common practice)
+    r = rank(text=AMIDE_1H, candidates=AMIDE_ISOMERS + [AMIDE])
+    assert r.best.smiles == AMIDE
+    res = r.best.nuclei["1H"]
+    rows = res.assignment_table()
+    amide_n, aniline_n = 6, 9   # atom indices in AMIDE
+    on_amide = sorted(row["observed"] for row in rows if row["atoms"] == [amide_n])
+    on_aniline = [row["observed"] for row in rows if row["atoms"] == [aniline_n]]
+    assert on_amide == [6.92, 7.62]
+    assert on_aniline == [6.53]
+    assert res.assignment.parts["integral"] == 0.0
+
+
+@pytest.mark.parametrize("smiles, atom, expected", [
+    ("NC(=O)c1ccccc1", 0, True),      # benzamide
+    ("NC(=S)NN=C", 0, True),          # thiosemicarbazone NH2 (a thioamide)
+    ("Nc1ccccc1", 0, False),          # aniline: one signal
+    ("NS(=O)(=O)c1ccccc1", 0, False),  # sulfonamide: one 2H singlet (common practice)
+    ("CNC(C)=O", 1, False),           # secondary amide: one proton
+])
+def test_which_nh2_groups_may_split(smiles, atom, expected):
+    from rdkit import Chem
+
+    from shiftrank.score.evidence import _amide_nh2
+
+    assert _amide_nh2(Chem.MolFromSmiles(smiles), atom) is expected
