@@ -105,3 +105,16 @@ def test_two_nearly_equal_ring_couplings_may_print_as_a_triplet():
     ex = _by_atom("COC(=O)CCn1cccc(O)c1=O")
     h5 = ex[(8,)]
     assert fit_cost(h5, "t", (7.0,)) == (0, 0) and fit_cost(h5, "dd", (7.2, 6.8)) == (0, 0)
+
+
+def test_exchangeable_protons_split_only_by_neighbours_they_have():
+    # N-propylaniline and 4-aminophenol (own choice): an NH next to a CH2 may print as 's', 't' or
+    # 'br s' (coupling through N is often lost to exchange); an aryl NH2 or phenol OH has no proton
+    # three bonds away, so a clean doublet cannot be it; printed J values are not held against them
+    nh = _by_atom("CCCNc1ccccc1")[(3,)]
+    assert nh.exchangeable
+    assert fit_cost(nh, "t", (5.6,)) == (0, 0) and fit_cost(nh, "s") == (0, 0) and fit_cost(nh, "br s") == (0, 0)
+    ex = _by_atom("Nc1ccc(O)cc1")
+    nh2, oh = ex[(0,)], ex[(5,)]
+    assert fit_cost(nh2, "br s") == (0, 0) and fit_cost(oh, "s") == (0, 0)
+    assert fit_cost(nh2, "d", (8.1,)) == (1, 0) and fit_cost(oh, "t") == (1, 0)

@@ -218,9 +218,11 @@ def fit_cost(expected: ExpectedMultiplet, letters: str | None, js: tuple = (), t
 @lru_cache(maxsize=65536)
 def _fit(signature: tuple, letters: str | None, js: tuple, tolerance: float) -> tuple[int, int]:
     groups_sig, exchangeable = signature
-    if exchangeable:
-        return 0, 0
     pat = _pattern_of(letters)
+    if exchangeable:
+        # OH/NH/SH: couplings are optional and printed J values are not held against them, but
+        # splitting by protons they have no neighbours for is ('d, J = 8 Hz' is not an aryl NH2)
+        return int(pat is not None and pat not in _patterns_of(groups_sig)), 0
     bad_pattern = int(pat is not None and pat not in _patterns_of(groups_sig))
     if not js:
         return bad_pattern, 0
