@@ -131,6 +131,12 @@ def test_bad_molecules_raise_input_error(smiles, fragment):
         predict(smiles)
 
 
+@pytest.mark.parametrize("thing, fragment", [(["CCO", "CCN"], "got list .*predict_many"), (42, "got int")])
+def test_predict_refuses_what_is_not_one_molecule(thing, fragment):
+    with pytest.raises(InputError, match=fragment):
+        predict(thing)
+
+
 def test_predict_many_keeps_order_and_reports_each_bad_input():
     from rdkit import Chem
     from shiftrank import InputError, predict_many

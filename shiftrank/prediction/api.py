@@ -83,6 +83,9 @@ def predict(molecule: str | Chem.Mol, solvent: str | None = None, nucleus: str =
     [0, 1]
     """
     _check_nucleus(nucleus)
+    if not isinstance(molecule, (str, Chem.Mol)):
+        hint = " (for many molecules use predict_many)" if isinstance(molecule, (list, tuple)) else ""
+        raise InputError(f"expected a SMILES string or an RDKit molecule, got {type(molecule).__name__}{hint}")
     mol = to_mol(molecule) if isinstance(molecule, str) else _own_copy(molecule)
     label = f"SMILES '{molecule}'" if isinstance(molecule, str) else "molecule"
     pred = _predict_parts([standardised_parts(mol, label, normalise_solvent(solvent), nucleus)])[0]
