@@ -15,10 +15,11 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
 
 Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
 constitution whatever the stereochemistry or the Kekulé form; the given structure included) are removed; more alternatives than ``limit`` end
-in a clear error.
+in a clear error.  Atom numbers in the relations are the 0-based indices of the given structure, as in
+every assignment table and JSON output.
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
-['F moved from ring atom 5 to ring atom 4 (now meta to C)', 'F moved from ring atom 5 to ring atom 3 (now ortho to C)']
+['C moved from ring atom 1 to ring atom 2 (now meta to F)', 'C moved from ring atom 1 to ring atom 3 (now ortho to F)']
 """
 from __future__ import annotations
 
@@ -190,7 +191,7 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r, x, t)])
                 if m is not None:
-                    out.append((m, f"{name} moved from ring atom {r + 1} to ring atom {t + 1}"
+                    out.append((m, f"{name} moved from ring atom {r} to ring atom {t}"
                                    f"{_relative(mol, system, t, others)}"))
         for k, (r1, x1, n1) in enumerate(subs):
             for r2, x2, n2 in subs[k + 1:]:
@@ -198,7 +199,7 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r1, x1, r2), (r2, x2, r1)])
                 if m is not None:
-                    out.append((m, f"{n1} and {n2} swapped (ring atoms {r1 + 1} and {r2 + 1})"))
+                    out.append((m, f"{n1} and {n2} swapped (ring atoms {r1} and {r2})"))
     return out
 
 
@@ -222,7 +223,7 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue  # a pyridine-type N of a fused six-membered ring does not take the group
                 m = _reattach(mol, [(r, x, t)], keep_h_off=True)
                 if m is not None:
-                    out.append((m, f"{name} on ring N (atom {t + 1}) instead of ring N (atom {r + 1})"))
+                    out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
     return out
 
 
@@ -272,7 +273,7 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                             continue
                         m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=True, aromatic_cn=bn.GetIsAromatic())
                         if m is not None:
-                            out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx() + 1} to O atom {o.GetIdx() + 1})"))
+                            out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx()} to O atom {o.GetIdx()})"))
                 # O-R imidate / alkoxy-azine  ->  N-R amide / pyridone
                 if bo.GetBondType() == Chem.BondType.SINGLE and not bo.GetIsAromatic() and o.GetDegree() == 2 \
                         and not n.GetTotalNumHs() and n.GetDegree() == 2 and \
@@ -283,7 +284,7 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                         continue
                     m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=False, aromatic_cn=bn.GetIsAromatic())
                     if m is not None:
-                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx() + 1} to N atom {n.GetIdx() + 1})"))
+                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx()} to N atom {n.GetIdx()})"))
     return out
 
 

@@ -12,7 +12,7 @@ predictions and assignment tables keep speaking of the atoms the user drew.
 
 >>> s = standardise(Chem.MolFromSmiles("CC(=O)[O-].[Na+]"), "input")
 >>> Chem.MolToSmiles(s.mol), s.notes
-('CC(=O)O', ["set aside the fragment(s) [Na+] (counterion, solvent or water); kept CC(=O)[O-]", 'neutralised: CC(=O)[O-] → CC(=O)O'])
+('CC(=O)O', ['set aside the fragment(s) [Na+] (counterion, solvent or water); kept CC(=O)[O-]', 'neutralised: CC(=O)[O-] → CC(=O)O'])
 """
 from __future__ import annotations
 
@@ -53,7 +53,7 @@ def check_open_shell(mol: Chem.Mol, label: str) -> None:
     bad = [a for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())) if a.GetNumRadicalElectrons()]
     if bad:
         a = bad[0]
-        raise InputError(f"{label}: atom {a.GetIdx() + 1} ({a.GetSymbol()}) carries {a.GetNumRadicalElectrons()} unpaired "
+        raise InputError(f"{label}: atom {a.GetIdx()} ({a.GetSymbol()}) carries {a.GetNumRadicalElectrons()} unpaired "
                          "electron(s): radicals and carbenes are not supported (write the closed-shell molecule, "
                          "e.g. with its hydrogens)")
 
