@@ -16,7 +16,7 @@ class SphereTables:
     """Per-radius tables of shift statistics keyed by sphere code.
 
     >>> t = SphereTables().fit(np.array([[1, 10], [1, 10], [1, 11]], np.uint32), np.array([20.0, 22.0, 30.0]))
-    >>> t.lookup(np.array([[1, 10]], np.uint32))[0, 1, 0]
+    >>> float(t.lookup(np.array([[1, 10]], np.uint32))[0, 1, 0])
     21.0
     """
 
