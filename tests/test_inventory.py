@@ -75,6 +75,11 @@ def test_mass_check_against_monoisotopic_masses():
     assert checks["[M+H]+"].expected_mz == pytest.approx(153.05462, abs=2e-5)
     assert checks["[M+H]+"].ok and not checks["[M]+"].ok and not checks["[M+Na]+"].ok
     assert checks["[M+Na]+"].expected_mz == pytest.approx(152.04734 + 22.98976928 - 0.00054858, abs=2e-5)
+    assert any(line.startswith("mass check: consistent with [M+H]+") for line in inv.lines())
+    # an m/z 1 Da off fits no ion: the line names the nearest and its error
+    off = take_inventory(c13, formula="C8H8O3", mz=154.0549)
+    line = next(x for x in off.lines() if x.startswith("mass check"))
+    assert "fits none of [M]+, [M+H]+, [M+Na]+; nearest [M+H]+" in line
 
 
 def test_inferences_are_marked():

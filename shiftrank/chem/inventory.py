@@ -135,9 +135,24 @@ class Inventory:
             out.append(f"tentative piece count: {self.tentative}")
         out.extend(f"inference: {i}" for i in self.inferences)
         out.extend(self.findings)
-        for m in self.mass_checks:
-            out.append(f"mass check {m.adduct}: expected m/z {m.expected_mz:.4f}, error {m.error_ppm:+.1f} ppm — {'consistent' if m.ok else 'no'}")
+        if self.mass_checks:
+            out.append(mass_check_line(self.mass_checks))
         return out
+
+
+def mass_check_line(checks: list[MassCheck]) -> str:
+    """One line: the ions the measured m/z fits, or the nearest one and how far off it is.
+
+    >>> mass_check_line([MassCheck("[M]+", 152.0468, 6630.2, False), MassCheck("[M+H]+", 153.0546, 1.8, True)])
+    'mass check: consistent with [M+H]+ (expected m/z 153.0546, error +1.8 ppm)'
+    """
+    ok = [m for m in checks if m.ok]
+    if ok:
+        return "mass check: consistent with " + "; ".join(
+            f"{m.adduct} (expected m/z {m.expected_mz:.4f}, error {m.error_ppm:+.1f} ppm)" for m in ok)
+    near = min(checks, key=lambda m: abs(m.error_ppm))
+    return (f"mass check: fits none of {', '.join(m.adduct for m in checks)}; nearest {near.adduct} "
+            f"(expected m/z {near.expected_mz:.4f}, error {near.error_ppm:+.1f} ppm)")
 
 
 def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> list[tuple[dict, int]]:

@@ -254,7 +254,7 @@ class CarbonEvidence(_Evidence):
         return Prepared(classes, peaks, bad_p, bad_j, list(notes))
 
     def flags(self, res: NucleusResult) -> list[str]:
-        out = _count_flags(res, "signals") + _quality_flags(res, "carbons")
+        out = _count_flags(res, "signals") + _quality_flags(res, ("carbon", "carbons"))
         n_mm = sum(1 for p in res.assignment.pairings if not p.multiplicity_ok)
         if n_mm:
             out.append(f"{n_mm} 13C peaks assigned against their printed multiplicity (DEPT, C–F or C–P splitting)")
@@ -422,7 +422,7 @@ class ProtonEvidence(_Evidence):
         return Prepared(classes, peaks, bad_p, bad_j)
 
     def flags(self, res: NucleusResult) -> list[str]:
-        out = _count_flags(res, "1H signals") + _quality_flags(res, "proton classes")
+        out = _count_flags(res, "1H signals") + _quality_flags(res, ("proton class", "proton classes"))
         classes, peaks, a = res.classes, res.peaks, res.assignment
         if res.by_protons:
             n_h = sum(c.units for c in classes)
@@ -433,7 +433,8 @@ class ProtonEvidence(_Evidence):
                            + (f" ({n_x} on O/N/S, often not seen)" if n_x else ""))
         n_mm = len({p.cls for p in a.pairings if not p.multiplicity_ok})
         if n_mm:
-            out.append(f"{n_mm} proton classes whose printed multiplet their neighbours cannot produce")
+            out.append(f"{_n(n_mm, 'proton class', 'proton classes')} whose printed multiplet "
+                       f"{'its' if n_mm == 1 else 'their'} neighbours cannot produce")
         return out
 
 
@@ -447,16 +448,21 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     n_shared = len({p.cls for p in a.pairings if p.shared})
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
-                + (f"; {n_shared} classes share peaks" if n_shared else "")
-                + (f"; {n_missing} classes unobserved" if n_missing else "")
+                + (f"; {_n(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
+                + (f"; {_n(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
                 + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
-                + (f"; {n_unexplained} peaks unexplained" if n_unexplained else "")]
-    return [f"{n_unexplained} {res.nucleus} peaks unexplained"] if n_unexplained else []
+                + (f"; {_n(n_unexplained, 'peak', 'peaks')} unexplained" if n_unexplained else "")]
+    return [f"{_n(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained"] if n_unexplained else []
 
 
-def _quality_flags(res: NucleusResult, what: str) -> list[str]:
+def _quality_flags(res: NucleusResult, what: tuple[str, str]) -> list[str]:
     n = res.beyond_3sigma
-    return [f"{n} {what} deviate by more than 3σ ({res.nucleus})"] if n else []
+    return [f"{_n(n, *what)} {'deviates' if n == 1 else 'deviate'} by more than 3σ ({res.nucleus})"] if n else []
+
+
+def _n(n: int, one: str, many: str) -> str:
+    """'1 carbon', '3 carbons'."""
+    return f"{n} {one if n == 1 else many}"
 
 
 #: HSQC: cross peaks whose carbon shifts differ by less than this (ppm) are one carbon with two protons
@@ -503,7 +509,7 @@ class HsqcEvidence(_Evidence):
         return Prepared(classes, peaks, bad, np.zeros_like(bad))
 
     def flags(self, res: NucleusResult) -> list[str]:
-        return _count_flags(res, "HSQC cross peaks (protonated carbons)") + _quality_flags(res, "protonated carbons")
+        return _count_flags(res, "HSQC cross peaks (protonated carbons)") + _quality_flags(res, ("protonated carbon", "protonated carbons"))
 
 
 EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence(), "HSQC": HsqcEvidence()}
