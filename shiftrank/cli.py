@@ -12,6 +12,7 @@ from pathlib import Path
 
 from . import __version__
 from .errors import InputError
+from .words import count
 
 
 def _print_facts(f, out=None) -> None:
@@ -115,7 +116,7 @@ def cmd_peaks(args) -> int:
         print(f"{p.shift:10.2f}  {extra}")
     for n in pl.notes:
         print(f"note: {n}")
-    print(f"{len(pl.peaks)} signals ({len(pl.sample_peaks())} from the sample)")
+    print(f"{count(len(pl.peaks), 'signal')} ({len(pl.sample_peaks())} from the sample)")
     return 0
 
 
@@ -379,7 +380,7 @@ def cmd_demo(args) -> int:
 
 
 def build_parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="shiftrank", description="Rank candidate structures against an observed 13C spectrum and the sample's history.")
+    p = argparse.ArgumentParser(prog="shiftrank", description="Rank candidate structures against observed 1H and/or 13C spectra (peak lists or printed text) and the sample's history.")
     p.add_argument("--version", action="version", version=f"shiftrank {__version__}")
     p.add_argument("--debug", action="store_true", help="show the traceback of an internal error")
     sub = p.add_subparsers(dest="command", metavar="COMMAND")

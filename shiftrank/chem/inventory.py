@@ -23,6 +23,7 @@ from fractions import Fraction
 from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_mz, parse_formula
 from ..inputs.peaks import PeakList
+from ..words import count
 
 H_OF = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
 ORDER = ("CH3", "CH2", "CH", "C")
@@ -289,7 +290,7 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
     ints = [p.intensity for p in sample if p.intensity is not None and p.intensity > 0]
     if not ints or len(ints) != len(sample):
         if sample:
-            inv.findings.append(f"1H: {len(sample)} signals; integrals missing for {len(sample) - len(ints)}, so no proton count")
+            inv.findings.append(f"1H: {count(len(sample), 'signal')}; integrals missing for {len(sample) - len(ints)}, so no proton count")
         return
     inv.h_ratio = integer_ratio(ints, max_multiplier=8)
     inv.h_total_from_integrals = sum(inv.h_ratio)

@@ -20,6 +20,7 @@ from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 
 from .. import __version__  # noqa: E402
 from ..score.ranking import CAUTION, CandidateResult, RankResult  # noqa: E402
+from ..words import count  # noqa: E402
 
 #: |deviation|/σ steps and their tints: our own scale, from calm to alarming.
 SCALE = [(1.0, "#1f7a8c", "within 1σ"), (2.0, "#7fb069", "1–2σ"), (3.0, "#e6aa68", "2–3σ"),
@@ -203,7 +204,7 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     for n in result.nuclei:
         ps = result.peaks[n]
         n_obs = sum(1 for p in ps if not p.solvent)
-        bits.append(f"{n_obs} {n} signals" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
+        bits.append(f"{count(n_obs, n + ' signal')}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")
     rows = []

@@ -4,6 +4,7 @@ from __future__ import annotations
 import sys
 
 from ..score.ranking import CAUTION
+from ..words import count
 
 
 def _fmt(x, spec: str, width: int) -> str:
@@ -19,7 +20,7 @@ def print_ranking(result, peaks_src: str, out=None) -> None:
         peaks = result.peaks[n]
         n_obs = sum(1 for p in peaks if not p.solvent)
         n_solv = len(peaks) - n_obs
-        print(f"{n} peaks: {peaks_src}: {n_obs} signals" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+        print(f"{n} peaks: {peaks_src}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
     for note in result.notes:
         print(f"  note: {note}", file=out)
     print(file=out)

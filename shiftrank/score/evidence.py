@@ -29,6 +29,7 @@ from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
 from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
+from ..words import count
 from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
 
 #: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
@@ -433,7 +434,7 @@ class ProtonEvidence(_Evidence):
                            + (f" ({n_x} on O/N/S, often not seen)" if n_x else ""))
         n_mm = len({p.cls for p in a.pairings if not p.multiplicity_ok})
         if n_mm:
-            out.append(f"{_n(n_mm, 'proton class', 'proton classes')} whose printed multiplet "
+            out.append(f"{count(n_mm, 'proton class', 'proton classes')} whose printed multiplet "
                        f"{'its' if n_mm == 1 else 'their'} neighbours cannot produce")
         return out
 
@@ -448,21 +449,17 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     n_shared = len({p.cls for p in a.pairings if p.shared})
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
-                + (f"; {_n(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
-                + (f"; {_n(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
+                + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
+                + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
                 + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
-                + (f"; {_n(n_unexplained, 'peak', 'peaks')} unexplained" if n_unexplained else "")]
-    return [f"{_n(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained"] if n_unexplained else []
+                + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained" if n_unexplained else "")]
+    return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained"] if n_unexplained else []
 
 
 def _quality_flags(res: NucleusResult, what: tuple[str, str]) -> list[str]:
     n = res.beyond_3sigma
-    return [f"{_n(n, *what)} {'deviates' if n == 1 else 'deviate'} by more than 3σ ({res.nucleus})"] if n else []
+    return [f"{count(n, *what)} {'deviates' if n == 1 else 'deviate'} by more than 3σ ({res.nucleus})"] if n else []
 
-
-def _n(n: int, one: str, many: str) -> str:
-    """'1 carbon', '3 carbons'."""
-    return f"{n} {one if n == 1 else many}"
 
 
 #: HSQC: cross peaks whose carbon shifts differ by less than this (ppm) are one carbon with two protons

@@ -36,6 +36,7 @@ from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
 from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
+from ..words import count
 from .matching import MatchCosts, ObservedPeak
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
@@ -369,7 +370,7 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
         limit = 0.6 if n == "1H" else 4.0
         unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent)
         if (r.mae is not None and r.mae > limit) or r.beyond_3sigma > max(1, 0.25 * k) or unexplained > max(2, 0.3 * k):
-            poor.append(f"{n} MAE {r.mae:.2f} ppm, {r.beyond_3sigma} classes beyond 3σ, {unexplained} peaks unexplained"
+            poor.append(f"{n} MAE {r.mae:.2f} ppm, {count(r.beyond_3sigma, 'class', 'classes')} beyond 3σ, {count(unexplained, 'peak')} unexplained"
                         if r.mae is not None else f"{n}: nothing assigned")
     if poor:
         return f"no candidate fits well: the best ({label}) has " + "; ".join(poor)
