@@ -281,7 +281,7 @@ def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C", not
     check_count(len(data), src)
     out, dropped = [], []
     for i, item in enumerate(data):
-        where = f"{src} peak {i + 1}"
+        where = f"'{src}' entry {i + 1}"
         try:
             out.append(_record_peak(item, where, nucleus))
         except OutOfRange as exc:
