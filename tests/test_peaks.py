@@ -90,3 +90,10 @@ def test_random_text_never_crashes_peak_parser(text):
     except InputError:
         return
     assert all(-20 <= p.shift <= 250 for p in pl.peaks)
+
+
+def test_a_bad_record_names_its_field_and_entry():
+    from shiftrank.inputs.peaks import peaks_from_records
+
+    with pytest.raises(InputError, match="'peaks_1h' entry 2: expected a number or an object with 'shift'"):
+        peaks_from_records([7.26, "x"], "peaks_1h", "1H")
