@@ -1,7 +1,7 @@
 """Positional-isomer ranking on the peak lists of never-trained skeletons (a large, low-noise set).
 
     python benchmarks/bench_regio_peaklists.py [--data DIR] [--limit N] [--split val|test|both]
-                                               [--save RANKS.json] [--compare RANKS.json]
+                                               [--nucleus 13C|1H] [--save RANKS.json] [--compare RANKS.json]
 
 The 1,158 development regio cases give only 241 held-out cases (about ±2 points of sampling noise at
 90 % top-1).  Here every validation- and test-split molecule of `peaklists.jsonl.gz` with a complete 13C
@@ -10,7 +10,9 @@ three ways: with the database's multiplicities, shifts only, and shifts only as 
 DEPT is not run (no multiplicities, and lines closer than 0.1 ppm printed once).  Reported: top-1, top-3,
 mean reciprocal rank, by split, by size and by the number of candidates.  Use it to compare a predictor or
 scorer change before and after; the ranking settings were fitted on validation-split cases, so the
-test split is the untouched part.  ``--save`` writes each case's rank of the truth; ``--compare`` reads
+test split is the untouched part.  ``--nucleus 1H`` does the same from the 1H lists (about 1,200 cases):
+they are often incomplete and carry neither integrals nor letters, so this ranks on predicted 1H shifts
+alone - a measure of the 1H predictor, harder than printed text with its multiplets.  ``--save`` writes each case's rank of the truth; ``--compare`` reads
 such a file from a run before the change and counts the cases each run alone gets right (a paired
 comparison: far less noisy than the difference of two top-1 figures).
 """
@@ -34,7 +36,7 @@ sys.path.insert(0, str(REPO / "benchmarks"))
 from bench_ranking import by_size_and_count, summary  # noqa: E402
 from training.data import DEFAULT_DATA, peaklist_regio_cases  # noqa: E402
 
-FIELDS = ("id", "peaks", "candidates", "formula", "solvent")
+FIELDS = ("id", "peaks", "peaks_1h", "candidates", "formula", "solvent")
 
 
 def printed_style(case: dict, gap: float = 0.1) -> dict:
@@ -54,6 +56,7 @@ def main() -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--limit", type=int, default=None)
     ap.add_argument("--split", choices=("val", "test", "both"), default="both")
+    ap.add_argument("--nucleus", choices=("13C", "1H"), default="13C")
     ap.add_argument("--save", type=Path, help="write the truth's rank per case and variant (JSON)")
     ap.add_argument("--compare", type=Path, help="a --save file of an earlier run: paired wins and losses")
     args = ap.parse_args()
@@ -61,15 +64,18 @@ def main() -> int:
 
     t = time.perf_counter()
     splits = ("val", "test") if args.split == "both" else (args.split,)
-    full = peaklist_regio_cases(args.data, splits)[: args.limit]
-    cases = [{k: c[k] for k in FIELDS} for c in full]
+    full = peaklist_regio_cases(args.data, splits, nucleus=args.nucleus)[: args.limit]
+    cases = [{k: c[k] for k in FIELDS if k in c} for c in full]
     truth = [c["truth"] for c in full]
     split = np.array([c["split"] for c in full])
     print(f"{len(cases)} cases, {sum(len(c['candidates']) for c in cases)} candidates "
           f"(built in {time.perf_counter() - t:.1f} s)")
-    variants = (("with multiplicities", cases),
-                ("shifts only", [{**c, "peaks": [{"shift": p["shift"]} for p in c["peaks"]]} for c in cases]),
-                ("printed style", [printed_style(c) for c in cases]))
+    if args.nucleus == "1H":
+        variants = (("1H shifts only", cases),)
+    else:
+        variants = (("with multiplicities", cases),
+                    ("shifts only", [{**c, "peaks": [{"shift": p["shift"]} for p in c["peaks"]]} for c in cases]),
+                    ("printed style", [printed_style(c) for c in cases]))
     before = json.loads(args.compare.read_text()) if args.compare else {}
     saved = {}
     for label, cs in variants:

@@ -151,10 +151,12 @@ def test_peaklist_regio_cases_come_from_never_trained_skeletons(shared_data):
 
     from training.data import peaklist_regio_cases, skeleton, split_of
 
-    cases = peaklist_regio_cases(shared_data, splits=("test",))
-    assert len(cases) > 500
-    for c in cases[:200]:
-        assert c["truth"] in c["candidates"] and len(c["candidates"]) >= 2
-        assert split_of(skeleton(MolToInchiKey(Chem.MolFromSmiles(c["truth"])))) == "test"
-        shifts = [p["shift"] for p in c["peaks"]]
-        assert len(shifts) == len(set(shifts))
+    for nucleus, key, least in (("13C", "peaks", 500), ("1H", "peaks_1h", 300)):
+        cases = peaklist_regio_cases(shared_data, splits=("test",), nucleus=nucleus)
+        assert len(cases) > least
+        for c in cases[:200]:
+            assert c["truth"] in c["candidates"] and len(c["candidates"]) >= 2
+            assert split_of(skeleton(MolToInchiKey(Chem.MolFromSmiles(c["truth"])))) == "test"
+            shifts = [p["shift"] for p in c[key]]
+            assert len(shifts) == len(set(shifts))
+            assert ("peaks" in c) == (nucleus == "13C") and ("peaks_1h" in c) == (nucleus == "1H")

@@ -199,21 +199,35 @@ def regio_candidates(truth: str, max_candidates: int = 12) -> list[str] | None:
     return sorted({truth, *alts[: max_candidates - 1]}) if alts else None
 
 
-def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), max_candidates: int = 12) -> list[dict]:
-    """Positional-isomer ranking cases from the unassigned 13C peak lists of the given splits (never
-    trained on: self-training reads the training split only), about ten times as many as the held-out
-    development regio cases, for measuring changes with less noise.
+def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), max_candidates: int = 12,
+                         nucleus: str = "13C") -> list[dict]:
+    """Positional-isomer ranking cases from the unassigned peak lists of the given splits (never trained
+    on: self-training reads the training split only), for measuring changes with less noise than the
+    held-out development regio cases.  A molecule gives a case when it has positional isomers
+    (:func:`regio_candidates`) and:
 
-    A molecule gives a case when its list has one value per carbon (incomplete lists are skipped) and it
-    has positional isomers (:func:`regio_candidates`).  The peaks are one entry per distinct value with
-    its multiplicity, as in the development cases.  'truth' and 'split' are for scoring only."""
+    * 13C: its list has one value per carbon (incomplete lists are skipped); the peaks are one entry per
+      distinct value with its multiplicity, as in the development cases (``peaks``);
+    * 1H: its list has at least one value per two proton-bearing carbon classes (the lists are often
+      incomplete, and give one entry per signal or per proton, seldom an integral or a letter); the
+      peaks are the distinct values, shifts only (``peaks_1h``).
+
+    'truth' and 'split' are for scoring only."""
     out = []
-    for m in load_peaklists(data_dir):
+    for m in load_peaklists(data_dir, nucleus=nucleus):
         if m.split not in splits or "." in m.smiles:
             continue
         mol = Chem.MolFromSmiles(m.smiles)
-        if mol is None or sum(a.GetAtomicNum() == 6 for a in mol.GetAtoms()) != len(m.peaks):
+        if mol is None:
             continue
+        if nucleus == "13C":
+            if sum(a.GetAtomicNum() == 6 for a in mol.GetAtoms()) != len(m.peaks):
+                continue
+        else:
+            ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+            ch_classes = {ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == 6 and a.GetTotalNumHs()}
+            if not ch_classes or 2 * len({round(v, 2) for v, _ in m.peaks}) < len(ch_classes):
+                continue
         truth = Chem.MolToSmiles(mol)
         cands = regio_candidates(truth, max_candidates)
         if cands is None:
@@ -221,10 +235,13 @@ def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), 
         distinct = {}
         for v, mult in m.peaks:
             distinct.setdefault(round(v, 2), mult)
-        peaks = [{"shift": v, "multiplicity": mult} if mult else {"shift": v} for v, mult in sorted(distinct.items())]
-        out.append({"id": m.id, "peaks": peaks, "candidates": cands, "solvent": m.solvent,
-                    "formula": rdMolDescriptors.CalcMolFormula(mol),
-                    "truth": truth, "split": m.split})
+        case = {"id": m.id, "candidates": cands, "solvent": m.solvent,
+                "formula": rdMolDescriptors.CalcMolFormula(mol), "truth": truth, "split": m.split}
+        if nucleus == "13C":
+            case["peaks"] = [{"shift": v, "multiplicity": mult} if mult else {"shift": v} for v, mult in sorted(distinct.items())]
+        else:
+            case["peaks_1h"] = [{"shift": v} for v in sorted(distinct)]
+        out.append(case)
     return out
 
 
