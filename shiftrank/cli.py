@@ -367,7 +367,7 @@ def cmd_isomers(args) -> int:
         for a in alts:
             print(json.dumps(a.to_dict()))
         return 0
-    print(f"{len(alts)} alternatives to {args.smiles or 'the reaction products'} ({args.kind}):")
+    print(f"{count(len(alts), 'alternative')} to {args.smiles or 'the reaction products'} ({args.kind}):")
     for k, a in enumerate(alts, 1):
         print(f"  {k:>3}  {a.kind:<10} {a.smiles:<45} {a.relation}")
     return 0

@@ -225,7 +225,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
         dC = nC - carbons
         if inv.dbe is not None and inv.dbe >= 4:
             n_arom = sum(1 for p in peaks if 110 <= p.shift <= 160)
-            msg = f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); {n_arom} 13C signals lie in 110-160 ppm"
+            msg = f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); {count(n_arom, '13C signal lies', '13C signals lie')} in 110-160 ppm"
             if h1 is not None:
                 msg += f", {sum(1 for p in h1.sample_peaks() if p.shift > 6.5)} 1H signals above 6.5 ppm"
             inv.findings.append(msg)

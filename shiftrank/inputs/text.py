@@ -24,6 +24,7 @@ import re
 from dataclasses import dataclass, field
 
 from ..errors import InputError
+from ..words import count
 from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, merge_duplicates, normalise_1h_multiplicity
 from .solvents import normalise_solvent
 
@@ -478,7 +479,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
         if sec.nucleus not in ("1H", "13C") and sec.peaks:
-            sec.notes.append(f"{sec.nucleus} section read ({len(sec.peaks)} peaks) but not used for ranking")
+            sec.notes.append(f"{sec.nucleus} section read ({count(len(sec.peaks), 'peak')}) but not used for ranking")
         out.sections.append(sec)
     if not any(s.peaks for s in out.sections):
         why = "; ".join(n for s in out.sections for n in s.notes[:2])

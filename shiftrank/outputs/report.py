@@ -177,7 +177,7 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
     pics = ""
     if with_plots and nucleus != "HSQC":   # HSQC: the table (δC / δH) is the picture
         pics = f"<div class='cardrow'><div>{structure_svg(c, nucleus)}</div><div>{spectrum_svg(result, c, nucleus)}</div></div>"
-    summary = (f"{nucleus}: {len(res.classes)} expected signals, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
+    summary = (f"{nucleus}: {count(len(res.classes), 'expected signal')}, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
                f"{res.beyond_3sigma} beyond 3σ · cost {res.cost:.1f} nats")
     return (f"<div class='nuc'>{e(summary)}</div>{pics}<details{' open' if rank_no == 1 else ''}>"
             f"<summary>{nucleus} assignment table</summary>{table}</details>")

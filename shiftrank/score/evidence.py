@@ -258,7 +258,8 @@ class CarbonEvidence(_Evidence):
         out = _count_flags(res, "signals") + _quality_flags(res, ("carbon", "carbons"))
         n_mm = sum(1 for p in res.assignment.pairings if not p.multiplicity_ok)
         if n_mm:
-            out.append(f"{n_mm} 13C peaks assigned against their printed multiplicity (DEPT, C–F or C–P splitting)")
+            out.append(f"{count(n_mm, '13C peak', '13C peaks')} assigned against {'its' if n_mm == 1 else 'their'} printed "
+                       "multiplicity (DEPT, C–F or C–P splitting)")
         return out
 
 
