@@ -160,3 +160,32 @@ def test_peaklist_regio_cases_come_from_never_trained_skeletons(shared_data):
             shifts = [p["shift"] for p in c[key]]
             assert len(shifts) == len(set(shifts))
             assert ("peaks" in c) == (nucleus == "13C") and ("peaks_1h" in c) == (nucleus == "1H")
+
+
+def _run_1h(smiles, peaks, mu_by_atom, sigma=0.1):
+    from training.pseudo_labels import _assign_1h
+
+    mol = Chem.MolFromSmiles(smiles)
+    env = environments(mol, None, "1H")
+    mu = np.array([mu_by_atom.get(int(a), 5.0) for a in env.centres], float)
+    out = _assign_1h(mol, env, [(v, None) for v in peaks], mu, np.full(len(mu), sigma))
+    return {int(env.centres[k]): v for k, v in out}
+
+
+# 4-bromoanisole, 1H in CDCl3 (from memory): H ortho to Br 7.37, H ortho to OMe 6.77, OCH3 3.77.
+# Constructed predictions: a model that never saw bromine puts the H ortho to Br 0.2 ppm low.
+BROMOANISOLE = "COc1ccc(Br)cc1"
+
+
+def test_a_complete_1h_list_is_assigned_jointly_where_values_crowd():
+    mu = {0: 3.79, 3: 6.82, 4: 7.17, 7: 7.17, 8: 6.82}   # atoms 4, 7 ortho to Br; 3, 8 ortho to OMe
+    # two aromatic values 0.6 ppm apart: the nearest-value rule alone refuses the H ortho to Br (0.2
+    # from its prediction, beyond 2σ), the joint assignment of the complete list takes it
+    got = _run_1h(BROMOANISOLE, [3.77, 6.77, 7.37], mu)
+    assert got[4] == got[7] == 7.37 and got[3] == got[8] == 6.77 and got[0] == 3.77
+    # an incomplete list (the OCH3 missing) is not assigned jointly: only the nearest-value rule speaks
+    part = _run_1h(BROMOANISOLE, [6.77, 7.37], mu)
+    assert 4 not in part and part[3] == 6.77
+    # a value too far from every prediction is not taken, even in a complete list
+    far = _run_1h(BROMOANISOLE, [3.77, 6.77, 8.60], mu)
+    assert 4 not in far and far[3] == 6.77

@@ -16,7 +16,9 @@ every other class of that multiplicity was labelled confidently.
 1H: entries stand for signals (sometimes repeated per proton), without integrals; several proton
 classes may share one signal and lists are often partial.  A class of C–H protons takes the
 nearest signal when it is close to the prediction and clearly closer than any other signal
-(:func:`_assign_1h`); exchangeable protons are never labelled.
+(:func:`_assign_1h`); a complete list (one value per C–H class, and at most one per OH/NH/SH class)
+is assigned jointly like a 13C list, which labels crowded aromatic regions too (:func:`_joint_1h`);
+exchangeable protons are never labelled.
 """
 from __future__ import annotations
 
@@ -39,6 +41,7 @@ CLEAR_MARGIN = 10.0     # ppm: a far label is kept if every rival class is at le
 H_MAX_ABS = 0.15        # 1H, ppm: a signal this close to the prediction (or within 2 sigma) may be taken
 H_MARGIN = 0.25         # 1H, ppm: ... when the next signal is at least this much (or 1 sigma) farther
 H_SOLE_MAX_ABS = 1.5    # 1H, ppm: the only C–H class and the only signal below 10 ppm belong together
+H_JOINT_MAX_ABS = 0.6   # 1H, ppm: a complete list assigned jointly: a class keeps a value this close (or 3σ)
 NOVEL_MAX_ABS = 80.0    # ppm: a label by elimination (never-seen environment) is refused beyond this
 
 
@@ -182,9 +185,12 @@ def _assign_1h(mol, env, peaks, mu, sigma):
     """Confident (row, label) pairs of C–H classes from a 1H signal list (see the module text)."""
     ranks = symmetry_ranks(mol)
     classes = defaultdict(list)
+    n_exch = set()
     for k, a in enumerate(int(x) for x in env.centres):
         if mol.GetAtomWithIdx(a).GetAtomicNum() == 6:
             classes[ranks[a]].append(k)
+        else:
+            n_exch.add(ranks[a])
     obs = np.unique(np.round([s for s, _ in peaks], 4))
     if not len(obs) or not classes:
         return []
@@ -194,7 +200,11 @@ def _assign_1h(mol, env, peaks, mu, sigma):
         low = obs[obs < 10.0]  # above 10 ppm: acids, aldehydes' rivals, NH/OH of the same compound
         if len(low) == 1 and abs(low[0] - float(mu[ks].mean())) <= H_SOLE_MAX_ABS:
             return [(k, float(low[0])) for k in ks]
-    for ks in classes.values():
+    joint = _joint_1h(list(classes.values()), obs, mu, sigma, len(n_exch))
+    for ci, ks in enumerate(classes.values()):
+        if ci in joint:
+            out.extend((k, joint[ci]) for k in ks)
+            continue
         p, s = float(mu[ks].mean()), float(sigma[ks].mean())
         d = np.abs(obs - p)
         order = np.argsort(d)
@@ -203,6 +213,20 @@ def _assign_1h(mol, env, peaks, mu, sigma):
         if d1 <= max(H_MAX_ABS, 2 * s) and d2 - d1 >= max(H_MARGIN, s):
             out.extend((k, float(obs[order[0]])) for k in ks)
     return out
+
+
+def _joint_1h(classes: list[list[int]], obs: np.ndarray, mu, sigma, n_exchangeable: int) -> dict[int, float]:
+    """A complete list - one distinct value per C–H class, plus at most one per OH/NH/SH class - is
+    assigned to all classes at once (Hungarian algorithm on |predicted − observed|, as for 13C), so
+    crowded regions such as aromatic rings get labels their nearest-value rule refuses; a class keeps
+    its value when it lies within ``H_JOINT_MAX_ABS`` (or 3σ) of its prediction.  {class: value}."""
+    extra = len(obs) - len(classes)
+    if extra < 0 or extra > n_exchangeable:
+        return {}
+    pmu = np.array([float(mu[ks].mean()) for ks in classes])
+    psg = np.array([float(sigma[ks].mean()) for ks in classes])
+    r, c = linear_sum_assignment(np.abs(pmu[:, None] - obs[None, :]))
+    return {int(i): float(obs[j]) for i, j in zip(r, c) if abs(obs[j] - pmu[i]) <= max(H_JOINT_MAX_ABS, 3 * psg[i])}
 
 
 def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, max_abs: float = 6.0,
