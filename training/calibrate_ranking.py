@@ -1,6 +1,7 @@
 """Fit the ranking's costs and temperatures on development cases (run after the models are trained).
 
     python -m training.calibrate_ranking [--data DIR] [--models models/] [--steps 13C,1H,joint,HSQC]
+                                         [--params t_widen,...]
 
 Development cases, never the test split nor the held-out half of the literature:
 
@@ -22,6 +23,10 @@ Steps:
   paragraphs: their ratio (the weight of 1H against 13C) by top-1, the common scale by maximum likelihood;
 * ``HSQC``: the HSQC temperature alone and beside a 13C list, by maximum likelihood on validation-split
   compounds whose assigned 13C and 1H shifts give the cross peaks (:func:`training.data.hsqc_cases`).
+
+``--params`` limits the cost steps to the named costs (the others keep their values), e.g. only
+``t_widen`` - how much wider printed shifts scatter than the model's own residuals - after a retrained
+model changed its σ.
 
 The 'truth' field only scores the settings; it never reaches the ranker.  Writes the values into
 ``models/manifest.json`` under ``ranking``.
@@ -70,7 +75,7 @@ GRID = {
         "j_mismatch": [0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
         "missing_exchangeable": [0.1, 0.5, 1.0, 2.0],
         "integral_mismatch": [0.5, 1.0, 1.5, 2.5, 4.0],
-        "t_widen": [1.0, 1.25, 1.5, 2.0, 2.5],
+        "t_widen": [1.0, 1.25, 1.5, 2.0, 2.5, 3.0, 3.5],
         "shared_multiplet": [0.0, 0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
     },
 }
@@ -178,13 +183,16 @@ def objective(sets: list, nucleus: str, costs: MatchCosts) -> tuple[float, float
     return float(np.mean([top1(r) for r in rows_per])), -float(np.mean([nll(r, np.array([T])) for r in rows_per]))
 
 
-def fit_costs(sets: list, nucleus: str, start: MatchCosts, passes: int = 2) -> tuple[MatchCosts, tuple]:
+def fit_costs(sets: list, nucleus: str, start: MatchCosts, passes: int = 2,
+              params: list[str] | None = None) -> tuple[MatchCosts, tuple]:
     cur = start
     best = objective(sets, nucleus, cur)
     print(f"  start {nucleus}: top-1 {best[0]:.4f}, log-lik {best[1]:.4f}", flush=True)
     for _ in range(passes):
         changed = False
         for name, values in GRID[nucleus].items():
+            if params and name not in params:
+                continue
             for v in values:
                 if v == getattr(cur, name):
                     continue
@@ -203,8 +211,13 @@ def main(argv=None) -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=REPO / "models")
     ap.add_argument("--steps", default="13C,1H,joint,HSQC")
+    ap.add_argument("--params", default=None, help="refit only these costs (comma-separated), e.g. t_widen")
     args = ap.parse_args(argv)
     steps = args.steps.split(",")
+    params = args.params.split(",") if args.params else None
+    unknown = sorted(set(params or []) - {k for g in GRID.values() for k in g})
+    if unknown:
+        ap.error(f"--params: no grid for {', '.join(unknown)}")
     t0 = time.time()
     settings = ranking_settings()
     man_path = args.models / "manifest.json"
@@ -218,23 +231,25 @@ def main(argv=None) -> int:
         sets = [stage(db, "db"), stage(db, "db-shifts"), stage(text_cases, "13C")]
         print(f"13C: {len(db)} validation-split database cases and {len(sets[2])} text cases staged "
               f"in {time.time() - t0:.0f} s", flush=True)
-        costs, score = fit_costs(sets, "13C", settings.costs["13C"])
+        costs, score = fit_costs(sets, "13C", settings.costs["13C"], params=params)
         fitted["13C"] = costs
         T = fit_temperature([r for s in sets for r in raw_costs(s, "13C", costs)])
         ranking["13C"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
                           "fitted_on": f"{len(db)} validation-split database cases (with and without DEPT) and "
-                                       f"{len(sets[2])} dev-half printed 13C paragraphs",
+                                       f"{len(sets[2])} dev-half printed 13C paragraphs"
+                                       + (f" (only {', '.join(params)} refitted; the other costs kept)" if params else ""),
                           "dev_top1": {"database": round(top1(raw_costs(sets[0], "13C", costs)), 4),
                                        "database_shifts_only": round(top1(raw_costs(sets[1], "13C", costs)), 4),
                                        "printed": round(top1(raw_costs(sets[2], "13C", costs)), 4)}}
         print(f"  13C: {ranking['13C']}", flush=True)
     if "1H" in steps:
         sets = [stage(text_cases, "1H")]
-        costs, score = fit_costs(sets, "1H", settings.costs["1H"])
+        costs, score = fit_costs(sets, "1H", settings.costs["1H"], params=params)
         fitted["1H"] = costs
         T = fit_temperature(raw_costs(sets[0], "1H", costs))
         ranking["1H"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
-                         "fitted_on": f"{len(sets[0])} dev-half printed 1H paragraphs",
+                         "fitted_on": f"{len(sets[0])} dev-half printed 1H paragraphs"
+                                      + (f" (only {', '.join(params)} refitted; the other costs kept)" if params else ""),
                          "dev_top1": {"printed": round(score[0], 4)}}
         print(f"  1H: {ranking['1H']}", flush=True)
     if "joint" in steps:
