@@ -185,12 +185,12 @@ def _assign_1h(mol, env, peaks, mu, sigma):
     """Confident (row, label) pairs of C–H classes from a 1H signal list (see the module text)."""
     ranks = symmetry_ranks(mol)
     classes = defaultdict(list)
-    n_exch = set()
+    exch_classes = set()
     for k, a in enumerate(int(x) for x in env.centres):
         if mol.GetAtomWithIdx(a).GetAtomicNum() == 6:
             classes[ranks[a]].append(k)
         else:
-            n_exch.add(ranks[a])
+            exch_classes.add(ranks[a])
     obs = np.unique(np.round([s for s, _ in peaks], 4))
     if not len(obs) or not classes:
         return []
@@ -200,7 +200,7 @@ def _assign_1h(mol, env, peaks, mu, sigma):
         low = obs[obs < 10.0]  # above 10 ppm: acids, aldehydes' rivals, NH/OH of the same compound
         if len(low) == 1 and abs(low[0] - float(mu[ks].mean())) <= H_SOLE_MAX_ABS:
             return [(k, float(low[0])) for k in ks]
-    joint = _joint_1h(list(classes.values()), obs, mu, sigma, len(n_exch))
+    joint = _joint_1h(list(classes.values()), obs, mu, sigma, len(exch_classes))
     for ci, ks in enumerate(classes.values()):
         if ci in joint:
             out.extend((k, joint[ci]) for k in ks)
