@@ -99,11 +99,15 @@ class ExpectedMultiplet:
     groups: list[CouplingGroup] = field(default_factory=list)
     exchangeable: bool = False
     _patterns: frozenset | None = field(default=None, repr=False, compare=False)
+    _signature: tuple | None = field(default=None, repr=False, compare=False)
 
     @property
     def signature(self) -> tuple:
-        """What the comparison with a printed multiplet depends on (many classes share it)."""
-        return tuple((g.kind, g.n, g.partner) for g in self.groups), self.exchangeable
+        """What the comparison with a printed multiplet depends on (many classes share it); worked out
+        once (the groups are fixed when the class is built)."""
+        if self._signature is None:
+            self._signature = tuple((g.kind, g.n, g.partner) for g in self.groups), self.exchangeable
+        return self._signature
 
     def patterns(self) -> frozenset[tuple[int, ...]]:
         """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
@@ -112,18 +116,24 @@ class ExpectedMultiplet:
             self._patterns = _patterns_of(self.signature[0])
         return self._patterns
 
+    def _shown_groups(self) -> list[CouplingGroup]:
+        return sorted((g for g in self.groups if g.kind != "long-range"), key=lambda g: -g.j_range[1])
+
+    def letters(self) -> str:
+        """Expected multiplet in letters, optional splittings in brackets (``'t(d)'``; ``'br s'`` for OH/NH/SH)."""
+        if self.exchangeable:
+            return "br s"
+        letters = "".join(_letter(g.n + 1) if not g.optional else f"({_letter(g.n + 1)})" for g in self._shown_groups()) or "s"
+        return "s" + letters if letters.startswith("(") else letters
+
     def label(self) -> str:
-        """Expected multiplet in letters, optional splittings in brackets, with its couplings, e.g.
+        """:meth:`letters` with the couplings, e.g.
         ``'t(d) (ortho 6-10 Hz x2, meta 0.5-3.5 Hz x1 (may be unresolved))'``."""
-        gs = sorted((g for g in self.groups if g.kind != "long-range"), key=lambda g: -g.j_range[1])
-        letters = "".join(_letter(g.n + 1) if not g.optional else f"({_letter(g.n + 1)})" for g in gs) or "s"
-        if letters.startswith("("):
-            letters = "s" + letters
+        gs = self._shown_groups()
+        letters = self.letters()
         opt = [g for g in gs if g.optional]
         text = ", ".join(f"{g.kind.replace('-pair', ' to a diastereotopic CH2 (one J or two)')}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
                          f"x{g.n}{' (may be unresolved)' if g.optional else ''}" for g in gs)
-        if self.exchangeable:
-            letters = "br s"
         return f"{letters} ({text})" if gs else letters + (" (no coupled neighbours)" if not opt else "")
 
     def j_ranges(self) -> list[tuple[float, float]]:

@@ -400,7 +400,7 @@ class ProtonEvidence(_Evidence):
         for e, m_, s_ in zip(ems, means, sigmas):
             splittable = len(e.atoms) == 1 and (any(g.kind in ("geminal", "geminal-alkene") for g in e.groups)
                                                 or _amide_nh2(mol, e.atoms[0]))
-            out.append(SignalClass(e.atoms, e.label().split(" (")[0], float(m_), float(s_),
+            out.append(SignalClass(e.atoms, e.letters(), float(m_), float(s_),
                                    e.n_h if by_protons else 1,
                                    exchangeable=e.exchangeable, splittable=splittable, expected=e))
         return out
