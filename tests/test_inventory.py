@@ -93,3 +93,13 @@ def test_inferences_are_marked():
 ])
 def test_region_hints_common_practice(shift, mult, fragment):
     assert fragment in region_hint(shift, mult)
+
+
+def test_1h_patterns_allow_an_n_ethyl_or_n_methyl_azole():
+    # ethyl 1-methylpyrazole-4-carboxylate-like pieces (own choice): an OCH2CH3 quartet near 4.3 and an
+    # N-CH3 singlet near 3.9 ppm; N-ethyl and N-methyl azoles print there too (common practice), so the
+    # hints must not claim O alone
+    h1 = parse_peaks("7.90 1 s\n7.85 1 s\n4.28 2 q\n3.92 3 s\n1.33 3 t\n", nucleus="1H")
+    lines = take_inventory(None, h1).h_patterns
+    assert any("ethyl group" in x and "on O or an aromatic N" in x for x in lines)
+    assert any("3H singlet at 3.92" in x and "NCH3 of an azole" in x for x in lines)

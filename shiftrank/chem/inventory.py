@@ -311,10 +311,11 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
     quart2 = [p for p, n in zip(sample, inv.h_ratio) if n == 2 and p.multiplicity == "q"]
     if trip3 and quart2:
         inv.h_patterns.append(f"a 3H triplet ({trip3[0].shift:g}) and a 2H quartet ({quart2[0].shift:g}): an ethyl group "
-                              "(common practice)" + (", on O (quartet above 3.5 ppm)" if quart2[0].shift > 3.5 else ""))
+                              "(common practice)" + (", on O or an aromatic N (quartet above 3.5 ppm)" if quart2[0].shift > 3.5 else ""))
     singlets3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "s"]
     for p in singlets3:
-        where = "OCH3" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3 else "CH3 on a quaternary carbon"
+        where = ("OCH3, or NCH3 of an azole" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3
+                 else "CH3 on a quaternary carbon")
         inv.h_patterns.append(f"3H singlet at {p.shift:g}: an isolated methyl ({where}; common practice)")
 
 
