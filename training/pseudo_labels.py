@@ -142,17 +142,17 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
         L = cls_label[ks[0]]
         p, s = float(mu[ks].mean()), float(sigma[ks].mean())
         err = abs(L - p)
+        # the other classes of its multiplicity (all others when the list has none)
+        rivals = [o for o in cls_list if o is not ks and (key_u[0] == "*" or cls_mult[o[0]] == cls_mult[ks[0]])]
         if novel[ks].all():
-            # by elimination: every other class of its multiplicity is labelled confidently and
-            # none of them is novel too, so the entry left over is this class's
-            others = [o for o in cls_list if o is not ks and (key_u[0] == "*" or cls_mult[o[0]] == cls_mult[ks[0]])]
-            if err <= NOVEL_MAX_ABS and all(not novel[o].any() and confident(o) for o in others):
+            # by elimination: every rival is labelled confidently and none of them is novel too,
+            # so the entry left over is this class's
+            if err <= NOVEL_MAX_ABS and all(not novel[o].any() and confident(o) for o in rivals):
                 out.extend((k, L) for k in ks)
             continue
         # the only class of its multiplicity (or the only class): its peak cannot belong to another
         # carbon, so the label is right even where the model is far off (tiny molecules, rare rings);
         # these are the labels that teach the model what it does not know yet
-        rivals = [o for o in cls_list if o is not ks and (key_u[0] == "*" or cls_mult[o[0]] == cls_mult[ks[0]])]
         if not rivals:
             if err <= FORCED_MAX_ABS:
                 out.extend((k, L) for k in ks)
@@ -166,8 +166,8 @@ def _assign_one(mol, env, peaks, mu, sigma, max_z, max_abs, novel=None):
                 out.extend((k, L) for k in ks)
             continue
         ambiguous = False
-        for other in cls_list:
-            if other is ks or (key_u[0] != "*" and cls_mult[other[0]] != cls_mult[ks[0]]) or novel[other].all():
+        for other in rivals:
+            if novel[other].all():
                 continue   # (a never-seen environment's prediction says nothing about who owns a value)
             Lo = cls_label.get(other[0])
             if Lo is not None and abs(Lo - L) <= SWAP_LABEL_GAP:
