@@ -17,6 +17,7 @@ import numpy as np
 from rdkit import Chem, RDLogger
 from rdkit.Chem import rdMolDescriptors
 
+from shiftrank.chem.structure import symmetry_ranks
 from shiftrank.inputs.molecules import ORGANIC
 from shiftrank.inputs.solvents import normalise_solvent
 
@@ -224,7 +225,7 @@ def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), 
             if sum(a.GetAtomicNum() == 6 for a in mol.GetAtoms()) != len(m.peaks):
                 continue
         else:
-            ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+            ranks = symmetry_ranks(mol)
             ch_classes = {ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == 6 and a.GetTotalNumHs()}
             if not ch_classes or 2 * len({round(v, 2) for v, _ in m.peaks}) < len(ch_classes):
                 continue
@@ -269,7 +270,7 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         cands = regio_candidates(truth, max_candidates)
         if cands is None:
             continue
-        ranks = list(Chem.CanonicalRankAtoms(m.mol, breakTies=False))
+        ranks = symmetry_ranks(m.mol)
         carbons = {}
         for a, v in m.shifts.items():   # the 13C list as a database gives it: one line per class of equivalent carbons
             atom = m.mol.GetAtomWithIdx(a)
