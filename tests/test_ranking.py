@@ -98,3 +98,58 @@ def test_priors_shift_probability():
     p_even = next(c.probability for c in even.candidates if c.smiles == META)
     p_tilt = next(c.probability for c in tilted.candidates if c.smiles == META)
     assert p_tilt > p_even
+
+
+# PMC9832363: 2-(3-methoxyphenyl)-2,3-dihydroquinazolin-4(1H)-one in DMSO-d6, both paragraphs as printed
+# (the '(s, J = 8.11 Hz, 1H)' is the article's); candidates: the three methoxyphenyl positions
+QUINAZOLINONE_TEXT = (
+    "1H NMR (DMSO-d6, 400 MHz): δ 8.27 (s, 1H), 7.58–7.56 (d, J = 7.70 Hz, 1H), 7.28–7.19 (m, 2H), 7.09 (s, 1H), "
+    "7.03 (s, 2H), 6.88–6.86 (d, J = 8.11 Hz, 1H), 6.73–6.71 (s, J = 8.11 Hz, 1H), 6.65–6.62 (m, 1H), 5.68 (s, 1H), "
+    "3.71 (s, 3H)\n13C NMR (DMSO-d6, 100 MHz): δ 164.09, 159.75, 148.34, 143.86, 133.85, 129.96, 127.87, 119.46, "
+    "117.65, 115.51, 114.94, 114.21, 113.10, 66.81, 55.61")
+QUINAZOLINONE = "COc1cccc(C2NC(=O)c3ccccc3N2)c1"
+QUINAZOLINONE_ISOMERS = ["COc1ccc(C2NC(=O)c3ccccc3N2)cc1", QUINAZOLINONE, "COc1ccccc1C1NC(=O)c2ccccc2N1"]
+
+
+def test_each_spectrum_alone_gets_its_own_probabilities_and_a_conflict_is_named():
+    from shiftrank.score.ranking import spectra_disagreement
+
+    r = rank(text=QUINAZOLINONE_TEXT, candidates=QUINAZOLINONE_ISOMERS)
+    for n in ("13C", "1H"):
+        assert sum(c.by_spectrum[n] for c in r.candidates) == pytest.approx(1.0)
+    by_13c = max(r.candidates, key=lambda c: c.by_spectrum["13C"])
+    assert by_13c.smiles == QUINAZOLINONE          # the printed 13C list alone points to the published structure
+    note = spectra_disagreement(r.candidates)
+    assert ("the spectra disagree" in r.verdict) == (note is not None)
+    if note:
+        assert note in r.verdict
+    d = r.to_dict()["ranking"][0]
+    assert set(d["probability_by_spectrum"]) == {"13C", "1H"}
+
+
+def _cand(smiles, **by):
+    from shiftrank.score.ranking import CandidateResult
+
+    return CandidateResult(smiles, 0, by_spectrum=by)
+
+
+@pytest.mark.parametrize("a13, b13, a1h, b1h, conflict", [
+    (0.9, 0.1, 0.2, 0.8, True),     # each spectrum favours its own candidate four times over
+    (0.9, 0.1, 0.45, 0.55, False),  # 1H barely leans the other way: not a disagreement
+    (0.9, 0.1, 0.7, 0.3, False),    # both favour A
+    (0.6, 0.3, 0.3, 0.6, True),     # exactly twice over, both ways
+])
+def test_spectra_disagree_only_when_each_favours_its_candidate_twice_over(a13, b13, a1h, b1h, conflict):
+    from shiftrank.score.ranking import spectra_disagreement
+
+    cands = [_cand("A", **{"13C": a13, "1H": a1h}), _cand("B", **{"13C": b13, "1H": b1h})]
+    note = spectra_disagreement(cands)
+    assert (note is not None) == conflict
+    if conflict:
+        assert note == f"13C alone favours A (p = {a13:.2f}), 1H alone favours B (p = {b1h:.2f})"
+
+
+def test_one_spectrum_gives_no_per_spectrum_view():
+    r = rank(peaks(PARA_PEAKS), [META, PARA])
+    assert all(not c.by_spectrum for c in r.candidates)
+    assert "probability_by_spectrum" not in r.to_dict()["ranking"][0]

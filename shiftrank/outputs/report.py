@@ -208,13 +208,15 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")
     rows = []
-    nuc_heads = "".join(f"<th>MAE {n} (ppm)</th>" for n in result.nuclei)
+    alone = len(result.nuclei) > 1   # each spectrum's own probability beside its fit
+    nuc_heads = "".join((f"<th>p, {n} alone</th>" if alone else "") + f"<th>MAE {n} (ppm)</th>" for n in result.nuclei)
     for i, c in enumerate(result.candidates, 1):
         label = e(c.name) if c.name else f"<code>{e(c.smiles)}</code>"
         if c.error:
-            rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan={3 + len(result.nuclei)} class=err>{e(c.error)}</td></tr>")
+            rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan={3 + len(result.nuclei) * (2 if alone else 1)} class=err>{e(c.error)}</td></tr>")
             continue
-        maes = "".join(f"<td class=num>{_fmt(c.nuclei[n].mae)}</td>" for n in result.nuclei)
+        maes = "".join((f"<td class=num>{_fmt(c.by_spectrum.get(n), 3)}</td>" if alone else "")
+                       + f"<td class=num>{_fmt(c.nuclei[n].mae)}</td>" for n in result.nuclei)
         rows.append(f"<tr><td>{i}</td><td>{label}</td><td><div class='bar'><span style='width:{100 * c.probability:.1f}%'></span></div> "
                     f"{c.probability:.3f}</td>{maes}<td class=num>{c.beyond_3sigma}</td>"
                     f"<td>{'✓' if c.formula_ok else ('✗' if c.formula_ok is False else '')}</td></tr>")

@@ -24,7 +24,8 @@ def print_ranking(result, peaks_src: str, out=None) -> None:
     for note in result.notes:
         print(f"  note: {note}", file=out)
     print(file=out)
-    head = "".join(f" {'MAE ' + n:>9} {'sig.':>6}" for n in nuclei)
+    alone = len(nuclei) > 1   # then each spectrum's own probability is shown beside its fit
+    head = "".join((f" {'p ' + n:>7}" if alone else "") + f" {'MAE ' + n:>9} {'sig.':>6}" for n in nuclei)
     print(f" {'#':>2}  {'p':>6} {head} {'>3σ':>4}  candidate", file=out)
     for i, c in enumerate(result.candidates, 1):
         label = f"{c.name}  {c.smiles}" if c.name else c.smiles
@@ -34,6 +35,8 @@ def print_ranking(result, peaks_src: str, out=None) -> None:
         cols = ""
         for n in nuclei:
             r = c.nuclei[n]
+            if alone:
+                cols += f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
             cols += f" {_fmt(r.mae, '9.2f', 9)} {len(r.classes):>3}/{r.observed_signals:<2}"
         print(f" {i:>2}  {c.probability:6.3f} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
         for fl in c.flags:

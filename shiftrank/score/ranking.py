@@ -67,6 +67,8 @@ class CandidateResult:
     probability: float = 0.0
     flags: list[str] = field(default_factory=list)
     formula_ok: bool | None = None
+    #: with two or more spectra: the probability each spectrum alone gives (its own temperature, no priors)
+    by_spectrum: dict = field(default_factory=dict)
 
     @property
     def main(self) -> NucleusResult | None:
@@ -108,6 +110,8 @@ class CandidateResult:
         d.update({"formula": self.facts.formula, "dbe": self.facts.dbe, "formula_ok": self.formula_ok,
                   "cost": _r(self.cost, 3), "flags": self.flags,
                   "nuclei": {n: r.to_dict(detail) for n, r in self.nuclei.items()}})
+        if self.by_spectrum:
+            d["probability_by_spectrum"] = {n: _r(p, 6) for n, p in self.by_spectrum.items()}
         return d
 
 
@@ -334,7 +338,10 @@ def _history_checks(res: CandidateResult, formula_counts, mass: float | None, ma
                                 f"contradicts the sample mass {mass:g} ± {mass_tol:g}")
 
 
-def _probabilities(cands: list[CandidateResult], priors, demote: bool) -> None:
+def _probabilities(cands: list[CandidateResult], priors, demote: bool, settings: RankingSettings | None = None,
+                   spectra: Sequence[str] = ()) -> None:
+    """Probabilities over the candidates from their total tempered costs (and the priors); with two or
+    more spectra and ``settings``, also each spectrum's own view (:attr:`CandidateResult.by_spectrum`)."""
     valid = [c for c in cands if not c.error]
     for c in valid:
         c.score = -c.cost
@@ -344,10 +351,47 @@ def _probabilities(cands: list[CandidateResult], priors, demote: bool) -> None:
     if not pool:
         return
     logp = np.array([c.score + np.log(priors[c.position]) if priors is not None else c.score for c in pool])
-    w = np.exp(logp - logp.max())
-    w /= w.sum()
-    for c, p in zip(pool, w):
+    for c, p in zip(pool, _softmax(logp)):
         c.probability = float(p)
+    if settings is not None and len(spectra) > 1:
+        for n in spectra:
+            own = _softmax(np.array([-c.nuclei[n].cost / settings.divisor(n, False) for c in pool]))
+            for c, p in zip(pool, own):
+                c.by_spectrum[n] = float(p)
+
+
+def _softmax(logp: np.ndarray) -> np.ndarray:
+    w = np.exp(logp - logp.max())
+    return w / w.sum()
+
+
+#: A spectrum "favours" its best candidate over another when it gives it at least this many times the
+#: other's probability (a likelihood ratio of 2 under that spectrum's own temperature).
+FAVOUR_RATIO = 2.0
+
+
+def spectra_disagreement(cands: list[CandidateResult]) -> str | None:
+    """A note when two spectra, each taken alone, favour different candidates (each at least
+    :data:`FAVOUR_RATIO` times over the other's favourite), e.g. ``'13C alone favours A (p = 0.71), 1H
+    alone favours B (p = 0.64)'``; None when they agree or only one spectrum was observed.
+
+    On the printed-text regio development cases (1H + 13C, both halves) the top candidate was right in
+    302 of 378 cases without this note (80 %) and in 35 of the 60 with it (58 %); DEVELOPERS.md.
+    """
+    pool = [c for c in cands if not c.error and c.by_spectrum]
+    if len(pool) < 2:
+        return None
+    spectra = list(pool[0].by_spectrum)
+    fav = {n: max(pool, key=lambda c: c.by_spectrum[n]) for n in spectra}
+    for i, n in enumerate(spectra):
+        for m in spectra[i + 1:]:
+            a, b = fav[n], fav[m]
+            if a is b:
+                continue
+            if a.by_spectrum[n] >= FAVOUR_RATIO * b.by_spectrum[n] and b.by_spectrum[m] >= FAVOUR_RATIO * a.by_spectrum[m]:
+                return (f"{n} alone favours {a.name or a.smiles} (p = {a.by_spectrum[n]:.2f}), "
+                        f"{m} alone favours {b.name or b.smiles} (p = {b.by_spectrum[m]:.2f})")
+    return None
 
 
 def _order_key(c: CandidateResult, demote: bool):
@@ -374,16 +418,18 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
                         if r.mae is not None else f"{n}: nothing assigned")
     if poor:
         return f"no candidate fits well: the best ({label}) has " + "; ".join(poor)
+    conflict = spectra_disagreement(valid)
+    conflict = f"; the spectra disagree: {conflict}" if conflict else ""
     count_note = _count_misfit(valid)
     if count_note:
-        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}"
+        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{conflict}"
     if best.probability >= 0.9:
-        return f"clear winner: {label} (p = {best.probability:.2f})"
+        return f"clear winner: {label} (p = {best.probability:.2f}){conflict}"
     second = valid[1] if len(valid) > 1 else None
     if second is not None and best.probability + second.probability >= 0.9 and second.probability >= 0.2:
         return (f"two candidates indistinguishable from {spectra} alone: {label} (p = {best.probability:.2f}) and "
-                f"{second.name or second.smiles} (p = {second.probability:.2f})")
-    return f"leaning to {label} (p = {best.probability:.2f}); not decisive"
+                f"{second.name or second.smiles} (p = {second.probability:.2f}){conflict}")
+    return f"leaning to {label} (p = {best.probability:.2f}); not decisive{conflict}"
 
 
 def _count_misfit(valid: list[CandidateResult]) -> str | None:
@@ -669,7 +715,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
-        _probabilities(results, priors, demote_history_mismatch)
+        _probabilities(results, priors, demote_history_mismatch, settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
         out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
     return out
