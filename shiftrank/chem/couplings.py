@@ -98,6 +98,7 @@ class ExpectedMultiplet:
     n_h: int                  # protons in the class
     groups: list[CouplingGroup] = field(default_factory=list)
     exchangeable: bool = False
+    amide_nh2: bool = False   # a primary (thio)amide NH2 (see :attr:`may_split`)
     _patterns: frozenset | None = field(default=None, repr=False, compare=False)
     _signature: tuple | None = field(default=None, repr=False, compare=False)
 
@@ -108,6 +109,14 @@ class ExpectedMultiplet:
         if self._signature is None:
             self._signature = tuple((g.kind, g.n, g.partner) for g in self.groups), self.exchangeable
         return self._signature
+
+    @property
+    def may_split(self) -> bool:
+        """Whether the class's protons, on one atom, may show as two signals: the two protons of a CH2
+        next to a stereocentre or in a ring, or of a =CH2, differ; slow rotation about the C–N bond of a
+        primary (thio)amide or (thio)urea often shows its NH2 as two 1H signals (common practice, e.g. in
+        DMSO-d6).  An aniline or sulfonamide NH2 stays one signal."""
+        return len(self.atoms) == 1 and (self.amide_nh2 or any(g.kind in ("geminal", "geminal-alkene") for g in self.groups))
 
     def patterns(self) -> frozenset[tuple[int, ...]]:
         """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
@@ -379,11 +388,21 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
             classes.setdefault(ranks[i], []).append(i)
     chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
                  if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
+    amide_n = _amide_nh2_atoms(mol)
     out = []
     for atoms in sorted(classes.values(), key=lambda g: g[0]):
         n_h = sum(T.nh[i] for i in atoms)
-        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]]))
+        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]],
+                                     amide_nh2=atoms[0] in amide_n))
     return out
+
+
+_AMIDE_NH2 = Chem.MolFromSmarts("[NX3H2]-[CX3]=[O,S]")
+
+
+def _amide_nh2_atoms(mol: Chem.Mol) -> set[int]:
+    """The N atoms of NH2 groups on a C=O or C=S carbon (amides, thioamides, ureas, thioureas)."""
+    return {m[0] for m in mol.GetSubstructMatches(_AMIDE_NH2) if mol.GetAtomWithIdx(m[0]).GetTotalNumHs() == 2}
 
 
 def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], chiral: bool = False) -> list[CouplingGroup]:

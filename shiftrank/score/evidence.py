@@ -342,18 +342,6 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
 MAX_HH_J = 19.5
 
 
-_AMIDE_NH2 = Chem.MolFromSmarts("[NX3H2]-[CX3]=[O,S]")
-
-
-def _amide_nh2(mol: Chem.Mol, atom: int) -> bool:
-    """A primary (thio)amide NH2: slow rotation about the C–N bond often shows its two protons as two
-    signals, each 1H (common practice, e.g. in DMSO-d6)."""
-    a = mol.GetAtomWithIdx(atom)
-    if a.GetSymbol() != "N" or a.GetTotalNumHs() != 2:
-        return False
-    return any(m[0] == atom for m in mol.GetSubstructMatches(_AMIDE_NH2))
-
-
 class ProtonEvidence(_Evidence):
     """1H: proton classes with their counts and expected multiplets; integrals as units when printed."""
 
@@ -398,11 +386,9 @@ class ProtonEvidence(_Evidence):
             means = [_mean(mu, e.atoms) for e in ems]
             sigmas = [_mean(sg, e.atoms) for e in ems]
         for e, m_, s_ in zip(ems, means, sigmas):
-            splittable = len(e.atoms) == 1 and (any(g.kind in ("geminal", "geminal-alkene") for g in e.groups)
-                                                or _amide_nh2(mol, e.atoms[0]))
             out.append(SignalClass(e.atoms, e.letters(), float(m_), float(s_),
                                    e.n_h if by_protons else 1,
-                                   exchangeable=e.exchangeable, splittable=splittable, expected=e))
+                                   exchangeable=e.exchangeable, splittable=e.may_split, expected=e))
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
