@@ -113,6 +113,9 @@ def test_primary_amide_nh2_may_show_two_signals_an_aniline_nh2_one():
     ("Nc1ccccc1", 0, False),          # aniline: one signal
     ("NS(=O)(=O)c1ccccc1", 0, False),  # sulfonamide: one 2H singlet (common practice)
     ("CNC(C)=O", 1, False),           # secondary amide: one proton
+    ("NC(=O)Nc1ccccc1", 0, False),    # phenylurea NH2: one 2H broad singlet (common practice)
+    ("NC(=O)OCC", 0, False),          # ethyl carbamate NH2: one signal (common practice)
+    ("NC=O", 0, True),                # formamide
     ("C=CC", 0, True),                # =CH2: the protons cis and trans to the methyl differ (common practice)
 ])
 def test_which_nh2_groups_may_split(smiles, atom, expected):

@@ -114,8 +114,8 @@ class ExpectedMultiplet:
     def may_split(self) -> bool:
         """Whether the class's protons, on one atom, may show as two signals: the two protons of a CH2
         next to a stereocentre or in a ring, or of a =CH2, differ; slow rotation about the C–N bond of a
-        primary (thio)amide or (thio)urea often shows its NH2 as two 1H signals (common practice, e.g. in
-        DMSO-d6).  An aniline or sulfonamide NH2 stays one signal."""
+        primary amide, thioamide or thiourea often shows its NH2 as two 1H signals (common practice, e.g.
+        in DMSO-d6).  An aniline, sulfonamide, urea or carbamate NH2 stays one signal."""
         return len(self.atoms) == 1 and (self.amide_nh2 or any(g.kind in ("geminal", "geminal-alkene") for g in self.groups))
 
     def patterns(self) -> frozenset[tuple[int, ...]]:
@@ -397,12 +397,15 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     return out
 
 
-_AMIDE_NH2 = Chem.MolFromSmarts("[NX3H2]-[CX3]=[O,S]")
+#: NH2 groups whose C–N rotation is slow enough to show two signals (common practice): on a carboxamide
+#: or formamide C=O, or on any C=S (thioamides, thioureas, thiosemicarbazides); not on a urea or
+#: carbamate C=O, whose NH2 is printed as one 2H signal
+_AMIDE_NH2 = [Chem.MolFromSmarts(s) for s in ("[NX3H2]-[CX3](=O)-[#6]", "[NX3H2]-[CX3H1]=O", "[NX3H2]-[CX3]=S")]
 
 
 def _amide_nh2_atoms(mol: Chem.Mol) -> set[int]:
-    """The N atoms of NH2 groups on a C=O or C=S carbon (amides, thioamides, ureas, thioureas)."""
-    return {m[0] for m in mol.GetSubstructMatches(_AMIDE_NH2) if mol.GetAtomWithIdx(m[0]).GetTotalNumHs() == 2}
+    """The N atoms of the NH2 groups in :data:`_AMIDE_NH2`."""
+    return {m[0] for q in _AMIDE_NH2 for m in mol.GetSubstructMatches(q) if mol.GetAtomWithIdx(m[0]).GetTotalNumHs() == 2}
 
 
 def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], chiral: bool = False) -> list[CouplingGroup]:
