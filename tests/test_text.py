@@ -102,6 +102,33 @@ def test_carbon_count_written_after_the_letter():
     assert len(counts) == 12 and sum(counts) == 16
 
 
+def test_carbon_count_written_as_a_bare_multiplier():
+    # PMC10131537 prints "128.4 (2 ×)", PMC10220783 "128.51 (3×)"; "(x2)" is the same count, typed
+    text = ("13C NMR (100 MHz, CDCl3) δ 171.3, 128.4 (2 ×), 111.7 (2 ×), 70.5 (2 ×), 70.4 (2 ×), 69.6, 40.1 (2 ×), 31.3")
+    assert [p.count for p in read_nmr_text(text).section("13C").peaks] == [1, 2, 2, 2, 2, 1, 2, 1]
+    text = "13C NMR (101 MHz, DMSO-d6): δ 146.99, 129.55 (2×), 128.51 (3×), 21.3 (x2), 20.0 (×2)"
+    assert [p.count for p in read_nmr_text(text).section("13C").peaks] == [1, 2, 3, 2, 2]
+
+
+def test_a_decimal_comma_in_a_j_value_is_one_coupling():
+    # PMC9027910 prints shifts with points and J values with commas: "115.67 (d, J = 21,8 Hz, 2C)"
+    text = ("13C NMR (101 MHz, DMSO) δ ppm: 115.23, 115.67 (d, J = 21,8 Hz, 2C), 130.34 (d, J = 9,09 Hz, 2C), "
+            "133.83 (d, J = 3,03 Hz), 162.20 (d, J = 244.4 Hz)")
+    sec = read_nmr_text(text).section("13C")
+    assert [p.j for p in sec.peaks] == [(), (21.8,), (9.09,), (3.03,), (244.4,)]
+    assert any("decimal comma in a J value" in n for n in sec.notes)
+    # two couplings are printed with a space after the comma and stay two
+    h = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (dd, J = 8.4, 2.1 Hz, 1H)").section("1H")
+    assert h.peaks[0].j == (8.4, 2.1)
+
+
+def test_subscript_and_superscript_digits_are_read():
+    # the same paragraph typed with Unicode super- and subscripts (a common rendering of '13C' and 'CDCl3')
+    t = read_nmr_text("¹H NMR (400 MHz, CDCl₃) δ 7.26 (d, J = 8.4 Hz, 2H); ¹³C NMR (101 MHz, DMSO-d₆) δ 170.1, 21.3")
+    assert (t.section("1H").solvent, t.section("13C").solvent) == ("CDCl3", "DMSO-d6")
+    assert len(t.section("13C").peaks) == 2
+
+
 def test_the_missing_integral_stays_missing_and_j_does_not_eat_it():
     h = read_nmr_text(PRINTED[8][1]).section("1H")
     assert h.peaks[3].j == (10.0,) and h.peaks[3].integral == 1.0

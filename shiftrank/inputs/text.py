@@ -44,13 +44,14 @@ _HEADER = re.compile(
     r"|(?<![A-Za-z])(?P<el2>H|C)(?:\s*\{\s*1?\s*H\s*\})?[\s-]*NMR\b"
     r"|(?<![A-Za-z0-9])(?P<mass3>1|13)(?P<el3>H|C)(?=\s*[(:])"
     r"|(?<![A-Za-z0-9])(?P<bare>NMR)\b", re.I)
-_SUPER = str.maketrans("¹²³⁹⁵", "12395")
+#: superscript and subscript digits as printed in '¹³C NMR' and 'CDCl₃'
+_SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹₀₁₂₃₄₅₆₇₈₉", "01234567890123456789")
 _NUM = r"[+-]?\d+(?:\.\d+)?"
 _SHIFT_ITEM = re.compile(
     rf"^\s*(?:and\s+|&\s*)?(?P<a>{_NUM})\s*(?:(?:-|to|–|~|\.\.)\s*(?P<b>{_NUM}))?\s*(?:ppm)?\s*(?P<rest>.*)$", re.S | re.I)
 _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
-                      r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b)", re.I)
+                      r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
 _JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
@@ -247,9 +248,16 @@ def _header_end(body: str) -> tuple[str, str]:
     return body, ""
 
 
+#: 'J = 8,4 Hz', '21,8 Hz': a comma between digits with no space, right before 'Hz', is a decimal comma (two
+#: coupling constants are printed with a space, 'J = 8.4, 2.0 Hz')
+_J_DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,2})(?=\s*Hz)", re.I)
+
+
 def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]) -> None:
     """Read '(d, J = 8.4 Hz, 2H, H-3)' into the peak's fields; unread words go to the note."""
-    d = detail
+    d = _J_DECIMAL_COMMA.sub(r"\1.\2", detail)
+    if d != detail:
+        notes.append("a decimal comma in a J value read as a decimal point (e.g. 'J = 8,4 Hz' as 8.4 Hz)")
     js: list[float] = []
     for m in _JVAL.finditer(d):
         js.extend(float(v) for v in re.findall(_NUM, m.group("vals")))
@@ -272,7 +280,7 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             continue
         m = _CARBONS.match(w)
         if m and nucleus == "13C":
-            peak.count = max(1, int(m.group("n") or m.group("n2")))
+            peak.count = max(1, int(next(g for g in m.group("n", "n2", "n3", "n4") if g)))
             rest = w[m.end():].strip()
             if rest:
                 leftovers.append(rest)
