@@ -64,8 +64,13 @@ def test_bad_smiles():
     ("C[C@H](O)[C@H](O)C(=O)O", 4, "one chain, no symmetry to begin with"),
     ("OC[C@H]1O[C@@H](CO)[C@@H](O)[C@H]1O", 3, "a meso 2,5-bis(hydroxymethyl)oxolane-3,4-diol (2R,3S,4R,5S; mirror plane): 3 signals (common practice)"),
     ("OC[C@H]1O[C@H](CO)[C@@H](O)[C@H]1O", 6, "its (2R,3S,4R,5R) diastereomer: no symmetry, 6 signals (common practice)"),
-    # atoms with no configuration of their own stay together beside a stereocentre
-    ("CC(C)[C@H](N)C(=O)O", 4, "L-valine: the two methyls counted as one class (diastereotopic, by design)"),
+    # diastereotopic groups on a prochiral carbon beside a stereocentre are separate classes
+    ("CC(C)[C@H](N)C(=O)O", 5, "L-valine: two methyl signals, about 19.0 and 17.6 ppm in D2O (from memory)"),
+    ("CC1(C)C2CCC1(C)C(=O)C2", 10, "camphor: three methyl signals (common practice)"),
+    ("CC1(C)CC(O)c2ccccc2O1", 11, "2,2-dimethylchroman-4-ol: the gem-dimethyls differ beside C4 (common practice)"),
+    ("CC1(C)CCc2ccccc2O1", 10, "2,2-dimethylchroman, no stereocentre: one methyl signal (common practice)"),
+    ("OC(c1ccccc1)C1CCCCC1", 11, "cyclohexyl(phenyl)methanol: C2/C6 and C3/C5 of the cyclohexyl split (common practice)"),
+    ("CC(C)(C)C(O)c1ccccc1", 7, "a tert-butyl: its three methyls rotate into each other, one signal (common practice)"),
 ])
 def test_stereo_aware_symmetry(smiles, signals, why):
     assert structure_facts(smiles).expected_13c_signals == signals, why

@@ -89,8 +89,9 @@ def symmetry_ranks(mol: Chem.Mol) -> list[int]:
     configuration are told apart (the two halves of a tetrasubstituted ring whose stereocentres
     do not repeat by symmetry show two sets of signals); atoms exchanged by a mirror plane of an
     achiral (meso) molecule stay together, since enantiotopic nuclei are isochronous in an achiral
-    solvent (common practice).  Atoms with no configuration of their own are never split, so the
-    two methyls of an isopropyl group next to a stereocentre still count as one class.
+    solvent (common practice).  Atoms with no configuration of their own are never split here, so
+    the two methyls of an isopropyl group next to a stereocentre share a rank (one 1H class);
+    :func:`carbon_classes` separates such diastereotopic carbons (:func:`diastereotopic_sides`).
     """
     plain = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     tagged = [a.GetIdx() for a in mol.GetAtoms() if a.GetChiralTag() in _TETRAHEDRAL]
@@ -125,17 +126,76 @@ def symmetry_ranks(mol: Chem.Mol) -> list[int]:
 
 
 def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[CarbonClass]:
-    """Group the carbons of ``mol`` into symmetry classes ordered by first atom index."""
+    """Group the carbons of ``mol`` into symmetry classes ordered by first atom index; the two
+    carbons of a diastereotopic pair (:func:`diastereotopic_sides`) are separate classes.
+
+    >>> [c.atoms for c in carbon_classes(Chem.MolFromSmiles("CC(C)C(N)C(=O)O"))]   # valine: two methyl signals
+    [[0], [1], [2], [3], [5]]
+    """
     ranks = symmetry_ranks(mol) if ranks is None else ranks
-    groups: dict[int, list[int]] = {}
+    side = diastereotopic_sides(mol, ranks)
+    groups: dict[tuple, list[int]] = {}
     for a in _atoms(mol):
         if a.GetAtomicNum() == 6:
-            groups.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+            i = a.GetIdx()
+            groups.setdefault((ranks[i], side.get(i)), []).append(i)
     out = []
     for atoms in sorted(groups.values(), key=lambda g: g[0]):
         nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
         out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}")))
     return out
+
+
+def diastereotopic_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[int, int]:
+    """Side (0 or 1) of each atom of a diastereotopic pair: two constitutionally equivalent sp3 groups on
+    a prochiral sp3 carbon (Caabc, H counting once: the methyls of an isopropyl, a gem-dimethyl, the
+    C2/C6 of a cyclohexyl) in a molecule with a stereocentre elsewhere, and the matching atoms further
+    along the two groups (C3/C5 of that cyclohexyl).  Diastereotopic carbons differ in shift, usually
+    by 0.3–3 ppm (valine's methyls 19.0 and 17.6 ppm; common practice, values from memory); without a
+    stereocentre the two groups are enantiotopic and give one signal.  Aromatic atoms are left out (a
+    ring flip exchanges the two ortho carbons of a phenyl).
+
+    >>> sorted(diastereotopic_sides(Chem.MolFromSmiles("CC1(C)CC(O)c2ccccc2O1")).items())   # a 4-chromanol
+    [(0, 0), (2, 1)]
+    >>> diastereotopic_sides(Chem.MolFromSmiles("CC1(C)CCc2ccccc2O1"))   # no stereocentre: one signal
+    {}
+    """
+    ranks = symmetry_ranks(mol) if ranks is None else ranks
+    centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
+    if not centres:
+        return {}
+    side: dict[int, int] = {}
+    for x in _atoms(mol):
+        nh = x.GetTotalNumHs()
+        if (x.GetAtomicNum() != 6 or x.GetIdx() in centres or x.GetIsAromatic() or x.GetDegree() + nh != 4
+                or x.GetHybridization() != Chem.HybridizationType.SP3):
+            continue
+        by_rank: dict[int, list[int]] = {}
+        for n in x.GetNeighbors():
+            by_rank.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+        pairs = [g for g in by_rank.values() if len(g) == 2]
+        if len(pairs) != 1 or len(by_rank) + (1 if nh else 0) != 3:
+            continue
+        a, b = pairs[0]
+        todo = [(a, b, x.GetIdx(), x.GetIdx())]
+        while todo:
+            u, v, pu, pv = todo.pop()
+            au, av = mol.GetAtomWithIdx(u), mol.GetAtomWithIdx(v)
+            if u == v or u in side or v in side or au.GetIsAromatic() or av.GetIsAromatic():
+                continue
+            side[u], side[v] = 0, 1
+            nu: dict[int, list[int]] = {}
+            nv: dict[int, list[int]] = {}
+            for n in au.GetNeighbors():
+                if n.GetIdx() != pu:
+                    nu.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+            for n in av.GetNeighbors():
+                if n.GetIdx() != pv:
+                    nv.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+            for r, us in nu.items():   # follow the two groups in step where the match is unambiguous
+                if len(us) == 1 and len(nv.get(r, ())) == 1:
+                    todo.append((us[0], nv[r][0], u, v))
+    return side
 
 
 def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list[int]]:
@@ -159,21 +219,13 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
         mol = Chem.RemoveHs(mol)
         ranks = None
     ranks = symmetry_ranks(mol) if ranks is None else list(ranks)
-    # one pass over the atoms for the counts and the carbon classes (the batch path calls this often)
     counts: Counter = Counter()
-    groups: dict[int, list[int]] = {}
-    h_of: dict[int, int] = {}
     for a in _atoms(mol):
-        nh = a.GetTotalNumHs()
         counts[a.GetSymbol()] += 1
-        counts["H"] += nh
-        if a.GetAtomicNum() == 6:
-            i = a.GetIdx()
-            groups.setdefault(ranks[i], []).append(i)
-            h_of[i] = nh
+        counts["H"] += a.GetTotalNumHs()
     if counts["H"] == 0:
         del counts["H"]
-    classes = [CarbonClass(g, MULTIPLICITY.get(h_of[g[0]], f"CH{h_of[g[0]]}")) for g in sorted(groups.values(), key=lambda g: g[0])]
+    classes = carbon_classes(mol, ranks)
     d = dbe(counts)
     return StructureFacts(
         smiles=smiles if smiles is not None else Chem.MolToSmiles(mol),
