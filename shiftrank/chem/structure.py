@@ -161,23 +161,25 @@ def diastereotopic_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[
     {}
     """
     ranks = symmetry_ranks(mol) if ranks is None else ranks
-    centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
-    if not centres:
-        return {}
-    side: dict[int, int] = {}
+    prochiral = []   # (centre, its two alike neighbours)
     for x in _atoms(mol):
         nh = x.GetTotalNumHs()
-        if (x.GetAtomicNum() != 6 or x.GetIdx() in centres or x.GetIsAromatic() or x.GetDegree() + nh != 4
-                or x.GetHybridization() != Chem.HybridizationType.SP3):
+        if x.GetAtomicNum() != 6 or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3:
             continue
         by_rank: dict[int, list[int]] = {}
         for n in x.GetNeighbors():
             by_rank.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
         pairs = [g for g in by_rank.values() if len(g) == 2]
-        if len(pairs) != 1 or len(by_rank) + (1 if nh else 0) != 3:
+        if len(pairs) == 1 and len(by_rank) + (1 if nh else 0) == 3:
+            prochiral.append((x.GetIdx(), *pairs[0]))
+    if not prochiral:
+        return {}
+    centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
+    side: dict[int, int] = {}
+    for x, a, b in prochiral:
+        if not centres - {x}:
             continue
-        a, b = pairs[0]
-        todo = [(a, b, x.GetIdx(), x.GetIdx())]
+        todo = [(a, b, x, x)]
         while todo:
             u, v, pu, pv = todo.pop()
             au, av = mol.GetAtomWithIdx(u), mol.GetAtomWithIdx(v)
