@@ -166,9 +166,7 @@ def diastereotopic_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[
         nh = x.GetTotalNumHs()
         if x.GetAtomicNum() != 6 or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3:
             continue
-        by_rank: dict[int, list[int]] = {}
-        for n in x.GetNeighbors():
-            by_rank.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+        by_rank = _neighbours_by_rank(x, ranks)
         pairs = [g for g in by_rank.values() if len(g) == 2]
         if len(pairs) == 1 and len(by_rank) + (1 if nh else 0) == 3:
             prochiral.append((x.GetIdx(), *pairs[0]))
@@ -186,18 +184,20 @@ def diastereotopic_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[
             if u == v or u in side or v in side or au.GetIsAromatic() or av.GetIsAromatic():
                 continue
             side[u], side[v] = 0, 1
-            nu: dict[int, list[int]] = {}
-            nv: dict[int, list[int]] = {}
-            for n in au.GetNeighbors():
-                if n.GetIdx() != pu:
-                    nu.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
-            for n in av.GetNeighbors():
-                if n.GetIdx() != pv:
-                    nv.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+            nu, nv = _neighbours_by_rank(au, ranks, pu), _neighbours_by_rank(av, ranks, pv)
             for r, us in nu.items():   # follow the two groups in step where the match is unambiguous
                 if len(us) == 1 and len(nv.get(r, ())) == 1:
                     todo.append((us[0], nv[r][0], u, v))
     return side
+
+
+def _neighbours_by_rank(atom: Chem.Atom, ranks, skip: int = -1) -> dict[int, list[int]]:
+    """The neighbours of ``atom`` (but ``skip``) grouped by symmetry rank."""
+    out: dict[int, list[int]] = {}
+    for n in atom.GetNeighbors():
+        if n.GetIdx() != skip:
+            out.setdefault(ranks[n.GetIdx()], []).append(n.GetIdx())
+    return out
 
 
 def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list[int]]:
