@@ -27,7 +27,10 @@ def _print_facts(f, out=None) -> None:
     print(f"  expected 1H environments {f.expected_1h_signals}", file=out)
     for c in f.carbon_classes:
         atoms = ",".join(str(i) for i in c.atoms)
-        print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}", file=out)
+        d = c.diastereotopic_to or []
+        twin = (f"  (diastereotopic to {'atom' if len(d) == 1 else 'atoms'} {','.join(str(i) for i in d)}: alike groups "
+                "beside a stereocentre, a separate signal)") if d else ""
+        print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}{twin}", file=out)
 
 
 _STRUCTURE_FILES = (".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz", ".sd", ".ism", ".can")
@@ -88,7 +91,9 @@ def cmd_facts(args) -> int:
             print(json.dumps({"id": rid, "formula": f.formula, "average_mass": round(f.average_mass, 4),
                               "monoisotopic_mass": round(f.monoisotopic_mass, 5), "dbe": f.dbe, "dbe_note": f.dbe_note,
                               "expected_13c_signals": f.expected_13c_signals, "expected_1h_signals": f.expected_1h_signals,
-                              "carbon_classes": [{"atoms": c.atoms, "multiplicity": c.multiplicity} for c in f.carbon_classes]}))
+                              "carbon_classes": [{"atoms": c.atoms, "multiplicity": c.multiplicity,
+                                                  **({"diastereotopic_to": c.diastereotopic_to} if c.diastereotopic_to else {})}
+                                                 for c in f.carbon_classes]}))
         else:
             _print_facts(f)
     return 2 if bad and bad == len(items) else 0

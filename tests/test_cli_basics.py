@@ -32,3 +32,14 @@ def test_missing_file_exit_2():
 def test_formula_command():
     r = run("formula", "C6H5Br")
     assert r.returncode == 0 and "DBE 4" in r.stdout
+
+
+def test_facts_name_diastereotopic_carbons():
+    # L-valine methyl ester: the isopropyl methyls beside C2 are two 13C signals (common practice)
+    import json
+
+    r = run("facts", "CC(C)[C@H](N)C(=O)OC")
+    assert r.returncode == 0
+    assert "diastereotopic to atom 2" in r.stdout and "6 symmetry classes" in r.stdout
+    d = json.loads(run("facts", "CC(C)[C@H](N)C(=O)OC", "--json").stdout)
+    assert {"atoms": [0], "multiplicity": "CH3", "diastereotopic_to": [2]} in d["carbon_classes"]

@@ -23,6 +23,7 @@ class CarbonClass:
 
     atoms: list[int]          # 0-based heavy-atom indices
     multiplicity: str         # C, CH, CH2, CH3 (CH4 for methane)
+    diastereotopic_to: list[int] | None = None   # atoms of the class alike in constitution but diastereotopic
 
     @property
     def size(self) -> int:
@@ -140,9 +141,10 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
             i = a.GetIdx()
             groups.setdefault((ranks[i], side.get(i)), []).append(i)
     out = []
-    for atoms in sorted(groups.values(), key=lambda g: g[0]):
+    for (rank, sd), atoms in sorted(groups.items(), key=lambda kv: kv[1][0]):
         nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
-        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}")))
+        partner = groups.get((rank, 1 - sd)) if sd is not None else None
+        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}"), partner))
     return out
 
 
