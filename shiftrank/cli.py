@@ -16,6 +16,8 @@ from .words import count
 
 
 def _print_facts(f, out=None) -> None:
+    from .chem.structure import TWIN_WHY
+
     out = out or sys.stdout
     print(f"{f.smiles}", file=out)
     print(f"  formula {f.formula}   average mass {f.average_mass:.3f}   monoisotopic {f.monoisotopic_mass:.4f}   DBE {f.dbe:g}", file=out)
@@ -27,9 +29,10 @@ def _print_facts(f, out=None) -> None:
     print(f"  expected 1H environments {f.expected_1h_signals}", file=out)
     for c in f.carbon_classes:
         atoms = ",".join(str(i) for i in c.atoms)
-        d = c.diastereotopic_to or []
-        twin = (f"  (diastereotopic to {'atom' if len(d) == 1 else 'atoms'} {','.join(str(i) for i in d)}: alike groups "
-                "beside a stereocentre, a separate signal)") if d else ""
+        twin = ""
+        if c.twin:
+            d, why = c.twin
+            twin = f"  (a signal apart from alike {'atom' if len(d) == 1 else 'atoms'} {','.join(str(i) for i in d)}: {TWIN_WHY[why]})"
         print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}{twin}", file=out)
 
 
@@ -92,7 +95,7 @@ def cmd_facts(args) -> int:
                               "monoisotopic_mass": round(f.monoisotopic_mass, 5), "dbe": f.dbe, "dbe_note": f.dbe_note,
                               "expected_13c_signals": f.expected_13c_signals, "expected_1h_signals": f.expected_1h_signals,
                               "carbon_classes": [{"atoms": c.atoms, "multiplicity": c.multiplicity,
-                                                  **({"diastereotopic_to": c.diastereotopic_to} if c.diastereotopic_to else {})}
+                                                  **({"twin": {"atoms": c.twin[0], "why": c.twin[1]}} if c.twin else {})}
                                                  for c in f.carbon_classes]}))
         else:
             _print_facts(f)

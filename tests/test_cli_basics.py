@@ -34,12 +34,15 @@ def test_formula_command():
     assert r.returncode == 0 and "DBE 4" in r.stdout
 
 
-def test_facts_name_diastereotopic_carbons():
+def test_facts_name_carbons_alike_in_constitution_that_give_two_signals():
     # L-valine methyl ester: the isopropyl methyls beside C2 are two 13C signals (common practice)
     import json
 
     r = run("facts", "CC(C)[C@H](N)C(=O)OC")
     assert r.returncode == 0
-    assert "diastereotopic to atom 2" in r.stdout and "6 symmetry classes" in r.stdout
+    assert "a signal apart from alike atom 2: diastereotopic" in r.stdout and "6 symmetry classes" in r.stdout
     d = json.loads(run("facts", "CC(C)[C@H](N)C(=O)OC", "--json").stdout)
-    assert {"atoms": [0], "multiplicity": "CH3", "diastereotopic_to": [2]} in d["carbon_classes"]
+    assert {"atoms": [0], "multiplicity": "CH3", "twin": {"atoms": [2], "why": "stereo"}} in d["carbon_classes"]
+    # N,N-dimethylacetamide: the N-methyls cis and trans to the C=O, 38.0 and 35.0 ppm (common practice, from memory)
+    d = json.loads(run("facts", "CC(=O)N(C)C", "--json").stdout)
+    assert d["expected_13c_signals"] == 4

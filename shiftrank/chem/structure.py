@@ -23,7 +23,8 @@ class CarbonClass:
 
     atoms: list[int]          # 0-based heavy-atom indices
     multiplicity: str         # C, CH, CH2, CH3 (CH4 for methane)
-    diastereotopic_to: list[int] | None = None   # atoms of the class alike in constitution but diastereotopic
+    twin: tuple[list[int], str] | None = None   # (atoms, TWIN_WHY key) of the class alike in constitution
+                                                # that gives a separate signal
 
     @property
     def size(self) -> int:
@@ -92,7 +93,7 @@ def symmetry_ranks(mol: Chem.Mol) -> list[int]:
     achiral (meso) molecule stay together, since enantiotopic nuclei are isochronous in an achiral
     solvent (common practice).  Atoms with no configuration of their own are never split here, so
     the two methyls of an isopropyl group next to a stereocentre share a rank (one 1H class);
-    :func:`carbon_classes` separates such diastereotopic carbons (:func:`diastereotopic_sides`).
+    :func:`carbon_classes` separates such diastereotopic carbons (:func:`twin_sides`).
     """
     plain = list(Chem.CanonicalRankAtoms(mol, breakTies=False, includeChirality=False))
     tagged = [a.GetIdx() for a in mol.GetAtoms() if a.GetChiralTag() in _TETRAHEDRAL]
@@ -128,64 +129,88 @@ def symmetry_ranks(mol: Chem.Mol) -> list[int]:
 
 def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[CarbonClass]:
     """Group the carbons of ``mol`` into symmetry classes ordered by first atom index; the two
-    carbons of a diastereotopic pair (:func:`diastereotopic_sides`) are separate classes.
+    carbons of a pair that NMR tells apart although they are alike in constitution
+    (:func:`twin_sides`: diastereotopic, or cis and trans to an amide C=O) are separate classes.
 
     >>> [c.atoms for c in carbon_classes(Chem.MolFromSmiles("CC(C)C(N)C(=O)O"))]   # valine: two methyl signals
     [[0], [1], [2], [3], [5]]
+    >>> [c.atoms for c in carbon_classes(Chem.MolFromSmiles("CN(C)C(=O)c1ccccc1"))]   # N,N-dimethylbenzamide
+    [[0], [2], [3], [5], [6, 10], [7, 9], [8]]
     """
     ranks = symmetry_ranks(mol) if ranks is None else ranks
-    side = diastereotopic_sides(mol, ranks)
+    twins = twin_sides(mol, ranks)
     groups: dict[tuple, list[int]] = {}
     for a in _atoms(mol):
         if a.GetAtomicNum() == 6:
             i = a.GetIdx()
-            groups.setdefault((ranks[i], side.get(i)), []).append(i)
+            groups.setdefault((ranks[i], twins[i][0] if i in twins else None), []).append(i)
     out = []
     for (rank, sd), atoms in sorted(groups.items(), key=lambda kv: kv[1][0]):
         nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
         partner = groups.get((rank, 1 - sd)) if sd is not None else None
-        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}"), partner))
+        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}"), (partner, twins[atoms[0]][1]) if partner else None))
     return out
 
 
-def diastereotopic_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[int, int]:
-    """Side (0 or 1) of each atom of a diastereotopic pair: two constitutionally equivalent sp3 groups on
-    a prochiral sp3 carbon (Caabc, H counting once: the methyls of an isopropyl, a gem-dimethyl, the
-    C2/C6 of a cyclohexyl) in a molecule with a stereocentre elsewhere, and the matching atoms further
-    along the two groups (C3/C5 of that cyclohexyl).  Diastereotopic carbons differ in shift, usually
-    by 0.3–3 ppm (valine's methyls 19.0 and 17.6 ppm; common practice, values from memory); without a
-    stereocentre the two groups are enantiotopic and give one signal.  Aromatic atoms are left out (a
-    ring flip exchanges the two ortho carbons of a phenyl).
+#: why two carbons alike in constitution give two 13C signals (see :func:`twin_sides`)
+TWIN_WHY = {"stereo": "diastereotopic: alike groups beside a stereocentre",
+            "amide": "cis and trans to an amide C=O or C=S, slow C–N rotation"}
+#: a tertiary carboxamide or thioamide N: its two other substituents sit cis and trans to the C=O (C=S)
+_AMIDE_N = Chem.MolFromSmarts("[NX3;H0;!a](-[#6])(-[#6])-[CX3;$(C(=[O,S])-[#6]),$([CH1]=[O,S])]")
 
-    >>> sorted(diastereotopic_sides(Chem.MolFromSmiles("CC1(C)CC(O)c2ccccc2O1")).items())   # a 4-chromanol
-    [(0, 0), (2, 1)]
-    >>> diastereotopic_sides(Chem.MolFromSmiles("CC1(C)CCc2ccccc2O1"))   # no stereocentre: one signal
+
+def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None) -> dict[int, tuple[int, str]]:
+    """Side (0 or 1) and reason (a key of :data:`TWIN_WHY`) of each atom of a pair of constitutionally
+    alike groups that give separate signals, with the matching atoms further along the two groups:
+
+    * ``'stereo'``: two alike sp3 groups on a prochiral sp3 carbon (Caabc, H counting once: the
+      methyls of an isopropyl, a gem-dimethyl, C2/C6 and C3/C5 of a cyclohexyl) in a molecule with
+      a stereocentre elsewhere are diastereotopic; they differ in shift, usually by 0.3–3 ppm
+      (valine's methyls 19.0 and 17.6 ppm; common practice, values from memory).  Without a
+      stereocentre the two groups are enantiotopic and give one signal.
+    * ``'amide'``: the two alike N-substituents of a tertiary amide or thioamide are cis and trans to
+      the C=O, and rotation about the C–N bond is slow at room temperature (N,N-dimethylformamide
+      36.5 and 31.4 ppm; an N-acylpiperidine's C2/C6 about 47 and 42 ppm; common practice, values from
+      memory).  Ureas, carbamates and thioureas rotate faster and are left together.
+
+    Aromatic atoms are left out (a ring flip exchanges the two ortho carbons of a phenyl).
+
+    >>> sorted(twin_sides(Chem.MolFromSmiles("CC1(C)CC(O)c2ccccc2O1")).items())   # a 4-chromanol
+    [(0, (0, 'stereo')), (2, (1, 'stereo'))]
+    >>> twin_sides(Chem.MolFromSmiles("CC1(C)CCc2ccccc2O1"))   # no stereocentre: one signal
     {}
+    >>> sorted(twin_sides(Chem.MolFromSmiles("O=C(c1ccccc1)N1CCOCC1")))   # N-benzoylmorpholine
+    [9, 10, 12, 13]
     """
     ranks = symmetry_ranks(mol) if ranks is None else ranks
-    prochiral = []   # (centre, its two alike neighbours)
+    sites = []   # (centre, its two alike neighbours, reason)
     for x in _atoms(mol):
         nh = x.GetTotalNumHs()
-        if x.GetAtomicNum() != 6 or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3:
+        if (x.GetAtomicNum() != 6 or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3
+                or x.GetHybridization() != Chem.HybridizationType.SP3):
             continue
         by_rank = _neighbours_by_rank(x, ranks)
         pairs = [g for g in by_rank.values() if len(g) == 2]
         if len(pairs) == 1 and len(by_rank) + (1 if nh else 0) == 3:
-            prochiral.append((x.GetIdx(), *pairs[0]))
-    if not prochiral:
-        return {}
-    centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
-    side: dict[int, int] = {}
-    for x, a, b in prochiral:
-        if not centres - {x}:
-            continue
+            sites.append((x.GetIdx(), *pairs[0], "stereo"))
+    if sites:
+        # a prochiral carbon that is itself a possible stereocentre (a ring atom whose two ring branches are
+        # alike, as C7 of a bicyclo[4.1.0]heptan-7-ol or C1 of a norbornane) lies on a mirror plane of
+        # its ring: its two groups are enantiotopic there, and it is left alone
+        centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
+        sites = [t for t in sites if t[0] not in centres and centres]
+    for n, a, b, _ in mol.GetSubstructMatches(_AMIDE_N):
+        if ranks[a] == ranks[b]:
+            sites.append((n, a, b, "amide"))
+    side: dict[int, tuple[int, str]] = {}
+    for x, a, b, why in sites:
         todo = [(a, b, x, x)]
         while todo:
             u, v, pu, pv = todo.pop()
             au, av = mol.GetAtomWithIdx(u), mol.GetAtomWithIdx(v)
             if u == v or u in side or v in side or au.GetIsAromatic() or av.GetIsAromatic():
                 continue
-            side[u], side[v] = 0, 1
+            side[u], side[v] = (0, why), (1, why)
             nu, nv = _neighbours_by_rank(au, ranks, pu), _neighbours_by_rank(av, ranks, pv)
             for r, us in nu.items():   # follow the two groups in step where the match is unambiguous
                 if len(us) == 1 and len(nv.get(r, ())) == 1:
