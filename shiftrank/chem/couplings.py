@@ -38,7 +38,7 @@ from functools import lru_cache
 
 from rdkit import Chem
 
-from .structure import symmetry_ranks
+from .structure import TWIN_NEAR_1H, symmetry_ranks, twin_sides
 
 #: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
 J_RANGES = {
@@ -99,6 +99,7 @@ class ExpectedMultiplet:
     groups: list[CouplingGroup] = field(default_factory=list)
     exchangeable: bool = False
     amide_nh2: bool = False   # a primary (thio)amide NH2 (see :attr:`may_split`)
+    twin_of: int | None = None   # symmetry rank shared with an alike class told apart (structure.twin_sides)
     _patterns: frozenset | None = field(default=None, repr=False, compare=False)
     _signature: tuple | None = field(default=None, repr=False, compare=False)
 
@@ -382,18 +383,19 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
         ranks = symmetry_ranks(mol)
     T = _Table(mol)
     R = _rings(mol)
-    classes: dict[int, list[int]] = {}
+    twins = twin_sides(mol, ranks, near=TWIN_NEAR_1H)
+    classes: dict[tuple, list[int]] = {}
     for i, nh in enumerate(T.nh):
         if nh > 0:
-            classes.setdefault(ranks[i], []).append(i)
+            classes.setdefault((ranks[i], twins[i][0] if i in twins else None), []).append(i)
     chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
                  if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
     amide_n = _amide_nh2_atoms(mol)
     out = []
-    for atoms in sorted(classes.values(), key=lambda g: g[0]):
+    for (rank, side), atoms in sorted(classes.items(), key=lambda kv: kv[1][0]):
         n_h = sum(T.nh[i] for i in atoms)
         out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]],
-                                     amide_nh2=atoms[0] in amide_n))
+                                     amide_nh2=atoms[0] in amide_n, twin_of=rank if side is not None else None))
     return out
 
 

@@ -388,7 +388,7 @@ class ProtonEvidence(_Evidence):
         for e, m_, s_ in zip(ems, means, sigmas):
             out.append(SignalClass(e.atoms, e.letters(), float(m_), float(s_),
                                    e.n_h if by_protons else 1,
-                                   exchangeable=e.exchangeable, splittable=e.may_split, expected=e))
+                                   exchangeable=e.exchangeable, splittable=e.may_split, expected=e, twin_of=e.twin_of))
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:

@@ -94,6 +94,7 @@ class SignalClass:
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
     shift_h: float | None = None  # HSQC: predicted mean shift of the carbon's protons, and its σ
     sigma_h: float | None = None
+    twin_of: int | None = None  # 1H: classes with the same value are alike groups told apart (one multiplet is fine)
 
 
 @dataclass
@@ -357,14 +358,17 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
             else:
                 parts["overlap"] += float(over[i])
     classes_on_peak = np.zeros(npk, dtype=int)
+    kinds_on_peak: dict[int, set] = {}
     for (i, j) in got:
         if j is not None:
             classes_on_peak[j] += 1
+            kinds_on_peak.setdefault(j, set()).add(classes[i].twin_of if classes[i].twin_of is not None else ("class", i))
     if costs.shared_multiplet:
         # a clean doublet or triplet holding two different protons is a coincidence, unlike an 'm'
         # (charged after the assignment, which it does not steer)
+        # (two alike groups told apart, such as the methyls of an isopropyl beside a stereocentre, often share one)
         parts["overlap"] += costs.shared_multiplet * float(sum(
-            classes_on_peak[j] - 1 for j in range(npk) if classes_on_peak[j] > 1 and observed_pattern(peaks[j].multiplicity) is not None))
+            len(kinds_on_peak[j]) - 1 for j in range(npk) if classes_on_peak[j] > 1 and observed_pattern(peaks[j].multiplicity) is not None))
     pairings = []
     for (i, j), kinds in sorted(got.items(), key=lambda kv: (kv[0][0], -1 if kv[0][1] is None else kv[0][1])):
         n = len(kinds)
