@@ -129,6 +129,26 @@ def test_subscript_and_superscript_digits_are_read():
     assert len(t.section("13C").peaks) == 2
 
 
+def test_delta_h_and_delta_c_with_conditions_open_their_sections():
+    # the 'δH (400 MHz; CDCl3) …; δC (101 MHz; CDCl3) …' style of some journals (common practice), for methyl
+    # 4-methoxybenzoate (values from memory)
+    t = read_nmr_text("δH (400 MHz; CDCl3) 7.99 (2 H, d, J 8.9, ArH), 6.91 (2 H, d, J 8.9, ArH), 3.88 (3 H, s), "
+                      "3.86 (3 H, s); δC (101 MHz; CDCl3) 166.9 (C), 163.4 (C), 131.6 (CH), 122.6 (C), 113.6 (CH), "
+                      "55.4 (CH3), 51.9 (CH3)")
+    h, c = t.section("1H"), t.section("13C")
+    assert (h.field_mhz, h.solvent, len(h.peaks)) == (400, "CDCl3", 4) and h.peaks[0].j == (8.9,)
+    assert (c.field_mhz, len(c.peaks), c.peaks[2].dept) == (101, 7, "CH")
+    # a bare 'δH 7.13' inside a section is not a new header (PRINTED: PMC8401930)
+    assert [s.nucleus for s in read_nmr_text(PRINTED[5][1]).sections] == ["1H"]
+
+
+def test_j_written_with_its_coupled_nuclei_in_brackets():
+    # PMC6225118 prints "8.73 (d, 3J(H,H) = 8.5 Hz, 1 H)" and "7.96 (t, 3J(H,H) = 7.2, 3J(H,H) = 8.1 Hz, 1 H)"
+    text = ("1H-NMR (300 MHz, [D6]DMSO, 25 °C, TMS): δ = 8.73 (d, 3J(H,H) = 8.5 Hz, 1 H), 7.96 (t, 3J(H,H) = 7.2, "
+            "3J(H,H) = 8.1 Hz, 1 H)")
+    assert [p.j for p in read_nmr_text(text).section("1H").peaks] == [(8.5,), (7.2, 8.1)]
+
+
 def test_the_missing_integral_stays_missing_and_j_does_not_eat_it():
     h = read_nmr_text(PRINTED[8][1]).section("1H")
     assert h.peaks[3].j == (10.0,) and h.peaks[3].integral == 1.0

@@ -43,7 +43,10 @@ _HEADER = re.compile(
     r"(?:\s*\{\s*1?\s*H\s*\})?(?:[\s-]*(?:APT|DEPT(?:-?135)?|UDEFT|PENDANT|JMOD))?[\s-]*NMR\b"
     r"|(?<![A-Za-z])(?P<el2>H|C)(?:\s*\{\s*1?\s*H\s*\})?[\s-]*NMR\b"
     r"|(?<![A-Za-z0-9])(?P<mass3>1|13)(?P<el3>H|C)(?=\s*[(:])"
-    r"|(?<![A-Za-z0-9])(?P<bare>NMR)\b", re.I)
+    r"|(?<![A-Za-z0-9])(?P<bare>NMR)\b"
+    # the 'δH (400 MHz; CDCl3) 7.26 …' / 'δC (101 MHz, CDCl3) …' style: δ with the nucleus, then conditions
+    # in brackets that give the field (a bare 'δH 7.13' inside a section is no header)
+    r"|δ\s?(?P<el4>H|C)(?=\s*\([^()]*MHz[^()]*\))", re.I)
 #: superscript and subscript digits as printed in '¹³C NMR' and 'CDCl₃'
 _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹₀₁₂₃₄₅₆₇₈₉", "01234567890123456789")
 _NUM = r"[+-]?\d+(?:\.\d+)?"
@@ -53,7 +56,7 @@ _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
-_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?(?:\s*\(\s*[A-Za-z]{{1,2}}\s*,\s*[A-Za-z]{{1,2}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
 
@@ -186,7 +189,7 @@ def _split_top(text: str, seps: str = ",;") -> list[str]:
 def _nucleus(m: re.Match) -> str | None:
     if m.group("bare"):
         return None  # "NMR (300 MHz, CDCl3) δ …": the nucleus is read from the values
-    el = (m.group("el") or m.group("el2") or m.group("el3") or "").upper()
+    el = (m.group("el") or m.group("el2") or m.group("el3") or m.group("el4") or "").upper()
     el = {"SI": "Si", "SE": "Se"}.get(el, el)
     mass = m.group("mass") or m.group("mass3")
     if el == "H" and mass in (None, "1"):
