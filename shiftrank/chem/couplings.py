@@ -38,7 +38,7 @@ from functools import lru_cache
 
 from rdkit import Chem
 
-from .structure import TWIN_NEAR_1H, symmetry_ranks, twin_sides
+from .structure import TWIN_NEAR_1H, signal_key, symmetry_ranks, twin_sides
 
 #: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
 J_RANGES = {
@@ -387,7 +387,7 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     classes: dict[tuple, list[int]] = {}
     for i, nh in enumerate(T.nh):
         if nh > 0:
-            classes.setdefault((ranks[i], twins[i][0] if i in twins else None), []).append(i)
+            classes.setdefault(signal_key(i, ranks, twins), []).append(i)
     chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
                  if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
     amide_n = _amide_nh2_atoms(mol)

@@ -143,7 +143,7 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
     for a in _atoms(mol):
         if a.GetAtomicNum() == 6:
             i = a.GetIdx()
-            groups.setdefault((ranks[i], twins[i][0] if i in twins else None), []).append(i)
+            groups.setdefault(signal_key(i, ranks, twins), []).append(i)
     out = []
     for (rank, sd), atoms in sorted(groups.items(), key=lambda kv: kv[1][0]):
         nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
@@ -224,6 +224,12 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     return side
 
 
+def signal_key(atom: int, ranks, twins: dict) -> tuple[int, int | None]:
+    """What puts an atom in an expected signal: its symmetry rank and, for one of a pair of alike groups
+    that NMR tells apart, its side (``twins`` from :func:`twin_sides`)."""
+    return ranks[atom], (twins[atom][0] if atom in twins else None)
+
+
 def _neighbours_by_rank(atom: Chem.Atom, ranks, skip: int = -1) -> dict[int, list[int]]:
     """The neighbours of ``atom`` (but ``skip``) grouped by symmetry rank."""
     out: dict[int, list[int]] = {}
@@ -247,7 +253,7 @@ def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list
     for a in _atoms(mol):
         if a.GetTotalNumHs() > 0:
             i = a.GetIdx()
-            groups.setdefault((ranks[i], twins[i][0] if i in twins else None), []).append(i)
+            groups.setdefault(signal_key(i, ranks, twins), []).append(i)
     return sorted(groups.values(), key=lambda g: g[0])
 
 
