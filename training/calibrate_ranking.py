@@ -26,7 +26,7 @@ Steps:
 
 ``--params`` limits the cost steps to the named costs (the others keep their values), e.g. only
 ``t_widen`` - how much wider printed shifts scatter than the model's own residuals - after a retrained
-model changed its σ.
+model changed its σ; ``--params none`` keeps every cost and refits the temperatures only.
 
 The 'truth' field only scores the settings; it never reaches the ranker.  Writes the values into
 ``models/manifest.json`` under ``ranking``.
@@ -191,7 +191,7 @@ def fit_costs(sets: list, nucleus: str, start: MatchCosts, passes: int = 2,
     for _ in range(passes):
         changed = False
         for name, values in GRID[nucleus].items():
-            if params and name not in params:
+            if params is not None and name not in params:
                 continue
             for v in values:
                 if v == getattr(cur, name):
@@ -206,15 +206,22 @@ def fit_costs(sets: list, nucleus: str, start: MatchCosts, passes: int = 2,
     return cur, best
 
 
+def _kept_note(params: list[str] | None) -> str:
+    if params is None:
+        return ""
+    return f" (only {', '.join(params)} refitted; the other costs kept)" if params else " (costs kept; temperature refitted)"
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=REPO / "models")
     ap.add_argument("--steps", default="13C,1H,joint,HSQC")
-    ap.add_argument("--params", default=None, help="refit only these costs (comma-separated), e.g. t_widen")
+    ap.add_argument("--params", default=None,
+                    help="refit only these costs (comma-separated), e.g. t_widen; 'none': the temperatures only")
     args = ap.parse_args(argv)
     steps = args.steps.split(",")
-    params = args.params.split(",") if args.params else None
+    params = None if not args.params else [] if args.params == "none" else args.params.split(",")
     unknown = sorted(set(params or []) - {k for g in GRID.values() for k in g})
     if unknown:
         ap.error(f"--params: no grid for {', '.join(unknown)}")
@@ -237,7 +244,7 @@ def main(argv=None) -> int:
         ranking["13C"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
                           "fitted_on": f"{len(db)} validation-split database cases (with and without DEPT) and "
                                        f"{len(sets[2])} dev-half printed 13C paragraphs"
-                                       + (f" (only {', '.join(params)} refitted; the other costs kept)" if params else ""),
+                                       + _kept_note(params),
                           "dev_top1": {"database": round(top1(raw_costs(sets[0], "13C", costs)), 4),
                                        "database_shifts_only": round(top1(raw_costs(sets[1], "13C", costs)), 4),
                                        "printed": round(top1(raw_costs(sets[2], "13C", costs)), 4)}}
@@ -249,7 +256,7 @@ def main(argv=None) -> int:
         T = fit_temperature(raw_costs(sets[0], "1H", costs))
         ranking["1H"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
                          "fitted_on": f"{len(sets[0])} dev-half printed 1H paragraphs"
-                                      + (f" (only {', '.join(params)} refitted; the other costs kept)" if params else ""),
+                                      + _kept_note(params),
                          "dev_top1": {"printed": round(score[0], 4)}}
         print(f"  1H: {ranking['1H']}", flush=True)
     if "joint" in steps:
