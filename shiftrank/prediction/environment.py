@@ -25,6 +25,8 @@ import numpy as np
 from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
+from .pi_system import pi_from_tables
+
 MAX_RADIUS = 6
 SHELLS = 6
 
@@ -85,7 +87,10 @@ RING_POSITIONS = ("ipso", "ortho", "meta", "para")
 RING_NAMES = ([f"ring_{pos}_{c}" for pos in RING_POSITIONS for c in SUBST_CLASSES]
               + ["ring_ortho_N", "ring_meta_N", "ring_para_N", "ring_ortho_OS", "ring_meta_OS",
                  "ring_size5", "ring_size6", "ring_of_neighbour"])
-FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES + RING_NAMES
+#: Hückel π descriptors (:mod:`.pi_system`): the centre's π charge, π-system membership and π bond-order
+#: sum; the summed π charges of the atoms one and two bonds away and how many neighbours are π atoms.
+PI_NAMES = ["pi_q", "pi_member", "pi_bond_order", "pi_q_d1", "pi_q_d2", "pi_members_d1"]
+FEATURE_NAMES = SELF_NAMES + NEIGHBOUR_NAMES + CONJ_NAMES + SHELL_NAMES + PARTNER_NAMES + RING_NAMES + PI_NAMES
 #: 1H only: the element carrying the protons (the sphere codes know it too; the boosted model needs it
 #: as a column) and whether they are exchangeable (on N, O or S).
 H_EXTRA_NAMES = ["centre_C", "centre_N", "centre_O", "centre_S", "centre_other", "exchangeable"]
@@ -125,6 +130,7 @@ class MolParts:
     atom_map: list | None = None       # atom index in the caller's input for each atom here (None: the same)
     notes: list = field(default_factory=list)  # what standardisation did to the caller's input
     preds: tuple | None = None         # (shifts, sigmas) once predicted, for a caller that caches these parts
+    pi: np.ndarray | None = None       # (n, 3) Hückel π charge, π membership, π bond-order sum per atom
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
@@ -181,7 +187,9 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -
         codes[row, : len(bits)] = bits
     dist = Chem.GetDistanceMatrix(mol)[centres] if len(centres) else np.zeros((0, n))
     ringpos = _ring_positions(mol, atoms, rings, centres)
-    return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos)
+    pi = np.column_stack(pi_from_tables([(r[0], r[1], r[3], r[4], r[5]) for r in info], bonds[:, :3].tolist()))
+    return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
+                    pi=pi.reshape(n, 3))
 
 
 def _subst_class(x: Chem.Atom, b: Chem.Atom) -> int:
@@ -402,6 +410,10 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     shells[:, h_col] += np.bincount(shell_rows, weights=nH[atom], minlength=NC * SHELLS)
     shells = shells.reshape(NC, SHELLS * _NT)
     q_shell = _sum_rows(crow, d - 1, q[atom], (NC, SHELLS))
+    P = np.vstack([p.pi for p in parts]) if N else np.zeros((0, 3))
+    near = d <= 2
+    pi_shell = _sum_rows(crow[near], d[near] - 1, P[atom[near], 0], (NC, 2))
+    pi_members_d1 = np.bincount(crow[d == 1], weights=P[atom[d == 1], 1], minlength=NC)
 
     # conjugated-path distances: breadth-first search over conjugated bonds from every carbon
     conj_rows, conj_atoms, conj_d = _conjugated_bfs(N, bi[bc], bj[bc], centres)
@@ -433,7 +445,8 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
     ])
     partner = _partner_block(N, Z, arom, nH, deg, q, nb_all, ends, others, kinds, dbl_to_os)[c]
     ringpos = np.vstack([p.ringpos for p in parts]) if NC else np.zeros((0, len(RING_NAMES)), np.float32)
-    blocks = [selfs, nb_all[c], conj, shells, partner, ringpos]
+    pi_block = np.column_stack([P[c], pi_shell, pi_members_d1])
+    blocks = [selfs, nb_all[c], conj, shells, partner, ringpos, pi_block]
     if nucleus == "1H":
         zc = Z[c]
         el = np.column_stack([zc == 6, zc == 7, zc == 8, zc == 16, ~np.isin(zc, (6, 7, 8, 16)), np.isin(zc, (7, 8, 16))])
