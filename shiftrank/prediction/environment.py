@@ -12,7 +12,9 @@ carries hydrogen for 1H (its protons' mean shift).  Two descriptions of each cen
 * **descriptors**: for distance d = 1 … D, how many atoms of each type lie d
   bonds away; the carbon itself (H count, hybridisation, ring sizes, charge,
   bond orders, Gasteiger charges); bond-typed neighbours; atoms reached along
-  conjugated bonds; and the partner across a double bond with its substituents.
+  conjugated bonds; the partner across a double bond with its substituents; the
+  substituents of its aromatic ring by position; and Hückel π charges
+  (:mod:`.pi_system`) of the centre and of the atoms one and two bonds out.
 
 :func:`mol_parts` does the RDKit work of one molecule; :func:`environments_of`
 turns a whole batch of those into arrays at once, which keeps prediction fast.
