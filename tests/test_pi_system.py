@@ -62,3 +62,20 @@ def test_charge_is_conserved(smiles):
 def test_saturated_molecules_have_no_pi_system():
     q, member, order = pi_descriptors(Chem.MolFromSmiles("OCC(N)C(F)(F)F"))
     assert not member.any() and not q.any() and not order.any()
+
+
+@pytest.mark.parametrize("nucleus", ["13C", "1H"])
+def test_descriptor_columns_carry_the_pi_values(nucleus):
+    # the six PI_NAMES columns of either nucleus: the centre's own values, then the summed π charges of
+    # the atoms exactly one and two bonds away and the number of π neighbours
+    from shiftrank.prediction.environment import PI_NAMES, environments, feature_names
+
+    mol = Chem.MolFromSmiles("COc1ccc(cc1)C(=O)NCc1ccncc1")
+    q, member, order = pi_descriptors(mol)
+    dist = Chem.GetDistanceMatrix(mol)
+    env = environments(mol, nucleus=nucleus)
+    cols = [feature_names(nucleus).index(n) for n in PI_NAMES]
+    got = env.features[:, cols]
+    for row, c in enumerate(env.centres):
+        want = [q[c], member[c], order[c], q[dist[c] == 1].sum(), q[dist[c] == 2].sum(), member[dist[c] == 1].sum()]
+        assert np.allclose(got[row], want, atol=1e-6)
