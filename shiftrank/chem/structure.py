@@ -201,7 +201,7 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
         # alike, as C7 of a bicyclo[4.1.0]heptan-7-ol or C1 of a norbornane) lies on a mirror plane of
         # its ring: its two groups are enantiotopic there, and it is left alone
         centres = {i for i, _ in Chem.FindMolChiralCenters(mol, includeUnassigned=True, useLegacyImplementation=False)}
-        sites = [t for t in sites if t[0] not in centres and centres]
+        sites = [t for t in sites if t[0] not in centres] if centres else []
         if near is not None and sites:
             dist = Chem.GetDistanceMatrix(mol)
             sites = [t for t in sites if any(dist[t[0], c] <= near for c in centres)]

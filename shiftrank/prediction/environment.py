@@ -191,7 +191,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -
     ringpos = _ring_positions(mol, atoms, rings, centres)
     pi = np.column_stack(pi_from_tables([(r[0], r[1], r[3], r[4], r[5]) for r in info], bonds[:, :3].tolist()))
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
-                    pi=pi.reshape(n, 3))
+                    pi=pi)
 
 
 def _subst_class(x: Chem.Atom, b: Chem.Atom) -> int:
