@@ -34,6 +34,8 @@ def main(argv=None) -> int:
     ap.add_argument("--seed", type=int, default=7)
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--models", type=Path, default=T.REPO / "models")
+    ap.add_argument("--descriptors-only", action="store_true",
+                    help="the member sees the atom descriptors without the sphere-table statistics")
     ap.add_argument("--literature-weight", type=float, default=T.LITERATURE_WEIGHT)
     args = ap.parse_args(argv)
     n = args.nucleus
@@ -47,14 +49,14 @@ def main(argv=None) -> int:
     T.log(f"{n}: {len(train)} assigned training rows, pseudo-labels {st}")
     base_seed, T.SEED = T.SEED, args.seed
     fr: dict = {}
-    member, member_rows = T.fit_shift_model(RowSet.concat([train, pseudo]), fr, n)
+    member, member_rows = T.fit_shift_model(RowSet.concat([train, pseudo]), fr, n, args.descriptors_only)
     T.SEED = base_seed
     T.log(f"member fitted ({len(member_rows)} rows), alone: val MAE {T.selection_mae(member, val):.3f}")
     before = T.selection_mae(model, val)
     model.regressor = model.regressors + member.regressors
     path = T.report_path(n)
     report = json.loads(path.read_text()) if path.exists() else {"nucleus": n}
-    report["ensemble"] = report.get("ensemble", []) + [{"seed": args.seed, "pseudo": st, "train_rows": len(member_rows),
+    report["ensemble"] = report.get("ensemble", []) + [{"seed": args.seed, "descriptors_only": args.descriptors_only, "pseudo": st, "train_rows": len(member_rows),
                                                          "val_mae_before": before, **fr}]
     report["uncertainty"] = T.fit_sigma(model, val)
     report["val"] = T.metrics(model, val, mols, "val")

@@ -34,6 +34,7 @@ from sklearn.ensemble import HistGradientBoostingRegressor
 from shiftrank.prediction.environment import feature_names
 from shiftrank.prediction.model import Z90, ShiftModel
 from shiftrank.prediction.sphere_tables import SphereTables, table_features
+from shiftrank.prediction.trees import Forest
 from shiftrank.prediction.model_files import FILES, boost_arrays, read_manifest, sha256_file
 from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
 from training.features import RowSet, masked_copies, oof_table_stats, rows_from_assigned
@@ -69,8 +70,13 @@ def _hgb(n_rows: int, quick: bool = False) -> HistGradientBoostingRegressor:
     return HistGradientBoostingRegressor(loss="squared_error", random_state=SEED, **kw)
 
 
-def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C") -> tuple[ShiftModel, RowSet]:
-    """Tables + regressor on ``rows`` with residual-based outlier removal."""
+def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C",
+                    descriptors_only: bool = False) -> tuple[ShiftModel, RowSet]:
+    """Tables + regressor on ``rows`` with residual-based outlier removal.
+
+    ``descriptors_only``: the final regressor sees the descriptors without the table statistics (and
+    needs no masked copies); it reads the leading columns of the usual design rows, so it can sit in
+    one ensemble with members that see both (its errors differ more from theirs than another seed's)."""
     stats = oof_table_stats(rows)
     X = np.hstack([rows.feats, table_features(stats)])
     reg = _hgb(len(rows), quick=True).fit(X, rows.y, sample_weight=rows.weight)
@@ -86,12 +92,15 @@ def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C") -> tuple[S
     report["outliers_dropped"] = int((~keep).sum())
     rows = rows.subset(keep)
     X = X[keep]
+    tables = SphereTables().fit(rows.codes, rows.y)
+    if descriptors_only:
+        reg = _hgb(len(rows)).fit(rows.feats, rows.y, sample_weight=rows.weight)
+        return ShiftModel(tables, Forest.of(reg), None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus), rows
     idx, masked = masked_copies(stats[keep], MASK_FRACTION, SEED)
     report["masked_copies"] = int(len(idx))
     Xa = np.vstack([X, np.hstack([rows.feats[idx], table_features(masked)])])
     reg = _hgb(len(Xa)).fit(Xa, np.concatenate([rows.y, rows.y[idx]]),
                             sample_weight=np.concatenate([rows.weight, rows.weight[idx]]))
-    tables = SphereTables().fit(rows.codes, rows.y)
     return ShiftModel(tables, reg, None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus), rows
 
 

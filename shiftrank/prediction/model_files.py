@@ -119,6 +119,12 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
             members, sigma, scale, floor = _boost_from_arrays(z)
     except (ValueError, KeyError, OSError) as exc:
         raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
+    # a member reads either the descriptors alone or the descriptors and the table statistics after them
+    n_env = len(feature_names(nucleus))
+    views = {n_env, n_env + 3 * len(tables.keys_) + 2}
+    if any(m.n_features_in_ not in views for m in members):
+        raise ModelFileError(f"{boost_path}: a boosted member expects {sorted({m.n_features_in_ for m in members} - views)} "
+                             f"input columns; this version of shiftrank gives {n_env} or {max(views)}")
     return ShiftModel(tables, members, sigma, scale, floor, nucleus)
 
 

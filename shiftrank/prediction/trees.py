@@ -115,7 +115,9 @@ class Forest:
 
     def predict(self, X: np.ndarray) -> np.ndarray:
         X = np.asfortranarray(X, dtype=np.float64)
-        if X.ndim != 2 or X.shape[1] != self.n_features_in_:
-            raise ValueError(f"expected rows of {self.n_features_in_} features, got shape {X.shape}")
+        # a forest fitted on the leading columns only (a member that sees the descriptors without the
+        # table statistics appended after them) reads those columns of the full design rows
+        if X.ndim != 2 or X.shape[1] < self.n_features_in_:
+            raise ValueError(f"expected rows of at least {self.n_features_in_} features, got shape {X.shape}")
         return _walk(X, self.offsets, self.feature, self.threshold, self.left, self.right, self.leaf,
                      self.missing_left, self.value, self.baseline, BLOCK)
