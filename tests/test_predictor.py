@@ -13,7 +13,7 @@ import pytest
 from rdkit import Chem
 
 from shiftrank.errors import InputError
-from shiftrank.prediction.model_files import ModelFileError, load_shift_model, models_dir, read_manifest
+from shiftrank.prediction.model_files import ModelFileError, load_shift_model, models_dir, read_manifest, sha256_file
 from shiftrank.prediction.api import predict
 
 
@@ -61,6 +61,23 @@ def test_file_not_in_manifest_is_refused(tmp_path):
     del man["files"]["c13_trees.npz"]
     (d / "manifest.json").write_text(json.dumps(man))
     with pytest.raises(ModelFileError, match="not listed"):
+        load_shift_model(d)
+
+
+def test_member_of_unknown_width_is_refused(tmp_path):
+    """A member is fitted on the descriptors alone or on descriptors plus table statistics; a tree file
+    whose member expects any other number of columns (another feature set) is refused, not walked."""
+    d = tmp_path / "models"
+    shutil.copytree(models_dir(), d)
+    with np.load(d / "c13_trees.npz") as z:
+        arrays = {k: z[k] for k in z.files}
+    arrays["m0_scalars"] = arrays["m0_scalars"].copy()
+    arrays["m0_scalars"][1] += 1                      # one column more than the full design rows
+    np.savez(d / "c13_trees.npz", **arrays)
+    man = json.loads((d / "manifest.json").read_text())
+    man["files"]["c13_trees.npz"] = sha256_file(d / "c13_trees.npz")
+    (d / "manifest.json").write_text(json.dumps(man))
+    with pytest.raises(ModelFileError, match="input columns"):
         load_shift_model(d)
 
 

@@ -44,8 +44,20 @@ def test_damaged_arrays_are_refused(fitted):
 
 def test_wrong_width_is_refused(fitted):
     reg, Xt = fitted
-    with pytest.raises(ValueError, match="12 features"):
+    with pytest.raises(ValueError, match="at least 12 features"):
         Forest.of(reg).predict(Xt[:, :5])
+
+
+def test_forest_of_leading_columns_reads_wider_rows(fitted):
+    """A member fitted on the descriptors alone sits beside members that also see the table statistics
+    appended after them: it reads the leading columns of the wider rows, exactly as scikit-learn reads
+    the narrow ones."""
+    _, Xt = fitted
+    rng = np.random.default_rng(5)
+    X = rng.normal(size=(2000, 7))
+    narrow = HistGradientBoostingRegressor(max_iter=40, random_state=0).fit(X, X[:, 0] - 2 * X[:, 3])
+    wide = np.hstack([Xt[:, :7], rng.normal(size=(len(Xt), 20))])   # descriptors, then other columns
+    assert np.array_equal(Forest.of(narrow).predict(wide), narrow.predict(Xt[:, :7]))
 
 
 def test_shipped_models_are_flat_forests():
