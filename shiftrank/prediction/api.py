@@ -22,11 +22,13 @@ from ..inputs.solvents import normalise_solvent
 CHUNK = 2000
 
 
-def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
-    """RDKit facts of ``mol`` for batch descriptors, after the organic check; failures name ``label``."""
+def checked_parts(mol: Chem.Mol, label: str, solvent: str | None = None, nucleus: str = "13C",
+                  pi=None) -> MolParts:
+    """RDKit facts of ``mol`` for batch descriptors, after the organic check; failures name ``label``.
+    ``pi``: its Hückel columns when already known (:func:`~shiftrank.prediction.environment.mol_parts`)."""
     check_organic(mol, label)
     try:
-        return mol_parts(mol, solvent, nucleus)
+        return mol_parts(mol, solvent, nucleus, pi)
     except Exception as exc:  # noqa: BLE001 - RDKit can fail on exotic records; report, do not crash
         raise InputError(f"{label}: cannot compute atom environments ({exc})") from None
 

@@ -135,9 +135,10 @@ class MolParts:
     pi: np.ndarray | None = None       # (n, 3) Hückel π charge, π membership, π bond-order sum per atom
 
 
-def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -> MolParts:
+def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", pi: np.ndarray | None = None) -> MolParts:
     """Per-molecule RDKit work: atom and bond properties, Gasteiger charges (Gasteiger & Marsili
-    1980), distances and sphere codes of the centres of ``nucleus`` (13C: carbons; 1H: atoms with H)."""
+    1980), distances and sphere codes of the centres of ``nucleus`` (13C: carbons; 1H: atoms with H).
+    ``pi``: the molecule's Hückel columns when already known (the same for both nuclei)."""
     if nucleus not in NUCLEI:
         raise ValueError(f"nucleus {nucleus!r}: use 13C or 1H")
     n = mol.GetNumAtoms()
@@ -189,9 +190,15 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C") -
         codes[row, : len(bits)] = bits
     dist = Chem.GetDistanceMatrix(mol)[centres] if len(centres) else np.zeros((0, n))
     ringpos = _ring_positions(mol, atoms, rings, centres)
-    pi = np.column_stack(pi_from_tables([(r[0], r[1], r[3], r[4], r[5]) for r in info], bonds[:, :3].tolist()))
+    if pi is None:
+        pi = pi_columns(info, bonds)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
                     pi=pi)
+
+
+def pi_columns(info, bonds: np.ndarray) -> np.ndarray:
+    """(n, 3) Hückel π charge, π membership and π bond-order sum from :func:`mol_parts`' atom and bond tables."""
+    return np.column_stack(pi_from_tables([(r[0], r[1], r[3], r[4], r[5]) for r in info], bonds[:, :3].tolist()))
 
 
 def _subst_class(x: Chem.Atom, b: Chem.Atom) -> int:

@@ -35,6 +35,7 @@ from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
+from ..prediction.pi_system import pi_descriptors
 from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from ..words import count
 from .matching import MatchCosts, ObservedPeak
@@ -254,6 +255,18 @@ def _facts(smiles: str) -> StructureFacts:
     return facts_from_mol(mol, smiles, hydrogens=False, ranks=ranks)
 
 
+@lru_cache(maxsize=4096)
+def _pi(smiles: str):
+    """The Hückel columns of a candidate, computed once for both nuclei (and every solvent)."""
+    mol, _, err = _parse(smiles)
+    if err:
+        return None
+    try:
+        return np.column_stack(pi_descriptors(mol))
+    except Exception:  # noqa: BLE001 - left to mol_parts, which reports a failure with the candidate's name
+        return None
+
+
 @lru_cache(maxsize=32768)
 def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts | None, str | None]:
     """RDKit facts of a candidate for the descriptors of ``nucleus`` (cached per SMILES and solvent)."""
@@ -261,7 +274,7 @@ def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts 
     if err:
         return None, err
     try:
-        return checked_parts(mol, f"SMILES '{smiles}'", solvent, nucleus), None
+        return checked_parts(mol, f"SMILES '{smiles}'", solvent, nucleus, _pi(smiles)), None
     except InputError as exc:
         return None, str(exc)
 
