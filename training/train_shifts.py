@@ -45,8 +45,8 @@ RARE_RADIUS, RARE_COUNT = 3, 3  # environment shared by fewer carbons than this 
 MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere statistics hidden
 OUTLIER_FLOOR = {"13C": 8.0, "1H": 0.8}  # ppm: residuals below this are never called outliers
 SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
-VERSION = {"13C": "1.6.0", "1H": "1.3.0"}
-MODELS_VERSION = "1.7.0"  # the shipped set of models (both nuclei and the ranking settings)
+VERSION = {"13C": "1.7.0", "1H": "1.4.0"}
+MODELS_VERSION = "1.8.0"  # the shipped set of models (both nuclei and the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
 LITERATURE_WEIGHT = 0.0  # labels from printed paragraphs (training.literature_labels); 0: not used
 
