@@ -36,7 +36,7 @@ def test_split_lines_are_read_as_one_carbon_for_the_truth():
     notes = " ".join(truth.flags)
     assert "read as one carbon split by F (q, J ≈ 272 Hz" in notes and "(q, J ≈ 34 Hz" in notes
     assert truth.nuclei["13C"].observed_signals == len(VALUES) - 6   # two quartets, four lines each, read as two
-    # the collapse puts the truth among the two leading isomers of eight, well above the others
+    # the collapse puts the truth among the two leading candidates of nine, well above the others (p 0.10 and less)
     assert r.candidates.index(truth) <= 1 and truth.probability > 0.3
 
 
