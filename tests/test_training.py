@@ -4,6 +4,7 @@ Observed values are recalled from standard 13C tables (marked "from memory"); th
 fed to the rules are constructed to put each rule to work.
 """
 import numpy as np
+import pytest
 from rdkit import Chem
 
 from shiftrank.prediction.environment import environments
@@ -189,3 +190,30 @@ def test_a_complete_1h_list_is_assigned_jointly_where_values_crowd():
     # a value too far from every prediction is not taken, even in a complete list
     far = _run_1h(BROMOANISOLE, [3.77, 6.77, 8.60], mu)
     assert 4 not in far and far[3] == 6.77
+
+
+def test_member_subsets_are_scored_as_the_model_scores_them():
+    """``select_members`` scores every subset of the shipped 13C members; the whole set must score as the
+    model's own estimate does.  Rows: toluene and anisole carbons in CDCl3 (from memory: toluene 137.9,
+    129.1, 128.3, 125.4, 21.5; anisole 159.7, 114.0, 129.5, 120.7, 55.1)."""
+    from shiftrank.prediction.model_files import default_model
+    from training.features import RowSet
+    from training.select_members import subset_maes
+
+    shifts = {"Cc1ccccc1": {0: 21.5, 1: 137.9, 2: 129.1, 3: 128.3, 4: 125.4, 5: 128.3, 6: 129.1},
+              "COc1ccccc1": {0: 55.1, 2: 159.7, 3: 114.0, 4: 129.5, 5: 120.7, 6: 129.5, 7: 114.0}}
+    feats, codes, y = [], [], []
+    for smi, by_atom in shifts.items():
+        env = environments(Chem.MolFromSmiles(smi), "CDCl3")
+        for k, a in enumerate(env.centres):
+            feats.append(env.features[k]); codes.append(env.codes[k]); y.append(by_atom[int(a)])
+    n = len(y)
+    val = RowSet(np.array(codes, np.uint32), np.array(feats, np.float32), np.array(y, np.float32),
+                 np.zeros(n, int), np.arange(n), np.zeros(n, int))
+    model = default_model("13C")
+    maes = subset_maes(model, val)
+    k = len(model.regressors)
+    assert len(maes) == 2 ** k - 1
+    X, _ = model.design(val.feats, val.codes)
+    assert maes[tuple(range(k))] == pytest.approx(float(np.abs(model.predict_mu(X) - val.y).mean()), rel=1e-9)
+    assert maes[tuple(range(k))] < 2.0            # the textbook carbons are easy
