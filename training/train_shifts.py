@@ -91,11 +91,11 @@ def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C",
     report["outlier_limit_ppm"] = round(float(limit), 2)
     report["outliers_dropped"] = int((~keep).sum())
     rows = rows.subset(keep)
-    X = X[keep]
     tables = SphereTables().fit(rows.codes, rows.y)
     if descriptors_only:
         reg = _hgb(len(rows)).fit(rows.feats, rows.y, sample_weight=rows.weight)
         return ShiftModel(tables, Forest.of(reg), None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus), rows
+    X = X[keep]
     idx, masked = masked_copies(stats[keep], MASK_FRACTION, SEED)
     report["masked_copies"] = int(len(idx))
     Xa = np.vstack([X, np.hstack([rows.feats[idx], table_features(masked)])])
