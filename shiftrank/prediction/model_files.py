@@ -17,7 +17,7 @@ import numpy as np
 
 from .environment import feature_names
 from .model import ShiftModel
-from .sphere_tables import SphereTables
+from .sphere_tables import SphereTables, table_features
 from .trees import Forest
 
 
@@ -121,7 +121,7 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
         raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
     # a member reads either the descriptors alone or the descriptors and the table statistics after them
     n_env = len(feature_names(nucleus))
-    views = {n_env, n_env + 3 * len(tables.keys_) + 2}
+    views = {n_env, n_env + table_features(np.zeros((1, len(tables.keys_), 3), np.float32)).shape[1]}
     if any(m.n_features_in_ not in views for m in members):
         raise ModelFileError(f"{boost_path}: a boosted member expects {sorted({m.n_features_in_ for m in members} - views)} "
                              f"input columns; this version of shiftrank gives {n_env} or {max(views)}")
