@@ -11,6 +11,7 @@ import sys
 from pathlib import Path
 
 from . import __version__
+from .chem.formula import ADDUCTS
 from .errors import InputError
 from .words import count
 
@@ -259,7 +260,7 @@ def cmd_rank(args) -> int:
     result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
                   solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                   peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
-                  hsqc=case.get("hsqc"))
+                  hsqc=case.get("hsqc"), mz=_mz_arg(args))
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
@@ -270,7 +271,7 @@ def cmd_rank(args) -> int:
     if args.report:
         from .outputs.report import write_report
         lists, _, _ = case_peaklists(case)
-        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists)])
+        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists, case)])
         print(f"report written to {args.report}", file=sys.stderr)
     return 0
 
@@ -299,13 +300,38 @@ def _history(args) -> dict:
     return {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
 
 
-def _inventory_for(args, lists: dict):
+def _mz_arg(args):
+    """The measured m/z of the options: a number, or {"found": …, "adduct": …} when --adduct is given."""
+    mz = getattr(args, "mz", None)
+    adduct = getattr(args, "adduct", None)
+    if adduct is not None and mz is None:
+        raise InputError("--adduct needs --mz (the measured m/z)")
+    return {"found": mz, "adduct": adduct} if adduct else mz
+
+
+def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | None = None):
+    """The inventory of the lists against the options' formula and m/z; without them, against a
+    high-resolution mass statement printed in the text (its molecule's formula and found m/z, noted)."""
     from .chem.inventory import take_inventory
 
     if lists.get("13C") is None and lists.get("1H") is None:
         return None   # cross peaks alone: nothing to count pieces from
-    return take_inventory(lists.get("13C"), lists.get("1H"), args.formula, getattr(args, "mz", None),
-                          getattr(args, "ppm", 5.0))
+    formula, mz = args.formula, getattr(args, "mz", None)
+    if case is not None and (formula is None or mz is None):
+        from .score.ranking import case_ions
+
+        printed = [st for st in case_ions({"text": case.get("text")}) if st.high_resolution]
+        if printed:
+            st = printed[0]
+            if formula is None and st.neutral:
+                formula = st.neutral
+                if notes is not None:
+                    notes.append(f"formula {formula} taken from the text's MS statement ({st.describe()})")
+            if mz is None and formula is not None:
+                mz = st.found
+                if notes is not None:
+                    notes.append(f"m/z {st.found} taken from the text's MS statement")
+    return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0))
 
 
 def cmd_inventory(args) -> int:
@@ -315,7 +341,7 @@ def cmd_inventory(args) -> int:
 
     case, _ = _case_from_args(args)
     lists, _, notes = case_peaklists(case)
-    inv = _inventory_for(args, lists)
+    inv = _inventory_for(args, lists, case, notes)
     if args.json:
         print(json.dumps(asdict(inv), indent=1))
         return 0
@@ -358,9 +384,9 @@ def cmd_report(args) -> int:
         case, _ = _case_from_args(args)
         result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
                       solvent=args.solvent, id=case["id"], peaks_1h=case.get("peaks_1h"), text=case.get("text"),
-                      hsqc=case.get("hsqc"))
+                      hsqc=case.get("hsqc"), mz=_mz_arg(args))
         lists, _, _ = case_peaklists(case)
-        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists)])
+        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists, case)])
     print(f"report written to {args.output}")
     return 0
 
@@ -425,8 +451,11 @@ def build_parser() -> argparse.ArgumentParser:
                    help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
     s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
+    s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
+    s.add_argument("--adduct", choices=list(ADDUCTS), help="the ion --mz was measured as (default: any common one)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
-    s.add_argument("--keep-mismatches", action="store_true", help="do not demote candidates contradicting formula/mass")
+    s.add_argument("--keep-mismatches", action="store_true",
+                   help="do not demote candidates contradicting formula, mass or m/z")
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
                    help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
     s.add_argument("--json", action="store_true", help="print the full result as JSON")

@@ -106,20 +106,25 @@ def dbe_note(value: float) -> str | None:
     return None
 
 
+#: singly charged ions: the atoms the ion adds (negative: removes) to the molecule, and its charge sign
+ADDUCTS = {"M+": ({}, 1), "M-": ({}, -1), "M+H": ({"H": 1}, 1), "M+Na": ({"Na": 1}, 1), "M+K": ({"K": 1}, 1),
+           "M+Li": ({"Li": 1}, 1), "M+NH4": ({"N": 1, "H": 4}, 1), "M-H": ({"H": -1}, -1)}
+
+
 def ion_mz(counts: Counter | dict, adduct: str) -> float:
-    """m/z of a singly charged ion: ``'M+'`` (radical cation), ``'M+H'`` or ``'M+Na'``.
+    """m/z of a singly charged ion of the molecule: ``'M+'`` (radical cation), ``'M+H'``, ``'M+Na'``,
+    ``'M+K'``, ``'M+Li'``, ``'M+NH4'``, ``'M-H'`` or ``'M-'`` (electron mass included).
 
     >>> round(ion_mz(parse_formula("C2H6O"), "M+H"), 4)
     47.0491
+    >>> round(ion_mz(parse_formula("C7H6O2"), "M-H"), 4)
+    121.0295
     """
-    m = monoisotopic_weight(counts)
-    if adduct == "M+":
-        return m - _ELECTRON
-    if adduct == "M+H":
-        return m + monoisotopic_mass("H") - _ELECTRON
-    if adduct == "M+Na":
-        return m + monoisotopic_mass("Na") - _ELECTRON
-    raise InputError(f"adduct '{adduct}': use M+, M+H or M+Na")
+    if adduct not in ADDUCTS:
+        raise InputError(f"adduct '{adduct}': use one of {', '.join(ADDUCTS)}")
+    delta, sign = ADDUCTS[adduct]
+    m = monoisotopic_weight(counts) + sum(monoisotopic_mass(el) * n for el, n in delta.items())
+    return m - sign * _ELECTRON
 
 
 #: a trailing charge: '-', '+', '+2', '(2+)', or ' 2+' after a space (without a space the digits are the last count)

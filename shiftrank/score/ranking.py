@@ -24,13 +24,14 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from ..chem.formula import formula_matches, hill, sample_formula
+from ..chem.formula import ADDUCTS, formula_matches, hill, sample_formula
 from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
 from ..inputs.solvents import normalise_solvent
+from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
@@ -336,9 +337,16 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
     return res
 
 
-def _history_checks(res: CandidateResult, formula_counts, mass: float | None, mass_tol: float, charge: int = 0) -> None:
+def _history_checks(res: CandidateResult, formula_counts, mass: float | None, mass_tol: float, charge: int = 0,
+                    ions: Sequence[MassStatement] = ()) -> None:
     if res.error:
         return
+    for st in ions:
+        if not ion_fits(res.facts.counts, st):
+            res.formula_ok = False
+            a, mz = nearest_ion(res.facts.counts, st)
+            label = "[M]+" if a == "M+" else f"[{a}]" + ("-" if a == "M-H" else "+")
+            res.flags.insert(0, f"MS: found m/z {st.found} does not fit {res.facts.formula} ({label} would be m/z {mz:.4f})")
     if formula_counts is not None:
         res.formula_ok = formula_matches(res.facts.counts, formula_counts, charge)
         if not res.formula_ok:
@@ -521,16 +529,41 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     return out, solvent, notes
 
 
+def case_ions(case: dict) -> list[MassStatement]:
+    """The molecular ions a case states: its ``mz`` field (a number, or ``{"found": …, "adduct": "M+H"}``)
+    and the mass statements of its printed text (``HRMS (ESI) m/z [M+Na]+ calcd for … found …``)."""
+    out = []
+    mz = case.get("mz")
+    if mz is not None:
+        adduct = None
+        if isinstance(mz, dict):
+            mz, adduct = mz.get("found"), mz.get("adduct")
+            if adduct is not None and adduct not in ADDUCTS:
+                raise InputError(f"mz: adduct '{adduct}' is not one of {', '.join(ADDUCTS)}")
+        if isinstance(mz, bool) or not isinstance(mz, (int, float)) or not np.isfinite(mz) or mz <= 0:
+            raise InputError(f"mz: expected a positive number (the measured m/z), got {mz!r}")
+        out.append(MassStatement(float(mz), adduct, source="given"))
+    text = case.get("text")
+    if isinstance(text, (list, tuple)):
+        text = "\n".join(t for t in text if isinstance(t, str))
+    if isinstance(text, str):
+        out.extend(read_mass_statements(text))
+    return out
+
+
 def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass: float | None = None,
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
-         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None) -> RankResult:
+         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
     ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects or lists of
     shifts or of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"`` and
     ``"range": [low, high]``); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
     ``[δC, δH]`` cross peaks.  Any one is enough.
+    ``formula``, ``mass`` (neutral, Da) and ``mz`` (a measured m/z, or ``{"found": …, "adduct": "M+H"}``)
+    are sample history, as is a mass statement printed in ``text`` (``HRMS (ESI) m/z [M+H]+ calcd for …,
+    found …``): a candidate they contradict is flagged and ranked last.
     ``with_isomers`` (True, or kinds such as ``"positional,ambident"``) adds the alternatives a reaction
     could have given to each candidate (:func:`shiftrank.chem.isomers.isomers`), named by their relation.
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
@@ -543,7 +576,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     'CCOC(C)=O'
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
-                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc)],
+                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
@@ -631,9 +664,12 @@ def _stage(case: dict, nuclei_models) -> tuple:
             raise InputError(f"mass: '{mass}' is not a number") from None
         if not np.isfinite(mass) or mass <= 0:
             raise InputError(f"mass: {mass} is not a positive number")
+    ions = case_ions(case)
+    notes.extend(f"sample history{' from the text: MS' if st.source == 'text' else ': measured'} {st.describe()}"
+                 for st in ions)
     priors = _check_priors(case.get("priors"), len(cands))
     preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
-    return case, peaks, notes, (fcounts, charge), mass, priors, preps
+    return case, peaks, notes, (fcounts, charge, ions), mass, priors, preps
 
 
 def stage_cases(cases: list[dict]) -> list:
@@ -717,14 +753,14 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         if isinstance(s, Exception):
             out.append(s)
             continue
-        case, peaks, notes, (fcounts, charge), mass, priors, preps = s
+        case, peaks, notes, (fcounts, charge, ions), mass, priors, preps = s
         results = []
         for p in preps:
             try:
                 if p.error is None and any(n not in p.preds for k in peaks for n in MODELS_FOR[k]):
                     p.error = f"SMILES '{p.smiles}': could not be predicted"
                 r = _score_candidate(p, p.preds, peaks, settings)
-                _history_checks(r, fcounts, mass, mass_tolerance, charge)
+                _history_checks(r, fcounts, mass, mass_tolerance, charge, ions)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
