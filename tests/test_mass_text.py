@@ -129,3 +129,22 @@ def test_cli_inventory_takes_the_formula_from_the_printed_ion(tmp_path):
     inv = json.loads(r.stdout)
     assert inv["formula"] == "C8H8O2"
     assert any(m["adduct"] == "[M+Na]+" and m["ok"] for m in inv["mass_checks"])
+
+
+def test_a_matching_formula_does_not_hide_an_ion_that_contradicts_it():
+    r = rank(text=BENZOATE_13C + " HRMS (ESI) m/z [M+H]+ found 151.0754.", candidates=CANDS[:2], formula="C8H8O2")
+    # 151.0754 is [M+H]+ of C9H10O2, not of the given C8H8O2: every candidate is flagged
+    assert all(c.formula_ok is False for c in r.candidates)
+    assert all(any(f.startswith("MS: found m/z 151.0754") for f in c.flags) for c in r.candidates)
+
+
+def test_batch_file_carries_mz(tmp_path):
+    from shiftrank.score.batch import read_cases
+
+    p = tmp_path / "cases.jsonl"
+    p.write_text(json.dumps({"id": "s1", "text": BENZOATE_13C, "candidates": CANDS, "mz": 159.0419}) + "\n")
+    r = _cli("batch", str(p))
+    assert r.returncode == 0, r.stderr
+    ranking = json.loads(r.stdout)["ranking"]
+    assert [x["formula_ok"] for x in ranking] == [True, True, False]
+    assert read_cases(p)[0][1]["mz"] == 159.0419

@@ -19,7 +19,7 @@ from .ranking import rank_many
 
 CHUNK = 64
 MAX_LINE = 5_000_000   # characters in one JSON line (one case)
-FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "solvent", "priors", "with_isomers")
+FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers")
 
 
 def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:

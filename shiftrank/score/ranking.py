@@ -341,12 +341,6 @@ def _history_checks(res: CandidateResult, formula_counts, mass: float | None, ma
                     ions: Sequence[MassStatement] = ()) -> None:
     if res.error:
         return
-    for st in ions:
-        if not ion_fits(res.facts.counts, st):
-            res.formula_ok = False
-            a, mz = nearest_ion(res.facts.counts, st)
-            label = "[M]+" if a == "M+" else f"[{a}]" + ("-" if a == "M-H" else "+")
-            res.flags.insert(0, f"MS: found m/z {st.found} does not fit {res.facts.formula} ({label} would be m/z {mz:.4f})")
     if formula_counts is not None:
         res.formula_ok = formula_matches(res.facts.counts, formula_counts, charge)
         if not res.formula_ok:
@@ -357,6 +351,15 @@ def _history_checks(res: CandidateResult, formula_counts, mass: float | None, ma
             res.formula_ok = False
             res.flags.insert(0, f"mass {res.facts.monoisotopic_mass:.3f} (average {res.facts.average_mass:.2f}) "
                                 f"contradicts the sample mass {mass:g} ± {mass_tol:g}")
+    for st in ions:
+        if ion_fits(res.facts.counts, st):
+            if res.formula_ok is None:
+                res.formula_ok = True
+            continue
+        res.formula_ok = False
+        a, mz = nearest_ion(res.facts.counts, st)
+        label = "[M]+" if a == "M+" else f"[{a}]" + ("-" if a == "M-H" else "+")
+        res.flags.insert(0, f"MS: found m/z {st.found} does not fit {res.facts.formula} ({label} would be m/z {mz:.4f})")
 
 
 def _probabilities(cands: list[CandidateResult], priors, demote: bool, settings: RankingSettings | None = None,
