@@ -148,3 +148,11 @@ def test_batch_file_carries_mz(tmp_path):
     ranking = json.loads(r.stdout)["ranking"]
     assert [x["formula_ok"] for x in ranking] == [True, True, False]
     assert read_cases(p)[0][1]["mz"] == 159.0419
+
+
+def test_resolution_follows_the_printed_decimals():
+    # '137.0600' prints four decimals: high resolution, although the number itself is 137.06
+    (s,) = read_mass_statements("HRMS (ESI) m/z [M+H]+ found 137.0600")
+    assert s.high_resolution and ion_fits(parse_formula("C8H8O2"), s)          # [M+H]+ 137.0597, +2 ppm
+    (s,) = read_mass_statements("HRMS (ESI) m/z [M+H]+ found 137.0700")
+    assert not ion_fits(parse_formula("C8H8O2"), s)                             # +75 ppm

@@ -61,10 +61,11 @@ class MassStatement:
     neutral: str | None = None    # the neutral molecule's formula (Hill), when the printed formula and value tell it
     fragment: str = ""
     source: str = "text"          # where it was read: 'text', or 'given' for a measured m/z passed as a number
+    decimals: int | None = None   # decimals of the found value as printed ('233.0780': 4); None: from the number
 
     @property
     def high_resolution(self) -> bool:
-        return _decimals(self.found) >= 3
+        return (self.decimals if self.decimals is not None else _decimals(self.found)) >= 3
 
     def describe(self) -> str:
         ion = f"[{self.adduct}]" + ("-" if self.adduct in ("M-H", "M-") else "+") if self.adduct else "ion type not printed"
@@ -89,8 +90,10 @@ def _adduct_of(m: re.Match) -> str | None:
     return key if key in ADDUCTS else None
 
 
-def _tolerance(value: float) -> float:
-    if _decimals(value) >= 3:
+def _tolerance(value: float, high_resolution: bool | None = None) -> float:
+    if high_resolution is None:
+        high_resolution = _decimals(value) >= 3
+    if high_resolution:
         return max(value * HIGH_RES_PPM * 1e-6, HIGH_RES_FLOOR)
     return NOMINAL_TOL
 
@@ -134,18 +137,13 @@ def read_mass_statements(text: str) -> list[MassStatement]:
     out: list[MassStatement] = []
     pos = 0
     for start in _START.finditer(t):
-        if start.start() < pos:
+        if start.start() < pos:   # inside the statement read last
             continue
         stop = _STOP.search(t, start.end())
-        end = min(stop.start() if stop else len(t), start.start() + 300)
-        nxt = _START.search(t, start.end())
-        seg = t[start.start():end]
-        pos = end
-        st = _statement(seg)
+        pos = min(stop.start() if stop else len(t), start.start() + 300)
+        st = _statement(t[start.start():pos])
         if st is not None:
             out.append(st)
-        if nxt is not None and nxt.start() < end and st is not None:
-            pos = end
     return out
 
 
@@ -158,17 +156,19 @@ def _statement(seg: str) -> MassStatement | None:
         if after is not None and after.group("formula"):
             calc = after
     found = _FOUND.search(seg)
-    value = float(found.group("value")) if found else None
-    if value is None and ad is not None:
+    printed = found.group("value") if found else None
+    if printed is None and ad is not None:
         # 'm/z 233.0786 [M+Na]+' or 'm/z [M+H]+ = 165.0912' without the word 'found'
         near = _VALUE_NEAR_ADDUCT.search(seg)
         after = _ADDUCT_THEN_VALUE.match(seg, ad.end())
         if near and (calc is None or near.start("value") != calc.start("value")):
-            value = float(near.group("value"))
+            printed = near.group("value")
         elif after and (calc is None or after.start("value") != calc.start("value")):
-            value = float(after.group("value"))
-    if value is None:
+            printed = after.group("value")
+    if printed is None:
         return None
+    value = float(printed)
+    decimals = len(printed.split(".")[1]) if "." in printed else 0
     calcd = float(calc.group("value")) if calc else None
     formula = calc.group("formula") if calc and calc.group("formula") else None
     charged = False
@@ -176,7 +176,7 @@ def _statement(seg: str) -> MassStatement | None:
         a, b = calc.start("formula"), calc.end("formula")
         charged = seg[max(a - 1, 0):a] == "[" or bool(re.match(r"\]?\s*[+\-]", seg[b:b + 3]))
     neutral = _neutral_from(formula, adduct, calcd, charged) if formula else None
-    return MassStatement(value, adduct, calcd, formula, neutral, " ".join(seg.split())[:120])
+    return MassStatement(value, adduct, calcd, formula, neutral, " ".join(seg.split())[:120], decimals=decimals)
 
 
 def ion_fits(counts: Counter | dict, st: MassStatement) -> bool:
@@ -185,7 +185,7 @@ def ion_fits(counts: Counter | dict, st: MassStatement) -> bool:
     for a in adducts:
         mz = ion_mz(counts, a)
         for v in (st.found, st.calcd):
-            if v is not None and abs(mz - v) <= _tolerance(v):
+            if v is not None and abs(mz - v) <= _tolerance(v, st.high_resolution):
                 return True
     return False
 
