@@ -156,3 +156,12 @@ def test_resolution_follows_the_printed_decimals():
     assert s.high_resolution and ion_fits(parse_formula("C8H8O2"), s)          # [M+H]+ 137.0597, +2 ppm
     (s,) = read_mass_statements("HRMS (ESI) m/z [M+H]+ found 137.0700")
     assert not ion_fits(parse_formula("C8H8O2"), s)                             # +75 ppm
+
+
+@pytest.mark.parametrize("text", [
+    "HRMS (ESI) m/z [2M+Na]+ calcd for C16H16O4Na 295.0941, found 295.0944.",   # a dimer ion
+    "HRMS (ESI) m/z [M+2H]2+ calcd 69.0335, found 69.0337.",                     # doubly charged
+    "HRMS (ESI) m/z [M−H2O+H]+ found 119.0491.",                                 # a fragment
+])
+def test_ions_other_than_the_molecules_own_are_not_used(text):
+    assert read_mass_statements(text) == []

@@ -41,6 +41,9 @@ _STOP = re.compile(r"(?<![A-Za-z])(?:IR\b|FT-?IR|Anal\.|Elemental|m\.p\.|mp\b|UV
 _ADDUCT = re.compile(r"[\[(]\s*M\s*(?:(?P<sign>[+\-])\s*(?P<what>H|Na|K|NH4|Li)\s*)?[\])]\s*(?P<charge>\+|-|•\+|\+•|\.\+)?"
                      r"|[\[(]\s*M\s*(?P<inner>\+|-)\s*•?\s*[\])]"
                      r"|(?<![A-Za-z\[(])M\s*(?P<bare>\+|-)(?!\s*(?:H|Na|K|NH4|Li)\b)")
+#: any printed ion label in brackets, also those not used: '[2M+Na]+', '[M+2H]2+', '[M−H2O+H]+', '[M-Boc+H]+'
+_ANY_ION = re.compile(r"[\[(]\s*(?P<inner>\d*\s*M\b[^\])\[(]{0,24})[\])]")
+_KNOWN_ION = re.compile(r"M(?:[+\-](?:H|Na|K|NH4|Li))?[+\-]?•?")
 _FORMULA = r"\[?(?P<formula>(?:[A-Z][a-z]?\d*){2,})\]?\s*(?:[+\-]|\(?[+\-]\)?|•\+)?"
 _CALCD = re.compile(rf"(?:calcd\.?|calc\.?|calculated|cal\.|requires|theor\.?|theoretical)\s*(?:for|as)?\s*:?\s*(?:{_FORMULA})?"
                     rf"\s*(?:[\[(]\s*M[^\])]*[\])]\s*[+\-]?)?\s*[,:=]?\s*(?:m/z\s*[:=]?\s*)?(?P<value>\d+\.\d+)", re.I)
@@ -148,6 +151,9 @@ def read_mass_statements(text: str) -> list[MassStatement]:
 
 
 def _statement(seg: str) -> MassStatement | None:
+    label = _ANY_ION.search(seg)
+    if label is not None and not _KNOWN_ION.fullmatch(re.sub(r"\s", "", label.group("inner"))):
+        return None   # a dimer, a multiply charged ion or a fragment: not the molecule's own ion
     ad = _ADDUCT.search(seg)
     adduct = _adduct_of(ad) if ad else None
     calc = _CALCD.search(seg)
