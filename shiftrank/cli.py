@@ -318,9 +318,9 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
         return None   # cross peaks alone: nothing to count pieces from
     formula, mz = args.formula, getattr(args, "mz", None)
     if case is not None and (formula is None or mz is None):
-        from .score.ranking import case_ions
+        from .inputs.mass import read_mass_statements
 
-        printed = [st for st in case_ions({"text": case.get("text")}) if st.high_resolution]
+        printed = [st for st in read_mass_statements(case.get("text") or "") if st.high_resolution]
         if printed:
             st = printed[0]
             if formula is None and st.neutral:

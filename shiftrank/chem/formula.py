@@ -127,6 +127,16 @@ def ion_mz(counts: Counter | dict, adduct: str) -> float:
     return m - sign * _ELECTRON
 
 
+def ion_label(adduct: str) -> str:
+    """An ion as chemists print it: 'M+H' -> '[M+H]+', 'M+' -> '[M]+', 'M-H' -> '[M-H]-'.
+
+    >>> ion_label("M+Na"), ion_label("M-"), ion_label("M-H")
+    ('[M+Na]+', '[M]-', '[M-H]-')
+    """
+    sign = "-" if ADDUCTS[adduct][1] < 0 else "+"
+    return f"[{adduct.rstrip('+-')}]{sign}"
+
+
 #: a trailing charge: '-', '+', '+2', '(2+)', or ' 2+' after a space (without a space the digits are the last count)
 _CHARGE = re.compile(r"^\[?(?P<body>[^\]\[]*?)\]?(?P<charge>\s*[+-]\d*|\s*\(\s*\d*[+-]\d*\s*\)|\s+\d+[+-])\s*$")
 _PART_SEP = re.compile(r"\s*(?:·|•|\u22c5|\*|\.|\s\+\s|;|,)\s*")

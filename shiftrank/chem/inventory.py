@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..errors import InputError
-from .formula import dbe, dbe_note, hill, ion_mz, parse_formula
+from .formula import dbe, dbe_note, hill, ion_label, ion_mz, parse_formula
 from ..inputs.peaks import PeakList
 from ..words import count
 
@@ -321,10 +321,10 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
 
 def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -> None:
     """Compare a measured m/z with the formula's [M]+, [M+H]+ and [M+Na]+ ions."""
-    for adduct, label in (("M+", "[M]+"), ("M+H", "[M+H]+"), ("M+Na", "[M+Na]+")):
+    for adduct in ("M+", "M+H", "M+Na"):
         exp = ion_mz(fc, adduct)
         err = (mz - exp) / exp * 1e6
-        inv.mass_checks.append(MassCheck(label, exp, err, abs(err) <= mz_tolerance_ppm))
+        inv.mass_checks.append(MassCheck(ion_label(adduct), exp, err, abs(err) <= mz_tolerance_ppm))
 
 
 def _formula_findings(inv: Inventory, formula: str) -> dict:

@@ -26,9 +26,13 @@ import re
 from collections import Counter
 from dataclasses import dataclass
 
-from ..chem.formula import ADDUCTS, hill, ion_mz, parse_formula
+from ..chem.formula import ADDUCTS, hill, ion_label, ion_mz, parse_formula
 from ..errors import InputError
 
+#: ions tried when a statement prints none: the common ones (the molecule's formula, the nearest ion),
+#: and every ion a candidate may fit
+LIKELY_ADDUCTS = ("M+H", "M+Na", "M+", "M-H")
+ANY_ADDUCTS = LIKELY_ADDUCTS + ("M+K", "M+NH4", "M-")
 HIGH_RES_PPM = 10.0
 HIGH_RES_FLOOR = 0.002   # u
 NOMINAL_TOL = 0.6        # u
@@ -71,8 +75,7 @@ class MassStatement:
         return (self.decimals if self.decimals is not None else _decimals(self.found)) >= 3
 
     def describe(self) -> str:
-        ion = f"[{self.adduct}]" + ("-" if self.adduct in ("M-H", "M-") else "+") if self.adduct else "ion type not printed"
-        ion = ion.replace("[M+]+", "[M]+").replace("[M-]-", "[M]-")
+        ion = ion_label(self.adduct) if self.adduct else "ion type not printed"
         return (f"m/z {self.found} ({ion})" + (f", printed as calculated {self.calcd}" if self.calcd else "")
                 + (f" for {self.formula}" if self.formula else "") + (f" (molecule {self.neutral})" if self.neutral else ""))
 
@@ -109,7 +112,7 @@ def _neutral_from(formula: str, adduct: str | None, calcd: float | None, charged
         counts = parse_formula(body)
     except InputError:
         return None
-    adducts = [adduct] if adduct else ["M+H", "M+Na", "M+", "M-H"]
+    adducts = [adduct] if adduct else LIKELY_ADDUCTS
     if calcd is None:
         return hill(counts)   # nothing to tell the two readings apart: as printed, the molecule's
     for as_ion in ((True, False) if charged else (False, True)):
@@ -187,7 +190,7 @@ def _statement(seg: str) -> MassStatement | None:
 
 def ion_fits(counts: Counter | dict, st: MassStatement) -> bool:
     """Whether a neutral molecule of ``counts`` gives the printed ion (the found or the calculated m/z)."""
-    adducts = [st.adduct] if st.adduct else ["M+H", "M+Na", "M+", "M-H", "M+K", "M+NH4", "M-"]
+    adducts = [st.adduct] if st.adduct else ANY_ADDUCTS
     for a in adducts:
         mz = ion_mz(counts, a)
         for v in (st.found, st.calcd):
@@ -198,5 +201,5 @@ def ion_fits(counts: Counter | dict, st: MassStatement) -> bool:
 
 def nearest_ion(counts: Counter | dict, st: MassStatement) -> tuple[str, float]:
     """The candidate's ion closest to the found value: (adduct, m/z)."""
-    adducts = [st.adduct] if st.adduct else ["M+H", "M+Na", "M+", "M-H"]
+    adducts = [st.adduct] if st.adduct else LIKELY_ADDUCTS
     return min(((a, ion_mz(counts, a)) for a in adducts), key=lambda x: abs(x[1] - st.found))

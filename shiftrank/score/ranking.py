@@ -24,7 +24,7 @@ from typing import Sequence
 import numpy as np
 from rdkit import Chem
 
-from ..chem.formula import ADDUCTS, formula_matches, hill, sample_formula
+from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_formula
 from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
 from ..errors import InputError
@@ -358,8 +358,7 @@ def _history_checks(res: CandidateResult, formula_counts, mass: float | None, ma
             continue
         res.formula_ok = False
         a, mz = nearest_ion(res.facts.counts, st)
-        label = "[M]+" if a == "M+" else f"[{a}]" + ("-" if a == "M-H" else "+")
-        res.flags.insert(0, f"MS: found m/z {st.found} does not fit {res.facts.formula} ({label} would be m/z {mz:.4f})")
+        res.flags.insert(0, f"MS: found m/z {st.found} does not fit {res.facts.formula} ({ion_label(a)} would be m/z {mz:.4f})")
 
 
 def _probabilities(cands: list[CandidateResult], priors, demote: bool, settings: RankingSettings | None = None,
@@ -486,6 +485,18 @@ def _check_priors(priors, n: int):
     return p / p.sum()
 
 
+def case_text(case: dict) -> str | None:
+    """A case's printed characterisation text (a string, or a list of paragraphs joined by newlines)."""
+    text = case.get("text")
+    if text is None:
+        return None
+    if isinstance(text, (list, tuple)) and all(isinstance(t, str) for t in text):
+        text = "\n".join(text)
+    if not isinstance(text, str):
+        raise InputError("text: expected the characterisation paragraph(s) as a string")
+    return text
+
+
 def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     """Peak lists per nucleus of one case (from ``peaks``, ``peaks_1h`` and/or ``text``), its solvent
     and the notes made while reading them.  Raises :class:`InputError` when no peaks are given."""
@@ -493,13 +504,9 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     solvent = normalise_solvent(case.get("solvent")) if isinstance(case.get("solvent"), str) else None
     if case.get("solvent") is not None and not isinstance(case.get("solvent"), str):
         raise InputError("solvent: expected a solvent name such as CDCl3")
-    text = case.get("text")
+    text = case_text(case)
     parsed: NmrText | None = None
     if text is not None:
-        if isinstance(text, (list, tuple)) and all(isinstance(t, str) for t in text):
-            text = "\n".join(text)
-        if not isinstance(text, str):
-            raise InputError("text: expected the characterisation paragraph(s) as a string")
         parsed = read_nmr_text(text, "text")
         notes.extend(f"text: {n}" for n in parsed.notes)
     out: dict = {}
@@ -546,10 +553,8 @@ def case_ions(case: dict) -> list[MassStatement]:
         if isinstance(mz, bool) or not isinstance(mz, (int, float)) or not np.isfinite(mz) or mz <= 0:
             raise InputError(f"mz: expected a positive number (the measured m/z), got {mz!r}")
         out.append(MassStatement(float(mz), adduct, source="given"))
-    text = case.get("text")
-    if isinstance(text, (list, tuple)):
-        text = "\n".join(t for t in text if isinstance(t, str))
-    if isinstance(text, str):
+    text = case_text(case)
+    if text is not None:
         out.extend(read_mass_statements(text))
     return out
 
