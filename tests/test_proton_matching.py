@@ -55,6 +55,48 @@ def test_two_different_protons_in_one_clean_doublet_cost_more_than_in_an_m():
     assert assign(pair, [ObservedPeak(7.48, "d", capacity=2)], costs, [[0.0]]).parts["overlap"] == 0.0
 
 
+
+def test_a_further_class_inside_an_m_or_a_printed_range_pays_the_unresolved_share():
+    # same printed pairs (PMC6272727): an 'm' or a printed range promises nothing about how many
+    # classes it holds, but each further class in it is one more shift that had to fall there - with the
+    # best density of a range for free otherwise - so it pays `shared_unresolved`, a clean doublet
+    # `shared_multiplet`, and one class of equivalent protons neither
+    from dataclasses import replace
+
+    from shiftrank.score.matching import MatchCosts, ObservedPeak, SignalClass, assign
+
+    classes = [SignalClass([0], "d", 7.47, 0.1, units=1), SignalClass([1], "d", 7.49, 0.1, units=1)]
+    fits = [[0.0], [0.0]]
+    costs = replace(MatchCosts(), shared_multiplet=5.0, shared_unresolved=0.75)
+    for peak in (ObservedPeak(7.48, "m", capacity=2), ObservedPeak(7.48, "m", lo=7.40, hi=7.55, capacity=2),
+                 ObservedPeak(7.48, None, capacity=2)):
+        free = assign(classes, [peak], replace(costs, shared_unresolved=0.0), fits)
+        paid = assign(classes, [peak], costs, fits)
+        assert paid.total_cost == pytest.approx(free.total_cost + 0.75)
+    d2 = assign(classes, [ObservedPeak(7.48, "d", capacity=2)], costs, fits)
+    assert d2.parts["overlap"] == pytest.approx(5.0)
+    pair = [SignalClass([0, 1], "d", 7.48, 0.1, units=2)]
+    assert assign(pair, [ObservedPeak(7.48, "m", capacity=2)], costs, [[0.0]]).parts["overlap"] == 0.0
+    # two multiplets, one class each: nothing shared
+    two = assign(classes, [ObservedPeak(7.47, "m", capacity=1), ObservedPeak(7.49, "m", capacity=1)], costs, [[0.0, 0.0]] * 2)
+    assert two.parts["overlap"] == 0.0
+
+
+# PMC10095699 (dev half of the literature split): a 4-chlorobenzyl thiocyanate printed with its two
+# symmetric aromatic pairs as two narrow 2H multiplets
+THIOCYANATE_1H = "1H NMR (CDCl3, 400 MHz) δ = 7.36–7.34 (m, 2H), 7.29–7.27 (m, 2H), 4.09 (s, 2H)"
+
+
+def test_two_printed_2h_multiplets_favour_the_symmetric_ring_over_four_classes_sharing_them():
+    # before `shared_unresolved`, the 2-chloro isomer's four aromatic classes each took the best density of
+    # a range and outscored the article's 4-chloro structure, whose two classes fill the two ranges exactly
+    para, ortho, meta = "N#CSCc1ccc(Cl)cc1", "N#CSCc1ccccc1Cl", "N#CSCc1cccc(Cl)c1"
+    r = rank(text=THIOCYANATE_1H, candidates=[meta, para, ortho])
+    assert r.best.smiles == para
+    by = {c.smiles: c.nuclei["1H"].assignment.parts for c in r.candidates}
+    assert by[para]["overlap"] == 0.0
+    assert by[ortho]["overlap"] > 0.0 and by[meta]["overlap"] > 0.0
+
 # PMC9146377: lines picked by a program, printed with J values no H–H coupling reaches (26.3, 33.7 Hz)
 PICKED_1H = ("1H NMR (400 MHz, CDCl3) δ 8.00–7.80 (m, 1H), 7.57 (ddd, J =26.3, 23.6, 7.9 Hz, 2H), "
              "7.36 (ddd, J = 33.7, 17.4, 6.9 Hz, 1H), 7.06 (dd, J = 16.0, 8.0 Hz, 1H)")
@@ -148,4 +190,7 @@ def test_amide_n_methyls_are_two_classes_that_may_share_one_singlet():
     res = two.best.nuclei["1H"]
     assert res.assignment.parts["integral"] == 0.0 and not res.assignment.unmatched_peaks
     one = rank(text="1H NMR (400 MHz, CDCl3) δ 7.40-7.36 (m, 5H), 3.05 (s, 6H)", candidates=[DMBA])
-    assert one.best.nuclei["1H"].assignment.parts["overlap"] == 0.0   # one singlet for both is no coincidence
+    # one singlet for both is no coincidence: the only sharing paid is the phenyl's three classes in its 'm'
+    from shiftrank.score.ranking import ranking_settings
+    share = ranking_settings().costs["1H"].shared_unresolved
+    assert one.best.nuclei["1H"].assignment.parts["overlap"] == pytest.approx(2 * share)

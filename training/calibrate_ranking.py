@@ -77,6 +77,7 @@ GRID = {
         "integral_mismatch": [0.5, 1.0, 1.5, 2.5, 4.0],
         "t_widen": [1.0, 1.25, 1.5, 2.0, 2.5, 3.0, 3.5],
         "shared_multiplet": [0.0, 0.5, 1.0, 2.0, 3.5, 5.0, 8.0],
+        "shared_unresolved": [0.0, 0.25, 0.5, 0.75, 1.0, 1.5, 2.0],
     },
 }
 KEEP = [f for f in MatchCosts.__dataclass_fields__ if f not in ("t_df", "t_scale", "h_t_df", "h_t_scale")]

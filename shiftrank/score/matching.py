@@ -57,6 +57,7 @@ class MatchCosts:
     missing_quaternary: float | None = None  # 13C: an unlisted quaternary carbon (weak lines are often not printed)
     missing_near: float | None = None    # a class predicted within near_scale of another class, unlisted
     shared_multiplet: float = 0.0        # 1H: per further class inside one printed first-order multiplet (d, t, dd …)
+    shared_unresolved: float = 0.0       # 1H: per further class inside one printed unresolved multiplet ('m', a range, 'br')
     h_t_df: float | None = None          # HSQC: Student-t of the proton dimension (None: no proton dimension)
     h_t_scale: float = 1.0
 
@@ -363,12 +364,17 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
         if j is not None:
             classes_on_peak[j] += 1
             kinds_on_peak.setdefault(j, set()).add(classes[i].twin_of if classes[i].twin_of is not None else ("class", i))
-    if costs.shared_multiplet:
-        # a clean doublet or triplet holding two different protons is a coincidence, unlike an 'm'
+    if costs.shared_multiplet or costs.shared_unresolved:
+        # a clean doublet or triplet holding two different protons is a coincidence; an 'm' or a printed
+        # range often holds several classes, but each further class there still needs its own shift to fall
+        # inside it, and a class inside a range otherwise gains its best density for free
         # (charged after the assignment, which it does not steer)
         # (two alike groups told apart, such as the methyls of an isopropyl beside a stereocentre, often share one)
-        parts["overlap"] += costs.shared_multiplet * float(sum(
-            len(kinds_on_peak[j]) - 1 for j in range(npk) if classes_on_peak[j] > 1 and observed_pattern(peaks[j].multiplicity) is not None))
+        for j in range(npk):
+            if classes_on_peak[j] > 1:
+                resolved = observed_pattern(peaks[j].multiplicity) is not None
+                cost = costs.shared_multiplet if resolved else costs.shared_unresolved
+                parts["overlap"] += cost * float(len(kinds_on_peak[j]) - 1)
     pairings = []
     for (i, j), kinds in sorted(got.items(), key=lambda kv: (kv[0][0], -1 if kv[0][1] is None else kv[0][1])):
         n = len(kinds)
