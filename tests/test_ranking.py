@@ -127,6 +127,24 @@ def test_each_spectrum_alone_gets_its_own_probabilities_and_a_conflict_is_named(
     assert set(d["probability_by_spectrum"]) == {"13C", "1H"}
 
 
+def test_the_1h_term_beside_13c_uses_the_joint_costs_and_alone_its_own():
+    # the calibration may give the 1H term a narrower widening beside a 13C list than alone
+    # (training/calibrate_ranking.py, joint step); both paragraphs printed with the article (PMC9832363)
+    from dataclasses import replace
+
+    from shiftrank.score.ranking import RankingSettings, ranking_settings
+
+    s = ranking_settings()
+    alone_1h = QUINAZOLINONE_TEXT.split("\n")[0]
+    both = {c.smiles: c.nuclei["1H"].cost for c in rank(text=QUINAZOLINONE_TEXT, candidates=QUINAZOLINONE_ISOMERS).candidates}
+    alone = {c.smiles: c.nuclei["1H"].cost for c in rank(text=alone_1h, candidates=QUINAZOLINONE_ISOMERS).candidates}
+    differs = s.costs_for("1H", True) != s.costs["1H"]
+    assert differs == any(abs(both[k] - alone[k]) > 1e-9 for k in both)
+    wide = replace(s.costs["1H"], t_widen=s.costs["1H"].t_widen * 2)
+    t = RankingSettings(s.costs, s.temperature, {"1H": wide}, {"1H": 9.0})
+    assert t.costs_for("1H", True) is wide and t.costs_for("1H", False) is s.costs["1H"]
+    assert t.view_divisor("1H") == 9.0 and t.view_divisor("13C") == s.temperature["13C"]
+
 def _cand(smiles, **by):
     from shiftrank.score.ranking import CandidateResult
 

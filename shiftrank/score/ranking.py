@@ -17,7 +17,7 @@ mass) is flagged and, by default, ranked last with probability 0 and the reason.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from typing import Sequence
 
@@ -164,9 +164,19 @@ def _peak_dict(p: ObservedPeak) -> dict:
 class RankingSettings:
     costs: dict                 # nucleus -> MatchCosts
     temperature: dict           # nucleus -> T alone; "joint" -> {nucleus: T} when several nuclei are observed
+    joint_costs: dict = field(default_factory=dict)   # nucleus -> MatchCosts beside another spectrum, where they differ
+    view_temperature: dict = field(default_factory=dict)   # nucleus -> T of its joint-mode costs taken alone
 
     def divisor(self, nucleus: str, joint: bool) -> float:
         return self.temperature["joint"][nucleus] if joint else self.temperature[nucleus]
+
+    def costs_for(self, nucleus: str, joint: bool) -> MatchCosts:
+        """The match costs of ``nucleus`` alone, or beside another spectrum (e.g. a narrower 1H widening)."""
+        return self.joint_costs.get(nucleus, self.costs[nucleus]) if joint else self.costs[nucleus]
+
+    def view_divisor(self, nucleus: str) -> float:
+        """Temperature of one spectrum's own view when it was scored beside others (its joint-mode costs alone)."""
+        return self.view_temperature.get(nucleus, self.temperature[nucleus])
 
 
 def ranking_settings() -> RankingSettings:
@@ -188,7 +198,14 @@ def ranking_settings() -> RankingSettings:
     joint = r.get("joint", {})
     temps["joint"] = {n: float(joint.get(n, {}).get("temperature", temps[n])) if isinstance(joint.get(n), dict)
                       else temps[n] for n in SPECTRA}
-    return RankingSettings(costs, temps)
+    joint_costs, view = {}, {}
+    for n in SPECTRA:
+        jn = joint.get(n) if isinstance(joint.get(n), dict) else {}
+        kw = {k: jn[k] for k in MatchCosts.__dataclass_fields__ if k in jn and k not in error_fields}
+        if kw:
+            joint_costs[n] = replace(costs[n], **kw)
+            view[n] = float(jn.get("temperature_alone", temps[n]))
+    return RankingSettings(costs, temps, joint_costs, view)
 
 
 def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> PeakList:
@@ -326,7 +343,7 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
             means[n] = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
     for n, obs in peaks.items():
         mu = (means["13C"], means["1H"]) if n == "HSQC" else means[n]
-        r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs[n], facts=res.facts)
+        r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs_for(n, len(peaks) > 1), facts=res.facts)
         if not identity:  # tables speak of the atoms as the user drew them
             for c in r.classes:
                 c.atoms = [std.atom_map[a] for a in c.atoms]
@@ -378,7 +395,7 @@ def _probabilities(cands: list[CandidateResult], priors, demote: bool, settings:
         c.probability = float(p)
     if settings is not None and len(spectra) > 1:
         for n in spectra:
-            own = _softmax(np.array([-c.nuclei[n].cost / settings.divisor(n, False) for c in pool]))
+            own = _softmax(np.array([-c.nuclei[n].cost / settings.view_divisor(n) for c in pool]))
             for c, p in zip(pool, own):
                 c.by_spectrum[n] = float(p)
 
