@@ -11,7 +11,10 @@ multiplet).  The assignment minimises a total cost in nats (negative log-likelih
   as its integral, so a "m, 5H" takes five protons from one or several classes and a diastereotopic
   CH2 may split over two 1H multiplets.  Each proton beyond a multiplet's integral, and each proton
   of its integral that no class supplies, costs ``integral_mismatch``; each further class inside a
-  printed first-order multiplet (a clean d, t, dd …, not an 'm') costs ``shared_multiplet``.
+  printed first-order multiplet (a clean d, t, dd …) costs ``shared_multiplet``, and each further class
+  inside an unresolved one (an 'm', a printed range, no letters) the smaller ``shared_unresolved``: a
+  class inside a range is scored at zero deviation, so without it every class placed there would lower
+  the total (the Student-t term of a small σ is negative at zero deviation).
 
 The cost of a class ↔ peak pair is a Student-t error of (δ − μ)/σ (parameters fitted to the
 predictor's held-out residuals, as DP4 does with its own errors — Smith & Goodman 2010; a printed

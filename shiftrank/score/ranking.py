@@ -7,7 +7,9 @@ candidates follow DP4 (Smith & Goodman 2010, J. Am. Chem. Soc. 132, 12946): a pr
 likelihoods over atoms — here together with the signal-count and multiplicity terms — over the
 nuclei observed (DP4 combines nuclei the same way), normalised over the candidates with the given
 priors (equal by default).  Temperatures fitted on development cases temper each nucleus's product
-and the joint one, because errors of atoms in one molecule are correlated.
+and the joint one, because errors of atoms in one molecule are correlated; beside another spectrum a
+nucleus may also use match costs of its own (:meth:`RankingSettings.costs_for`: printed 1H shifts are
+widened less next to a 13C list than alone).
 
 Peaks come as lists (``peaks`` for 13C, ``peaks_1h`` for 1H) or as printed characterisation text
 (``text``), which :func:`shiftrank.inputs.text.read_nmr_text` reads; any one is enough.
