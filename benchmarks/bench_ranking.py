@@ -77,21 +77,27 @@ def reliability(top_p, top_ok) -> list[str]:
     return lines
 
 
-def by_size_and_count(ranks, held, cases) -> str:
-    """Held-out top-1 by the true structure's size (heavy atoms) and by the number of candidates."""
+SIZE_BINS = [(0, 15), (15, 25), (25, 35), (35, 999)]
+COUNT_BINS = [(2, 3), (3, 5), (5, 7), (7, 999)]
+
+
+def by_size_and_count(ranks, held, cases, size_bins=SIZE_BINS, count_bins=COUNT_BINS,
+                      prefix: str = "      held-out top-1") -> str:
+    """Top-1 of the cases in ``held`` by the true structure's size (heavy atoms of the first candidate;
+    positional isomers share it) and by the number of candidates ranked."""
     from rdkit import Chem
 
     sizes = np.array([Chem.MolFromSmiles(c["candidates"][0]).GetNumHeavyAtoms() for c in cases])
     counts = np.array([len(c["candidates"]) for c in cases])
     out = []
-    for name, values, bins in (("heavy atoms", sizes, [(0, 15), (15, 25), (25, 35), (35, 999)]),
-                               ("candidates", counts, [(2, 3), (3, 5), (5, 7), (7, 99)])):
+    for name, values, bins in (("heavy atoms", sizes, size_bins), ("candidates", counts, count_bins)):
         parts = []
         for lo, hi in bins:
             m = held & (values >= lo) & (values < hi)
             if m.any():
-                parts.append(f"{lo}-{hi - 1 if hi < 99 else '+'}: {100 * np.mean(ranks[m] == 1):.1f} % (n={m.sum()})")
-        out.append(f"      held-out top-1 by {name}: " + ", ".join(parts))
+                span = f"{lo}+" if hi >= 999 else (f"{lo}" if hi == lo + 1 else f"{lo}-{hi - 1}")
+                parts.append(f"{span}: {100 * np.mean(ranks[m] == 1):.1f} % (n={m.sum()})")
+        out.append(f"{prefix} by {name}: " + ", ".join(parts))
     return "\n".join(out)
 
 

@@ -36,6 +36,13 @@ sys.path.insert(0, str(REPO))
 
 from training.data import DEFAULT_DATA, literature_part  # noqa: E402
 
+sys.path.insert(0, str(REPO / "benchmarks"))
+from bench_ranking import by_size_and_count  # noqa: E402
+
+# printed cases are larger molecules with more positional isomers than the database cases
+SIZE_BINS = [(0, 20), (20, 30), (30, 40), (40, 999)]
+COUNT_BINS = [(2, 4), (4, 7), (7, 10), (10, 999)]
+
 
 def printed_count(text: str) -> int:
     """Peaks as printed, counted without the reader: decimal numbers (or ranges) outside brackets after δ."""
@@ -128,17 +135,11 @@ def ranking_figures(cases, label: str) -> dict:
         ranks = np.array(ranks)
         n_c = sum(len(b["candidates"]) for b, _ in built)
         out[which] = float(np.mean(ranks == 1))
-        from rdkit import Chem
-        sizes = np.array([Chem.MolFromSmiles(b["candidates"][0]).GetNumHeavyAtoms() for b, _ in built])
-        parts = []
-        for lo, hi in ((0, 20), (20, 30), (30, 40), (40, 999)):
-            m = (sizes >= lo) & (sizes < hi)
-            if m.any():
-                parts.append(f"{lo}-{hi - 1 if hi < 999 else '+'}: {100 * np.mean(ranks[m] == 1):.0f} % (n={m.sum()})")
         print(f"  {label:<9} {which:<5} n={len(ranks):4d}  top-1 {100 * np.mean(ranks == 1):5.1f} %  top-2 "
               f"{100 * np.mean(ranks <= 2):5.1f} %  MRR {np.mean(1 / ranks):.3f}  case errors {errors}  "
               f"({n_c / dt:,.0f} candidates/s in-process)")
-        print(f"        by heavy atoms: " + ", ".join(parts))
+        print(by_size_and_count(ranks, np.ones(len(ranks), bool), [b for b, _ in built],
+                                size_bins=SIZE_BINS, count_bins=COUNT_BINS, prefix="        top-1"))
         if any(noted):
             nt = np.array(noted)
             print(f"        'the spectra disagree' noted: top-1 {np.sum(ranks[nt] == 1)} of {nt.sum()}; "
