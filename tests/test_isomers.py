@@ -49,6 +49,16 @@ def test_naphthalene_substituent_visits_the_other_position():
     assert keys(isomers("Cc1cccc2ccccc12")) == {key("Cc1ccc2ccccc2c1")}
 
 
+def test_halogen_visits_ring_carbons_but_not_the_indole_nh():
+    # 5-chloroindole: Cl at C2, C3, C4, C6 or C7 (hand count: the five other ring CH of indole); an
+    # N-chloroindole is a chlorinating reagent, not a ring-substitution product (common practice)
+    assert keys(isomers("Clc1ccc2[nH]ccc2c1", kinds=("positional",))) == {
+        key(s) for s in ("Clc1cc2ccccc2[nH]1", "Clc1c[nH]c2ccccc12", "Clc1cccc2[nH]ccc12", "Clc1ccc2cc[nH]c2c1",
+                         "Clc1cccc2cc[nH]c12")}
+    # a carbon group still may move onto it (N- against C-arylation): 5-phenylindole gives 1-phenylindole
+    assert key("c1ccc(-n2ccc3ccccc32)cc1") in keys(isomers("c1ccc(-c2ccc3[nH]ccc3c2)cc1", kinds=("positional",)))
+
+
 def test_dicarbonyl_c_and_o_alkylation():
     assert keys(isomers("CC(=O)C(C)C(C)=O", kinds=("ambident",))) == {key("COC(C)=CC(C)=O")}
 

@@ -184,10 +184,13 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         subs = [s for s in _substituents(mol, system) if mol.GetAtomWithIdx(s[0]).GetAtomicNum() == 6
                 or (mol.GetAtomWithIdx(s[0]).GetFormalCharge() > 0 and mol.GetAtomWithIdx(s[0]).IsInRingSize(6))]
         free = [i for i in sorted(system) if _free(mol, i)]
+        # a ring NH takes a carbon, N, O or S group (N- against C-alkylation or arylation); a halogen on a
+        # ring N (an N-haloazole) is a reagent, not a substitution product, and is not generated
+        x_is_halogen = {x: mol.GetAtomWithIdx(x).GetAtomicNum() in (9, 17, 35, 53) for _, x, _ in subs}
         for r, x, name in subs:
             others = [(r2, n2) for r2, x2, n2 in subs if (r2, x2) != (r, x)]
             for t in free:
-                if t == r:
+                if t == r or (mol.GetAtomWithIdx(t).GetAtomicNum() == 7 and x_is_halogen[x]):
                     continue
                 m = _reattach(mol, [(r, x, t)])
                 if m is not None:
