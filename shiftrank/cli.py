@@ -252,15 +252,22 @@ def _case_from_args(args) -> tuple[dict, dict]:
     return case, lists
 
 
+def _rank_sample(args, case: dict):
+    """``rank`` and the one-sample ``report``: the same options give the same ranking."""
+    from .score.ranking import rank
+
+    return rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
+                solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
+                peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
+                hsqc=case.get("hsqc"), mz=_mz_arg(args))
+
+
 def cmd_rank(args) -> int:
     from .outputs.terminal import print_ranking
-    from .score.ranking import case_peaklists, rank
+    from .score.ranking import case_peaklists
 
     case, _ = _case_from_args(args)
-    result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
-                  solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
-                  peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
-                  hsqc=case.get("hsqc"), mz=_mz_arg(args))
+    result = _rank_sample(args, case)
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
@@ -271,7 +278,7 @@ def cmd_rank(args) -> int:
     if args.report:
         from .outputs.report import write_report
         lists, _, _ = case_peaklists(case)
-        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists, case)])
+        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists, case, for_ranking=True)])
         print(f"report written to {args.report}", file=sys.stderr)
     return 0
 
@@ -309,9 +316,12 @@ def _mz_arg(args):
     return {"found": mz, "adduct": adduct} if adduct else mz
 
 
-def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | None = None):
+def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | None = None,
+                   for_ranking: bool = False):
     """The inventory of the lists against the options' formula and m/z; without them, against a
-    high-resolution mass statement printed in the text (its molecule's formula and found m/z, noted)."""
+    high-resolution mass statement printed in the text (its molecule's formula and found m/z, noted).
+    Beside a ranking (``for_ranking``) an m/z without a formula is left to the candidates' own ion
+    checks instead of being refused."""
     from .chem.inventory import take_inventory
 
     if lists.get("13C") is None and lists.get("1H") is None:
@@ -331,6 +341,8 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
                 mz = st.found
                 if notes is not None:
                     notes.append(f"m/z {st.found} taken from the text's MS statement")
+    if for_ranking and formula is None:
+        mz = None
     return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0))
 
 
@@ -379,14 +391,10 @@ def cmd_report(args) -> int:
     else:
         if not args.candidates:
             raise InputError("report: give --candidates with --peaks/--peaks-1h/--hsqc/--text, or --batch CASES.jsonl")
-        from .score.ranking import rank
-
         case, _ = _case_from_args(args)
-        result = rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
-                      solvent=args.solvent, id=case["id"], peaks_1h=case.get("peaks_1h"), text=case.get("text"),
-                      hsqc=case.get("hsqc"), mz=_mz_arg(args))
+        result = _rank_sample(args, case)
         lists, _, _ = case_peaklists(case)
-        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists, case)])
+        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists, case, for_ranking=True)])
     print(f"report written to {args.output}")
     return 0
 
@@ -411,6 +419,25 @@ def cmd_demo(args) -> int:
     from .demo.runner import run_demo
 
     return run_demo(args.output)
+
+
+def _sample_options(s, candidates_required: bool) -> None:
+    """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
+    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
+    s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H and/or 13C paragraphs); - reads stdin")
+    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
+    s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
+                   help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
+    s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
+    s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
+    s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
+    s.add_argument("--adduct", choices=list(ADDUCTS), help="the ion --mz was measured as (default: any common one)")
+    s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
+    s.add_argument("--keep-mismatches", action="store_true",
+                   help="do not demote candidates contradicting formula, mass or m/z")
+    s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
+                   help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -443,21 +470,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_predict)
 
     s = sub.add_parser("rank", help="rank candidate structures against 13C and/or 1H peaks or printed NMR text")
-    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
-    s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
-    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H and/or 13C paragraphs); - reads stdin")
-    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
-    s.add_argument("--candidates", required=True, nargs="+", metavar="FILE_OR_SMILES",
-                   help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
-    s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
-    s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
-    s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
-    s.add_argument("--adduct", choices=list(ADDUCTS), help="the ion --mz was measured as (default: any common one)")
-    s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
-    s.add_argument("--keep-mismatches", action="store_true",
-                   help="do not demote candidates contradicting formula, mass or m/z")
-    s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
-                   help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
+    _sample_options(s, candidates_required=True)
     s.add_argument("--json", action="store_true", help="print the full result as JSON")
     s.add_argument("--report", metavar="HTML", help="also write an HTML report")
     s.set_defaults(func=cmd_rank)
@@ -484,17 +497,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_inventory)
 
     s = sub.add_parser("report", help="write a self-contained HTML report for one sample or a batch")
-    s.add_argument("--peaks", help="13C peak list of one sample")
-    s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES")
     s.add_argument("--batch", metavar="CASES.jsonl", help="rank a JSONL batch and report every case")
-    s.add_argument("--peaks-1h", help="1H peak list with integrals")
-    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text; - reads stdin")
-    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line, or a JSON list of pairs")
-    s.add_argument("--formula")
-    s.add_argument("--mass", type=float)
-    s.add_argument("--mz", type=float)
-    s.add_argument("--ppm", type=float, default=5.0)
-    s.add_argument("--solvent")
+    _sample_options(s, candidates_required=False)
+    s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance of the report's inventory in ppm (default 5)")
     s.add_argument("-o", "--output", required=True, help="HTML file to write")
     s.set_defaults(func=cmd_report)
 

@@ -59,6 +59,15 @@ def test_halogen_visits_ring_carbons_but_not_the_indole_nh():
     assert key("c1ccc(-n2ccc3ccccc32)cc1") in keys(isomers("c1ccc(-c2ccc3[nH]ccc3c2)cc1", kinds=("positional",)))
 
 
+def test_relations_name_common_groups_by_condensed_formula():
+    # 4-methoxybenzonitrile: CN, OCH3 as chemists write them (common practice); a group without a
+    # condensed name keeps its SMILES
+    assert [a.relation for a in isomers("N#Cc1ccc(OC)cc1", kinds=("positional",))] == [
+        "CN moved from ring atom 2 to ring atom 3 (now meta to OCH3)",
+        "CN moved from ring atom 2 to ring atom 4 (now ortho to OCH3)"]
+    assert any(a.relation.startswith("OC(C)C moved") for a in isomers("CC(C)Oc1ccc(-c2ccncc2)cc1"))
+
+
 def test_dicarbonyl_c_and_o_alkylation():
     assert keys(isomers("CC(=O)C(C)C(C)=O", kinds=("ambident",))) == {key("COC(C)=CC(C)=O")}
 

@@ -40,3 +40,18 @@ def test_batch_report_summary_links(tmp_path):
     assert r.returncode == 0, r.stderr
     html = out.read_text()
     assert "Summary" in html and "href='#sample-1'" in html and "href='#sample-2'" in html
+
+
+def test_one_sample_report_takes_the_rank_options(tmp_path):
+    # `report` and `rank` share the sample options: generated alternatives and the m/z adduct reach
+    # the report as they reach the ranking (INVENTED peak list above; the ion is the para ester's [M+H]+)
+    peaks = tmp_path / "s.txt"
+    peaks.write_text(TEXT)
+    out = tmp_path / "r.html"
+    r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "report", "--peaks", str(peaks), "--candidates", PARA,
+                        "--with-isomers", "--mz", "165.0910", "--adduct", "M+H", "--solvent", "CDCl3", "-o", str(out)],
+                       capture_output=True, text=True)
+    assert r.returncode == 0, r.stderr
+    html = out.read_text()
+    assert "CO2C2H5 moved from ring atom 5 to ring atom 6 (now meta to CH3)" in html   # the meta ester
+    assert "measured m/z 165.091 ([M+H]+)" in html

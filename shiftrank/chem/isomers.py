@@ -19,7 +19,7 @@ in a clear error.  Atom numbers in the relations are the 0-based indices of the 
 every assignment table and JSON output.
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
-['C moved from ring atom 1 to ring atom 2 (now meta to F)', 'C moved from ring atom 1 to ring atom 3 (now ortho to F)']
+['CH3 moved from ring atom 1 to ring atom 2 (now meta to F)', 'CH3 moved from ring atom 1 to ring atom 3 (now ortho to F)']
 """
 from __future__ import annotations
 
@@ -112,11 +112,48 @@ def _side(mol: Chem.Mol, root: int, cut: int) -> list[int]:
     return sorted(seen)
 
 
-def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
+# condensed formulas chemists write for common ring substituents (common practice); each group is
+# drawn on a dummy atom '*' standing for the ring atom; any other group is named by its SMILES
+GROUP_NAMES = {
+    "*C": "CH3", "*CC": "C2H5", "*C(C)C": "iPr", "*C(C)(C)C": "tBu", "*C(F)(F)F": "CF3", "*C#N": "CN",
+    "*C=O": "CHO", "*C(=O)O": "COOH", "*C(=O)OC": "CO2CH3", "*C(=O)OCC": "CO2C2H5", "*C(C)=O": "COCH3",
+    "*C(N)=O": "CONH2", "*O": "OH", "*OC": "OCH3", "*OCC": "OC2H5", "*OC(F)(F)F": "OCF3", "*OC(C)=O": "OAc",
+    "*N": "NH2", "*NC": "NHCH3", "*N(C)C": "N(CH3)2", "*NC(C)=O": "NHAc", "*[N+](=O)[O-]": "NO2",
+    "*SC": "SCH3", "*S(C)(=O)=O": "SO2CH3", "*S(N)(=O)=O": "SO2NH2", "*c1ccccc1": "C6H5",
+    "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
+}
+
+
+def _rooted_smiles(mol: Chem.Mol, root: int, ring_atom: int) -> str:
+    """The substituent on ``ring_atom`` whose first atom is ``root``, as canonical SMILES rooted there;
+    '' when the group closes back onto the ring (not a simple substituent)."""
     atoms = _side(mol, root, ring_atom)
-    if ring_atom in atoms:  # the substituent closes back onto the ring: not a simple substituent
+    if ring_atom in atoms:
         return ""
-    smi = Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=False)
+    return Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=False)
+
+
+def _group_table() -> dict[str, str]:
+    table = {}
+    for smi, name in GROUP_NAMES.items():
+        m = Chem.MolFromSmiles(smi)
+        dummy = next(a for a in m.GetAtoms() if a.GetAtomicNum() == 0)
+        table[_rooted_smiles(m, dummy.GetNeighbors()[0].GetIdx(), dummy.GetIdx())] = name
+    return table
+
+
+_GROUPS: dict[str, str] | None = None
+
+
+def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
+    global _GROUPS
+    smi = _rooted_smiles(mol, root, ring_atom)
+    if not smi:
+        return ""
+    if _GROUPS is None:
+        _GROUPS = _group_table()
+    if smi in _GROUPS:
+        return _GROUPS[smi]
     return smi if len(smi) <= 24 else smi[:22] + "…"
 
 
