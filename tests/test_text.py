@@ -210,6 +210,24 @@ def test_13c_values_in_brackets_and_lists_with_a_stray_bracket_are_read():
     assert any("unbalanced" in n for n in c.notes)
 
 
+def test_off_resonance_letters_count_attached_h():
+    # PMC4120540 (2,5-diazido-1,4-phenylene diacetate, C10H8N6O4): s/d/t/q without any J value are the
+    # number of attached H (off-resonance notation, common practice); by the structure: C=O, C–O, C–N
+    # quaternary, one CH class, one CH3 class
+    text = "13C NMR (CDCl3, 50\u2005MHz): δ 168.3 (s), 140.0 (s), 129.3 (s), 115.3 (d), 20.4 (q)"
+    pl = read_nmr_text(text).peaklist("13C")
+    assert [(p.shift, p.multiplicity, getattr(p, "coupling", None)) for p in pl.peaks] == [
+        (20.4, "CH3", None), (115.3, "CH", None), (129.3, "C", None), (140.0, "C", None), (168.3, "C", None)]
+    assert any("off-resonance" in n for n in pl.notes)
+    # the same letters beside a printed J (PMC10020958 style C–F doublets) stay splittings
+    pl = read_nmr_text("13C NMR (126 MHz, DMSO-d6) δ 166.0 (s), 162.8 (d, J = 249.9 Hz), 130.2 (d), 114.5 (d), "
+                       "44.5 (t), 20.1 (q)").peaklist("13C")
+    assert all(p.multiplicity is None for p in pl.peaks) and not any("off-resonance" in n for n in pl.notes)
+    # a list of singlets says nothing about the H count
+    pl = read_nmr_text("13C NMR (CDCl3) δ 168.3 (s), 140.0 (s), 129.3 (s), 115.3 (s)").peaklist("13C")
+    assert all(p.multiplicity is None for p in pl.peaks)
+
+
 def test_peaklists_from_text_set_solvent_aside():
     # the CDCl3 triplet printed among the peaks (PMC10216335's 13C line)
     t = read_nmr_text("13C-NMR (CDCl3, 400 MHz) Î´ 24.2, 25.8, 27.5, 40.9, 54.4, 57.6, 76.8, 77.2, 77.5")

@@ -119,7 +119,7 @@ GROUP_NAMES = {
     "*C=O": "CHO", "*C(=O)O": "COOH", "*C(=O)OC": "CO2CH3", "*C(=O)OCC": "CO2C2H5", "*C(C)=O": "COCH3",
     "*C(N)=O": "CONH2", "*O": "OH", "*OC": "OCH3", "*OCC": "OC2H5", "*OC(F)(F)F": "OCF3", "*OC(C)=O": "OAc",
     "*N": "NH2", "*NC": "NHCH3", "*N(C)C": "N(CH3)2", "*NC(C)=O": "NHAc", "*[N+](=O)[O-]": "NO2",
-    "*SC": "SCH3", "*S(C)(=O)=O": "SO2CH3", "*S(N)(=O)=O": "SO2NH2", "*c1ccccc1": "C6H5",
+    "*N=[N+]=[N-]": "N3", "*SC": "SCH3", "*S(C)(=O)=O": "SO2CH3", "*S(N)(=O)=O": "SO2NH2", "*c1ccccc1": "C6H5",
     "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
 }
 

@@ -122,16 +122,38 @@ class NmrText:
         return section_peaklist(sec, solvent, source)
 
 
+#: off-resonance notation of a 13C list: the letters count the attached H (common practice)
+_OFF_RESONANCE = {"s": "C", "d": "CH", "t": "CH2", "q": "CH3"}
+
+
+def off_resonance_letters(sec: TextSection) -> bool:
+    """Whether a 13C section's s/d/t/q letters count attached H rather than describe C–F/C–P splitting:
+    no J value printed anywhere in it, at least three lettered lines making up 80 % of its lines, every
+    letter one of s/d/t/q, and at least two different letters (a list of singlets says nothing) and no
+    DEPT label already printed."""
+    if sec.nucleus != "13C" or any(p.j or p.dept for p in sec.peaks):
+        return False
+    letters = [p.multiplicity for p in sec.peaks if p.multiplicity]
+    return (len(letters) >= 3 and len(letters) >= 0.8 * len(sec.peaks)
+            and set(letters) <= set(_OFF_RESONANCE) and len(set(letters)) >= 2)
+
+
 def section_peaklist(sec: TextSection, solvent: str | None = None, source: str = "text") -> PeakList:
     check_count(len(sec.peaks), f"{source} ({sec.nucleus})")
     lo, hi = RANGES[sec.nucleus]
     notes = [f"{sec.nucleus} text: {n}" for n in sec.notes]
+    off_resonance = off_resonance_letters(sec)
+    if off_resonance:
+        notes.append("13C text: s/d/t/q printed without any J value: read as C/CH/CH2/CH3 (off-resonance "
+                     "notation), not as C–F splitting")
     peaks = []
     for p in sec.peaks:
         if not lo <= p.shift <= hi:
             notes.append(f"{sec.nucleus} text: '{p.fragment}' lies outside {lo:g}…{hi:g} ppm: set aside")
             continue
-        if sec.nucleus == "13C":
+        if off_resonance:
+            pk = Peak(p.shift, _OFF_RESONANCE.get(p.multiplicity or ""), None, max(p.count, 1), None, None)
+        elif sec.nucleus == "13C":
             pk = Peak(p.shift, p.dept, None, max(p.count, 1), None, None, coupling=_coupling(p), j=p.j)
         else:
             pk = Peak(p.shift, p.multiplicity, p.integral, 1, None, None, lo=p.lo, hi=p.hi, j=p.j)
