@@ -98,6 +98,9 @@ _MULT_WORDS = {
     "m": "m", "multiplet": "m", "mc": "m", "brm": "br m",
     "br": "br", "broad": "br", "brs": "br s", "bs": "br s", "brd": "br d", "bd": "br d", "brt": "br t", "bt": "br t",
     "brsinglet": "br s", "abq": "ABq", "ab": "ABq", "ab q": "ABq", "abx": "m", "aa'bb'": "m", "aabb": "m",
+    "absystem": "ABq", "abpattern": "ABq", "abquartet": "ABq", "bm": "br m", "broadm": "br m",
+    "dm": "m", "tm": "m",  # a doublet or triplet of unresolved multiplets: not first-order
+    "overlappingm": "m", "overlappedm": "m", "mov": "m", "ovm": "m", "complexm": "m", "aa'xx'": "m", "aaxx": "m",
 }
 _COMBO = re.compile(r"^(?:[dtq]|quint|quin|p|sext|sept){1,4}$")
 
@@ -109,12 +112,16 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     ['br s', 'p', 'dd', 't', 'm', 'br s', None]
     >>> [normalise_1h_multiplicity(x) for x in ("d of d", "ps t", "s (br)", "dd~t")]
     ['dd', 't', 'br s', None]
+    >>> [normalise_1h_multiplicity(x) for x in ("dd (AB)", "AB system", "overlapping m", "bm", "dm")]
+    ['dd', 'ABq', 'm', 'br m', 'm']
     """
     if text is None:
         return None
     c = re.sub(r"[\s.\-]", "", str(text).lower())
-    for word in ("apparent", "app", "pseudo"):
-        c = c.replace(word, "")
+    for word in ("apparent", "app", "pseudo"):   # as a prefix only ('overlapping' holds 'app')
+        if c.startswith(word):
+            c = c[len(word):]
+            break
     if c.startswith("ps") and _COMBO.match(c[2:]):   # 'ps t': pseudo-triplet
         c = c[2:]
     if c in _MULT_WORDS:
@@ -125,6 +132,8 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     if c.endswith("(br)") or c.endswith("(broad)"):  # 's (br)'
         inner = normalise_1h_multiplicity(c[:c.index("(")])
         return None if inner is None else inner if inner.startswith("br") else "br " + inner
+    if c.endswith(")") and "(" in c and c.index("(") > 0:  # 'dd (AB)', 'm (ov)': letters, then a remark
+        return normalise_1h_multiplicity(c[:c.index("(")])
     for pre in ("broad", "br", "b"):
         if c.startswith(pre) and len(c) > len(pre) and _COMBO.match(c[len(pre):]):
             c, br = c[len(pre):], True
