@@ -6,7 +6,8 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
 
 * **positional**: every substituent of an aromatic or heteroaromatic ring (five- and six-membered
   rings and fused ring systems) moved to every other free position (a ring atom carrying H; a ring
-  NH only for a group that is not a halogen) of its ring system, and every pair of substituents on one ring system swapped;
+  NH only for a group that is not a halogen) of its ring system, and every pair of substituents on
+  one ring system swapped;
 * **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways);
   N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
   benzimidazole); C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
