@@ -66,6 +66,11 @@ def test_relations_name_common_groups_by_condensed_formula():
         "CN moved from ring atom 2 to ring atom 3 (now meta to OCH3)",
         "CN moved from ring atom 2 to ring atom 4 (now ortho to OCH3)"]
     assert any(a.relation.startswith("OC(C)C moved") for a in isomers("CC(C)Oc1ccc(-c2ccncc2)cc1"))
+    # a benzene ring with one named group is named by its position (4-Cl-C6H4); a pyridine by its bond
+    rel = [a.relation for a in isomers("Cc1ccc(-c2ccc(Cl)cc2)cc1", kinds=("positional",))]
+    assert "CH3 moved from ring atom 1 to ring atom 2 (now meta to 4-Cl-C6H4)" in rel
+    assert any(r.startswith("4-CH3-C6H4 moved") for r in rel)
+    assert any("(now para to 4-pyridyl)" in a.relation for a in isomers("COc1cccc(-c2ccncc2)c1"))
 
 
 def test_dicarbonyl_c_and_o_alkylation():

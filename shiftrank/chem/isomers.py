@@ -121,6 +121,8 @@ GROUP_NAMES = {
     "*C(N)=O": "CONH2", "*O": "OH", "*OC": "OCH3", "*OCC": "OC2H5", "*OC(F)(F)F": "OCF3", "*OC(C)=O": "OAc",
     "*N": "NH2", "*NC": "NHCH3", "*N(C)C": "N(CH3)2", "*NC(C)=O": "NHAc", "*[N+](=O)[O-]": "NO2",
     "*N=[N+]=[N-]": "N3", "*SC": "SCH3", "*S(C)(=O)=O": "SO2CH3", "*S(N)(=O)=O": "SO2NH2", "*c1ccccc1": "C6H5",
+    "*c1ccccn1": "2-pyridyl", "*c1cccnc1": "3-pyridyl", "*c1ccncc1": "4-pyridyl", "*c1cccs1": "2-thienyl",
+    "*c1ccsc1": "3-thienyl", "*c1ccco1": "2-furyl",
     "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
 }
 
@@ -146,6 +148,30 @@ def _group_table() -> dict[str, str]:
 _GROUPS: dict[str, str] | None = None
 
 
+def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
+    """'4-F-C6H4' for a benzene ring carrying one named group besides the bond to the ring it hangs on;
+    None for anything else."""
+    a = mol.GetAtomWithIdx(root)
+    if a.GetAtomicNum() != 6 or not a.GetIsAromatic():
+        return None
+    rings = [r for r in mol.GetRingInfo().AtomRings() if root in r]
+    if len(rings) != 1 or len(rings[0]) != 6 or any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in rings[0]):
+        return None
+    ring = rings[0]
+    if any(mol.GetAtomWithIdx(i).IsInRingSize(5) or mol.GetRingInfo().NumAtomRings(i) > 1 for i in ring):
+        return None   # fused
+    subs = [(i, b.GetOtherAtomIdx(i)) for i in ring for b in mol.GetAtomWithIdx(i).GetBonds()
+            if b.GetOtherAtomIdx(i) not in ring and not (i == root and b.GetOtherAtomIdx(i) == ring_atom)]
+    if len(subs) != 1:
+        return None
+    at, x = subs[0]
+    name = _GROUPS.get(_rooted_smiles(mol, x, at)) if _GROUPS else None
+    if name is None:
+        return None
+    d = abs(ring.index(at) - ring.index(root))
+    return f"{1 + min(d, 6 - d)}-{name}-C6H4"
+
+
 def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     global _GROUPS
     smi = _rooted_smiles(mol, root, ring_atom)
@@ -155,6 +181,9 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
         _GROUPS = _group_table()
     if smi in _GROUPS:
         return _GROUPS[smi]
+    aryl = _aryl_name(mol, root, ring_atom)
+    if aryl:
+        return aryl
     return smi if len(smi) <= 24 else smi[:22] + "…"
 
 
