@@ -130,3 +130,21 @@ def test_imidazole_h4_h5_may_print_as_singlets():
         assert fit_cost(ex[h], "d", (8.0,)) == (0, 1)
     thiazole = _by_atom("Cc1nccs1")
     assert fit_cost(thiazole[(3,)], "s")[0] == 1 and fit_cost(thiazole[(3,)], "d", (3.3,)) == (0, 0)
+
+
+def test_ch2_beside_a_stereocentre_shows_anti_and_gauche_couplings():
+    # PMC6017890 (CDCl3) prints the CH2NO2 protons of 2,2-dimethyl-3-aryl-4-nitrobutanal as 4.85 (dd,
+    # J = 13.1, 11.3 Hz) and 4.69 (dd, J = 13.1, 4.2 Hz) and the CH as 3.70 (dd, J = 11.3, 4.2 Hz): an
+    # ABX system with an anti (≈ 11 Hz) and a gauche (≈ 4 Hz) vicinal coupling (common practice)
+    ex = _by_atom("COc1cc(C(C[N+](=O)[O-])C(C)(C)C=O)cc(OC)c1OC")
+    ch2, ch = ex[(6,)], ex[(5,)]
+    assert fit_cost(ch2, "dd", (13.1, 11.3)) == (0, 0) and fit_cost(ch2, "dd", (13.1, 4.2)) == (0, 0)
+    assert fit_cost(ch, "dd", (11.3, 4.2)) == (0, 0)
+    assert fit_cost(ch, "dd", (16.0, 4.2)) == (0, 1)   # no vicinal coupling reaches 16 Hz
+
+
+def test_a_j_printed_once_per_coupled_proton_is_one_j():
+    # PMC6268139 (DMSO-d6) prints an ethyl ester's CH3 as '1.21 (t, 3JHH = 6.9 Hz, 3JHH = 6.9 Hz, 3H)'
+    ex = _by_atom("CCOC(=O)C1C(=O)N(O)C(=O)C1c1ccccc1O")
+    assert fit_cost(ex[(0,)], "t", (6.9, 6.9)) == (0, 0)
+    assert fit_cost(ex[(0,)], "t", (6.9, 12.0)) == (0, 1)

@@ -11,7 +11,8 @@ Typical J ranges (common practice; the values every textbook table gives, e.g. P
 Badertscher, *Structure Determination of Organic Compounds*, 4th ed., 2009, chapter on 1H coupling
 constants; the ranges below are recalled from such tables, "from memory", and deliberately wide):
 
-* vicinal H–C–C–H, freely rotating: 6–8 Hz (accepted 4.5–9);
+* vicinal H–C–C–H, freely rotating: 6–8 Hz (accepted 4.5–9); between a CH and the diastereotopic protons
+  of a CH2 next to it, anti ≈ 10–12 Hz and gauche ≈ 2–4 Hz (accepted 2.5–12.5);
 * aromatic ortho 7–9 Hz (6–10); five-membered heteroaromatic rings 1.5–6 (imidazole and oxazole H4–H5
   about 1 Hz, 0.5–2, often unresolved); pyridine-type C2–C3 4–7;
 * aromatic meta 1–3 Hz (0.5–3.5), often unresolved;
@@ -61,7 +62,8 @@ J_RANGES = {
     "HF-ortho": ((6.0, 11.5), False),
     "HF-meta": ((3.5, 8.5), False),
     "HP": ((3.0, 25.0), False),
-    "vicinal-pair": ((4.5, 9.0), False),     # to the two diastereotopic protons of one CH2: one J or two
+    "vicinal-pair": ((2.5, 12.5), False),    # to the two diastereotopic protons of one CH2: one J or two
+    "vicinal-dia": ((2.5, 12.5), False),     # from a diastereotopic CH2 proton to a CH: anti ≈ 11, gauche ≈ 3
     "vicinal-ring-pair": ((2.0, 12.0), False),
     "geminal": ((10.0, 18.5), True),          # inequivalent CH2 protons (diastereotopic, ring)
     "long-range": ((0.0, 1.5), True),          # para, benzylic, allylic, W couplings
@@ -246,6 +248,14 @@ def _fit(signature: tuple, letters: str | None, js: tuple, tolerance: float) -> 
         # splitting by protons they have no neighbours for is ('d, J = 8 Hz' is not an aryl NH2)
         return int(pat is not None and pat not in _patterns_of(groups_sig)), 0
     bad_pattern = int(pat is not None and pat not in _patterns_of(groups_sig))
+    if pat is not None and len(js) > len(pat):
+        # more J values than the letters have splittings: a value printed once per coupled proton
+        # ('t, J = 6.9, 6.9 Hz') is one J
+        kept: list = []
+        for j in js:
+            if not any(abs(j - k) <= 0.1 for k in kept):
+                kept.append(j)
+        js = tuple(kept)
     if not js:
         return bad_pattern, 0
     if pat is not None and not bad_pattern and len(js) <= 6:
@@ -463,6 +473,10 @@ def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], 
                         # a diastereotopic CH2 partner: its two protons may couple with different J,
                         # so the signal is a 'dd' as often as a 't' (see _concrete)
                         kind += "-pair"
+                    elif (kind == "vicinal" and nh[ai] == 2 and nb == 1 and zb == 6 and not arom[bi]
+                          and (chiral or T.in_ring[ai])):
+                        # a diastereotopic CH2's proton next to a CH sees it anti or gauche
+                        kind = "vicinal-dia"
                     add(kind, nb, "H", ranks[bi])
         # two bonds away: meta protons, fluorine and phosphorus
         for ci, _, _ in T.adj[bi]:
