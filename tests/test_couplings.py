@@ -148,3 +148,21 @@ def test_a_j_printed_once_per_coupled_proton_is_one_j():
     ex = _by_atom("CCOC(=O)C1C(=O)N(O)C(=O)C1c1ccccc1O")
     assert fit_cost(ex[(0,)], "t", (6.9, 6.9)) == (0, 0)
     assert fit_cost(ex[(0,)], "t", (6.9, 12.0)) == (0, 1)
+
+
+def test_two_bond_c_f_coupling_of_a_substituted_ring_carbon_is_small():
+    # PMC6891391 (CDCl3) prints a 2-fluoroanilino group as 151.74 (d, J = 237.0 Hz, C–F), 135.22 (d, J = 12.0
+    # Hz, C–N ortho to F) and 114 (d, J = 19.5 Hz, CH ortho to F): a ring carbon without H next to C–F has
+    # ²J ≈ 10–14 Hz, a CH ≈ 20 Hz (from memory: 2-fluoroanisole, 2-fluoroaniline)
+    from shiftrank.chem.couplings import carbon_multiplets
+
+    mol = Chem.MolFromSmiles("O=C1C(=O)c2cc(CNc3ccccc3F)oc2-c2ccccc21")
+
+    class C:
+        def __init__(self, a):
+            self.atoms = [a]
+
+    c_n, c_f, ch = carbon_multiplets(mol, [C(9), C(14), C(13)])
+    assert fit_cost(c_n, "d", (12.0,)) == (0, 0) and fit_cost(ch, "d", (19.5,)) == (0, 0)
+    assert fit_cost(c_f, "d", (237.0,)) == (0, 0)
+    assert fit_cost(ch, "d", (9.0,)) == (0, 1)      # a CH ortho to F does not show ²J of 9 Hz

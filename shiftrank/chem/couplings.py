@@ -25,7 +25,8 @@ constants; the ranges below are recalled from such tables, "from memory", and de
 * long-range couplings (para, benzylic, allylic, W) below 1.5 Hz: optional, at most one per signal.
 
 13C lines split by fluorine and phosphorus (common practice, e.g. the same tables; from memory):
-¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho ≈ 21), ³J 2–12
+¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho CH ≈ 21;
+a ring carbon without H next to an aryl C–F 8–25, ≈ 10–14 at C1 of 2-fluoroanisole or 2-fluoroaniline), ³J 2–12
 (aryl meta ≈ 8, CF3–C–C ≈ 4), ⁴J 0.5–4.5 (often unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz.
 
 The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
@@ -68,7 +69,7 @@ J_RANGES = {
     "geminal": ((10.0, 18.5), True),          # inequivalent CH2 protons (diastereotopic, ring)
     "long-range": ((0.0, 1.5), True),          # para, benzylic, allylic, W couplings
     # 13C lines split by fluorine or phosphorus, by the number of bonds between them (see carbon_multiplets)
-    "CF1": ((230.0, 300.0), False), "CF2": ((15.0, 45.0), False), "CF3": ((2.0, 12.0), False),
+    "CF1": ((230.0, 300.0), False), "CF2": ((15.0, 45.0), False), "CF2-sub": ((8.0, 25.0), False), "CF3": ((2.0, 12.0), False),
     "CF4": ((0.5, 4.5), True), "CP1": ((100.0, 200.0), False), "CP2": ((2.0, 30.0), False),
     "CP3": ((2.0, 30.0), True),
 }
@@ -542,6 +543,15 @@ _CF_KIND = {("F", 1): "CF1", ("F", 2): "CF2", ("F", 3): "CF3", ("F", 4): "CF4",
             ("P", 1): "CP1", ("P", 2): "CP2", ("P", 3): "CP3"}
 
 
+def _ring_carbon_without_h_beside_aryl_f(mol: Chem.Mol, a: int, f: int) -> bool:
+    """An aromatic carbon without H bonded to the aromatic carbon that carries fluorine ``f``."""
+    at = mol.GetAtomWithIdx(a)
+    if not at.GetIsAromatic() or at.GetTotalNumHs():
+        return False
+    cf = mol.GetAtomWithIdx(f).GetNeighbors()[0]
+    return cf.GetIsAromatic() and mol.GetBondBetweenAtoms(a, cf.GetIdx()) is not None
+
+
 def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
     """Expected C–F / C–P splitting of every carbon class (one to four bonds from F, one to three from P),
     in the order of ``classes`` (objects with ``atoms``); a class far from F and P is a singlet."""
@@ -559,6 +569,8 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
             d = int(dist[a, x])
             el = mol.GetAtomWithIdx(x).GetSymbol()
             kind = _CF_KIND.get((el, d))
+            if kind == "CF2" and _ring_carbon_without_h_beside_aryl_f(mol, a, x):
+                kind = "CF2-sub"
             if kind:
                 counts[(kind, ranks[x])] = counts.get((kind, ranks[x]), 0) + 1
         groups = [CouplingGroup(k, n, "F" if k.startswith("CF") else "P", key) for (k, key), n in counts.items()]
