@@ -43,6 +43,10 @@ from rdkit import Chem
 
 from .structure import TWIN_NEAR_1H, signal_key, symmetry_ranks, twin_sides
 
+#: how a few coupling kinds read in a label (others by their own name)
+_KIND_NAMES = {"ortho-5-azole": "imidazole/oxazole H4-H5", "vicinal-dia": "vicinal from a diastereotopic CH2",
+               "CF2-sub": "CF2 (ring C without H)"}
+
 #: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
 J_RANGES = {
     "vicinal": ((4.5, 9.0), False),
@@ -147,7 +151,7 @@ class ExpectedMultiplet:
         gs = self._shown_groups()
         letters = self.letters()
         opt = [g for g in gs if g.optional]
-        text = ", ".join(f"{g.kind.replace('-pair', ' to a diastereotopic CH2 (one J or two)')}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
+        text = ", ".join(f"{_KIND_NAMES.get(g.kind, g.kind).replace('-pair', ' to a diastereotopic CH2 (one J or two)')}{'' if g.partner == 'H' else ' to ' + g.partner} {g.j_range[0]:g}-{g.j_range[1]:g} Hz "
                          f"x{g.n}{' (may be unresolved)' if g.optional else ''}" for g in gs)
         return f"{letters} ({text})" if gs else letters + (" (no coupled neighbours)" if not opt else "")
 
