@@ -97,6 +97,24 @@ def test_two_printed_2h_multiplets_favour_the_symmetric_ring_over_four_classes_s
     assert by[para]["overlap"] == 0.0
     assert by[ortho]["overlap"] > 0.0 and by[meta]["overlap"] > 0.0
 
+# PMC5363846 (dev half): three methoxy lines, 3H / 3H / 6H, and no NH or NH2 line printed
+METHOXY_1H = ("1H-NMR (600 MHz, CDCl3): δ 7.20 (m, 2H), 6.79 (d, J = 8.1 Hz, 1H), 6.62 (s, 2H), 6.61 (s, 1H), "
+              "3.87 (s, 3H), 3.81 (s, 3H), 3.79 (s, 6H)")
+
+
+def test_equivalent_protons_tied_to_one_multiplet_land_on_the_line_their_integral_fits():
+    # the unit assignment first splits classes over lines; tying them one at a time once left the 6H pair
+    # of methoxy groups on a 3H line and the NH2 on the other: each tied class may now move
+    truth = "COc1ccc(-c2csc(Nc3cc(OC)c(OC)c(OC)c3)n2)cc1N"
+    r = rank(text=METHOXY_1H, candidates=[truth])
+    nr = r.candidates[0].nuclei["1H"]
+    assert nr.assignment.parts["integral"] == 0.0
+    six = [p for p in nr.assignment.pairings if nr.classes[p.cls].units == 6]
+    assert len(six) == 1 and six[0].peak is not None and nr.peaks[six[0].peak].shift == 3.79
+    nh2 = [p for p in nr.assignment.pairings if nr.classes[p.cls].exchangeable and nr.classes[p.cls].units == 2]
+    assert nh2 and all(p.peak is None for p in nh2)
+
+
 # PMC9146377: lines picked by a program, printed with J values no H–H coupling reaches (26.3, 33.7 Hz)
 PICKED_1H = ("1H NMR (400 MHz, CDCl3) δ 8.00–7.80 (m, 1H), 7.57 (ddd, J =26.3, 23.6, 7.9 Hz, 2H), "
              "7.36 (ddd, J = 33.7, 17.4, 6.9 Hz, 1H), 7.06 (dd, J = 16.0, 8.0 Hz, 1H)")
