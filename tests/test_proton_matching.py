@@ -102,9 +102,12 @@ METHOXY_1H = ("1H-NMR (600 MHz, CDCl3): δ 7.20 (m, 2H), 6.79 (d, J = 8.1 Hz, 1H
               "3.87 (s, 3H), 3.81 (s, 3H), 3.79 (s, 6H)")
 
 
+@pytest.mark.xfail(strict=True, reason="known limit: classes split by the unit assignment are tied one at a "
+                   "time to one of their split targets, which can strand one (DEVELOPERS.md: moving tied classes "
+                   "afterwards fixes this case but was level on the benchmarks and halved the 1H isomer speed)")
 def test_equivalent_protons_tied_to_one_multiplet_land_on_the_line_their_integral_fits():
-    # the unit assignment first splits classes over lines; tying them one at a time once left the 6H pair
-    # of methoxy groups on a 3H line and the NH2 on the other: each tied class may now move
+    # the unit assignment first splits classes over lines; tying them one at a time leaves the 6H pair of
+    # methoxy groups on a 3H line and the NH2 on the other
     truth = "COc1ccc(-c2csc(Nc3cc(OC)c(OC)c(OC)c3)n2)cc1N"
     r = rank(text=METHOXY_1H, candidates=[truth])
     nr = r.candidates[0].nuclei["1H"]

@@ -38,7 +38,6 @@ from scipy.special import gammaln
 from ..chem.couplings import observed_pattern
 
 BIG = 1e6
-MOVE_OPTIONS = 4   # multiplets (the cheapest per proton) a tied class may move to, besides none
 MAX_EXCESS_COPIES = 4  # 1H: units a multiplet may hold beyond its integral
 
 
@@ -320,52 +319,29 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     mat = np.hstack(cols + [missing]) if cols else missing
     n_pc = len(col_peak)
     col_peak_arr = np.array(col_peak + [-1] * n_rows)
+    r_idx, c_idx = linear_sum_assignment(mat)
     # equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
     # =CH2) may split over multiplets; any other class split by the optimum is tied to one of the
-    # targets it was split over - the one giving the cheapest assignment - and solved again; then each
-    # tied class may move to another multiplet (or none) when that makes the whole assignment cheaper
-    # (tying classes one by one can strand one on a worse multiplet: a 6H methoxy pair on a 3H line
-    # while a 3H methoxy sits on the 6H line)
-    constraints: dict[int, int] = {}
-
-    def solve(cons: dict[int, int]):
-        m = mat.copy()
-        for i, keep in cons.items():
-            rows = np.flatnonzero(row_cls == i)
-            allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
-            if keep < 0:
-                allowed[n_pc:] = True   # all unobserved
-            m[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
-        r, c = linear_sum_assignment(m)
-        return float(m[r, c].sum()), r, c
-
-    def bad_splits(r, c) -> list[int]:
-        target = col_peak_arr[c[np.argsort(r)]]
-        return [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
-
-    total, r_idx, c_idx = solve(constraints)
+    # targets it was split over - the one giving the cheapest assignment - and solved again
     for _ in range(4):
-        bad_split = bad_splits(r_idx, c_idx)
+        target = col_peak_arr[c_idx[np.argsort(r_idx)]]
+        bad_split = [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
         if not bad_split:
             break
         for i in bad_split:
-            target = col_peak_arr[c_idx[np.argsort(r_idx)]]
-            options = [solve({**constraints, i: keep}) + (keep,) for keep in np.unique(target[row_cls == i]).tolist()]
-            total, r_idx, c_idx, keep = min(options, key=lambda o: o[0])
-            constraints[i] = keep
-    for _ in range(3 if constraints else 0):
-        improved = False
-        for i in list(constraints):
             rows = np.flatnonzero(row_cls == i)
-            near = np.argsort(per_unit[rows[0]])[:MOVE_OPTIONS].tolist() + [-1]
-            for keep in near:
-                if keep == constraints[i]:
-                    continue
-                t, r2, c2 = solve({**constraints, i: keep})
-                if t < total - 1e-9 and not bad_splits(r2, c2):
-                    total, r_idx, c_idx, constraints[i], improved = t, r2, c2, keep, True
-        if not improved:
-            break
+            best = None
+            for keep in np.unique(target[rows]).tolist():
+                allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
+                if keep < 0:
+                    allowed[n_pc:] = True   # all unobserved
+                trial = mat.copy()
+                trial[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
+                tr, tc = linear_sum_assignment(trial)
+                total = float(trial[tr, tc].sum())
+                if best is None or total < best[0]:
+                    best = (total, trial, tr, tc)
+            _, mat, r_idx, c_idx = best
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)
