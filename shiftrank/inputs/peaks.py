@@ -112,15 +112,17 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     ['br s', 'p', 'dd', 't', 'm', 'br s', None]
     >>> [normalise_1h_multiplicity(x) for x in ("d of d", "ps t", "s (br)", "dd~t")]
     ['dd', 't', 'br s', None]
-    >>> [normalise_1h_multiplicity(x) for x in ("dd (AB)", "AB system", "overlapping m", "bm", "dm")]
-    ['dd', 'ABq', 'm', 'br m', 'm']
+    >>> [normalise_1h_multiplicity(x) for x in ("dd (AB)", "AB system", "overlapping m", "bm", "dm", "br app t")]
+    ['dd', 'ABq', 'm', 'br m', 'm', 'br t']
     """
     if text is None:
         return None
     c = re.sub(r"[\s.\-]", "", str(text).lower())
-    for word in ("apparent", "app", "pseudo"):   # as a prefix only ('overlapping' holds 'app')
-        if c.startswith(word):
-            c = c[len(word):]
+    # 'apparent', 'app', 'pseudo' as a prefix, or after 'br' ('br app t'); not inside a word ('overlapping')
+    for pre in ("", "broad", "br", "b"):
+        hit = next((w for w in ("apparent", "app", "pseudo") if c.startswith(pre + w)), None)
+        if hit:
+            c = pre + c[len(pre) + len(hit):]
             break
     if c.startswith("ps") and _COMBO.match(c[2:]):   # 'ps t': pseudo-triplet
         c = c[2:]
