@@ -511,22 +511,23 @@ def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], 
     return [CouplingGroup(k, n, p, key) for (k, p, key), n in counts.items()]
 
 
+def _on_ring_hetero_t(T: _Table, R: _RingIndex, k: int, pair: tuple[int, int], elements: tuple[int, ...]) -> bool:
+    """True when ring atom ``k`` of the bonded ``pair`` is also bonded to an aromatic atom of ``elements``
+    (atomic numbers) in a ring it shares."""
+    return any(T.z[n] in elements and T.arom[n] and n not in pair and R.same(k, n) for n, _, _ in T.adj[k])
+
+
 def _next_to_ring_n_t(T: _Table, R: _RingIndex, i: int, j: int) -> bool:
     """True when one of the two aromatic ring atoms is bonded to another aromatic ring N of a shared ring
     (the H2–H3 coupling of pyridines is 4–6 Hz, common practice)."""
-    for k in (i, j):
-        for n, _, _ in T.adj[k]:
-            if T.z[n] == 7 and T.arom[n] and n not in (i, j) and R.same(k, n):
-                return True
-    return False
+    return any(_on_ring_hetero_t(T, R, k, (i, j), (7,)) for k in (i, j))
 
 
 def _both_on_ring_n_or_o_t(T: _Table, R: _RingIndex, i: int, j: int) -> bool:
     """True when each of two bonded aromatic five-ring carbons is also bonded to an aromatic N or O of a
     shared ring: the H4–H5 coupling of imidazoles and oxazoles is about 1 Hz (common practice, from
     memory: 1-methylimidazole ≈ 1.2 Hz, oxazole ≈ 0.8 Hz) and is often printed as two singlets."""
-    return all(any(T.z[n] in (7, 8) and T.arom[n] and n not in (i, j) and R.same(k, n) for n, _, _ in T.adj[k])
-               for k in (i, j))
+    return all(_on_ring_hetero_t(T, R, k, (i, j), (7, 8)) for k in (i, j))
 
 
 def _same_ring(mol: Chem.Mol, i: int, j: int) -> bool:
