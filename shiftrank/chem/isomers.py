@@ -25,6 +25,7 @@ every assignment table and JSON output.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 from rdkit import Chem
 from rdkit.Chem import AllChem
@@ -136,16 +137,15 @@ def _rooted_smiles(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     return Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=False)
 
 
+@lru_cache(maxsize=1)
 def _group_table() -> dict[str, str]:
+    """:data:`GROUP_NAMES` keyed by the rooted SMILES :func:`_rooted_smiles` gives for each group."""
     table = {}
     for smi, name in GROUP_NAMES.items():
         m = Chem.MolFromSmiles(smi)
         dummy = next(a for a in m.GetAtoms() if a.GetAtomicNum() == 0)
         table[_rooted_smiles(m, dummy.GetNeighbors()[0].GetIdx(), dummy.GetIdx())] = name
     return table
-
-
-_GROUPS: dict[str, str] | None = None
 
 
 def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
@@ -158,14 +158,14 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     if len(rings) != 1 or len(rings[0]) != 6 or any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in rings[0]):
         return None
     ring = rings[0]
-    if any(mol.GetAtomWithIdx(i).IsInRingSize(5) or mol.GetRingInfo().NumAtomRings(i) > 1 for i in ring):
+    if any(mol.GetRingInfo().NumAtomRings(i) > 1 for i in ring):
         return None   # fused
     subs = [(i, b.GetOtherAtomIdx(i)) for i in ring for b in mol.GetAtomWithIdx(i).GetBonds()
             if b.GetOtherAtomIdx(i) not in ring and not (i == root and b.GetOtherAtomIdx(i) == ring_atom)]
     if len(subs) != 1:
         return None
     at, x = subs[0]
-    name = _GROUPS.get(_rooted_smiles(mol, x, at)) if _GROUPS else None
+    name = _group_table().get(_rooted_smiles(mol, x, at))
     if name is None:
         return None
     d = abs(ring.index(at) - ring.index(root))
@@ -173,14 +173,11 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
 
 
 def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
-    global _GROUPS
     smi = _rooted_smiles(mol, root, ring_atom)
     if not smi:
         return ""
-    if _GROUPS is None:
-        _GROUPS = _group_table()
-    if smi in _GROUPS:
-        return _GROUPS[smi]
+    if smi in _group_table():
+        return _group_table()[smi]
     aryl = _aryl_name(mol, root, ring_atom)
     if aryl:
         return aryl
