@@ -262,9 +262,17 @@ def _rank_sample(args, case: dict):
                 hsqc=case.get("hsqc"), mz=_mz_arg(args))
 
 
+def _write_sample_report(args, case: dict, result, path: str) -> None:
+    """The HTML report of one ranked sample (``rank --report`` and ``report``): its lists, history, inventory."""
+    from .outputs.report import write_report
+    from .score.ranking import case_peaklists
+
+    lists, _, _ = case_peaklists(case)
+    write_report([result], path, [lists], [_history(args)], [_inventory_for(args, lists, case, for_ranking=True)])
+
+
 def cmd_rank(args) -> int:
     from .outputs.terminal import print_ranking
-    from .score.ranking import case_peaklists
 
     case, _ = _case_from_args(args)
     result = _rank_sample(args, case)
@@ -276,9 +284,7 @@ def cmd_rank(args) -> int:
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
     if args.report:
-        from .outputs.report import write_report
-        lists, _, _ = case_peaklists(case)
-        write_report([result], args.report, [lists], [_history(args)], [_inventory_for(args, lists, case, for_ranking=True)])
+        _write_sample_report(args, case, result, args.report)
         print(f"report written to {args.report}", file=sys.stderr)
     return 0
 
@@ -392,9 +398,7 @@ def cmd_report(args) -> int:
         if not args.candidates:
             raise InputError("report: give --candidates with --peaks/--peaks-1h/--hsqc/--text, or --batch CASES.jsonl")
         case, _ = _case_from_args(args)
-        result = _rank_sample(args, case)
-        lists, _, _ = case_peaklists(case)
-        write_report([result], args.output, [lists], [_history(args)], [_inventory_for(args, lists, case, for_ranking=True)])
+        _write_sample_report(args, case, _rank_sample(args, case), args.output)
     print(f"report written to {args.output}")
     return 0
 
