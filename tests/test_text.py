@@ -173,6 +173,17 @@ def test_a_proton_count_printed_without_its_h_after_the_letters():
     assert [p.integral for p in labels.peaks] == [None, None, None]
 
 
+def test_a_proton_count_run_into_its_neighbour_word():
+    # NMRExtractor dev file: PMC7211837 "7.31 (d, J 8.4 Hz, 1H Ar-H)", PMC10005784 "7.90 (1H d, H-3)",
+    # PMC6259613 "3.07 (m, 2 x 1H, H-1'a)", PMC7146153 "6.50 (br s 1H, H-4)", PMC3888673 "5.32 (m, IH, H-6)";
+    # '1H-pyridine' is a note, not a count
+    h = read_nmr_text("1H NMR (400 MHz, DMSO-d6): δ 7.31 (d, J 8.4 Hz, 1H Ar-H), 7.90 (1H d, H-3), "
+                      "3.07 (m, 2 x 1H, H-1'a), 6.50 (br s 1H, H-4), 5.32 (m, IH, H-6), 8.23 (s, 1H-pyridine)")
+    got = [(p.multiplicity, p.integral, p.note) for p in h.section("1H").peaks]
+    assert got == [("d", 1.0, "Ar-H"), ("d", 1.0, "H-3"), ("m", 2.0, "H-1'a"), ("br s", 1.0, "H-4"),
+                   ("m", 1.0, "H-6"), ("s", None, "1H-pyridine")]
+
+
 def test_j_lists_joined_by_and_are_read():
     # PMC8537530 (NMRExtractor dev file): "7.08 (dd, 1H, J = 7.9 and 4.8 Hz, H5)"; PMC6268817: three J values
     # with the last two joined by 'and' and no unit.  The J values were once lost (a number before a word

@@ -53,6 +53,11 @@ _NUM = r"[+-]?\d+(?:\.\d+)?"
 _SHIFT_ITEM = re.compile(
     rf"^\s*(?:and\s+|&\s*)?(?P<a>{_NUM})\s*(?:(?:-|to|–|~|\.\.)\s*(?P<b>{_NUM}))?\s*(?:ppm)?\s*(?P<rest>.*)$", re.S | re.I)
 _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
+#: a proton count that leads a part without its comma or with a word around it ('1H Ar-H', '1H d', 'each 1H',
+#: '2 x 1H', 'IH'); not '1H-pyrazole' or '2H,' (the plain count is `_INTEGRAL`)
+_INTEGRAL_LEAD = re.compile(r"^(?:each\s+)?(?:(?P<times>[1-9])\s*[x×]\s*)?(?P<n>[1-9]\d?|I)\s*H(?=\s|$)"
+                            r"(?:\s+(?P<rest>(?![A-Za-z]*NMR)\S.*))?$")
+_LETTERS_THEN_INTEGRAL = re.compile(r"^(?P<letters>[A-Za-z][A-Za-z. ]{0,12}?)\s+(?P<n>[1-9]\d?)\s*H$")
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
@@ -290,8 +295,22 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
     d = _JVAL.sub(lambda m: " \x00closed " if m.group(0).rstrip().lower().endswith("hz") else " \x00open ", d)
     leftovers = []
     open_list = False
-    for part in _split_top(d, ",;"):
-        w = part.strip().strip(".").strip()
+    parts = list(_split_top(d, ",;"))
+    while parts:
+        w = parts.pop(0).strip().strip(".").strip()
+        m = _INTEGRAL_LEAD.match(w) if nucleus == "1H" and peak.integral is None else None
+        if m:
+            # "1H Ar-H", "1H d", "each 1H", "2 x 1H", "IH": the proton count with the rest of the part after it
+            # (a missing comma, a typo for '1'); the rest is read as a part of its own
+            n = float(m.group("n").upper().replace("I", "1"))
+            peak.integral = n * (float(m.group("times")) if m.group("times") else 1.0)
+            if m.group("rest"):
+                parts.insert(0, m.group("rest"))
+            continue
+        m = _LETTERS_THEN_INTEGRAL.match(w) if nucleus == "1H" and peak.integral is None else None
+        if m and normalise_1h_multiplicity(m.group("letters").lower().replace(" ", "").replace(".", "")) is not None:
+            parts[:0] = [m.group("letters"), m.group("n") + "H"]   # "br s 1H": letters and count without a comma
+            continue
         if "\x00" in w:
             open_list = "\x00open" in w
             w = w.replace("\x00open", " ").replace("\x00closed", " ").strip()
