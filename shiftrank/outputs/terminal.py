@@ -11,16 +11,31 @@ def _fmt(x, spec: str, width: int) -> str:
     return f"{x:{spec}}" if x is not None else " " * (width - 1) + "-"
 
 
-def print_ranking(result, peaks_src: str, out=None) -> None:
+#: the input fields that can carry each spectrum (a printed paragraph may carry any of them)
+SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text")}
+
+
+def peak_sources(given: dict) -> dict:
+    """Nucleus -> the named inputs (files) that may have given its peaks, from ``{field: name}``.
+
+    >>> peak_sources({"peaks": "a_13c.txt", "peaks_1h": "a_1h.txt"})["1H"]
+    'a_1h.txt'
+    """
+    return {n: ", ".join(given[k] for k in keys if given.get(k)) for n, keys in SOURCES.items()}
+
+
+def print_ranking(result, peaks_src: str | dict, out=None) -> None:
     """The ranking of one case: peaks read, one line per candidate with its flags, the verdict, and the
-    carbon-by-carbon (and proton-by-proton) assignment of the best candidate."""
+    carbon-by-carbon (and proton-by-proton) assignment of the best candidate.  ``peaks_src`` names where
+    the peaks came from: one name for all, or a name per nucleus (:func:`peak_sources`)."""
     out = out or sys.stdout
     nuclei = result.nuclei
     for n in nuclei:
         peaks = result.peaks[n]
         n_obs = sum(1 for p in peaks if not p.solvent)
         n_solv = len(peaks) - n_obs
-        print(f"{n} peaks: {peaks_src}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+        src = peaks_src.get(n) if isinstance(peaks_src, dict) else peaks_src
+        print(f"{n} peaks: {src or 'input'}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
     for note in result.notes:
         print(f"  note: {note}", file=out)
     print(file=out)
