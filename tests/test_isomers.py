@@ -71,6 +71,11 @@ def test_relations_name_common_groups_by_condensed_formula():
     assert "CH3 moved from ring atom 1 to ring atom 2 (now meta to 4-Cl-C6H4)" in rel
     assert any(r.startswith("4-CH3-C6H4 moved") for r in rel)
     assert any("(now para to 4-pyridyl)" in a.relation for a in isomers("COc1cccc(-c2ccncc2)c1"))
+    # N-linked rings by their usual names (common practice)
+    assert [a.relation for a in isomers("Cc1ccc(N2C(=O)C=CC2=O)cc1", kinds=("positional",))] == [
+        "CH3 moved from ring atom 1 to ring atom 2 (now meta to maleimido)",
+        "CH3 moved from ring atom 1 to ring atom 3 (now ortho to maleimido)"]
+    assert any(a.relation.startswith("morpholin-4-yl moved") for a in isomers("O=[N+]([O-])c1ccc(N2CCOCC2)cc1F"))
 
 
 def test_dicarbonyl_c_and_o_alkylation():

@@ -124,6 +124,14 @@ GROUP_NAMES = {
     "*N=[N+]=[N-]": "N3", "*SC": "SCH3", "*S(C)(=O)=O": "SO2CH3", "*S(N)(=O)=O": "SO2NH2", "*c1ccccc1": "C6H5",
     "*c1ccccn1": "2-pyridyl", "*c1cccnc1": "3-pyridyl", "*c1ccncc1": "4-pyridyl", "*c1cccs1": "2-thienyl",
     "*c1ccsc1": "3-thienyl", "*c1ccco1": "2-furyl",
+    "*CO": "CH2OH", "*CN": "CH2NH2", "*Cc1ccccc1": "CH2C6H5", "*Oc1ccccc1": "OC6H5", "*OCc1ccccc1": "OCH2C6H5",
+    "*Nc1ccccc1": "NHC6H5", "*C#C": "C≡CH", "*C=C": "CH=CH2", "*B(O)O": "B(OH)2", "*[Si](C)(C)C": "Si(CH3)3",
+    "*NC(=O)OC(C)(C)C": "NHBoc",
+    # N-linked rings as chemists name them
+    "*N1CCOCC1": "morpholin-4-yl", "*N1CCCCC1": "piperidin-1-yl", "*N1CCCC1": "pyrrolidin-1-yl",
+    "*N1CCNCC1": "piperazin-1-yl", "*N1CCN(C)CC1": "4-methylpiperazin-1-yl", "*n1cccn1": "pyrazol-1-yl",
+    "*n1ccnc1": "imidazol-1-yl", "*n1ccnn1": "1,2,3-triazol-1-yl", "*n1cncn1": "1,2,4-triazol-1-yl",
+    "*N1C(=O)C=CC1=O": "maleimido", "*N1C(=O)c2ccccc2C1=O": "phthalimido",
     "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
 }
 
