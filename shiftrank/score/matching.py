@@ -29,6 +29,7 @@ two carbons predicted 0.3 ppm apart are often printed as one value, two predicte
 """
 from __future__ import annotations
 
+import itertools
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -39,6 +40,7 @@ from ..chem.couplings import observed_pattern
 
 BIG = 1e6
 MAX_EXCESS_COPIES = 4  # 1H: units a multiplet may hold beyond its integral
+MAX_TIE_COMBINATIONS = 32  # 1H: classes split over several multiplets are tied jointly up to this many ways
 
 
 @dataclass(frozen=True)
@@ -289,6 +291,24 @@ def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, 
     return Assignment(pairings, unmatched, total, parts)
 
 
+def _cheapest_tie(mat, groups, row_cls, col_peak_arr, n_pc):
+    """Of several ways to tie classes to single targets (each a list of (class, peak or -1 for unobserved)),
+    the cost matrix with the cheapest assignment, and that assignment."""
+    best = None
+    for ties in groups:
+        trial = mat.copy()
+        for i, keep in ties:
+            allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
+            if keep < 0:
+                allowed[n_pc:] = True   # all unobserved
+            trial[np.ix_(np.flatnonzero(row_cls == i), np.flatnonzero(~allowed))] = BIG
+        tr, tc = linear_sum_assignment(trial)
+        total = float(trial[tr, tc].sum())
+        if best is None or total < best[0]:
+            best = (total, trial, tr, tc)
+    return best[1:]
+
+
 def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over) -> Assignment:
     """Protons as units: a class spends ``units`` units, a multiplet offers ``capacity`` units."""
     nc, npk = len(classes), len(peaks)
@@ -321,27 +341,20 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     col_peak_arr = np.array(col_peak + [-1] * n_rows)
     r_idx, c_idx = linear_sum_assignment(mat)
     # equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
-    # =CH2) may split over multiplets; any other class split by the optimum is tied to one of the
-    # targets it was split over - the one giving the cheapest assignment - and solved again
+    # =CH2) may split over multiplets; the classes split by the optimum are tied each to one of the
+    # targets it was split over - the combination giving the cheapest assignment - and solved again
     for _ in range(4):
         target = col_peak_arr[c_idx[np.argsort(r_idx)]]
         bad_split = [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
         if not bad_split:
             break
-        for i in bad_split:
-            rows = np.flatnonzero(row_cls == i)
-            best = None
-            for keep in np.unique(target[rows]).tolist():
-                allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
-                if keep < 0:
-                    allowed[n_pc:] = True   # all unobserved
-                trial = mat.copy()
-                trial[np.ix_(rows, np.flatnonzero(~allowed))] = BIG
-                tr, tc = linear_sum_assignment(trial)
-                total = float(trial[tr, tc].sum())
-                if best is None or total < best[0]:
-                    best = (total, trial, tr, tc)
-            _, mat, r_idx, c_idx = best
+        options = [np.unique(target[row_cls == i]).tolist() for i in bad_split]
+        if np.prod([len(o) for o in options]) <= MAX_TIE_COMBINATIONS:
+            groups = [list(zip(bad_split, combo)) for combo in itertools.product(*options)]   # all at once
+            mat, r_idx, c_idx = _cheapest_tie(mat, groups, row_cls, col_peak_arr, n_pc)
+        else:
+            for i, opts in zip(bad_split, options):   # too many: one class after another
+                mat, r_idx, c_idx = _cheapest_tie(mat, [[(i, keep)] for keep in opts], row_cls, col_peak_arr, n_pc)
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)
