@@ -272,15 +272,14 @@ def _write_sample_report(args, case: dict, result, path: str) -> None:
 
 
 def cmd_rank(args) -> int:
-    from .outputs.terminal import peak_sources, print_ranking
+    from .outputs.terminal import print_ranking
 
     case, _ = _case_from_args(args)
     result = _rank_sample(args, case)
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
-        print_ranking(result, peak_sources({"peaks": args.peaks, "peaks_1h": args.peaks_1h, "text": args.text,
-                                            "hsqc": args.hsqc}))
+        print_ranking(result, {"peaks": args.peaks, "peaks_1h": args.peaks_1h, "text": args.text, "hsqc": args.hsqc})
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2

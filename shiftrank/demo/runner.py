@@ -6,7 +6,7 @@ from importlib import resources
 from ..chem.inventory import take_inventory
 from ..inputs.peaks import read_hsqc, read_peaks
 from ..outputs.report import write_report
-from ..outputs.terminal import peak_sources, print_ranking
+from ..outputs.terminal import print_ranking
 from ..score.ranking import case_peaklists, rank
 
 SAMPLES = [
@@ -68,7 +68,7 @@ def run_demo(output: str) -> int:
         for line in inv.lines():
             print(f"    {line}")
         print()
-        print_ranking(result, peak_sources(s))
+        print_ranking(result, s)
         print()
         results.append(result)
         lists.append(pls)

@@ -283,6 +283,11 @@ def _header_end(body: str) -> tuple[str, str]:
 _J_DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,2})(?=\s*Hz)", re.I)
 
 
+def _compact(w: str) -> str:
+    """Lower case without spaces or dots, as multiplicity letters and DEPT labels are compared ('br. s' -> 'brs')."""
+    return re.sub(r"[\s.]+", "", w.lower())
+
+
 def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]) -> None:
     """Read '(d, J = 8.4 Hz, 2H, H-3)' into the peak's fields; unread words go to the note."""
     d = _J_DECIMAL_COMMA.sub(r"\1.\2", detail)
@@ -298,26 +303,27 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
     parts = list(_split_top(d, ",;"))
     while parts:
         w = parts.pop(0).strip().strip(".").strip()
-        m = _INTEGRAL_LEAD.match(w) if nucleus == "1H" and peak.integral is None else None
-        if m:
-            # "1H Ar-H", "1H d", "each 1H", "2 x 1H", "IH": the proton count with the rest of the part after it
-            # (a missing comma, a typo for '1'); the rest is read as a part of its own
-            n = float(m.group("n").upper().replace("I", "1"))
-            peak.integral = n * (float(m.group("times")) if m.group("times") else 1.0)
-            if m.group("rest"):
-                parts.insert(0, m.group("rest"))
-            continue
-        m = _LETTERS_THEN_INTEGRAL.match(w) if nucleus == "1H" and peak.integral is None else None
-        if m and normalise_1h_multiplicity(m.group("letters").lower().replace(" ", "").replace(".", "")) is not None:
-            parts[:0] = [m.group("letters"), m.group("n") + "H"]   # "br s 1H": letters and count without a comma
-            continue
+        if nucleus == "1H" and peak.integral is None:
+            m = _INTEGRAL_LEAD.match(w)
+            if m:
+                # "1H Ar-H", "1H d", "each 1H", "2 x 1H", "IH": the proton count with the rest of the part after
+                # it (a missing comma, a typo for '1'); the rest is read as a part of its own
+                n = float(m.group("n").upper().replace("I", "1"))
+                peak.integral = n * (float(m.group("times")) if m.group("times") else 1.0)
+                if m.group("rest"):
+                    parts.insert(0, m.group("rest"))
+                continue
+            m = _LETTERS_THEN_INTEGRAL.match(w)
+            if m and normalise_1h_multiplicity(_compact(m.group("letters"))) is not None:
+                parts[:0] = [m.group("letters"), m.group("n") + "H"]   # "br s 1H": letters and count without a comma
+                continue
         if "\x00" in w:
             open_list = "\x00open" in w
             w = w.replace("\x00open", " ").replace("\x00closed", " ").strip()
         if not w:
             continue
         low = re.sub(r"\s+", " ", w.lower())
-        compact = low.replace(" ", "").replace(".", "")
+        compact = _compact(w)
         m = _INTEGRAL.match(w.replace(" ", "")) or _INTEGRAL.match(w)
         if m:
             peak.integral = float(m.group("n") or m.group("n2"))

@@ -24,18 +24,18 @@ def peak_sources(given: dict) -> dict:
     return {n: ", ".join(given[k] for k in keys if given.get(k)) for n, keys in SOURCES.items()}
 
 
-def print_ranking(result, peaks_src: str | dict, out=None) -> None:
+def print_ranking(result, inputs: dict, out=None) -> None:
     """The ranking of one case: peaks read, one line per candidate with its flags, the verdict, and the
-    carbon-by-carbon (and proton-by-proton) assignment of the best candidate.  ``peaks_src`` names where
-    the peaks came from: one name for all, or a name per nucleus (:func:`peak_sources`)."""
+    carbon-by-carbon (and proton-by-proton) assignment of the best candidate.  ``inputs`` names the files
+    given, ``{field: name}`` as in :data:`SOURCES`; each nucleus's line names its own."""
     out = out or sys.stdout
     nuclei = result.nuclei
+    sources = peak_sources(inputs)
     for n in nuclei:
         peaks = result.peaks[n]
         n_obs = sum(1 for p in peaks if not p.solvent)
         n_solv = len(peaks) - n_obs
-        src = peaks_src.get(n) if isinstance(peaks_src, dict) else peaks_src
-        print(f"{n} peaks: {src or 'input'}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+        print(f"{n} peaks: {sources.get(n) or 'input'}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
     for note in result.notes:
         print(f"  note: {note}", file=out)
     print(file=out)
