@@ -15,6 +15,10 @@ passed to the ranker.
 Reader: printed peaks are counted independently of the reader (every decimal number outside
 brackets after the δ, a range counted once), and the peaks the reader returns are compared with
 that count per paragraph; crashes are counted (there must be none).
+
+Ranking: top-1/top-2/MRR by molecule size and number of candidates, the mean −ln p of the truth and a
+reliability table of the top candidate's probability (cases ranked without error), and how often one
+spectrum alone already ranks the truth first.
 """
 from __future__ import annotations
 
@@ -37,7 +41,7 @@ sys.path.insert(0, str(REPO))
 from training.data import DEFAULT_DATA, literature_part  # noqa: E402
 
 sys.path.insert(0, str(REPO / "benchmarks"))
-from bench_ranking import by_size_and_count  # noqa: E402
+from bench_ranking import by_size_and_count, reliability  # noqa: E402
 
 # printed cases are larger molecules with more positional isomers than the database cases
 SIZE_BINS = [(0, 20), (20, 30), (30, 40), (40, 999)]
@@ -116,23 +120,28 @@ def as_case(c: dict, which: str) -> dict:
 def ranking_figures(cases, label: str) -> dict:
     from shiftrank.score.ranking import rank_many
 
-    out = {}
+    out, right = {}, {}
     for which in ("both", "1H", "13C"):
         built = [as_case(c, which) for c in cases]
         t = time.perf_counter()
         res = rank_many([b for b, _ in built])
         dt = time.perf_counter() - t
-        ranks, errors, noted = [], 0, []
+        ranks, errors, noted, top_p, p_truth = [], 0, [], [], []
         for (case, truth), r in zip(built, res):
             if isinstance(r, Exception):
                 errors += 1
                 ranks.append(len(case["candidates"]))
                 noted.append(False)
+                top_p.append(np.nan)   # no probabilities: left out of the reliability figures
+                p_truth.append(np.nan)
                 continue
             order = [x.smiles for x in r.candidates]
             ranks.append(order.index(case["candidates"][truth]) + 1)
             noted.append("the spectra disagree" in r.verdict)
+            top_p.append(r.candidates[0].probability)
+            p_truth.append(r.candidates[ranks[-1] - 1].probability)
         ranks = np.array(ranks)
+        right[which] = ranks == 1
         n_c = sum(len(b["candidates"]) for b, _ in built)
         out[which] = float(np.mean(ranks == 1))
         print(f"  {label:<9} {which:<5} n={len(ranks):4d}  top-1 {100 * np.mean(ranks == 1):5.1f} %  top-2 "
@@ -144,6 +153,15 @@ def ranking_figures(cases, label: str) -> dict:
             nt = np.array(noted)
             print(f"        'the spectra disagree' noted: top-1 {np.sum(ranks[nt] == 1)} of {nt.sum()}; "
                   f"without the note {np.sum(ranks[~nt] == 1)} of {(~nt).sum()}")
+        # are the probabilities honest? the top candidate's p against how often it is the truth
+        ok = ~np.isnan(top_p)
+        print(f"        cases ranked without error: mean -ln p(truth) "
+              f"{np.mean(-np.log(np.maximum(np.array(p_truth)[ok], 1e-12))):.3f}; reliability:")
+        print("\n".join("    " + line for line in reliability(np.array(top_p)[ok], right[which][ok])))
+    either = right["1H"] | right["13C"]
+    print(f"  {label:<9} one spectrum alone ranks the truth first in {either.sum()} of {len(either)} cases "
+          f"({100 * either.mean():.1f} %); both spectra together in {right['both'].sum()}, of them "
+          f"{np.sum(right['both'] & ~either)} where neither alone does")
     return out
 
 
