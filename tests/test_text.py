@@ -110,6 +110,22 @@ def test_carbon_count_written_as_a_bare_multiplier():
     assert [p.count for p in read_nmr_text(text).section("13C").peaks] == [1, 2, 3, 2, 2]
 
 
+def test_a_carbon_count_with_its_chn_label_gives_both():
+    # PMC7527643 prints "131.1 (CH), 130.9 (CH), 127.8 (2xCH), 127.4 (2xCH), ... 55.0 (OCH3)": the doubled
+    # lines are CH carbons as much as the single ones (before, only their count was read)
+    text = ("13C-NMR (1:1 DMSO-d6/CDCl3, 100 MHz): δ 163.8 (C=O), 157.5 (C-O), 144.0 (N=CH), 133.2 (ArC-C=O), "
+            "131.1 (CH), 130.9 (CH), 127.8 (2xCH), 127.4 (2xCH), 126.2 (CH), 122.2 (ArCCH=N), 120.2 (CH), 110.5 (CH), "
+            "55.0 (OCH3) ppm")
+    peaks = read_nmr_text(text).section("13C").peaks
+    assert [(p.count, p.dept) for p in peaks[4:9]] == [(1, "CH"), (1, "CH"), (2, "CH"), (2, "CH"), (1, "CH")]
+    assert peaks[0].dept is None and peaks[-1].dept is None   # assignment notes, not DEPT labels
+    # PMC5400543 prints "25.36 (2×CH3)" and "121.59 (2×C aro)", PMC6273472 "154.10 (C × 2)" (no H count in
+    # either); "(CH2 × 2)" and "(2C, 2CH3)" are typed variants of the same
+    text = "13C NMR (CDCl3) δ 25.36 (2×CH3), 30.1 (CH2 × 2), 154.10 (C × 2), 121.59 (2×C aro), 17.88 (2C, 2CH3)"
+    assert [(p.count, p.dept) for p in read_nmr_text(text).section("13C").peaks] == [
+        (2, "CH3"), (2, "CH2"), (2, None), (2, None), (2, "CH3")]
+
+
 def test_a_decimal_comma_in_a_j_value_is_one_coupling():
     # PMC9027910 prints shifts with points and J values with commas: "115.67 (d, J = 21,8 Hz, 2C)"
     text = ("13C NMR (101 MHz, DMSO) δ ppm: 115.23, 115.67 (d, J = 21,8 Hz, 2C), 130.34 (d, J = 9,09 Hz, 2C), "

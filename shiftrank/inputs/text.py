@@ -58,8 +58,9 @@ _INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?
 _INTEGRAL_LEAD = re.compile(r"^(?:each\s+)?(?:(?P<times>[1-9])\s*[x×]\s*)?(?P<n>[1-9]\d?|I)\s*H(?=\s|$)"
                             r"(?:\s+(?P<rest>(?![A-Za-z]*NMR)\S.*))?$")
 _LETTERS_THEN_INTEGRAL = re.compile(r"^(?P<letters>[A-Za-z][A-Za-z. ]{0,12}?)\s+(?P<n>[1-9]\d?)\s*H$")
-_CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?:H[0-9]?|q|ar|arom|Ar))?\b"
-                      r"|(?:C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
+#: a carbon count: "2C", "2 × CH", "2CH3", "CH2 × 2", "x 2", "2 x"; the H label (group h or c2) says CH/CH2/CH3
+_CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?P<h>H[0-9]?|q|ar|arom|Ar))?\b"
+                      r"|(?P<c2>C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
 _JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
 _JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?(?:\s*\(\s*[A-Za-z]{{1,2}}\s*,\s*[A-Za-z]{{1,2}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
@@ -331,6 +332,11 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         m = _CARBONS.match(w)
         if m and nucleus == "13C":
             peak.count = max(1, int(next(g for g in m.group("n", "n2", "n3", "n4") if g)))
+            label = (m.group("h") or (m.group("c2") or "")[1:]).upper()
+            if peak.dept is None and label[:1] == "H":   # "2 × CH", "2CH3", "CH2 × 2": printed CHn (DEPT)
+                peak.dept = "C" + label if len(label) > 1 else "CH"
+            elif peak.dept is None and label == "Q":     # "2Cq"
+                peak.dept = "C"
             rest = w[m.end():].strip()
             if rest:
                 leftovers.append(rest)
