@@ -120,7 +120,7 @@ def test_a_carbon_count_with_its_chn_label_gives_both():
     assert [(p.count, p.dept) for p in peaks[4:9]] == [(1, "CH"), (1, "CH"), (2, "CH"), (2, "CH"), (1, "CH")]
     assert peaks[0].dept is None and peaks[-1].dept is None   # assignment notes, not DEPT labels
     # PMC5400543 prints "25.36 (2×CH3)" and "121.59 (2×C aro)", PMC6273472 "154.10 (C × 2)" (no H count in
-    # either); "(CH2 × 2)" and "(2C, 2CH3)" are typed variants of the same
+    # either), PMC6257558 "17.88 (2C, 2CH3)"; "(CH2 × 2)" is a typed variant
     text = "13C NMR (CDCl3) δ 25.36 (2×CH3), 30.1 (CH2 × 2), 154.10 (C × 2), 121.59 (2×C aro), 17.88 (2C, 2CH3)"
     assert [(p.count, p.dept) for p in read_nmr_text(text).section("13C").peaks] == [
         (2, "CH3"), (2, "CH2"), (2, None), (2, None), (2, "CH3")]
