@@ -334,7 +334,7 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             peak.count = max(1, int(next(g for g in m.group("n", "n2", "n3", "n4") if g)))
             label = (m.group("h") or (m.group("c2") or "")[1:]).upper()
             if peak.dept is None and label[:1] == "H":   # "2 × CH", "2CH3", "CH2 × 2": printed CHn (DEPT)
-                peak.dept = "C" + label if len(label) > 1 else "CH"
+                peak.dept = "C" + label
             elif peak.dept is None and label == "Q":     # "2Cq"
                 peak.dept = "C"
             rest = w[m.end():].strip()

@@ -291,17 +291,15 @@ def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, 
     return Assignment(pairings, unmatched, total, parts)
 
 
-def _cheapest_tie(mat, groups, row_cls, col_peak_arr, n_pc):
+def _cheapest_tie(mat, groups, row_cls, col_peak_arr):
     """Of several ways to tie classes to single targets (each a list of (class, peak or -1 for unobserved)),
     the cost matrix with the cheapest assignment, and that assignment."""
     best = None
     for ties in groups:
         trial = mat.copy()
         for i, keep in ties:
-            allowed = (col_peak_arr == keep) if keep >= 0 else np.zeros(len(col_peak_arr), bool)
-            if keep < 0:
-                allowed[n_pc:] = True   # all unobserved
-            trial[np.ix_(np.flatnonzero(row_cls == i), np.flatnonzero(~allowed))] = BIG
+            # the unobserved columns carry peak -1, so keep == -1 allows all of them
+            trial[np.ix_(np.flatnonzero(row_cls == i), np.flatnonzero(col_peak_arr != keep))] = BIG
         tr, tc = linear_sum_assignment(trial)
         total = float(trial[tr, tc].sum())
         if best is None or total < best[0]:
@@ -351,10 +349,10 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
         options = [np.unique(target[row_cls == i]).tolist() for i in bad_split]
         if np.prod([len(o) for o in options]) <= MAX_TIE_COMBINATIONS:
             groups = [list(zip(bad_split, combo)) for combo in itertools.product(*options)]   # all at once
-            mat, r_idx, c_idx = _cheapest_tie(mat, groups, row_cls, col_peak_arr, n_pc)
+            mat, r_idx, c_idx = _cheapest_tie(mat, groups, row_cls, col_peak_arr)
         else:
             for i, opts in zip(bad_split, options):   # too many: one class after another
-                mat, r_idx, c_idx = _cheapest_tie(mat, [[(i, keep)] for keep in opts], row_cls, col_peak_arr, n_pc)
+                mat, r_idx, c_idx = _cheapest_tie(mat, [[(i, keep)] for keep in opts], row_cls, col_peak_arr)
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)
