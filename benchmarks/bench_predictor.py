@@ -238,7 +238,7 @@ def tree_counts(args, counts: list[int]) -> None:
     split = np.array([m.split for m in mols])
     rows = rows_from_assigned(mols, args.nucleus)
     val = rows.subset(split[rows.mol_idx] == "val")
-    X, _ = model.design(val.feats, val.codes)
+    X, _ = model.design(val.feats, val.codes, val.rkeys)
     X = np.asfortranarray(X, dtype=np.float64)
     sizes = [len(m.offsets) for m in model.regressors]
     print(f"{args.nucleus}: {len(model.regressors)} members of {sizes} trees; {len(X)} validation-split rows "

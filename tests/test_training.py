@@ -202,18 +202,19 @@ def test_member_subsets_are_scored_as_the_model_scores_them():
 
     shifts = {"Cc1ccccc1": {0: 21.5, 1: 137.9, 2: 129.1, 3: 128.3, 4: 125.4, 5: 128.3, 6: 129.1},
               "COc1ccccc1": {0: 55.1, 2: 159.7, 3: 114.0, 4: 129.5, 5: 120.7, 6: 129.5, 7: 114.0}}
-    feats, codes, y = [], [], []
+    feats, codes, y, keys = [], [], [], []
     for smi, by_atom in shifts.items():
         env = environments(Chem.MolFromSmiles(smi), "CDCl3")
         for k, a in enumerate(env.centres):
             feats.append(env.features[k]); codes.append(env.codes[k]); y.append(by_atom[int(a)])
+            keys.append(env.ring_keys[k])
     n = len(y)
     val = RowSet(np.array(codes, np.uint32), np.array(feats, np.float32), np.array(y, np.float32),
-                 np.zeros(n, int), np.arange(n), np.zeros(n, int))
+                 np.zeros(n, int), np.arange(n), np.zeros(n, int), rkeys=np.array(keys, np.uint32))
     model = default_model("13C")
     maes = subset_maes(model, val)
     k = len(model.regressors)
     assert len(maes) == 2 ** k - 1
-    X, _ = model.design(val.feats, val.codes)
+    X, _ = model.design(val.feats, val.codes, val.rkeys)
     assert maes[tuple(range(k))] == pytest.approx(float(np.abs(model.predict_mu(X) - val.y).mean()), rel=1e-9)
     assert maes[tuple(range(k))] < 2.0            # the textbook carbons are easy

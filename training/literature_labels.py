@@ -32,6 +32,7 @@ import numpy as np
 from shiftrank.chem.couplings import fit_cost
 from shiftrank.chem.structure import symmetry_ranks
 from shiftrank.prediction.environment import environments
+from shiftrank.prediction.ring_systems import KEY_NAMES
 from shiftrank.score.evidence import EVIDENCE, ClassMeans
 from shiftrank.score.ranking import case_peaklists, ranking_settings, stage_cases
 from training.data import literature_part, split_of
@@ -111,7 +112,7 @@ def literature_rows(data: Path, nucleus: str, weight: float = 1.0, mol_offset: i
     cases = [{"id": r["id"], "candidates": [r["smiles"]], "text": r[key]} for r in recs]
     staged = stage_cases(cases)
     costs = ranking_settings().costs[nucleus]
-    codes_o, feats_o, ys, mi, ai, fo = [], [], [], [], [], []
+    codes_o, feats_o, ys, mi, ai, fo, rk = [], [], [], [], [], [], []
     n_mol = n_classes = 0
     for i, (r, s) in enumerate(zip(recs, staged)):
         if isinstance(s, Exception):
@@ -135,10 +136,10 @@ def literature_rows(data: Path, nucleus: str, weight: float = 1.0, mol_offset: i
                     continue
                 k = pos[atom]
                 codes_o.append(env.codes[k]); feats_o.append(env.features[k]); ys.append(L)
-                mi.append(mol_offset + i); ai.append(atom); fo.append(fold_of(r["skeleton"]))
+                mi.append(mol_offset + i); ai.append(atom); fo.append(fold_of(r["skeleton"])); rk.append(env.ring_keys[k])
             n_classes += 1
     stats.update(compounds=len(recs), compounds_labelled=n_mol, classes_labelled=n_classes, rows=len(ys))
     width = codes_o[0].shape[0] if codes_o else 1
     return RowSet(np.array(codes_o, np.uint32).reshape(-1, width), np.array(feats_o, np.float32).reshape(len(ys), -1),
                   np.array(ys, np.float32), np.array(mi), np.array(ai), np.array(fo),
-                  np.full(len(ys), weight, np.float32))
+                  np.full(len(ys), weight, np.float32), np.array(rk, np.uint32).reshape(-1, len(KEY_NAMES)))

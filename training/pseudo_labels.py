@@ -31,6 +31,7 @@ from scipy.optimize import linear_sum_assignment
 from shiftrank.prediction.environment import environments
 from shiftrank.inputs.molecules import ORGANIC
 from shiftrank.chem.structure import MULTIPLICITY, symmetry_ranks
+from shiftrank.prediction.ring_systems import KEY_NAMES
 from training.features import RowSet, fold_of
 
 CLASS_SPREAD = 1.0      # ppm: equivalent carbons must get values this close
@@ -238,8 +239,9 @@ def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, m
     stats["molecules_usable"] = len(items)
     feats = np.vstack([e.features for _, _, e in items])
     codes = np.vstack([e.codes for _, _, e in items])
-    mu_all, sig_all, radius_all, _ = model.predict_arrays(feats, codes)
-    codes_o, feats_o, ys, mi, ai, fo = [], [], [], [], [], []
+    rkeys = np.vstack([e.ring_keys for _, _, e in items])
+    mu_all, sig_all, radius_all, _ = model.predict_arrays(feats, codes, ring_keys=rkeys)
+    codes_o, feats_o, ys, mi, ai, fo, rk = [], [], [], [], [], [], []
     k = 0
     n_classes_kept = n_atoms_total = n_mol = 0
     for i, (pm, mol, env) in enumerate(items):
@@ -257,8 +259,9 @@ def pseudo_label(model, peakmols, mol_offset: int = 10**6, max_z: float = 3.0, m
         for kk, L in res:
             codes_o.append(env.codes[kk]); feats_o.append(env.features[kk]); ys.append(L)
             mi.append(mol_offset + i); ai.append(int(env.centres[kk])); fo.append(fold_of(pm.skeleton))
+            rk.append(env.ring_keys[kk])
             n_classes_kept += 1
     stats.update(atoms_considered=n_atoms_total, atoms_labelled=n_classes_kept, molecules_labelled=n_mol)
     return RowSet(np.array(codes_o, np.uint32).reshape(-1, env.codes.shape[1]), np.array(feats_o, np.float32),
                   np.array(ys, np.float32), np.array(mi), np.array(ai), np.array(fo),
-                  np.full(len(ys), weight, np.float32))
+                  np.full(len(ys), weight, np.float32), np.array(rk, np.uint32).reshape(-1, len(KEY_NAMES)))

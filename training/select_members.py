@@ -32,7 +32,7 @@ from training.data import DEFAULT_DATA, LoadReport
 
 def member_predictions(model, rows) -> np.ndarray:
     """(members, rows) estimates of each member on ``rows``."""
-    X, _ = model.design(rows.feats, rows.codes)
+    X, _ = model.design(rows.feats, rows.codes, rows.rkeys)
     return np.array([m.predict(X) for m in model.regressors])
 
 
@@ -76,6 +76,9 @@ def main(argv=None) -> int:
         return 0
     before = maes[tuple(range(k))]
     model.regressor = [model.regressors[i] for i in keep]
+    width = len(feature_names(n)) + T.table_features(np.zeros((1, len(model.tables.keys_), 3), np.float32)).shape[1]
+    if all(m.n_features_in_ <= width for m in model.regressor):
+        model.ring_tables = None   # no kept member reads the ring-table columns
     path = T.report_path(n)
     report = json.loads(path.read_text()) if path.exists() else {"nucleus": n}
     ensemble = report.get("ensemble", [])

@@ -37,7 +37,8 @@ from shiftrank.prediction.sphere_tables import SphereTables, table_features
 from shiftrank.prediction.trees import Forest
 from shiftrank.prediction.model_files import FILES, boost_arrays, read_manifest, sha256_file
 from training.data import DEFAULT_DATA, LoadReport, load_assigned, load_peaklists
-from training.features import RowSet, masked_copies, oof_table_stats, rows_from_assigned
+from shiftrank.prediction.ring_systems import RingTables
+from training.features import RowSet, masked_copies, oof_ring_features, oof_table_stats, rows_from_assigned
 from training.pseudo_labels import pseudo_label
 
 SEED = 20261201
@@ -45,8 +46,8 @@ RARE_RADIUS, RARE_COUNT = 3, 3  # environment shared by fewer carbons than this 
 MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere statistics hidden
 OUTLIER_FLOOR = {"13C": 8.0, "1H": 0.8}  # ppm: residuals below this are never called outliers
 SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
-VERSION = {"13C": "1.7.0", "1H": "1.4.0"}
-MODELS_VERSION = "1.8.0"  # the shipped set of models (both nuclei and the ranking settings)
+VERSION = {"13C": "1.8.0", "1H": "1.4.0"}
+MODELS_VERSION = "1.9.0"  # the shipped set of models (both nuclei and the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
 LITERATURE_WEIGHT = 0.0  # labels from printed paragraphs (training.literature_labels); 0: not used
 
@@ -71,14 +72,21 @@ def _hgb(n_rows: int, quick: bool = False) -> HistGradientBoostingRegressor:
 
 
 def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C",
-                    descriptors_only: bool = False) -> tuple[ShiftModel, RowSet]:
+                    descriptors_only: bool = False, ring_tables: bool = False) -> tuple[ShiftModel, RowSet]:
     """Tables + regressor on ``rows`` with residual-based outlier removal.
 
     ``descriptors_only``: the final regressor sees the descriptors without the table statistics (and
     needs no masked copies); it reads the leading columns of the usual design rows, so it can sit in
-    one ensemble with members that see both (its errors differ more from theirs than another seed's)."""
+    one ensemble with members that see both (its errors differ more from theirs than another seed's).
+
+    ``ring_tables``: the regressor also sees the ring-system tables' statistics
+    (:class:`~shiftrank.prediction.ring_systems.RingTables`, out-of-fold like the sphere tables),
+    after the sphere-table columns; the returned model carries those tables."""
     stats = oof_table_stats(rows)
     X = np.hstack([rows.feats, table_features(stats)])
+    ring_X = oof_ring_features(rows) if ring_tables else None
+    if ring_X is not None:
+        X = np.hstack([X, ring_X])
     reg = _hgb(len(rows), quick=True).fit(X, rows.y, sample_weight=rows.weight)
     res = rows.y - reg.predict(X)
     scale = 1.4826 * np.median(np.abs(res - np.median(res)))
@@ -98,14 +106,18 @@ def fit_shift_model(rows: RowSet, report: dict, nucleus: str = "13C",
     X = X[keep]
     idx, masked = masked_copies(stats[keep], MASK_FRACTION, SEED)
     report["masked_copies"] = int(len(idx))
-    Xa = np.vstack([X, np.hstack([rows.feats[idx], table_features(masked)])])
+    copies = [rows.feats[idx], table_features(masked)]
+    if ring_X is not None:   # the copies hide wide spheres only: a ring system is known or not at any radius
+        copies.append(ring_X[keep][idx])
+    Xa = np.vstack([X, np.hstack(copies)])
     reg = _hgb(len(Xa)).fit(Xa, np.concatenate([rows.y, rows.y[idx]]),
                             sample_weight=np.concatenate([rows.weight, rows.weight[idx]]))
-    return ShiftModel(tables, reg, None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus), rows
+    rt = RingTables().fit(rows.rkeys, rows.y, rows.feats[:, 0]) if ring_tables else None
+    return ShiftModel(tables, reg, None, sigma_floor=SIGMA_FLOOR[nucleus], nucleus=nucleus, ring_tables=rt), rows
 
 
 def predict_mu(model: ShiftModel, rows: RowSet) -> np.ndarray:
-    X, _ = model.design(rows.feats, rows.codes)
+    X, _ = model.design(rows.feats, rows.codes, rows.rkeys)
     return model.predict_mu(X)
 
 
@@ -120,7 +132,7 @@ def selection_mae(model: ShiftModel, val: RowSet) -> float:
 
 def fit_sigma(model: ShiftModel, val: RowSet) -> dict:
     """Error model on validation residuals; scale from a 2-fold cross-fit so coverage is honest."""
-    X, _ = model.design(val.feats, val.codes)
+    X, _ = model.design(val.feats, val.codes, val.rkeys)
     mu = model.predict_mu(X)
     X2 = np.hstack([X, mu[:, None]])
     absres = np.abs(val.y - mu)
@@ -145,7 +157,7 @@ def fit_sigma(model: ShiftModel, val: RowSet) -> dict:
 
 def metrics(model: ShiftModel, rows: RowSet, mols, name: str) -> dict:
     """MAE and friends on ``rows``; for 1H also on C–H rows only (exchangeable protons excluded)."""
-    mu, sigma, radius, _ = model.predict_arrays(rows.feats, rows.codes)
+    mu, sigma, radius, _ = model.predict_arrays(rows.feats, rows.codes, ring_keys=rows.rkeys)
     err = mu - rows.y
     ae = np.abs(err)
     out = {"split": name, "atoms": int(len(rows)), "molecules": int(len(set(rows.mol_idx.tolist()))),
@@ -186,13 +198,14 @@ def save_model(model: ShiftModel, report: dict, mols, out: Path, data: Path, nuc
     """Write the model files of ``nucleus`` into ``out`` and its manifest entry (hashes, metrics, sample)."""
     out.mkdir(parents=True, exist_ok=True)
     tables_name, boost_name = FILES[nucleus]
-    np.savez_compressed(out / tables_name, **model.tables.to_arrays())
+    ring = model.ring_tables.to_arrays() if model.ring_tables is not None else {}
+    np.savez_compressed(out / tables_name, **model.tables.to_arrays(), **ring)
     np.savez_compressed(out / boost_name, **boost_arrays(model))  # trees as flat arrays, no pickle
     # fixed test sample for the regression test: ids of the first 300 test molecules
     test_ids = sorted({m.id for m in mols if m.split == "test"})[:300]
     sample = [m for m in mols if m.id in set(test_ids)]
     sample_rows = rows_from_assigned(sample, nucleus)
-    smu, _, _, _ = model.predict_arrays(sample_rows.feats, sample_rows.codes)
+    smu, _, _, _ = model.predict_arrays(sample_rows.feats, sample_rows.codes, ring_keys=sample_rows.rkeys)
     data_file = "assigned_13c.csv.gz" if nucleus == "13C" else "assigned_1h.csv.gz"
     entry = {
         "version": VERSION[nucleus], "created": time.strftime("%Y-%m-%d"),

@@ -14,7 +14,9 @@ carries hydrogen for 1H (its protons' mean shift).  Two descriptions of each cen
   bond orders, Gasteiger charges); bond-typed neighbours; atoms reached along
   conjugated bonds; the partner across a double bond with its substituents; the
   substituents of its aromatic ring by position; and Hückel π charges
-  (:mod:`.pi_system`) of the centre and of the atoms one and two bonds out.
+  (:mod:`.pi_system`) of the centre and of the atoms one and two bonds out;
+* for 13C, **ring-system keys** (:mod:`.ring_systems`): the carbon's position in its parent ring
+  system with the substituents stripped, for tables of the parent system's shifts.
 
 :func:`mol_parts` does the RDKit work of one molecule; :func:`environments_of`
 turns a whole batch of those into arrays at once, which keeps prediction fast.
@@ -28,6 +30,7 @@ from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
 from .pi_system import pi_from_tables
+from .ring_systems import KEY_NAMES, ring_keys
 
 MAX_RADIUS = 6
 SHELLS = 6
@@ -112,6 +115,7 @@ class MolEnvironments:
     features: np.ndarray    # (n_centres, len(feature_names(nucleus))) float32
     eccentricity: np.ndarray  # bonds from each centre to the farthest atom (large if fragments)
     nucleus: str = "13C"
+    ring_keys: np.ndarray | None = None  # (n_centres, 3) uint32 ring-system keys (:mod:`.ring_systems`; 13C)
 
 
 
@@ -133,6 +137,7 @@ class MolParts:
     notes: list = field(default_factory=list)  # what standardisation did to the caller's input
     preds: tuple | None = None         # (shifts, sigmas) once predicted, for a caller that caches these parts
     pi: np.ndarray | None = None       # (n, 3) Hückel π charge, π membership, π bond-order sum per atom
+    ring_keys: np.ndarray | None = None  # (n_centres, 3) ring-system keys of the centres (13C only)
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", pi: np.ndarray | None = None) -> MolParts:
@@ -165,9 +170,9 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     if rows is None:
         rows = [row + (0.0, 0.0) for row in info]
     table = np.array(rows, dtype=np.float64).reshape(n, 9)
-    bonds = np.array([(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), _BOND_KINDS.get(b.GetBondType(), 0),
-                       b.GetIsConjugated() or b.GetIsAromatic())
-                      for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))], dtype=np.int64).reshape(-1, 4)
+    bond_list = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), b.GetBondType(), b.GetIsConjugated() or b.GetIsAromatic())
+                 for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))]
+    bonds = np.array([(i, j, _BOND_KINDS.get(t, 0), c) for i, j, t, c in bond_list], dtype=np.int64).reshape(-1, 4)
     if nucleus == "13C":
         centres = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
     else:
@@ -192,8 +197,11 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     ringpos = _ring_positions(mol, atoms, rings, centres)
     if pi is None:
         pi = pi_columns(info, bonds)
+    # where each carbon sits in its ring system (measured no help for 1H, so not computed there)
+    keys = (ring_keys(mol, centres, (info, [(i, j, int(t)) for i, j, t, _ in bond_list], rings))
+            if nucleus == "13C" else None)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
-                    pi=pi)
+                    pi=pi, ring_keys=keys)
 
 
 def pi_columns(info, bonds: np.ndarray) -> np.ndarray:
@@ -462,8 +470,11 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
         blocks.append(el.astype(np.float64))
     features = np.hstack(blocks).astype(np.float32)
     codes = np.vstack([p.codes for p in parts]) if NC else np.zeros((0, MAX_RADIUS), np.uint32)
+    keys = np.vstack([p.ring_keys if p.ring_keys is not None else np.zeros((len(p.centres), len(KEY_NAMES)), np.uint32)
+                      for p in parts]) if NC else np.zeros((0, len(KEY_NAMES)), np.uint32)
     return [MolEnvironments(p.centres, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
-                            p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.centres)), nucleus)
+                            p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.centres)), nucleus,
+                            keys[c_off[i]:c_off[i + 1]])
             for i, p in enumerate(parts)]
 
 

@@ -5,6 +5,9 @@ protons on each heavy atom.  The model combines two things learned from NMRShift
 
 1. :class:`~shiftrank.prediction.sphere_tables.SphereTables` — median shift per sphere
    code (HOSE-style, Bremser 1978), looked up from the widest sphere down;
+   for 13C also :class:`~shiftrank.prediction.ring_systems.RingTables` — shifts per position of
+   the parent ring system, with the substituents stripped (members that read them are marked by
+   their input width);
 2. a ``HistGradientBoostingRegressor`` that predicts the shift from the
    carbon's shell descriptors plus those table statistics, and a second one
    that predicts the size of the error, scaled so that the stated 90 %
@@ -18,6 +21,7 @@ import numpy as np
 from rdkit import Chem
 
 from .environment import MolEnvironments, environments
+from .ring_systems import KEY_NAMES, RingTables
 from .sphere_tables import SphereTables, table_features, widest_match
 
 Z90 = 1.6448536269514722
@@ -71,9 +75,10 @@ class ShiftModel:
     """
 
     def __init__(self, tables: SphereTables, regressor, sigma_regressor, sigma_scale: float = 1.0,
-                 sigma_floor: float = 0.3, nucleus: str = "13C"):
+                 sigma_floor: float = 0.3, nucleus: str = "13C", ring_tables: RingTables | None = None):
         self.nucleus = nucleus
         self.tables = tables
+        self.ring_tables = ring_tables
         self.regressor = regressor
         self.sigma_regressor = sigma_regressor
         self.sigma_scale = sigma_scale
@@ -92,12 +97,23 @@ class ShiftModel:
             mu = mu + m.predict(X)
         return mu / len(members)
 
-    def design(self, env_feats: np.ndarray, codes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """Model input rows and the raw lookup statistics for carbons given by descriptors and codes."""
-        stats = self.tables.lookup(codes)
-        return np.hstack([env_feats, table_features(stats)]), stats
+    def design(self, env_feats: np.ndarray, codes: np.ndarray,
+               ring_keys: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
+        """Model input rows and the raw sphere-lookup statistics for centres given by descriptors, sphere
+        codes and (when the model has ring tables) ring-system keys.
 
-    def predict_arrays(self, env_feats: np.ndarray, codes: np.ndarray, eccentricity: np.ndarray | None = None):
+        A row is [descriptors | sphere-table columns | ring-table columns]; each member reads the
+        leading columns it was trained on (descriptors only, up to the sphere columns, or all)."""
+        stats = self.tables.lookup(codes)
+        blocks = [env_feats, table_features(stats)]
+        if self.ring_tables is not None:
+            if ring_keys is None:
+                ring_keys = np.zeros((len(env_feats), len(KEY_NAMES)), np.uint32)
+            blocks.append(self.ring_tables.features(ring_keys))
+        return np.hstack(blocks), stats
+
+    def predict_arrays(self, env_feats: np.ndarray, codes: np.ndarray, eccentricity: np.ndarray | None = None,
+                       ring_keys: np.ndarray | None = None):
         """Shift, sigma, widest radius and its count for rows of carbons.
 
         Where ``eccentricity`` is given and the widest sphere match reaches past every atom of the
@@ -108,7 +124,7 @@ class ShiftModel:
         if len(env_feats) == 0:
             z = np.zeros(0)
             return z, z, z.astype(int), z.astype(int)
-        X, stats = self.design(env_feats, codes)
+        X, stats = self.design(env_feats, codes, ring_keys)
         # identical rows (symmetry-equivalent carbons, shared parts of isomers) are predicted once
         rows = np.ascontiguousarray(X).view(np.dtype((np.void, X.dtype.itemsize * X.shape[1]))).ravel()
         _, first, back = np.unique(rows, return_index=True, return_inverse=True)
@@ -137,8 +153,12 @@ class ShiftModel:
 
     def predict_env_arrays(self, envs: list[MolEnvironments]):
         """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""
+        keys = None
+        if self.ring_tables is not None:
+            keys = np.vstack([e.ring_keys if e.ring_keys is not None else np.zeros((len(e.centres), len(KEY_NAMES)), np.uint32)
+                              for e in envs])
         return self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
-                                   np.concatenate([e.eccentricity for e in envs]))
+                                   np.concatenate([e.eccentricity for e in envs]), keys)
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
         """Predict many molecules in one model call (fast path for batches)."""

@@ -17,6 +17,7 @@ import numpy as np
 
 from .environment import feature_names
 from .model import ShiftModel
+from .ring_systems import RingTables
 from .sphere_tables import SphereTables, table_features
 from .trees import Forest
 
@@ -110,7 +111,9 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
     tables_path = verified_path(tables_name, man, d)
     boost_path = verified_path(boost_name, man, d)
     with np.load(tables_path, allow_pickle=False) as z:
-        tables = SphereTables.from_arrays({k: z[k] for k in z.files})
+        arrays = {k: z[k] for k in z.files}
+    tables = SphereTables.from_arrays({k: v for k, v in arrays.items() if not k.startswith("ring_")})
+    ring_tables = RingTables.from_arrays(arrays)
     if entry.get("feature_names") != feature_names(nucleus):
         raise ModelFileError(f"{d}: the {nucleus} model was trained with a different atom-environment feature set than "
                              "this version of shiftrank computes; retrain with training/train_shifts.py")
@@ -119,13 +122,17 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
             members, sigma, scale, floor = _boost_from_arrays(z)
     except (ValueError, KeyError, OSError) as exc:
         raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
-    # a member reads either the descriptors alone or the descriptors and the table statistics after them
+    # a member reads the descriptors alone, the descriptors and the sphere-table statistics after them,
+    # or (when the file has ring tables) those and the ring-table statistics after them
     n_env = len(feature_names(nucleus))
-    views = {n_env, n_env + table_features(np.zeros((1, len(tables.keys_), 3), np.float32)).shape[1]}
+    n_sphere = n_env + table_features(np.zeros((1, len(tables.keys_), 3), np.float32)).shape[1]
+    views = {n_env, n_sphere} | ({n_sphere + RingTables.WIDTH} if ring_tables is not None else set())
     if any(m.n_features_in_ not in views for m in members):
         raise ModelFileError(f"{boost_path}: a boosted member expects {sorted({m.n_features_in_ for m in members} - views)} "
-                             f"input columns; this version of shiftrank gives {n_env} or {max(views)}")
-    return ShiftModel(tables, members, sigma, scale, floor, nucleus)
+                             f"input columns; this version of shiftrank gives {', '.join(map(str, sorted(views)))}")
+    if ring_tables is not None and not any(m.n_features_in_ == n_sphere + RingTables.WIDTH for m in members):
+        ring_tables = None   # no member reads them: do not compute their columns
+    return ShiftModel(tables, members, sigma, scale, floor, nucleus, ring_tables)
 
 
 @lru_cache(maxsize=None)

@@ -761,7 +761,7 @@ def _keep_prediction(parts: MolParts, pred: tuple) -> None:
     """Store a cached candidate's prediction on its parts and drop what only the descriptors needed
     (distance matrix, codes, atom and bond tables): a long batch keeps many candidates in its cache."""
     parts.preds = pred
-    parts.dist = parts.codes = parts.atoms = parts.bonds = parts.ringpos = None
+    parts.dist = parts.codes = parts.atoms = parts.bonds = parts.ringpos = parts.ring_keys = None
     parts.rings = []
 
 
