@@ -64,7 +64,9 @@ def test_shipped_models_are_flat_forests():
     for nucleus in ("13C", "1H"):
         m = default_model(nucleus)
         assert all(isinstance(r, Forest) for r in m.regressors) and isinstance(m.sigma_regressor, Forest)
-        # members averaged (model set 1.8.0): two read descriptors and table statistics, two the descriptors alone
+        # four members averaged: two read the descriptors alone, two the descriptors and the sphere-table
+        # statistics (1H) or those and the ring-system tables' statistics after them (13C, model set 1.9.0)
         widths = sorted(r.n_features_in_ for r in m.regressors)
         assert len(widths) == 4 and widths[0] == widths[1] < widths[2] == widths[3]
+        assert (m.ring_tables is not None) == (nucleus == "13C")
 
