@@ -16,8 +16,9 @@ Measured for 13C (model 1.2.0 plus one member, seed 7): validation MAE 1.957 -> 
 
 ``--ring-tables`` (13C): the member also reads the statistics of the ring-system tables
 (:class:`shiftrank.prediction.ring_systems.RingTables`: the parent ring system's shift at the carbon's
-position, with and without the substitution pattern), after the sphere-table columns; the tables are
-built from the member's rows and saved with the sphere tables.
+position, with and without the substitution pattern), after the sphere-table columns.  The first such
+member brings the tables, built from its own rows and saved with the sphere tables; a later one reads
+those (it was fitted on out-of-fold statistics of its own rows, as every table-reading member is).
 
 ``--descriptors-only``: the member is fitted on the atom descriptors without the sphere-table
 statistics (same rows and outlier pass, no masked copies).  Alone it is a little weaker, but its
