@@ -122,6 +122,31 @@ def ring_position(mol, idx: int) -> str | None:
     return "bare"
 
 
+def substituent_positions(mol, idx: int) -> list[tuple[str, str]]:
+    """For an aromatic ring atom: (substituent class, position of the atom relative to it) for every
+    substituent on its ring - 'ipso', 'ortho', 'meta', 'para' around the ring; a ring fused on counts as
+    'fused'.  Classes are those of the descriptors' ring-position block (``SUBST_CLASSES``)."""
+    from shiftrank.prediction.environment import SUBST_CLASSES, _subst_class
+
+    r = aromatic_ring(mol, idx)
+    if r is None:
+        return []
+    rset, n, k0 = set(r), len(r), r.index(idx)
+    out = []
+    for k, j in enumerate(r):
+        step = min((k - k0) % n, (k0 - k) % n)
+        if step > 3:
+            continue
+        atom = mol.GetAtomWithIdx(j)
+        for nb in atom.GetNeighbors():
+            if nb.GetIdx() in rset:
+                continue
+            bond = mol.GetBondBetweenAtoms(j, nb.GetIdx())
+            cls = "fused" if bond.IsInRing() else SUBST_CLASSES[_subst_class(nb, atom)]
+            out.append((cls, ("ipso", "ortho", "meta", "para")[step]))
+    return out
+
+
 def ring_type(mol, idx: int) -> str | None:
     r = aromatic_ring(mol, idx)
     if r is None:
@@ -157,6 +182,7 @@ def accuracy(args, nucleus: str) -> None:
     if nucleus == "1H" and xh.any():
         print(f"OH/NH/SH rows: {xh.sum()}, MAE {np.abs(err[xh]).mean():.3f}, coverage {100 * np.mean(np.abs(err[xh]) <= 1.6449 * sig[xh]):.1f} %")
     groups: dict = {}
+    by_subst: dict = {}
     for (d, _, atom, mol), keep in zip(rows, sel):
         if not keep:
             continue
@@ -170,10 +196,24 @@ def accuracy(args, nucleus: str) -> None:
                      ("aromatic by size", sb)]
         for key in keys:
             groups.setdefault(key, []).append(abs(d))
+        for key in set(substituent_positions(mol, atom.GetIdx())):
+            by_subst.setdefault(key, []).append(abs(d))
     for head in ("CHn", "type", "heavy atoms", "aromatic ring", "aromatic position", "aromatic by size"):
         parts = [f"{k[1]} {np.mean(v):.3f} (n={len(v)})" for k, v in sorted(groups.items()) if k[0] == head]
         if parts:
             print(f"  by {head}: " + ", ".join(parts))
+    # the carbons a substituent moves: MAE by the substituent's class and the carbon's position from it
+    # (a carbon counts once per substituent class and position on its ring); classes with 30+ ipso carbons
+    positions = ("ipso", "ortho", "meta", "para")
+    classes = sorted({c for c, _ in by_subst}, key=lambda c: -len(by_subst.get((c, "ipso"), [])))
+    shown = [c for c in classes if len(by_subst.get((c, "ipso"), [])) >= 30]
+    if shown:
+        print("  aromatic ring atoms by substituent and position (MAE, n):")
+        print("    " + f"{'substituent':12s}" + "".join(f"{p:>16s}" for p in positions))
+        for c in shown:
+            cells = [f"{np.mean(by_subst[(c, p)]):7.3f} ({len(by_subst[(c, p)]):4d})" if (c, p) in by_subst else f"{'-':>16s}"
+                     for p in positions]
+            print("    " + f"{c:12s}" + "".join(f"{x:>16s}" for x in cells))
 
 
 def peaklist_accuracy(args) -> None:
