@@ -83,7 +83,7 @@ def _describe(mol: Chem.Mol, atoms: list[int], bonds: list[tuple], symbols: list
 #: afresh each time): then the graph fixes the answer and a hit is exact.  Positional isomers and common
 #: rings (benzene) hit it often.
 _SEEN: dict = {}
-_SEEN_MAX = 50_000
+_SEEN_MAX = 10_000   # about 1.8 kB each: at most ~18 MB
 
 
 def _plain(mol: Chem.Mol, atoms: list[int], bonds: list[tuple]) -> bool:
