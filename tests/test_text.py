@@ -291,3 +291,21 @@ def test_any_unicode_never_crashes(text):
         read_nmr_text(text)
     except InputError:
         pass
+
+
+@pytest.mark.parametrize("source,text", [
+    ("PMC6958408", "13C NMR (101 MHz, chloroform-d): δ 156.3, 156.1, 136.2, 128.6 (2C), 128.3, 128.1 (2C), 79.5, 71.0, "
+                   "67.0, 48.0, 37.3, 34.5, 31.8, 28.4 (3C)"),
+    ("PMC7794720", "1H-NMR (400 MHz, CDCl3) δ = 7.37–7.13 (m, 5H), 3.58 (s, 3H), 3.17 (s, 3H), 2.96 (t, J = 7.9 Hz, 2H), "
+                   "2.74 (t, J = 7.9 Hz, 2H)"),
+])
+def test_a_section_printed_with_decimal_commas_throughout(source, text):
+    """Some house styles print every value with a decimal comma and separate values by semicolons (the comma
+    is a decimal sign of ISO 80000-1; from memory).  The dev-file paragraph (source) rewritten in that style
+    must give the same peaks, with a note; the original has decimal points and gets no such note."""
+    comma = text.replace(", ", "; ").replace(".", ",")
+    a, b = read_nmr_text(text).sections[0], read_nmr_text(comma).sections[0]
+    assert [(p.shift, p.lo, p.hi, p.integral, p.multiplicity, tuple(p.j), p.count) for p in b.peaks] == \
+        [(p.shift, p.lo, p.hi, p.integral, p.multiplicity, tuple(p.j), p.count) for p in a.peaks]
+    assert any("decimal commas read as decimal points throughout" in n for n in b.notes)
+    assert not any("decimal comma" in n for n in a.notes)

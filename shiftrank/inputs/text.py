@@ -382,6 +382,8 @@ def _strip_lead(text: str) -> str:
     return text
 
 
+#: a value written with a decimal comma and no space after it: '166,9' (not '166, 9' nor '1,2,3-')
+_BARE_DECIMAL_COMMA = re.compile(r"(?<![\d,.])\d{1,3},\d{1,3}(?![\d,])")
 _DECIMAL_COMMA = re.compile(r"(?<![\d.,])(\d{1,3}),(\d{1,3})(?=\s*(?:-\s*\d{1,3},\d{1,3}\s*)?[(\[])")
 #: peaks gathered in square brackets under a label: "Ar-H [7.39 (d, 2H), 7.88 (d, 2H)]", "(C=N) [163.1, 165.5]"
 _GROUP = re.compile(r"^(?:[A-Za-z][\w\-' ]{0,30}|\([^()]{1,20}\))\s*\[(?P<inner>\s*[+-]?\d{1,3}\.\d+\s*[-,(].*)\]$", re.S)
@@ -522,6 +524,12 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
     for k, (_, h_end, nuc, header) in enumerate(spans):
         end = spans[k + 1][0] if k + 1 < len(spans) else len(t)
         body = t[h_end:end]
+        comma_note = None
+        if not re.search(r"\d\.\d", body) and len(_BARE_DECIMAL_COMMA.findall(body)) >= 2:
+            # no value with a decimal point, but values such as '166,9; 163,4' (the decimal comma of some
+            # house styles, ISO 80000-1; from memory): every digit,digit of the section is a decimal comma
+            body = re.sub(r"(?<=\d),(?=\d)", ".", body)
+            comma_note = "decimal commas read as decimal points throughout the section (no value has a decimal point)"
         cond, peaks_text = _header_end(body)
         if nuc is None:
             nuc, why = _infer_nucleus(peaks_text, nucleus)
@@ -530,6 +538,8 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
                              f"no NMR header: read as {nuc} ({why})")
         else:
             sec = TextSection(nuc, header)
+        if comma_note:
+            sec.notes.append(comma_note)
         stray = re.findall(r"(?<![\d.])\d{1,3}\.\d+(?![\d.])(?!\s*(?:MHz|K\b|°|Hz|ppm\)|ppm\s*\)))", cond)
         if stray and peaks_text:
             sec.notes.append(f"values before the peak list were not read as peaks: {', '.join(stray[:5])} (in '{cond.strip()[:60]}')")
