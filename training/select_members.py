@@ -76,9 +76,7 @@ def main(argv=None) -> int:
         return 0
     before = maes[tuple(range(k))]
     model.regressor = [model.regressors[i] for i in keep]
-    width = len(feature_names(n)) + T.table_features(np.zeros((1, len(model.tables.keys_), 3), np.float32)).shape[1]
-    if all(m.n_features_in_ <= width for m in model.regressor):
-        model.ring_tables = None   # no kept member reads the ring-table columns
+    model.drop_unread_ring_tables()
     path = T.report_path(n)
     report = json.loads(path.read_text()) if path.exists() else {"nucleus": n}
     ensemble = report.get("ensemble", [])

@@ -20,7 +20,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from rdkit import Chem
 
-from .environment import MolEnvironments, environments
+from .environment import MolEnvironments, environments, feature_names
 from .ring_systems import KEY_NAMES, RingTables
 from .sphere_tables import SphereTables, table_features, widest_match
 
@@ -89,6 +89,16 @@ class ShiftModel:
         """The boosted members: one, or several whose mean is the estimate (an ensemble over seeds)."""
         return list(self.regressor) if isinstance(self.regressor, (list, tuple)) else [self.regressor]
 
+    @property
+    def sphere_width(self) -> int:
+        """Columns of a design row up to the sphere-table statistics ([descriptors | sphere-table columns])."""
+        return len(feature_names(self.nucleus)) + table_features(np.zeros((1, len(self.tables.keys_), 3), np.float32)).shape[1]
+
+    def drop_unread_ring_tables(self) -> None:
+        """Forget the ring tables when no member reads their columns, so they are neither computed nor saved."""
+        if self.ring_tables is not None and all(m.n_features_in_ <= self.sphere_width for m in self.regressors):
+            self.ring_tables = None
+
     def predict_mu(self, X: np.ndarray) -> np.ndarray:
         """The boosted estimate for design rows ``X``: the mean over the members."""
         members = self.regressors
@@ -153,10 +163,7 @@ class ShiftModel:
 
     def predict_env_arrays(self, envs: list[MolEnvironments]):
         """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""
-        keys = None
-        if self.ring_tables is not None:
-            keys = np.vstack([e.ring_keys if e.ring_keys is not None else np.zeros((len(e.centres), len(KEY_NAMES)), np.uint32)
-                              for e in envs])
+        keys = np.vstack([e.ring_keys for e in envs]) if self.ring_tables is not None else None
         return self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
                                    np.concatenate([e.eccentricity for e in envs]), keys)
 

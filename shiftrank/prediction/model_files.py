@@ -18,7 +18,7 @@ import numpy as np
 from .environment import feature_names
 from .model import ShiftModel
 from .ring_systems import RingTables
-from .sphere_tables import SphereTables, table_features
+from .sphere_tables import SphereTables
 from .trees import Forest
 
 
@@ -122,17 +122,16 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
             members, sigma, scale, floor = _boost_from_arrays(z)
     except (ValueError, KeyError, OSError) as exc:
         raise ModelFileError(f"{boost_path}: unreadable boosted-tree file ({exc})") from None
+    model = ShiftModel(tables, members, sigma, scale, floor, nucleus, ring_tables)
     # a member reads the descriptors alone, the descriptors and the sphere-table statistics after them,
     # or (when the file has ring tables) those and the ring-table statistics after them
-    n_env = len(feature_names(nucleus))
-    n_sphere = n_env + table_features(np.zeros((1, len(tables.keys_), 3), np.float32)).shape[1]
-    views = {n_env, n_sphere} | ({n_sphere + RingTables.WIDTH} if ring_tables is not None else set())
+    n_sphere = model.sphere_width
+    views = {len(feature_names(nucleus)), n_sphere} | ({n_sphere + RingTables.WIDTH} if ring_tables is not None else set())
     if any(m.n_features_in_ not in views for m in members):
         raise ModelFileError(f"{boost_path}: a boosted member expects {sorted({m.n_features_in_ for m in members} - views)} "
                              f"input columns; this version of shiftrank gives {', '.join(map(str, sorted(views)))}")
-    if ring_tables is not None and not any(m.n_features_in_ == n_sphere + RingTables.WIDTH for m in members):
-        ring_tables = None   # no member reads them: do not compute their columns
-    return ShiftModel(tables, members, sigma, scale, floor, nucleus, ring_tables)
+    model.drop_unread_ring_tables()
+    return model
 
 
 @lru_cache(maxsize=None)

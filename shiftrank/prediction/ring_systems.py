@@ -34,6 +34,8 @@ import zlib
 import numpy as np
 from rdkit import Chem
 
+from .sphere_tables import SphereTables
+
 #: Columns of :func:`ring_keys`.
 KEY_NAMES = ("parent", "pattern", "exo")
 
@@ -187,8 +189,6 @@ class RingTables:
     WIDTH = 12   # columns of :meth:`features`
 
     def fit(self, keys: np.ndarray, shifts: np.ndarray, n_h: np.ndarray) -> "RingTables":
-        from .sphere_tables import SphereTables
-
         keys = np.asarray(keys, np.uint32)
         ch = np.where(np.asarray(n_h) > 0, keys[:, 0], 0).astype(np.uint32)
         self.tables = SphereTables().fit(np.column_stack([keys, ch]), shifts)
@@ -213,8 +213,6 @@ class RingTables:
 
     @classmethod
     def from_arrays(cls, d, prefix: str = "ring_") -> "RingTables | None":
-        from .sphere_tables import SphereTables
-
         sub = {k[len(prefix):]: d[k] for k in d if str(k).startswith(prefix)}
         if not sub:
             return None
