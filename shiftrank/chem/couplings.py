@@ -41,6 +41,7 @@ from functools import lru_cache
 
 from rdkit import Chem
 
+from .labels import labelled_hydrogens, proton_counts, split_by_labels
 from .structure import TWIN_NEAR_1H, signal_key, symmetry_ranks, twin_sides
 
 #: how a few coupling kinds read in a label (others by their own name)
@@ -379,7 +380,7 @@ class _Table:
         atoms = [mol.GetAtomWithIdx(i) for i in range(n)]
         self.z = [a.GetAtomicNum() for a in atoms]
         self.arom = [a.GetIsAromatic() for a in atoms]
-        self.nh = [a.GetTotalNumHs() for a in atoms]
+        self.nh = proton_counts(mol)   # 1H only: a 2H/3H neither shows nor splits (J(H,D) is not resolved)
         self.sp2 = [a.GetHybridization() == Chem.HybridizationType.SP2 for a in atoms]
         self.in_ring = [a.IsInRing() for a in atoms]
         self.adj: list[list[tuple[int, int, int]]] = [[] for _ in range(n)]   # (neighbour, bond type, bond index)
@@ -408,12 +409,14 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
                  if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
     amide_n = _amide_nh2_atoms(mol)
+    labels = labelled_hydrogens(mol)
     out = []
-    for (rank, side), atoms in sorted(classes.items(), key=lambda kv: kv[1][0]):
-        n_h = sum(T.nh[i] for i in atoms)
-        out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]],
-                                     amide_nh2=atoms[0] in amide_n, twin_of=rank if side is not None else None))
-    return out
+    for (rank, side), whole in sorted(classes.items(), key=lambda kv: kv[1][0]):
+        for atoms in split_by_labels(whole, labels):   # a CHD2 beside a CH3 of the same class: two signals
+            n_h = sum(T.nh[i] for i in atoms)
+            out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]],
+                                         amide_nh2=atoms[0] in amide_n, twin_of=rank if side is not None else None))
+    return sorted(out, key=lambda e: e.atoms[0])
 
 
 #: NH2 groups whose C–N rotation is slow enough to show two signals (common practice): on a carboxamide

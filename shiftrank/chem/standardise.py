@@ -3,7 +3,8 @@
 :func:`standardise` keeps the largest organic fragment (counterions, solvent of crystallisation and
 water are set aside), neutralises charges where a neutral form exists (RDKit's ``rdMolStandardize``
 uncharger: a carboxylate becomes the acid, an ammonium the amine; a quaternary ammonium or a
-nitro group stays as drawn), reads deuterium and other isotope labels as the plain element, and
+nitro group stays as drawn), reads deuterium and other isotope labels as the plain element (remembering
+which atoms carried 2H or 3H: :mod:`.labels`), and
 says what it did, one note per change.  Radicals and carbenes, metals bound to carbon
 (organometallics) and structures past the size limit are refused with a clear message.
 
@@ -22,6 +23,7 @@ from rdkit import Chem
 from rdkit.Chem.MolStandardize import rdMolStandardize
 
 from ..errors import InputError
+from .labels import labelled_hydrogens, set_labels, strip_labelled_hydrogens
 
 #: Largest molecule (heavy atoms) the tool describes and predicts; beyond it the request is refused.
 MAX_HEAVY_ATOMS = 250
@@ -106,17 +108,20 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         raise InputError(f"{label}: {mol.GetNumHeavyAtoms()} heavy atoms; the limit is {MAX_HEAVY_ATOMS}")
     atoms = list(map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     iso = [a for a in atoms if a.GetIsotope()]
+    labels: dict[int, int] = {}
     if iso:
         mol = Chem.Mol(mol)
         deut = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() == 1 and a.GetIsotope()]
         for a in mol.GetAtoms():
-            a.SetIsotope(0)
-        labels = sorted({f"{a.GetIsotope()}{a.GetSymbol()}" for a in iso})
-        notes.append(f"isotope labels ({', '.join(labels)}) read as the plain elements")
+            if a.GetAtomicNum() > 1:
+                a.SetIsotope(0)
+        names = sorted({f"{a.GetIsotope()}{a.GetSymbol()}" for a in iso})
+        notes.append(f"isotope labels ({', '.join(names)}) read as the plain elements")
         if deut:
-            # explicit [2H]/[3H] atoms become ordinary hydrogens, removed like any explicit H
-            heavy_before = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() > 1]
-            mol = Chem.RemoveHs(mol, sanitize=True)
+            # explicit [2H]/[3H] atoms become ordinary hydrogens, removed like any explicit H; how many
+            # each heavy atom carried is kept (:mod:`.labels`: they give no 1H line and no DEPT/HSQC proton)
+            mol, heavy_before = strip_labelled_hydrogens(mol)
+            labels = labelled_hydrogens(mol)
             atom_map = [atom_map[i] for i in heavy_before]
     charged = any(a.GetFormalCharge() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     if charged:
@@ -129,4 +134,9 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         if after != before and neutral.GetNumAtoms() == mol.GetNumAtoms():
             notes.append(f"neutralised: {before} → {after}")
             mol = neutral
+    if labels:
+        set_labels(mol, labels)   # the uncharger may have made a new molecule
+        n_lab = sum(labels.values())
+        notes.append(f"{n_lab} hydrogen isotope label(s) on atom(s) {', '.join(str(atom_map[i]) for i in sorted(labels))}: "
+                     "no 1H signal and no DEPT/HSQC proton there")
     return Standardised(mol, atom_map, notes)

@@ -11,6 +11,7 @@ from dataclasses import dataclass, field
 
 from rdkit import Chem
 
+from .labels import labelled_hydrogens, proton_counts, split_by_labels, strip_labelled_hydrogens
 from .formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight
 from ..inputs.molecules import to_mol
 
@@ -145,11 +146,14 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
             i = a.GetIdx()
             groups.setdefault(signal_key(i, ranks, twins), []).append(i)
     out = []
+    labels = labelled_hydrogens(mol)
+    protons = proton_counts(mol) if labels else None   # DEPT counts attached protons: a CD3 carbon shows as C
     for (rank, sd), atoms in sorted(groups.items(), key=lambda kv: kv[1][0]):
-        nh = mol.GetAtomWithIdx(atoms[0]).GetTotalNumHs()
         partner = groups.get((rank, 1 - sd)) if sd is not None else None
-        out.append(CarbonClass(atoms, MULTIPLICITY.get(nh, f"CH{nh}"), (partner, twins[atoms[0]][1]) if partner else None))
-    return out
+        for part in split_by_labels(atoms, labels):
+            nh = protons[part[0]] if protons else mol.GetAtomWithIdx(part[0]).GetTotalNumHs()
+            out.append(CarbonClass(part, MULTIPLICITY.get(nh, f"CH{nh}"), (partner, twins[part[0]][1]) if partner else None))
+    return sorted(out, key=lambda c: c.atoms[0]) if labels else out
 
 
 #: why two carbons alike in constitution give two 13C signals (see :func:`twin_sides`)
@@ -250,11 +254,11 @@ def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list
     ranks = symmetry_ranks(mol) if ranks is None else ranks
     twins = twin_sides(mol, ranks, near=TWIN_NEAR_1H)
     groups: dict[tuple, list[int]] = {}
-    for a in _atoms(mol):
-        if a.GetTotalNumHs() > 0:
-            i = a.GetIdx()
+    labels = labelled_hydrogens(mol)
+    for i, nh in enumerate(proton_counts(mol)):   # 2H/3H give no 1H signal
+        if nh > 0:
             groups.setdefault(signal_key(i, ranks, twins), []).append(i)
-    return sorted(groups.values(), key=lambda g: g[0])
+    return sorted((part for g in groups.values() for part in split_by_labels(g, labels)), key=lambda g: g[0])
 
 
 def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = True,
@@ -265,7 +269,7 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
     ``ranks`` are the symmetry ranks when the caller has them already.
     """
     if mol.GetNumAtoms() != mol.GetNumHeavyAtoms():
-        mol = Chem.RemoveHs(mol)
+        mol, _ = strip_labelled_hydrogens(mol)   # explicit H removed, 2H/3H remembered (:mod:`.labels`)
         ranks = None
     ranks = symmetry_ranks(mol) if ranks is None else list(ranks)
     counts: Counter = Counter()

@@ -29,6 +29,7 @@ import numpy as np
 from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
+from ..chem.labels import labelled_hydrogens
 from .pi_system import pi_from_tables
 from .ring_systems import KEY_NAMES, ring_keys
 
@@ -176,7 +177,8 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     if nucleus == "13C":
         centres = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
     else:
-        centres = np.array([i for i, row in enumerate(info) if row[5] > 0], dtype=np.int64)
+        labels = labelled_hydrogens(mol)   # an atom whose H are all 2H/3H has no 1H shift to predict
+        centres = np.array([i for i, row in enumerate(info) if row[5] - labels.get(i, 0) > 0], dtype=np.int64)
     rings = list(mol.GetRingInfo().AtomRings())
     smallest = [0] * n
     for ring in rings:

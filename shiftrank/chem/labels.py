@@ -1,0 +1,90 @@
+"""Hydrogen isotope labels (2H, 3H) kept as facts of the parent structure.
+
+Standardisation reads a deuterium or tritium atom as a plain hydrogen, so that the shift models, which
+know natural-abundance molecules only, predict a CD3 group as the CH3 group it resembles (the isotope
+shifts are small: about −0.3 ppm per 2H on the carbon that carries it, a few hundredths of a ppm in 1H;
+from memory).  What the
+spectra see does change, and the labels are remembered for it:
+
+* a 2H or 3H gives no line in a 1H spectrum, so an atom whose hydrogens are all labelled has no 1H
+  signal, and a CHD2 group integrates for one proton;
+* DEPT and HSQC edit by attached *protons*, so a CD3 carbon shows as a carbon without H;
+* H–D couplings are about a sixth of the H–H couplings they replace and are not resolved in routine
+  spectra (common practice), so a labelled neighbour does not split a proton's signal;
+* otherwise the spectra keep the symmetry of the unlabelled molecule (the ring protons of a
+  CD3O/CH3O-dimethoxybenzene stay one 4H signal: isotope shifts two or more bonds away are below what
+  routine spectra resolve); only atoms of one symmetry class that carry different labels are told apart
+  (:func:`split_by_labels`).
+
+The labels travel as one molecule property (``atom:count`` pairs), which RDKit copies with the
+molecule.
+
+>>> m = Chem.MolFromSmiles("COc1ccc(OC)cc1")
+>>> set_labels(m, {0: 3})
+>>> labelled_hydrogens(m), proton_counts(m)[:2]
+({0: 3}, [0, 0])
+"""
+from __future__ import annotations
+
+from rdkit import Chem
+
+#: molecule property holding the labelled-hydrogen counts of the heavy atoms
+LABEL_PROP = "shiftrank_h_isotopes"
+
+
+def set_labels(mol: Chem.Mol, counts: dict[int, int]) -> None:
+    """Record ``counts`` (heavy-atom index → number of its hydrogens that are 2H or 3H) on ``mol``."""
+    counts = {int(i): int(n) for i, n in counts.items() if n > 0}
+    if counts:
+        mol.SetProp(LABEL_PROP, ";".join(f"{i}:{n}" for i, n in sorted(counts.items())))
+    elif mol.HasProp(LABEL_PROP):
+        mol.ClearProp(LABEL_PROP)
+
+
+def labelled_hydrogens(mol: Chem.Mol) -> dict[int, int]:
+    """Heavy-atom index → number of its hydrogens that are isotope labels (empty for most molecules)."""
+    if not mol.HasProp(LABEL_PROP):
+        return {}
+    out = {}
+    for item in mol.GetProp(LABEL_PROP).split(";"):
+        i, n = item.split(":")
+        out[int(i)] = int(n)
+    return out
+
+
+def proton_counts(mol: Chem.Mol) -> list[int]:
+    """Number of 1H (natural hydrogen, not 2H or 3H) on each atom of ``mol`` (hydrogens implicit)."""
+    counts = [mol.GetAtomWithIdx(i).GetTotalNumHs() for i in range(mol.GetNumAtoms())]
+    for i, n in labelled_hydrogens(mol).items():
+        if i < len(counts):
+            counts[i] = max(0, counts[i] - n)
+    return counts
+
+
+def strip_labelled_hydrogens(mol: Chem.Mol) -> tuple[Chem.Mol, list[int]]:
+    """``mol`` with its explicit hydrogens, 2H and 3H included, removed and the labels recorded
+    (:func:`set_labels`), and the original index of each remaining atom."""
+    mol = Chem.Mol(mol)
+    counts: dict[int, int] = {}
+    for a in mol.GetAtoms():
+        if a.GetAtomicNum() == 1 and a.GetIsotope() > 1:   # 2H, 3H ([1H] is a plain proton)
+            for nb in a.GetNeighbors():
+                counts[nb.GetIdx()] = counts.get(nb.GetIdx(), 0) + 1
+        if a.GetAtomicNum() == 1:
+            a.SetIsotope(0)
+    heavy = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() > 1]
+    new_index = {old: k for k, old in enumerate(heavy)}
+    out = Chem.RemoveHs(mol, sanitize=True)
+    set_labels(out, {new_index[i]: n for i, n in counts.items() if i in new_index})
+    return out, heavy
+
+
+def split_by_labels(atoms: list[int], labels: dict[int, int]) -> list[list[int]]:
+    """The atoms of one symmetry class grouped by how many labelled hydrogens each carries (one group,
+    ``[atoms]``, when none is labelled)."""
+    if not labels or not any(i in labels for i in atoms):
+        return [atoms]
+    groups: dict[int, list[int]] = {}
+    for i in atoms:
+        groups.setdefault(labels.get(i, 0), []).append(i)
+    return sorted(groups.values(), key=lambda g: g[0])

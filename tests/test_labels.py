@@ -1,0 +1,69 @@
+"""Deuterium (and tritium) labels: predicted as the hydrogen they replace, but silent in the 1H spectrum
+and invisible to DEPT/HSQC, which edit by attached protons (common practice).
+
+Shifts of anisole in CDCl3 used below: 7.29 (2H, meta), 6.94 (1H, para), 6.90 (2H, ortho), 3.80 (OCH3)
+(from memory).  Removing one proton's line and its coupling is the rule of the trade for a 2H label
+(common practice); the labelled spectra below are derived from the anisole values by that rule.
+"""
+from rdkit import Chem
+
+from shiftrank.chem.labels import labelled_hydrogens, proton_counts
+from shiftrank.chem.standardise import standardise
+from shiftrank.chem.structure import structure_facts
+from shiftrank.prediction.api import predict
+from shiftrank.score.ranking import rank
+
+D3 = "[2H]C([2H])([2H])Oc1ccc(OC)cc1"        # 1-(trideuteriomethoxy)-4-methoxybenzene
+
+
+def test_standardise_remembers_which_atoms_carried_the_labels():
+    s = standardise(Chem.MolFromSmiles(D3), "d3")
+    assert Chem.MolToSmiles(s.mol) == "COc1ccc(OC)cc1"
+    assert labelled_hydrogens(s.mol) == {0: 3} and proton_counts(s.mol)[0] == 0
+    assert s.atom_map[0] == 1                       # the input's carbon, after its three 2H atoms' first
+    assert any("no 1H signal" in n for n in s.notes)
+    # a [1H] written out is a plain proton, not a label
+    plain = standardise(Chem.MolFromSmiles("[1H]C([1H])([1H])Oc1ccccc1"), "h3")
+    assert labelled_hydrogens(plain.mol) == {}
+
+
+def test_a_cd3_group_has_no_1h_class_and_shows_as_c_in_dept():
+    f = structure_facts(D3)
+    # the ring keeps the symmetry of the unlabelled molecule: one 4H class
+    assert sorted(len(g) for g in f.hydrogen_classes) == [1, 4]
+    mult = {tuple(c.atoms): c.multiplicity for c in f.carbon_classes}
+    assert sorted(mult.values()) == ["C", "C", "CH", "CH3"]     # CD3 as C; the two methyl carbons apart
+    partial = structure_facts("[2H]C([2H])Oc1ccc(OC)cc1")         # CHD2: one proton left, a CH in DEPT
+    assert sorted(c.multiplicity for c in partial.carbon_classes) == ["C", "CH", "CH", "CH3"]
+    assert sorted(len(g) for g in partial.hydrogen_classes) == [1, 1, 4]
+
+
+def test_1h_prediction_leaves_out_atoms_whose_hydrogens_are_all_labelled():
+    p = predict(D3, nucleus="1H")
+    assert 1 not in p.shifts and 10 in p.shifts            # input indices: CD3 carbon 1, CH3 carbon 10
+    assert set(predict(D3).shifts) >= {1, 10}               # 13C still predicts both methyl carbons
+
+
+def test_integrals_tell_the_labelled_compound_from_the_unlabelled_one():
+    peaks = [{"shift": 6.84, "integral": 4, "multiplicity": "s"}, {"shift": 3.77, "integral": 3, "multiplicity": "s"}]
+    r = rank(candidates=["COc1ccc(OC)cc1", D3], peaks_1h=peaks)
+    assert r.best.smiles == D3
+    one_h = r.best.nuclei["1H"].assignment.parts
+    assert one_h["integral"] == 0 and one_h["missing"] == 0
+
+
+def test_where_the_label_went_is_read_from_the_pattern():
+    # anisole-4-d: the para proton's triplet is gone and the ring shows two 2H doublets
+    peaks = [{"shift": 7.29, "integral": 2, "multiplicity": "d", "j": [8.6]},
+             {"shift": 6.90, "integral": 2, "multiplicity": "d", "j": [8.6]},
+             {"shift": 3.80, "integral": 3, "multiplicity": "s"}]
+    cands = ["[2H]c1ccc(OC)cc1", "[2H]c1ccccc1OC", "[2H]c1cccc(OC)c1", "COc1ccccc1"]
+    r = rank(candidates=cands, peaks_1h=peaks)
+    assert r.best.smiles == cands[0]
+    # anisole-2-d: 7.29 (m, 2H), 6.94 (t, 1H), 6.90 (d, 1H), 3.80 (s, 3H)
+    peaks2 = [{"range": [7.26, 7.32], "integral": 2, "multiplicity": "m"},
+              {"shift": 6.94, "integral": 1, "multiplicity": "t", "j": [7.4]},
+              {"shift": 6.90, "integral": 1, "multiplicity": "d", "j": [8.2]},
+              {"shift": 3.80, "integral": 3, "multiplicity": "s"}]
+    r2 = rank(candidates=cands, peaks_1h=peaks2)
+    assert r2.best.smiles == cands[1]
