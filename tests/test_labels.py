@@ -67,3 +67,9 @@ def test_where_the_label_went_is_read_from_the_pattern():
               {"shift": 3.80, "integral": 3, "multiplicity": "s"}]
     r2 = rank(candidates=cands, peaks_1h=peaks2)
     assert r2.best.smiles == cands[1]
+
+
+def test_generated_alternatives_name_a_labelled_group_with_d():
+    from shiftrank.chem.isomers import isomers
+    alts = isomers("[2H]c1ccc(OC)cc1")
+    assert len(alts) == 2 and all(a.relation.startswith("D moved") for a in alts)

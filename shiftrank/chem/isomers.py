@@ -142,6 +142,10 @@ def _rooted_smiles(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     atoms = _side(mol, root, ring_atom)
     if ring_atom in atoms:
         return ""
+    if any(mol.GetAtomWithIdx(i).GetAtomicNum() == 1 and mol.GetAtomWithIdx(i).GetIsotope() > 1 for i in atoms):
+        # a labelled group keeps its labels, written D and T as chemists do ('OC(D)(D)D', not 'OC([H])([H])[H]')
+        text = Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=True)
+        return text.replace("[2H]", "D").replace("[3H]", "T")
     return Chem.MolFragmentToSmiles(mol, atoms, rootedAtAtom=root, canonical=True, isomericSmiles=False)
 
 
