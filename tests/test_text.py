@@ -309,3 +309,37 @@ def test_a_section_printed_with_decimal_commas_throughout(source, text):
         [(p.shift, p.lo, p.hi, p.integral, p.multiplicity, tuple(p.j), p.count) for p in a.peaks]
     assert any("decimal commas read as decimal points throughout" in n for n in b.notes)
     assert not any("decimal comma" in n for n in a.notes)
+
+
+def test_the_first_proton_count_of_a_multiplet_is_its_integral():
+    # PMC4513202 (NMRExtractor dev file): the total, then its breakdown by group
+    h = read_nmr_text("1H NMR (CDCl3, 400 MHz): δ = 3.78–3.63 (m, 8H; 6H, OCH3, 2H, NH2: D2O exchangeable), "
+                      "1.06–0.78 (m, 4H; 3H, CH3, 1H, NH: D2O exchangeable)").section("1H")
+    assert [p.integral for p in h.peaks] == [8, 4]
+
+
+def test_j_values_printed_without_hz_stop_before_atom_labels_and_counts():
+    # PMC6222382, PMC5098229 and PMC7571065 (NMRExtractor dev file) with each 'Hz' left out, as some house
+    # styles print them: the locant after the J list is not a coupling
+    h = read_nmr_text("1H-NMR (400 MHz, DMSO-d6) δ 8.26 (d, 1 H, J = 4.0, 5′′-H), 7.66 (d, 1 H, J = 15.6, 3-H), "
+                      "7.14 (2H, d, J = 7.4, 2 × CHarom.), 6.92 (2H, d, J = 8.9, 1,4-disubstituted benzene), "
+                      "7.20 (2H, d, J = 8.0, H-2,6)").section("1H")
+    assert [p.j for p in h.peaks] == [(4.0,), (15.6,), (7.4,), (8.9,), (8.0,)]
+
+
+def test_j_without_an_equals_sign_keeps_integer_values():
+    # PMC7762786 (NMRExtractor dev file) prints 'J = 6, 2'; the same written 'J 6, 2' (no equals sign, a
+    # common house style) is the same two couplings, not a subscript '6,' and one J
+    for text in ("1H (400 MHz, DMSO-d6): δ 7.52 (1H, td, J = 6, 2)", "1H (400 MHz, DMSO-d6): δ 7.52 (1H, td, J 6, 2)"):
+        assert read_nmr_text(text).section("1H").peaks[0].j == (6.0, 2.0)
+    assert read_nmr_text("1H NMR δ 7.52 (1H, dd, J3,4 = 8.0, J = 2.0 Hz)").section("1H").peaks[0].j == (8.0, 2.0)
+
+
+def test_ppm_after_each_value_and_a_mangled_paste_with_real_unicode():
+    # PMC6274057 (NMRExtractor dev file) with 'ppm' written after each value, as some articles print it
+    c = read_nmr_text("13C-NMR (100 MHz, DMSO-d6) δ, ppm: 21.5 ppm (CH3), 33.7 ppm (CH2), "
+                      "Ar-C [120.5 ppm, 127.1 ppm, 130.5 ppm, 143.1], (C=N) [163.1 ppm, 165.5]").section("13C")
+    assert [p.shift for p in c.peaks] == [21.5, 33.7, 120.5, 127.1, 130.5, 143.1, 163.1, 165.5]
+    # PMC10216335's wrongly decoded text, pasted beside a real superscript: mended run by run
+    h = read_nmr_text("¹H-NMR (CDCl3, 400 MHz) Î´ 1.52â€“1.58 (m, 6H), 1.63 (quint, 2H, J = 7.44 Hz)").section("1H")
+    assert (h.peaks[0].lo, h.peaks[0].hi, h.peaks[0].integral) == (1.52, 1.58, 6)

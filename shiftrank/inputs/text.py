@@ -61,8 +61,11 @@ _LETTERS_THEN_INTEGRAL = re.compile(r"^(?P<letters>[A-Za-z][A-Za-z. ]{0,12}?)\s+
 #: a carbon count: "2C", "2 × CH", "2CH3", "CH2 × 2", "x 2", "2 x"; the H label (group h or c2) says CH/CH2/CH3
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?P<h>H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?P<c2>C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
-_JNUM = rf"{_NUM}(?![\d.])(?!\s*(?!Hz|and\b)[A-Za-z])"   # a J value: not the '1' of '1H' ('J = 7.9 and 4.8 Hz' is a list)
-_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:\s*[-_]?\s*[A-Za-z0-9,\-]{{0,8}})?(?:\s*\(\s*[A-Za-z]{{1,2}}\s*,\s*[A-Za-z]{{1,2}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+#: a J value: not the '1' of '1H' or '1Н' ('J = 7.9 and 4.8 Hz' is a list), nor, after a list printed without
+#: its 'Hz', an atom label or a count ('J = 4.0, 5′′-H', 'J = 15.6, 3-H', '3(9)-CH3', '2 × CH', '1,4-disubstituted')
+_JNUM = (r"[+-]?(?:\d+\.\d+|\d+(?!(?:,\d+)+-))(?![\d.])(?!\s*(?!Hz|and\b)[^\W\d_])"
+         r"(?![′″'’‘`]|-\s*[^\W\d_]|\(|\s*×)")
+_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:[-_]?[A-Za-z0-9,\-]{{0,8}}|\s*[-_]?\s*[A-Za-z][A-Za-z0-9,\-]{{0,7}})?(?:\s*\(\s*[A-Za-z]{{1,2}}\s*,\s*[A-Za-z]{{1,2}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
 
@@ -180,6 +183,20 @@ def _coupling(p: PrintedPeak) -> str | None:
     return m if m and m not in ("s", "br s", "br") else None
 
 
+#: a run of the characters UTF-8 bytes become when read as cp1252 or Latin-1
+_MOJIBAKE_RUN = re.compile("[\u00c0-\u00ff][\u0080-\u00bf\u0152\u0153\u0160\u0161\u0178\u017d\u017e\u0192"
+                           "\u02c6\u02dc\u2013\u2014\u2018-\u201e\u2020-\u2022\u2026\u2030\u2039\u203a\u20ac\u2122]+")
+
+
+def _mend_run(m: re.Match) -> str:
+    for enc in ("cp1252", "latin-1"):
+        try:
+            return m.group(0).encode(enc).decode("utf-8")
+        except (UnicodeEncodeError, UnicodeDecodeError):
+            continue
+    return m.group(0)
+
+
 def _repair(text: str) -> str:
     """Undo the usual encoding accident (UTF-8 read as Latin-1/cp1252) and normalise dashes and spaces."""
     if any(m in text for m in _MOJIBAKE):
@@ -189,6 +206,8 @@ def _repair(text: str) -> str:
                 break
             except (UnicodeEncodeError, UnicodeDecodeError):
                 continue
+        else:   # a paste mixing the accident with real unicode ('¹H-NMR … Î´ 1.52â€“1.58'): mend run by run
+            text = _MOJIBAKE_RUN.sub(_mend_run, text)
     text = text.translate(_SUPER)
     for ch in _DASHES:
         text = text.replace(ch, "-")
@@ -297,10 +316,8 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
     js: list[float] = []
     for m in _JVAL.finditer(d):
         js.extend(float(v) for v in re.findall(_NUM, m.group("vals")))
-    # the J list leaves a mark: open when it did not end in 'Hz' (a bare number after it may continue it)
-    d = _JVAL.sub(lambda m: " \x00closed " if m.group(0).rstrip().lower().endswith("hz") else " \x00open ", d)
+    d = _JVAL.sub(" ", d)
     leftovers = []
-    open_list = False
     parts = list(_split_top(d, ",;"))
     while parts:
         w = parts.pop(0).strip().strip(".").strip()
@@ -318,16 +335,16 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             if m and normalise_1h_multiplicity(_compact(m.group("letters"))) is not None:
                 parts[:0] = [m.group("letters"), m.group("n") + "H"]   # "br s 1H": letters and count without a comma
                 continue
-        if "\x00" in w:
-            open_list = "\x00open" in w
-            w = w.replace("\x00open", " ").replace("\x00closed", " ").strip()
         if not w:
             continue
         low = re.sub(r"\s+", " ", w.lower())
         compact = _compact(w)
         m = _INTEGRAL.match(w.replace(" ", "")) or _INTEGRAL.match(w)
-        if m:
+        if m and peak.integral is None:
             peak.integral = float(m.group("n") or m.group("n2"))
+            continue
+        if m:   # '(m, 8H; 6H, OCH3, 2H, NH2)': the first count is the multiplet's, the later ones a breakdown
+            leftovers.append(w)
             continue
         m = _CARBONS.match(w)
         if m and nucleus == "13C":
@@ -348,13 +365,12 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if nucleus == "13C" and compact in _DEPT and peak.dept is None:
             peak.dept = _DEPT[compact]
             continue
-        if re.fullmatch(rf"{_NUM}(\s*Hz)?", w) and (open_list or "hz" in low):
-            # a J list continued after a comma ("J = 8.4 Hz, 2.0 Hz"); a bare number after a list closed by
-            # 'Hz' is part of an assignment note ("CH3-Ph-3,5"), not a coupling
+        if re.fullmatch(rf"{_NUM}\s*Hz", w, re.I):
+            # a J list continued after a comma ("J = 8.4 Hz, 2.0 Hz"); a bare number after a J list is part of
+            # an assignment note ("CH3-Ph-3,5", "H-2,6"), not a coupling: the J pattern takes a list printed
+            # without 'Hz' whole ("J = 8.4, 2.0")
             js.append(float(re.match(_NUM, w).group(0)))
-            open_list = "hz" not in low
             continue
-        open_list = False
         if re.fullmatch(rf"{_NUM}\s*,?\s*{_NUM}?\s*Hz", w, re.I):
             js.extend(float(v) for v in re.findall(_NUM, w))
             continue
@@ -393,6 +409,8 @@ _PEAK_START = re.compile(r"[,;]\s*(?=(?:and\s+)?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\
 def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> None:
     body = _strip_lead(text.strip()).rstrip(".").strip()
     body = re.sub(r"\s*ppm\s*\.?\s*$", "", body)
+    # 'ppm' printed after each value ('21.5 ppm (CH3), 33.7 ppm', '[120.5 ppm, 127.1 ppm]', '28.7/28.0 ppm (8)')
+    body = re.sub(r"(?<=\d)\s*ppm\b(?=\s*(?:[,;/\])(\[]|$))", "", body)
     if not body:
         return
     fixed = _DECIMAL_COMMA.sub(r"\1.\2", body)
