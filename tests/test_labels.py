@@ -73,3 +73,27 @@ def test_generated_alternatives_name_a_labelled_group_with_d():
     from shiftrank.chem.isomers import isomers
     alts = isomers("[2H]c1ccc(OC)cc1")
     assert len(alts) == 2 and all(a.relation.startswith("D moved") for a in alts)
+
+
+def test_a_cd3_carbon_is_expected_as_a_septet_and_a_chd2_proton_as_a_small_quintet():
+    # spin-1 deuterium: n deuterons split a line into 2n + 1 (common practice); 1J(C,D) about 19–22 Hz for
+    # a CD3 group and 2J(H,D) about 2 Hz (from memory; the ranges are in chem/couplings.py)
+    from shiftrank.chem.couplings import carbon_multiplets, expected_multiplets, fit_cost
+    s = standardise(Chem.MolFromSmiles(D3), "d3").mol
+    f = structure_facts(D3)
+    cd3 = next(e for e in carbon_multiplets(s, f.carbon_classes) if e.atoms == [0])
+    assert cd3.letters() == "sept" and fit_cost(cd3, "sept", (21.0,), tolerance=2.0) == (0, 0)
+    other = next(e for e in carbon_multiplets(s, f.carbon_classes) if e.atoms == [7])
+    assert fit_cost(other, "sept", (21.0,), tolerance=2.0)[0] == 1
+    chd2 = standardise(Chem.MolFromSmiles("[2H]C([2H])Oc1ccccc1"), "d2").mol
+    e = next(e for e in expected_multiplets(chd2) if e.atoms == [0])
+    assert e.n_h == 1 and fit_cost(e, "p", (1.8,)) == (0, 0) and fit_cost(e, "s", ()) == (0, 0)
+
+
+def test_a_printed_cd3_septet_points_to_the_labelled_methyl():
+    # the 13C paragraph of a 4-methylanisole with one methyl labelled, shifts of 4-methylanisole
+    # (from memory); the OCD3 septet (about 0.6 ppm below OCH3: the isotope shift) says which methyl
+    text = ("13C NMR (101 MHz, CDCl3) δ 157.6, 129.9, 129.8, 113.8, 54.6 (sept, J = 22.0 Hz), 20.5.")
+    r = rank(text=text, candidates=["COc1ccc(C([2H])([2H])[2H])cc1", "[2H]C([2H])([2H])Oc1ccc(C)cc1"])
+    assert r.best.smiles == "[2H]C([2H])([2H])Oc1ccc(C)cc1"
+    assert not any("against its printed" in f for f in r.best.flags)

@@ -22,12 +22,14 @@ constants; the ranges below are recalled from such tables, "from memory", and de
 * H–C–P 10–25 Hz, H–C–X–P 3–25 Hz;
 * couplings to OH/NH protons (4–9 Hz) appear only when exchange is slow (DMSO-d6), so they are optional;
 * geminal H–C–H of a CH2 whose protons differ (next to a stereocentre, in a ring): 10–18 Hz, optional;
-* long-range couplings (para, benzylic, allylic, W) below 1.5 Hz: optional, at most one per signal.
+* long-range couplings (para, benzylic, allylic, W) below 1.5 Hz: optional, at most one per signal;
+* H–C–D geminal 1–2.6 Hz (the H–H value × γD/γH ≈ 0.15), often unresolved; vicinal H–D below 1 Hz, ignored.
 
 13C lines split by fluorine and phosphorus (common practice, e.g. the same tables; from memory):
 ¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho CH ≈ 21;
 a ring carbon without H next to an aryl C–F 8–25, ≈ 10–14 at C1 of 2-fluoroanisole or 2-fluoroaniline), ³J 2–12
-(aryl meta ≈ 8, CF3–C–C ≈ 4), ⁴J 0.5–4.5 (often unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz.
+(aryl meta ≈ 8, CF3–C–C ≈ 4), ⁴J 0.5–4.5 (often unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz;
+¹J(C,D) 17–34 Hz (a CD3 septet ≈ 19–22, the CDCl3 triplet ≈ 32); a CDn carbon shows 2n + 1 lines.
 
 The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
 constrain nothing; letters that no variant of the expected pattern produces, and J values that no
@@ -77,6 +79,9 @@ J_RANGES = {
     "CF1": ((230.0, 300.0), False), "CF2": ((15.0, 45.0), False), "CF2-sub": ((8.0, 25.0), False), "CF3": ((2.0, 12.0), False),
     "CF4": ((0.5, 4.5), True), "CP1": ((100.0, 200.0), False), "CP2": ((2.0, 30.0), False),
     "CP3": ((2.0, 30.0), True),
+    # deuterium (spin 1: n deuterons give 2n + 1 lines, carried as 2n partners): 13C of a CDn carbon and the
+    # proton left on a CHD or CHD2 group (see chem/labels.py)
+    "CD1": ((17.0, 34.0), False), "HD-geminal": ((1.0, 2.6), True),
 }
 _LETTERS = {"s": 1, "d": 2, "t": 3, "q": 4, "p": 5, "sext": 6, "sept": 7, "oct": 8, "non": 9}
 MAX_OPTIONAL = 4  # optional groups beyond this are always taken as unresolved (keeps the variants few)
@@ -380,7 +385,8 @@ class _Table:
         atoms = [mol.GetAtomWithIdx(i) for i in range(n)]
         self.z = [a.GetAtomicNum() for a in atoms]
         self.arom = [a.GetIsAromatic() for a in atoms]
-        self.nh = proton_counts(mol)   # 1H only: a 2H/3H neither shows nor splits (J(H,D) is not resolved)
+        self.nh = proton_counts(mol)   # 1H only: a 2H/3H neither shows nor splits its neighbours (J(H,D) < 1 Hz)
+        self.labels = labelled_hydrogens(mol)
         self.sp2 = [a.GetHybridization() == Chem.HybridizationType.SP2 for a in atoms]
         self.in_ring = [a.IsInRing() for a in atoms]
         self.adj: list[list[tuple[int, int, int]]] = [[] for _ in range(n)]   # (neighbour, bond type, bond index)
@@ -502,6 +508,8 @@ def _groups(mol: Chem.Mol, T: _Table, R: _RingIndex, ai: int, ranks: list[int], 
                 for di, _, _ in T.adj[ci]:
                     if z[di] == 9 and R.same(ai, ci):
                         add("HF-meta", 1, "F", ranks[di])
+    if T.labels.get(ai):
+        add("HD-geminal", 2 * T.labels[ai], "D", -4)   # CHD2: a quintet of about 2 Hz, often unresolved
     if nh[ai] == 2 and T.dbl_c[ai]:
         add("geminal-alkene", 1, "H", own)       # the two =CH2 protons are not equivalent in fact
     elif nh[ai] == 2 and z[ai] == 6 and not arom[ai] and (chiral or T.in_ring[ai]):
@@ -561,14 +569,18 @@ def _ring_carbon_without_h_beside_aryl_f(mol: Chem.Mol, a: int, f: int) -> bool:
 
 
 def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
-    """Expected C–F / C–P splitting of every carbon class (one to four bonds from F, one to three from P),
-    in the order of ``classes`` (objects with ``atoms``); a class far from F and P is a singlet."""
+    """Expected C–F / C–P / C–D splitting of every carbon class (one to four bonds from F, one to three from
+    P, deuterium on the carbon itself), in the order of ``classes`` (objects with ``atoms``); a class far
+    from F and P and without 2H is a singlet."""
     if ranks is None:
         ranks = symmetry_ranks(mol)
     hetero = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() in (9, 15)]
+    labels = labelled_hydrogens(mol)
     out = []
     if not hetero:
-        return [ExpectedMultiplet(list(c.atoms), len(c.atoms)) for c in classes]
+        return [ExpectedMultiplet(list(c.atoms), len(c.atoms),
+                                  [CouplingGroup("CD1", 2 * labels[c.atoms[0]], "D", -4)] if labels.get(c.atoms[0]) else [])
+                for c in classes]
     dist = Chem.GetDistanceMatrix(mol)
     for c in classes:
         a = c.atoms[0]
@@ -582,5 +594,7 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
             if kind:
                 counts[(kind, ranks[x])] = counts.get((kind, ranks[x]), 0) + 1
         groups = [CouplingGroup(k, n, "F" if k.startswith("CF") else "P", key) for (k, key), n in counts.items()]
+        if labels.get(a):
+            groups.append(CouplingGroup("CD1", 2 * labels[a], "D", -4))
         out.append(ExpectedMultiplet(list(c.atoms), len(c.atoms), groups))
     return out

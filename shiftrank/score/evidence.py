@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 import numpy as np
 from rdkit import Chem
 
+from ..chem.labels import labelled_hydrogens
 from ..chem.couplings import ExpectedMultiplet, carbon_multiplets, expected_multiplets, fit_cost
 from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
@@ -225,7 +226,7 @@ class CarbonEvidence(_Evidence):
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
-        if facts is None or _has_f_or_p(mol, facts):
+        if facts is None or _has_f_or_p(mol, facts) or labelled_hydrogens(mol):
             couplings = carbon_multiplets(mol, classes, ranks)
             for c, e in zip(classes, couplings):
                 c.expected = e
@@ -259,7 +260,7 @@ class CarbonEvidence(_Evidence):
         n_mm = sum(1 for p in res.assignment.pairings if not p.multiplicity_ok)
         if n_mm:
             out.append(f"{count(n_mm, '13C peak', '13C peaks')} assigned against {'its' if n_mm == 1 else 'their'} printed "
-                       "multiplicity (DEPT, C–F or C–P splitting)")
+                       "multiplicity (DEPT, or a C–F, C–P or C–D splitting)")
         return out
 
 
