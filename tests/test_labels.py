@@ -97,3 +97,17 @@ def test_a_printed_cd3_septet_points_to_the_labelled_methyl():
     r = rank(text=text, candidates=["COc1ccc(C([2H])([2H])[2H])cc1", "[2H]C([2H])([2H])Oc1ccc(C)cc1"])
     assert r.best.smiles == "[2H]C([2H])([2H])Oc1ccc(C)cc1"
     assert not any("against its printed" in f for f in r.best.flags)
+
+
+def test_sample_history_weighs_the_label():
+    # [M+H]+ of C8H7D3O: 122.0732 (C8H10O) + 3 × (2.0141 − 1.0078) + 1.0073 = 126.0993 (masses from memory)
+    peaks = [{"shift": 7.08, "integral": 2, "multiplicity": "d", "j": [8.5]},
+             {"shift": 6.80, "integral": 2, "multiplicity": "d", "j": [8.5]}, {"shift": 2.28, "integral": 3, "multiplicity": "s"}]
+    labelled, plain = "[2H]C([2H])([2H])Oc1ccc(C)cc1", "COc1ccc(C)cc1"
+    r = rank(candidates=[plain, labelled], peaks_1h=peaks, formula="C8H7D3O")
+    got = {c.smiles: c for c in r.candidates}
+    assert got[labelled].facts.formula == "C8H7D3O" and got[labelled].formula_ok and got[plain].formula_ok is False
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.08 (d, J = 8.5 Hz, 2H), 6.80 (d, J = 8.5 Hz, 2H), 2.28 (s, 3H). "
+            "HRMS (ESI) m/z [M + H]+ calcd for C8H8D3O 126.0993, found 126.0995.")
+    got = {c.smiles: c for c in rank(candidates=[plain, labelled], text=text).candidates}
+    assert got[labelled].formula_ok and got[plain].formula_ok is False

@@ -17,7 +17,7 @@ _PT = Chem.GetPeriodicTable()
 #: DBE; a sulfone or phosphate then shows its S=O / P=O bonds as extra DBE-free
 #: valence, which is the textbook convention.
 DBE_VALENCE = {
-    "H": 1, "D": 1, "F": 1, "Cl": 1, "Br": 1, "I": 1,
+    "H": 1, "D": 1, "T": 1, "F": 1, "Cl": 1, "Br": 1, "I": 1,
     "Li": 1, "Na": 1, "K": 1, "Rb": 1, "Cs": 1, "Ag": 1,
     "O": 2, "S": 2, "Se": 2, "Te": 2, "Mg": 2, "Ca": 2, "Zn": 2, "Hg": 2, "Cu": 2,
     "N": 3, "P": 3, "As": 3, "Sb": 3, "B": 3, "Al": 3,
@@ -34,15 +34,24 @@ def is_element(symbol: str) -> bool:
         return False
 
 
+#: hydrogen isotopes written as symbols of their own in formulas (mass number)
+HYDROGEN_ISOTOPES = {"D": 2, "T": 3}
+
+
 @lru_cache(maxsize=None)
 def average_mass(symbol: str) -> float:
-    """Standard atomic weight (g/mol), e.g. ``average_mass('C') -> 12.011``."""
+    """Standard atomic weight (g/mol), e.g. ``average_mass('C') -> 12.011``; D and T weigh their isotope's mass."""
+    if symbol in HYDROGEN_ISOTOPES:
+        return float(_PT.GetMassForIsotope(1, HYDROGEN_ISOTOPES[symbol]))
     return float(_PT.GetAtomicWeight(symbol))
 
 
 @lru_cache(maxsize=None)
 def monoisotopic_mass(symbol: str) -> float:
-    """Mass of the most abundant isotope (u), e.g. ``monoisotopic_mass('Cl') -> 34.96885``."""
+    """Mass of the most abundant isotope (u), e.g. ``monoisotopic_mass('Cl') -> 34.96885``; for D and T, the
+    mass of 2H and 3H."""
+    if symbol in HYDROGEN_ISOTOPES:
+        return float(_PT.GetMassForIsotope(1, HYDROGEN_ISOTOPES[symbol]))
     return float(_PT.GetMostCommonIsotopeMass(symbol))
 
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 import re
 from collections import Counter
 
-from .elements import average_mass, dbe_valence, is_element, monoisotopic_mass
+from .elements import HYDROGEN_ISOTOPES, average_mass, dbe_valence, is_element, monoisotopic_mass
 from ..errors import InputError
 
 _TOKEN = re.compile(r"([A-Z][a-z]?)(\d*)")
@@ -21,8 +21,8 @@ _ELECTRON = 0.000548579909  # electron mass (u), CODATA 2018
 def parse_formula(text: str) -> Counter:
     """Parse a neutral molecular formula such as ``C6H5Br`` into element counts.
 
-    Refuses isotope labels (``D``, ``T``), charges, brackets and anything that
-    is not element symbols followed by counts, with a message naming the problem.
+    ``D`` and ``T`` (2H, 3H) are counted as symbols of their own.  Refuses charges, brackets and anything
+    that is not element symbols followed by counts, with a message naming the problem.
 
     >>> dict(parse_formula("C2H6O"))
     {'C': 2, 'H': 6, 'O': 1}
@@ -42,9 +42,7 @@ def parse_formula(text: str) -> Counter:
         if m.start() != pos:
             break
         sym, num = m.group(1), m.group(2)
-        if sym in ("D", "T"):
-            raise InputError(f"formula '{text}': isotope label '{sym}' is not supported; count it as H")
-        if not is_element(sym):
+        if sym not in HYDROGEN_ISOTOPES and not is_element(sym):
             raise InputError(f"formula '{text}': '{sym}' is not an element symbol")
         n = int(num) if num else 1
         if n == 0:
@@ -196,11 +194,23 @@ def _one_part(s: str) -> tuple[Counter, int]:
     return parse_formula(s.strip("[] ")), charge
 
 
+def fold_isotopes(counts: dict) -> dict:
+    """Element counts with D and T counted as H."""
+    if not any(k in counts for k in HYDROGEN_ISOTOPES):
+        return dict(counts)
+    out = {k: v for k, v in counts.items() if k not in HYDROGEN_ISOTOPES}
+    out["H"] = out.get("H", 0) + sum(counts.get(k, 0) for k in HYDROGEN_ISOTOPES)
+    return out
+
+
 def formula_matches(candidate: dict, sample: Counter | dict, charge: int = 0) -> bool:
     """True when a candidate's element counts equal the sample's, allowing |charge| H of difference
     (protonation state) when the sample formula was given with a charge."""
     a = {k: v for k, v in candidate.items() if v}
     b = {k: v for k, v in dict(sample).items() if v}
+    if not any(k in b for k in HYDROGEN_ISOTOPES):
+        # a sample formula without D or T counts a labelled compound's 2H/3H as H
+        a = fold_isotopes(a)
     if a == b:
         return True
     if not charge:

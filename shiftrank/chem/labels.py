@@ -16,13 +16,13 @@ spectra see does change, and the labels are remembered for it:
   routine spectra resolve); only atoms of one symmetry class that carry different labels are told apart
   (:func:`split_by_labels`).
 
-The labels travel as one molecule property (``atom:count`` pairs), which RDKit copies with the
-molecule.
+The labels travel as one molecule property (``atom:2H count:3H count``), which RDKit copies with the
+molecule.  Formula and masses count them as D and T (``C8H7D3O``; :func:`isotope_totals`).
 
 >>> m = Chem.MolFromSmiles("COc1ccc(OC)cc1")
 >>> set_labels(m, {0: 3})
->>> labelled_hydrogens(m), proton_counts(m)[:2]
-({0: 3}, [0, 0])
+>>> labelled_hydrogens(m), proton_counts(m)[:2], isotope_totals(m)
+({0: 3}, [0, 0], {'D': 3})
 """
 from __future__ import annotations
 
@@ -32,24 +32,40 @@ from rdkit import Chem
 LABEL_PROP = "shiftrank_h_isotopes"
 
 
-def set_labels(mol: Chem.Mol, counts: dict[int, int]) -> None:
-    """Record ``counts`` (heavy-atom index → number of its hydrogens that are 2H or 3H) on ``mol``."""
-    counts = {int(i): int(n) for i, n in counts.items() if n > 0}
-    if counts:
-        mol.SetProp(LABEL_PROP, ";".join(f"{i}:{n}" for i, n in sorted(counts.items())))
+def set_labels(mol: Chem.Mol, counts: dict) -> None:
+    """Record ``counts`` on ``mol``: heavy-atom index → number of its hydrogens that are 2H, or a pair
+    (number of 2H, number of 3H)."""
+    pairs = {}
+    for i, n in counts.items():
+        d, t = (n, 0) if isinstance(n, int) else (int(n[0]), int(n[1]))
+        if d + t > 0:
+            pairs[int(i)] = (d, t)
+    if pairs:
+        mol.SetProp(LABEL_PROP, ";".join(f"{i}:{d}:{t}" for i, (d, t) in sorted(pairs.items())))
     elif mol.HasProp(LABEL_PROP):
         mol.ClearProp(LABEL_PROP)
 
 
-def labelled_hydrogens(mol: Chem.Mol) -> dict[int, int]:
-    """Heavy-atom index → number of its hydrogens that are isotope labels (empty for most molecules)."""
+def _pairs(mol: Chem.Mol) -> dict[int, tuple[int, int]]:
     if not mol.HasProp(LABEL_PROP):
         return {}
     out = {}
     for item in mol.GetProp(LABEL_PROP).split(";"):
-        i, n = item.split(":")
-        out[int(i)] = int(n)
+        i, d, t = item.split(":")
+        out[int(i)] = (int(d), int(t))
     return out
+
+
+def labelled_hydrogens(mol: Chem.Mol) -> dict[int, int]:
+    """Heavy-atom index → number of its hydrogens that are isotope labels (empty for most molecules)."""
+    return {i: d + t for i, (d, t) in _pairs(mol).items()}
+
+
+def isotope_totals(mol: Chem.Mol) -> dict[str, int]:
+    """How many of the molecule's hydrogens are 2H ('D') and 3H ('T'), e.g. ``{'D': 3}``; empty when none."""
+    d = sum(x for x, _ in _pairs(mol).values())
+    t = sum(y for _, y in _pairs(mol).values())
+    return {k: v for k, v in (("D", d), ("T", t)) if v}
 
 
 def proton_counts(mol: Chem.Mol) -> list[int]:
@@ -65,17 +81,17 @@ def strip_labelled_hydrogens(mol: Chem.Mol) -> tuple[Chem.Mol, list[int]]:
     """``mol`` with its explicit hydrogens, 2H and 3H included, removed and the labels recorded
     (:func:`set_labels`), and the original index of each remaining atom."""
     mol = Chem.Mol(mol)
-    counts: dict[int, int] = {}
+    counts: dict[int, list[int]] = {}
     for a in mol.GetAtoms():
         if a.GetAtomicNum() == 1 and a.GetIsotope() > 1:   # 2H, 3H ([1H] is a plain proton)
             for nb in a.GetNeighbors():
-                counts[nb.GetIdx()] = counts.get(nb.GetIdx(), 0) + 1
+                counts.setdefault(nb.GetIdx(), [0, 0])[0 if a.GetIsotope() == 2 else 1] += 1
         if a.GetAtomicNum() == 1:
             a.SetIsotope(0)
     heavy = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() > 1]
     new_index = {old: k for k, old in enumerate(heavy)}
     out = Chem.RemoveHs(mol, sanitize=True)
-    set_labels(out, {new_index[i]: n for i, n in counts.items() if i in new_index})
+    set_labels(out, {new_index[i]: tuple(n) for i, n in counts.items() if i in new_index})
     return out, heavy
 
 

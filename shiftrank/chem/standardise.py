@@ -23,7 +23,7 @@ from rdkit import Chem
 from rdkit.Chem.MolStandardize import rdMolStandardize
 
 from ..errors import InputError
-from .labels import labelled_hydrogens, set_labels, strip_labelled_hydrogens
+from .labels import _pairs, set_labels, strip_labelled_hydrogens
 
 #: Largest molecule (heavy atoms) the tool describes and predicts; beyond it the request is refused.
 MAX_HEAVY_ATOMS = 250
@@ -108,7 +108,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         raise InputError(f"{label}: {mol.GetNumHeavyAtoms()} heavy atoms; the limit is {MAX_HEAVY_ATOMS}")
     atoms = list(map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     iso = [a for a in atoms if a.GetIsotope()]
-    labels: dict[int, int] = {}
+    labels: dict[int, tuple[int, int]] = {}
     if iso:
         mol = Chem.Mol(mol)
         deut = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() == 1 and a.GetIsotope()]
@@ -121,7 +121,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
             # explicit [2H]/[3H] atoms become ordinary hydrogens, removed like any explicit H; how many
             # each heavy atom carried is kept (:mod:`.labels`: they give no 1H line and no DEPT/HSQC proton)
             mol, heavy_before = strip_labelled_hydrogens(mol)
-            labels = labelled_hydrogens(mol)
+            labels = _pairs(mol)
             atom_map = [atom_map[i] for i in heavy_before]
     charged = any(a.GetFormalCharge() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     if charged:
@@ -136,7 +136,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
             mol = neutral
     if labels:
         set_labels(mol, labels)   # the uncharger may have made a new molecule
-        n_lab = sum(labels.values())
+        n_lab = sum(d + t for d, t in labels.values())
         notes.append(f"{n_lab} hydrogen isotope label(s) on atom(s) {', '.join(str(atom_map[i]) for i in sorted(labels))}: "
                      "no 1H signal and no DEPT/HSQC proton there")
     return Standardised(mol, atom_map, notes)

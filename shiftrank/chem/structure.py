@@ -11,7 +11,7 @@ from dataclasses import dataclass, field
 
 from rdkit import Chem
 
-from .labels import labelled_hydrogens, proton_counts, split_by_labels, strip_labelled_hydrogens
+from .labels import isotope_totals, labelled_hydrogens, proton_counts, split_by_labels, strip_labelled_hydrogens
 from .formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight
 from ..inputs.molecules import to_mol
 
@@ -276,6 +276,9 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
     for a in _atoms(mol):
         counts[a.GetSymbol()] += 1
         counts["H"] += a.GetTotalNumHs()
+    for sym, n in isotope_totals(mol).items():   # 2H and 3H as D and T (formula and masses)
+        counts["H"] -= n
+        counts[sym] += n
     if counts["H"] == 0:
         del counts["H"]
     classes = carbon_classes(mol, ranks)
