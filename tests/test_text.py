@@ -343,3 +343,11 @@ def test_ppm_after_each_value_and_a_mangled_paste_with_real_unicode():
     # PMC10216335's wrongly decoded text, pasted beside a real superscript: mended run by run
     h = read_nmr_text("¹H-NMR (CDCl3, 400 MHz) Î´ 1.52â€“1.58 (m, 6H), 1.63 (quint, 2H, J = 7.44 Hz)").section("1H")
     assert (h.peaks[0].lo, h.peaks[0].hi, h.peaks[0].integral) == (1.52, 1.58, 6)
+
+
+def test_a_j_printed_as_a_bare_number_after_splitting_letters():
+    # PMC10139140 (NMRExtractor dev file) prints its J values bare, announced in the header ('J Hz'); a bare
+    # number after a singlet or a multiplet stays a note
+    h = read_nmr_text("1H-NMR (700 MHz, CDCl3, δ ppm, J Hz): 4.33 (q, 1H, C5-H, 7.7), 3.89 (s, 1H, NH), "
+                      "1.81 (d, 1H, CH3, 7.7), 7.30 (dd, 8.4, 2.0, 1H), 3.50 (m, 1.5, 2H)").section("1H")
+    assert [p.j for p in h.peaks] == [(7.7,), (), (7.7,), (8.4, 2.0), ()]

@@ -374,6 +374,11 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if re.fullmatch(rf"{_NUM}\s*,?\s*{_NUM}?\s*Hz", w, re.I):
             js.extend(float(v) for v in re.findall(_NUM, w))
             continue
+        if (nucleus == "1H" and re.fullmatch(r"\d{1,2}\.\d{1,2}", w) and 0.3 <= float(w) <= 25.0
+                and re.fullmatch(r"(?:br\s)?[dtqp]+|sext|sept", peak.multiplicity or "")):
+            # '(d, 5.4, 2H)': a J printed with neither 'J' nor 'Hz', after letters that have splittings
+            js.append(float(w))
+            continue
         if (nucleus == "1H" and peak.multiplicity is not None and peak.integral is None and not leftovers
                 and re.fullmatch(r"[1-9]\d?", w)):
             # "(t, 2, J = 7.1 Hz, CH2Cl)": the proton count without its 'H', after the letters; a bare
