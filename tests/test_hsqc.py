@@ -98,3 +98,13 @@ def test_phase_column_of_a_file_reaches_the_ranking(tmp_path, capsys):
     assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC, "--json"]) == 0
     res = json.loads(capsys.readouterr().out)["ranking"][0]["nuclei"]["HSQC"]
     assert res["cost_parts"]["multiplicity"] > 0
+
+
+def test_cross_peaks_printed_in_the_paragraph_are_used():
+    # 4-methylanisole against its positional isomers, shifts in CDCl3 from memory
+    from shiftrank.score.ranking import rank as rank_text
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.5 Hz, 2H), 6.82 (d, J = 8.5 Hz, 2H), 3.78 (s, 3H), 2.29 (s, 3H).\n"
+            "HSQC (CDCl3) δC/δH: 129.9/7.10, 113.8/6.82, 55.3/3.78, 20.5/2.29.")
+    r = rank_text(text=text, candidates=["COc1cccc(C)c1", "COc1ccc(C)cc1", "COc1ccccc1C"])
+    assert r.best.smiles == "COc1ccc(C)cc1" and set(r.best.nuclei) == {"1H", "HSQC"}
+    assert r.best.nuclei["HSQC"].observed_signals == 4

@@ -351,3 +351,29 @@ def test_a_j_printed_as_a_bare_number_after_splitting_letters():
     h = read_nmr_text("1H-NMR (700 MHz, CDCl3, δ ppm, J Hz): 4.33 (q, 1H, C5-H, 7.7), 3.89 (s, 1H, NH), "
                       "1.81 (d, 1H, CH3, 7.7), 7.30 (dd, 8.4, 2.0, 1H), 3.50 (m, 1.5, 2H)").section("1H")
     assert [p.j for p in h.peaks] == [(7.7,), (), (7.7,), (8.4, 2.0), ()]
+
+
+def test_an_hsqc_section_is_read_as_cross_peaks():
+    # 4-methylanisole, shifts in CDCl3 from memory; the HSQC written as chemists print it in a paragraph
+    t = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.08 (d, J = 8.5 Hz, 2H), 6.80 (d, J = 8.5 Hz, 2H), 3.78 (s, 3H). "
+                      "13C NMR (101 MHz, CDCl3) δ 157.6, 129.9. HSQC (CDCl3) δC/δH: 129.9/7.08, 113.8/6.80, "
+                      "55.3/3.78, 41.2/2.95-3.10 (CH2).")
+    assert [p.shift for p in t.section("13C").peaks] == [157.6, 129.9]   # the pairs stay out of the 13C list
+    hs = t.hsqc()
+    assert hs.pairs == [(129.9, 7.08), (113.8, 6.80), (55.3, 3.78), (41.2, 2.95), (41.2, 3.10)]
+    assert hs.kinds[-1] == "CH2"
+    # the proton shift first when the header says so; by size (with a note) when it says nothing
+    assert read_nmr_text("1H-13C HSQC (DMSO-d6) δH/δC 7.08/129.9, 0.10/-1.2").hsqc().pairs == [(129.9, 7.08), (-1.2, 0.10)]
+    guessed = read_nmr_text("HMQC: 7.08/129.9, 3.78/55.3").hsqc()
+    assert guessed.pairs == [(129.9, 7.08), (55.3, 3.78)] and "by size" in guessed.notes[0]
+
+
+def test_hsqc_named_in_prose_or_in_an_assignment_is_no_section():
+    # PMC7672604 (NMRExtractor dev file): 'Carbon signals were observed indirectly, using HSQC or HMBC
+    # experiments. δC 162.1 (C-4′), …' is a 13C list
+    c = read_nmr_text("13C-NMR (DMSO-d6): solubility was low. Carbon signals were observed indirectly, using HSQC or "
+                      "HMBC experiments. δC 162.1 (C-4′), 154.9 (C-6), 143.4 (C-4)")
+    assert [p.shift for p in c.section("13C").peaks] == [162.1, 154.9, 143.4] and c.hsqc() is None
+    c = read_nmr_text("13C NMR (101 MHz, CDCl3) δ 128.4 (CH, from HSQC), 55.3.")
+    assert [p.shift for p in c.section("13C").peaks] == [128.4, 55.3]
+    assert [p.shift for p in read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26.").section("1H").peaks] == [7.26]

@@ -25,7 +25,8 @@ from dataclasses import dataclass, field
 
 from ..errors import InputError
 from ..words import count
-from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, merge_duplicates, normalise_1h_multiplicity
+from .peaks import (HSQC_KINDS, RANGES, HsqcList, Peak, PeakList, check_count, flag_solvent, hsqc_list, merge_duplicates,
+                    normalise_1h_multiplicity)
 from .solvents import normalise_solvent
 
 #: Ratio of the 1H to the 13C Larmor frequency (gyromagnetic ratios; 400 MHz 1H ≈ 100.6 MHz 13C).
@@ -46,7 +47,14 @@ _HEADER = re.compile(
     r"|(?<![A-Za-z0-9])(?P<bare>NMR)\b"
     # the 'δH (400 MHz; CDCl3) 7.26 …' / 'δC (101 MHz, CDCl3) …' style: δ with the nucleus, then conditions
     # in brackets that give the field (a bare 'δH 7.13' inside a section is no header)
-    r"|δ\s?(?P<el4>H|C)(?=\s*\([^()]*MHz[^()]*\))", re.I)
+    r"|δ\s?(?P<el4>H|C)(?=\s*\([^()]*MHz[^()]*\))"
+    # one-bond 1H–13C correlations printed as δC/δH pairs: 'HSQC (CDCl3): 128.4/7.26, …', '1H–13C HSQC', 'HMQC'
+    r"|(?<![A-Za-z0-9])(?P<hsqc>(?:(?:1H\s*[-,/]?\s*13C|13C\s*[-,/]?\s*1H)[\s-]*)?(?:(?:multiplicity[\s-]*)?edited[\s-]*)?"
+    r"(?:HSQC|HMQC))(?![A-Za-z])", re.I)
+#: a cross peak of an HSQC section: 'δ/δ', the second value possibly a range ('41.2/2.95-3.10'), then an optional
+#: phase or CHn in brackets
+_HSQC_PAIR = re.compile(r"(?<![\d.])(?P<a>[+-]?\d{1,3}(?:\.\d+)?)\s*/\s*(?P<b>[+-]?\d{1,3}(?:\.\d+)?)"
+                        r"(?:\s*-\s*(?P<b2>\d{1,3}\.\d+))?(?!\d|\.\d)(?:\s*\(\s*(?P<kind>[^()]{1,12}?)\s*\))?")
 #: superscript and subscript digits as printed in '¹³C NMR' and 'CDCl₃'
 _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹₀₁₂₃₄₅₆₇₈₉", "01234567890123456789")
 _NUM = r"[+-]?\d+(?:\.\d+)?"
@@ -80,6 +88,7 @@ class PrintedPeak:
     multiplicity: str | None = None  # printed letters, normalised: s, d, dd, td, br s, m, ABq …
     j: tuple = ()                   # coupling constants (Hz) as printed
     count: int = 1                  # 13C: carbons at this value ("2C")
+    shift_h: float | None = None    # HSQC: the proton shift of the cross peak (``shift`` is δC)
     dept: str | None = None         # 13C: C/CH/CH2/CH3 when printed (DEPT)
     note: str = ""                  # assignment text, kept, not used
     fragment: str = ""              # the printed text of this peak
@@ -122,6 +131,17 @@ class NmrText:
             if s.solvent:
                 return s.solvent
         return None
+
+    def hsqc(self, source: str = "HSQC text") -> HsqcList | None:
+        """The cross peaks of the first HSQC/HMQC section as an :class:`~shiftrank.inputs.peaks.HsqcList`
+        (None when the text prints none)."""
+        sec = self.section("HSQC")
+        if sec is None or not sec.peaks:
+            return None
+        records = [[p.shift, p.shift_h] + ([p.dept] if p.dept else []) for p in sec.peaks]
+        out = hsqc_list(records, source)
+        out.notes.extend(sec.notes)
+        return out
 
     def peaklist(self, nucleus: str, solvent: str | None = None, source: str = "text") -> PeakList | None:
         """The section's peaks as a :class:`~shiftrank.inputs.peaks.PeakList` (None when absent)."""
@@ -234,6 +254,8 @@ def _split_top(text: str, seps: str = ",;") -> list[str]:
 
 
 def _nucleus(m: re.Match) -> str | None:
+    if m.group("hsqc"):
+        return "HSQC"
     if m.group("bare"):
         return None  # "NMR (300 MHz, CDCl3) δ …": the nucleus is read from the values
     el = (m.group("el") or m.group("el2") or m.group("el3") or m.group("el4") or "").upper()
@@ -269,7 +291,7 @@ def _read_conditions(sec: TextSection, cond: str) -> None:
             sec.notes.append(f"solvent '{part}' has no residual-signal table here; its signals are not set aside")
 
 
-_FIRST_SHIFT = re.compile(r"(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s*(?:(?:-|~|to)\s*\d{1,3}\.\d+\s*)?(?:ppm\s*)?(?:[(\[,;/]|and\b|$))")
+_FIRST_SHIFT = re.compile(r"(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s*(?:(?:-|~|to)\s*\d{1,3}\.\d+\s*)?(?:ppm\s*)?(?:[(\[,;/]|and\b|\.?\s*$))")
 
 
 _FIRST_INTEGER = re.compile(r"(?<![A-Za-z0-9.,/])\d{1,3}(?=\s*[,;]\s*\d{1,3}\s*[,;]\s*\d{1,3}\b)")
@@ -536,7 +558,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         raise InputError(f"{source}: text of {len(text):,} characters exceeds the limit of {MAX_TEXT:,}; "
                          "give the characterisation paragraphs only")
     t = _repair(text)
-    heads = list(_HEADER.finditer(t))
+    heads = _real_heads(t, list(_HEADER.finditer(t)))
     out = NmrText([])
     spans = [(h.start(), h.end(), _nucleus(h), h.group(0).strip()) for h in heads]
     if not spans:
@@ -572,6 +594,10 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             if m:
                 cond, peaks_text = m.group(1), peaks_text[m.end():]
         _read_conditions(sec, cond)
+        if sec.nucleus == "HSQC":
+            _read_hsqc(sec, header + " " + cond, peaks_text)
+            out.sections.append(sec)
+            continue
         peaks_text = _strip_trailer(peaks_text)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
@@ -582,6 +608,57 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         why = "; ".join(n for s in out.sections for n in s.notes[:2])
         raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))
     return out
+
+
+def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:
+    """The header matches that open a section: an 'HSQC'/'HMQC' inside brackets ('128.4 (CH, from HSQC)') or
+    not followed by any δ/δ pair before the next header ('observed using HSQC or HMBC experiments. δC 162.1,
+    …') is a word of the paragraph, not a section."""
+    if not any(h.group("hsqc") for h in heads):
+        return heads
+    out = []
+    for k, h in enumerate(heads):
+        if h.group("hsqc"):
+            before = t[:h.start()]
+            if before.count("(") > before.count(")") or before.count("[") > before.count("]"):
+                continue
+            end = heads[k + 1].start() if k + 1 < len(heads) else len(t)
+            if not _HSQC_PAIR.search(t, h.end(), end):
+                continue
+        out.append(h)
+    return out
+
+
+def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
+    """Cross peaks 'δC/δH' of an HSQC or HMQC section.  The order is δC/δH unless the text says 'δH/δC' (or
+    '1H/13C'); without either, the larger value of a pair is taken as δC (a protonated carbon's shift in ppm
+    exceeds its protons' except near 0 ppm, e.g. a silyl methyl), with a note."""
+    order = None
+    m = re.search(r"δ\s?([HC])\s*/\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
+    if m:
+        first = (m.group(1) or m.group(3) or "").upper()
+        order = "HC" if first in ("H", "1H") else "CH"
+    guessed = 0
+    for pm in _HSQC_PAIR.finditer(text):
+        a, b = float(pm.group("a")), float(pm.group("b"))
+        if order == "HC" or (order is None and b > a):
+            if pm.group("b2"):   # 'δH-range/δC' is not a form in use; read the pair as printed
+                continue
+            c, hs = b, [a]
+        else:
+            c, hs = a, [b] + ([float(pm.group("b2"))] if pm.group("b2") else [])
+        if order is None and min(a, b) < 0.5 and max(a, b) < 5:
+            guessed += 1
+        kind = None
+        if pm.group("kind"):
+            kind = HSQC_KINDS.get(pm.group("kind").replace(" ", "")) or HSQC_KINDS.get(pm.group("kind").strip().lower())
+        for h in hs:
+            sec.peaks.append(PrintedPeak(c, shift_h=h, dept=kind, fragment=pm.group(0)))
+    if sec.peaks and order is None:
+        sec.notes.append("HSQC pairs read as δC/δH by size (the larger value as δC); write 'δC/δH' or 'δH/δC' "
+                         "in the header to fix the order" + (f"; {guessed} pair(s) near 0 ppm are uncertain" if guessed else ""))
+    if not sec.peaks and re.search(r"\d", text):
+        sec.notes.append(f"no δC/δH pairs read in the HSQC section '{_clip(text)}'")
 
 
 def _clip(text: str, n: int = 60) -> str:

@@ -551,11 +551,16 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
         notes.extend(pl.notes)
     if case.get("hsqc") is not None:
         out["HSQC"] = hsqc_list(case["hsqc"], "hsqc")
+    elif parsed is not None:
+        hs = parsed.hsqc()   # an HSQC/HMQC section printed with the paragraph: δC/δH pairs
+        if hs is not None:
+            out["HSQC"] = hs
+            notes.extend(f"text: {n}" for n in hs.notes)
     if not out:
         raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
     if parsed is not None:
         for sec in parsed.sections:
-            if sec.nucleus not in NUCLEI and sec.peaks:
+            if sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
         solvent = parsed.solvent
