@@ -111,3 +111,11 @@ def test_sample_history_weighs_the_label():
             "HRMS (ESI) m/z [M + H]+ calcd for C8H8D3O 126.0993, found 126.0995.")
     got = {c.smiles: c for c in rank(candidates=[plain, labelled], text=text).candidates}
     assert got[labelled].formula_ok and got[plain].formula_ok is False
+
+
+def test_the_labelled_carbon_is_predicted_with_its_isotope_shift():
+    # one-bond 2H isotope shift of 13C about -0.3 ppm per deuteron (from memory; CDCl3 77.16 against CHCl3
+    # 77.36 in Fulmer et al. 2010); the other carbons keep their values
+    lab, plain = predict(D3), predict("COc1ccc(OC)cc1")
+    assert abs((lab.shifts[1] - plain.shifts[0]) - 3 * -0.3) < 1e-6
+    assert abs(lab.shifts[10] - plain.shifts[7]) < 1e-6

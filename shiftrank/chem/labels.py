@@ -1,10 +1,11 @@
 """Hydrogen isotope labels (2H, 3H) kept as facts of the parent structure.
 
 Standardisation reads a deuterium or tritium atom as a plain hydrogen, so that the shift models, which
-know natural-abundance molecules only, predict a CD3 group as the CH3 group it resembles (the isotope
-shifts are small: about −0.3 ppm per 2H on the carbon that carries it, a few hundredths of a ppm in 1H;
-from memory).  What the
-spectra see does change, and the labels are remembered for it:
+know natural-abundance molecules only, predict a CD3 group as the CH3 group it resembles; the one-bond
+isotope shift of the carbon that carries the label (about −0.3 ppm per 2H) is then added to its 13C
+prediction (:data:`shiftrank.prediction.environment.ISOTOPE_SHIFT_13C`), smaller ones (a few hundredths of
+a ppm in 1H, a tenth two bonds away in 13C; from memory) are left out.  What the spectra see changes, and
+the labels are remembered for it:
 
 * a 2H or 3H gives no line in a 1H spectrum, so an atom whose hydrogens are all labelled has no 1H
   signal, and a CHD2 group integrates for one proton;

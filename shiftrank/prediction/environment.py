@@ -51,6 +51,9 @@ _NT = len(_TYPES)
 _HYB = {Chem.HybridizationType.SP: 1, Chem.HybridizationType.SP2: 2, Chem.HybridizationType.SP3: 3}
 _SOLVENT_CODE = {"CDCl3": 1, "DMSO-d6": 2, "CD3OD": 3}
 NUCLEI = ("13C", "1H")
+#: ppm per 2H (or 3H) on a carbon: the one-bond deuterium isotope shift of 13C, about −0.2 to −0.4 ppm per
+#: deuteron (from memory; compare CDCl3 at 77.16 with CHCl3 at 77.36 ppm in CDCl3, Fulmer et al. 2010)
+ISOTOPE_SHIFT_13C = -0.3
 
 
 def _ring_sizes(mol: Chem.Mol) -> list[set[int]]:
@@ -117,6 +120,7 @@ class MolEnvironments:
     eccentricity: np.ndarray  # bonds from each centre to the farthest atom (large if fragments)
     nucleus: str = "13C"
     ring_keys: np.ndarray | None = None  # (n_centres, 3) uint32 ring-system keys (:mod:`.ring_systems`; 13C)
+    offsets: np.ndarray | None = None    # (n_centres,) ppm added to the prediction (isotope shift; see mol_parts)
 
 
 
@@ -139,6 +143,7 @@ class MolParts:
     preds: tuple | None = None         # (shifts, sigmas) once predicted, for a caller that caches these parts
     pi: np.ndarray | None = None       # (n, 3) Hückel π charge, π membership, π bond-order sum per atom
     ring_keys: np.ndarray | None = None  # (n_centres, 3) ring-system keys of the centres (13C only)
+    offsets: np.ndarray | None = None    # (n_centres,) ppm added to the prediction: the 13C isotope shift of 2H/3H
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", pi: np.ndarray | None = None) -> MolParts:
@@ -179,6 +184,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     else:
         labels = labelled_hydrogens(mol)   # an atom whose H are all 2H/3H has no 1H shift to predict
         centres = np.array([i for i, row in enumerate(info) if row[5] - labels.get(i, 0) > 0], dtype=np.int64)
+    labels_13c = labelled_hydrogens(mol) if nucleus == "13C" else None
     rings = list(mol.GetRingInfo().AtomRings())
     smallest = [0] * n
     for ring in rings:
@@ -202,8 +208,12 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     # where each carbon sits in its ring system (measured no help for 1H, so not computed there)
     keys = (ring_keys(mol, centres, (info, [(i, j, int(t)) for i, j, t, _ in bond_list], rings))
             if nucleus == "13C" else None)
+    offsets = None
+    if nucleus == "13C" and labels_13c:
+        # the models know unlabelled molecules: a carbon carrying n 2H/3H is predicted ISOTOPE_SHIFT_13C × n lower
+        offsets = np.array([ISOTOPE_SHIFT_13C * labels_13c.get(int(c), 0) for c in centres], dtype=np.float64)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
-                    pi=pi, ring_keys=keys)
+                    pi=pi, ring_keys=keys, offsets=offsets)
 
 
 def pi_columns(info, bonds: np.ndarray) -> np.ndarray:
@@ -476,7 +486,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
                       for p in parts]) if NC else np.zeros((0, len(KEY_NAMES)), np.uint32)
     return [MolEnvironments(p.centres, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
                             p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.centres)), nucleus,
-                            keys[c_off[i]:c_off[i + 1]])
+                            keys[c_off[i]:c_off[i + 1]], p.offsets)
             for i, p in enumerate(parts)]
 
 

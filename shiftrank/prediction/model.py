@@ -164,8 +164,11 @@ class ShiftModel:
     def predict_env_arrays(self, envs: list[MolEnvironments]):
         """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""
         keys = np.vstack([e.ring_keys for e in envs]) if self.ring_tables is not None else None
-        return self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
-                                   np.concatenate([e.eccentricity for e in envs]), keys)
+        mu, sigma, radius, count = self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
+                                                       np.concatenate([e.eccentricity for e in envs]), keys)
+        if any(e.offsets is not None for e in envs):   # isotope shifts of labelled carbons
+            mu = mu + np.concatenate([e.offsets if e.offsets is not None else np.zeros(len(e.centres)) for e in envs])
+        return mu, sigma, radius, count
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
         """Predict many molecules in one model call (fast path for batches)."""
