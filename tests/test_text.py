@@ -377,3 +377,10 @@ def test_hsqc_named_in_prose_or_in_an_assignment_is_no_section():
     c = read_nmr_text("13C NMR (101 MHz, CDCl3) δ 128.4 (CH, from HSQC), 55.3.")
     assert [p.shift for p in c.section("13C").peaks] == [128.4, 55.3]
     assert [p.shift for p in read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26.").section("1H").peaks] == [7.26]
+
+
+def test_a_value_stated_in_a_sentence_is_read_with_a_note():
+    # PMC6651776 (NMRExtractor dev file) describes its 1H spectrum in prose
+    h = read_nmr_text("In addition, its 1H NMR spectrum recorded a singlet signal at δ = 13.34 ppm for NH").section("1H")
+    assert [(p.shift, p.multiplicity) for p in h.peaks] == [(13.34, "s")]
+    assert any("sentence" in n for n in h.notes)

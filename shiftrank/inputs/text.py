@@ -317,7 +317,14 @@ def _header_end(body: str) -> tuple[str, str]:
                 return body[:m.start()], body[m.start():]
     if "[" in body:  # peaks printed inside square brackets within prose: "[δH 7.85 (2H, d), 7.45 (2H, t)]"
         return _header_end(body.replace("[", " ").replace("]", " "))
+    m = _PROSE_SHIFT.search(body)
+    if m:   # a value stated in prose: '… recorded a singlet signal at δ = 13.34 ppm for NH'
+        return body[:m.start("v")], body[m.start("v"):]
     return body, ""
+
+
+#: a shift stated in a sentence rather than listed: 'at δ = 13.34 ppm', 'δ 7.26 ppm'
+_PROSE_SHIFT = re.compile(r"δ\s*[HC]?\s*[=:]?\s*(?P<v>[+-]?\d{1,3}\.\d+)(?=\s*ppm\b)")
 
 
 #: 'J = 8,4 Hz', '21,8 Hz': a comma between digits with no space, right before 'Hz', is a decimal comma (two
@@ -601,6 +608,12 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         peaks_text = _strip_trailer(peaks_text)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
+        prose = re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond)
+        if prose and len(sec.peaks) == 1 and re.search(r"[a-z]{4,}\s+[a-z]{3,}", cond):
+            word = re.search(r"(singlet|doublet|triplet|quartet|multiplet)\b[^()δ]{0,25}δ\s*[HC]?\s*[=:]?\s*$", cond, re.I)
+            if word and sec.nucleus == "1H" and sec.peaks[0].multiplicity is None:
+                sec.peaks[0].multiplicity = normalise_1h_multiplicity(word.group(1))
+            sec.notes.append(f"one value read from a sentence: '{_clip(cond.strip() + ' ' + peaks_text.strip(), 80)}'")
         if sec.nucleus not in ("1H", "13C") and sec.peaks:
             sec.notes.append(f"{sec.nucleus} section read ({count(len(sec.peaks), 'peak')}) but not used for ranking")
         out.sections.append(sec)
