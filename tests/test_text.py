@@ -384,3 +384,22 @@ def test_a_value_stated_in_a_sentence_is_read_with_a_note():
     h = read_nmr_text("In addition, its 1H NMR spectrum recorded a singlet signal at δ = 13.34 ppm for NH").section("1H")
     assert [(p.shift, p.multiplicity) for p in h.peaks] == [(13.34, "s")]
     assert any("sentence" in n for n in h.notes)
+
+
+def test_a_spectrum_described_in_sentences_is_read_at_its_delta_mentions():
+    # PMC6017864 (NMRExtractor dev file): N-benzylhexadecanamide's spectra described in prose
+    h = read_nmr_text("The proton signals at δH 7.17 (2H, d, J = 8.0 Hz) and δH 7.33 (3H, m, overlapped) indicated "
+                      "mono-substituted benzene ring. Doublet proton signals at δH 4.45 assigned to benzyl CH2 protons at "
+                      "H-1′. Proton signals appeared as triplet at δH 2.20 assigned to H-2 adjacent to the carbonyl carbon "
+                      "and at δH 1.65 as multiplet assigned to H-3. The long chain of methylene protons detected by "
+                      "signals at δH 1.16–1.29 with high integration number. The terminal methyl appeared at δH 0.88 as "
+                      "triplet").section("1H")
+    assert [(p.shift, p.multiplicity) for p in h.peaks] == [(7.17, "d"), (7.33, "m"), (4.45, "d"), (2.2, "t"),
+                                                          (1.65, "m"), (1.225, None), (0.88, "t")]
+    c = read_nmr_text("13C-NMR confirmed presence of carbonyl carbon which appeared at δC 173.0. The benzyl carbon "
+                      "appeared at δC 43.62, while the carbon adjacent to carbonyl at δC 36.88. Presence of "
+                      "mono-substituted benzene ring was confirmed by five carbon signals from δC 127.55 to δC 138.40. "
+                      "The long chain carbons appeared at δC 22.72 to δC 31.95, while terminal methyl signal was at "
+                      "δC 14.16").section("13C")
+    assert [p.shift for p in c.peaks] == [173.0, 43.62, 36.88, 14.16]      # the two spans are named in notes
+    assert sum("span of signals" in n for n in c.notes) == 2

@@ -608,8 +608,10 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         peaks_text = _strip_trailer(peaks_text)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
-        prose = re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond)
-        if prose and len(sec.peaks) == 1 and re.search(r"[a-z]{4,}\s+[a-z]{3,}", cond):
+        if _read_prose(sec, body):
+            pass
+        elif (prose := re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond)) and len(sec.peaks) == 1 \
+                and re.search(r"[a-z]{4,}\s+[a-z]{3,}", cond):
             word = re.search(r"(singlet|doublet|triplet|quartet|multiplet)\b[^()δ]{0,25}δ\s*[HC]?\s*[=:]?\s*$", cond, re.I)
             if word and sec.nucleus == "1H" and sec.peaks[0].multiplicity is None:
                 sec.peaks[0].multiplicity = normalise_1h_multiplicity(word.group(1))
@@ -640,6 +642,58 @@ def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:
                 continue
         out.append(h)
     return out
+
+
+#: a value mentioned in a sentence: 'δH 7.17 (2H, d, J = 8.0 Hz)', 'at δ = 13.34 ppm', 'δC 173.0', a range 'δH 1.16-1.29'
+_PROSE_MENTION = re.compile(r"δ\s*(?P<el>[HC](?![A-Za-z]))?\s*[=:]?\s*(?P<v>[+-]?\d{1,3}\.\d+)(?:\s*-\s*(?P<v2>\d{1,3}\.\d+))?"
+                            r"(?:\s*ppm)?(?:\s*\((?P<det>[^()]*)\))?")
+_PROSE_WORD = re.compile(r"\b(singlet|doublet|triplet|quartet|quintet|multiplet|broad singlet)s?\b", re.I)
+
+
+def _read_prose(sec: TextSection, body: str) -> bool:
+    """A spectrum described in sentences ('The proton signals at δH 7.17 (2H, d, J = 8.0 Hz) and δH 7.33 (3H, m)
+    indicated …; the terminal methyl appeared at δH 0.88 as triplet'): every 'δ value' mention of the section's
+    nucleus is a peak, with its bracketed details and a multiplet word of its own clause.  Used only when it
+    finds more peaks than the list reading (a printed list has one δ) and the text reads as sentences; a span
+    'from δC 127.55 to δC 138.40' (several signals, how many unknown) is left out with a note."""
+    if sec.nucleus not in ("1H", "13C") or body.count("δ") < 2 or not re.search(r"[a-z]{4,}\s+[a-z]{3,}\s+[a-z]{3,}", body):
+        return False
+    mentions = [m for m in _PROSE_MENTION.finditer(body)
+                if not m.group("el") or (m.group("el").upper() == "H") == (sec.nucleus == "1H")]
+    if len(mentions) < 2 or len(mentions) <= len(sec.peaks):
+        return False
+    peaks, notes, skip = [], [], set()
+    for k, m in enumerate(mentions):
+        if k in skip:
+            continue
+        nxt = mentions[k + 1] if k + 1 < len(mentions) else None
+        if nxt is not None and re.fullmatch(r"\s*to\s*", body[m.end():nxt.start()]):
+            notes.append(f"a span of signals '{_clip(body[m.start():nxt.end()], 40)}' was not read as peaks")
+            skip.add(k + 1)
+            continue
+        v = float(m.group("v"))
+        p = PrintedPeak(v, fragment=m.group(0).strip())
+        if m.group("v2"):
+            lo, hi = sorted((v, float(m.group("v2"))))
+            p.shift, p.lo, p.hi = round((lo + hi) / 2, 4), lo, hi
+        if m.group("det"):
+            _parse_detail(m.group("det"), p, sec.nucleus, notes)
+        if sec.nucleus == "1H" and p.multiplicity is None:
+            start = max(mentions[k - 1].end() if k else 0, body.rfind(".", 0, m.start()) + 1, m.start() - 40)
+            stop = min(nxt.start() if nxt is not None else len(body), m.end() + 40)
+            end_clause = body.find(".", m.end())
+            if end_clause != -1 and not re.match(r"\d", body[end_clause + 1:end_clause + 2]):
+                stop = min(stop, end_clause)
+            word = _PROSE_WORD.search(body, m.end(), stop) or _PROSE_WORD.search(body, start, m.start())
+            if word:
+                p.multiplicity = normalise_1h_multiplicity(word.group(1))
+        peaks.append(p)
+    if len(peaks) <= len(sec.peaks):
+        return False
+    sec.peaks = peaks
+    sec.notes = [n for n in sec.notes if n.startswith("no ")] + notes + [
+        f"read as a description in sentences: {count(len(peaks), 'value')} at their 'δ' mentions"]
+    return True
 
 
 def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
