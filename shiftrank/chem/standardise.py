@@ -116,7 +116,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
             if a.GetAtomicNum() > 1:
                 a.SetIsotope(0)
         names = sorted({f"{a.GetIsotope()}{a.GetSymbol()}" for a in iso})
-        notes.append(f"isotope labels ({', '.join(names)}) read as the plain elements")
+        notes.append(f"isotope labels ({', '.join(names)}) read as the plain elements for prediction")
         if deut:
             # explicit [2H]/[3H] atoms become ordinary hydrogens, removed like any explicit H; how many
             # each heavy atom carried is kept (:mod:`.labels`: they give no 1H line and no DEPT/HSQC proton)
@@ -138,5 +138,5 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         set_labels(mol, labels)   # the uncharger may have made a new molecule
         n_lab = sum(d + t for d, t in labels.values())
         notes.append(f"{n_lab} hydrogen isotope label(s) on atom(s) {', '.join(str(atom_map[i]) for i in sorted(labels))}: "
-                     "no 1H signal and no DEPT/HSQC proton there")
+                     "no 1H signal and no DEPT/HSQC proton there, counted as D/T in formula and mass")
     return Standardised(mol, atom_map, notes)
