@@ -403,3 +403,11 @@ def test_a_spectrum_described_in_sentences_is_read_at_its_delta_mentions():
                       "δC 14.16").section("13C")
     assert [p.shift for p in c.peaks] == [173.0, 43.62, 36.88, 14.16]      # the two spans are named in notes
     assert sum("span of signals" in n for n in c.notes) == 2
+
+
+def test_an_hsqc_section_names_what_it_could_not_read_and_sets_a_typo_aside():
+    t = read_nmr_text("HSQC (CDCl3) δC/δH: 129.9/, 55.3/3.78/2.1, 300.5/7.10, 113.8/6.82")
+    hs = t.hsqc()
+    assert hs.pairs == [(55.3, 3.78), (113.8, 6.82)]
+    assert any("set aside" in n and "300.5/7.10" in n for n in hs.notes)
+    assert any("not read as δC/δH pairs" in n and "129.9/" in n for n in hs.notes)

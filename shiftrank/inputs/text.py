@@ -719,13 +719,20 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
         kind = None
         if pm.group("kind"):
             kind = HSQC_KINDS.get(pm.group("kind").replace(" ", "")) or HSQC_KINDS.get(pm.group("kind").strip().lower())
+        if not -20.0 <= c <= 250.0 or not all(-2.0 <= h <= 20.0 for h in hs):
+            sec.notes.append(f"HSQC pair '{pm.group(0).strip()}' set aside: δC must lie within -20…250 ppm and δH "
+                             "within -2…20 ppm (a typo?)")
+            continue
         for h in hs:
             sec.peaks.append(PrintedPeak(c, shift_h=h, dept=kind, fragment=pm.group(0)))
     if sec.peaks and order is None:
         sec.notes.append("HSQC pairs read as δC/δH by size (the larger value as δC); write 'δC/δH' or 'δH/δC' "
                          "in the header to fix the order" + (f"; {guessed} pair(s) near 0 ppm are uncertain" if guessed else ""))
-    if not sec.peaks and re.search(r"\d", text):
-        sec.notes.append(f"no δC/δH pairs read in the HSQC section '{_clip(text)}'")
+    rest = _HSQC_PAIR.sub(" ", text)
+    rest = re.sub(r"\d+(?:\.\d+)?\s*MHz", " ", rest)
+    if re.search(r"\d", rest):   # nothing dropped silently: what the pairs did not take is named
+        left = ", ".join(x.strip() for x in re.findall(r"[^,;]*\d[^,;]*", rest)[:4])
+        sec.notes.append(f"in the HSQC section, not read as δC/δH pairs: '{_clip(left)}'")
 
 
 def _clip(text: str, n: int = 60) -> str:
