@@ -337,7 +337,9 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
     std = _standardised(prep.smiles)
     res.facts = _facts(prep.smiles)
     if std.notes:
-        res.flags.append("standardised (formula and prediction use the parent): " + "; ".join(std.notes))
+        only_labels = all("isotope label" in n for n in std.notes)   # the formula keeps D/T (chem/labels.py)
+        res.flags.append(f"standardised ({'prediction uses' if only_labels else 'formula and prediction use'} the parent): "
+                         + "; ".join(std.notes))
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
     means = {}
