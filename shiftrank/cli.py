@@ -349,7 +349,7 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
                     notes.append(f"m/z {st.found} taken from the text's MS statement")
     if for_ranking and formula is None:
         mz = None
-    return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0))
+    return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0), hsqc=lists.get("HSQC"))
 
 
 def cmd_inventory(args) -> int:

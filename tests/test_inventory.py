@@ -103,3 +103,33 @@ def test_1h_patterns_allow_an_n_ethyl_or_n_methyl_azole():
     lines = take_inventory(None, h1).h_patterns
     assert any("ethyl group" in x and "on O or an aromatic N" in x for x in lines)
     assert any("3H singlet at 3.92" in x and "NCH3 of an azole" in x for x in lines)
+
+
+def test_chn_pieces_from_hsqc_and_1h_integrals():
+    # 4-methylanisole in CDCl3, shifts from memory; the hand procedure (common practice): a 13C peak with no
+    # cross peak carries no H, a cross peak's 1H integral counts the H (at most one per aromatic carbon)
+    from shiftrank.inputs.peaks import hsqc_list
+    c13 = parse_peaks("157.6\n129.9\n129.8\n113.8\n55.3\n20.5\n")
+    h1 = parse_peaks("7.08 2 d\n6.80 2 d\n3.78 3 s\n2.28 3 s\n", nucleus="1H")
+    hs = hsqc_list([[129.9, 7.08], [113.8, 6.80], [55.3, 3.78], [20.5, 2.28]])
+    inv = take_inventory(c13, h1, formula="C8H10O", hsqc=hs)
+    assert inv.signals_by_type == {"CH3": 2, "CH2": 0, "CH": 4, "C": 2} and inv.unknown_type_signals == 0
+    assert inv.carbons_observed == 8 and inv.h_on_carbon_observed == 10
+    assert "carbon and hydrogen counts match the formula exactly" in inv.findings
+    # without the cross peaks the 13C list alone says nothing about CHn
+    assert take_inventory(c13, h1, formula="C8H10O").unknown_type_signals == 6
+
+
+def test_hsqc_reading_of_methyl_groups_methylenes_and_an_alkene():
+    # own example: a tert-butyl (9H on one 13C peak), an isopropyl's methyls (6H), a ring CH2 with two proton
+    # shifts, a terminal =CH2 (2H below 6.3 ppm on a carbon near 115 ppm) and a shared 1H multiplet that
+    # counts nothing (common practice)
+    from shiftrank.chem.inventory import chn_from_hsqc
+    from shiftrank.inputs.peaks import hsqc_list
+    c13 = parse_peaks("29.8\n22.1\n38.4\n114.6\n138.2\n25.0\n26.0\n")
+    h1 = parse_peaks("1.28 9 s\n1.05 6 d\n2.10 1 m\n2.45 1 m\n5.02 2 m\n5.80 1 ddt\n1.40-1.55 4 m\n", nucleus="1H")
+    hs = hsqc_list([[29.8, 1.28], [22.1, 1.05], [38.4, 2.10], [38.4, 2.45], [114.6, 5.02], [138.2, 5.80],
+                    [25.0, 1.45], [26.0, 1.50]])
+    got = {p.shift: m[:2] for p, m in zip(c13.sample_peaks(), chn_from_hsqc(c13.sample_peaks(), hs, h1))}
+    assert got == {29.8: ("CH3", 3), 22.1: ("CH3", 2), 38.4: ("CH2", 1), 114.6: ("CH2", 1), 138.2: ("CH", 1),
+                   25.0: (None, 1), 26.0: (None, 1)}

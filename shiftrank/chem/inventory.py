@@ -180,9 +180,85 @@ def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> lis
     return [(pieces, h) for h, (_, pieces) in ordered[:limit]]
 
 
+#: ppm: a cross peak belongs to a 13C peak within this distance in δC; a proton shift to a 1H peak within this
+HSQC_C_TOLERANCE = 0.3
+HSQC_H_TOLERANCE = 0.03
+
+
+def chn_from_hsqc(peaks: list, hsqc, h1: PeakList | None = None) -> list[tuple[str | None, int, str]]:
+    """(CHn or None, carbons, reason) for each 13C peak, read the way a practitioner reads HSQC beside the 1H
+    integrals (common practice): no cross peak at its δC, a carbon without H (or one whose cross peak was
+    not listed); two proton shifts on one sp3 carbon, a CH2 with diastereotopic protons; an edited phase
+    says CH2 or CH/CH3; otherwise the integral of the one 1H multiplet at the cross peak's δH, when no
+    other carbon's cross peak shares it, counts the H: an aromatic or alkene carbon bears at most one
+    (a 2H integral there is two equivalent CH; a =CH2 has δC 105–120 and δH below 6.3), an sp3 carbon at
+    most three (6H: two equivalent CH3; 9H: three, a tert-butyl)."""
+    pairs = list(zip(hsqc.pairs, hsqc.kinds or [None] * len(hsqc.pairs)))
+    owner: dict[int, int] = {}
+    for k, ((c, _h), _kind) in enumerate(pairs):   # each cross peak to its nearest 13C peak within tolerance
+        best = min(range(len(peaks)), key=lambda i: abs(peaks[i].shift - c), default=None)
+        if best is not None and abs(peaks[best].shift - c) <= HSQC_C_TOLERANCE:
+            owner[k] = best
+    h_peaks = h1.sample_peaks() if h1 is not None else []
+
+    def h_peak_of(h: float):
+        hits = [j for j, q in enumerate(h_peaks)
+                if (q.lo is not None and q.lo - 0.02 <= h <= q.hi + 0.02) or abs(q.shift - h) <= HSQC_H_TOLERANCE]
+        return hits[0] if len(hits) == 1 else None
+
+    claims: dict[int, set] = {}
+    for k, i in owner.items():
+        j = h_peak_of(pairs[k][0][1])
+        if j is not None:
+            claims.setdefault(j, set()).add(i)
+    out = []
+    for i, p in enumerate(peaks):
+        mine = [pairs[k] for k, o in owner.items() if o == i]
+        if not mine:
+            out.append(("C", p.count, "no HSQC cross peak"))
+            continue
+        hs = sorted({round(h, 2) for (_c, h), _k in mine})
+        kinds = {k for _, k in mine if k}
+        sp2 = p.shift >= 100
+        if "CH2" in kinds:
+            out.append(("CH2", p.count, "edited HSQC phase"))
+            continue
+        if len(hs) >= 2 and not sp2:
+            out.append(("CH2", p.count, f"two proton shifts {hs[0]:g}/{hs[-1]:g} on one carbon"))
+            continue
+        j = h_peak_of(hs[0])
+        n = h_peaks[j].intensity if j is not None else None
+        if j is None or n is None or n <= 0 or len(claims.get(j, ())) != 1 or abs(n - round(n)) > 0.2:
+            out.append((None, p.count, "cross peak, but no 1H integral of its own at its δH"))
+            continue
+        n = int(round(n))
+        if sp2:
+            if n == 2 and hs[0] < 6.3 and p.shift <= 125 and "CH/CH3" not in kinds:
+                out.append(("CH2", p.count, f"=CH2: 2H at δH {hs[0]:g}"))
+            else:
+                out.append(("CH", max(p.count, n), f"{n}H at δH {hs[0]:g} on sp2 carbon(s)"))
+            continue
+        per = n / p.count
+        if per == int(per) and 1 <= per <= 3:
+            mult, carbons = {1: "CH", 2: "CH2", 3: "CH3"}[int(per)], p.count
+        elif n % 3 == 0:
+            mult, carbons = "CH3", n // 3
+        elif n % 2 == 0:
+            mult, carbons = "CH2", n // 2
+        else:
+            out.append((None, p.count, f"{n}H at δH {hs[0]:g}: no whole number of CHn"))
+            continue
+        if kinds == {"CH/CH3"} and mult == "CH2":
+            out.append((None, p.count, "edited phase and integral disagree"))
+            continue
+        out.append((mult, carbons, f"{n}H at δH {hs[0]:g}"))
+    return out
+
+
 def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: str | None = None,
-                   mz: float | None = None, mz_tolerance_ppm: float = 5.0) -> Inventory:
-    """Inventory of a 13C list and/or a 1H list with integrals against the sample history."""
+                   mz: float | None = None, mz_tolerance_ppm: float = 5.0, hsqc=None) -> Inventory:
+    """Inventory of a 13C list and/or a 1H list with integrals against the sample history; ``hsqc``
+    (cross peaks) gives the CHn of 13C peaks printed without DEPT (:func:`chn_from_hsqc`)."""
     if c13 is None and h1 is None:
         raise InputError("inventory: give a 13C peak list, a 1H peak list or both")
     if c13 is None:
@@ -190,18 +266,27 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     peaks = c13.sample_peaks()
     if not peaks:
         raise InputError(f"{c13.source}: no sample peaks left after setting aside solvent signals")
+    types = [(p.multiplicity, p.count) for p in peaks]
+    from_hsqc = []
+    if hsqc is not None and any(p.multiplicity not in H_OF for p in peaks):
+        for k, (p, (mult, carbons, why)) in enumerate(zip(peaks, chn_from_hsqc(peaks, hsqc, h1))):
+            if p.multiplicity not in H_OF and mult is not None:
+                types[k] = (mult, carbons)
+                from_hsqc.append(f"{p.shift:g} {mult}{f' ×{carbons}' if carbons > 1 else ''} ({why})")
     by_type = {k: 0 for k in ORDER}
     unknown = 0
     carbons = h_on_c = 0
-    for p in peaks:
-        carbons += p.count
-        if p.multiplicity in H_OF:
-            by_type[p.multiplicity] += p.count
-            h_on_c += H_OF[p.multiplicity] * p.count
+    for mult, n in types:
+        carbons += n
+        if mult in H_OF:
+            by_type[mult] += n
+            h_on_c += H_OF[mult] * n
         else:
-            unknown += p.count
+            unknown += n
     inv = Inventory(by_type, unknown, carbons, h_on_c)
-    inv.regions = [(p.shift, p.multiplicity, region_hint(p.shift, p.multiplicity)) for p in peaks]
+    if from_hsqc:
+        inv.inferences.append("CHn from the HSQC cross peaks and the 1H integrals (common practice): " + "; ".join(from_hsqc))
+    inv.regions = [(p.shift, m, region_hint(p.shift, m)) for p, (m, _n) in zip(peaks, types)]
 
     n_o_inferred = 0
     for p in peaks:
