@@ -411,3 +411,12 @@ def test_an_hsqc_section_names_what_it_could_not_read_and_sets_a_typo_aside():
     assert hs.pairs == [(55.3, 3.78), (113.8, 6.82)]
     assert any("set aside" in n and "300.5/7.10" in n for n in hs.notes)
     assert any("not read as δC/δH pairs" in n and "129.9/" in n for n in hs.notes)
+
+
+def test_two_compounds_pasted_together_get_a_note():
+    # 4- and 3-methylanisole paragraphs one after the other (shifts from memory): only the first is used, and
+    # the reader says so instead of mixing or dropping silently
+    t = read_nmr_text("Compound 3a: 1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.5 Hz, 2H), 3.78 (s, 3H). "
+                      "Compound 3b: 1H NMR (400 MHz, CDCl3) δ 7.17 (t, J = 7.8 Hz, 1H), 3.79 (s, 3H).")
+    assert [p.shift for p in t.section("1H").peaks] == [7.10, 3.78]
+    assert any("2 1H sections" in n and "only the first" in n for n in t.notes)

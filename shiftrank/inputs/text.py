@@ -622,6 +622,12 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
     if not any(s.peaks for s in out.sections):
         why = "; ".join(n for s in out.sections for n in s.notes[:2])
         raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))
+    for nuc in ("1H", "13C", "HSQC"):
+        n = sum(1 for s in out.sections if s.nucleus == nuc and s.peaks)
+        if n > 1:   # several compounds pasted together, or one spectrum in two solvents: say which one counts
+            first = next(s for s in out.sections if s.nucleus == nuc and s.peaks)
+            out.notes.append(f"{n} {nuc} sections with peaks; only the first ('{_clip(first.header + ' ' + first.peaks[0].fragment, 40)}…') "
+                             "is used: give one compound's paragraphs per case")
     return out
 
 
