@@ -420,3 +420,18 @@ def test_two_compounds_pasted_together_get_a_note():
                       "Compound 3b: 1H NMR (400 MHz, CDCl3) δ 7.17 (t, J = 7.8 Hz, 1H), 3.79 (s, 3H).")
     assert [p.shift for p in t.section("1H").peaks] == [7.10, 3.78]
     assert any("2 1H sections" in n and "only the first" in n for n in t.notes)
+
+
+def test_an_assignment_table_pasted_as_text():
+    # PMC5811625 (NMRExtractor dev file): a table whose rows were run together, cells separated by tabs
+    t = read_nmr_text("Position no.a\tChemical shift (δ ppm)13C NMR\t1H NMR (integration, multiplicity, J value [Hz]) "
+                      "1\t172.1\t— 2\t53.8\t4.73\t(1H, dd, 9.8, 6.0) 3\t29.3\t3.39\t(1H, dd, 14.4, 6.0)")
+    assert [p.shift for p in t.section("13C").peaks] == [172.1, 53.8, 29.3]
+    assert [(p.shift, p.integral, p.multiplicity, p.j) for p in t.section("1H").peaks] == [
+        (4.73, 1, "dd", (9.8, 6.0)), (3.39, 1, "dd", (14.4, 6.0))]
+    # the same kind of table with one row per line, a caption with the conditions, two protons on one carbon
+    t = read_nmr_text("Table 2. NMR data (CDCl3, 400 MHz)\nPosition\tδC\tδH (mult., J in Hz)\n1\t172.1\t—\n"
+                      "2\t53.8\t4.73 (dd, 9.8, 6.0)\n3\t29.3\t3.39 (dd, 14.4, 6.0), 3.12 (dd, 14.4, 9.8)\n4\t136.0\t\n")
+    h = t.section("1H")
+    assert [p.shift for p in h.peaks] == [4.73, 3.39, 3.12] and h.solvent == "CDCl3" and h.field_mhz == 400
+    assert [p.shift for p in t.section("13C").peaks] == [172.1, 53.8, 29.3, 136.0]

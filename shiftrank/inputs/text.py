@@ -564,6 +564,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
     if len(text) > MAX_TEXT:
         raise InputError(f"{source}: text of {len(text):,} characters exceeds the limit of {MAX_TEXT:,}; "
                          "give the characterisation paragraphs only")
+    table = _read_table(text)
+    if table is not None:
+        return table
     t = _repair(text)
     heads = _real_heads(t, list(_HEADER.finditer(t)))
     out = NmrText([])
@@ -739,6 +742,53 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
     if re.search(r"\d", rest):   # nothing dropped silently: what the pairs did not take is named
         left = ", ".join(x.strip() for x in re.findall(r"[^,;]*\d[^,;]*", rest)[:4])
         sec.notes.append(f"in the HSQC section, not read as δC/δH pairs: '{_clip(left)}'")
+
+
+#: a header cell of an assignment table naming its 13C or its 1H column
+_TABLE_C = re.compile(r"δ\s*C\b|13\s*C|carbon", re.I)
+_TABLE_H = re.compile(r"δ\s*H\b|1\s*H\b|proton", re.I)
+
+
+def _read_table(raw: str) -> NmrText | None:
+    """An assignment table pasted as text: a header row naming a 13C and a 1H column, then one row per
+    position, cells separated by tabs ('2⇥53.8⇥4.73⇥(1H, dd, 9.8, 6.0)'); rows on lines of their own, or
+    run together with each new row starting at its position label.  The 13C column gives the 13C list,
+    the 1H column and what follows it the 1H list (a '—' cell is no value).  None when the text is not
+    such a table."""
+    if raw.count("\t") < 4:
+        return None
+    lines = [ln for ln in raw.splitlines() if ln.strip()]
+    if len(lines) < 3:
+        lines = re.split(r"\s+(?=\d{1,3}[a-z]?['′″]*\s*\t)", raw.strip())
+    rows = [[_repair(c).strip() for c in ln.split("\t")] for ln in lines]
+    head = next((k for k, r in enumerate(rows[:3]) if any(_TABLE_C.search(c) for c in r) and any(_TABLE_H.search(c) for c in r)), None)
+    if head is None:
+        return None
+    cells = rows[head]
+    col_c = next(k for k, c in enumerate(cells) if _TABLE_C.search(c))
+    col_h = next((k for k, c in enumerate(cells) if _TABLE_H.search(c) and k != col_c), None)
+    if col_h is None or col_h <= col_c:
+        return None
+    c_vals, h_vals = [], []
+    for r in rows[head + 1:]:
+        c = r[col_c] if len(r) > col_c else ""
+        h = " ".join(r[col_h:]) if len(r) > col_h else ""
+        if re.fullmatch(r"[+-]?\d{1,3}(?:\.\d+)?(?:\s*\([^()]*\))?", c):
+            c_vals.append(c)
+        if re.match(r"[+-]?\d{1,2}\.\d+", h):
+            h_vals.append(h)
+    if len(c_vals) + len(h_vals) < 3:
+        return None
+    out = NmrText([])
+    for nuc, vals in (("1H", h_vals), ("13C", c_vals)):
+        if not vals:
+            continue
+        sec = TextSection(nuc, "table")
+        _read_conditions(sec, " ".join(" ".join(r) for r in rows[:head + 1]))
+        _read_peaks(sec, ", ".join(vals))
+        sec.notes.append(f"read from an assignment table: {count(len(sec.peaks), 'value')} in its {nuc} column")
+        out.sections.append(sec)
+    return out if any(s.peaks for s in out.sections) else None
 
 
 def _clip(text: str, n: int = 60) -> str:
