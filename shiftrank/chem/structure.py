@@ -268,9 +268,12 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
     ``hydrogens=False`` skips the hydrogen symmetry classes (the ranking does not need them);
     ``ranks`` are the symmetry ranks when the caller has them already.
     """
+    back = None
     if mol.GetNumAtoms() != mol.GetNumHeavyAtoms():
-        mol, _ = strip_labelled_hydrogens(mol)   # explicit H removed, 2H/3H remembered (:mod:`.labels`)
+        mol, back = strip_labelled_hydrogens(mol)   # explicit H removed, 2H/3H remembered (:mod:`.labels`)
         ranks = None
+        if back == list(range(len(back))):
+            back = None
     ranks = symmetry_ranks(mol) if ranks is None else list(ranks)
     counts: Counter = Counter()
     for a in _atoms(mol):
@@ -282,6 +285,11 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
     if counts["H"] == 0:
         del counts["H"]
     classes = carbon_classes(mol, ranks)
+    h_classes = hydrogen_classes(mol, ranks) if hydrogens else []
+    if back is not None:   # atom indices in the caller's own order (explicit H atoms counted there)
+        classes = [CarbonClass([back[i] for i in c.atoms], c.multiplicity,
+                               ([back[i] for i in c.twin[0]], c.twin[1]) if c.twin else None) for c in classes]
+        h_classes = [[back[i] for i in g] for g in h_classes]
     d = dbe(counts)
     return StructureFacts(
         smiles=smiles if smiles is not None else Chem.MolToSmiles(mol),
@@ -292,7 +300,7 @@ def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = T
         dbe=d,
         dbe_note=dbe_note(d),
         carbon_classes=classes,
-        hydrogen_classes=hydrogen_classes(mol, ranks) if hydrogens else [],
+        hydrogen_classes=h_classes,
     )
 
 
