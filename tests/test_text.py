@@ -435,3 +435,8 @@ def test_an_assignment_table_pasted_as_text():
     h = t.section("1H")
     assert [p.shift for p in h.peaks] == [4.73, 3.39, 3.12] and h.solvent == "CDCl3" and h.field_mhz == 400
     assert [p.shift for p in t.section("13C").peaks] == [172.1, 53.8, 29.3, 136.0]
+
+
+def test_prose_with_a_short_word_between_is_still_read_as_sentences():
+    h = read_nmr_text("The signal appeared at δH 7.17 (2H, d, J = 8.0 Hz) and the other at δH 3.80 (3H, s).").section("1H")
+    assert [(p.shift, p.integral) for p in h.peaks] == [(7.17, 2), (3.80, 3)]

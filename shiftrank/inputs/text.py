@@ -665,7 +665,7 @@ def _read_prose(sec: TextSection, body: str) -> bool:
     nucleus is a peak, with its bracketed details and a multiplet word of its own clause.  Used only when it
     finds more peaks than the list reading (a printed list has one δ) and the text reads as sentences; a span
     'from δC 127.55 to δC 138.40' (several signals, how many unknown) is left out with a note."""
-    if sec.nucleus not in ("1H", "13C") or body.count("δ") < 2 or not re.search(r"[a-z]{4,}\s+[a-z]{3,}\s+[a-z]{3,}", body):
+    if sec.nucleus not in ("1H", "13C") or body.count("δ") < 2 or not re.search(r"[A-Za-z]{3,}\s+[a-z]{3,}\s+[a-z]{2,}\s", body):
         return False
     mentions = [m for m in _PROSE_MENTION.finditer(body)
                 if not m.group("el") or (m.group("el").upper() == "H") == (sec.nucleus == "1H")]
