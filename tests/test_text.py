@@ -435,6 +435,11 @@ def test_an_assignment_table_pasted_as_text():
     h = t.section("1H")
     assert [p.shift for p in h.peaks] == [4.73, 3.39, 3.12] and h.solvent == "CDCl3" and h.field_mhz == 400
     assert [p.shift for p in t.section("13C").peaks] == [172.1, 53.8, 29.3, 136.0]
+    # the 1H column before the 13C column, a caption naming both nuclei above the header row
+    t = read_nmr_text("Table 1. 1H (400 MHz) and 13C (101 MHz) NMR data in DMSO-d6\nNo.\tδH (J in Hz)\tδC\n1\t\t168.2\n"
+                      "2\t7.95 (d, 8.1)\t129.4\n3\t2.39 (s)\t21.1\n")
+    assert [(p.shift, p.j) for p in t.section("1H").peaks] == [(7.95, (8.1,)), (2.39, ())]
+    assert [p.shift for p in t.section("13C").peaks] == [168.2, 129.4, 21.1] and t.solvent == "DMSO-d6"
 
 
 def test_prose_with_a_short_word_between_is_still_read_as_sentences():

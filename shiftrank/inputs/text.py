@@ -761,18 +761,20 @@ def _read_table(raw: str) -> NmrText | None:
     if len(lines) < 3:
         lines = re.split(r"\s+(?=\d{1,3}[a-z]?['′″]*\s*\t)", raw.strip())
     rows = [[_repair(c).strip() for c in ln.split("\t")] for ln in lines]
-    head = next((k for k, r in enumerate(rows[:3]) if any(_TABLE_C.search(c) for c in r) and any(_TABLE_H.search(c) for c in r)), None)
+    head = col_c = col_h = None
+    for k, r in enumerate(rows[:4]):   # the header row: one cell names the 13C column, another the 1H column
+        cs = [i for i, c in enumerate(r) if _TABLE_C.search(c) and not _TABLE_H.search(c)]
+        hs = [i for i, c in enumerate(r) if _TABLE_H.search(c) and not _TABLE_C.search(c)]
+        if cs and hs:
+            head, col_c, col_h = k, cs[0], hs[0]
+            break
     if head is None:
-        return None
-    cells = rows[head]
-    col_c = next(k for k, c in enumerate(cells) if _TABLE_C.search(c))
-    col_h = next((k for k, c in enumerate(cells) if _TABLE_H.search(c) and k != col_c), None)
-    if col_h is None or col_h <= col_c:
         return None
     c_vals, h_vals = [], []
     for r in rows[head + 1:]:
         c = r[col_c] if len(r) > col_c else ""
-        h = " ".join(r[col_h:]) if len(r) > col_h else ""
+        # the 1H cell runs to the 13C column, or to the end of the row (details printed in a cell of their own)
+        h = " ".join(r[col_h:col_c] if col_h < col_c else r[col_h:])
         if re.fullmatch(r"[+-]?\d{1,3}(?:\.\d+)?(?:\s*\([^()]*\))?", c):
             c_vals.append(c)
         if re.match(r"[+-]?\d{1,2}\.\d+", h):
