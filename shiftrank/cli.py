@@ -429,7 +429,7 @@ def _sample_options(s, candidates_required: bool) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
-    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H and/or 13C paragraphs); - reads stdin")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
     s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
@@ -492,7 +492,7 @@ def build_parser() -> argparse.ArgumentParser:
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
     s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known)")
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line)")
-    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text; - reads stdin")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
     s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance in ppm (default 5)")
