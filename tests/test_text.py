@@ -445,3 +445,14 @@ def test_an_assignment_table_pasted_as_text():
 def test_prose_with_a_short_word_between_is_still_read_as_sentences():
     h = read_nmr_text("The signal appeared at δH 7.17 (2H, d, J = 8.0 Hz) and the other at δH 3.80 (3H, s).").section("1H")
     assert [(p.shift, p.integral) for p in h.peaks] == [(7.17, 2), (3.80, 3)]
+
+
+def test_other_2d_correlations_never_join_a_1h_or_13c_list():
+    # own example of how SI paragraphs print them: HMBC/NOESY/COSY pairs are a section of their own, noted
+    t = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H). 13C NMR (101 MHz, CDCl3) δ 128.4, 55.3; "
+                      "HMBC correlations: 7.26/128.4, 3.80/159.1. NOESY: 7.26/3.80")
+    assert [p.shift for p in t.section("13C").peaks] == [128.4, 55.3]
+    assert [p.shift for p in t.section("1H").peaks] == [7.26]
+    assert t.section("HMBC").notes and t.section("NOESY").notes and t.hsqc() is None
+    # the word in an assignment or in prose opens nothing (PMC7672604's sentence, see above)
+    assert [p.shift for p in read_nmr_text("13C NMR δ 128.4 (C-4, HMBC to H-2), 55.3").section("13C").peaks] == [128.4, 55.3]

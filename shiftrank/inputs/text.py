@@ -50,7 +50,11 @@ _HEADER = re.compile(
     r"|δ\s?(?P<el4>H|C)(?=\s*\([^()]*MHz[^()]*\))"
     # one-bond 1H–13C correlations printed as δC/δH pairs: 'HSQC (CDCl3): 128.4/7.26, …', '1H–13C HSQC', 'HMQC'
     r"|(?<![A-Za-z0-9])(?P<hsqc>(?:(?:1H\s*[-,/]?\s*13C|13C\s*[-,/]?\s*1H)[\s-]*)?(?:(?:multiplicity[\s-]*)?edited[\s-]*)?"
-    r"(?:HSQC|HMQC))(?![A-Za-z])", re.I)
+    r"(?:HSQC|HMQC))(?![A-Za-z])"
+    # other 2D correlations: read as sections of their own so that their pairs never join a 1H or 13C list
+    r"|(?<![A-Za-z0-9])(?P<other2d>HMBC|COSY|NOESY|ROESY|TOCSY|HETCOR)(?![A-Za-z])", re.I)
+#: a correlation printed in a 2D section: '7.26/128.4', 'H-2/C-4', 'H-2 (7.26)/C-4 (128.4)'
+_CORRELATION = re.compile(r"\d\s*/\s*[+-]?\d|\bH-?[\w′']+(?:\s*\([^()]*\))?\s*/\s*[CH]-?[\w′']+")
 #: a cross peak of an HSQC section: 'δ/δ', the second value possibly a range ('41.2/2.95-3.10'), then an optional
 #: phase or CHn in brackets
 _HSQC_PAIR = re.compile(r"(?<![\d.])(?P<a>[+-]?\d{1,3}(?:\.\d+)?)\s*/\s*(?P<b>[+-]?\d{1,3}(?:\.\d+)?)"
@@ -256,6 +260,8 @@ def _split_top(text: str, seps: str = ",;") -> list[str]:
 def _nucleus(m: re.Match) -> str | None:
     if m.group("hsqc"):
         return "HSQC"
+    if m.group("other2d"):
+        return m.group("other2d").upper()
     if m.group("bare"):
         return None  # "NMR (300 MHz, CDCl3) δ …": the nucleus is read from the values
     el = (m.group("el") or m.group("el2") or m.group("el3") or m.group("el4") or "").upper()
@@ -608,6 +614,11 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             _read_hsqc(sec, header + " " + cond, peaks_text)
             out.sections.append(sec)
             continue
+        if sec.nucleus in ("HMBC", "COSY", "NOESY", "ROESY", "TOCSY", "HETCOR"):
+            sec.notes.append(f"{sec.nucleus} correlations read as a section of their own and not used for ranking: "
+                             f"'{_clip(body.strip(' :'), 50)}'")
+            out.sections.append(sec)
+            continue
         peaks_text = _strip_trailer(peaks_text)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
@@ -638,16 +649,16 @@ def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:
     """The header matches that open a section: an 'HSQC'/'HMQC' inside brackets ('128.4 (CH, from HSQC)') or
     not followed by any δ/δ pair before the next header ('observed using HSQC or HMBC experiments. δC 162.1,
     …') is a word of the paragraph, not a section."""
-    if not any(h.group("hsqc") for h in heads):
+    if not any(h.group("hsqc") or h.group("other2d") for h in heads):
         return heads
     out = []
     for k, h in enumerate(heads):
-        if h.group("hsqc"):
+        if h.group("hsqc") or h.group("other2d"):
             before = t[:h.start()]
             if before.count("(") > before.count(")") or before.count("[") > before.count("]"):
                 continue
             end = heads[k + 1].start() if k + 1 < len(heads) else len(t)
-            if not _HSQC_PAIR.search(t, h.end(), end):
+            if not (_HSQC_PAIR if h.group("hsqc") else _CORRELATION).search(t, h.end(), end):
                 continue
         out.append(h)
     return out
@@ -763,6 +774,7 @@ def _read_table(raw: str) -> NmrText | None:
     rows = [[_repair(c).strip() for c in ln.split("\t")] for ln in lines]
     head = col_c = col_h = None
     for k, r in enumerate(rows[:4]):   # the header row: one cell names the 13C column, another the 1H column
+        r = [re.sub(r"\{\s*1\s*H\s*\}", "", c) for c in r]   # '13C{1H}': the decoupling mark names no 1H column
         cs = [i for i, c in enumerate(r) if _TABLE_C.search(c) and not _TABLE_H.search(c)]
         hs = [i for i, c in enumerate(r) if _TABLE_H.search(c) and not _TABLE_C.search(c)]
         if cs and hs:
