@@ -456,3 +456,24 @@ def test_other_2d_correlations_never_join_a_1h_or_13c_list():
     assert t.section("HMBC").notes and t.section("NOESY").notes and t.hsqc() is None
     # the word in an assignment or in prose opens nothing (PMC7672604's sentence, see above)
     assert [p.shift for p in read_nmr_text("13C NMR δ 128.4 (C-4, HMBC to H-2), 55.3").section("13C").peaks] == [128.4, 55.3]
+
+
+def test_dept135_phases_printed_beside_the_values():
+    # PMC6255254 (NMRExtractor dev file): '(-)' CH2, '(+)' CH or CH3, '(q)' quaternary (DEPT-135, common practice)
+    t = read_nmr_text("13C-NMR (CDCl3) δ 38.14 (-), 42.46 (-), 61.37 (-), 64.40 (-), 66.84 (+), 126.99 (+), 127.73 (+), "
+                      "129.43 (+), 129.81 (+), 136.31 (q), 142.67 (q), 160.52 (q)")
+    pl = t.peaklist("13C")
+    assert [p.multiplicity for p in pl.peaks] == ["CH2"] * 4 + ["CH/CH3"] * 5 + ["C"] * 3
+    assert all(p.coupling is None for p in pl.peaks)          # 'q' is not a C–F quartet here
+    # signs alone, without DEPT in the header or marked quaternary carbons, stay unread (APT pairs C with CH2)
+    t = read_nmr_text("13C NMR (APT, 101 MHz, CDCl3) δ 170.1 (-), 128.4 (+), 55.3 (+), 41.2 (-)")
+    assert all(p.multiplicity is None for p in t.peaklist("13C").peaks)
+
+
+def test_a_dept135_list_tells_a_methylene_from_a_methine():
+    # 4-ethyltoluene against cumene (both C9H12); 13C of 4-ethyltoluene in CDCl3 from memory
+    from shiftrank.score.ranking import rank
+    text = "13C NMR (DEPT-135, 101 MHz, CDCl3) δ 141.2 (q), 135.0 (q), 129.0 (+), 127.8 (+), 28.4 (-), 21.0 (+), 15.7 (+)"
+    r = rank(text=text, candidates=["CC(C)c1ccccc1", "CCc1ccc(C)cc1"])
+    assert r.best.smiles == "CCc1ccc(C)cc1" and r.best.probability > 0.9
+    assert not any("against" in f for f in r.best.flags)

@@ -35,6 +35,8 @@ _MULT = {
     "ch": "CH", "ch1": "CH", "d": "CH",
     "ch2": "CH2", "t": "CH2",
     "ch3": "CH3", "q": "CH3",
+    # a DEPT-135 positive phase: CH or CH3, not told apart
+    "ch/ch3": "CH/CH3", "ch3/ch": "CH/CH3", "ch,ch3": "CH/CH3",
 }
 _SHIFT_COLS = ("shift", "ppm", "delta", "shift_ppm", "δ", "chemical_shift")
 _MULT_COLS = ("multiplicity", "mult", "dept", "type", "chn")
@@ -78,7 +80,8 @@ class PeakList:
 
 
 def normalise_multiplicity(text: str | None, where: str) -> str | None:
-    """Map C/CH/CH2/CH3 (any case) or s/d/t/q to C/CH/CH2/CH3; empty means unknown."""
+    """Map C/CH/CH2/CH3 (any case) or s/d/t/q to C/CH/CH2/CH3, and CH/CH3 (a DEPT-135 positive phase) to itself;
+    empty means unknown."""
     if text is None:
         return None
     t = str(text).strip()
@@ -87,7 +90,7 @@ def normalise_multiplicity(text: str | None, where: str) -> str | None:
     key = t.lower()
     if key in _MULT:
         return _MULT[key]
-    raise InputError(f"{where}: multiplicity '{t}' is not one of C, CH, CH2, CH3 (or s, d, t, q)")
+    raise InputError(f"{where}: multiplicity '{t}' is not one of C, CH, CH2, CH3, CH/CH3 (or s, d, t, q)")
 
 
 _MULT_WORDS = {

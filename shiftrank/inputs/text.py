@@ -93,6 +93,7 @@ class PrintedPeak:
     j: tuple = ()                   # coupling constants (Hz) as printed
     count: int = 1                  # 13C: carbons at this value ("2C")
     shift_h: float | None = None    # HSQC: the proton shift of the cross peak (``shift`` is δC)
+    sign: str | None = None         # 13C: a printed phase '+' or '-' (DEPT-135: CH/CH3 up, CH2 down)
     dept: str | None = None         # 13C: C/CH/CH2/CH3 when printed (DEPT)
     note: str = ""                  # assignment text, kept, not used
     fragment: str = ""              # the printed text of this peak
@@ -400,6 +401,9 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if nucleus == "13C" and compact in _DEPT and peak.dept is None:
             peak.dept = _DEPT[compact]
             continue
+        if nucleus == "13C" and w in ("+", "-") and peak.sign is None:
+            peak.sign = w   # a phase; read as DEPT-135 by _dept135 when the section says so
+            continue
         if re.fullmatch(rf"{_NUM}\s*Hz", w, re.I):
             # a J list continued after a comma ("J = 8.4 Hz, 2.0 Hz"); a bare number after a J list is part of
             # an assignment note ("CH3-Ph-3,5", "H-2,6"), not a coupling: the J pattern takes a list printed
@@ -622,6 +626,8 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         peaks_text = _strip_trailer(peaks_text)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
+        if sec.nucleus == "13C":
+            _dept135(sec, header + " " + cond)
         if _read_prose(sec, body):
             pass
         elif (prose := re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond)) and len(sec.peaks) == 1 \
@@ -643,6 +649,25 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             out.notes.append(f"{n} {nuc} sections with peaks; only the first ('{_clip(first.header + ' ' + first.peaks[0].fragment, 40)}…') "
                              "is used: give one compound's paragraphs per case")
     return out
+
+
+def _dept135(sec: TextSection, conditions: str) -> None:
+    """A 13C list printed with DEPT-135 phases ('38.14 (-), 66.84 (+), …, 136.31 (q)'): '-' is a CH2, '+' a CH or
+    a CH3, 'q' a quaternary carbon (common practice).  Read so only when the header names DEPT or the list marks
+    its quaternary carbons beside the signs (an APT list, whose phases pair C with CH2, is not read this way)."""
+    signed = [p for p in sec.peaks if p.sign]
+    if len(signed) < 2:
+        return
+    quaternary = [p for p in sec.peaks if not p.sign and not p.j and (p.multiplicity == "q" or p.dept == "C")]
+    if not (re.search(r"DEPT", conditions, re.I) or quaternary) or re.search(r"APT|JMOD|J-mod", conditions, re.I):
+        sec.notes.append(f"{len(signed)} values carry a phase (+/-) that was not read as DEPT (no DEPT in the header, "
+                         "no quaternary carbons marked)")
+        return
+    for p in signed:
+        p.dept = "CH2" if p.sign == "-" else "CH/CH3"
+    for p in quaternary:
+        p.dept, p.multiplicity = "C", None
+    sec.notes.append("DEPT-135 phases read: (-) CH2, (+) CH or CH3" + (", q quaternary" if quaternary else ""))
 
 
 def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:

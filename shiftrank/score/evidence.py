@@ -245,6 +245,9 @@ class CarbonEvidence(_Evidence):
         cls_m = np.array([_MCODE.get(c.multiplicity, 9) for c in classes])
         pk_m = np.array([_MCODE.get(p.multiplicity, 9) if p.multiplicity is not None else -1 for p in peaks])
         bad_p = ((pk_m[None, :] >= 0) & (pk_m[None, :] != cls_m[:, None])).astype(float)
+        for j, p in enumerate(peaks):
+            if p.multiplicity == "CH/CH3":   # a DEPT-135 '+' phase: either
+                bad_p[:, j] = ~np.isin(cls_m, (_MCODE["CH"], _MCODE["CH3"]))
         bad_j = np.zeros_like(bad_p)
         for j, p in enumerate(peaks):
             if p.coupling is None and not p.j:
