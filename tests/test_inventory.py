@@ -133,3 +133,11 @@ def test_hsqc_reading_of_methyl_groups_methylenes_and_an_alkene():
     got = {p.shift: m[:2] for p, m in zip(c13.sample_peaks(), chn_from_hsqc(c13.sample_peaks(), hs, h1))}
     assert got == {29.8: ("CH3", 3), 22.1: ("CH3", 2), 38.4: ("CH2", 1), 114.6: ("CH2", 1), 138.2: ("CH", 1),
                    25.0: (None, 1), 26.0: (None, 1)}
+
+
+def test_dept135_plus_peaks_above_90_ppm_are_methines():
+    # a DEPT-135 '+' phase is CH or CH3; no methyl carbon lies above 90 ppm (common practice)
+    c13 = parse_peaks("141.2 C\n129.0 CH/CH3\n28.4 CH2\n21.0 CH/CH3\n")
+    inv = take_inventory(c13)
+    assert inv.signals_by_type["CH"] == 1 and inv.unknown_type_signals == 1
+    assert any("counted as CH" in i for i in inv.inferences)

@@ -267,6 +267,8 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     if not peaks:
         raise InputError(f"{c13.source}: no sample peaks left after setting aside solvent signals")
     types = [(p.multiplicity, p.count) for p in peaks]
+    # a DEPT-135 '+' phase (CH or CH3) above 90 ppm is a CH: no methyl carbon lies there (common practice)
+    types = [("CH", n) if m == "CH/CH3" and p.shift >= 90 else (m, n) for p, (m, n) in zip(peaks, types)]
     from_hsqc = []
     if hsqc is not None and any(p.multiplicity not in H_OF for p in peaks):
         for k, (p, (mult, carbons, why)) in enumerate(zip(peaks, chn_from_hsqc(peaks, hsqc, h1))):
@@ -286,6 +288,12 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     inv = Inventory(by_type, unknown, carbons, h_on_c)
     if from_hsqc:
         inv.inferences.append("CHn from the HSQC cross peaks and the 1H integrals (common practice): " + "; ".join(from_hsqc))
+    phased = [p.shift for p in peaks if p.multiplicity == "CH/CH3"]
+    if phased:
+        above = [x for x in phased if x >= 90]
+        inv.inferences.append(f"{len(phased)} DEPT-135 '+' peak(s) (CH or CH3)"
+                              + (f"; {len(above)} above 90 ppm counted as CH (no methyl carbon there)" if above else "")
+                              + (f"; {len(phased) - len(above)} below 90 ppm left as CH or CH3" if len(phased) > len(above) else ""))
     inv.regions = [(p.shift, m, region_hint(p.shift, m)) for p, (m, _n) in zip(peaks, types)]
 
     n_o_inferred = 0
