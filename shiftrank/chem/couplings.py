@@ -415,10 +415,9 @@ def expected_multiplets(mol: Chem.Mol, ranks: list[int] | None = None) -> list[E
     chiral = any(_stereocentre(mol.GetAtomWithIdx(i), ranks) for i in range(len(T.z))
                  if T.z[i] == 6 and not T.arom[i] and T.nh[i] <= 1 and len(T.adj[i]) + T.nh[i] == 4)
     amide_n = _amide_nh2_atoms(mol)
-    labels = labelled_hydrogens(mol)
     out = []
     for (rank, side), whole in sorted(classes.items(), key=lambda kv: kv[1][0]):
-        for atoms in split_by_labels(whole, labels):   # a CHD2 beside a CH3 of the same class: two signals
+        for atoms in split_by_labels(whole, T.labels):   # a CHD2 beside a CH3 of the same class: two signals
             n_h = sum(T.nh[i] for i in atoms)
             out.append(ExpectedMultiplet(atoms, n_h, _groups(mol, T, R, atoms[0], ranks, chiral), T.exch[atoms[0]],
                                          amide_nh2=atoms[0] in amide_n, twin_of=rank if side is not None else None))
@@ -578,9 +577,7 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
     labels = labelled_hydrogens(mol)
     out = []
     if not hetero:
-        return [ExpectedMultiplet(list(c.atoms), len(c.atoms),
-                                  [CouplingGroup("CD1", 2 * labels[c.atoms[0]], "D", -4)] if labels.get(c.atoms[0]) else [])
-                for c in classes]
+        return [ExpectedMultiplet(list(c.atoms), len(c.atoms), _deuterium_group(labels, c.atoms[0])) for c in classes]
     dist = Chem.GetDistanceMatrix(mol)
     for c in classes:
         a = c.atoms[0]
@@ -594,7 +591,10 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
             if kind:
                 counts[(kind, ranks[x])] = counts.get((kind, ranks[x]), 0) + 1
         groups = [CouplingGroup(k, n, "F" if k.startswith("CF") else "P", key) for (k, key), n in counts.items()]
-        if labels.get(a):
-            groups.append(CouplingGroup("CD1", 2 * labels[a], "D", -4))
-        out.append(ExpectedMultiplet(list(c.atoms), len(c.atoms), groups))
+        out.append(ExpectedMultiplet(list(c.atoms), len(c.atoms), groups + _deuterium_group(labels, a)))
     return out
+
+
+def _deuterium_group(labels: dict[int, int], a: int) -> list[CouplingGroup]:
+    """The C–D splitting of carbon ``a`` (n deuterons: 2n + 1 lines, carried as 2n partners), or none."""
+    return [CouplingGroup("CD1", 2 * labels[a], "D", -4)] if labels.get(a) else []

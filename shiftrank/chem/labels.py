@@ -47,7 +47,8 @@ def set_labels(mol: Chem.Mol, counts: dict) -> None:
         mol.ClearProp(LABEL_PROP)
 
 
-def _pairs(mol: Chem.Mol) -> dict[int, tuple[int, int]]:
+def label_pairs(mol: Chem.Mol) -> dict[int, tuple[int, int]]:
+    """Heavy-atom index → (number of its 2H, number of its 3H), as recorded by :func:`set_labels`."""
     if not mol.HasProp(LABEL_PROP):
         return {}
     out = {}
@@ -59,13 +60,13 @@ def _pairs(mol: Chem.Mol) -> dict[int, tuple[int, int]]:
 
 def labelled_hydrogens(mol: Chem.Mol) -> dict[int, int]:
     """Heavy-atom index → number of its hydrogens that are isotope labels (empty for most molecules)."""
-    return {i: d + t for i, (d, t) in _pairs(mol).items()}
+    return {i: d + t for i, (d, t) in label_pairs(mol).items()}
 
 
 def isotope_totals(mol: Chem.Mol) -> dict[str, int]:
     """How many of the molecule's hydrogens are 2H ('D') and 3H ('T'), e.g. ``{'D': 3}``; empty when none."""
-    d = sum(x for x, _ in _pairs(mol).values())
-    t = sum(y for _, y in _pairs(mol).values())
+    pairs = label_pairs(mol).values()
+    d, t = sum(x for x, _ in pairs), sum(y for _, y in pairs)
     return {k: v for k, v in (("D", d), ("T", t)) if v}
 
 

@@ -23,7 +23,7 @@ from rdkit import Chem
 from rdkit.Chem.MolStandardize import rdMolStandardize
 
 from ..errors import InputError
-from .labels import _pairs, set_labels, strip_labelled_hydrogens
+from .labels import label_pairs, set_labels, strip_labelled_hydrogens
 
 #: Largest molecule (heavy atoms) the tool describes and predicts; beyond it the request is refused.
 MAX_HEAVY_ATOMS = 250
@@ -121,7 +121,7 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
             # explicit [2H]/[3H] atoms become ordinary hydrogens, removed like any explicit H; how many
             # each heavy atom carried is kept (:mod:`.labels`: they give no 1H line and no DEPT/HSQC proton)
             mol, heavy_before = strip_labelled_hydrogens(mol)
-            labels = _pairs(mol)
+            labels = label_pairs(mol)
             atom_map = [atom_map[i] for i in heavy_before]
     charged = any(a.GetFormalCharge() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms())))
     if charged:

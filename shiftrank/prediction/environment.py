@@ -179,12 +179,11 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     bond_list = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), b.GetBondType(), b.GetIsConjugated() or b.GetIsAromatic())
                  for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))]
     bonds = np.array([(i, j, _BOND_KINDS.get(t, 0), c) for i, j, t, c in bond_list], dtype=np.int64).reshape(-1, 4)
+    labels = labelled_hydrogens(mol)   # 2H/3H (chem/labels.py): no 1H shift, a 13C isotope shift
     if nucleus == "13C":
         centres = np.array([i for i, row in enumerate(info) if row[0] == 6], dtype=np.int64)
-    else:
-        labels = labelled_hydrogens(mol)   # an atom whose H are all 2H/3H has no 1H shift to predict
+    else:   # an atom whose H are all 2H/3H has no 1H shift to predict
         centres = np.array([i for i, row in enumerate(info) if row[5] - labels.get(i, 0) > 0], dtype=np.int64)
-    labels_13c = labelled_hydrogens(mol) if nucleus == "13C" else None
     rings = list(mol.GetRingInfo().AtomRings())
     smallest = [0] * n
     for ring in rings:
@@ -209,9 +208,9 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     keys = (ring_keys(mol, centres, (info, [(i, j, int(t)) for i, j, t, _ in bond_list], rings))
             if nucleus == "13C" else None)
     offsets = None
-    if nucleus == "13C" and labels_13c:
+    if nucleus == "13C" and labels:
         # the models know unlabelled molecules: a carbon carrying n 2H/3H is predicted ISOTOPE_SHIFT_13C × n lower
-        offsets = np.array([ISOTOPE_SHIFT_13C * labels_13c.get(int(c), 0) for c in centres], dtype=np.float64)
+        offsets = np.array([ISOTOPE_SHIFT_13C * labels.get(int(c), 0) for c in centres], dtype=np.float64)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
                     pi=pi, ring_keys=keys, offsets=offsets)
 
