@@ -238,7 +238,8 @@ def _case_from_args(args) -> tuple[dict, dict]:
     if not (args.peaks or args.peaks_1h or args.text or hsqc):
         raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc (cross peaks) and/or --text (printed characterisation)")
     lists = {}
-    case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent}
+    case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent,
+            "rotamers": bool(getattr(args, "rotamers", False))}
     if args.peaks:
         lists["13C"] = case["peaks"] = read_peaks(args.peaks, solvent=args.solvent)
     if args.peaks_1h:
@@ -259,7 +260,7 @@ def _rank_sample(args, case: dict):
     return rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
-                hsqc=case.get("hsqc"), mz=_mz_arg(args))
+                hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"])
 
 
 def _write_sample_report(args, case: dict, result, path: str) -> None:
@@ -425,6 +426,10 @@ def cmd_demo(args) -> int:
     return run_demo(args.output)
 
 
+ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an isomer mixture): a line beside another "
+                 "may be the second form's (a paragraph saying 'mixture of rotamers' is read so without this)")
+
+
 def _sample_options(s, candidates_required: bool) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
@@ -438,6 +443,7 @@ def _sample_options(s, candidates_required: bool) -> None:
     s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
     s.add_argument("--adduct", choices=list(ADDUCTS), help="the ion --mz was measured as (default: any common one)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
+    s.add_argument("--rotamers", action="store_true", help=ROTAMERS_HELP)
     s.add_argument("--keep-mismatches", action="store_true",
                    help="do not demote candidates contradicting formula, mass or m/z")
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
@@ -497,6 +503,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
     s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance in ppm (default 5)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
+    s.add_argument("--rotamers", action="store_true", help=ROTAMERS_HELP)
     s.add_argument("--json", action="store_true")
     s.set_defaults(func=cmd_inventory)
 

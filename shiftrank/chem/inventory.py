@@ -22,7 +22,7 @@ from fractions import Fraction
 
 from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_label, ion_mz, parse_formula
-from ..inputs.peaks import PeakList
+from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
 from ..words import count
 
 H_OF = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
@@ -130,7 +130,7 @@ class Inventory:
         if self.h_ratio:
             out.append(f"1H integrals as small integers: {':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
         if self.h_regions:
-            out.append("1H by region: " + ", ".join(f"{n} H {r}" for r, n in self.h_regions if n))
+            out.append("1H by region: " + ", ".join(f"{n:g} H {r}" for r, n in self.h_regions if n))
         out.extend(f"1H pattern: {x}" for x in self.h_patterns)
         if self.has_13c and typed:
             out.append(f"tentative piece count: {self.tentative}")
@@ -286,6 +286,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
         else:
             unknown += n
     inv = Inventory(by_type, unknown, carbons, h_on_c)
+    pairs = doubled_pairs(peaks, "13C")
     if from_hsqc:
         inv.inferences.append("CHn from the HSQC cross peaks and the 1H integrals (common practice): " + "; ".join(from_hsqc))
     phased = [p.shift for p in peaks if p.multiplicity == "CH/CH3"]
@@ -341,6 +342,12 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
                                     "observed CHn pieces fits its H count: check the multiplicities or the formula")
         elif dC > 0:
             inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap")
+        elif dC < 0 and pairs:
+            left = carbons - pairs
+            inv.findings.append(f"{-dC} more carbon signals than the formula has carbons; the text says the compound shows "
+                                f"two forms, and {count(pairs, 'pair')} of lines within {DOUBLED_GAP['13C']:g} ppm read as one "
+                                f"carbon each leave {left} signals for {nC} carbons"
+                                + (": consistent" if left <= nC else ": still more signals than carbons (impurity?)"))
         elif dC < 0:
             inv.findings.append(f"{-dC} more carbon signals than the formula has carbons: extra peaks "
                                 "(impurity, residual solvent, rotamers or C–F coupled lines)")
@@ -384,6 +391,15 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
     if not ints or len(ints) != len(sample):
         if sample:
             inv.findings.append(f"1H: {count(len(sample), 'signal')}; integrals missing for {len(sample) - len(ints)}, so no proton count")
+        return
+    if any(p.doubled for p in sample) and any(abs(x - round(x)) > 0.05 for x in ints):
+        # two forms: the integrals are printed in protons, each line its form's share ('0.5H'); their sum counts
+        # the protons, and no small-integer pattern is read from the shares
+        total = sum(ints)
+        inv.h_total_from_integrals = round(total)
+        inv.findings.append(f"1H integrals printed as shares of two forms (e.g. {min(ints):g}H): they sum to {total:g} H")
+        inv.h_regions = [(name, round(sum(x for p, x in zip(sample, ints) if lo <= p.shift < hi), 1))
+                         for lo, hi, name in H_REGIONS]
         return
     inv.h_ratio = integer_ratio(ints, max_multiplier=8)
     inv.h_total_from_integrals = sum(inv.h_ratio)

@@ -21,6 +21,42 @@ from ..errors import InputError
 from .solvents import SOLVENTS, match_solvent, normalise_solvent
 
 RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}
+#: ppm: in a spectrum of two forms (rotamers, an isomer mixture), a line this close to another may be the
+#: other form's (13C lines of amide and carbamate rotamers are typically 0.1–1.5 ppm apart, 1H lines
+#: 0.02–0.3 ppm; from memory)
+DOUBLED_GAP = {"13C": 2.0, "1H": 0.3}
+
+
+def mark_doubled(peaks: list[Peak], nucleus: str) -> int:
+    """In a spectrum of two forms, mark every line within ``DOUBLED_GAP`` of another line as possibly the
+    other form's (lines already marked stay so); returns how many lines are marked."""
+    gap = DOUBLED_GAP[nucleus]
+    edges = sorted((pk.lo if pk.lo is not None else pk.shift, pk.hi if pk.hi is not None else pk.shift, k)
+                   for k, pk in enumerate(peaks) if pk.solvent is None)
+    for a in range(len(edges) - 1):
+        (_, hi, k), (lo, _, k2) = edges[a], edges[a + 1]
+        if lo - hi <= gap:
+            peaks[k].doubled = peaks[k2].doubled = True
+    return sum(pk.doubled for pk in peaks)
+
+
+def doubled_note(said: str, n: int) -> str:
+    return (f"the spectrum shows two forms ('{said}'): {n} line{'s' if n != 1 else ''} printed beside another line "
+            "may be the second form's and cost little when no class explains them")
+
+
+def doubled_pairs(peaks: list, nucleus: str) -> int:
+    """How many pairs of lines marked ``doubled`` can be read as one signal each (adjacent lines within
+    ``DOUBLED_GAP``; pairing from the low end gives the most pairs)."""
+    pts = sorted(p.shift for p in peaks if p.doubled and not p.solvent)
+    gap = DOUBLED_GAP[nucleus]
+    n, k = 0, 0
+    while k + 1 < len(pts):
+        if pts[k + 1] - pts[k] <= gap:
+            n, k = n + 1, k + 2
+        else:
+            k += 1
+    return n
 #: Most peaks one list may hold (a spectrum's peak list, not a raw data dump).
 MAX_PEAKS = 2000
 
@@ -58,6 +94,7 @@ class Peak:
     j: tuple = ()                     # coupling constants (Hz) as printed
     coupling: str | None = None       # 13C: a printed heteronuclear pattern ('q' of a CF3), not a DEPT statement
     note: str = ""                    # printed assignment note (kept, not used)
+    doubled: bool = False             # printed beside another line of a spectrum that shows two forms (rotamers)
 
 
 @dataclass

@@ -25,8 +25,8 @@ from dataclasses import dataclass, field
 
 from ..errors import InputError
 from ..words import count
-from .peaks import (HSQC_KINDS, RANGES, HsqcList, Peak, PeakList, check_count, flag_solvent, hsqc_list, merge_duplicates,
-                    normalise_1h_multiplicity)
+from .peaks import (HSQC_KINDS, RANGES, HsqcList, Peak, PeakList, check_count, doubled_note, flag_solvent, hsqc_list,
+                    mark_doubled, merge_duplicates, normalise_1h_multiplicity)
 from .solvents import normalise_solvent
 
 #: Ratio of the 1H to the 13C Larmor frequency (gyromagnetic ratios; 400 MHz 1H ≈ 100.6 MHz 13C).
@@ -97,6 +97,7 @@ class PrintedPeak:
     dept: str | None = None         # 13C: C/CH/CH2/CH3 when printed (DEPT)
     note: str = ""                  # assignment text, kept, not used
     fragment: str = ""              # the printed text of this peak
+    twin: bool = False              # one of two values sharing one description ('4.50/4.43 (s, 1H)', '8.36 and 8.19 (s, 1H)')
 
 
 @dataclass
@@ -110,6 +111,7 @@ class TextSection:
     solvent_text: str | None = None
     peaks: list[PrintedPeak] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    doubled: str | None = None      # the printed words saying the spectrum shows two forms ('mixture of rotamers')
 
     @property
     def carbon_mhz(self) -> float | None:
@@ -192,7 +194,12 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
         else:
             pk = Peak(p.shift, p.multiplicity, p.integral, 1, None, None, lo=p.lo, hi=p.hi, j=p.j)
         pk.note = p.note
+        pk.doubled = bool(sec.doubled and p.twin)
         peaks.append(pk)
+    if sec.doubled:   # the pairs printed with one description are marked already
+        n = mark_doubled(peaks, sec.nucleus)
+        if n:
+            notes.append(f"{sec.nucleus} text: {doubled_note(sec.doubled, n)}")
     if sec.nucleus == "13C":
         merged = merge_duplicates(peaks, notes, "13C")
     else:
@@ -201,6 +208,12 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
     pl = PeakList(sec.nucleus, merged, source, notes,
                   sec.carbon_mhz if sec.nucleus == "13C" else sec.field_mhz)
     return flag_solvent(pl, solvent or sec.solvent, keep_integrated=True)
+
+
+#: words saying that a spectrum shows two forms of the compound
+_DOUBLED = re.compile(r"\brotamer|\bconformers?\b|\bmixture\s+of\s+(?:\w+\s+){0,2}(?:isomers|diastereo(?:iso)?mers|"
+                      r"rotamers|conformers|tautomers|atropisomers|[EZ]\s*/\s*[EZ])|\b[EZ]\s*/\s*[EZ][\s-]+(?:isomers|mixture)|"
+                      r"\b(?:isomeric|diastereomeric|rotameric|conformational)\s+mixture", re.I)
 
 
 def _coupling(p: PrintedPeak) -> str | None:
@@ -546,7 +559,8 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         if twin is not None:
             each = "each" in detail
             other = PrintedPeak(twin, None, None, peak.integral, peak.multiplicity, peak.j, peak.count, peak.dept,
-                                peak.note, frag)
+                                peak.note, frag, twin=True)
+            peak.twin = True
             if peak.integral and not each:
                 peak.integral = other.integral = peak.integral / 2
             sec.peaks.append(other)
@@ -624,6 +638,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             out.sections.append(sec)
             continue
         peaks_text = _strip_trailer(peaks_text)
+        two = _DOUBLED.search(header + " " + cond) or _DOUBLED.search(peaks_text)
+        if two:
+            sec.doubled = two.group(0)
         lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
         if sec.nucleus == "13C":
@@ -639,6 +656,10 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         if sec.nucleus not in ("1H", "13C") and sec.peaks:
             sec.notes.append(f"{sec.nucleus} section read ({count(len(sec.peaks), 'peak')}) but not used for ranking")
         out.sections.append(sec)
+    said = next((s.doubled for s in out.sections if s.doubled), None)
+    for s in out.sections:   # the compound shows its two forms in every spectrum of the paragraph
+        if said and s.doubled is None and s.nucleus in ("1H", "13C"):
+            s.doubled = said
     if not any(s.peaks for s in out.sections):
         why = "; ".join(n for s in out.sections for n in s.notes[:2])
         raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))

@@ -2,8 +2,9 @@
 
 Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "peaks_1h": [{"shift" or "range",
 "integral"?, "multiplicity"?, "j"?}], "text": "<printed paragraph(s)>", "candidates": [SMILES…],
-"formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?}``; any one of ``peaks``, ``peaks_1h``
-or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives.  Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
+"formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?, "rotamers"?}``; any one of ``peaks``, ``peaks_1h``
+or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives;
+``"rotamers": true`` says the spectra show two forms of the compound.  Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
 last with an ``"error"``).  A line that cannot be read becomes an output line with an ``"error"``.
 """
 from __future__ import annotations
@@ -19,7 +20,8 @@ from .ranking import rank_many
 
 CHUNK = 64
 MAX_LINE = 5_000_000   # characters in one JSON line (one case)
-FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers")
+FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers",
+          "rotamers")
 
 
 def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:

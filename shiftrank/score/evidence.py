@@ -215,7 +215,8 @@ class CarbonEvidence(_Evidence):
 
     def observed(self, pl: PeakList) -> list[ObservedPeak]:
         return PeakSet(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
-                                    coupling=p.coupling, field=pl.field_mhz) for p in pl.peaks)
+                                    coupling=p.coupling, field=pl.field_mhz, doubled=p.doubled)
+                       for p in pl.peaks)
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
         cc = _carbon_classes(mol, ranks, facts)
@@ -358,7 +359,10 @@ class ProtonEvidence(_Evidence):
         if sample and len(ints) >= INTEGRAL_SHARE * len(sample):
             vals = np.array(ints, dtype=float)
             near = (np.abs(vals - np.round(vals)) <= 0.2) & (np.round(vals) >= 1)
-            if near.mean() >= 0.75:
+            if any(p.doubled for p in sample):
+                # two forms: printed in protons, a form's share ('0.5H', '1.5H') rounded up to whole protons
+                scaled = np.maximum(1, np.ceil(vals - 0.25)).astype(int)
+            elif near.mean() >= 0.75:
                 # printed in protons; a few odd values (0.1H/0.9H of a tautomer mix) are rounded, at least 1
                 scaled = np.maximum(1, np.round(vals)).astype(int)
             else:  # relative areas: the best small-integer ratio (inventory's rule)
@@ -373,7 +377,7 @@ class ProtonEvidence(_Evidence):
         out = PeakSet()
         for k, p in enumerate(pl.peaks):
             out.append(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, p.lo, p.hi, tuple(p.j),
-                                    caps.get(k) if caps else None))
+                                    caps.get(k) if caps else None, doubled=p.doubled))
         return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
@@ -420,7 +424,7 @@ class ProtonEvidence(_Evidence):
             n_h = sum(c.units for c in classes)
             n_x = sum(c.units for c in classes if c.exchangeable)
             printed = sum(p.capacity or 0 for p in peaks if not p.solvent)
-            if printed != n_h:
+            if printed != n_h and not any(p.doubled for p in peaks):   # (shares of two forms are rounded up)
                 out.append(f"integrals sum to {printed} H; the candidate has {n_h} H"
                            + (f" ({n_x} on O/N/S, often not seen)" if n_x else ""))
         n_mm = len({p.cls for p in a.pairings if not p.multiplicity_ok})
@@ -434,6 +438,9 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     a, peaks = res.assignment, res.peaks
     n_obs = res.observed_signals
     n_unexplained = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent)
+    n_second = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent and peaks[j].doubled)
+    unexplained = (count(n_unexplained, 'peak', 'peaks') + " unexplained"
+                   + (f" ({n_second} beside another line: a second form's?)" if n_second else ""))
     missing = [p for p in a.pairings if p.peak is None]
     n_missing = len({p.cls for p in missing})
     n_missing_x = len({p.cls for p in missing if res.classes[p.cls].exchangeable})
@@ -443,8 +450,8 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
                 + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
                 + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
                 + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
-                + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained" if n_unexplained else "")]
-    return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained"] if n_unexplained else []
+                + (f"; {unexplained}" if n_unexplained else "")]
+    return [f"{res.nucleus} {unexplained}"] if n_unexplained else []
 
 
 def _quality_flags(res: NucleusResult, what: tuple[str, str]) -> list[str]:

@@ -63,6 +63,7 @@ class MatchCosts:
     missing_near: float | None = None    # a class predicted within near_scale of another class, unlisted
     shared_multiplet: float = 0.0        # 1H: per further class inside one printed first-order multiplet (d, t, dd …)
     shared_unresolved: float = 0.0       # 1H: per further class inside one printed unresolved multiplet ('m', a range, 'br')
+    extra_doubled: float = 1.0           # an unexplained line that may be a second form's (text says rotamers); chosen, not fitted
     h_t_df: float | None = None          # HSQC: Student-t of the proton dimension (None: no proton dimension)
     h_t_scale: float = 1.0
 
@@ -117,6 +118,7 @@ class ObservedPeak:
     field: float | None = None        # 13C observation frequency (MHz) when the text gives it
     h_lo: float | None = None         # HSQC: proton shift of the cross peak (a range: the two protons of one CH2)
     h_hi: float | None = None
+    doubled: bool = False             # a line beside another of a spectrum showing two forms (rotamers): may be the other form's
 
 
 @dataclass(slots=True)
@@ -168,7 +170,8 @@ class PeakSet(list):
             hi = np.array([p.hi if p.hi is not None else p.shift for p in self], dtype=float)
             extra_free = np.array([p.solvent for p in self], dtype=bool)
             flexible = all(p.capacity is None for p in self)
-            self._arrays = (obs, lo, hi, bool(np.any(hi > lo)), extra_free, flexible)
+            doubled = np.array([p.doubled for p in self], dtype=bool)
+            self._arrays = (obs, lo, hi, bool(np.any(hi > lo)), extra_free, flexible, doubled)
         return self._arrays
 
 
@@ -182,7 +185,7 @@ def deviations(classes: list[SignalClass], peaks: list[ObservedPeak], mu: np.nda
     """(classes × peaks) observed − predicted; a printed range counts from its nearer edge (0 inside)."""
     if mu is None:
         mu = np.array([c.shift for c in classes], dtype=float)
-    obs, lo, hi, ranged, _, _ = _arrays(peaks)
+    obs, lo, hi, ranged, _, _, _ = _arrays(peaks)
     if ranged:
         return np.where(mu[:, None] < lo[None, :], lo[None, :] - mu[:, None],
                         np.where(mu[:, None] > hi[None, :], hi[None, :] - mu[:, None], 0.0))
@@ -233,8 +236,8 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     mcost, bad = _mismatch(classes, peaks, costs, mismatch) if npk else (dev, dev.astype(bool))
     base = dcost + mcost
     if npk:
-        _, _, _, _, solvent, flexible = _arrays(peaks)
-        extra = np.where(solvent, 0.0, costs.extra)
+        _, _, _, _, solvent, flexible, doubled = _arrays(peaks)
+        extra = np.where(solvent, 0.0, np.where(doubled, min(costs.extra_doubled, costs.extra), costs.extra))
     else:
         extra, flexible = np.zeros(0), True
     gap = np.full(nc, np.inf)
@@ -316,7 +319,8 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     per_unit = base[row_cls] / units[row_cls, None]
     cols, col_peak, col_kind = [], [], []   # kind 0: within capacity, 1: beyond it
     caps = np.array([max(1, int(p.capacity)) if p.capacity is not None else 1 for p in peaks], dtype=int)
-    under = np.array([0.0 if p.solvent else costs.integral_mismatch for p in peaks])
+    # (a line of a two-form spectrum integrates for its form's share: its protons may all be the other form's)
+    under = np.array([0.0 if p.solvent or p.doubled else costs.integral_mismatch for p in peaks])
     for j, p in enumerate(peaks):
         # the first unit of a peak saves its whole 'extra' cost (a peak explained by any proton is
         # explained); each further unit up to the integral saves one 'integral_mismatch'

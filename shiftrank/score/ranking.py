@@ -31,7 +31,7 @@ from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
-from ..inputs.peaks import Peak, PeakList, flag_solvent, merge_duplicates, peaks_from_records
+from ..inputs.peaks import Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates, peaks_from_records
 from ..inputs.solvents import normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
@@ -460,7 +460,8 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
     for n, r in best.nuclei.items():
         k = max(len(r.classes), 1)
         limit = 0.6 if n == "1H" else 4.0
-        unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent)
+        # (a line beside another in a spectrum of two forms may be the second form's: not counted)
+        unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent and not r.peaks[j].doubled)
         if (r.mae is not None and r.mae > limit) or r.beyond_3sigma > max(1, 0.25 * k) or unexplained > max(2, 0.3 * k):
             poor.append(f"{n} MAE {r.mae:.2f} ppm, {count(r.beyond_3sigma, 'class', 'classes')} beyond 3σ, {count(unexplained, 'peak')} unexplained"
                         if r.mae is not None else f"{n}: nothing assigned")
@@ -489,6 +490,9 @@ def _count_misfit(valid: list[CandidateResult]) -> str | None:
         if not rs:
             continue
         observed = rs[0].observed_signals
+        pairs = doubled_pairs(rs[0].peaks, n)   # two forms: each pair of close lines may be one carbon
+        if pairs and any(observed - pairs <= len(r.classes) <= observed for r in rs):
+            return None
         if all(len(r.classes) != r.observed_signals for r in rs):
             expected = sorted({len(r.classes) for r in rs})
             span = f"{expected[0]}" if len(expected) == 1 else f"{expected[0]}–{expected[-1]}"
@@ -560,6 +564,16 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
             notes.extend(f"text: {n}" for n in hs.notes)
     if not out:
         raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
+    two = case.get("rotamers")
+    if two is not None and not isinstance(two, bool):
+        raise InputError("rotamers: expected true or false (the spectra show two forms of the compound)")
+    if two:
+        for nucleus in ("13C", "1H"):
+            pl = out.get(nucleus)
+            if pl is not None:
+                n = mark_doubled(pl.peaks, nucleus)
+                if n:
+                    notes.append(f"{nucleus}: {doubled_note('rotamers', n)}")
     if parsed is not None:
         for sec in parsed.sections:
             if sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
@@ -592,7 +606,8 @@ def case_ions(case: dict) -> list[MassStatement]:
 def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass: float | None = None,
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
-         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None) -> RankResult:
+         peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
+         rotamers: bool = False) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
     ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects or lists of
@@ -604,6 +619,10 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     found …``): a candidate they contradict is flagged and ranked last.
     ``with_isomers`` (True, or kinds such as ``"positional,ambident"``) adds the alternatives a reaction
     could have given to each candidate (:func:`shiftrank.chem.isomers.isomers`), named by their relation.
+    ``rotamers`` says the spectra show two forms of the compound (amide or carbamate rotamers, an isomer
+    mixture): a line within a few tenths of a ppm (13C: 2 ppm) of another may be the second form's and
+    costs little when no class explains it; a paragraph that says so (``mixture of rotamers``) is read so
+    without it.
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
     with its error.
 
@@ -614,7 +633,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     'CCOC(C)=O'
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
-                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz)],
+                             mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz,
+                             rotamers=rotamers)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
