@@ -477,3 +477,15 @@ def test_a_dept135_list_tells_a_methylene_from_a_methine():
     r = rank(text=text, candidates=["CC(C)c1ccccc1", "CCc1ccc(C)cc1"])
     assert r.best.smiles == "CCc1ccc(C)cc1" and r.best.probability > 0.9
     assert not any("against" in f for f in r.best.flags)
+
+
+def test_second_value_of_a_pair_keeps_the_first_ones_details():
+    """'160 and 163 (2CO)' (PMC7179205) and '51.7/51.1 (α-CH-Leu)' (PMC6264494): the second value carries the
+    same description as the first (before, its fields were shifted: the printed text landed in its DEPT
+    field, so no carbon class could take it without a multiplicity mismatch)."""
+    sec = read_nmr_text("13C-NMR (125 MHz, DMSO-d6); 172.0 (C=N, thiazolidine), 160 and 163 (2CO), "
+                        "51.7/51.1 (α-CH-Leu), 70.3 (1C, CH2)").section("13C")
+    pairs = [p for p in sec.peaks if p.twin]
+    assert sorted(p.shift for p in pairs) == [51.1, 51.7, 160.0, 163.0]
+    assert all(p.dept is None and p.sign is None and p.shift_h is None for p in pairs)
+    assert {p.note for p in pairs} == {"2CO", "α-CH-Leu"}

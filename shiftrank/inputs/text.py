@@ -558,8 +558,8 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         sec.peaks.append(peak)
         if twin is not None:
             each = "each" in detail
-            other = PrintedPeak(twin, None, None, peak.integral, peak.multiplicity, peak.j, peak.count, peak.dept,
-                                peak.note, frag, twin=True)
+            other = PrintedPeak(twin, integral=peak.integral, multiplicity=peak.multiplicity, j=peak.j, count=peak.count,
+                                sign=peak.sign, dept=peak.dept, note=peak.note, fragment=frag, twin=True)
             peak.twin = True
             if peak.integral and not each:
                 peak.integral = other.integral = peak.integral / 2
