@@ -441,7 +441,12 @@ def _read_file(path: str | Path) -> tuple[Path, str]:
 
 
 def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
-    """Read a peak file (.txt, .csv, .tsv, .json; anything else is read as text)."""
+    """Read a peak file (.txt, .csv, .tsv, .json; a JCAMP-DX peak table or 1D spectrum, .jdx/.dx, whose
+    peaks are picked; anything else is read as text)."""
+    from .spectra import is_jcamp, read_jcamp   # (spectra builds on this module)
+
+    if is_jcamp(path):
+        return read_jcamp(path, nucleus, solvent)
     p, text = _read_file(path)
     ext = p.suffix.lower()
     fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(ext)

@@ -1,0 +1,386 @@
+"""Instrument files: JCAMP-DX 1D NMR spectra and peak tables, read into peak lists.
+
+JCAMP-DX is the open exchange format of IUPAC (McDonald, R. S.; Wilks, P. A. (1988) Appl. Spectrosc. 42,
+151; the NMR labels: Davies, A. N.; Lampen, P. (1993) Appl. Spectrosc. 47, 1093).  Two kinds of block
+are read:
+
+* a **peak table** (``##PEAK TABLE= (XY..XY)``, also ``(XYW..XYW)`` and ``(XYM..XYM)``): the lines the
+  instrument software picked, with their heights (and widths or multiplicity letters);
+* a **processed 1D spectrum** (``##XYDATA= (X++(Y..Y))``, plain or compressed (ASDF); decoded by
+  nmrglue's JCAMP-DX reader), whose peaks are picked here: local maxima standing ``min_snr`` times above
+  the noise (σ from the median absolute deviation of the whole trace, which is mostly baseline), each
+  refined by a parabola through its three highest points.
+
+13C: every picked line is one peak (C–F multiplet lines stay separate lines, as printed lists have them;
+the ranking reads them as one carbon where a candidate allows).  1H: lines closer than ``MULTIPLET_GAP_HZ``
+are one multiplet, integrated over its span (the area of the trace, or the lines' heights × widths for a
+peak table); a first-order pattern is named when the lines say so (one line s; two of equal height d;
+1:2:1 t; 1:3:3:1 q; four equal lines at a, b, a spacings dd), else m; J values come from the spacings
+at the observe frequency.  Residual solvent signals (Fulmer et al. 2010) are flagged as for typed lists.
+X values in Hz are converted with ``##.OBSERVE FREQUENCY``; ``##.SHIFT REFERENCE`` is not applied (the
+trace is taken as referenced).
+
+Owns file reading and peak picking; returns :class:`~shiftrank.inputs.peaks.PeakList` objects for the
+rest of the program, which never sees the trace.
+"""
+from __future__ import annotations
+
+import re
+import warnings
+from dataclasses import dataclass
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import InputError
+from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, normalise_1h_multiplicity
+from .solvents import normalise_solvent, solvent_signals
+
+#: file name endings read as JCAMP-DX
+JCAMP_EXTENSIONS = (".jdx", ".dx", ".jcamp", ".jcm")
+#: largest file read (a 1D spectrum of 256k points in ASDF is a few MB)
+MAX_BYTES = 64 * 1024 * 1024
+#: default peak-picking threshold in multiples of the noise σ, per nucleus (13C quaternary lines are weak)
+MIN_SNR = {"13C": 6.0, "1H": 10.0}
+#: 1H: lines closer than this belong to one multiplet (no H–H coupling exceeds about 18.5 Hz, common practice)
+MULTIPLET_GAP_HZ = 20.0
+#: 1H: a multiplet's integration span reaches this many line widths beyond its outer lines
+SPAN_WIDTHS = 4.0
+#: 1H: multiplets with less than this share of the largest one's area are set aside (the 13C satellites of a
+#: strong singlet are 0.55 % of it each, common practice)
+WEAK_SHARE = 0.02
+
+
+@dataclass
+class Trace:
+    """A processed 1D spectrum: shifts (ppm, ascending) and intensities."""
+
+    ppm: np.ndarray
+    y: np.ndarray
+    mhz: float | None
+
+
+def is_jcamp(path: str | Path) -> bool:
+    return Path(path).suffix.lower() in JCAMP_EXTENSIONS
+
+
+def _label(raw: str) -> str:
+    """A JCAMP-DX label in its compared form: upper case without spaces, '-', '/', '_' (the standard's rule)."""
+    return re.sub(r"[\s\-/_]", "", raw).upper()
+
+
+def _blocks(text: str) -> list[dict]:
+    """The labelled data records of each block (a block starts at ##TITLE=); values keep their lines."""
+    blocks: list[dict] = []
+    cur: dict | None = None
+    key = None
+    for line in text.splitlines():
+        line = line.split("$$", 1)[0].rstrip()
+        m = re.match(r"\s*##([^=]*)=(.*)$", line)
+        if m:
+            key = _label(m.group(1))
+            if key == "TITLE" or cur is None:
+                cur = {}
+                blocks.append(cur)
+            cur.setdefault(key, m.group(2).strip())
+            continue
+        if cur is not None and key is not None and line.strip():
+            cur[key] = cur[key] + "\n" + line
+    return blocks
+
+
+def _nucleus(block: dict) -> str | None:
+    raw = block.get(".OBSERVENUCLEUS") or ""
+    m = re.search(r"(\d+)\s*([A-Za-z]{1,2})", raw)
+    if not m:
+        return None
+    return m.group(1) + m.group(2).capitalize()
+
+
+def _float(block: dict, key: str, where: str) -> float | None:
+    raw = block.get(key)
+    if raw is None or not raw.strip():
+        return None
+    try:
+        return float(raw.split()[0].rstrip(","))
+    except ValueError:
+        raise InputError(f"{where}: ##{key}= '{raw[:30]}' is not a number") from None
+
+
+def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = None,
+               min_snr: float | None = None) -> PeakList:
+    """Peaks of a JCAMP-DX file (a peak table, or a processed 1D spectrum whose peaks are picked).
+
+    Raises :class:`~shiftrank.errors.InputError` naming the file and the problem (not JCAMP-DX, another
+    nucleus than ``nucleus``, Hz without an observe frequency, no data block, no peak above the threshold).
+    """
+    p = Path(path)
+    if not p.exists():
+        raise InputError(f"{p}: no such file")
+    if p.stat().st_size > MAX_BYTES:
+        raise InputError(f"{p.name}: {p.stat().st_size:,} bytes; JCAMP-DX files above {MAX_BYTES:,} bytes are not read")
+    text = p.read_text(encoding="latin-1")
+    where = p.name
+    if not re.search(r"^\s*##JCAMP-?DX\s*=", text, re.I | re.M):
+        raise InputError(f"{where}: not a JCAMP-DX file (no '##JCAMP-DX=' line)")
+    blocks = _blocks(text)
+    table = next((b for b in blocks if "PEAKTABLE" in b), None)
+    spectrum = next((b for b in blocks if "XYDATA" in b or "DATATABLE" in b), None)
+    block = table if table is not None else spectrum
+    if block is None:
+        raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=)")
+    head = blocks[0]
+    found = _nucleus(block) or _nucleus(head)
+    if found is not None and found != nucleus:
+        raise InputError(f"{where}: the file holds a {found} spectrum (##.OBSERVE NUCLEUS= "
+                         f"{(block.get('.OBSERVENUCLEUS') or head.get('.OBSERVENUCLEUS') or '').strip()}), given as {nucleus}")
+    mhz = _float(block, ".OBSERVEFREQUENCY", where) or _float(head, ".OBSERVEFREQUENCY", where)
+    file_solvent = (block.get(".SOLVENTNAME") or head.get(".SOLVENTNAME") or "").strip() or None
+    notes: list[str] = []
+    if table is not None:
+        ppm, height, width, letters = _peak_table(table, mhz, where)
+        what = f"JCAMP-DX {nucleus} peak table, {len(ppm)} lines"
+        trace = None
+    else:
+        trace = _trace(p, block, mhz, where)
+        ppm, height, width = pick_lines(trace, nucleus, min_snr)
+        letters = [None] * len(ppm)
+        what = (f"JCAMP-DX {nucleus} spectrum, {len(trace.y):,} points: {len(ppm)} lines picked above "
+                f"{min_snr or MIN_SNR[nucleus]:g}× the noise")
+    if mhz:
+        what += f", {mhz:g} MHz"
+    if file_solvent:
+        what += f", solvent '{file_solvent}'"
+    notes.append(f"{where}: {what}")
+    if not len(ppm):
+        raise InputError(f"{where}: no {nucleus} peak found" + (" above the picking threshold" if trace is not None else ""))
+    lo, hi = RANGES[nucleus]
+    keep = (ppm >= lo) & (ppm <= hi)
+    if not keep.all():
+        notes.append(f"{where}: {int((~keep).sum())} lines outside {lo:g}…{hi:g} ppm set aside")
+    ppm, height, width = ppm[keep], height[keep], width[keep]
+    letters = [m for m, k in zip(letters, keep) if k]
+    if nucleus == "13C":
+        peaks = [Peak(round(float(x), 3), None, round(float(h), 4), line=None) for x, h in zip(ppm, height)]
+    else:
+        peaks = _multiplets(ppm, height, width, letters, mhz, trace, notes, where)
+    check_count(len(peaks), where)
+    pl = PeakList(nucleus, sorted(peaks, key=lambda q: q.shift), where, notes, mhz)
+    key = normalise_solvent(solvent) if solvent else normalise_solvent(file_solvent) if file_solvent else None
+    before = len(pl.notes)
+    pl = flag_solvent(pl, key)
+    if key is not None and nucleus == "13C":
+        _solvent_multiplet(pl, key, mhz)
+    if nucleus == "1H":   # integrals relative to the smallest multiplet of the sample
+        areas = [q.intensity for q in pl.peaks if q.solvent is None and q.intensity]
+        unit = min(areas) if areas else 1.0
+        for q in pl.peaks:
+            if q.intensity is not None:
+                q.intensity = round(q.intensity / unit, 2)
+    n = sum(1 for q in pl.peaks if q.solvent)
+    if n:   # one note for the solvent's lines instead of one per line
+        del pl.notes[before:]
+        pl.notes.append(f"{where}: {n} line{'s' if n != 1 else ''} at the residual {key} signal"
+                        + (" and its C–D multiplet" if nucleus == "13C" else "") + " (Fulmer et al. 2010): set aside as solvent")
+    return pl
+
+
+#: Hz: largest one-bond 13C–2H coupling of the common deuterated solvents (CDCl3 32 Hz; DMSO-d6 21 Hz;
+#: from memory); the lines of a solvent's C–D multiplet lie within 3 of them of its centre (a septet)
+CD_COUPLING_HZ = 32.0
+
+
+def _solvent_multiplet(pl: PeakList, key: str, mhz: float | None) -> None:
+    """Flag the outer lines of the solvent's C–D multiplet, which a picked spectrum shows line by line."""
+    reach = 3 * CD_COUPLING_HZ / (mhz or 75.0) + 0.05
+    refs = solvent_signals(key, "13C")
+    for p in pl.peaks:
+        if p.solvent is None and any(abs(p.shift - r) <= reach for r in refs):
+            p.solvent = key
+
+
+def _peak_table(block: dict, mhz: float | None, where: str):
+    raw = block["PEAKTABLE"]
+    form = re.match(r"\s*\(\s*(XY[WM]?)\s*\.\.\s*XY[WM]?\s*\)", raw, re.I)
+    if not form:
+        raise InputError(f"{where}: ##PEAK TABLE= must start with (XY..XY), (XYW..XYW) or (XYM..XYM); got '{raw[:30]}'")
+    width = len(form.group(1))
+    body = raw[form.end():]
+    groups = [g for g in re.split(r"[;\n]+", body) if g.strip()]
+    rows = []
+    for g in groups:
+        vals = [v for v in re.split(r"[,\s]+", g.strip()) if v]
+        for k in range(0, len(vals), width):
+            rows.append(vals[k:k + width])
+    xs, ys, ws, ms = [], [], [], []
+    for r in rows:
+        if len(r) < 2:
+            raise InputError(f"{where}: peak table entry '{' '.join(r)}' has no intensity")
+        try:
+            xs.append(float(r[0]))
+            ys.append(float(r[1]))
+        except ValueError:
+            raise InputError(f"{where}: peak table entry '{', '.join(r)}' is not numeric") from None
+        w = None
+        m = None
+        if width == 3 and len(r) > 2:
+            if form.group(1).upper().endswith("W"):
+                try:
+                    w = float(r[2])
+                except ValueError:
+                    raise InputError(f"{where}: peak width '{r[2]}' is not a number") from None
+            else:
+                m = r[2]
+        ws.append(w)
+        ms.append(m)
+    x = np.array(xs, dtype=float)
+    x = _to_ppm(x, block, mhz, where)
+    order = np.argsort(x)
+    w = np.array([np.nan if v is None else v for v in ws], dtype=float)
+    if _label(block.get("XUNITS", "PPM")) == "HZ" and mhz:
+        w = w / mhz   # widths in the X unit
+    return x[order], np.array(ys, dtype=float)[order], w[order], [ms[k] for k in order]
+
+
+def _to_ppm(x: np.ndarray, block: dict, mhz: float | None, where: str) -> np.ndarray:
+    unit = _label(block.get("XUNITS", "PPM") or "PPM")
+    if unit == "PPM":
+        return x
+    if unit == "HZ":
+        if not mhz:
+            raise InputError(f"{where}: X values in Hz but no ##.OBSERVE FREQUENCY= to convert them to ppm")
+        return x / mhz
+    raise InputError(f"{where}: ##XUNITS= {block.get('XUNITS')} is neither PPM nor HZ")
+
+
+def _trace(path: Path, block: dict, mhz: float | None, where: str) -> Trace:
+    try:
+        import nmrglue as ng
+    except ImportError:   # pragma: no cover - a dependency of the package
+        raise InputError("reading JCAMP-DX spectra needs nmrglue (pip install nmrglue)") from None
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            dic, data = ng.jcampdx.read(str(path))
+        except Exception as exc:   # nmrglue's own errors on malformed data lines
+            raise InputError(f"{where}: the spectrum's data lines cannot be decoded ({type(exc).__name__}: {exc})") from None
+    if data is None:
+        raise InputError(f"{where}: no spectrum data could be decoded")
+    y = np.asarray(data[0] if isinstance(data, list) else data, dtype=float)
+    if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
+        raise InputError(f"{where}: the spectrum data are not a 1D trace of finite values ({y.shape} values)")
+    first = _float(block, "FIRSTX", where)
+    last = _float(block, "LASTX", where)
+    if first is None or last is None:
+        raise InputError(f"{where}: the spectrum has no ##FIRSTX= / ##LASTX=")
+    x = _to_ppm(np.linspace(first, last, len(y)), block, mhz, where)
+    if x[0] > x[-1]:
+        x, y = x[::-1].copy(), y[::-1].copy()
+    return Trace(x, y, mhz)
+
+
+def noise_sigma(y: np.ndarray) -> float:
+    """Robust noise level of a trace: 1.4826 × the median absolute deviation of its point-to-point
+    differences / √2 (the baseline dominates a spectrum; differences remove a slow baseline drift)."""
+    d = np.diff(y)
+    return float(1.4826 * np.median(np.abs(d - np.median(d))) / np.sqrt(2.0))
+
+
+def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None):
+    """(ppm, height, width in ppm) of the lines standing ``min_snr`` × σ above the baseline and as much
+    above the lower of their two neighbouring minima (so the noise on a strong line's flank is no line)."""
+    from scipy.signal import find_peaks
+
+    y, x = trace.y, trace.ppm
+    base = float(np.median(y))
+    sigma = noise_sigma(y)
+    if sigma <= 0:
+        sigma = max(1e-12, 1e-6 * float(np.max(np.abs(y - base))))
+    k = min_snr or MIN_SNR[nucleus]
+    idx, props = find_peaks(y, height=base + k * sigma, prominence=k * sigma, width=0, rel_height=0.5)
+    step = float(x[1] - x[0])
+    ppm = []
+    for i in idx:
+        a, b, c = (y[i - 1], y[i], y[i + 1]) if 0 < i < len(y) - 1 else (y[i], y[i], y[i])
+        den = a - 2 * b + c
+        off = 0.5 * (a - c) / den if den != 0 else 0.0
+        ppm.append(x[i] + off * step)
+    return np.array(ppm), y[idx] - base, np.maximum(props["widths"], 1.0) * step
+
+
+def _pattern(pos_hz: np.ndarray, h: np.ndarray) -> tuple[str, tuple]:
+    """First-order letters and J values (Hz) of one multiplet's lines, when its lines say so."""
+    n = len(pos_hz)
+    if n == 1:
+        return "s", ()
+    gaps = np.diff(pos_hz)
+    rel = h / h.max()
+    even = n > 1 and np.all(np.abs(gaps - gaps.mean()) <= 0.15 * gaps.mean() + 0.3)
+    if n == 2 and min(rel) >= 0.6:
+        return "d", (round(float(gaps[0]), 1),)
+    if n == 3 and even and 0.35 <= rel[0] / rel[1] <= 0.7 and 0.35 <= rel[2] / rel[1] <= 0.7:
+        return "t", (round(float(gaps.mean()), 1),)
+    if n == 4 and even and max(rel[0], rel[3]) / min(rel[1], rel[2]) <= 0.5:
+        return "q", (round(float(gaps.mean()), 1),)
+    if n == 4 and min(rel) >= 0.6 and abs(gaps[0] - gaps[2]) <= 0.15 * gaps[0] + 0.3:
+        return "dd", tuple(sorted((round(float(gaps[0] + gaps[1]), 1), round(float(gaps[0]), 1)), reverse=True))
+    return "m", ()
+
+
+def _multiplets(ppm, height, width, letters, mhz, trace: Trace | None, notes: list[str], where: str) -> list[Peak]:
+    """1H lines grouped into multiplets with their integrals, letters and J values."""
+    if not mhz:
+        raise InputError(f"{where}: a 1H spectrum needs ##.OBSERVE FREQUENCY= to group its lines into multiplets")
+    gap = MULTIPLET_GAP_HZ / mhz
+    groups, cur = [], [0]
+    for k in range(1, len(ppm)):
+        if ppm[k] - ppm[k - 1] <= gap:
+            cur.append(k)
+        else:
+            groups.append(cur)
+            cur = [k]
+    groups.append(cur)
+    out: list[Peak] = []
+    areas = []
+    spans = []
+    for g in groups:
+        w = np.nanmedian(width[g]) if np.isfinite(width[g]).any() else 0.002
+        spans.append((ppm[g[0]] - SPAN_WIDTHS * w, ppm[g[-1]] + SPAN_WIDTHS * w))
+    for k, g in enumerate(groups):
+        lo, hi = spans[k]
+        if k > 0:
+            lo = max(lo, (ppm[groups[k - 1][-1]] + ppm[g[0]]) / 2)
+        if k + 1 < len(groups):
+            hi = min(hi, (ppm[g[-1]] + ppm[groups[k + 1][0]]) / 2)
+        if trace is not None:
+            sel = (trace.ppm >= lo) & (trace.ppm <= hi)
+            base = float(np.median(trace.y))
+            area = float(np.sum(trace.y[sel] - base)) * float(trace.ppm[1] - trace.ppm[0])
+        else:
+            wv = np.where(np.isfinite(width[g]), width[g], 1.0)
+            area = float(np.sum(height[g] * wv))
+        areas.append(max(area, 0.0))
+        printed = next((m for m in (letters[i] for i in g) if m), None)
+        if printed:
+            mult, js = normalise_1h_multiplicity(printed), ()
+        else:
+            mult, js = _pattern(ppm[g] * mhz, height[g])
+        centre = float(np.average(ppm[g], weights=np.maximum(height[g], 1e-12)))
+        pk = Peak(round(centre, 4), mult, None, 1, None, None, j=js)
+        if len(g) > 1:
+            pk.lo, pk.hi = round(float(ppm[g[0]]), 4), round(float(ppm[g[-1]]), 4)
+        out.append(pk)
+    top = max(areas) if areas else 0.0
+    weak = [k for k, a in enumerate(areas) if a < WEAK_SHARE * top]
+    if weak:   # 13C satellites and spinning sidebands of strong lines, traces of impurities
+        notes.append(f"{where}: {len(weak)} weak 1H multiplet{'s' if len(weak) != 1 else ''} below {WEAK_SHARE:.0%} of the "
+                     f"largest set aside (satellites, sidebands or traces?): "
+                     + ", ".join(f"{out[k].shift:g}" for k in weak[:8]) + (" …" if len(weak) > 8 else ""))
+    keep = [k for k in range(len(out)) if k not in set(weak)]
+    for k in keep:
+        out[k].intensity = areas[k]   # in area units here; made relative once solvent lines are known
+    notes.append(f"{where}: {len(keep)} 1H multiplets from {len(ppm)} lines (lines within {MULTIPLET_GAP_HZ:g} Hz "
+                 "grouped); integrals relative to the smallest sample multiplet" + ("" if trace is not None else
+                                                                                   ", from line heights × widths"))
+    out = [out[k] for k in keep]
+    return out

@@ -1,0 +1,194 @@
+"""JCAMP-DX files: peak tables and processed 1D spectra read into peak lists.
+
+The files are written here by the rules of the JCAMP-DX standard (McDonald & Wilks 1988, Appl. Spectrosc.
+42, 151: labelled data records, AFFN and the compressed SQZ/DIF/DUP forms with the Y check value at each
+line start; NMR labels from Davies & Lampen 1993, Appl. Spectrosc. 47, 1093).  The spectra are Lorentzian
+lines on Gaussian noise at the shifts of methyl 4-hydroxybenzoate in DMSO-d6 (13C: 166.1, 162.0, 131.5,
+120.4, 115.4, 51.8 ppm; from memory) with the solvent's septet (39.52 ppm, Fulmer et al. 2010, 1J(C,D)
+≈ 21 Hz from memory), and of 4-ethylanisole in CDCl3 (1H: 7.10 d and 6.83 d, J 8.6 Hz, 2H each; 3.79 s,
+3H; 2.59 q and 1.21 t, J 7.6 Hz; from memory) with the residual CHCl3 line (7.26 ppm, Fulmer et al. 2010).
+"""
+from __future__ import annotations
+
+import subprocess
+import sys
+from math import comb
+
+import numpy as np
+import pytest
+
+import shiftrank
+from shiftrank.errors import InputError
+from shiftrank.inputs.spectra import read_jcamp
+
+PARABEN = [(166.1, 400), (162.0, 300), (131.5, 900), (120.4, 300), (115.4, 900), (51.8, 700)]
+PARABEN_ISOMERS = ["COC(=O)c1ccc(O)cc1", "COC(=O)c1cccc(O)c1", "COC(=O)c1ccccc1O"]
+MHZ_H = 400.13
+ANISOLE_ISOMERS = ["CCc1ccc(OC)cc1", "CCc1cccc(OC)c1", "CCc1ccccc1OC"]
+
+
+def _trace(lines, lo, hi, n, width, noise, seed=1):
+    x = np.linspace(hi, lo, n)
+    y = np.zeros(n)
+    for x0, h in lines:
+        y += h / (1 + ((x - x0) / (width / 2)) ** 2)
+    y += np.random.default_rng(seed).normal(0, noise, n)
+    return x, np.round(y).astype(int)
+
+
+def _header(nucleus, mhz, first, last, n, xunits="PPM", solvent=None):
+    out = ["##TITLE= shiftrank test", "##JCAMP-DX= 5.01", "##DATA TYPE= NMR SPECTRUM", f"##.OBSERVE FREQUENCY= {mhz}",
+           f"##.OBSERVE NUCLEUS= ^{nucleus}", f"##XUNITS= {xunits}", "##YUNITS= ARBITRARY UNITS", "##XFACTOR= 1",
+           "##YFACTOR= 1", f"##FIRSTX= {first:.6f}", f"##LASTX= {last:.6f}", f"##NPOINTS= {n}"]
+    return out + ([f"##.SOLVENT NAME= {solvent}"] if solvent else [])
+
+
+def _affn(x, y, per_line=10):
+    return [f"{x[i]:.6f} " + " ".join(str(v) for v in y[i:i + per_line]) for i in range(0, len(y), per_line)]
+
+
+_SQZ = ("@ABCDEFGHI", "@abcdefghi")
+_DIF = ("%JKLMNOPQR", "%jklmnopqr")
+_DUP = "STUVWXYZs"
+
+
+def _pseudo(v, table):
+    s = str(abs(int(v)))
+    return table[0 if v >= 0 else 1][int(s[0])] + s[1:]
+
+
+def _difdup(x, y, per_line=40):
+    """SQZ first value, DIF differences, DUP runs; each further line repeats the last Y (the Y check)."""
+    out, i, n = [], 0, len(y)
+    while i < n:
+        chunk = y[i:i + per_line]
+        toks = [_pseudo(chunk[0], _SQZ)]
+        difs = [_pseudo(d, _DIF) for d in np.diff(chunk)]
+        k = 0
+        while k < len(difs):
+            r = k
+            while r + 1 < len(difs) and difs[r + 1] == difs[k]:
+                r += 1
+            run = r - k + 1
+            toks.append(difs[k] + ("" if run == 1 else _DUP[int(str(run)[0]) - 1] + str(run)[1:]))
+            k = r + 1
+        out.append(f"{x[i]:.6f}" + "".join(toks))
+        i = i + per_line - 1 if i + per_line < n else n
+    return out
+
+
+def _table_header(nucleus, mhz, xunits="PPM", solvent=None):
+    return (["##TITLE= shiftrank test", "##JCAMP-DX= 5.01", "##DATA TYPE= NMR PEAK TABLE", f"##.OBSERVE FREQUENCY= {mhz}",
+             f"##.OBSERVE NUCLEUS= ^{nucleus}", f"##XUNITS= {xunits}", "##YUNITS= ARBITRARY UNITS"]
+            + ([f"##.SOLVENT NAME= {solvent}"] if solvent else []))
+
+
+def _write(path, header, data):
+    path.write_text("\n".join(header + ["##XYDATA= (X++(Y..Y))"] + data + ["##END="]) + "\n")
+    return path
+
+
+def _paraben_lines():
+    septet = [(39.52 + k * 21.0 / 100.6, h) for k, h in zip(range(-3, 4), (40, 120, 240, 300, 240, 120, 40))]
+    return PARABEN + septet
+
+
+def _paraben_file(tmp_path, form="affn", xunits="PPM"):
+    x, y = _trace(_paraben_lines(), -5, 220, 32768, 0.012, 3.0)
+    xs = x * (100.6 if xunits == "HZ" else 1)
+    data = _affn(xs, y) if form == "affn" else _difdup(xs, y)
+    return _write(tmp_path / f"paraben_{form}_{xunits}.jdx", _header("13C", 100.6, xs[0], xs[-1], len(y), xunits, "DMSO-d6"),
+                  data)
+
+
+@pytest.mark.parametrize("form,xunits", [("affn", "PPM"), ("difdup", "PPM"), ("affn", "HZ")])
+def test_13c_spectrum_is_picked_and_the_solvent_septet_set_aside(tmp_path, form, xunits):
+    pl = shiftrank.read_peaks(_paraben_file(tmp_path, form, xunits))
+    sample = sorted(p.shift for p in pl.peaks if p.solvent is None)
+    assert len(sample) == 6
+    assert np.allclose(sample, sorted(s for s, _ in PARABEN), atol=0.02)
+    assert sum(1 for p in pl.peaks if p.solvent) == 7   # all seven septet lines, the outer ones too
+    assert pl.field_mhz == pytest.approx(100.6)
+    r = shiftrank.rank(pl, PARABEN_ISOMERS)
+    assert r.best.smiles == PARABEN_ISOMERS[0]
+
+
+def test_compressed_and_plain_data_give_the_same_peaks(tmp_path):
+    a = read_jcamp(_paraben_file(tmp_path, "affn"))
+    b = read_jcamp(_paraben_file(tmp_path, "difdup"))
+    assert [p.shift for p in a.peaks] == [p.shift for p in b.peaks]
+
+
+def _multiplet(centre, n_h, couplings):
+    pos, hs = [centre * MHZ_H], [1.0]
+    for j, n in couplings:
+        pos, hs = ([p + (k - n / 2) * j for p in pos for k in range(n + 1)],
+                   [h * comb(n, k) for h in hs for k in range(n + 1)])
+    hs = np.array(hs) / sum(hs) * n_h * 1000
+    return [(p / MHZ_H, h) for p, h in zip(pos, hs)]
+
+
+def _anisole_file(tmp_path):
+    lines = (_multiplet(7.10, 2, [(8.6, 1)]) + _multiplet(6.83, 2, [(8.6, 1)]) + _multiplet(3.79, 3, [])
+             + _multiplet(2.59, 2, [(7.6, 3)]) + _multiplet(1.21, 3, [(7.6, 2)]) + _multiplet(7.26, 0.1, []))
+    x, y = _trace(lines, -1, 12, 65536, 0.0025, 2.0)
+    return _write(tmp_path / "anisole.dx", _header("1H", MHZ_H, x[0], x[-1], len(y), solvent="CDCl3"), _affn(x, y))
+
+
+def test_1h_spectrum_gives_multiplets_with_letters_j_and_integrals(tmp_path):
+    pl = shiftrank.read_peaks(_anisole_file(tmp_path), nucleus="1H")
+    got = {round(p.shift, 2): p for p in pl.peaks if p.solvent is None}
+    assert sorted(got) == [1.21, 2.59, 3.79, 6.83, 7.10]
+    assert [got[s].multiplicity for s in (1.21, 2.59, 3.79, 6.83, 7.10)] == ["t", "q", "s", "d", "d"]
+    assert got[2.59].j[0] == pytest.approx(7.6, abs=0.3) and got[7.10].j[0] == pytest.approx(8.6, abs=0.3)
+    # areas in the ratio of the protons, 3:2:3:2:2
+    ratio = [got[s].intensity / got[6.83].intensity for s in (1.21, 2.59, 3.79, 6.83, 7.10)]
+    assert np.allclose(ratio, [1.5, 1.0, 1.5, 1.0, 1.0], atol=0.08)
+    assert [p.shift for p in pl.peaks if p.solvent] == [pytest.approx(7.26, abs=0.01)]
+    r = shiftrank.rank(None, ANISOLE_ISOMERS, peaks_1h=pl)
+    assert r.best.smiles == ANISOLE_ISOMERS[0] and r.best.probability > 0.9
+
+
+def test_peak_tables(tmp_path):
+    rows = "\n".join(f"{s}, {h}" for s, h in _paraben_lines())
+    f = tmp_path / "table.jdx"
+    f.write_text("\n".join(_table_header("13C", 100.6, solvent="DMSO-d6"))
+                 + "\n##PEAK TABLE= (XY..XY)\n" + rows + "\n##END=\n")
+    pl = read_jcamp(f)
+    assert sorted(p.shift for p in pl.peaks if p.solvent is None) == sorted(s for s, _ in PARABEN)
+    # a 1H line list with widths (Hz), grouped into multiplets
+    lines = _multiplet(2.59, 2, [(7.6, 3)]) + _multiplet(1.21, 3, [(7.6, 2)])
+    g = tmp_path / "lines.jdx"
+    g.write_text("\n".join(_table_header("1H", MHZ_H, xunits="HZ"))
+                 + "\n##PEAK TABLE= (XYW..XYW)\n" + "; ".join(f"{s * MHZ_H:.2f}, {h:.1f}, 1.0" for s, h in lines)
+                 + "\n##END=\n")
+    ph = read_jcamp(g, "1H")
+    assert [(round(p.shift, 2), p.multiplicity) for p in ph.peaks] == [(1.21, "t"), (2.59, "q")]
+    assert ph.peaks[0].intensity / ph.peaks[1].intensity == pytest.approx(1.5, abs=0.05)
+
+
+@pytest.mark.parametrize("text,nucleus,message", [
+    ("hello\n", "13C", "not a JCAMP-DX file"),
+    ("##TITLE= x\n##JCAMP-DX= 5.01\n##.OBSERVE NUCLEUS= ^1H\n##PEAK TABLE= (XY..XY)\n7.1, 5\n##END=\n", "13C",
+     "holds a 1H spectrum"),
+    ("##TITLE= x\n##JCAMP-DX= 5.01\n##XUNITS= HZ\n##PEAK TABLE= (XY..XY)\n700, 5\n##END=\n", "13C",
+     "no ##.OBSERVE FREQUENCY"),
+    ("##TITLE= x\n##JCAMP-DX= 5.01\n##TITLE2= y\n##END=\n", "13C", "without a peak table"),
+    ("##TITLE= x\n##JCAMP-DX= 5.01\n##PEAK TABLE= (XY..XY)\n7.1, abc\n##END=\n", "1H", "not numeric"),
+    ("##TITLE= x\n##JCAMP-DX= 5.01\n##PEAK TABLE= 7.1, 5\n##END=\n", "13C", "must start with"),
+])
+def test_bad_files_name_the_problem(tmp_path, text, nucleus, message):
+    f = tmp_path / "bad.jdx"
+    f.write_text(text)
+    with pytest.raises(InputError, match=message):
+        read_jcamp(f, nucleus)
+
+
+def test_noise_only_spectrum_and_cli_exit(tmp_path):
+    x, y = _trace([], -5, 220, 4096, 0.01, 3.0)
+    f = _write(tmp_path / "noise.jdx", _header("13C", 100.6, x[0], x[-1], len(y)), _affn(x, y))
+    with pytest.raises(InputError, match="no 13C peak found above the picking threshold"):
+        read_jcamp(f)
+    r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "rank", "--peaks", str(f), "--candidates", "CCO"],
+                       capture_output=True, text=True)
+    assert r.returncode == 2 and "no 13C peak found" in r.stderr and "Traceback" not in r.stderr
