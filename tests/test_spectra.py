@@ -192,3 +192,27 @@ def test_noise_only_spectrum_and_cli_exit(tmp_path):
     r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "rank", "--peaks", str(f), "--candidates", "CCO"],
                        capture_output=True, text=True)
     assert r.returncode == 2 and "no 13C peak found" in r.stderr and "Traceback" not in r.stderr
+
+
+def test_batch_cases_name_peak_files(tmp_path):
+    import json
+
+    from shiftrank.score.batch import run_batch
+
+    _anisole_file(tmp_path)
+    _paraben_file(tmp_path)
+    cases = tmp_path / "cases.jsonl"
+    cases.write_text("\n".join(json.dumps(c) for c in [
+        {"id": "h", "file_1h": "anisole.dx", "candidates": ANISOLE_ISOMERS},
+        {"id": "c", "file_13c": "paraben_affn_PPM.jdx", "candidates": PARABEN_ISOMERS},
+        {"id": "missing", "file_13c": "nothere.jdx", "candidates": ["CCO"]},
+        {"id": "both", "file_13c": "paraben_affn_PPM.jdx", "peaks": [1.0], "candidates": ["CCO"]},
+    ]) + "\n")
+    out = tmp_path / "out.jsonl"
+    with out.open("w") as f:
+        run_batch(cases, f)
+    lines = [json.loads(x) for x in out.read_text().splitlines()]
+    assert lines[0]["ranking"][0]["smiles"] == ANISOLE_ISOMERS[0]
+    assert lines[1]["ranking"][0]["smiles"] == PARABEN_ISOMERS[0]
+    assert "nothere.jdx: no such file" in lines[2]["error"] and lines[2]["ranking"][0]["smiles"] == "CCO"
+    assert "not both" in lines[3]["error"]

@@ -4,7 +4,9 @@ Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "peaks_1h": [{"shift
 "integral"?, "multiplicity"?, "j"?}], "text": "<printed paragraph(s)>", "candidates": [SMILES…],
 "formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?, "rotamers"?}``; any one of ``peaks``, ``peaks_1h``
 or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives;
-``"rotamers": true`` says the spectra show two forms of the compound.  Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
+``"rotamers": true`` says the spectra show two forms of the compound; ``"file_13c"``/``"file_1h"`` name
+peak files (text, CSV, JSON or JCAMP-DX, relative to the batch file) read in place of ``peaks``/``peaks_1h``.
+Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
 last with an ``"error"``).  A line that cannot be read becomes an output line with an ``"error"``.
 """
 from __future__ import annotations
@@ -59,10 +61,39 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
             exc.case_id = case_id
             out.append((n, exc))
             continue
+        try:
+            _read_case_files(obj, case, p.parent)
+        except InputError as exc:
+            exc = InputError(f"{p.name} line {n}: {exc}")
+            exc.case_id = case_id
+            exc.candidates = cands   # listed in the error line, each with the error
+            out.append((n, exc))
+            continue
         out.append((n, case))
     if not out:
         raise InputError(f"{p}: no cases found")
     return out
+
+
+#: case keys naming a peak file (any format ``read_peaks`` reads: text, CSV, JSON, JCAMP-DX), relative to the batch file
+FILE_FIELDS = {"file_13c": ("peaks", "13C"), "file_1h": ("peaks_1h", "1H")}
+
+
+def _read_case_files(obj: dict, case: dict, folder: Path) -> None:
+    """Read the peak files a case names (``"file_13c"``, ``"file_1h"``) into its peak lists, here on the
+    reading side (workers of a cluster need not see the files)."""
+    from ..inputs.peaks import read_peaks
+
+    for key, (field, nucleus) in FILE_FIELDS.items():
+        name = obj.get(key)
+        if name is None:
+            continue
+        if not isinstance(name, str) or not name.strip():
+            raise InputError(f"'{key}' must be a file name")
+        if case.get(field) is not None:
+            raise InputError(f"give '{field}' or '{key}', not both")
+        path = Path(name) if Path(name).is_absolute() else folder / name
+        case[field] = read_peaks(path, nucleus, case.get("solvent") if isinstance(case.get("solvent"), str) else None)
 
 
 def _error_line(case, exc: Exception, where: str) -> dict:
@@ -97,7 +128,8 @@ def _rank_chunk(items, detail: bool) -> list[str]:
     out = []
     for n, c in items:
         if not isinstance(c, dict):
-            out.append(json.dumps({"id": getattr(c, "case_id", None), "error": str(c), "ranking": []}))
+            out.append(json.dumps(_error_line({"id": getattr(c, "case_id", None), "candidates": getattr(c, "candidates", None)},
+                                              c, f"line {n}")))
             continue
         r = next(results)
         out.append(json.dumps(_error_line(c, r, f"line {n}") if isinstance(r, Exception) else r.to_dict(detail)))
