@@ -25,38 +25,6 @@ RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}
 #: other form's (13C lines of amide and carbamate rotamers are typically 0.1–1.5 ppm apart, 1H lines
 #: 0.02–0.3 ppm; from memory)
 DOUBLED_GAP = {"13C": 2.0, "1H": 0.3}
-
-
-def mark_doubled(peaks: list[Peak], nucleus: str) -> int:
-    """In a spectrum of two forms, mark every line within ``DOUBLED_GAP`` of another line as possibly the
-    other form's (lines already marked stay so); returns how many lines are marked."""
-    gap = DOUBLED_GAP[nucleus]
-    edges = sorted((pk.lo if pk.lo is not None else pk.shift, pk.hi if pk.hi is not None else pk.shift, k)
-                   for k, pk in enumerate(peaks) if pk.solvent is None)
-    for a in range(len(edges) - 1):
-        (_, hi, k), (lo, _, k2) = edges[a], edges[a + 1]
-        if lo - hi <= gap:
-            peaks[k].doubled = peaks[k2].doubled = True
-    return sum(pk.doubled for pk in peaks)
-
-
-def doubled_note(said: str, n: int) -> str:
-    return (f"the spectrum shows two forms ('{said}'): {n} line{'s' if n != 1 else ''} printed beside another line "
-            "may be the second form's and cost little when no class explains them")
-
-
-def doubled_pairs(peaks: list, nucleus: str) -> int:
-    """How many pairs of lines marked ``doubled`` can be read as one signal each (adjacent lines within
-    ``DOUBLED_GAP``; pairing from the low end gives the most pairs)."""
-    pts = sorted(p.shift for p in peaks if p.doubled and not p.solvent)
-    gap = DOUBLED_GAP[nucleus]
-    n, k = 0, 0
-    while k + 1 < len(pts):
-        if pts[k + 1] - pts[k] <= gap:
-            n, k = n + 1, k + 2
-        else:
-            k += 1
-    return n
 #: Most peaks one list may hold (a spectrum's peak list, not a raw data dump).
 MAX_PEAKS = 2000
 
@@ -375,6 +343,39 @@ def merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[
         if p.count > 1:
             notes.append(f"{p.shift:g} ppm listed {p.count} times: read as one signal of {p.count} equivalent nuclei")
     return out
+
+
+def mark_doubled(peaks: list[Peak], nucleus: str) -> int:
+    """In a spectrum of two forms, mark every line within ``DOUBLED_GAP`` of another line as possibly the
+    other form's (lines already marked stay so); returns how many lines are marked."""
+    gap = DOUBLED_GAP[nucleus]
+    edges = sorted((pk.lo if pk.lo is not None else pk.shift, pk.hi if pk.hi is not None else pk.shift, k)
+                   for k, pk in enumerate(peaks) if pk.solvent is None)
+    for a in range(len(edges) - 1):
+        (_, hi, k), (lo, _, k2) = edges[a], edges[a + 1]
+        if lo - hi <= gap:
+            peaks[k].doubled = peaks[k2].doubled = True
+    return sum(pk.doubled for pk in peaks)
+
+
+def doubled_note(said: str, n: int) -> str:
+    """The note saying how many lines of a two-form spectrum were marked, and why."""
+    return (f"the spectrum shows two forms ('{said}'): {n} line{'s' if n != 1 else ''} printed beside another line "
+            "may be the second form's and cost little when no class explains them")
+
+
+def doubled_pairs(peaks: list, nucleus: str) -> int:
+    """How many pairs of lines marked ``doubled`` can be read as one signal each (adjacent lines within
+    ``DOUBLED_GAP``; pairing from the low end gives the most pairs)."""
+    pts = sorted(p.shift for p in peaks if p.doubled and not p.solvent)
+    gap = DOUBLED_GAP[nucleus]
+    n, k = 0, 0
+    while k + 1 < len(pts):
+        if pts[k + 1] - pts[k] <= gap:
+            n, k = n + 1, k + 2
+        else:
+            k += 1
+    return n
 
 
 def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = False) -> PeakList:
