@@ -216,3 +216,26 @@ def test_batch_cases_name_peak_files(tmp_path):
     assert lines[1]["ranking"][0]["smiles"] == PARABEN_ISOMERS[0]
     assert "nothere.jdx: no such file" in lines[2]["error"] and lines[2]["ranking"][0]["smiles"] == "CCO"
     assert "not both" in lines[3]["error"]
+
+
+def test_ntuples_spectrum_with_real_and_imaginary_pages(tmp_path):
+    """The NTUPLES form (JCAMP-DX 5.01; the form instrument software commonly exports): X in Hz from ##FIRST /
+    ##LAST of the column ##SYMBOL calls X, the real page is the spectrum."""
+    x, y = _trace(_paraben_lines(), -5, 220, 16384, 0.012, 3.0)
+    hz = x * 100.6
+    imag = np.roll(y, 100)
+    head = ["##TITLE= shiftrank test", "##JCAMP-DX= 5.01", "##DATA TYPE= NMR SPECTRUM", "##DATA CLASS= NTUPLES",
+            "##.OBSERVE FREQUENCY= 100.6", "##.OBSERVE NUCLEUS= ^13C", "##.SOLVENT NAME= DMSO-d6",
+            "##NTUPLES= NMR SPECTRUM", "##VAR_NAME= FREQUENCY, SPECTRUM/REAL, SPECTRUM/IMAG, PAGE NUMBER",
+            "##SYMBOL= X, R, I, N", "##VAR_TYPE= INDEPENDENT, DEPENDENT, DEPENDENT, PAGE",
+            "##VAR_FORM= AFFN, ASDF, ASDF, AFFN", f"##VAR_DIM= {len(y)}, {len(y)}, {len(y)}, 2",
+            "##UNITS= HZ, ARBITRARY UNITS, ARBITRARY UNITS,", f"##FIRST= {hz[0]:.4f}, {y[0]}, {imag[0]}, 1",
+            f"##LAST= {hz[-1]:.4f}, {y[-1]}, {imag[-1]}, 2", "##FACTOR= 1, 1, 1, 1"]
+    body = (["##PAGE= N=1", "##DATA TABLE= (X++(R..R)), XYDATA"] + _difdup(hz, y)
+            + ["##PAGE= N=2", "##DATA TABLE= (X++(I..I)), XYDATA"] + _difdup(hz, imag)
+            + ["##END NTUPLES= NMR SPECTRUM", "##END="])
+    f = tmp_path / "ntuples.jdx"
+    f.write_text("\n".join(head + body) + "\n")
+    pl = read_jcamp(f)
+    sample = sorted(p.shift for p in pl.peaks if p.solvent is None)
+    assert np.allclose(sample, sorted(s for s, _ in PARABEN), atol=0.02)

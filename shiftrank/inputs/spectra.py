@@ -269,14 +269,30 @@ def _trace(path: Path, block: dict, mhz: float | None, where: str) -> Trace:
     y = np.asarray(data[0] if isinstance(data, list) else data, dtype=float)
     if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
         raise InputError(f"{where}: the spectrum data are not a 1D trace of finite values ({y.shape} values)")
-    first = _float(block, "FIRSTX", where)
-    last = _float(block, "LASTX", where)
-    if first is None or last is None:
-        raise InputError(f"{where}: the spectrum has no ##FIRSTX= / ##LASTX=")
-    x = _to_ppm(np.linspace(first, last, len(y)), block, mhz, where)
+    first, last, unit = _x_range(block, where)
+    x = _to_ppm(np.linspace(first, last, len(y)), {"XUNITS": unit}, mhz, where)
     if x[0] > x[-1]:
         x, y = x[::-1].copy(), y[::-1].copy()
     return Trace(x, y, mhz)
+
+
+def _x_range(block: dict, where: str) -> tuple[float, float, str]:
+    """First and last X value and the X unit of a spectrum: ##FIRSTX/##LASTX/##XUNITS of an XYDATA block, or
+    the X column of ##FIRST/##LAST/##UNITS in an NTUPLES block (the column ##SYMBOL calls X)."""
+    first, last = _float(block, "FIRSTX", where), _float(block, "LASTX", where)
+    if first is not None and last is not None:
+        return first, last, block.get("XUNITS", "PPM") or "PPM"
+    if "FIRST" in block and "LAST" in block:
+        symbols = [t.strip().upper() for t in (block.get("SYMBOL") or "X").split(",")]
+        k = symbols.index("X") if "X" in symbols else 0
+        try:
+            first = float(block["FIRST"].split(",")[k])
+            last = float(block["LAST"].split(",")[k])
+        except (ValueError, IndexError):
+            raise InputError(f"{where}: ##FIRST= / ##LAST= do not give the X column's first and last value") from None
+        units = (block.get("UNITS") or "").split(",")
+        return first, last, (units[k].strip() if k < len(units) and units[k].strip() else "PPM")
+    raise InputError(f"{where}: the spectrum has no ##FIRSTX= / ##LASTX= (nor ##FIRST= / ##LAST= of NTUPLES)")
 
 
 def noise_sigma(y: np.ndarray) -> float:
