@@ -120,9 +120,12 @@ def cmd_peaks(args) -> int:
 
     pl = read_peaks(args.file, nucleus=args.nucleus, solvent=args.solvent)
     for p in pl.peaks:
+        where = f"{p.hi:.2f}–{p.lo:.2f}" if p.lo is not None and p.hi is not None and p.hi > p.lo else f"{p.shift:.2f}"
         extra = "  ".join(x for x in (p.multiplicity or "", f"x{p.count}" if p.count > 1 else "",
+                                      f"∫{p.intensity:g}" if pl.nucleus == "1H" and p.intensity is not None else "",
+                                      "J = " + ", ".join(f"{j:g}" for j in p.j) + " Hz" if p.j else "",
                                       f"[{p.solvent} residual]" if p.solvent else "") if x)
-        print(f"{p.shift:10.2f}  {extra}")
+        print(f"{where:>13}  {extra}")
     for n in pl.notes:
         print(f"note: {n}")
     print(f"{count(len(pl.peaks), 'signal')} ({len(pl.sample_peaks())} from the sample)")
