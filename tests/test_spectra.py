@@ -239,3 +239,17 @@ def test_ntuples_spectrum_with_real_and_imaginary_pages(tmp_path):
     pl = read_jcamp(f)
     sample = sorted(p.shift for p in pl.peaks if p.solvent is None)
     assert np.allclose(sample, sorted(s for s, _ in PARABEN), atol=0.02)
+
+
+def test_one_line_with_a_split_top_is_one_line_and_close_lines_stay_two():
+    from shiftrank.inputs.spectra import Trace, pick_lines
+
+    x = np.linspace(0, 10, 2001)
+    y = np.zeros_like(x) + np.random.default_rng(3).normal(0, 1.0, len(x))
+    k = 1000
+    y[k - 3:k + 4] = [20, 30, 40, 39, 40, 30, 20]      # one line, noise splits its top into two equal maxima
+    y[1500:1507] += [10, 40, 90, 100, 90, 40, 10]      # and two lines 0.1 ppm apart (a C–F doublet at 250 MHz 13C, say)
+    y[1520:1527] += [10, 40, 90, 100, 90, 40, 10]
+    ppm, height, _ = pick_lines(Trace(x, y, 100.0), "13C")
+    assert len(ppm) == 3
+    assert ppm[0] == pytest.approx(5.0, abs=0.01) and np.allclose(ppm[1:], [7.515, 7.615], atol=0.005)

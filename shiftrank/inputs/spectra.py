@@ -314,6 +314,20 @@ def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None):
         sigma = max(1e-12, 1e-6 * float(np.max(np.abs(y - base))))
     k = min_snr or MIN_SNR[nucleus]
     idx, props = find_peaks(y, height=base + k * sigma, prominence=k * sigma, width=0, rel_height=0.5)
+    widths = props["widths"]
+    # two maxima of one line (noise on its top: equal heights both count as prominent) are one line: lines
+    # count as resolved only when the trace between them dips below half the smaller one's height
+    keep: list[int] = []
+    for n, i in enumerate(idx):
+        if keep:
+            j = idx[keep[-1]]
+            dip = float(np.min(y[j:i + 1])) - base
+            if dip > 0.5 * min(y[i], y[j]) - 0.5 * base:
+                if y[i] > y[j]:
+                    keep[-1] = n
+                continue
+        keep.append(n)
+    idx, widths = idx[keep], widths[keep]
     step = float(x[1] - x[0])
     ppm = []
     for i in idx:
@@ -321,7 +335,7 @@ def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None):
         den = a - 2 * b + c
         off = 0.5 * (a - c) / den if den != 0 else 0.0
         ppm.append(x[i] + off * step)
-    return np.array(ppm), y[idx] - base, np.maximum(props["widths"], 1.0) * step
+    return np.array(ppm), y[idx] - base, np.maximum(widths, 1.0) * step
 
 
 def _pattern(pos_hz: np.ndarray, h: np.ndarray) -> tuple[str, tuple]:
