@@ -253,3 +253,15 @@ def test_one_line_with_a_split_top_is_one_line_and_close_lines_stay_two():
     ppm, height, _ = pick_lines(Trace(x, y, 100.0), "13C")
     assert len(ppm) == 3
     assert ppm[0] == pytest.approx(5.0, abs=0.01) and np.allclose(ppm[1:], [7.515, 7.615], atol=0.005)
+
+
+def test_an_aromatic_multiplet_around_the_chcl3_line_stays_the_samples(tmp_path):
+    """CHCl3 at 7.26 (Fulmer et al. 2010) inside a monosubstituted phenyl's multiplet (7.22–7.34, 5H, the shape
+    invented): the multiplet is kept, with a note, and only a free-standing singlet would be set aside."""
+    lines = [(7.22 + k * 0.012, 500) for k in range(11)] + [(3.80, 1500)]
+    x, y = _trace(lines, -1, 12, 65536, 0.0025, 2.0)
+    f = _write(tmp_path / "phenyl.jdx", _header("1H", MHZ_H, x[0], x[-1], len(y), solvent="CDCl3"), _affn(x, y))
+    pl = read_jcamp(f, "1H")
+    assert not any(p.solvent for p in pl.peaks)
+    assert any(p.lo is not None and p.lo <= 7.26 <= p.hi for p in pl.peaks)
+    assert any("lies inside the multiplet" in n for n in pl.notes)

@@ -167,10 +167,18 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     check_count(len(peaks), where)
     pl = PeakList(nucleus, sorted(peaks, key=lambda q: q.shift), where, notes, mhz)
     key = normalise_solvent(solvent) if solvent else normalise_solvent(file_solvent) if file_solvent else None
+    if file_solvent and key is None and not solvent:
+        notes.append(f"{where}: solvent '{file_solvent}' has no residual-signal table here; its signals are not set aside")
     before = len(pl.notes)
     pl = flag_solvent(pl, key)
     if key is not None and nucleus == "13C":
         _solvent_multiplet(pl, key, mhz)
+    inside = []
+    if nucleus == "1H":   # a residual solvent line is a singlet; a multiplet around it is the sample's (with it)
+        for q in pl.peaks:
+            if q.solvent is not None and q.lo is not None:
+                q.solvent = None
+                inside.append(f"{q.lo:g}–{q.hi:g}")
     if nucleus == "1H":   # integrals relative to the smallest multiplet of the sample
         areas = [q.intensity for q in pl.peaks if q.solvent is None and q.intensity]
         unit = min(areas) if areas else 1.0
@@ -178,10 +186,14 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
             if q.intensity is not None:
                 q.intensity = round(q.intensity / unit, 2)
     n = sum(1 for q in pl.peaks if q.solvent)
-    if n:   # one note for the solvent's lines instead of one per line
+    if n or inside:   # one note for the solvent's lines instead of one per line
         del pl.notes[before:]
+    if n:
         pl.notes.append(f"{where}: {n} line{'s' if n != 1 else ''} at the residual {key} signal"
                         + (" and its C–D multiplet" if nucleus == "13C" else "") + " (Fulmer et al. 2010): set aside as solvent")
+    if inside:
+        pl.notes.append(f"{where}: the residual {key} signal lies inside the multiplet{'s' if len(inside) > 1 else ''} "
+                        f"{', '.join(inside)}: kept as the sample's, its integral includes the solvent")
     return pl
 
 
