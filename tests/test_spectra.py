@@ -265,3 +265,13 @@ def test_an_aromatic_multiplet_around_the_chcl3_line_stays_the_samples(tmp_path)
     assert not any(p.solvent for p in pl.peaks)
     assert any(p.lo is not None and p.lo <= 7.26 <= p.hi for p in pl.peaks)
     assert any("lies inside the multiplet" in n for n in pl.notes)
+
+
+def test_report_draws_the_measured_spectrum(tmp_path):
+    from shiftrank.outputs.report import render_report
+
+    pl = read_jcamp(_paraben_file(tmp_path))
+    assert pl.trace is not None and len(pl.trace[0]) <= 8000
+    assert float(np.max(pl.trace[1])) >= 890   # thinning keeps the strongest line's height (900 + noise)
+    html = render_report([shiftrank.rank(pl, PARABEN_ISOMERS)], [{"13C": pl}])
+    assert "Measured 13C spectrum (paraben_affn_PPM.jdx)" in html and "the 6 peaks picked from it" in html

@@ -74,6 +74,7 @@ class PeakList:
     source: str = "input"
     notes: list[str] = field(default_factory=list)
     field_mhz: float | None = None    # observation frequency of this nucleus, when known (printed text)
+    trace: tuple | None = None        # (ppm, intensity) of the measured spectrum the peaks were picked from, thinned for display
 
     @property
     def shifts(self) -> list[float]:

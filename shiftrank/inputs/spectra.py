@@ -165,7 +165,8 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     else:
         peaks = _multiplets(ppm, height, width, letters, mhz, trace, notes, where)
     check_count(len(peaks), where)
-    pl = PeakList(nucleus, sorted(peaks, key=lambda q: q.shift), where, notes, mhz)
+    pl = PeakList(nucleus, sorted(peaks, key=lambda q: q.shift), where, notes, mhz,
+                  trace=thumbnail(trace) if trace is not None else None)
     key = normalise_solvent(solvent) if solvent else normalise_solvent(file_solvent) if file_solvent else None
     if file_solvent and key is None and not solvent:
         notes.append(f"{where}: solvent '{file_solvent}' has no residual-signal table here; its signals are not set aside")
@@ -305,6 +306,23 @@ def _x_range(block: dict, where: str) -> tuple[float, float, str]:
         units = (block.get("UNITS") or "").split(",")
         return first, last, (units[k].strip() if k < len(units) and units[k].strip() else "PPM")
     raise InputError(f"{where}: the spectrum has no ##FIRSTX= / ##LASTX= (nor ##FIRST= / ##LAST= of NTUPLES)")
+
+
+#: points kept of a trace for display (the report draws the measured spectrum)
+THUMBNAIL_POINTS = 4000
+
+
+def thumbnail(trace: Trace, n: int = THUMBNAIL_POINTS) -> tuple[np.ndarray, np.ndarray]:
+    """(ppm, intensity) of at most ``2 n`` points keeping every bin's lowest and highest value (narrow lines
+    keep their full height)."""
+    k = int(np.ceil(len(trace.y) / n))
+    if k <= 1:
+        return trace.ppm.copy(), trace.y.copy()
+    m = len(trace.y) // k * k
+    y = trace.y[:m].reshape(-1, k)
+    x = trace.ppm[:m].reshape(-1, k).mean(axis=1)
+    lo, hi = y.min(axis=1), y.max(axis=1)
+    return np.repeat(x, 2), np.column_stack([lo, hi]).ravel()
 
 
 def noise_sigma(y: np.ndarray) -> float:

@@ -12,6 +12,7 @@ import io
 from pathlib import Path
 
 import matplotlib
+import numpy as np
 
 matplotlib.use("Agg")
 import matplotlib.pyplot as plt  # noqa: E402
@@ -134,6 +135,28 @@ def spectrum_svg(result: RankResult, cand: CandidateResult, nucleus: str = "13C"
     return svg[svg.find("<svg"):]
 
 
+def measured_svg(pl) -> str:
+    """The measured spectrum a peak list was picked from, with the picked lines marked (solvent grey)."""
+    x, y = pl.trace
+    fig, ax = plt.subplots(figsize=(6.4, 1.9))
+    ax.plot(x, y, color="#222222", lw=0.6)
+    top = float(np.max(y)) if len(y) else 1.0
+    for p in pl.peaks:
+        ax.plot(p.shift, top * 1.06, marker="v", ms=4, color="#bbbbbb" if p.solvent else "#1f6f8b")
+    ax.set_xlim(float(np.max(x)), float(np.min(x)))
+    ax.set_ylim(float(np.min(y)) - 0.02 * top, top * 1.14)
+    ax.set_yticks([])
+    ax.set_xlabel(f"δ {pl.nucleus} (ppm)")
+    for side in ("top", "right", "left"):
+        ax.spines[side].set_visible(False)
+    fig.tight_layout()
+    buf = io.StringIO()
+    fig.savefig(buf, format="svg")
+    plt.close(fig)
+    svg = buf.getvalue()
+    return svg[svg.find("<svg"):]
+
+
 def _fmt(x, nd=2, dash="–"):
     return dash if x is None else f"{x:.{nd}f}"
 
@@ -207,6 +230,14 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
         bits.append(f"{count(n_obs, n + ' signal')}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")
+    if lists is not None and not isinstance(lists, dict):   # one peak list given for the sample
+        lists = {lists.nucleus: lists}
+    for n, pl in (lists or {}).items():
+        if getattr(pl, "trace", None) is not None:   # a spectrum read from an instrument file: what was picked
+            n_sample = sum(1 for p in pl.peaks if not p.solvent)
+            parts.append(f"<h3>Measured {e(n)} spectrum ({e(pl.source)})</h3><div>{measured_svg(pl)}</div>"
+                         f"<p class='note'>▼ the {count(n_sample, 'peak')} picked from it"
+                         + (" (1H: one mark per multiplet)" if n == "1H" else "") + "; grey: set aside as solvent</p>")
     rows = []
     alone = len(result.nuclei) > 1   # each spectrum's own probability beside its fit
     nuc_heads = "".join((f"<th>p, {n} alone</th>" if alone else "") + f"<th>MAE {n} (ppm)</th>" for n in result.nuclei)
