@@ -275,3 +275,35 @@ def test_report_draws_the_measured_spectrum(tmp_path):
     assert float(np.max(pl.trace[1])) >= 890   # thinning keeps the strongest line's height (900 + noise)
     html = render_report([shiftrank.rank(pl, PARABEN_ISOMERS)], [{"13C": pl}])
     assert "Measured 13C spectrum (paraben_affn_PPM.jdx)" in html and "the 6 peaks picked from it" in html
+
+
+_LABELS = ["##TITLE= x", "##DATA TYPE= NMR SPECTRUM", "##.OBSERVE FREQUENCY= 100.6", "##.OBSERVE FREQUENCY= abc",
+           "##.OBSERVE NUCLEUS= ^13C", "##.OBSERVE NUCLEUS= ^1H", "##XUNITS= HZ", "##XUNITS= PPM", "##XUNITS= SECONDS",
+           "##FIRSTX= 200", "##LASTX= 0", "##FIRSTX= nan", "##XYDATA= (X++(Y..Y))", "##PEAK TABLE= (XY..XY)",
+           "##PEAK TABLE= (XYW..XYW)", "##PEAK TABLE= (XYM..XYM)", "##NTUPLES= NMR SPECTRUM", "##SYMBOL= X, R, I",
+           "##FIRST= 1, 2, 3", "##LAST= a, b", "##PAGE= N=1", "##DATA TABLE= (X++(R..R)), XYDATA", "##END=",
+           "##.SOLVENT NAME= DMSO", "##.SOLVENT NAME= weird"]
+
+
+def test_malformed_jcamp_files_give_input_errors_only(tmp_path):
+    """Any mix of labels and data lines (values, pseudo-digits, stray characters): a peak list or an InputError,
+    never another exception (hypothesis)."""
+    from hypothesis import HealthCheck, given, settings
+    from hypothesis import strategies as st
+
+    line = st.one_of(st.sampled_from(_LABELS),
+                     st.text(alphabet="@ABCDEFGHIabcdefghiJKLMNOPQRjklmnopqr%STUVWXYZs0123456789 .,;-+", max_size=40),
+                     st.lists(st.one_of(st.floats(-50, 250), st.just(float("nan"))), min_size=1, max_size=6).map(
+                         lambda v: ", ".join(f"{x:.3f}" for x in v)))
+
+    @settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+    @given(st.lists(line, min_size=1, max_size=25), st.sampled_from(["13C", "1H"]))
+    def check(lines, nucleus):
+        f = tmp_path / "fuzz.jdx"
+        f.write_text("##JCAMP-DX= 5.01\n" + "\n".join(lines) + "\n")
+        try:
+            read_jcamp(f, nucleus)
+        except InputError:
+            pass
+
+    check()

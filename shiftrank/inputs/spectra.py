@@ -155,11 +155,13 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     if not len(ppm):
         raise InputError(f"{where}: no {nucleus} peak found" + (" above the picking threshold" if trace is not None else ""))
     lo, hi = RANGES[nucleus]
-    keep = (ppm >= lo) & (ppm <= hi)
+    keep = (ppm >= lo) & (ppm <= hi) & np.isfinite(height)
     if not keep.all():
         notes.append(f"{where}: {int((~keep).sum())} lines outside {lo:g}…{hi:g} ppm set aside")
     ppm, height, width = ppm[keep], height[keep], width[keep]
     letters = [m for m, k in zip(letters, keep) if k]
+    if not len(ppm):
+        raise InputError(f"{where}: no {nucleus} peak within {lo:g}…{hi:g} ppm")
     if nucleus == "13C":
         peaks = [Peak(round(float(x), 3), None, round(float(h), 4), line=None) for x, h in zip(ppm, height)]
     else:
