@@ -307,3 +307,17 @@ def test_malformed_jcamp_files_give_input_errors_only(tmp_path):
             pass
 
     check()
+
+
+def test_first_order_multiplets_are_named_from_the_trace(tmp_path):
+    """td, ddd and dt patterns (Hoye, Hanson & Vyvyan 1994, J. Org. Chem. 59, 4096: every J is the distance from
+    the outermost line to another line) read from a rendered spectrum; J within 0.3 Hz."""
+    lines = (_multiplet(7.20, 1, [(7.6, 2), (1.5, 1)]) + _multiplet(6.70, 1, [(8.2, 1), (6.1, 1), (2.4, 1)])
+             + _multiplet(5.90, 1, [(10.3, 1), (3.1, 2)]) + _multiplet(3.80, 3, []))
+    x, y = _trace(lines, -1, 12, 131072, 0.0012, 1.0)
+    f = _write(tmp_path / "fo.jdx", _header("1H", MHZ_H, x[0], x[-1], len(y), solvent="CDCl3"), _affn(x, y))
+    got = {round(p.shift, 1): p for p in read_jcamp(f, "1H").peaks}
+    assert got[7.2].multiplicity == "td" and np.allclose(got[7.2].j, (7.6, 1.5), atol=0.3)
+    assert got[6.7].multiplicity == "ddd" and np.allclose(got[6.7].j, (8.2, 6.1, 2.4), atol=0.3)
+    assert got[5.9].multiplicity == "dt" and np.allclose(got[5.9].j, (10.3, 3.1), atol=0.3)
+    assert got[3.8].multiplicity == "s"
