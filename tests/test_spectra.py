@@ -176,6 +176,8 @@ def test_peak_tables(tmp_path):
     ("##TITLE= x\n##JCAMP-DX= 5.01\n##TITLE2= y\n##END=\n", "13C", "without a peak table"),
     ("##TITLE= x\n##JCAMP-DX= 5.01\n##PEAK TABLE= (XY..XY)\n7.1, abc\n##END=\n", "1H", "not numeric"),
     ("##TITLE= x\n##JCAMP-DX= 5.01\n##PEAK TABLE= 7.1, 5\n##END=\n", "13C", "must start with"),
+    ("##TITLE= x\n##JCAMP-DX= 6.0\n##NUM DIM= 2\n##NTUPLES= NMR SPECTRUM\n##PAGE= F1= 100\n"
+     "##DATA TABLE= (F2++(Y..Y)), PROFILE\n1 2 3\n##END=\n", "13C", "a 2D spectrum"),
 ])
 def test_bad_files_name_the_problem(tmp_path, text, nucleus, message):
     f = tmp_path / "bad.jdx"

@@ -131,6 +131,9 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     if block is None:
         raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=)")
     head = blocks[0]
+    dims = (block.get("NUMDIM") or head.get("NUMDIM") or "1").split()[0]
+    if dims != "1" or re.search(r"^\s*##PAGE=\s*F1\s*=", text, re.I | re.M):
+        raise InputError(f"{where}: a 2D spectrum (##NUM DIM= {dims}); give the 1D 13C or 1H spectrum, or its peak list")
     found = _nucleus(block) or _nucleus(head)
     if found is not None and found != nucleus:
         raise InputError(f"{where}: the file holds a {found} spectrum (##.OBSERVE NUCLEUS= "
