@@ -144,6 +144,7 @@ def cmd_predict(args) -> int:
     runs = {n: predict_records(records, args.solvent, n) for n in nuclei}
     version = default_manifest().get("version")
     n_bad = 0
+    written: list = []
     for k, rec in enumerate(records):
         err = next((runs[n][k][2] for n in nuclei if runs[n][k][2]), None)
         if err:
@@ -154,6 +155,11 @@ def cmd_predict(args) -> int:
                 print(f"{rec.id}: error: {err}", file=sys.stderr)
             continue
         preds = {n: runs[n][k][1] for n in nuclei}
+        if args.jcamp:
+            from .outputs.jcamp import write_predicted
+
+            for n, pred in preds.items():
+                written.append(write_predicted(args.jcamp, rec.id, rec.mol, pred, args.mhz, args.solvent, version))
         if args.jsonl:
             obj = {"id": rec.id}
             for n, pred in preds.items():
@@ -188,6 +194,8 @@ def cmd_predict(args) -> int:
                 print(f"       {c.atom:>4}  {what:<6}{c.shift:7.{nd}f}  {Z90 * c.sigma:6.{nd}f}  {match}")
     if n_bad and not args.jsonl:
         print(f"{n_bad} of {len(records)} records could not be predicted", file=sys.stderr)
+    if written:
+        print(f"{count(len(written), 'predicted peak table')} written to {args.jcamp} (JCAMP-DX)", file=sys.stderr)
     return 2 if n_bad == len(records) else 0
 
 
@@ -480,6 +488,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--nucleus", choices=["13C", "1H", "both"], default="13C",
                    help="13C (each carbon), 1H (mean shift of the protons on each heavy atom) or both")
     s.add_argument("--solvent", help="NMR solvent (CDCl3, DMSO-d6, CD3OD; others are treated as unknown)")
+    s.add_argument("--jcamp", metavar="DIR", help="also write each prediction as a JCAMP-DX peak table, DIR/<id>_<nucleus>.jdx "
+                   "(1H: first-order multiplet lines), to lay over a measured spectrum")
+    s.add_argument("--mhz", type=float, default=400.0, help="1H frequency for the 1H multiplet lines of --jcamp (default 400)")
     s.set_defaults(func=cmd_predict)
 
     s = sub.add_parser("rank", help="rank candidate structures against 13C and/or 1H peaks or printed NMR text")

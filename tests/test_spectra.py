@@ -323,3 +323,21 @@ def test_first_order_multiplets_are_named_from_the_trace(tmp_path):
     assert got[6.7].multiplicity == "ddd" and np.allclose(got[6.7].j, (8.2, 6.1, 2.4), atol=0.3)
     assert got[5.9].multiplicity == "dt" and np.allclose(got[5.9].j, (10.3, 3.1), atol=0.3)
     assert got[3.8].multiplicity == "s"
+
+
+def test_predicted_spectra_written_as_jcamp_read_back(tmp_path):
+    """`predict --jcamp`: 4-ethylanisole's predicted 1H peak table reads back as the first-order patterns a
+    para-disubstituted ring and an ethyl group give (two 2H doublets, a 2H quartet, a 3H triplet, a 3H singlet;
+    common practice), and the 13C table as one line per symmetry class (7 for C9H12O)."""
+    smi = tmp_path / "m.smi"
+    smi.write_text("CCc1ccc(OC)cc1 ethylanisole\n")
+    r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", str(smi), "--nucleus", "both", "--jcamp",
+                        str(tmp_path / "out")], capture_output=True, text=True)
+    assert r.returncode == 0, r.stderr
+    assert "2 predicted peak tables written" in r.stderr
+    h = read_jcamp(tmp_path / "out" / "ethylanisole_1H.jdx", "1H")
+    letters = sorted((p.multiplicity, round(p.intensity / min(q.intensity for q in h.peaks), 1)) for p in h.peaks)
+    assert letters == [("d", 1.0), ("d", 1.0), ("q", 1.0), ("s", 1.5), ("t", 1.5)]
+    c = read_jcamp(tmp_path / "out" / "ethylanisole_13C.jdx", "13C")
+    assert len(c.peaks) == 7 and sorted(p.intensity for p in c.peaks) == [1, 1, 1, 1, 1, 2, 2]
+    assert "prediction" in (tmp_path / "out" / "ethylanisole_13C.jdx").read_text()

@@ -380,7 +380,7 @@ LINE_TOLERANCE_HZ = 0.6
 HEIGHT_TOLERANCE = 0.45   # a line's share of the multiplet's height may differ by this fraction of itself
 
 
-def _sticks(js: tuple) -> tuple[np.ndarray, np.ndarray]:
+def stick_pattern(js: tuple) -> tuple[np.ndarray, np.ndarray]:
     """Positions (Hz, from the centre) and relative heights of the first-order pattern of couplings ``js``,
     lines closer than the tolerance merged."""
     pos = np.zeros(1)
@@ -427,7 +427,7 @@ def first_order(pos_hz: np.ndarray, h: np.ndarray) -> tuple[str, tuple]:
         if 2 ** k < n:
             continue
         for js in itertools.combinations_with_replacement(cands, k):
-            sp, sh = _sticks(js)
+            sp, sh = stick_pattern(js)
             if len(sp) != n:
                 continue
             sp = sp + centre
