@@ -439,8 +439,7 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     n_obs = res.observed_signals
     n_unexplained = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent)
     n_second = sum(1 for j in a.unmatched_peaks if not peaks[j].solvent and peaks[j].doubled)
-    unexplained = (count(n_unexplained, 'peak', 'peaks') + " unexplained"
-                   + (f" ({n_second} beside another line: a second form's?)" if n_second else ""))
+    second = f" ({n_second} beside another line: a second form's?)" if n_second else ""
     missing = [p for p in a.pairings if p.peak is None]
     n_missing = len({p.cls for p in missing})
     n_missing_x = len({p.cls for p in missing if res.classes[p.cls].exchangeable})
@@ -450,8 +449,8 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
                 + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
                 + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
                 + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
-                + (f"; {unexplained}" if n_unexplained else "")]
-    return [f"{res.nucleus} {unexplained}"] if n_unexplained else []
+                + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained{second}" if n_unexplained else "")]
+    return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained{second}"] if n_unexplained else []
 
 
 def _quality_flags(res: NucleusResult, what: tuple[str, str]) -> list[str]:
