@@ -344,8 +344,8 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
             inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap")
         elif dC < 0 and pairs:
             left = carbons - pairs
-            inv.findings.append(f"{-dC} more carbon signals than the formula has carbons; the text says the compound shows "
-                                f"two forms, and {count(pairs, 'pair')} of lines within {DOUBLED_GAP['13C']:g} ppm read as one "
+            inv.findings.append(f"{-dC} more carbon signals than the formula has carbons; the spectrum shows two forms "
+                                f"(as stated), and {count(pairs, 'pair')} of lines within {DOUBLED_GAP['13C']:g} ppm read as one "
                                 f"carbon each leave {left} signals for {nC} carbons"
                                 + (": consistent" if left <= nC else ": still more signals than carbons (impurity?)"))
         elif dC < 0:
