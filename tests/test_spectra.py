@@ -282,7 +282,8 @@ def test_report_draws_the_measured_spectrum(tmp_path):
 _LABELS = ["##TITLE= x", "##DATA TYPE= NMR SPECTRUM", "##.OBSERVE FREQUENCY= 100.6", "##.OBSERVE FREQUENCY= abc",
            "##.OBSERVE NUCLEUS= ^13C", "##.OBSERVE NUCLEUS= ^1H", "##XUNITS= HZ", "##XUNITS= PPM", "##XUNITS= SECONDS",
            "##FIRSTX= 200", "##LASTX= 0", "##FIRSTX= nan", "##XYDATA= (X++(Y..Y))", "##PEAK TABLE= (XY..XY)",
-           "##PEAK TABLE= (XYW..XYW)", "##PEAK TABLE= (XYM..XYM)", "##NTUPLES= NMR SPECTRUM", "##SYMBOL= X, R, I",
+           "##PEAK TABLE= (XYW..XYW)", "##PEAK TABLE= (XYM..XYM)", "##XYPOINTS= (XY..XY)", "##XFACTOR= 0",
+           "##NTUPLES= NMR SPECTRUM", "##SYMBOL= X, R, I",
            "##FIRST= 1, 2, 3", "##LAST= a, b", "##PAGE= N=1", "##DATA TABLE= (X++(R..R)), XYDATA", "##END=",
            "##.SOLVENT NAME= DMSO", "##.SOLVENT NAME= weird"]
 
@@ -341,3 +342,16 @@ def test_predicted_spectra_written_as_jcamp_read_back(tmp_path):
     c = read_jcamp(tmp_path / "out" / "ethylanisole_13C.jdx", "13C")
     assert len(c.peaks) == 7 and sorted(p.intensity for p in c.peaks) == [1, 1, 1, 1, 1, 2, 2]
     assert "prediction" in (tmp_path / "out" / "ethylanisole_13C.jdx").read_text()
+
+
+def test_xypoints_spectrum_and_factors(tmp_path):
+    """A spectrum tabulated as (X, Y) pairs (##XYPOINTS=, McDonald & Wilks 1988) with ##XFACTOR: the values times
+    the factor are the shifts."""
+    x, y = _trace(_paraben_lines(), -5, 220, 8192, 0.03, 3.0)
+    head = _header("13C", 100.6, x[0], x[-1], len(y), solvent="DMSO-d6")
+    head = [h for h in head if not h.startswith("##XFACTOR")] + ["##XFACTOR= 0.001"]
+    f = tmp_path / "points.jdx"
+    f.write_text("\n".join(head + ["##XYPOINTS= (XY..XY)"] + [f"{round(a * 1000)}, {b}" for a, b in zip(x, y)]
+                           + ["##END="]) + "\n")
+    pl = read_jcamp(f)
+    assert np.allclose(sorted(p.shift for p in pl.peaks if p.solvent is None), sorted(s for s, _ in PARABEN), atol=0.03)

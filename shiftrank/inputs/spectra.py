@@ -126,10 +126,10 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         raise InputError(f"{where}: not a JCAMP-DX file (no '##JCAMP-DX=' line)")
     blocks = _blocks(text)
     table = next((b for b in blocks if "PEAKTABLE" in b), None)
-    spectrum = next((b for b in blocks if "XYDATA" in b or "DATATABLE" in b), None)
+    spectrum = next((b for b in blocks if "XYDATA" in b or "DATATABLE" in b or "XYPOINTS" in b), None)
     block = table if table is not None else spectrum
     if block is None:
-        raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=)")
+        raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=, ##XYPOINTS=)")
     head = blocks[0]
     dims = (block.get("NUMDIM") or head.get("NUMDIM") or "1").split()[0]
     if dims != "1" or re.search(r"^\s*##PAGE=\s*F1\s*=", text, re.I | re.M):
@@ -146,7 +146,8 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         what = f"JCAMP-DX {nucleus} peak table, {len(ppm)} lines"
         trace = None
     else:
-        trace = _trace(p, block, mhz, where)
+        trace = (_xypoints(block, mhz, where) if "XYPOINTS" in block and "XYDATA" not in block and "DATATABLE" not in block
+                 else _trace(p, block, mhz, where))
         ppm, height, width = pick_lines(trace, nucleus, min_snr)
         letters = [None] * len(ppm)
         what = (f"JCAMP-DX {nucleus} spectrum, {len(trace.y):,} points: {len(ppm)} lines picked above "
@@ -218,19 +219,29 @@ def _solvent_multiplet(pl: PeakList, key: str, mhz: float | None) -> None:
             p.solvent = key
 
 
-def _peak_table(block: dict, mhz: float | None, where: str):
-    raw = block["PEAKTABLE"]
+def _table(block: dict, key: str, where: str) -> tuple[str, list[list[str]]]:
+    """The form ('XY', 'XYW' or 'XYM') and the rows of a tabular record (##PEAK TABLE=, ##XYPOINTS=)."""
+    raw = block[key]
+    label = "##PEAK TABLE=" if key == "PEAKTABLE" else "##XYPOINTS="
     form = re.match(r"\s*\(\s*(XY[WM]?)\s*\.\.\s*XY[WM]?\s*\)", raw, re.I)
     if not form:
-        raise InputError(f"{where}: ##PEAK TABLE= must start with (XY..XY), (XYW..XYW) or (XYM..XYM); got '{raw[:30]}'")
+        raise InputError(f"{where}: {label} must start with (XY..XY), (XYW..XYW) or (XYM..XYM); got '{raw[:30]}'")
     width = len(form.group(1))
-    body = raw[form.end():]
-    groups = [g for g in re.split(r"[;\n]+", body) if g.strip()]
     rows = []
-    for g in groups:
+    for g in re.split(r"[;\n]+", raw[form.end():]):
         vals = [v for v in re.split(r"[,\s]+", g.strip()) if v]
-        for k in range(0, len(vals), width):
-            rows.append(vals[k:k + width])
+        rows.extend(vals[k:k + width] for k in range(0, len(vals), width))
+    return form.group(1).upper(), rows
+
+
+def _factor(block: dict, key: str, where: str) -> float:
+    """##XFACTOR / ##YFACTOR: what the tabulated values are multiplied by (1 when absent)."""
+    f = _float(block, key, where)
+    return 1.0 if f is None or f == 0 else f
+
+
+def _peak_table(block: dict, mhz: float | None, where: str):
+    form, rows = _table(block, "PEAKTABLE", where)
     xs, ys, ws, ms = [], [], [], []
     for r in rows:
         if len(r) < 2:
@@ -242,8 +253,8 @@ def _peak_table(block: dict, mhz: float | None, where: str):
             raise InputError(f"{where}: peak table entry '{', '.join(r)}' is not numeric") from None
         w = None
         m = None
-        if width == 3 and len(r) > 2:
-            if form.group(1).upper().endswith("W"):
+        if len(form) == 3 and len(r) > 2:
+            if form.endswith("W"):
                 try:
                     w = float(r[2])
                 except ValueError:
@@ -252,13 +263,28 @@ def _peak_table(block: dict, mhz: float | None, where: str):
                 m = r[2]
         ws.append(w)
         ms.append(m)
-    x = np.array(xs, dtype=float)
-    x = _to_ppm(x, block, mhz, where)
+    xf = _factor(block, "XFACTOR", where)
+    x = _to_ppm(np.array(xs, dtype=float) * xf, block, mhz, where)
     order = np.argsort(x)
-    w = np.array([np.nan if v is None else v for v in ws], dtype=float)
+    w = np.array([np.nan if v is None else v for v in ws], dtype=float) * xf
     if _label(block.get("XUNITS", "PPM")) == "HZ" and mhz:
         w = w / mhz   # widths in the X unit
-    return x[order], np.array(ys, dtype=float)[order], w[order], [ms[k] for k in order]
+    y = np.array(ys, dtype=float) * _factor(block, "YFACTOR", where)
+    return x[order], y[order], w[order], [ms[k] for k in order]
+
+
+def _xypoints(block: dict, mhz: float | None, where: str) -> Trace:
+    """A spectrum tabulated as (X, Y) pairs (##XYPOINTS=), as some exports write it instead of ##XYDATA=."""
+    _, rows = _table(block, "XYPOINTS", where)
+    try:
+        pts = np.array([[float(r[0]), float(r[1])] for r in rows if len(r) >= 2], dtype=float)
+    except ValueError:
+        raise InputError(f"{where}: ##XYPOINTS= holds a value that is not a number") from None
+    if len(pts) < 16 or not np.isfinite(pts).all():
+        raise InputError(f"{where}: ##XYPOINTS= holds {len(pts)} usable points; a spectrum needs more")
+    x = _to_ppm(pts[:, 0] * _factor(block, "XFACTOR", where), block, mhz, where)
+    order = np.argsort(x)
+    return Trace(x[order], pts[order, 1] * _factor(block, "YFACTOR", where), mhz)
 
 
 def _to_ppm(x: np.ndarray, block: dict, mhz: float | None, where: str) -> np.ndarray:
