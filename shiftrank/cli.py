@@ -431,6 +431,50 @@ def cmd_isomers(args) -> int:
     return 0
 
 
+def _one_list(args, which: str):
+    """The sample's or the reference's peak list for ``compare``: a peak file, or printed text (FILE or -)."""
+    from .inputs.peaks import read_peaks
+    from .inputs.text import read_nmr_text
+
+    path, text = getattr(args, which), getattr(args, which + "_text")
+    if bool(path) == bool(text):
+        raise InputError(f"compare: give --{which} FILE or --{which}-text FILE_OR_- (one of them)")
+    if path:
+        return read_peaks(path, nucleus=args.nucleus, solvent=args.solvent)
+    body, name = _read_text_arg(text)
+    pl = read_nmr_text(body, name).peaklist(args.nucleus, args.solvent, source=f"{name} ({args.nucleus})")
+    if pl is None:
+        raise InputError(f"compare: {name} prints no {args.nucleus} peaks")
+    return pl
+
+
+def cmd_compare(args) -> int:
+    from .score.reference import CAUTION, compare_spectra
+
+    sample, reference = _one_list(args, "sample"), _one_list(args, "reference")
+    c = compare_spectra(sample, reference, args.tolerance)
+    if args.json:
+        print(json.dumps(c.to_dict()))
+        return 0
+    for pl, who in ((sample, "sample"), (reference, "reference")):
+        for n in pl.notes:
+            print(f"  note ({who}): {n}")
+    print(f"{args.nucleus}: {c.verdict()}")
+    for n in c.notes:
+        print(f"  note: {n}")
+    nd = 2 if args.nucleus == "13C" else 3
+    print(f"  {'reference':>10}  {'sample':>10}  {'diff':>7}  note")
+    rows = [(p.reference, p.sample, p.deviation, p.note) for p in c.pairs] + [(x, None, None, "not found in the sample")
+                                                                              for x in c.missing]
+    for ref, smp, dev, note in sorted(rows, key=lambda r: -r[0]):
+        print(f"  {ref:10.{nd}f}  {'–' if smp is None else f'{smp:.{nd}f}':>10}  "
+              f"{'' if dev is None else f'{dev:+.{nd}f}':>7}  {note}")
+    if c.extra:
+        print("  sample lines without a reference line: " + ", ".join(f"{x:.{nd}f}" for x in c.extra))
+    print(f"\nCaution: {CAUTION}")
+    return 0
+
+
 def cmd_demo(args) -> int:
     from .demo.runner import run_demo
 
@@ -492,6 +536,17 @@ def build_parser() -> argparse.ArgumentParser:
                    "(1H: first-order multiplet lines), to lay over a measured spectrum")
     s.add_argument("--mhz", type=float, default=400.0, help="1H frequency for the 1H multiplet lines of --jcamp (default 400)")
     s.set_defaults(func=cmd_predict)
+
+    s = sub.add_parser("compare", help="pair a sample's peaks with a reference spectrum of the compound (identity check)")
+    s.add_argument("--sample", help="the sample's peak file (.txt, .csv, .json, JCAMP-DX .jdx)")
+    s.add_argument("--sample-text", metavar="FILE_OR_-", help="or the sample's printed characterisation text")
+    s.add_argument("--reference", help="the reference's peak file (an authentic sample, a standard)")
+    s.add_argument("--reference-text", metavar="FILE_OR_-", help="or the reference's printed text (e.g. from the literature)")
+    s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
+    s.add_argument("--tolerance", type=float, help="largest difference of one signal, ppm (default 13C 0.5, 1H 0.05)")
+    s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside in both lists")
+    s.add_argument("--json", action="store_true", help="the comparison as one JSON object")
+    s.set_defaults(func=cmd_compare)
 
     s = sub.add_parser("rank", help="rank candidate structures against 13C and/or 1H peaks or printed NMR text")
     _sample_options(s, candidates_required=True)

@@ -1,0 +1,72 @@
+"""A sample's peaks against a reference spectrum (`compare`).
+
+Values from memory: methyl 4-hydroxybenzoate 13C in DMSO-d6 166.1, 162.0, 131.5 (2C), 120.4, 115.4 (2C), 51.8;
+its 3-hydroxy isomer 166.4, 157.6, 131.1, 129.8, 120.2, 119.8, 115.7, 52.1; 4-ethylanisole 1H in CDCl3 7.10 (d,
+2H), 6.83 (d, 2H), 3.79 (s, 3H), 2.59 (q, 2H), 1.21 (t, 3H).  The tolerances (13C 0.5, 1H 0.05 ppm for spectra in
+one solvent) are common practice.
+"""
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+
+import pytest
+
+from shiftrank.errors import InputError
+from shiftrank.inputs.peaks import parse_peaks
+from shiftrank.inputs.text import read_nmr_text
+from shiftrank.score.reference import compare_spectra
+
+PARA = "166.1\n162.0\n131.5\n120.4\n115.4\n51.8\n"
+META = "166.4\n157.6\n131.1\n129.8\n120.2\n119.8\n115.7\n52.1\n"
+ANISOLE = ("1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.6 Hz, 2H), 6.83 (d, J = 8.6 Hz, 2H), 3.79 (s, 3H), "
+           "2.59 (q, J = 7.6 Hz, 2H), 1.21 (t, J = 7.6 Hz, 3H)")
+
+
+def test_same_compound_with_an_offset_and_an_impurity_is_consistent():
+    sample = parse_peaks("\n".join(f"{float(x) + 0.25:.2f}" for x in PARA.split()) + "\n30.9\n")
+    c = compare_spectra(sample, parse_peaks(PARA))
+    assert c.consistent and c.offset == pytest.approx(0.25, abs=0.01)
+    assert c.extra == [30.9] and not c.missing
+    assert "consistent with the reference: all 6" in c.verdict() and "1 further sample line" in c.verdict()
+
+
+def test_positional_isomer_is_not_consistent():
+    c = compare_spectra(parse_peaks(META), parse_peaks(PARA))
+    # at 0.5 ppm most lines of the 3-hydroxy isomer find a partner: the C–OH carbon (162.0 against 157.6) does
+    # not, and three sample lines have none
+    assert not c.consistent and c.missing == [162.0] and c.extra == [119.8, 129.8, 157.6]
+    assert c.verdict() == ("not consistent with the reference: 1 of 6 reference signals not found within 0.5 ppm; "
+                           "3 sample lines without a reference line")
+
+
+def test_1h_pairs_compare_multiplets_and_integrals():
+    ref = read_nmr_text(ANISOLE).peaklist("1H")
+    same = read_nmr_text(ANISOLE.replace("7.10", "7.11").replace("3.79", "3.78")).peaklist("1H")
+    assert compare_spectra(same, ref).consistent
+    odd = read_nmr_text(ANISOLE.replace("1.21 (t, J = 7.6 Hz, 3H)", "1.21 (d, J = 7.6 Hz, 6H)")).peaklist("1H")
+    c = compare_spectra(odd, ref)
+    assert not c.consistent
+    note = next(p.note for p in c.pairs if p.reference == pytest.approx(1.21))
+    assert "multiplet d against t" in note and "integral" in note
+
+
+def test_errors_name_the_problem():
+    with pytest.raises(InputError, match="tolerance"):
+        compare_spectra(parse_peaks(PARA), parse_peaks(PARA), tolerance=-1)
+    with pytest.raises(InputError, match="13C list and the reference a 1H list"):
+        compare_spectra(parse_peaks(PARA), read_nmr_text(ANISOLE).peaklist("1H"))
+
+
+def test_cli_json_and_exit_codes(tmp_path):
+    s, r = tmp_path / "s.txt", tmp_path / "r.txt"
+    s.write_text(META)
+    r.write_text(PARA)
+    run = lambda *a: subprocess.run([sys.executable, "-m", "shiftrank.cli", "compare", *a], capture_output=True, text=True)
+    out = run("--sample", str(s), "--reference", str(r), "--json")
+    assert out.returncode == 0, out.stderr
+    obj = json.loads(out.stdout)
+    assert obj["consistent"] is False and obj["missing"]
+    bad = run("--sample", str(s))
+    assert bad.returncode == 2 and "--reference" in bad.stderr and "Traceback" not in bad.stderr
