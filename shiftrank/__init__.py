@@ -7,7 +7,7 @@
 __version__ = "0.1.0"
 
 __all__ = ["predict", "predict_many", "rank", "rank_many", "structure_facts", "take_inventory", "read_peaks", "parse_peaks",
-           "read_nmr_text", "isomers", "InputError", "__version__"]
+           "read_nmr_text", "isomers", "compare_spectra", "InputError", "__version__"]
 
 
 def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start-up light
@@ -32,6 +32,9 @@ def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start
     if name == "isomers":
         from .chem.isomers import isomers
         return isomers
+    if name == "compare_spectra":
+        from .score.reference import compare_spectra
+        return compare_spectra
     if name == "InputError":
         from .errors import InputError
         return InputError
