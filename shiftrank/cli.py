@@ -468,7 +468,7 @@ def cmd_compare(args) -> int:
                                                                               for x in c.missing]
     for ref, smp, dev, note in sorted(rows, key=lambda r: -r[0]):
         print(f"  {ref:10.{nd}f}  {'–' if smp is None else f'{smp:.{nd}f}':>10}  "
-              f"{'' if dev is None else f'{dev:+.{nd}f}':>7}  {note}")
+              f"{'' if dev is None else f'{round(dev, nd) + 0.0:+.{nd}f}':>7}  {note}")
     if c.extra:
         print("  sample lines without a reference line: " + ", ".join(f"{x:.{nd}f}" for x in c.extra))
     print(f"\nCaution: {CAUTION}")
