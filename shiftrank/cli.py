@@ -487,8 +487,9 @@ ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an is
 
 def _sample_options(s, candidates_required: bool) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
-    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json)")
-    s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json)")
+    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx)")
+    s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
+                   "or JCAMP-DX spectrum / peak table (.jdx, .dx)")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
     s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
@@ -521,7 +522,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_formula)
 
     s = sub.add_parser("peaks", help="read and check a peak list (ranges, duplicates, solvent signals)")
-    s.add_argument("file")
+    s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx)")
     s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
@@ -565,8 +566,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_batch)
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
-    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known)")
-    s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line)")
+    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file")
+    s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
+                   "or a JCAMP-DX file")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
