@@ -197,6 +197,10 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
     table = (f"<table><tr><th>atoms</th><th>{head}</th><th>predicted{dims} ± σ</th><th>observed{dims}</th>"
              f"<th>deviation{dims}</th><th>note</th></tr>"
              + "".join(rows) + "</table>")
+    if res.scaling is not None:
+        off, slope, centre = res.scaling
+        table = (f"<p class='note'>predictions scaled to this spectrum, DP4-style: {off:+.2f} ppm at {centre:.0f} ppm, "
+                 f"slope {slope:.4f}</p>" + table)
     pics = ""
     if with_plots and nucleus != "HSQC":   # HSQC: the table (δC / δH) is the picture
         pics = f"<div class='cardrow'><div>{structure_svg(c, nucleus)}</div><div>{spectrum_svg(result, c, nucleus)}</div></div>"

@@ -70,6 +70,10 @@ def print_assignment(cand, nucleus: str, out=None) -> None:
     r = cand.nuclei[nucleus]
     what = {"13C": "carbon", "1H": "proton class", "HSQC": "protonated carbon"}[nucleus]
     print(f"\n{nucleus} assignment for {cand.name or cand.smiles}, {what} by {what}:", file=out)
+    if r.scaling is not None:
+        off, slope, centre = r.scaling
+        print(f"  (predictions scaled to this spectrum, DP4-style: {off:+.2f} ppm at {centre:.0f} ppm, slope {slope:.4f})",
+              file=out)
     kind = "expected" if nucleus == "1H" else "CHn"
     nd = 2
     hsqc = nucleus == "HSQC"

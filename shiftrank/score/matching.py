@@ -64,6 +64,7 @@ class MatchCosts:
     shared_multiplet: float = 0.0        # 1H: per further class inside one printed first-order multiplet (d, t, dd …)
     shared_unresolved: float = 0.0       # 1H: per further class inside one printed unresolved multiplet ('m', a range, 'br')
     extra_doubled: float = 1.0           # an unexplained line that may be a second form's (text says rotamers); chosen, not fitted
+    scale_prior: float | None = None     # DP4-style scaled shifts: ridge strength of each candidate's line fit (None: off)
     h_t_df: float | None = None          # HSQC: Student-t of the proton dimension (None: no proton dimension)
     h_t_scale: float = 1.0
 
