@@ -120,3 +120,14 @@ def test_the_labelled_carbon_is_predicted_with_its_isotope_shift():
     lab, plain = predict(D3), predict("COc1ccc(OC)cc1")
     assert abs((lab.shifts[1] - plain.shifts[0]) - 3 * -0.3) < 1e-6
     assert abs(lab.shifts[10] - plain.shifts[7]) < 1e-6
+
+
+def test_an_explicit_hydrogen_that_fixes_a_double_bond_is_no_label():
+    """'[H]/N=C(/NCC#C)c1cccnc1' (an NMRShiftDB2 structure among the development isomer cases): RDKit keeps an
+    explicit H that defines a double bond's stereo when removing hydrogens, so the atoms left were not the heavy
+    atoms counted, and the candidate could not be scored (IndexError) until all H were removed."""
+    f = structure_facts("[H]/N=C(/NCC#C)c1cccnc1")
+    assert f.formula == "C9H9N3"
+    r = rank([150.1, 148.0, 135.0, 123.5, 130.0, 80.0, 72.0, 31.0, 160.0],
+                       ["[H]/N=C(/NCC#C)c1cccnc1", "N=C(NCC#C)c1ccccn1"])
+    assert all(c.error is None for c in r.candidates)

@@ -92,7 +92,7 @@ def strip_labelled_hydrogens(mol: Chem.Mol) -> tuple[Chem.Mol, list[int]]:
             a.SetIsotope(0)
     heavy = [a.GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() > 1]
     new_index = {old: k for k, old in enumerate(heavy)}
-    out = Chem.RemoveHs(mol, sanitize=True)
+    out = Chem.RemoveAllHs(mol, sanitize=True)   # (RemoveHs keeps an H that defines a double bond's stereo: [H]/N=C)
     set_labels(out, {new_index[i]: tuple(n) for i, n in counts.items() if i in new_index})
     return out, heavy
 
