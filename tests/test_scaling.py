@@ -60,3 +60,23 @@ def test_scaling_lowers_the_truths_cost_on_a_shifted_list():
     assert without.best.smiles == CANDIDATES[0]
     assert with_scaling < without.best.nuclei["13C"].cost
     assert without.to_dict()["ranking"][0]["nuclei"]["13C"].get("scaling") is None
+
+
+def test_printed_text_has_settings_of_its_own():
+    """Lists read from a printed paragraph are scored with the costs fitted with printed paragraphs (ranking.printed
+    in the manifest); typed lists keep the database-fitted ones."""
+    from shiftrank.inputs.peaks import parse_peaks
+    from shiftrank.inputs.text import read_nmr_text
+    from shiftrank.score.evidence import EVIDENCE
+
+    s = ranking_settings()
+    assert s.printed is not None and s.printed.costs["13C"] != s.costs["13C"]
+    assert s.printed.costs["1H"] == s.costs["1H"]
+    text = "13C NMR (101 MHz, DMSO-d6) δ " + ", ".join(f"{x:.1f}" for x in PARA)
+    printed = EVIDENCE["13C"].observed(read_nmr_text(text).peaklist("13C"))
+    typed = EVIDENCE["13C"].observed(parse_peaks("\n".join(map(str, PARA))))
+    assert s.for_peaks({"13C": printed}) is s.printed and s.for_peaks({"13C": typed}) is s
+    a = shiftrank.rank(candidates=CANDIDATES, text=text).best
+    b = shiftrank.rank(PARA, CANDIDATES).best
+    assert a.smiles == b.smiles == CANDIDATES[0]
+    assert a.nuclei["13C"].cost != pytest.approx(b.nuclei["13C"].cost)

@@ -75,6 +75,7 @@ class PeakList:
     notes: list[str] = field(default_factory=list)
     field_mhz: float | None = None    # observation frequency of this nucleus, when known (printed text)
     trace: tuple | None = None        # (ppm, intensity) of the measured spectrum the peaks were picked from, thinned for display
+    printed: bool = False             # read from a printed characterisation paragraph (the ranking has costs of its own for it)
 
     @property
     def shifts(self) -> list[float]:

@@ -246,9 +246,11 @@ class CarbonEvidence(_Evidence):
     nucleus = "13C"
 
     def observed(self, pl: PeakList) -> list[ObservedPeak]:
-        return PeakSet(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
-                                    coupling=p.coupling, field=pl.field_mhz, doubled=p.doubled)
-                       for p in pl.peaks)
+        out = PeakSet(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, count=p.count, j=tuple(p.j),
+                                   coupling=p.coupling, field=pl.field_mhz, doubled=p.doubled)
+                      for p in pl.peaks)
+        out.printed = pl.printed   # a printed paragraph's list: the ranking's printed-text settings apply
+        return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
         cc = _carbon_classes(mol, ranks, facts)

@@ -163,6 +163,7 @@ class PeakSet(list):
     are matched against every candidate of a case)."""
 
     _arrays = None
+    printed = False   # read from printed text (see RankingSettings.for_peaks)
 
     def arrays(self):
         if self._arrays is None:

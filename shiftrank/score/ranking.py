@@ -180,11 +180,30 @@ class RankingSettings:
         """Temperature of one spectrum's own view when it was scored beside others (its joint-mode costs alone)."""
         return self.view_temperature.get(nucleus, self.temperature[nucleus])
 
+    printed: "RankingSettings | None" = None   # for a case whose 13C list was read from printed text
+
+    def for_peaks(self, peaks: dict) -> "RankingSettings":
+        """The settings of a case: the printed-text ones when its 13C list was read from a printed paragraph."""
+        obs = peaks.get("13C")
+        return self.printed if self.printed is not None and getattr(obs, "printed", False) else self
+
 
 def ranking_settings() -> RankingSettings:
-    """Match costs and temperatures stored with the shipped models (fitted on development data)."""
+    """Match costs and temperatures stored with the shipped models (fitted on development data); the
+    manifest's ``ranking.printed`` entries (13C costs and temperature, joint temperatures), fitted on printed
+    paragraphs, override them for cases whose 13C list was read from printed text."""
     man = default_manifest()
     r = man.get("ranking", {})
+    base = _settings_from(man, r)
+    over = r.get("printed")
+    if over:
+        merged = {**r, **{k: v for k, v in over.items() if k != "joint"},
+                  "joint": {**r.get("joint", {}), **over.get("joint", {})}}
+        base = replace(base, printed=_settings_from(man, merged))
+    return base
+
+
+def _settings_from(man: dict, r: dict) -> RankingSettings:
     costs, temps = {}, {}
     error_fields = ("t_df", "t_scale", "h_t_df", "h_t_scale")
 
@@ -812,17 +831,18 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             out.append(s)
             continue
         case, peaks, notes, (fcounts, charge, ions), mass, priors, preps = s
+        case_settings = settings.for_peaks(peaks)
         results = []
         for p in preps:
             try:
                 if p.error is None and any(n not in p.preds for k in peaks for n in MODELS_FOR[k]):
                     p.error = f"SMILES '{p.smiles}': could not be predicted"
-                r = _score_candidate(p, p.preds, peaks, settings)
+                r = _score_candidate(p, p.preds, peaks, case_settings)
                 _history_checks(r, fcounts, mass, mass_tolerance, charge, ions)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
-        _probabilities(results, priors, demote_history_mismatch, settings, tuple(peaks))
+        _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
         out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
     return out
