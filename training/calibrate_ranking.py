@@ -48,7 +48,7 @@ from scipy.optimize import minimize
 
 from shiftrank.score.evidence import EVIDENCE, MODELS_FOR, ClassMeans
 from shiftrank.score.matching import MatchCosts
-from shiftrank.score.ranking import _parse, ranking_settings, stage_cases
+from shiftrank.score.ranking import _parse, settings_from_manifest, stage_cases
 from training.data import DEFAULT_DATA, hsqc_cases, literature_part, split_of
 
 REPO = Path(__file__).resolve().parents[1]
@@ -245,17 +245,25 @@ def main(argv=None) -> int:
     ap.add_argument("--steps", default="13C,1H,joint,HSQC")
     ap.add_argument("--params", default=None,
                     help="refit only these costs (comma-separated), e.g. t_widen; 'none': the temperatures only")
+    ap.add_argument("--printed", action="store_true",
+                    help="fit the printed-text settings (ranking.printed: 13C costs, their temperature on printed "
+                         "paragraphs alone, joint temperatures) instead of the ones for typed lists")
     args = ap.parse_args(argv)
     steps = args.steps.split(",")
     params = None if not args.params else [] if args.params == "none" else args.params.split(",")
     unknown = sorted(set(params or []) - {k for g in GRID.values() for k in g})
     if unknown:
         ap.error(f"--params: no grid for {', '.join(unknown)}")
+    if args.printed and not set(steps) <= {"13C", "joint"}:
+        ap.error("--printed fits the 13C and joint steps only")
     t0 = time.time()
-    settings = ranking_settings()
     man_path = args.models / "manifest.json"
     man = json.loads(man_path.read_text())
+    settings = settings_from_manifest(man)   # the settings of the manifest being refitted
+    if args.printed and settings.printed is not None:
+        settings = settings.printed
     ranking = man.setdefault("ranking", {})
+    target = ranking.setdefault("printed", {}) if args.printed else ranking
     text_cases = load_text_cases(args.data, "dev")
     print(f"{len(text_cases)} dev-half printed-text cases", flush=True)
     fitted = dict(settings.costs)
@@ -266,15 +274,18 @@ def main(argv=None) -> int:
               f"in {time.time() - t0:.0f} s", flush=True)
         costs, score = fit_costs(sets, "13C", settings.costs["13C"], params=params)
         fitted["13C"] = costs
-        T = fit_temperature([r for s in sets for r in raw_costs(s, "13C", costs)])
-        ranking["13C"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
-                          "fitted_on": f"{len(db)} validation-split database cases (with and without DEPT) and "
-                                       f"{len(sets[2])} dev-half printed 13C paragraphs"
-                                       + _kept_note(params),
+        # printed settings: the temperature of the printed paragraphs alone (they are the only cases using it)
+        T = fit_temperature([r for s in (sets[2:] if args.printed else sets) for r in raw_costs(s, "13C", costs)])
+        target["13C"] = {**{k: getattr(costs, k) for k in KEEP}, "temperature": round(T, 4),
+                         "fitted_on": f"{len(db)} validation-split database cases (with and without DEPT) and "
+                                      f"{len(sets[2])} dev-half printed 13C paragraphs"
+                                      + _kept_note(params)
+                                      + ("; used for printed text, its temperature fitted on the printed paragraphs alone"
+                                         if args.printed else ""),
                           "dev_top1": {"database": round(top1(raw_costs(sets[0], "13C", costs)), 4),
                                        "database_shifts_only": round(top1(raw_costs(sets[1], "13C", costs)), 4),
                                        "printed": round(top1(raw_costs(sets[2], "13C", costs)), 4)}}
-        print(f"  13C: {ranking['13C']}", flush=True)
+        print(f"  13C: {target['13C']}", flush=True)
     if "1H" in steps:
         sets = [stage(text_cases, "1H")]
         costs, score = fit_costs(sets, "1H", settings.costs["1H"], params=params)
@@ -301,15 +312,16 @@ def main(argv=None) -> int:
         T13, T1, ratio = best_fit["T13"], best_fit["T1"], best_fit["ratio"]
         print(f"  joint: 1H weight {best_fit['lik_ratio']:.2f} by likelihood, {ratio:.2f} by top-1 "
               f"({100 * best_fit['best']:.1f} %), 1H widening {best_fit['t_widen']:g}", flush=True)
-        kept = {k: v for k, v in ranking.get("joint", {}).items() if k == "HSQC"}   # fitted by its own step
+        kept = {} if args.printed else {k: v for k, v in ranking.get("joint", {}).items() if k == "HSQC"}   # own step
         j1h = {"temperature": round(T1, 4)}
         if best_fit["t_widen"] != fitted["1H"].t_widen:
             # the 1H costs beside 13C, and the temperature of that 1H term taken alone (each spectrum's own view)
             j1h.update(t_widen=best_fit["t_widen"], temperature_alone=round(fit_temperature(best_fit["c1h"]), 4))
-        ranking["joint"] = {**kept, "13C": {"temperature": round(T13, 4)}, "1H": j1h,
-                            "fitted_on": f"{len(best_fit['rows'])} dev-half printed-text cases ranked from both paragraphs",
-                            "dev_top1": round(best_fit["top1"], 4)}
-        print(f"  joint: {ranking['joint']}", flush=True)
+        target["joint"] = {**kept, "13C": {"temperature": round(T13, 4)}, "1H": j1h,
+                           "fitted_on": f"{len(best_fit['rows'])} dev-half printed-text cases ranked from both paragraphs"
+                                        + (", with the printed 13C costs" if args.printed else ""),
+                           "dev_top1": round(best_fit["top1"], 4)}
+        print(f"  joint: {target['joint']}", flush=True)
     if "HSQC" in steps:
         hc = [c for c in hsqc_cases(args.data) if c["split"] == "val"]
         alone = raw_costs(stage(hc, "hsqc"), "HSQC", settings.costs["HSQC"])

@@ -192,7 +192,11 @@ def ranking_settings() -> RankingSettings:
     """Match costs and temperatures stored with the shipped models (fitted on development data); the
     manifest's ``ranking.printed`` entries (13C costs and temperature, joint temperatures), fitted on printed
     paragraphs, override them for cases whose 13C list was read from printed text."""
-    man = default_manifest()
+    return settings_from_manifest(default_manifest())
+
+
+def settings_from_manifest(man: dict) -> RankingSettings:
+    """:func:`ranking_settings` of a given manifest (``training.calibrate_ranking`` refits a copy's)."""
     r = man.get("ranking", {})
     base = _settings_from(man, r)
     over = r.get("printed")
