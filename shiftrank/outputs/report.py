@@ -127,12 +127,7 @@ def spectrum_svg(result: RankResult, cand: CandidateResult, nucleus: str = "13C"
     for s in ("top", "right", "left"):
         ax.spines[s].set_visible(False)
     ax.tick_params(axis="y", length=0)
-    fig.tight_layout()
-    buf = io.StringIO()
-    fig.savefig(buf, format="svg")
-    plt.close(fig)
-    svg = buf.getvalue()
-    return svg[svg.find("<svg"):]
+    return _svg(fig)
 
 
 def measured_svg(pl) -> str:
@@ -149,6 +144,11 @@ def measured_svg(pl) -> str:
     ax.set_xlabel(f"δ {pl.nucleus} (ppm)")
     for side in ("top", "right", "left"):
         ax.spines[side].set_visible(False)
+    return _svg(fig)
+
+
+def _svg(fig) -> str:
+    """A finished figure as an inline SVG element (closed afterwards)."""
     fig.tight_layout()
     buf = io.StringIO()
     fig.savefig(buf, format="svg")
