@@ -86,11 +86,6 @@ class Comparison:
                 "missing": self.missing, "extra": self.extra, "notes": self.notes}
 
 
-def _lines(pl: PeakList):
-    return [p for p in pl.peaks if p.solvent is None]
-
-
-
 def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | None = None) -> Comparison:
     """Pair the sample's lines with the reference's (see the module text).
 
@@ -106,7 +101,7 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
     tol = TOLERANCE[nuc] if tolerance is None else float(tolerance)
     if not np.isfinite(tol) or tol <= 0:
         raise InputError(f"compare: tolerance {tolerance!r} must be a positive number (ppm)")
-    s_lines, r_lines = _lines(sample), _lines(reference)
+    s_lines, r_lines = sample.sample_peaks(), reference.sample_peaks()
     if not s_lines or not r_lines:
         raise InputError("compare: " + ("the sample" if not s_lines else "the reference") + " has no lines besides solvent")
     out = Comparison(nuc, tolerance=tol)
