@@ -384,6 +384,11 @@ H_REGIONS = [(9.0, 16.1, "above 9 ppm (CHO, COOH, NH/OH of amides, phenols, hete
              (-2.1, 1.6, "alkyl below 1.6 ppm")]
 
 
+def _by_region(sample, protons) -> list[tuple[str, float]]:
+    """Protons per 1H region (:data:`H_REGIONS`) from each signal's proton count."""
+    return [(name, sum(n for p, n in zip(sample, protons) if lo <= p.shift < hi)) for lo, hi, name in H_REGIONS]
+
+
 def _read_protons(inv: Inventory, h1: PeakList) -> None:
     """Integer integrals, protons per region and the first-order patterns of a 1H list."""
     sample = h1.sample_peaks()
@@ -398,15 +403,11 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         total = sum(ints)
         inv.h_total_from_integrals = round(total)
         inv.findings.append(f"1H integrals printed as shares of two forms (e.g. {min(ints):g}H): they sum to {total:g} H")
-        inv.h_regions = [(name, round(sum(x for p, x in zip(sample, ints) if lo <= p.shift < hi), 1))
-                         for lo, hi, name in H_REGIONS]
+        inv.h_regions = [(name, round(n, 1)) for name, n in _by_region(sample, ints)]
         return
     inv.h_ratio = integer_ratio(ints, max_multiplier=8)
     inv.h_total_from_integrals = sum(inv.h_ratio)
-    regions = []
-    for lo, hi, name in H_REGIONS:
-        regions.append((name, sum(n for p, n in zip(sample, inv.h_ratio) if lo <= p.shift < hi)))
-    inv.h_regions = regions
+    inv.h_regions = _by_region(sample, inv.h_ratio)
     arom = [(p, n) for p, n in zip(sample, inv.h_ratio) if 6.5 <= p.shift < 8.6]
     doublets_2h = [p for p, n in arom if n == 2 and p.multiplicity == "d" and (not p.j or any(6 <= j <= 10 for j in p.j))]
     if len(arom) == 2 and len(doublets_2h) == 2:

@@ -182,12 +182,12 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     if key is not None and nucleus == "13C":
         _solvent_multiplet(pl, key, mhz)
     inside = []
-    if nucleus == "1H":   # a residual solvent line is a singlet; a multiplet around it is the sample's (with it)
-        for q in pl.peaks:
+    if nucleus == "1H":
+        for q in pl.peaks:   # a residual solvent line is a singlet; a multiplet around it is the sample's (with it)
             if q.solvent is not None and q.lo is not None:
                 q.solvent = None
                 inside.append(f"{q.lo:g}–{q.hi:g}")
-    if nucleus == "1H":   # integrals relative to the smallest multiplet of the sample
+        # integrals relative to the smallest multiplet of the sample
         areas = [q.intensity for q in pl.peaks if q.solvent is None and q.intensity]
         unit = min(areas) if areas else 1.0
         for q in pl.peaks:
