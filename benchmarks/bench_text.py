@@ -1,6 +1,6 @@
 """Printed-text benchmark: the reader on literature paragraphs, and ranking from printed text.
 
-    python benchmarks/bench_text.py [--data DIR] [--part heldout|dev|all] [--limit N]
+    python benchmarks/bench_text.py [--data DIR] [--part heldout|dev|all] [--limit N] [--residuals]
 
 Data: ``literature_dev.jsonl.gz`` (608 compounds with their 1H and 13C paragraphs as printed in
 open-access articles; NMRExtractor, MIT licence) and the ranking cases built from them
@@ -19,6 +19,12 @@ that count per paragraph; crashes are counted (there must be none).
 Ranking: top-1/top-2/MRR by molecule size and number of candidates, the mean −ln p of the truth and a
 reliability table of the top candidate's probability (cases ranked without error), and how often one
 spectrum alone already ranks the truth first.
+
+``--residuals`` measures the predictor on the printed lists instead: each regio case's true structure is
+ranked alone against its paragraph, and observed − predicted is tabulated over the pairs of the ranker's
+assignment (13C after its DP4 scaling, 1H as assigned), by kind of atom and by molecule size.  The
+assignment picks the closest fit, so these figures are optimistic beside the test split's; they show
+where printed literature compounds differ from the database (bias) and which kinds of carbon decide.
 """
 from __future__ import annotations
 
@@ -165,6 +171,67 @@ def ranking_figures(cases, label: str) -> dict:
     return out
 
 
+def _kind(mol, i: int) -> str:
+    """Benzene / six-ring heteroaromatic / five-ring heteroaromatic (smallest aromatic ring), other sp2, sp3."""
+    from rdkit import Chem
+
+    a = mol.GetAtomWithIdx(i)
+    if not a.GetIsAromatic():
+        return "other sp2" if a.GetHybridization() == Chem.HybridizationType.SP2 else (
+            "sp" if a.GetHybridization() == Chem.HybridizationType.SP else "sp3")
+    rings = [r for r in mol.GetRingInfo().AtomRings() if i in r]
+    size = min(len(r) for r in rings)
+    hetero = any(mol.GetAtomWithIdx(j).GetSymbol() != "C" for r in rings if len(r) == size for j in r)
+    return {(6, False): "benzene ring", (6, True): "6-ring heteroaromatic",
+            (5, True): "5-ring heteroaromatic"}.get((size, hetero), "other aromatic")
+
+
+def residual_figures(cases) -> None:
+    """Observed − predicted on each truth's own assignment, by kind of atom (see the module docstring)."""
+    from rdkit import Chem
+
+    from shiftrank.score.ranking import rank_many
+
+    for nucleus in ("13C", "1H"):
+        built = []
+        for c in cases:
+            case, truth = as_case(c, nucleus)
+            built.append(dict(case, candidates=[case["candidates"][truth]]))
+        rows = []   # (kind, carbon type, heavy atoms, residual)
+        for r in rank_many(built):
+            if isinstance(r, Exception) or nucleus not in r.candidates[0].nuclei:
+                continue
+            res = r.candidates[0].nuclei[nucleus]
+            mol = Chem.MolFromSmiles(r.candidates[0].smiles)
+            for q in res.assignment.pairings:
+                if q.peak is None or q.deviation is None:
+                    continue
+                i = res.classes[q.cls].atoms[0]
+                a = mol.GetAtomWithIdx(i)
+                if a.GetSymbol() != "C":
+                    kind, sub = "H on N, O, S", ""
+                else:
+                    kind = _kind(mol, i)
+                    sub = ("CH" if a.GetTotalNumHs() else "C") if nucleus == "13C" and a.GetIsAromatic() else ""
+                rows.append((kind, sub, mol.GetNumHeavyAtoms(), q.deviation))
+        unit = "ppm"
+        print(f"  {nucleus}: {len(rows)} assigned pairs of {len(built)} true structures (observed - predicted, {unit})")
+        groups: dict = {}
+        for kind, sub, n, d in rows:
+            groups.setdefault(f"{kind} {sub}".strip(), []).append(d)
+        big = 5.0 if nucleus == "13C" else 0.5
+        for name in sorted(groups, key=lambda k: -len(groups[k])):
+            d = np.array(groups[name])
+            print(f"    {name:<26} n={len(d):5d}  MAE {np.mean(np.abs(d)):6.3f}  bias {np.mean(d):+6.3f}  "
+                  f"> {big:g} {unit}: {100 * np.mean(np.abs(d) > big):4.1f} %")
+        arom = [(n, d) for kind, _, n, d in rows if kind.endswith(("ring", "aromatic"))]
+        if arom:
+            n_at, d = (np.array(x) for x in zip(*arom))
+            cells = [f"{lo}-{hi - 1 if hi < 999 else ''}: {np.mean(np.abs(d[(n_at >= lo) & (n_at < hi)])):.3f} "
+                     f"(n={np.sum((n_at >= lo) & (n_at < hi))})" for lo, hi in SIZE_BINS if np.any((n_at >= lo) & (n_at < hi))]
+            print("    aromatic MAE by heavy atoms: " + ", ".join(cells))
+
+
 def batch_speed(cases) -> None:
     """Whole-process ``shiftrank batch`` on the same cases from the 13C paragraph alone, the 1H paragraph
     alone, and both (a fresh process each, so no run profits from another's caches)."""
@@ -196,7 +263,13 @@ def main() -> int:
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
     ap.add_argument("--part", choices=["heldout", "dev", "all"], default="heldout")
     ap.add_argument("--limit", type=int, default=None)
+    ap.add_argument("--residuals", action="store_true",
+                    help="the predictor on the printed lists (truth's own assignment) instead of the ranking")
     args = ap.parse_args()
+    if args.residuals:
+        print(f"== the predictor on printed lists, {args.part} part (regio cases' true structures) ==")
+        residual_figures(load_cases(args.data / "dev_cases_text_regio.jsonl.gz", args.part, args.limit))
+        return 0
     lit = [json.loads(line) for line in gzip.open(args.data / "literature_dev.jsonl.gz", "rt")]
     part = [r for r in lit if args.part == "all" or literature_part(r["id"].split(":")[-1]) == args.part]
     print(f"== reader on the {args.part} part of the literature paragraphs ({len(part)} compounds) ==")
