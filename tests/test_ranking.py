@@ -171,3 +171,15 @@ def test_one_spectrum_gives_no_per_spectrum_view():
     r = rank(peaks(PARA_PEAKS), [META, PARA])
     assert all(not c.by_spectrum for c in r.candidates)
     assert "probability_by_spectrum" not in r.to_dict()["ranking"][0]
+
+
+def test_a_lactim_drawing_is_flagged_and_the_lactam_fits_its_spectrum():
+    # 2-pyridone in CDCl3: 165.6 (C2), 141.1 (C4), 135.0 (C6), 120.3 (C3), 106.4 (C5) ppm (from memory);
+    # in solution the compound is the lactam (common practice), so the lactim drawing gets a hint
+    r = rank([{"shift": v} for v in (165.6, 141.1, 135.0, 120.3, 106.4)], ["Oc1ccccn1", "O=c1cccc[nH]1"],
+             solvent="CDCl3")
+    lactim = next(c for c in r.candidates if c.smiles == "Oc1ccccn1")
+    lactam = next(c for c in r.candidates if c.smiles == "O=c1cccc[nH]1")
+    assert any("drawn as the hydroxy tautomer (atom 0)" in f and "oxo N–H form" in f for f in lactim.flags)
+    assert not any("tautomer" in f for f in lactam.flags)
+    assert r.best.smiles == "O=c1cccc[nH]1"

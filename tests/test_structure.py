@@ -8,7 +8,7 @@ import pytest
 from rdkit import Chem
 
 from shiftrank.errors import InputError
-from shiftrank.chem.structure import structure_facts
+from shiftrank.chem.structure import lactim_sites, structure_facts
 
 
 def test_mirror_symmetric_chain_has_fewer_signals():
@@ -89,3 +89,26 @@ def test_stereo_splits_constitutional_halves_seen_in_the_open_data(shared_data):
         pytest.skip("case 10021165 not in this copy of the data")
     facts = structure_facts(case["truth"])
     assert len(case["peaks"]) == 22 == facts.n_carbons == facts.expected_13c_signals
+
+
+# Lactam–lactim and thione–thiol tautomerism: 2- and 4-hydroxypyridines, hydroxypyrimidines and
+# 2-quinolinols are mostly the pyridone (lactam) form in solution, azole-2-thiols and
+# 1,2,4-triazole-3-thiols the thione form (common practice; reviewed by Katritzky, Karelson & Harris,
+# Heterocycles 1991, 32, 329, from memory).  Drawings of the other form are flagged, not changed.
+@pytest.mark.parametrize("smiles, sites", [
+    ("Oc1ccccn1", [(0, 1)]),                       # 2-hydroxypyridine (2-pyridone drawn as the lactim)
+    ("Oc1ccncc1", [(0, 1)]),                       # 4-hydroxypyridine, N opposite
+    ("Oc1ccc2ccccc2n1", [(0, 1)]),                 # quinolin-2-ol
+    ("Sc1nc2ccccc2[nH]1", [(0, 1)]),               # benzimidazole-2-thiol
+    ("Cc1nnc(S)n1C", [(5, 4)]),                    # a 1,2,4-triazole-3-thiol
+    ("Oc1nc2ccccc2o1", [(0, 1)]),                  # benzoxazol-2-ol
+    ("O=c1cccc[nH]1", []),                         # the lactam itself
+    ("S=c1[nH]c2ccccc2[nH]1", []),                 # the thione itself
+    ("Oc1cccnc1", []),                             # 3-hydroxypyridine: no lactam form
+    ("Oc1cccc2cccnc12", []),                       # 8-hydroxyquinoline: OH not on the pyridine ring
+    ("COc1ccccn1", []),                            # 2-methoxypyridine: no H to move
+    ("Oc1cc(C)[nH]n1", []),                        # pyrazol-3-ol: its form depends on the compound
+    ("Oc1ccccc1", []),                             # phenol
+])
+def test_lactim_drawings_are_found(smiles, sites):
+    assert lactim_sites(Chem.MolFromSmiles(smiles)) == sites

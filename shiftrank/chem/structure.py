@@ -261,6 +261,32 @@ def hydrogen_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[list
     return sorted((part for g in groups.values() for part in split_by_labels(g, labels)), key=lambda g: g[0])
 
 
+#: OH or SH on an aromatic carbon of a six-membered ring beside or opposite a pyridine-type ring N
+#: (2-/4-hydroxypyridines, hydroxypyrimidines, 2-quinolinols), or of a five-membered ring between a
+#: pyridine-type N and another ring heteroatom (azole-2-thiols, benzoxazol-2-ol, 1,2,4-triazole-3-thiols).
+#: Hydroxy groups elsewhere on five-membered rings (pyrazol-3-ols, 4-hydroxythiazoles) are left alone:
+#: which form they take depends on the compound.
+_LACTIM = [Chem.MolFromSmarts(s) for s in ("[OX2H1,SX2H1]-[c;r6]:[nX2H0]",
+                                           "[OX2H1,SX2H1]-[c;r6]1:c:c:[nX2H0]:c:c:1",
+                                           "[OX2H1,SX2H1]-[c;r5](:[n,o,s]):[nX2H0]")]
+
+
+def lactim_sites(mol: Chem.Mol) -> list[tuple[int, int]]:
+    """(O or S, carbon) of each OH/SH drawn where it makes the hydroxy/mercapto tautomer of a lactam or
+    thiolactam (see ``_LACTIM``).  In solution such
+    compounds are mostly the oxo/thioxo form with N–H (2-pyridone rather than 2-hydroxypyridine,
+    benzimidazole-2-thione rather than -2-thiol; common practice), which is what their spectra show.
+
+    >>> lactim_sites(Chem.MolFromSmiles("Oc1ccccn1")), lactim_sites(Chem.MolFromSmiles("O=c1cccc[nH]1"))
+    ([(0, 1)], [])
+    """
+    seen: dict[int, int] = {}
+    for patt in _LACTIM:
+        for match in mol.GetSubstructMatches(patt):
+            seen.setdefault(match[0], match[1])
+    return sorted(seen.items())
+
+
 def facts_from_mol(mol: Chem.Mol, smiles: str | None = None, hydrogens: bool = True,
                    ranks: list[int] | None = None) -> StructureFacts:
     """Structure facts of an RDKit molecule (hydrogens implicit or explicit).

@@ -28,7 +28,7 @@ from rdkit import Chem
 
 from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_formula
 from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
-from ..chem.structure import StructureFacts, facts_from_mol, symmetry_ranks
+from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates, peaks_from_records
@@ -363,6 +363,11 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         only_labels = all("isotope label" in n for n in std.notes)   # the formula keeps D/T (chem/labels.py)
         res.flags.append(f"standardised ({'prediction uses' if only_labels else 'formula and prediction use'} the parent): "
                          + "; ".join(std.notes))
+    for x, _ in lactim_sites(prep.mol):
+        hydroxy = prep.mol.GetAtomWithIdx(x).GetSymbol() == "O"
+        res.flags.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {x}); in solution such "
+                         f"compounds are mostly the {'oxo' if hydroxy else 'thioxo'} N–H form (common practice), and the "
+                         "prediction is for the form as drawn: add that tautomer as a candidate (isomers, kind 'tautomer')")
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
     means = {}
