@@ -273,9 +273,9 @@ _LACTIM = [Chem.MolFromSmarts(s) for s in ("[OX2H1,SX2H1]-[c;r6]:[nX2H0]",
 
 def lactim_sites(mol: Chem.Mol) -> list[tuple[int, int]]:
     """(O or S, carbon) of each OH/SH drawn where it makes the hydroxy/mercapto tautomer of a lactam or
-    thiolactam (see ``_LACTIM``).  In solution such
-    compounds are mostly the oxo/thioxo form with N–H (2-pyridone rather than 2-hydroxypyridine,
-    benzimidazole-2-thione rather than -2-thiol; common practice), which is what their spectra show.
+    thiolactam (see ``_LACTIM``).  In solution such compounds are mostly the oxo/thioxo form with N–H
+    (2-pyridone rather than 2-hydroxypyridine, benzimidazole-2-thione rather than -2-thiol; common
+    practice), which is what their spectra show.
 
     >>> lactim_sites(Chem.MolFromSmiles("Oc1ccccn1")), lactim_sites(Chem.MolFromSmiles("O=c1cccc[nH]1"))
     ([(0, 1)], [])
