@@ -183,3 +183,6 @@ def test_a_lactim_drawing_is_flagged_and_the_lactam_fits_its_spectrum():
     assert any("drawn as the hydroxy tautomer (atom 0)" in f and "oxo N–H form" in f for f in lactim.flags)
     assert not any("tautomer" in f for f in lactam.flags)
     assert r.best.smiles == "O=c1cccc[nH]1"
+    # the atom is named in the candidate's own numbering, also when standardisation set a counterion aside
+    salt = rank([{"shift": v} for v in (165.6, 141.1, 135.0, 120.3, 106.4)], ["[Na+].[Cl-].Oc1ccccn1"]).best
+    assert any("hydroxy tautomer (atom 2)" in f for f in salt.flags)

@@ -365,7 +365,7 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
                          + "; ".join(std.notes))
     for x, _ in lactim_sites(prep.mol):
         hydroxy = prep.mol.GetAtomWithIdx(x).GetSymbol() == "O"
-        res.flags.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {x}); in solution such "
+        res.flags.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {std.atom_map[x]}); in solution such "
                          f"compounds are mostly the {'oxo' if hydroxy else 'thioxo'} N–H form (common practice), and the "
                          "prediction is for the form as drawn: add that tautomer as a candidate (isomers, kind 'tautomer')")
     identity = std.atom_map == list(range(len(std.atom_map)))
