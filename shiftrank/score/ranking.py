@@ -301,6 +301,20 @@ def _facts(smiles: str) -> StructureFacts:
     return facts_from_mol(mol, smiles, hydrogens=False, ranks=ranks)
 
 
+@lru_cache(maxsize=16384)
+def _tautomer_notes(smiles: str) -> tuple[str, ...]:
+    """A note per OH/SH drawn as the minor tautomer of a lactam or thione (:func:`lactim_sites`), naming the
+    atom in the candidate's own numbering; once per SMILES, as the other structure facts."""
+    std = _standardised(smiles)
+    out = []
+    for x, _ in lactim_sites(std.mol):
+        hydroxy = std.mol.GetAtomWithIdx(x).GetSymbol() == "O"
+        out.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {std.atom_map[x]}); in solution such "
+                   f"compounds are mostly the {'oxo' if hydroxy else 'thioxo'} N–H form (common practice), and the "
+                   "prediction is for the form as drawn: add that tautomer as a candidate (isomers, kind 'tautomer')")
+    return tuple(out)
+
+
 @lru_cache(maxsize=4096)
 def _pi(smiles: str):
     """The Hückel columns of a candidate, computed once for both nuclei (and every solvent)."""
@@ -363,11 +377,7 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         only_labels = all("isotope label" in n for n in std.notes)   # the formula keeps D/T (chem/labels.py)
         res.flags.append(f"standardised ({'prediction uses' if only_labels else 'formula and prediction use'} the parent): "
                          + "; ".join(std.notes))
-    for x, _ in lactim_sites(prep.mol):
-        hydroxy = prep.mol.GetAtomWithIdx(x).GetSymbol() == "O"
-        res.flags.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {std.atom_map[x]}); in solution such "
-                         f"compounds are mostly the {'oxo' if hydroxy else 'thioxo'} N–H form (common practice), and the "
-                         "prediction is for the form as drawn: add that tautomer as a candidate (isomers, kind 'tautomer')")
+    res.flags.extend(_tautomer_notes(prep.smiles))
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
     means = {}
