@@ -38,6 +38,8 @@ MAX_TEXT = 200_000  # characters; longer text is refused (a whole article, not a
 _DASHES = "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\u2043\ufe63\uff0d"
 _MOJIBAKE = ("Î´", "â€", "Â", "Ã")
 
+#: 2D correlations other than HSQC/HMQC: sections of their own, noted and not used
+OTHER_2D = ("HMBC", "COSY", "NOESY", "ROESY", "TOCSY", "HETCOR")
 # a nucleus header: 1H NMR, ¹H-NMR, 13C{1H} NMR, 13C-APT NMR, 19F NMR, "H NMR" …
 _HEADER = re.compile(
     r"(?<![A-Za-z0-9])(?P<mass>1|13|19|31|15|11|2|29|77)?\s?(?P<el>H|C|F|P|N|B|D|Si|Se)"
@@ -52,7 +54,7 @@ _HEADER = re.compile(
     r"|(?<![A-Za-z0-9])(?P<hsqc>(?:(?:1H\s*[-,/]?\s*13C|13C\s*[-,/]?\s*1H)[\s-]*)?(?:(?:multiplicity[\s-]*)?edited[\s-]*)?"
     r"(?:HSQC|HMQC))(?![A-Za-z])"
     # other 2D correlations: read as sections of their own so that their pairs never join a 1H or 13C list
-    r"|(?<![A-Za-z0-9])(?P<other2d>HMBC|COSY|NOESY|ROESY|TOCSY|HETCOR)(?![A-Za-z])", re.I)
+    r"|(?<![A-Za-z0-9])(?P<other2d>" + "|".join(OTHER_2D) + r")(?![A-Za-z])", re.I)
 #: a correlation printed in a 2D section: '7.26/128.4', 'H-2/C-4', 'H-2 (7.26)/C-4 (128.4)'
 _CORRELATION = re.compile(r"\d\s*/\s*[+-]?\d|\bH-?[\w′']+(?:\s*\([^()]*\))?\s*/\s*[CH]-?[\w′']+")
 #: a cross peak of an HSQC section: 'δ/δ', the second value possibly a range ('41.2/2.95-3.10'), then an optional
@@ -632,7 +634,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             _read_hsqc(sec, header + " " + cond, peaks_text)
             out.sections.append(sec)
             continue
-        if sec.nucleus in ("HMBC", "COSY", "NOESY", "ROESY", "TOCSY", "HETCOR"):
+        if sec.nucleus in OTHER_2D:
             sec.notes.append(f"{sec.nucleus} correlations read as a section of their own and not used for ranking: "
                              f"'{_clip(body.strip(' :'), 50)}'")
             out.sections.append(sec)
