@@ -11,7 +11,7 @@ import json
 import pytest
 from rdkit import Chem
 
-from shiftrank.chem.isomers import isomers, structure_key
+from shiftrank.chem.isomers import compound_key, isomers, structure_key
 from shiftrank.errors import InputError
 
 
@@ -82,6 +82,27 @@ def test_dicarbonyl_c_and_o_alkylation():
     assert keys(isomers("CC(=O)C(C)C(C)=O", kinds=("ambident",))) == {key("COC(C)=CC(C)=O")}
 
 
+def test_nh_azole_tautomers_are_one_compound():
+    # Annular tautomerism (common practice; the mobile-H layer of the standard InChI encodes it): 5- and
+    # 6-methyl-1H-benzimidazole are one compound, as are the 4- and 7-methyl drawings.  Hand count for
+    # 5-methylbenzimidazole: the methyl at C4(=C7), at C2 or on N1 - three alternatives, not five.
+    dropped = []
+    alts = isomers("Cc1ccc2[nH]cnc2c1", kinds=("positional",), dropped=dropped)
+    assert len(alts) == 3
+    assert {compound_key(Chem.MolFromSmiles(a.smiles)) for a in alts} == {
+        compound_key(Chem.MolFromSmiles(s)) for s in ("Cc1cccc2[nH]cnc12", "Cc1nc2ccccc2[nH]1", "Cn1cnc2ccccc21")}
+    assert len(dropped) == 2 and {compound_key(Chem.MolFromSmiles(a.smiles)) for a, _ in dropped} == {
+        compound_key(Chem.MolFromSmiles(s)) for s in ("Cc1ccc2nc[nH]c2c1", "Cc1cccc2nc[nH]c12")}
+    assert all(compound_key(Chem.MolFromSmiles(a.smiles)) == compound_key(Chem.MolFromSmiles(same)) for a, same in dropped)
+    # ethyl imidazole-4-carboxylate: "moved to C5" is the same compound; C2 and N1 remain
+    alts = isomers("CCOC(=O)c1cnc[nH]1", kinds=("positional",))
+    assert keys(alts) == {key("CCOC(=O)c1ncc[nH]1"), key("CCOC(=O)n1ccnc1")}
+    # keto and enol forms at carbon are not merged (two compounds on the NMR time scale, common practice)
+    assert compound_key(Chem.MolFromSmiles("CC(=O)CC(C)=O")) != compound_key(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
+    # asked for on purpose, tautomers stay
+    assert key("Cc1ccc2nc[nH]c2c1") in keys(isomers("Cc1ccc2[nH]cnc2c1", kinds=("tautomer",)))
+
+
 def test_given_structure_and_duplicates_are_not_repeated():
     alts = isomers("Cc1ccc(C)cc1", kinds=("positional",))   # p-xylene: o- and m-xylene only
     assert keys(alts) == {key("Cc1ccccc1C"), key("Cc1cccc(C)c1")}
@@ -106,6 +127,26 @@ def test_development_regio_cases_are_reproduced(shared_data):
             if n >= 300:
                 break
             c = json.loads(line)
-            made = keys(isomers(c["truth"], kinds=("positional",))) | {key(c["truth"])}
-            missing += [s for s in c["candidates"] if key(s) not in made]
+            alts = [a.smiles for a in isomers(c["truth"], kinds=("positional",))] + [c["truth"]]
+            made = {key(s) for s in alts}
+            # a candidate that is only an NH tautomer of a generated structure is the same compound
+            compounds = {compound_key(Chem.MolFromSmiles(s)) for s in alts}
+            missing += [s for s in c["candidates"] if key(s) not in made
+                        and compound_key(Chem.MolFromSmiles(s)) not in compounds]
     assert not missing, missing[:5]
+
+
+def test_ranking_with_isomers_leaves_out_the_candidates_own_tautomer():
+    # rank --with-isomers: the 5-carboxylate drawing of ethyl 1H-imidazole-4-carboxylate is the same compound
+    # (annular tautomerism, common practice), so it must not compete with the given structure as "another product"
+    from shiftrank.score.ranking import expand_with_isomers
+
+    given = "CCOC(=O)c1cnc[nH]1"
+    cands, notes = expand_with_isomers([given])
+    drawn = {key(c[1] if isinstance(c, tuple) else c) for c in cands}
+    assert key("CCOC(=O)c1c[nH]cn1") not in drawn and key("CCOC(=O)c1ncc[nH]1") in drawn
+    assert "1 left out as NH/OH tautomers" in notes[0]
+    # a generated alternative that is a tautomer of another given candidate is left out as well
+    cands, notes = expand_with_isomers(["CCOC(=O)c1ncc[nH]1", "CCOC(=O)c1c[nH]cn1"])
+    assert sum(compound_key(Chem.MolFromSmiles(c[1] if isinstance(c, tuple) else c))
+               == compound_key(Chem.MolFromSmiles(given)) for c in cands) == 1

@@ -16,7 +16,11 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
 
 Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
 constitution whatever the stereochemistry or the Kekulé form; the given structure included) are removed; more alternatives than ``limit`` end
-in a clear error.  Atom numbers in the relations are the 0-based indices of the given structure, as in
+in a clear error.  A positional, ambident or reaction alternative that is only a prototropic tautomer of the
+given structure or of an earlier alternative (:func:`compound_key`: the H moved between ring N atoms of an
+NH-azole, or between N and O of a lactam; ethyl imidazole-4-carboxylate moved "to C5" is the same
+compound) is not another product and is left out; ``dropped`` collects those, and the kind ``tautomer``
+lists tautomers on purpose.  Atom numbers in the relations are the 0-based indices of the given structure, as in
 every assignment table and JSON output.
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
@@ -73,6 +77,28 @@ def structure_key(mol: Chem.Mol) -> str:
 
 
 _key = structure_key
+
+
+def compound_key(mol: Chem.Mol) -> str:
+    """Identity of a compound across its fast prototropic tautomers: the standard InChI, whose mobile-H
+    layer makes the NH tautomers of an azole (4- and 5-substituted NH-imidazoles, 3- and 5-substituted
+    NH-pyrazoles, the NH forms of triazoles, tetrazoles and benzimidazoles) and lactam / lactim forms one
+    compound (InChI Trust, InChI technical manual: mobile H; keto / enol at carbon stays two).  Falls back
+    to :func:`structure_key` where no InChI can be made, and takes it at once for a structure with no H on
+    N, O or S (no H to move between heteroatoms; the InChI is the slow part of isomer generation).
+
+    >>> compound_key(Chem.MolFromSmiles("CCOC(=O)c1cnc[nH]1")) == compound_key(Chem.MolFromSmiles("CCOC(=O)c1c[nH]cn1"))
+    True
+    >>> compound_key(Chem.MolFromSmiles("CC(=O)CC(C)=O")) == compound_key(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
+    False
+    """
+    if not any(a.GetAtomicNum() in (7, 8, 16) and a.GetTotalNumHs() for a in mol.GetAtoms()):
+        return "key:" + structure_key(mol)
+    try:
+        inchi = Chem.MolToInchi(mol)
+    except Exception:  # noqa: BLE001 - an InChI failure only loses the tautomer check
+        inchi = ""
+    return inchi or "key:" + structure_key(mol)
 
 
 def _finish(rw: Chem.RWMol) -> Chem.Mol | None:
@@ -430,12 +456,14 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
 
 
 def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None, reactants: str | None = None,
-            limit: int = LIMIT) -> list[Alternative]:
+            limit: int = LIMIT, dropped: list | None = None) -> list[Alternative]:
     """Alternatives to ``smiles`` of the given ``kinds`` (any of :data:`KINDS`) and/or the products of
     ``reaction`` (a reaction SMARTS) applied to ``reactants`` ('.'-separated SMILES).
 
     The given structure itself is never returned; duplicates are removed by canonical SMILES without
-    stereochemistry.  Raises :class:`InputError` for a bad SMILES, an unknown kind, or more than
+    stereochemistry, and a positional, ambident or reaction alternative that is a prototropic tautomer of the
+    given structure or of an earlier alternative (:func:`compound_key`) is left out, appended to ``dropped``
+    (when a list is given) with the structure it duplicates.  Raises :class:`InputError` for a bad SMILES, an unknown kind, or more than
     ``limit`` alternatives.
     """
     if isinstance(kinds, str):
@@ -460,13 +488,23 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
     if reaction:
         found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
     seen = {_key(mol)} if mol is not None else set()
+    # compound -> the SMILES it was first met as (the given structure first)
+    compounds = {compound_key(mol): Chem.MolToSmiles(mol)} if mol is not None else {}
     out: list[Alternative] = []
     for m, lab, kind in found:
         k = _key(m)
         if k in seen:
             continue
         seen.add(k)
-        out.append(Alternative(Chem.MolToSmiles(m), lab, kind))
+        smi = Chem.MolToSmiles(m)
+        if kind != "tautomer":
+            ck = compound_key(m)
+            if ck in compounds:
+                if dropped is not None:
+                    dropped.append((Alternative(smi, lab, kind), compounds[ck]))
+                continue
+            compounds[ck] = smi
+        out.append(Alternative(smi, lab, kind))
         if len(out) > limit:
             raise InputError(f"more than {limit} alternatives for '{smiles or reaction}'; narrow the kinds "
                              "(--kind positional) or raise the limit (--limit)")

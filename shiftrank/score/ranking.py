@@ -681,12 +681,15 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
 
 def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list, list[str]]:
     """The candidates followed by the alternatives :func:`shiftrank.chem.isomers.isomers` generates for
-    each of them (named by their relation), without duplicates; notes on what was added."""
-    from ..chem.isomers import isomers, structure_key
+    each of them (named by their relation), without duplicates; notes on what was added.  An alternative
+    that is only a prototropic tautomer of a given candidate (an NH-azole's other NH form) is the same
+    compound and is left out, with a note, unless tautomers were asked for."""
+    from ..chem.isomers import compound_key, isomers, structure_key
 
     if kinds is True:
         kinds = "positional,ambident"
     seen, out, notes = set(), list(cands), []
+    given = set()   # the given candidates as compounds (tautomers alike)
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str):
@@ -695,26 +698,35 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         if err:
             continue
         seen.add(structure_key(mol))
+        given.add(compound_key(mol))
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str) or _parse(smi)[2]:
             continue
-        added = 0
+        added, dropped = 0, []
         try:
-            alts = isomers(smi, kinds=kinds)
+            alts = isomers(smi, kinds=kinds, dropped=dropped)
         except InputError as exc:
             if "kind '" in str(exc):
                 raise
             notes.append(f"no alternatives generated for {smi[:40]}: {exc}")
             continue
+        same = len(dropped)
         for alt in alts:
-            k = structure_key(Chem.MolFromSmiles(alt.smiles))
+            m = Chem.MolFromSmiles(alt.smiles)
+            k = structure_key(m)
             if k in seen:
+                continue
+            if alt.kind != "tautomer" and compound_key(m) in given:
+                same += 1
                 continue
             seen.add(k)
             out.append((f"{alt.relation} (from {smi})" if len(cands) > 1 else alt.relation, alt.smiles))
             added += 1
-        notes.append(f"{added} generated alternatives of {smi} added ({kinds})")
+        notes.append(f"{added} generated alternatives of {smi} added ({kinds})"
+                     + (f"; {same} left out as NH/OH tautomers of a candidate or of another alternative (the same "
+                        "compound drawn with the H on another N or O; kind 'tautomer' adds tautomers on purpose)"
+                        if same else ""))
     return out, notes
 
 
