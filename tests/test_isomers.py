@@ -150,3 +150,17 @@ def test_ranking_with_isomers_leaves_out_the_candidates_own_tautomer():
     cands, notes = expand_with_isomers(["CCOC(=O)c1ncc[nH]1", "CCOC(=O)c1c[nH]cn1"])
     assert sum(compound_key(Chem.MolFromSmiles(c[1] if isinstance(c, tuple) else c))
                == compound_key(Chem.MolFromSmiles(given)) for c in cands) == 1
+
+
+def test_candidates_drawn_as_tautomers_of_one_compound_are_grouped():
+    # the probabilities of one compound's NH tautomer drawings add up (annular tautomerism, common practice);
+    # regioisomers and other compounds stay apart, whatever their probabilities
+    from shiftrank.score.ranking import CandidateResult, tautomer_groups, verdict
+
+    cands = [CandidateResult("CCOC(=O)c1c[nH]cn1", 0, probability=0.5),
+             CandidateResult("CCOC(=O)c1ncc[nH]1", 1, probability=0.2),
+             CandidateResult("CCOC(=O)c1cnc[nH]1", 2, probability=0.2),
+             CandidateResult("CCOC(=O)c1ccccc1", 3, probability=0.1)]
+    groups = tautomer_groups(cands)
+    assert [[c.position for c in g] for g in groups] == [[0, 2]]
+    assert "same compound (NH/OH tautomer): together p = 0.70" in verdict(cands, ())

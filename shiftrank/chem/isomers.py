@@ -79,6 +79,29 @@ def structure_key(mol: Chem.Mol) -> str:
 _key = structure_key
 
 
+def heavy_graph_key(mol: Chem.Mol) -> str:
+    """The heavy atoms and their connections alone (no bond orders, H counts, charges or stereo): tautomers
+    and resonance forms share it; a cheap first test before :func:`compound_key`.
+
+    >>> heavy_graph_key(Chem.MolFromSmiles("O=c1cccc[nH]1")) == heavy_graph_key(Chem.MolFromSmiles("Oc1ccccn1"))
+    True
+    """
+    rw = Chem.RWMol(mol)
+    for a in rw.GetAtoms():
+        a.SetNumExplicitHs(0)
+        a.SetNoImplicit(True)
+        a.SetIsAromatic(False)
+        a.SetFormalCharge(0)
+        a.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
+    for b in rw.GetBonds():
+        b.SetBondType(Chem.BondType.SINGLE)
+        b.SetIsAromatic(False)
+        b.SetStereo(Chem.BondStereo.STEREONONE)
+    m = rw.GetMol()
+    m.UpdatePropertyCache(strict=False)
+    return Chem.MolToSmiles(m, isomericSmiles=False)
+
+
 def compound_key(mol: Chem.Mol) -> str:
     """Identity of a compound across its fast prototropic tautomers: the standard InChI, whose mobile-H
     layer makes the NH tautomers of an azole (4- and 5-substituted NH-imidazoles, 3- and 5-substituted

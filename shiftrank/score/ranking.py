@@ -510,6 +510,11 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
     count_note = _count_misfit(valid)
     if count_note:
         return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{conflict}"
+    same = next((g for g in tautomer_groups(valid) if g[0] is best), None)
+    if same is not None:   # the best structure as a compound: its drawings' probabilities together
+        others = ", ".join(c.name or c.smiles for c in same[1:])
+        conflict = (f"; drawn as {others} it is the same compound (NH/OH tautomer): together p = "
+                    f"{sum(c.probability for c in same):.2f}{conflict}")
     if best.probability >= 0.9:
         return f"clear winner: {label} (p = {best.probability:.2f}){conflict}"
     second = valid[1] if len(valid) > 1 else None
@@ -517,6 +522,52 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
         return (f"two candidates indistinguishable from {spectra} alone: {label} (p = {best.probability:.2f}) and "
                 f"{second.name or second.smiles} (p = {second.probability:.2f}){conflict}")
     return f"leaning to {label} (p = {best.probability:.2f}); not decisive{conflict}"
+
+
+@lru_cache(maxsize=16384)
+def _skeleton_of(smiles: str) -> str | None:
+    """The heavy-atom graph of a candidate with an H on N, O or S (elements and connections; no bond orders,
+    H or charges), which its prototropic tautomers share; None for a candidate with no such H."""
+    from ..chem.isomers import heavy_graph_key
+
+    mol, _, err = _parse(smiles)
+    if err or not any(a.GetAtomicNum() in (7, 8, 16) and a.GetTotalNumHs() for a in mol.GetAtoms()):
+        return None
+    return heavy_graph_key(mol)
+
+
+@lru_cache(maxsize=16384)
+def _compound_of(smiles: str) -> str:
+    from ..chem.isomers import compound_key
+
+    return compound_key(_parse(smiles)[0])
+
+
+def tautomer_groups(cands: list[CandidateResult]) -> list[list[CandidateResult]]:
+    """Candidates (best first) that are one compound drawn as different NH/OH tautomers (the H on another
+    ring N, or on O instead of N): a chemist counts them as one structure, so their probabilities add up.
+    Only candidates with one heavy-atom graph are compared by InChI (:func:`shiftrank.chem.isomers.compound_key`)."""
+    by_graph: dict = {}
+    for c in cands:
+        if not c.error:
+            g = _skeleton_of(c.smiles)
+            if g is not None:
+                by_graph.setdefault(g, []).append(c)
+    out = []
+    for same_graph in by_graph.values():
+        if len(same_graph) < 2:
+            continue
+        groups: dict = {}
+        for c in same_graph:
+            groups.setdefault(_compound_of(c.smiles), []).append(c)
+        out += [g for g in groups.values() if len(g) > 1]
+    return out
+
+
+def _tautomer_note(group: list[CandidateResult]) -> str:
+    names = " and ".join(c.name or c.smiles for c in group)
+    return (f"{names} are one compound drawn as different NH/OH tautomers; together p = "
+            f"{sum(c.probability for c in group):.2f}")
 
 
 def _count_misfit(valid: list[CandidateResult]) -> str | None:
@@ -875,5 +926,6 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             results.append(r)
         _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
+        notes = notes + [_tautomer_note(g) for g in tautomer_groups(results)]
         out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
     return out
