@@ -164,3 +164,14 @@ def test_candidates_drawn_as_tautomers_of_one_compound_are_grouped():
     groups = tautomer_groups(cands)
     assert [[c.position for c in g] for g in groups] == [[0, 2]]
     assert "same compound (NH/OH tautomer): together p = 0.70" in verdict(cands, ())
+
+
+def test_large_groups_are_named_by_formula_not_cut_off_smiles():
+    # 1-(4-anisoyl)-4-(4-chlorophenyl)piperazine, hand count: Cl to C2 or C3 of its ring, next to the
+    # anisoylpiperazinyl group C4H8N2 + C8H7O2 = C12H15N2O2; the (chlorophenyl)piperazine-carbonyl group,
+    # C6H4Cl + C4H8N2 + CO = C11H12ClN2O, to C3 or C2 of the anisyl ring.  Each large group is named by its
+    # formula and the atom it is bound through
+    labels = [a.relation for a in isomers("Clc1ccc(N2CCN(C(=O)c3ccc(OC)cc3)CC2)cc1", kinds=("positional",))]
+    assert len(labels) == 4 and not any("…" in r for r in labels)
+    assert sum("Cl moved" in r and "C12H15N2O2 group (bound through atom 5)" in r for r in labels) == 2
+    assert sum(r.startswith("C11H12ClN2O group (bound through atom 9) moved") for r in labels) == 2

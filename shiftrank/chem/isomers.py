@@ -242,7 +242,19 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     aryl = _aryl_name(mol, root, ring_atom)
     if aryl:
         return aryl
-    return smi if len(smi) <= 24 else smi[:22] + "…"
+    if len(smi) <= 24:
+        return smi
+    # a large group: its formula and the atom it is bound through, not a cut-off SMILES
+    from collections import Counter
+
+    from .formula import hill
+
+    counts: Counter = Counter()
+    for i in _side(mol, root, ring_atom):
+        a = mol.GetAtomWithIdx(i)
+        counts[a.GetSymbol()] += 1
+        counts["H"] += a.GetTotalNumHs()
+    return f"{hill(counts)} group (bound through atom {root})"
 
 
 def _substituents(mol: Chem.Mol, system: set[int]) -> list[tuple[int, int, str]]:
