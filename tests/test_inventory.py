@@ -141,3 +141,19 @@ def test_dept135_plus_peaks_above_90_ppm_are_methines():
     inv = take_inventory(c13)
     assert inv.signals_by_type["CH"] == 1 and inv.unknown_type_signals == 1
     assert any("counted as CH" in i for i in inv.inferences)
+
+
+def test_1h_patterns_of_a_4_fluorophenyl_and_a_lone_azole_singlet():
+    # 4-fluorobenzyl alcohol in CDCl3, from memory: 7.32 (dd, J = 8.5, 5.5 Hz, 2H), 7.03 (t, J = 8.7 Hz, 2H),
+    # 4.64 (s, 2H), 1.9 (br s, 1H); the dd/t pair of a 4-fluorophenyl is common practice
+    h1 = parse_peaks("7.32 2 dd 8.5 5.5\n7.03 2 t 8.7\n4.64 2 s\n1.9 1 br s\n", nucleus="1H")
+    lines = take_inventory(None, h1).h_patterns
+    assert any("4-fluorophenyl" in x for x in lines) and not any("monosubstituted" in x for x in lines)
+    # the same ring beside an azole CH singlet (2-aryl-imidazole-type pieces, own choice): five aromatic H in
+    # three signals, but a 1H singlet has no ortho neighbour, so no monosubstituted benzene is claimed
+    h1 = parse_peaks("8.02 2 dd 8.8 5.5\n7.85 1 s\n7.31 2 t 8.8\n3.78 3 s\n", nucleus="1H")
+    lines = take_inventory(None, h1).h_patterns
+    assert any("4-fluorophenyl" in x for x in lines) and not any("monosubstituted" in x for x in lines)
+    # a monosubstituted ring's 2H/2H/1H (d, t, t) still is one (common practice)
+    h1 = parse_peaks("7.95 2 d 7.5\n7.55 1 t 7.4\n7.45 2 t 7.6\n2.60 3 s\n", nucleus="1H")
+    assert any("monosubstituted" in x for x in take_inventory(None, h1).h_patterns)

@@ -97,3 +97,13 @@ def test_a_bad_record_names_its_field_and_entry():
 
     with pytest.raises(InputError, match="'peaks_1h' entry 2: expected a number or an object with 'shift'"):
         peaks_from_records([7.26, "x"], "peaks_1h", "1H")
+
+
+def test_plain_1h_line_takes_br_s_written_with_a_space():
+    # 'br s' is how chemists write a broad singlet (common practice); typed with a space in a plain list it is
+    # one multiplicity, not two words
+    for line in ("1.90 1 br s", "1.90 1 br. s", "1.90 1 broad s"):
+        p = parse_peaks(line, nucleus="1H").peaks[0]
+        assert (p.multiplicity, p.intensity) == ("br s", 1.0)
+    with pytest.raises(InputError, match="line 1"):
+        parse_peaks("1.90 1 s d", nucleus="1H")

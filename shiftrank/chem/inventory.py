@@ -409,13 +409,25 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
     inv.h_total_from_integrals = sum(inv.h_ratio)
     inv.h_regions = _by_region(sample, inv.h_ratio)
     arom = [(p, n) for p, n in zip(sample, inv.h_ratio) if 6.5 <= p.shift < 8.6]
-    doublets_2h = [p for p, n in arom if n == 2 and p.multiplicity == "d" and (not p.j or any(6 <= j <= 10 for j in p.j))]
-    if len(arom) == 2 and len(doublets_2h) == 2:
+    # a lone 1H singlet (an azole or pyrimidine CH, an isolated ring H) has no ortho neighbour: it belongs to
+    # neither pattern below
+    ring_h = [(p, n) for p, n in arom if not (n == 1 and p.multiplicity == "s")]
+
+    def ortho(p) -> bool:
+        return not p.j or any(6 <= j <= 10 for j in p.j)
+    doublets_2h = [p for p, n in ring_h if n == 2 and p.multiplicity == "d" and ortho(p)]
+    # a 4-fluorophenyl prints its AA'BB' halves as dd (H-H ortho, H-F meta ~5 Hz) and t (H-H ortho ~ H-F ortho
+    # ~8.5 Hz); common practice, J values from memory
+    pair_2h = [p for p, n in ring_h if n == 2 and p.multiplicity in ("d", "dd", "t") and ortho(p)]
+    if len(ring_h) == 2 and len(doublets_2h) == 2:
         inv.h_patterns.append("two 2H doublets in the aromatic region with an ortho J: a para-disubstituted benzene ring "
                               "(AA'BB'; common practice)")
+    elif len(ring_h) == 2 and len(pair_2h) == 2 and {p.multiplicity for p in pair_2h} == {"dd", "t"}:
+        inv.h_patterns.append("a 2H dd and a 2H t in the aromatic region with ortho J: a 4-fluorophenyl group likely (its "
+                              "AA'BB' halves split again by F, meta ~5 Hz and ortho ~8.5 Hz; common practice)")
     elif len(doublets_2h) >= 2:
         inv.h_patterns.append(f"{len(doublets_2h)} aromatic 2H doublets: para-disubstituted ring(s) likely (common practice)")
-    if sum(n for _, n in arom) == 5 and len(arom) <= 3:
+    if sum(n for _, n in ring_h) == 5 and len(ring_h) <= 3:
         inv.h_patterns.append("5 aromatic H in at most three signals: a monosubstituted benzene ring is likely (common practice)")
     trip3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "t" and p.shift < 1.6]
     quart2 = [p for p, n in zip(sample, inv.h_ratio) if n == 2 and p.multiplicity == "q"]

@@ -227,7 +227,10 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
                 float(t)
                 (after if words else nums).append(t)
             except ValueError:
-                words.append(t)
+                if words and words[-1].lower() in ("br", "br.", "broad") and not after:
+                    words[-1] = "br " + t   # 'br s' typed with a space is one multiplicity
+                else:
+                    words.append(t)
         if nucleus == "1H":
             if len(nums) > 1 or len(words) > 1:
                 raise InputError(f"{where}: expected 'shift-or-range [integral] [multiplicity] [J values]', got '{line}'")
