@@ -16,12 +16,12 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
 
 Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
 constitution whatever the stereochemistry or the Kekulé form; the given structure included) are removed; more alternatives than ``limit`` end
-in a clear error.  A positional, ambident or reaction alternative that is only a prototropic tautomer of the
-given structure or of an earlier alternative (:func:`compound_key`: the H moved between ring N atoms of an
-NH-azole, or between N and O of a lactam; ethyl imidazole-4-carboxylate moved "to C5" is the same
+in a clear error.  A positional, ambident or reaction alternative that is only a prototropic tautomer of
+the given structure or of an earlier alternative (:func:`compound_key`: the H moved between ring N atoms of
+an NH-azole, or between N and O of a lactam; ethyl imidazole-4-carboxylate moved "to C5" is the same
 compound) is not another product and is left out; ``dropped`` collects those, and the kind ``tautomer``
-lists tautomers on purpose.  Atom numbers in the relations are the 0-based indices of the given structure, as in
-every assignment table and JSON output.
+lists tautomers on purpose.  Atom numbers in the relations are the 0-based indices of the given structure,
+as in every assignment table and JSON output.
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
 ['CH3 moved from ring atom 1 to ring atom 2 (now meta to F)', 'CH3 moved from ring atom 1 to ring atom 3 (now ortho to F)']
@@ -102,6 +102,11 @@ def heavy_graph_key(mol: Chem.Mol) -> str:
     return Chem.MolToSmiles(m, isomericSmiles=False)
 
 
+def has_mobile_h(mol: Chem.Mol) -> bool:
+    """Whether any H sits on N, O or S: without one there is no prototropic tautomer to merge."""
+    return any(a.GetAtomicNum() in (7, 8, 16) and a.GetTotalNumHs() for a in mol.GetAtoms())
+
+
 def compound_key(mol: Chem.Mol) -> str:
     """Identity of a compound across its fast prototropic tautomers: the standard InChI, whose mobile-H
     layer makes the NH tautomers of an azole (4- and 5-substituted NH-imidazoles, 3- and 5-substituted
@@ -115,7 +120,7 @@ def compound_key(mol: Chem.Mol) -> str:
     >>> compound_key(Chem.MolFromSmiles("CC(=O)CC(C)=O")) == compound_key(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
     False
     """
-    if not any(a.GetAtomicNum() in (7, 8, 16) and a.GetTotalNumHs() for a in mol.GetAtoms()):
+    if not has_mobile_h(mol):
         return "key:" + structure_key(mol)
     try:
         inchi = Chem.MolToInchi(mol)
@@ -498,8 +503,8 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
     The given structure itself is never returned; duplicates are removed by canonical SMILES without
     stereochemistry, and a positional, ambident or reaction alternative that is a prototropic tautomer of the
     given structure or of an earlier alternative (:func:`compound_key`) is left out, appended to ``dropped``
-    (when a list is given) with the structure it duplicates.  Raises :class:`InputError` for a bad SMILES, an unknown kind, or more than
-    ``limit`` alternatives.
+    (when a list is given) with the structure it duplicates.  Raises :class:`InputError` for a bad SMILES, an
+    unknown kind, or more than ``limit`` alternatives.
     """
     if isinstance(kinds, str):
         kinds = tuple(k.strip() for k in kinds.split(",") if k.strip())

@@ -528,16 +528,17 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
 def _skeleton_of(smiles: str) -> str | None:
     """The heavy-atom graph of a candidate with an H on N, O or S (elements and connections; no bond orders,
     H or charges), which its prototropic tautomers share; None for a candidate with no such H."""
-    from ..chem.isomers import heavy_graph_key
+    from ..chem.isomers import has_mobile_h, heavy_graph_key
 
     mol, _, err = _parse(smiles)
-    if err or not any(a.GetAtomicNum() in (7, 8, 16) and a.GetTotalNumHs() for a in mol.GetAtoms()):
+    if err or not has_mobile_h(mol):
         return None
     return heavy_graph_key(mol)
 
 
 @lru_cache(maxsize=16384)
 def _compound_of(smiles: str) -> str:
+    """The compound of a parsed candidate across its NH/OH tautomers (once per SMILES: an InChI)."""
     from ..chem.isomers import compound_key
 
     return compound_key(_parse(smiles)[0])
