@@ -420,14 +420,7 @@ def cmd_isomers(args) -> int:
 
     if not args.smiles and not args.reaction:
         raise InputError("isomers: give a SMILES, or --reaction SMARTS with --reactants")
-    dropped: list = []
-    alts = isomers(args.smiles, kinds=args.kind, reaction=args.reaction, reactants=args.reactants, limit=args.limit,
-                   dropped=dropped)
-    if dropped:
-        print(f"note: {count(len(dropped), 'generated structure')} left out, each the same compound as the given "
-              "structure or an alternative with its H on another N or O (a tautomer): "
-              + "; ".join(f"{a.smiles} = {same}" for a, same in dropped[:5]) + ("; …" if len(dropped) > 5 else ""),
-              file=sys.stderr)
+    alts = isomers(args.smiles, kinds=args.kind, reaction=args.reaction, reactants=args.reactants, limit=args.limit)
     if args.jsonl:
         for a in alts:
             print(json.dumps(a.to_dict()))

@@ -85,22 +85,32 @@ def test_dicarbonyl_c_and_o_alkylation():
 def test_nh_azole_tautomers_are_one_compound():
     # Annular tautomerism (common practice; the mobile-H layer of the standard InChI encodes it): 5- and
     # 6-methyl-1H-benzimidazole are one compound, as are the 4- and 7-methyl drawings.  Hand count for
-    # 5-methylbenzimidazole: the methyl at C4(=C7), at C2 or on N1 - three alternatives, not five.
-    dropped = []
-    alts = isomers("Cc1ccc2[nH]cnc2c1", kinds=("positional",), dropped=dropped)
-    assert len(alts) == 3
-    assert {compound_key(Chem.MolFromSmiles(a.smiles)) for a in alts} == {
+    # 5-methylbenzimidazole: the methyl at C4 (= C7), at C2 or on N1 - three other compounds; the 6- and
+    # 7-methyl drawings are generated too (their predictions differ) but are labelled as the same compounds
+    alts = isomers("Cc1ccc2[nH]cnc2c1", kinds=("positional",))
+    other = [a for a in alts if a.same_compound_as is None]
+    twins = [a for a in alts if a.same_compound_as is not None]
+    assert {compound_key(Chem.MolFromSmiles(a.smiles)) for a in other} == {
         compound_key(Chem.MolFromSmiles(s)) for s in ("Cc1cccc2[nH]cnc12", "Cc1nc2ccccc2[nH]1", "Cn1cnc2ccccc21")}
-    assert len(dropped) == 2 and {compound_key(Chem.MolFromSmiles(a.smiles)) for a, _ in dropped} == {
-        compound_key(Chem.MolFromSmiles(s)) for s in ("Cc1ccc2nc[nH]c2c1", "Cc1cccc2nc[nH]c12")}
-    assert all(compound_key(Chem.MolFromSmiles(a.smiles)) == compound_key(Chem.MolFromSmiles(same)) for a, same in dropped)
-    # ethyl imidazole-4-carboxylate: "moved to C5" is the same compound; C2 and N1 remain
+    assert len(other) == 3 and len(twins) == 2
+    assert {key(a.smiles) for a in alts} >= {key("Cc1ccc2nc[nH]c2c1"), key("Cc1cccc2nc[nH]c12")}
+    for a in twins:
+        assert compound_key(Chem.MolFromSmiles(a.smiles)) == compound_key(Chem.MolFromSmiles(a.same_compound_as))
+        assert "drawn as another NH/OH tautomer (the same compound)" in a.relation
+        assert a.to_dict()["same_compound_as"] == a.same_compound_as
+    given_twin = [a for a in twins if a.same_compound_as == "Cc1ccc2[nH]cnc2c1"]
+    assert len(given_twin) == 1 and given_twin[0].relation.startswith("the given structure")
+    assert "same_compound_as" not in other[0].to_dict()
+    # ethyl imidazole-4-carboxylate: "moved to C5" is the same compound; C2 and N1 are other compounds
     alts = isomers("CCOC(=O)c1cnc[nH]1", kinds=("positional",))
-    assert keys(alts) == {key("CCOC(=O)c1ncc[nH]1"), key("CCOC(=O)n1ccnc1")}
+    assert {key(a.smiles) for a in alts if a.same_compound_as is None} == {key("CCOC(=O)c1ncc[nH]1"),
+                                                                          key("CCOC(=O)n1ccnc1")}
+    assert [key(a.smiles) for a in alts if a.same_compound_as] == [key("CCOC(=O)c1c[nH]cn1")]
     # keto and enol forms at carbon are not merged (two compounds on the NMR time scale, common practice)
     assert compound_key(Chem.MolFromSmiles("CC(=O)CC(C)=O")) != compound_key(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
-    # asked for on purpose, tautomers stay
-    assert key("Cc1ccc2nc[nH]c2c1") in keys(isomers("Cc1ccc2[nH]cnc2c1", kinds=("tautomer",)))
+    # asked for on purpose, tautomers are plain tautomers
+    taut = isomers("Cc1ccc2[nH]cnc2c1", kinds=("tautomer",))
+    assert key("Cc1ccc2nc[nH]c2c1") in keys(taut) and all(a.same_compound_as is None for a in taut)
 
 
 def test_given_structure_and_duplicates_are_not_repeated():
@@ -136,20 +146,21 @@ def test_development_regio_cases_are_reproduced(shared_data):
     assert not missing, missing[:5]
 
 
-def test_ranking_with_isomers_leaves_out_the_candidates_own_tautomer():
+def test_ranking_with_isomers_labels_the_candidates_own_tautomer():
     # rank --with-isomers: the 5-carboxylate drawing of ethyl 1H-imidazole-4-carboxylate is the same compound
-    # (annular tautomerism, common practice), so it must not compete with the given structure as "another product"
+    # (annular tautomerism, common practice): it is ranked, but its relation must not read as another product
     from shiftrank.score.ranking import expand_with_isomers
 
     given = "CCOC(=O)c1cnc[nH]1"
     cands, notes = expand_with_isomers([given])
-    drawn = {key(c[1] if isinstance(c, tuple) else c) for c in cands}
-    assert key("CCOC(=O)c1c[nH]cn1") not in drawn and key("CCOC(=O)c1ncc[nH]1") in drawn
-    assert "1 left out as NH/OH tautomers" in notes[0]
-    # a generated alternative that is a tautomer of another given candidate is left out as well
+    named = {key(c[1]): c[0] for c in cands if isinstance(c, tuple)}
+    assert named[key("CCOC(=O)c1c[nH]cn1")].startswith("the given structure drawn as another NH/OH tautomer")
+    assert "moved" in named[key("CCOC(=O)c1ncc[nH]1")]
+    assert "1 of them a candidate or an alternative drawn as another NH/OH tautomer" in notes[0]
+    # generated from one candidate, the tautomer of another given candidate is labelled as that candidate
     cands, notes = expand_with_isomers(["CCOC(=O)c1ncc[nH]1", "CCOC(=O)c1c[nH]cn1"])
-    assert sum(compound_key(Chem.MolFromSmiles(c[1] if isinstance(c, tuple) else c))
-               == compound_key(Chem.MolFromSmiles(given)) for c in cands) == 1
+    labels = [c[0] for c in cands if isinstance(c, tuple) and key(c[1]) == key(given)]
+    assert labels and labels[0].startswith("candidate CCOC(=O)c1c[nH]cn1 drawn as another NH/OH tautomer")
 
 
 def test_candidates_drawn_as_tautomers_of_one_compound_are_grouped():

@@ -19,8 +19,8 @@ constitution whatever the stereochemistry or the Kekulé form; the given structu
 in a clear error.  A positional, ambident or reaction alternative that is only a prototropic tautomer of
 the given structure or of an earlier alternative (:func:`compound_key`: the H moved between ring N atoms of
 an NH-azole, or between N and O of a lactam; ethyl imidazole-4-carboxylate moved "to C5" is the same
-compound) is not another product and is left out; ``dropped`` collects those, and the kind ``tautomer``
-lists tautomers on purpose.  Atom numbers in the relations are the 0-based indices of the given structure,
+compound) is not another product: it stays in the list, since its drawing is predicted differently, but its
+relation says so and ``same_compound_as`` names the structure it duplicates.  Atom numbers in the relations are the 0-based indices of the given structure,
 as in every assignment table and JSON output.
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
@@ -50,9 +50,15 @@ class Alternative:
     smiles: str
     relation: str
     kind: str
+    #: the given structure's or an earlier alternative's SMILES when this one is the same compound drawn as
+    #: another NH/OH tautomer (:func:`compound_key`); None for a different compound
+    same_compound_as: str | None = None
 
     def to_dict(self) -> dict:
-        return {"smiles": self.smiles, "relation": self.relation, "kind": self.kind}
+        d = {"smiles": self.smiles, "relation": self.relation, "kind": self.kind}
+        if self.same_compound_as:
+            d["same_compound_as"] = self.same_compound_as
+        return d
 
 
 def structure_key(mol: Chem.Mol) -> str:
@@ -496,15 +502,15 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
 
 
 def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None, reactants: str | None = None,
-            limit: int = LIMIT, dropped: list | None = None) -> list[Alternative]:
+            limit: int = LIMIT) -> list[Alternative]:
     """Alternatives to ``smiles`` of the given ``kinds`` (any of :data:`KINDS`) and/or the products of
     ``reaction`` (a reaction SMARTS) applied to ``reactants`` ('.'-separated SMILES).
 
     The given structure itself is never returned; duplicates are removed by canonical SMILES without
-    stereochemistry, and a positional, ambident or reaction alternative that is a prototropic tautomer of the
-    given structure or of an earlier alternative (:func:`compound_key`) is left out, appended to ``dropped``
-    (when a list is given) with the structure it duplicates.  Raises :class:`InputError` for a bad SMILES, an
-    unknown kind, or more than ``limit`` alternatives.
+    stereochemistry; a positional, ambident or reaction alternative that is a prototropic tautomer of the
+    given structure or of an earlier alternative (:func:`compound_key`) is labelled as the same compound, with
+    ``same_compound_as`` set.  Raises :class:`InputError` for a bad SMILES, an unknown kind, or more than
+    ``limit`` alternatives.
     """
     if isinstance(kinds, str):
         kinds = tuple(k.strip() for k in kinds.split(",") if k.strip())
@@ -528,23 +534,24 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
     if reaction:
         found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
     seen = {_key(mol)} if mol is not None else set()
-    # compound -> the SMILES it was first met as (the given structure first)
-    compounds = {compound_key(mol): Chem.MolToSmiles(mol)} if mol is not None else {}
+    # compound -> (SMILES, relation) it was first met as; the given structure first
+    compounds = {compound_key(mol): (smiles, None)} if mol is not None else {}
     out: list[Alternative] = []
     for m, lab, kind in found:
         k = _key(m)
         if k in seen:
             continue
         seen.add(k)
-        smi = Chem.MolToSmiles(m)
+        smi, twin = Chem.MolToSmiles(m), None
         if kind != "tautomer":
             ck = compound_key(m)
             if ck in compounds:
-                if dropped is not None:
-                    dropped.append((Alternative(smi, lab, kind), compounds[ck]))
-                continue
-            compounds[ck] = smi
-        out.append(Alternative(smi, lab, kind))
+                twin, twin_relation = compounds[ck]
+                lab = ("the given structure drawn as another NH/OH tautomer (the same compound)" if twin_relation is None
+                       else f"'{twin_relation}' drawn as another NH/OH tautomer (the same compound)")
+            else:
+                compounds[ck] = (smi, lab)
+        out.append(Alternative(smi, lab, kind, twin))
         if len(out) > limit:
             raise InputError(f"more than {limit} alternatives for '{smiles or reaction}'; narrow the kinds "
                              "(--kind positional) or raise the limit (--limit)")

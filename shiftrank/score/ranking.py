@@ -512,7 +512,7 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
         return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{conflict}"
     same = next((g for g in tautomer_groups(valid) if g[0] is best), None)
     if same is not None:   # the best structure as a compound: its drawings' probabilities together
-        others = ", ".join(c.name or c.smiles for c in same[1:])
+        others = ", ".join(c.smiles for c in same[1:])
         conflict = (f"; drawn as {others} it is the same compound (NH/OH tautomer): together p = "
                     f"{sum(c.probability for c in same):.2f}{conflict}")
     if best.probability >= 0.9:
@@ -566,7 +566,7 @@ def tautomer_groups(cands: list[CandidateResult]) -> list[list[CandidateResult]]
 
 
 def _tautomer_note(group: list[CandidateResult]) -> str:
-    names = " and ".join(c.name or c.smiles for c in group)
+    names = " and ".join(c.smiles for c in group)   # (a generated one's name is its relation: too long here)
     return (f"{names} are one compound drawn as different NH/OH tautomers; together p = "
             f"{sum(c.probability for c in group):.2f}")
 
@@ -735,13 +735,14 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
     """The candidates followed by the alternatives :func:`shiftrank.chem.isomers.isomers` generates for
     each of them (named by their relation), without duplicates; notes on what was added.  An alternative
     that is only a prototropic tautomer of a given candidate (an NH-azole's other NH form) is the same
-    compound and is left out, with a note, unless tautomers were asked for."""
+    compound: it is ranked (its drawing is predicted differently) under a relation that says so, and the
+    ranking's note and verdict add the probabilities of one compound's drawings."""
     from ..chem.isomers import compound_key, isomers, structure_key
 
     if kinds is True:
         kinds = "positional,ambident"
     seen, out, notes = set(), list(cands), []
-    given = set()   # the given candidates as compounds (tautomers alike)
+    given = {}   # the given candidates as compounds (tautomers alike) -> SMILES
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str):
@@ -750,35 +751,35 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         if err:
             continue
         seen.add(structure_key(mol))
-        given.add(compound_key(mol))
+        given.setdefault(compound_key(mol), smi)
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str) or _parse(smi)[2]:
             continue
-        added, dropped = 0, []
+        added, same = 0, 0
         try:
-            alts = isomers(smi, kinds=kinds, dropped=dropped)
+            alts = isomers(smi, kinds=kinds)
         except InputError as exc:
             if "kind '" in str(exc):
                 raise
             notes.append(f"no alternatives generated for {smi[:40]}: {exc}")
             continue
-        same = len(dropped)
         for alt in alts:
             m = Chem.MolFromSmiles(alt.smiles)
             k = structure_key(m)
             if k in seen:
                 continue
-            if alt.kind != "tautomer" and compound_key(m) in given:
-                same += 1
-                continue
             seen.add(k)
-            out.append((f"{alt.relation} (from {smi})" if len(cands) > 1 else alt.relation, alt.smiles))
+            relation = alt.relation
+            twin = given.get(compound_key(m)) if alt.kind != "tautomer" else None
+            if twin is not None and twin != smi:   # a tautomer of another given candidate
+                relation = f"candidate {twin} drawn as another NH/OH tautomer (the same compound)"
+            same += bool(alt.same_compound_as or (twin is not None and twin != smi))
+            out.append((f"{relation} (from {smi})" if len(cands) > 1 else relation, alt.smiles))
             added += 1
         notes.append(f"{added} generated alternatives of {smi} added ({kinds})"
-                     + (f"; {same} left out as NH/OH tautomers of a candidate or of another alternative (the same "
-                        "compound drawn with the H on another N or O; kind 'tautomer' adds tautomers on purpose)"
-                        if same else ""))
+                     + (f", {same} of them a candidate or an alternative drawn as another NH/OH tautomer (the same "
+                        "compound: their probabilities add up)" if same else ""))
     return out, notes
 
 
