@@ -174,7 +174,12 @@ def test_candidates_drawn_as_tautomers_of_one_compound_are_grouped():
              CandidateResult("CCOC(=O)c1ccccc1", 3, probability=0.1)]
     groups = tautomer_groups(cands)
     assert [[c.position for c in g] for g in groups] == [[0, 2]]
-    assert "same compound (NH/OH tautomer): together p = 0.70" in verdict(cands, ())
+    v = verdict(cands, ())
+    assert v.startswith("leaning to CCOC(=O)c1c[nH]cn1 (p = 0.50; drawn as CCOC(=O)c1cnc[nH]1 it is the same compound")
+    assert "together p = 0.70)" in v
+    # decided as a compound: two drawings at 0.5 and 0.45 make one clear winner, not an undecided pair
+    cands[1].probability, cands[2].probability, cands[3].probability = 0.03, 0.45, 0.02
+    assert verdict(cands, ()).startswith("clear winner: CCOC(=O)c1c[nH]cn1 (p = 0.50; drawn as")
 
 
 def test_large_groups_are_named_by_formula_not_cut_off_smiles():

@@ -510,18 +510,21 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
     count_note = _count_misfit(valid)
     if count_note:
         return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{conflict}"
-    same = next((g for g in tautomer_groups(valid) if g[0] is best), None)
-    if same is not None:   # the best structure as a compound: its drawings' probabilities together
-        others = ", ".join(c.smiles for c in same[1:])
-        conflict = (f"; drawn as {others} it is the same compound (NH/OH tautomer): together p = "
-                    f"{sum(c.probability for c in same):.2f}{conflict}")
-    if best.probability >= 0.9:
-        return f"clear winner: {label} (p = {best.probability:.2f}){conflict}"
-    second = valid[1] if len(valid) > 1 else None
-    if second is not None and best.probability + second.probability >= 0.9 and second.probability >= 0.2:
-        return (f"two candidates indistinguishable from {spectra} alone: {label} (p = {best.probability:.2f}) and "
+    # the best structure as a compound: its NH/OH tautomer drawings among the candidates count with it
+    same = next((g for g in tautomer_groups(valid) if g[0] is best), [best])
+    p_best = sum(c.probability for c in same)
+    shown = f"{label} (p = {best.probability:.2f})"
+    if len(same) > 1:
+        shown = (f"{label} (p = {best.probability:.2f}; drawn as {', '.join(c.smiles for c in same[1:])} it is the "
+                 f"same compound, an NH/OH tautomer: together p = {p_best:.2f})")
+    if p_best >= 0.9:
+        return f"clear winner: {shown}{conflict}"
+    rest = [c for c in valid if all(c is not x for x in same)]
+    second = rest[0] if rest else None
+    if second is not None and p_best + second.probability >= 0.9 and second.probability >= 0.2:
+        return (f"two candidates indistinguishable from {spectra} alone: {shown} and "
                 f"{second.name or second.smiles} (p = {second.probability:.2f}){conflict}")
-    return f"leaning to {label} (p = {best.probability:.2f}); not decisive{conflict}"
+    return f"leaning to {shown}; not decisive{conflict}"
 
 
 @lru_cache(maxsize=16384)
