@@ -76,6 +76,10 @@ def test_relations_name_common_groups_by_condensed_formula():
         "CH3 moved from ring atom 1 to ring atom 2 (now meta to maleimido)",
         "CH3 moved from ring atom 1 to ring atom 3 (now ortho to maleimido)"]
     assert any(a.relation.startswith("morpholin-4-yl moved") for a in isomers("O=[N+]([O-])c1ccc(N2CCOCC2)cc1F"))
+    # amides, benzoyl and sulfonamide groups by their condensed formulas (common practice)
+    rel = [a.relation for a in isomers("O=C(Nc1ccccc1)c1ccc(Br)cn1", kinds=("positional",))]
+    assert "CONHC6H5 moved from ring atom 9 to ring atom 10 (now meta to Br)" in rel
+    assert any(a.relation.startswith("NHSO2CH3 moved") for a in isomers("CS(=O)(=O)Nc1ccc(C(=O)c2ccccc2)cc1"))
 
 
 def test_dicarbonyl_c_and_o_alkylation():
@@ -191,3 +195,16 @@ def test_large_groups_are_named_by_formula_not_cut_off_smiles():
     assert len(labels) == 4 and not any("…" in r for r in labels)
     assert sum("Cl moved" in r and "C12H15N2O2 group (bound through atom 5)" in r for r in labels) == 2
     assert sum(r.startswith("C11H12ClN2O group (bound through atom 9) moved") for r in labels) == 2
+
+
+def test_tautomers_keep_aromatic_rings_and_name_the_moved_h():
+    # common practice: phenol's cyclohexadienone forms and an indole's 3H-forms are not proposed as structures;
+    # 2-hydroxypyridine's lactam (2-pyridone) is, with the H moved from O (atom 0) to N (atom 6)
+    assert isomers("Oc1ccccc1", kinds=("tautomer",)) == []
+    alts = isomers("Oc1ccccn1", kinds=("tautomer",))
+    assert keys(alts) == {key("O=c1cccc[nH]1")} and alts[0].relation == "tautomer: H moved from atom 0 to atom 6"
+    indole = isomers("CC(=O)c1ccc2[nH]ccc2c1", kinds=("tautomer",))
+    assert all(Chem.MolFromSmiles(a.smiles).GetRingInfo().NumRings() == 2 for a in indole)
+    assert all(sum(at.GetIsAromatic() for at in Chem.MolFromSmiles(a.smiles).GetAtoms()) == 9 for a in indole)
+    # keto/enol of a 1,3-dicarbonyl stays available on request
+    assert key("CC(=O)C=C(C)O") in keys(isomers("CC(=O)CC(C)=O", kinds=("tautomer",)))

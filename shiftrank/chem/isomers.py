@@ -11,7 +11,7 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
 * **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways);
   N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
   benzimidazole); C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
-* **tautomer**: RDKit's tautomer enumerator;
+* **tautomer**: RDKit's tautomer enumerator, without forms that give up an aromatic ring;
 * a **reaction SMARTS** with its reactants: every product RDKit's reaction engine gives.
 
 Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
@@ -186,7 +186,9 @@ GROUP_NAMES = {
     "*c1ccsc1": "3-thienyl", "*c1ccco1": "2-furyl",
     "*CO": "CH2OH", "*CN": "CH2NH2", "*Cc1ccccc1": "CH2C6H5", "*Oc1ccccc1": "OC6H5", "*OCc1ccccc1": "OCH2C6H5",
     "*Nc1ccccc1": "NHC6H5", "*C#C": "C≡CH", "*C=C": "CH=CH2", "*B(O)O": "B(OH)2", "*[Si](C)(C)C": "Si(CH3)3",
-    "*NC(=O)OC(C)(C)C": "NHBoc",
+    "*NC(=O)OC(C)(C)C": "NHBoc", "*C(=O)OC(C)(C)C": "CO2tBu", "*C(=O)c1ccccc1": "COC6H5", "*C(=O)NC": "CONHCH3",
+    "*C(=O)N(C)C": "CON(CH3)2", "*C(=O)Nc1ccccc1": "CONHC6H5", "*NC(=O)c1ccccc1": "NHCOC6H5", "*NS(C)(=O)=O": "NHSO2CH3",
+    "*C(F)F": "CHF2", "*OC(F)F": "OCHF2", "*SC(F)(F)F": "SCF3", "*COC": "CH2OCH3", "*CC#N": "CH2CN",
     # N-linked rings as chemists name them
     "*N1CCOCC1": "morpholin-4-yl", "*N1CCCCC1": "piperidin-1-yl", "*N1CCCC1": "pyrrolidin-1-yl",
     "*N1CCNCC1": "piperazin-1-yl", "*N1CCN(C)CC1": "4-methylpiperazin-1-yl", "*n1cccn1": "pyrazol-1-yl",
@@ -475,9 +477,24 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
 
 
 def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """RDKit's tautomers of ``mol`` that keep at least its aromatic atoms (one that gives up an aromatic ring,
+    a cyclohexadienone for a phenol or a 3H-indole for an indole, is not what a chemist proposes; common
+    practice), each labelled with the H it moves when it moves one (the enumerator keeps the atom order)."""
     enum = rdMolStandardize.TautomerEnumerator()
     enum.SetMaxTautomers(50)
-    return [(m, "tautomer") for m in enum.Enumerate(mol)]
+    base_h = [a.GetTotalNumHs() for a in mol.GetAtoms()]
+    base_aromatic = sum(a.GetIsAromatic() for a in mol.GetAtoms())
+    out = []
+    for m in enum.Enumerate(mol):
+        if sum(a.GetIsAromatic() for a in m.GetAtoms()) < base_aromatic:
+            continue
+        h = [a.GetTotalNumHs() for a in m.GetAtoms()]
+        lost = [i for i, (x, y) in enumerate(zip(base_h, h)) if y < x]
+        gained = [i for i, (x, y) in enumerate(zip(base_h, h)) if y > x]
+        label = (f"tautomer: H moved from atom {lost[0]} to atom {gained[0]}" if len(lost) == 1 and len(gained) == 1
+                 and len(h) == len(base_h) else "tautomer")
+        out.append((m, label))
+    return out
 
 
 def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
