@@ -208,3 +208,21 @@ def test_tautomers_keep_aromatic_rings_and_name_the_moved_h():
     assert all(sum(at.GetIsAromatic() for at in Chem.MolFromSmiles(a.smiles).GetAtoms()) == 9 for a in indole)
     # keto/enol of a 1,3-dicarbonyl stays available on request
     assert key("CC(=O)C=C(C)O") in keys(isomers("CC(=O)CC(C)=O", kinds=("tautomer",)))
+
+
+def test_n_against_o_acylation_of_a_bifunctional_nucleophile():
+    # which nucleophile took the acyl group (chemoselectivity, common practice); molecules of our own choosing.
+    # 1-acetylpiperidin-4-ol: its one alternative is 4-piperidyl acetate, and back
+    alts = isomers("CC(=O)N1CCC(O)CC1", kinds=("ambident",))
+    assert keys(alts) == {key("CC(=O)OC1CCNCC1")}
+    assert alts[0].relation == "O-acyl instead of N-acyl (COCH3 moved from N atom 3 to O atom 7)"
+    assert keys(isomers("CC(=O)OC1CCNCC1", kinds=("ambident",))) == {key("CC(=O)N1CCC(O)CC1")}
+    # N-Boc against the O-Boc carbonate of 4-aminophenol
+    assert keys(isomers("CC(C)(C)OC(=O)Nc1ccc(O)cc1", kinds=("ambident",))) == {key("CC(C)(C)OC(=O)Oc1ccc(N)cc1")}
+    # a diol monoester: the other hydroxy (propane-1,2-diol 1-acetate against 2-acetate)
+    alts = isomers("CC(=O)OCC(C)O", kinds=("ambident",))
+    assert keys(alts) == {key("CC(=O)OC(C)CO")} and alts[0].relation.startswith("acyl on another O")
+    # no free N-H or O-H: nothing to move to; a methyl ester's methyl is not an acyl group; an anilide's
+    # N-H is not a free amine
+    assert isomers("CC(=O)Nc1ccccc1", kinds=("ambident",)) == []
+    assert isomers("COC(=O)c1ccccc1O", kinds=("ambident",)) == []

@@ -8,7 +8,9 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
   rings and fused ring systems) moved to every other free position (a ring atom carrying H; a ring
   NH only for a group that is not a halogen) of its ring system, and every pair of substituents on
   one ring system swapped;
-* **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways);
+* **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways); N- against
+  O-acylation where a molecule has a free amine or hydroxy group besides its acyl group (aminophenols,
+  amino alcohols, diols: which nucleophile took the acyl group);
   N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
   benzimidazole); C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
 * **tautomer**: RDKit's tautomer enumerator, without forms that give up an aromatic ring;
@@ -458,11 +460,59 @@ def _move_between_n_and_o(mol: Chem.Mol, c, o, n, x, to_oxygen: bool, aromatic_c
     return _finish(rw)
 
 
+def _free_nucleophile(a: Chem.Atom) -> str | None:
+    """'N' for an amine N-H, 'O' for an alcohol or phenol O-H that an acyl group could have taken instead;
+    None for anything else (amide or sulfonamide N-H, aromatic N-H, carboxylic acid O-H, charged atoms)."""
+    if a.GetFormalCharge() or a.GetIsAromatic() or not a.GetTotalNumHs():
+        return None
+    for nb in a.GetNeighbors():
+        if nb.GetAtomicNum() in (6, 15, 16) and any(b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(nb).GetAtomicNum() in (8, 16)
+                                                    for b in nb.GetBonds()):
+            return None   # already acylated or sulfonylated (amide, carbamate, acid, sulfonamide)
+    return {7: "N", 8: "O"}.get(a.GetAtomicNum())
+
+
+def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """N- against O-acylation of a molecule with both an amine and a hydroxy group (an aminophenol, an amino
+    alcohol): an acyl group on one heteroatom moved to every free N-H or O-H of the other kind or the same kind
+    elsewhere (chemoselectivity of the acylation; common practice).  The acyl group is a C=O carbon bound by a
+    chain bond (not a ring bond) to a non-aromatic N or O, with all it carries (Boc as CO2tBu: N-Boc against
+    the O-Boc carbonate)."""
+    out = []
+    targets = [(a.GetIdx(), k) for a in mol.GetAtoms() for k in [_free_nucleophile(a)] if k]
+    if not targets:
+        return out
+    for b in mol.GetBonds():
+        if b.IsInRing() or b.GetBondType() != Chem.BondType.SINGLE:
+            continue
+        for h, c in ((b.GetBeginAtom(), b.GetEndAtom()), (b.GetEndAtom(), b.GetBeginAtom())):
+            if h.GetAtomicNum() not in (7, 8) or h.GetIsAromatic() or h.GetFormalCharge() or _group_kind(mol, c.GetIdx()) != "acyl":
+                continue
+            frm = "N" if h.GetAtomicNum() == 7 else "O"
+            name = _fragment_name(mol, c.GetIdx(), h.GetIdx()) or "acyl"
+            for t, to in targets:
+                if t == h.GetIdx() or t in _side(mol, c.GetIdx(), h.GetIdx()):
+                    continue
+                rw = Chem.RWMol(mol)
+                rw.RemoveBond(h.GetIdx(), c.GetIdx())
+                rw.AddBond(t, c.GetIdx(), Chem.BondType.SINGLE)
+                for i in (h.GetIdx(), t):
+                    a = rw.GetAtomWithIdx(i)
+                    a.SetNoImplicit(False)
+                    a.SetNumExplicitHs(0)
+                m = _finish(rw)
+                if m is not None:
+                    what = (f"{to}-acyl instead of {frm}-acyl" if to != frm else
+                            f"acyl on another {to}")   # (a diol's other OH: which hydroxy took the group)
+                    out.append((m, f"{what} ({name} moved from {frm} atom {h.GetIdx()} to {to} atom {t})"))
+    return out
+
+
 def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     global _DICARBONYL_RXNS
     if _DICARBONYL_RXNS is None:
         _DICARBONYL_RXNS = [(AllChem.ReactionFromSmarts(s), lab) for s, lab in _DICARBONYL]
-    out = _azole_moves(mol) + _n_o_moves(mol)
+    out = _azole_moves(mol) + _n_o_moves(mol) + _acyl_moves(mol)
     kek = Chem.Mol(mol)
     try:
         Chem.Kekulize(kek, clearAromaticFlags=True)
