@@ -71,6 +71,14 @@ def test_bad_formulas_are_refused_clearly(bad, fragment):
         parse_formula(bad)
 
 
+def test_unknown_symbol_is_refused_without_rdkit_noise(capfd):
+    # asking RDKit for the atomic number of an unknown symbol prints a C++ stack dump on stderr: the user must see
+    # our one-line message only
+    with pytest.raises(InputError, match="'Qq' is not an element symbol"):
+        parse_formula("C7H13NO2Qq")
+    assert capfd.readouterr().err == ""
+
+
 @settings(max_examples=300, deadline=None)
 @given(st.text(max_size=30))
 def test_random_text_never_crashes_formula_parser(text):

@@ -25,13 +25,15 @@ DBE_VALENCE = {
 }
 
 
+#: the element symbols RDKit knows (Z 1-118), looked up by number: asking RDKit for the number of an unknown
+#: symbol prints a C++ stack dump on stderr before it raises
+_SYMBOLS = frozenset(_PT.GetElementSymbol(z) for z in range(1, 119))
+
+
 @lru_cache(maxsize=None)
 def is_element(symbol: str) -> bool:
-    """True when ``symbol`` is a chemical element symbol, e.g. ``is_element('Cl')``."""
-    try:
-        return _PT.GetAtomicNumber(symbol) > 0
-    except RuntimeError:
-        return False
+    """True when ``symbol`` is a chemical element symbol, e.g. ``is_element('Cl')``; ``is_element('Xx')`` is False."""
+    return symbol in _SYMBOLS
 
 
 #: hydrogen isotopes written as symbols of their own in formulas (mass number)
