@@ -63,16 +63,17 @@ class Alternative:
         return d
 
 
-def structure_key(mol: Chem.Mol) -> str:
-    """Identity of a constitution regardless of stereochemistry and of how its double bonds are drawn
-    (Kekulé or resonance forms): canonical SMILES of the graph with every bond single, keeping
-    each atom's element, charge and H count."""
+def _single_bond_graph(mol: Chem.Mol, keep_h: bool) -> str:
+    """Canonical SMILES of ``mol`` with every bond single, no aromaticity and no stereo; each atom keeps its
+    element, and with ``keep_h`` its H count and charge as well (without: the heavy-atom graph alone)."""
     rw = Chem.RWMol(mol)
     for i in range(rw.GetNumAtoms()):
         a = rw.GetAtomWithIdx(i)
-        a.SetNumExplicitHs(a.GetTotalNumHs())
+        a.SetNumExplicitHs(a.GetTotalNumHs() if keep_h else 0)
         a.SetNoImplicit(True)
         a.SetIsAromatic(False)
+        if not keep_h:
+            a.SetFormalCharge(0)
         a.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
     for i in range(rw.GetNumBonds()):
         b = rw.GetBondWithIdx(i)
@@ -81,7 +82,14 @@ def structure_key(mol: Chem.Mol) -> str:
         b.SetStereo(Chem.BondStereo.STEREONONE)
     m = rw.GetMol()
     m.UpdatePropertyCache(strict=False)
-    return Chem.MolToSmiles(m, isomericSmiles=False, allHsExplicit=True)
+    return Chem.MolToSmiles(m, isomericSmiles=False, allHsExplicit=keep_h)
+
+
+def structure_key(mol: Chem.Mol) -> str:
+    """Identity of a constitution regardless of stereochemistry and of how its double bonds are drawn
+    (Kekulé or resonance forms): canonical SMILES of the graph with every bond single, keeping
+    each atom's element, charge and H count."""
+    return _single_bond_graph(mol, keep_h=True)
 
 
 _key = structure_key
@@ -94,20 +102,7 @@ def heavy_graph_key(mol: Chem.Mol) -> str:
     >>> heavy_graph_key(Chem.MolFromSmiles("O=c1cccc[nH]1")) == heavy_graph_key(Chem.MolFromSmiles("Oc1ccccn1"))
     True
     """
-    rw = Chem.RWMol(mol)
-    for a in rw.GetAtoms():
-        a.SetNumExplicitHs(0)
-        a.SetNoImplicit(True)
-        a.SetIsAromatic(False)
-        a.SetFormalCharge(0)
-        a.SetChiralTag(Chem.ChiralType.CHI_UNSPECIFIED)
-    for b in rw.GetBonds():
-        b.SetBondType(Chem.BondType.SINGLE)
-        b.SetIsAromatic(False)
-        b.SetStereo(Chem.BondStereo.STEREONONE)
-    m = rw.GetMol()
-    m.UpdatePropertyCache(strict=False)
-    return Chem.MolToSmiles(m, isomericSmiles=False)
+    return _single_bond_graph(mol, keep_h=False)
 
 
 def has_mobile_h(mol: Chem.Mol) -> bool:
@@ -260,16 +255,10 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     if len(smi) <= 24:
         return smi
     # a large group: its formula and the atom it is bound through, not a cut-off SMILES
-    from collections import Counter
-
     from .formula import hill
+    from .structure import element_counts
 
-    counts: Counter = Counter()
-    for i in _side(mol, root, ring_atom):
-        a = mol.GetAtomWithIdx(i)
-        counts[a.GetSymbol()] += 1
-        counts["H"] += a.GetTotalNumHs()
-    return f"{hill(counts)} group (bound through atom {root})"
+    return f"{hill(element_counts(mol, _side(mol, root, ring_atom)))} group (bound through atom {root})"
 
 
 def _substituents(mol: Chem.Mol, system: set[int]) -> list[tuple[int, int, str]]:
@@ -490,8 +479,9 @@ def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 continue
             frm = "N" if h.GetAtomicNum() == 7 else "O"
             name = _fragment_name(mol, c.GetIdx(), h.GetIdx()) or "acyl"
+            group = set(_side(mol, c.GetIdx(), h.GetIdx()))
             for t, to in targets:
-                if t == h.GetIdx() or t in _side(mol, c.GetIdx(), h.GetIdx()):
+                if t == h.GetIdx() or t in group:
                     continue
                 rw = Chem.RWMol(mol)
                 rw.RemoveBond(h.GetIdx(), c.GetIdx())

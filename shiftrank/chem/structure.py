@@ -69,10 +69,11 @@ def _atoms(mol: Chem.Mol):
     return map(mol.GetAtomWithIdx, range(mol.GetNumAtoms()))
 
 
-def element_counts(mol: Chem.Mol) -> Counter:
-    """Element counts including implicit hydrogens."""
+def element_counts(mol: Chem.Mol, atoms=None) -> Counter:
+    """Element counts including implicit hydrogens, of the whole molecule or of the atoms with the given
+    indices (a group of it)."""
     c: Counter = Counter()
-    for a in _atoms(mol):
+    for a in (_atoms(mol) if atoms is None else map(mol.GetAtomWithIdx, atoms)):
         c[a.GetSymbol()] += 1
         c["H"] += a.GetTotalNumHs()
     if c["H"] == 0:

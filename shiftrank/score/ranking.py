@@ -754,7 +754,8 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         if err:
             continue
         seen.add(structure_key(mol))
-        given.setdefault(compound_key(mol), smi)
+        if len(cands) > 1:   # (one candidate: isomers() itself labels its tautomers)
+            given.setdefault(compound_key(mol), smi)
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str) or _parse(smi)[2]:
@@ -774,7 +775,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
                 continue
             seen.add(k)
             relation = alt.relation
-            twin = given.get(compound_key(m)) if alt.kind != "tautomer" else None
+            twin = given.get(compound_key(m)) if given and alt.kind != "tautomer" else None
             if twin is not None and twin != smi:   # a tautomer of another given candidate
                 relation = f"candidate {twin} drawn as another NH/OH tautomer (the same compound)"
             same += bool(alt.same_compound_as or (twin is not None and twin != smi))
