@@ -166,3 +166,11 @@ def test_two_bond_c_f_coupling_of_a_substituted_ring_carbon_is_small():
     assert fit_cost(c_n, "d", (12.0,)) == (0, 0) and fit_cost(ch, "d", (19.5,)) == (0, 0)
     assert fit_cost(c_f, "d", (237.0,)) == (0, 0)
     assert fit_cost(ch, "d", (9.0,)) == (0, 1)      # a CH ortho to F does not show ²J of 9 Hz
+
+
+def test_expected_letters_put_resolved_splittings_before_optional_ones():
+    # 4-phenylmorpholine's ring CH2 (own choice): a triplet-like signal from the two vicinal protons;
+    # a geminal splitting, should the ring's two faces differ, is optional and printed after it (common practice)
+    ex = _by_atom("c1ccc(N2CCOCC2)cc1")
+    assert ex[(5, 9)].letters() == "t(d)" and ex[(6, 8)].letters() == "t(d)"
+    assert ex[(5, 9)].label().startswith("t(d) (vicinal")

@@ -142,7 +142,9 @@ class ExpectedMultiplet:
         return self._patterns
 
     def _shown_groups(self) -> list[CouplingGroup]:
-        return sorted((g for g in self.groups if g.kind != "long-range"), key=lambda g: -g.j_range[1])
+        """The groups to print: resolved ones first, then the optional (may be unresolved) ones, each by
+        falling J, so a ring CH2 reads 't(d)' (two vicinal partners, a geminal one perhaps), not 's(d)t'."""
+        return sorted((g for g in self.groups if g.kind != "long-range"), key=lambda g: (g.optional, -g.j_range[1]))
 
     def letters(self) -> str:
         """Expected multiplet in letters, optional splittings in brackets (``'t(d)'``; ``'br s'`` for OH/NH/SH)."""
