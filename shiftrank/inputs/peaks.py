@@ -208,6 +208,31 @@ def _token_lines(text: str):
             yield lineno, line, [t for t in re.split(r"[\s,;]+", line) if t]
 
 
+def _plain_1h_tokens(tokens: list[str], counted: list[str]) -> list[str]:
+    """The fields of a plain 1H line as the parser expects them, read the way people type them: an
+    integral with its unit ('2H', or '2' then 'H') goes to ``counted``; 'J =', 'J=8.4', 'Hz' and brackets
+    around fields are dropped, leaving the J values as numbers after the multiplicity."""
+    out: list[str] = []
+    for t in tokens:
+        t = t.strip("()[]")
+        m = re.fullmatch(r"(\d+(?:\.\d+)?)H", t)
+        if m:
+            counted.append(m.group(1))
+            continue
+        if t == "H" and out and re.fullmatch(r"\d+(?:\.\d+)?", out[-1]):
+            counted.append(out.pop())
+            continue
+        m = re.fullmatch(r"J\d*=?([\d.]*)", t)
+        if m:
+            if m.group(1):
+                out.append(m.group(1))
+            continue
+        if t in ("=", "Hz", ""):
+            continue
+        out.append(t)
+    return out
+
+
 def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
     """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H)."""
     out = []
@@ -222,7 +247,8 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
             if m:
                 rng, shift = [m.group(1), m.group(2)], None
         nums, words, after = [], [], []
-        for t in rest:
+        counted = []   # 1H: an integral typed with its unit ('2H', '2 H'), in any position
+        for t in (_plain_1h_tokens(rest, counted) if nucleus == "1H" else rest):
             try:
                 float(t)
                 (after if words else nums).append(t)
@@ -232,10 +258,10 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
                 else:
                     words.append(t)
         if nucleus == "1H":
-            if len(nums) > 1 or len(words) > 1:
+            if len(nums) + len(counted) > 1 or len(words) > 1:
                 raise InputError(f"{where}: expected 'shift-or-range [integral] [multiplicity] [J values]', got '{line}'")
-            out.append(_make_peak(shift, words[0] if words else None, nums[0] if nums else None, where, nucleus, lineno,
-                                  rng, after or None))
+            out.append(_make_peak(shift, words[0] if words else None, (counted + nums)[0] if counted + nums else None, where,
+                                  nucleus, lineno, rng, after or None))
             continue
         if len(nums) + len(after) > 1 or len(words) > 1:
             raise InputError(f"{where}: expected 'shift [intensity] [multiplicity]', got '{line}'")
@@ -383,12 +409,17 @@ def doubled_pairs(peaks: list, nucleus: str) -> int:
     return n
 
 
+SOLVENT_RANGE_MAX = 0.05   # ppm: a residual line (a singlet, or the narrow 1:2:3:2:1 quintet of a CHD2 group) is narrower
+
+
 def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = False) -> PeakList:
     """Mark peaks on a residual solvent signal (Fulmer et al. 2010) and note each one.
 
     13C peaks with a DEPT multiplicity other than C are never solvent (a
-    deuterated carbon carries no H); with ``keep_integrated`` (printed 1H text, where authors integrate
-    their compound's signals, not the solvent's) a 1H peak with an integral is never solvent either.
+    deuterated carbon carries no H); with ``keep_integrated`` (printed 1H text and typed 1H lists, where
+    people integrate their compound's signals, not the solvent's) a 1H peak with an integral is never
+    solvent either, and a 1H multiplet printed as a range wider than ``SOLVENT_RANGE_MAX`` ppm
+    (``7.35–7.20 (m)``) is not a residual line whatever its centre.
     Flagged peaks stay in the list; the ranking lets them go unmatched at no cost.
     """
     key = normalise_solvent(solvent)
@@ -397,7 +428,8 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
     for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
             continue
-        if keep_integrated and peaks.nucleus == "1H" and p.intensity is not None:
+        if peaks.nucleus == "1H" and (keep_integrated and p.intensity is not None
+                                      or p.lo is not None and p.hi - p.lo > SOLVENT_RANGE_MAX):
             continue
         ref = match_solvent(p.shift, key, peaks.nucleus)
         if ref is not None:
@@ -432,7 +464,7 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
     check_count(len(raw), source)
     notes: list[str] = []
     pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes)
-    return flag_solvent(pl, solvent)
+    return flag_solvent(pl, solvent, keep_integrated=True)
 
 
 def _read_file(path: str | Path) -> tuple[Path, str]:

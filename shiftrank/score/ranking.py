@@ -253,7 +253,7 @@ def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> Peak
         pl = PeakList(nucleus, items, "peaks", notes)
     if not pl.peaks:
         raise InputError(f"{pl.source}: the peak list is empty")
-    return flag_solvent(pl, solvent)
+    return flag_solvent(pl, solvent, keep_integrated=True)
 
 
 def observed_peaks(pl: PeakList) -> list[ObservedPeak]:
