@@ -317,7 +317,9 @@ def cmd_batch(args) -> int:
         if args.output:
             out.close()
     if summary["errors"]:
-        print(f"{summary['errors']} of {summary['cases']} cases had errors (see their 'error' fields)", file=sys.stderr)
+        # every line is written; the status tells a script that some cases could not be ranked (bad input)
+        print(f"{args.cases}: {summary['errors']} of {summary['cases']} cases could not be ranked (see their 'error' fields)", file=sys.stderr)
+        return 2
     return 0
 
 

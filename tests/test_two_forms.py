@@ -98,7 +98,7 @@ def test_rotamers_field_is_checked_in_batch(tmp_path):
                                    "rotamers": True}) + "\n")
     from shiftrank.cli import main
     out = tmp_path / "out.jsonl"
-    assert main(["batch", str(cases), "-o", str(out)]) == 0   # a bad case is an error line, the rest still run
+    assert main(["batch", str(cases), "-o", str(out)]) == 2   # a bad case is an error line (status 2), the rest still run
     lines = [json.loads(x) for x in out.read_text().splitlines()]
     assert "rotamers" in lines[0]["error"]
     assert lines[1]["ranking"][0]["smiles"] == TRUTH

@@ -42,29 +42,29 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
         if not line.strip():
             continue
         if len(line) > MAX_LINE:
-            out.append((n, InputError(f"{p.name} line {n}: {len(line):,} characters; the limit is {MAX_LINE:,} per case")))
+            out.append((n, InputError(f"line {n}: {len(line):,} characters; the limit is {MAX_LINE:,} per case")))
             continue
         try:
             obj = json.loads(line)
         except json.JSONDecodeError as exc:
-            out.append((n, InputError(f"{p.name} line {n}: invalid JSON ({exc.msg})")))
+            out.append((n, InputError(f"line {n}: invalid JSON ({exc.msg})")))
             continue
         if not isinstance(obj, dict):
-            out.append((n, InputError(f"{p.name} line {n}: expected a JSON object")))
+            out.append((n, InputError(f"line {n}: expected a JSON object")))
             continue
         case_id = str(obj["id"]) if obj.get("id") is not None else f"line {n}"
         case = {k: obj.get(k) for k in FIELDS}
         case["id"] = case_id
         cands = case["candidates"]
         if not isinstance(cands, list) or not all(isinstance(c, str) for c in cands):
-            exc = InputError(f"{p.name} line {n}: 'candidates' must be a list of SMILES strings")
+            exc = InputError(f"line {n}: 'candidates' must be a list of SMILES strings")
             exc.case_id = case_id
             out.append((n, exc))
             continue
         try:
             _read_case_files(obj, case, p.parent)
         except InputError as exc:
-            exc = InputError(f"{p.name} line {n}: {exc}")
+            exc = InputError(f"line {n}: {exc}")
             exc.case_id = case_id
             exc.candidates = cands   # listed in the error line, each with the error
             out.append((n, exc))
