@@ -89,7 +89,7 @@ def test_inferences_are_marked():
 
 @pytest.mark.parametrize("shift,mult,fragment", [
     (14.0, "CH3", "alkyl"), (55.5, "CH3", "O- or N-methyl"), (128.0, "CH", "aromatic"),
-    (118.5, "C", "nitrile"), (172.0, "C", "carboxyl"), (200.0, "CH", "aldehyde"), (208.0, "C", "ketone"),
+    (118.5, "C", "nitrile"), (119.1, None, "nitrile"), (119.1, "CH", "alkene/aromatic"), (172.0, "C", "carboxyl"), (200.0, "CH", "aldehyde"), (208.0, "C", "ketone"),
 ])
 def test_region_hints_common_practice(shift, mult, fragment):
     assert fragment in region_hint(shift, mult)

@@ -43,7 +43,7 @@ def region_hint(shift: float, multiplicity: str | None) -> str:
     if shift >= 165:
         return "carboxyl-type C=O (acid, ester, amide, 165-185 ppm)"
     if shift >= 100:
-        if m == "C" and 110 <= shift <= 125:
+        if m in ("C", None) and 110 <= shift <= 125:
             return "aromatic/alkene C, or nitrile C≡N (110-125 ppm)"
         if shift >= 150 and m in ("C", None):
             return "aromatic C bound to O/N, or C=N (150-165 ppm)"
