@@ -232,3 +232,19 @@ def test_amide_n_methyls_are_two_classes_that_may_share_one_singlet():
     from shiftrank.score.ranking import ranking_settings
     share = ranking_settings().costs["1H"].shared_unresolved
     assert one.best.nuclei["1H"].assignment.parts["overlap"] == pytest.approx(2 * share)
+
+
+# PMC9033937: 2-(2-bromophenyl)-N-methoxy-N-methylacetamide, two ring protons printed as one 2H multiplet
+WEINREB_1H = ("1H NMR (400 MHz, chloroform-d) δ 7.56 (d, J = 7.8 Hz, 1H), 7.31–7.22 (m, 2H), 7.16–7.08 (m, 1H), "
+              "3.93 (s, 2H), 3.70 (s, 3H), 3.22 (s, 3H)")
+WEINREB = "CON(C)C(=O)Cc1ccccc1Br"
+
+
+def test_a_multiplet_whose_integral_covers_its_classes_is_not_a_count_warning():
+    # 7 proton classes, 6 printed signals: the 2H multiplet holds two ring protons, as its integral says
+    ok = rank(text=WEINREB_1H, candidates=[WEINREB]).best
+    assert ok.nuclei["1H"].observed_signals == 6 and len(ok.nuclei["1H"].classes) == 7
+    assert not any("by symmetry" in f for f in ok.flags)
+    # printed as 1H, the multiplet cannot hold both: the count is flagged again
+    off = rank(text=WEINREB_1H.replace("(m, 2H)", "(m, 1H)"), candidates=[WEINREB]).best
+    assert any(f.startswith("expects 7 1H signals by symmetry, 6 observed") for f in off.flags)

@@ -183,8 +183,9 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         _solvent_multiplet(pl, key, mhz)
     inside = []
     if nucleus == "1H":
+        refs = solvent_signals(key, "1H") if key is not None else []
         for q in pl.peaks:   # a residual solvent line is a singlet; a multiplet around it is the sample's (with it)
-            if q.solvent is not None and q.lo is not None:
+            if q.lo is not None and (q.solvent is not None or any(q.lo <= r <= q.hi for r in refs)):
                 q.solvent = None
                 inside.append(f"{q.lo:g}–{q.hi:g}")
         # integrals relative to the smallest multiplet of the sample

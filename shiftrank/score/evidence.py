@@ -452,8 +452,9 @@ class ProtonEvidence(_Evidence):
         return Prepared(classes, peaks, bad_p, bad_j)
 
     def flags(self, res: NucleusResult) -> list[str]:
-        out = _count_flags(res, "1H signals") + _quality_flags(res, ("proton class", "proton classes"))
         classes, peaks, a = res.classes, res.peaks, res.assignment
+        out = ([] if _integrals_explain_sharing(res) else _count_flags(res, "1H signals")) \
+            + _quality_flags(res, ("proton class", "proton classes"))
         if res.by_protons:
             n_h = sum(c.units for c in classes)
             n_x = sum(c.units for c in classes if c.exchangeable)
@@ -466,6 +467,23 @@ class ProtonEvidence(_Evidence):
             out.append(f"{count(n_mm, 'proton class', 'proton classes')} whose printed multiplet "
                        f"{'its' if n_mm == 1 else 'their'} neighbours cannot produce")
         return out
+
+
+def _integrals_explain_sharing(res: NucleusResult) -> bool:
+    """Whether the 1H signal count differs only because printed multiplets hold several classes, each
+    such multiplet integrating to exactly their protons (``7.51–7.47 (m, 3H)`` over a 2H and a 1H class):
+    every class but an exchangeable NH/OH is on a peak, no peak is unexplained.  That is how 1H spectra
+    are printed, not a warning."""
+    a, peaks, classes = res.assignment, res.peaks, res.classes
+    if not res.by_protons or any(p.peak is None and not classes[p.cls].exchangeable for p in a.pairings):
+        return False
+    if any(not peaks[j].solvent for j in a.unmatched_peaks):
+        return False
+    held: dict[int, int] = {}
+    for p in a.pairings:
+        if p.peak is not None:
+            held[p.peak] = held.get(p.peak, 0) + classes[p.cls].units
+    return all(peaks[j].capacity == n for j, n in held.items())
 
 
 def _count_flags(res: NucleusResult, what: str) -> list[str]:
