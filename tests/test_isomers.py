@@ -226,3 +226,13 @@ def test_n_against_o_acylation_of_a_bifunctional_nucleophile():
     # N-H is not a free amine
     assert isomers("CC(=O)Nc1ccccc1", kinds=("ambident",)) == []
     assert isomers("COC(=O)c1ccccc1O", kinds=("ambident",)) == []
+
+
+def test_n_alkylation_of_a_3_5_disubstituted_pyrazole_is_named_as_such():
+    # Alkylating ethyl 5-methyl-1H-pyrazole-3-carboxylate gives the 1,3- and the 1,5-isomer (common practice);
+    # the other ring N is also what swapping the ester and the methyl gives, and the N-alkyl reading leads
+    alts = {a.smiles: a for a in isomers("CCOC(=O)c1cc(C)n(CC2CC2)n1")}
+    other_n = alts[Chem.MolToSmiles(Chem.MolFromSmiles("CCOC(=O)c1cc(C)nn1CC1CC1"))]
+    assert other_n.kind == "ambident"
+    assert other_n.relation.startswith("CH2cPr on ring N") and "the same as: CO2C2H5 and CH3 swapped" in other_n.relation
+    assert len(alts) == 3

@@ -186,6 +186,11 @@ GROUP_NAMES = {
     "*NC(=O)OC(C)(C)C": "NHBoc", "*C(=O)OC(C)(C)C": "CO2tBu", "*C(=O)c1ccccc1": "COC6H5", "*C(=O)NC": "CONHCH3",
     "*C(=O)N(C)C": "CON(CH3)2", "*C(=O)Nc1ccccc1": "CONHC6H5", "*NC(=O)c1ccccc1": "NHCOC6H5", "*NS(C)(=O)=O": "NHSO2CH3",
     "*C(F)F": "CHF2", "*OC(F)F": "OCHF2", "*SC(F)(F)F": "SCF3", "*COC": "CH2OCH3", "*CC#N": "CH2CN",
+    # alkyl and protecting groups as chemists abbreviate them (the usual N- and O-alkylation reagents)
+    "*CCC": "nPr", "*CCCC": "nBu", "*CC(C)C": "iBu", "*C1CC1": "cPr", "*CC1CC1": "CH2cPr", "*C1CCC1": "cBu",
+    "*C1CCCC1": "cPent", "*C1CCCCC1": "cHex", "*CC=C": "allyl", "*CC#C": "propargyl", "*CCO": "CH2CH2OH",
+    "*CCOC": "CH2CH2OCH3", "*CC(=O)OC": "CH2CO2CH3", "*CC(=O)OCC": "CH2CO2C2H5", "*Cc1ccc(OC)cc1": "PMB",
+    "*C1CCCCO1": "THP", "*COCC[Si](C)(C)C": "SEM", "*S(=O)(=O)c1ccc(C)cc1": "Ts",
     # N-linked rings as chemists name them
     "*N1CCOCC1": "morpholin-4-yl", "*N1CCCCC1": "piperidin-1-yl", "*N1CCCC1": "pyrrolidin-1-yl",
     "*N1CCNCC1": "piperazin-1-yl", "*N1CCN(C)CC1": "4-methylpiperazin-1-yl", "*n1cccn1": "pyrazol-1-yl",
@@ -590,15 +595,20 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
             found += [(m, lab, "tautomer") for m, lab in _tautomers(mol)]
     if reaction:
         found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
-    seen = {_key(mol)} if mol is not None else set()
+    seen = {_key(mol): None} if mol is not None else {}   # structure -> its index in ``out``
     # compound -> (SMILES, relation) it was first met as; the given structure first
     compounds = {compound_key(mol): (smiles, None)} if mol is not None else {}
     out: list[Alternative] = []
     for m, lab, kind in found:
         k = _key(m)
         if k in seen:
+            i = seen[k]
+            if i is not None and kind == "ambident" and out[i].kind == "positional" and out[i].same_compound_as is None:
+                # a swap of two ring substituents that is also the group on the other ring N: the N-alkylation
+                # reading is the one a chemist asks about, the swap is kept beside it
+                out[i] = Alternative(out[i].smiles, f"{lab} (the same as: {out[i].relation})", kind, None)
             continue
-        seen.add(k)
+        seen[k] = len(out)
         smi, twin = Chem.MolToSmiles(m), None
         if kind != "tautomer":
             ck = compound_key(m)
