@@ -236,3 +236,31 @@ def test_n_alkylation_of_a_3_5_disubstituted_pyrazole_is_named_as_such():
     assert other_n.kind == "ambident"
     assert other_n.relation.startswith("CH2cPr on ring N") and "the same as: CO2C2H5 and CH3 swapped" in other_n.relation
     assert len(alts) == 3
+
+
+def test_a_salt_keeps_its_counter_ion_and_the_given_atom_numbers():
+    # sodium 4-methylbenzenesulfonate written with the cation first: the alternatives are the 2- and
+    # 3-methyl salts (hand count), labelled in the given SMILES's atom numbers (the methyl is atom 1)
+    alts = isomers("[Na+].Cc1ccc(S(=O)(=O)[O-])cc1")
+    assert sorted(a.smiles for a in alts) == sorted(["Cc1cccc(S(=O)(=O)[O-])c1.[Na+]", "Cc1ccccc1S(=O)(=O)[O-].[Na+]"])
+    assert all(a.relation.startswith("CH3 moved from ring atom 2 to ring atom") and "SO3−" in a.relation for a in alts)
+
+
+def test_a_group_moved_off_a_charged_ring_n_is_labelled_and_not_ranked():
+    # 2-methylpyridine N-oxide: moving the O off the N+ leaves an unpaired electron (not a product); the
+    # one-substituent rule still lists it (the development cases were built by that rule)
+    alts = isomers("Cc1cccc[n+]1[O-]")
+    odd = [a for a in alts if "unpaired electron" in a.relation]
+    assert len(alts) == 7 and len(odd) == 4 and all(a.relation.startswith("O− moved from ring atom 6") for a in odd)
+    from shiftrank.score.ranking import expand_with_isomers
+    out, notes = expand_with_isomers(["Cc1cccc[n+]1[O-]"])
+    assert len(out) == 1 + 3 and "4 with an unpaired electron" in notes[0]
+
+
+@pytest.mark.parametrize("smiles,expected", [
+    ("C[C@H](N)C(=O)O", set()),                                   # alanine: no enol/imine forms listed
+    ("CC(=O)Nc1ccc(O)cc1", {"CC(O)=Nc1ccc(O)cc1"}),              # paracetamol: the imidic acid only
+    ("CC(=O)C(C)C(C)=O", {"CC(=O)C(C)=C(C)O"}),                  # a 1,3-diketone: its enol (common practice)
+])
+def test_listed_tautomers_move_h_between_heteroatoms_or_enolise_a_13_dicarbonyl(smiles, expected):
+    assert {a.smiles for a in isomers(smiles, kinds=("tautomer",))} == expected

@@ -30,6 +30,8 @@ as in every assignment table and JSON output.
 """
 from __future__ import annotations
 
+import re
+
 from dataclasses import dataclass
 from functools import lru_cache
 
@@ -144,6 +146,13 @@ def _finish(rw: Chem.RWMol) -> Chem.Mol | None:
         return None
 
 
+def open_shell(mol: Chem.Mol) -> bool:
+    """Whether a structure has an unpaired electron: what moving the group off a charged ring N (an
+    N-oxide's O, a pyridinium's N-alkyl) leaves.  The one-substituent rule gives such structures (the
+    development regio cases hold them), so :func:`isomers` lists them, labelled; rankings leave them out."""
+    return any(a.GetNumRadicalElectrons() for a in mol.GetAtoms())
+
+
 def _ring_systems(mol: Chem.Mol) -> list[set[int]]:
     """Aromatic ring systems: fused aromatic 5- and 6-membered rings merged."""
     rings = [set(r) for r in mol.GetRingInfo().AtomRings()
@@ -197,6 +206,7 @@ GROUP_NAMES = {
     "*n1ccnc1": "imidazol-1-yl", "*n1ccnn1": "1,2,3-triazol-1-yl", "*n1cncn1": "1,2,4-triazol-1-yl",
     "*N1C(=O)C=CC1=O": "maleimido", "*N1C(=O)c2ccccc2C1=O": "phthalimido",
     "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
+    "*[O-]": "O−", "*S(=O)(=O)O": "SO3H", "*S(=O)(=O)[O-]": "SO3−", "*C(=O)[O-]": "CO2−", "*S(=O)(=O)Cl": "SO2Cl",
 }
 
 
@@ -534,12 +544,53 @@ def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         if sum(a.GetIsAromatic() for a in m.GetAtoms()) < base_aromatic:
             continue
         h = [a.GetTotalNumHs() for a in m.GetAtoms()]
+        if len(h) == len(base_h) and any(x != y and mol.GetAtomWithIdx(i).GetAtomicNum() == 6 and not _dicarbonyl_carbon(mol, i)
+                                         for i, (x, y) in enumerate(zip(base_h, h))):
+            continue
         lost = [i for i, (x, y) in enumerate(zip(base_h, h)) if y < x]
         gained = [i for i, (x, y) in enumerate(zip(base_h, h)) if y > x]
         label = (f"tautomer: H moved from atom {lost[0]} to atom {gained[0]}" if len(lost) == 1 and len(gained) == 1
                  and len(h) == len(base_h) else "tautomer")
         out.append((m, label))
     return out
+
+
+def _main_fragment(mol: Chem.Mol) -> tuple[Chem.Mol, str, list[int] | None]:
+    """A salt or solvate's organic part, whose alternatives are generated: (that fragment, '.' + the other
+    fragments' SMILES to put back on each alternative, the fragment's atom numbers in the given structure);
+    the molecule itself, '' and None when it is one fragment."""
+    frags = Chem.GetMolFrags(mol)
+    if len(frags) == 1:
+        return mol, "", None
+    parts = Chem.GetMolFrags(mol, asMols=True, sanitizeFrags=True)
+    def size(k):
+        return (any(mol.GetAtomWithIdx(i).GetAtomicNum() == 6 for i in frags[k]), len(frags[k]))
+    main = max(range(len(frags)), key=size)
+    rest = "".join("." + Chem.MolToSmiles(parts[k]) for k in range(len(frags)) if k != main)
+    return parts[main], rest, sorted(frags[main])
+
+
+def _renumber(label: str, numbering: list[int]) -> str:
+    """``label`` with its atom numbers (of the main fragment) turned into the given structure's."""
+    def one(m):
+        nums = [m.group(2)] + ([m.group(3)] if m.group(3) else [])
+        new = [str(numbering[int(x)]) if int(x) < len(numbering) else x for x in nums]
+        return f"{m.group(1)} {' and '.join(new)}"
+    return re.sub(r"\b(atoms?) (\d+)(?: and (\d+))?", one, label)
+
+
+def _dicarbonyl_carbon(mol: Chem.Mol, i: int) -> bool:
+    """Whether carbon ``i`` lies between two carbonyl or imine carbons (a 1,3-dicarbonyl's CH or CH2, whose
+    enol is seen beside the keto form), or is such a carbonyl carbon; the only carbon whose H count a
+    listed tautomer may change.  The keto/enol and enamine/imine forms of plain ketones, esters, amides and
+    amino acids are RDKit's formal tautomers, not products a chemist proposes (common practice)."""
+    def acyl(a: Chem.Atom) -> bool:
+        return a.GetAtomicNum() == 6 and any(b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() in (7, 8)
+                                             for b in a.GetBonds())
+    a = mol.GetAtomWithIdx(i)
+    if sum(acyl(n) for n in a.GetNeighbors()) >= 2:
+        return True
+    return acyl(a) and any(sum(acyl(m) for m in n.GetNeighbors()) >= 2 for n in a.GetNeighbors())
 
 
 def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
@@ -582,6 +633,9 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
     if smiles is None and not reaction:
         raise InputError("isomers: give a SMILES, or a reaction SMARTS with its reactants")
     mol = to_mol(smiles) if smiles is not None else None
+    rest, numbering = "", None
+    if mol is not None:
+        mol, rest, numbering = _main_fragment(mol)
     if mol is not None and mol.GetNumHeavyAtoms() > 200:
         raise InputError(f"SMILES '{smiles[:40]}…': {mol.GetNumHeavyAtoms()} heavy atoms; isomer generation is "
                          "limited to 200")
@@ -593,6 +647,8 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
             found += [(m, lab, "ambident") for m, lab in _ambident(mol)]
         if "tautomer" in kinds:
             found += [(m, lab, "tautomer") for m, lab in _tautomers(mol)]
+    if numbering is not None:   # labels in the given SMILES's atom numbers, counter-ions put back
+        found = [(m, _renumber(lab, numbering), kind) for m, lab, kind in found]
     if reaction:
         found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
     seen = {_key(mol): None} if mol is not None else {}   # structure -> its index in ``out``
@@ -609,7 +665,9 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
                 out[i] = Alternative(out[i].smiles, f"{lab} (the same as: {out[i].relation})", kind, None)
             continue
         seen[k] = len(out)
-        smi, twin = Chem.MolToSmiles(m), None
+        smi, twin = Chem.MolToSmiles(m) + (rest if kind != "reaction" else ""), None
+        if open_shell(m):
+            lab += " (leaves an unpaired electron: not a closed-shell product, listed because the rule gives it)"
         if kind != "tautomer":
             ck = compound_key(m)
             if ck in compounds:

@@ -740,7 +740,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
     that is only a prototropic tautomer of a given candidate (an NH-azole's other NH form) is the same
     compound: it is ranked (its drawing is predicted differently) under a relation that says so, and the
     ranking's note and verdict add the probabilities of one compound's drawings."""
-    from ..chem.isomers import compound_key, isomers, structure_key
+    from ..chem.isomers import compound_key, isomers, open_shell, structure_key
 
     if kinds is True:
         kinds = "positional,ambident"
@@ -760,7 +760,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str) or _parse(smi)[2]:
             continue
-        added, same = 0, 0
+        added, same, radicals = 0, 0, 0
         try:
             alts = isomers(smi, kinds=kinds)
         except InputError as exc:
@@ -774,6 +774,9 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
             if k in seen:
                 continue
             seen.add(k)
+            if open_shell(m):   # the models know closed-shell molecules only
+                radicals += 1
+                continue
             relation = alt.relation
             twin = given.get(compound_key(m)) if given and alt.kind != "tautomer" else None
             if twin is not None and twin != smi:   # a tautomer of another given candidate
@@ -783,7 +786,9 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
             added += 1
         notes.append(f"{added} generated alternatives of {smi} added ({kinds})"
                      + (f", {same} of them a candidate or an alternative drawn as another NH/OH tautomer (the same "
-                        "compound: their probabilities add up)" if same else ""))
+                        "compound: their probabilities add up)" if same else "")
+                     + (f"; {radicals} with an unpaired electron (a group moved off a charged ring N) left out"
+                        if radicals else ""))
     return out, notes
 
 
