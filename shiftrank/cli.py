@@ -192,11 +192,13 @@ def cmd_predict(args) -> int:
                 match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
                          f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
                 print(f"       {c.atom:>4}  {what:<6}{c.shift:7.{nd}f}  {Z90 * c.sigma:6.{nd}f}  {match}")
-    if n_bad and not args.jsonl:
-        print(f"{n_bad} of {len(records)} records could not be predicted", file=sys.stderr)
     if written:
         print(f"{count(len(written), 'predicted peak table')} written to {args.jcamp} (JCAMP-DX)", file=sys.stderr)
-    return 2 if n_bad == len(records) else 0
+    if n_bad:   # every record is written (an error object for a bad one); the status tells a script
+        print(f"{args.file}: {n_bad} of {len(records)} records could not be predicted"
+              + (" (see their 'error' fields)" if args.jsonl else ""), file=sys.stderr)
+        return 2
+    return 0
 
 
 def _read_candidates(tokens: list[str]) -> list:
