@@ -100,7 +100,9 @@ def cmd_facts(args) -> int:
                                                  for c in f.carbon_classes]}))
         else:
             _print_facts(f)
-    return 2 if bad and bad == len(items) else 0
+    if bad and len(items) > 1:
+        print(f"{bad} of {len(items)} structures could not be read", file=sys.stderr)
+    return 2 if bad else 0
 
 
 def cmd_formula(args) -> int:
@@ -400,16 +402,28 @@ def cmd_report(args) -> int:
 
         items = read_cases(args.batch)
         cases = [c for _, c in items if isinstance(c, dict)]
-        ranked = [(c, r) for c, r in zip(cases, rank_many(cases)) if not isinstance(r, Exception)]
-        skipped = len(items) - len(ranked)
+        results_all = iter(rank_many(cases))
+        ranked, failed = [], []
+        for n, c in items:
+            r = next(results_all) if isinstance(c, dict) else c
+            if isinstance(r, Exception):
+                cid = c.get("id") if isinstance(c, dict) else getattr(c, "case_id", None)
+                msg = str(r)
+                failed.append((cid if cid is not None else f"line {n}", msg if msg.startswith("line ") else f"line {n}: {msg}"))
+            else:
+                ranked.append((c, r))
         if not ranked:
             raise InputError(f"{args.batch}: no case could be ranked")
         results = [r for _, r in ranked]
         hist = [{"formula": c.get("formula"), "mass": c.get("mass"), "solvent": c.get("solvent")} for c, _ in ranked]
         lists = [case_peaklists(c)[0] for c, _ in ranked]
-        write_report(results, args.output, lists, hist, title=f"shiftrank batch report: {Path(args.batch).name}")
-        if skipped:
-            print(f"{skipped} cases could not be ranked and are not in the report", file=sys.stderr)
+        write_report(results, args.output, lists, hist, title=f"shiftrank batch report: {Path(args.batch).name}",
+                     failed=failed)
+        if failed:
+            print(f"report written to {args.output}")
+            print(f"{args.batch}: {len(failed)} of {len(items)} cases could not be ranked (listed in the report)",
+                  file=sys.stderr)
+            return 2
     else:
         if not args.candidates:
             raise InputError("report: give --candidates with --peaks/--peaks-1h/--hsqc/--text, or --batch CASES.jsonl")

@@ -55,3 +55,17 @@ def test_one_sample_report_takes_the_rank_options(tmp_path):
     html = out.read_text()
     assert "CO2C2H5 moved from ring atom 5 to ring atom 6 (now meta to CH3)" in html   # the meta ester
     assert "measured m/z 165.091 ([M+H]+)" in html
+
+
+def test_batch_report_lists_the_cases_it_could_not_rank(tmp_path):
+    import json
+    from shiftrank.cli import main
+
+    good = {"id": "ok", "peaks": [{"shift": 14.1}, {"shift": 22.7}, {"shift": 31.9}, {"shift": 63.1}],
+            "candidates": ["CCCCO", "CCC(C)O"]}   # butan-1-ol's four lines (common practice, from memory)
+    cases = tmp_path / "c.jsonl"
+    cases.write_text(json.dumps(good) + "\n" + json.dumps({"id": "no-peaks", "candidates": ["CCO"]}) + "\n{oops\n")
+    out = tmp_path / "r.html"
+    assert main(["report", "--batch", str(cases), "-o", str(out)]) == 2   # written, but two cases failed
+    page = out.read_text()
+    assert "Not ranked (2)" in page and "no-peaks" in page and "line 3: invalid JSON" in page

@@ -276,8 +276,9 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
 
 
 def render_report(results: list[RankResult], peak_lists=None, histories=None, inventories=None,
-                  title: str = "shiftrank report") -> str:
-    """The report as one HTML string."""
+                  title: str = "shiftrank report", failed=None) -> str:
+    """The report as one HTML string; ``failed`` lists (case id, error) of cases that could not be ranked,
+    shown in a table of their own so that nothing of the input goes unmentioned."""
     e = html.escape
     n = len(results)
     peak_lists = peak_lists or [None] * n
@@ -295,6 +296,10 @@ def render_report(results: list[RankResult], peak_lists=None, histories=None, in
                         f"<td class=num>{b.probability:.3f}</td><td>{e(r.verdict)}</td></tr>")
         out.append("<h2>Summary</h2><table><tr><th>sample</th><th>best candidate</th><th>p</th><th>verdict</th></tr>"
                    + "".join(rows) + "</table>")
+    if failed:
+        out.append(f"<h2>Not ranked ({len(failed)})</h2><table><tr><th>case</th><th>why</th></tr>"
+                   + "".join(f"<tr><td>{e(str(cid))}</td><td class='flag'>{e(str(err))}</td></tr>" for cid, err in failed)
+                   + "</table>")
     for k, (r, pl, h, inv) in enumerate(zip(results, peak_lists, histories, inventories), 1):
         out.append(_sample_section(k, r, pl, h, inv))
     out.append(f"<div class='caution'><b>Caution.</b> {e(CAUTION)}</div>")
@@ -304,11 +309,11 @@ def render_report(results: list[RankResult], peak_lists=None, histories=None, in
 
 
 def write_report(results: list[RankResult], path, peak_lists=None, histories=None, inventories=None,
-                 title: str = "shiftrank report") -> Path:
+                 title: str = "shiftrank report", failed=None) -> Path:
     """Write the report to ``path`` and return it."""
     p = Path(path)
     try:
-        p.write_text(render_report(results, peak_lists, histories, inventories, title), encoding="utf-8")
+        p.write_text(render_report(results, peak_lists, histories, inventories, title, failed), encoding="utf-8")
     except OSError as exc:
         from ..errors import InputError
         raise InputError(f"{path}: cannot write the report ({exc.strerror or exc})") from None
