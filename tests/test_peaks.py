@@ -130,3 +130,15 @@ def test_plain_1h_line_takes_br_s_written_with_a_space():
         assert (p.multiplicity, p.intensity) == ("br s", 1.0)
     with pytest.raises(InputError, match="line 1"):
         parse_peaks("1.90 1 s d", nucleus="1H")
+
+
+def test_a_peak_file_holding_a_printed_paragraph_is_read_as_text(tmp_path):
+    # the 1H paragraph printed for 2-(2-bromophenyl)-N-methoxy-N-methylacetamide (PMC9033937), saved as a
+    # peak file: read by the text reader, not refused as a malformed CSV
+    f = tmp_path / "sample.txt"
+    f.write_text("1H NMR (400 MHz, chloroform-d) δ 7.56 (d, J = 7.8 Hz, 1H), 7.31–7.22 (m, 2H), 7.16–7.08 (m, 1H), "
+                 "3.93 (s, 2H), 3.70 (s, 3H), 3.22 (s, 3H)\n")
+    pl = read_peaks(f, "1H")
+    assert [p.intensity for p in pl.peaks] == [3, 3, 2, 1, 2, 1] and "printed characterisation text" in pl.notes[0]
+    with pytest.raises(InputError, match="without a 13C section \\(it has 1H\\); give it with --text"):
+        read_peaks(f, "13C")

@@ -488,7 +488,28 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     p, text = _read_file(path)
     ext = p.suffix.lower()
     fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(ext)
+    if fmt is None and _PRINTED.search(text[:2000]):
+        return _printed_peaks(text, p.name, nucleus, solvent)
     return parse_peaks(text, p.name, nucleus, fmt, solvent)
+
+
+#: the header of a printed characterisation paragraph ('13C NMR (101 MHz, CDCl3) δ …', '1H-NMR', 'δC (100 MHz')
+_PRINTED = re.compile(r"(?:\b1\s*H|\b13\s*C|¹H|¹³C)\s*(?:\{\s*1\s*H\s*\}|\{¹H\})?\s*[-‐ ]?\s*NMR|δ\s*[HC]\b\s*[(\[]")
+
+
+def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None) -> PeakList:
+    """A peak file that holds a printed paragraph instead of a list: its ``nucleus`` section, read as
+    ``--text`` reads it (a note says so), or a clear error when it has none."""
+    from .text import read_nmr_text   # (text builds on this module)
+
+    parsed = read_nmr_text(text)
+    pl = parsed.peaklist(nucleus, solvent, name)
+    if pl is None:
+        found = sorted({s.nucleus for s in parsed.sections if s.peaks})
+        raise InputError(f"{name}: printed NMR text without a {nucleus} section"
+                         + (f" (it has {', '.join(found)})" if found else "") + "; give it with --text instead")
+    pl.notes.insert(0, f"{name}: read as printed characterisation text (its {nucleus} section)")
+    return pl
 
 
 @dataclass
