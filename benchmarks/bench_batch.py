@@ -114,7 +114,10 @@ def whole_process(path: Path, extra: list[str] = ()) -> tuple[float, bytes]:
     r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "batch", str(path), "-o", str(out), *extra],
                        capture_output=True, text=True)
     dt = time.perf_counter() - t
-    assert r.returncode == 0, r.stderr
+    # 2: every line written, some cases or records could not be used (the summary says how many)
+    assert r.returncode in (0, 2) and "Traceback" not in r.stderr, r.stderr
+    if r.returncode:
+        print("  (" + r.stderr.strip().splitlines()[-1] + ")")
     return dt, out.read_bytes()
 
 

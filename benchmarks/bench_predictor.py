@@ -380,7 +380,10 @@ def main() -> int:
         t = time.perf_counter()
         r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", str(smi), "--jsonl"], capture_output=True, text=True)
         whole = time.perf_counter() - t
-        assert r.returncode == 0, r.stderr
+        # 2: every line written, some cases or records could not be used (the summary says how many)
+        assert r.returncode in (0, 2) and "Traceback" not in r.stderr, r.stderr
+        if r.returncode:
+            print("  (" + r.stderr.strip().splitlines()[-1] + ")")
     print(f"whole process (shiftrank predict --jsonl, start-up included): {n_carbons / whole:,.0f} carbons/s ({whole:.2f} s for {len(mols)} molecules)")
     print("\nsmall molecules against reference values (Fulmer et al. 2010, Organometallics 29, 2176, Table 2,"
           " CDCl3; others recalled from standard 13C tables, from memory):")

@@ -148,7 +148,10 @@ def main() -> int:
         r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "batch", str(path), "-o", str(Path(d) / "out.jsonl")],
                            capture_output=True, text=True)
         dt = time.perf_counter() - t
-        assert r.returncode == 0, r.stderr
+        # 2: every line written, some cases or records could not be used (the summary says how many)
+        assert r.returncode in (0, 2) and "Traceback" not in r.stderr, r.stderr
+        if r.returncode:
+            print("  (" + r.stderr.strip().splitlines()[-1] + ")")
     print(f"\nshiftrank batch, whole process, 1 thread: {n} candidates in {dt:.1f} s = {n / dt:,.0f} candidates/s")
     return 0
 

@@ -250,7 +250,10 @@ def batch_speed(cases) -> None:
                 r = subprocess.run([sys.executable, "-m", "shiftrank.cli", "batch", str(path), "-o", str(path) + ".out"],
                                    capture_output=True, text=True)
                 dt = time.perf_counter() - t
-                assert r.returncode == 0, r.stderr
+                # 2: every line written, some cases or records could not be used (the summary says how many)
+                assert r.returncode in (0, 2) and "Traceback" not in r.stderr, r.stderr
+                if r.returncode:
+                    print("  (" + r.stderr.strip().splitlines()[-1] + ")")
                 best = dt if best is None else min(best, dt)
             times[which] = best
             print(f"  shiftrank batch from the {which:<4} paragraph(s): {n} candidates in {best:.1f} s = {n / best:,.0f}/s "
