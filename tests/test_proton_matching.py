@@ -248,3 +248,14 @@ def test_a_multiplet_whose_integral_covers_its_classes_is_not_a_count_warning():
     # printed as 1H, the multiplet cannot hold both: the count is flagged again
     off = rank(text=WEINREB_1H.replace("(m, 2H)", "(m, 1H)"), candidates=[WEINREB]).best
     assert any(f.startswith("expects 7 1H signals by symmetry, 6 observed") for f in off.flags)
+
+
+def test_a_lone_candidate_is_judged_by_its_fit_not_by_its_probability_of_one():
+    # one structure, as from a bottle's label: p = 1 by construction says nothing, the verdict says how the
+    # printed spectrum (PMC9033937) fits it and how to test it against its isomers
+    ok = rank(text=WEINREB_1H, candidates=[WEINREB])
+    assert ok.best.probability == 1.0
+    assert ok.verdict.startswith(f"one candidate, {WEINREB}: the spectra fit it (1H MAE") and "--with-isomers" in ok.verdict
+    # the para isomer has one ring-proton class too few for the printed 1H + 2H + 1H: a reservation
+    para = rank(text=WEINREB_1H, candidates=["CON(C)C(=O)Cc1ccc(Br)cc1"]).verdict
+    assert "fit it with reservations (expects 5 1H signals by symmetry, 6 observed" in para

@@ -505,6 +505,8 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
                         if r.mae is not None else f"{n}: nothing assigned")
     if poor:
         return f"no candidate fits well: the best ({label}) has " + "; ".join(poor)
+    if len(valid) == 1:
+        return _one_candidate_verdict(best, label)
     conflict = spectra_disagreement(valid)
     conflict = f"; the spectra disagree: {conflict}" if conflict else ""
     count_note = _count_misfit(valid)
@@ -525,6 +527,20 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
         return (f"two candidates indistinguishable from {spectra} alone: {shown} and "
                 f"{second.name or second.smiles} (p = {second.probability:.2f}){conflict}")
     return f"leaning to {shown}; not decisive{conflict}"
+
+
+def _one_candidate_verdict(best: CandidateResult, label: str) -> str:
+    """The verdict on a lone candidate (the structure on a label, the one intended product): its probability
+    is 1 by construction, so the verdict says how the spectra fit it, with the flags as reservations, and
+    how to test it against the structures it could be confused with."""
+    fit = "; ".join(f"{n} MAE {r.mae:.2f} ppm, {r.observed_signals} signals for {len(r.classes)} expected"
+                    for n, r in best.nuclei.items() if r.mae is not None)
+    doubts = [f for f in best.flags if not f.startswith("standardised")]
+    how = ("rank it with its alternatives (--with-isomers) or compare it with a reference spectrum to tell it "
+           "from an isomer")
+    if doubts:
+        return f"one candidate, {label}: the spectra fit it with reservations ({'; '.join(doubts)}); {fit}; {how}"
+    return f"one candidate, {label}: the spectra fit it ({fit}; none beyond 3σ); {how}"
 
 
 @lru_cache(maxsize=16384)
