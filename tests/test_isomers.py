@@ -264,3 +264,17 @@ def test_a_group_moved_off_a_charged_ring_n_is_labelled_and_not_ranked():
 ])
 def test_listed_tautomers_move_h_between_heteroatoms_or_enolise_a_13_dicarbonyl(smiles, expected):
     assert {a.smiles for a in isomers(smiles, kinds=("tautomer",))} == expected
+
+
+def test_moved_groups_keep_their_stereocentres():
+    # RDKit reads a chiral tag against the order of an atom's bonds: a group moved by re-bonding must keep its
+    # configuration (trans-1-aryl-4-methylcyclohexane stays trans; (S)-1-arylethylamine stays (S))
+    def canon(s):
+        return Chem.MolToSmiles(Chem.MolFromSmiles(s))
+    got = {a.smiles for a in isomers("C[C@@H]1CC[C@H](c2ccc(F)cc2)CC1")}
+    assert got == {canon("C[C@@H]1CC[C@H](c2cccc(F)c2)CC1"), canon("C[C@@H]1CC[C@H](c2ccccc2F)CC1")}
+    got = {a.smiles for a in isomers("C[C@H](N)c1ccc(Cl)cc1")}
+    assert got == {canon("C[C@H](N)c1cccc(Cl)c1"), canon("C[C@H](N)c1ccccc1Cl")}
+    # N- to O-alkylation of a 2-pyridone by a chiral 1-phenylethyl group: the same spatial arrangement
+    (alt,) = [a for a in isomers("O=C1C=CC=CN1[C@@H](C)c1ccccc1") if a.kind == "ambident"]
+    assert alt.smiles == canon("C[C@H](Oc1ccccn1)c1ccccc1")

@@ -295,14 +295,31 @@ def _free(mol: Chem.Mol, i: int) -> bool:
     return a.GetTotalNumHs() > 0 and a.GetAtomicNum() in (6, 7)
 
 
+def _rebond(rw: Chem.RWMol, root: int, old: int, new: int, bond=Chem.BondType.SINGLE) -> None:
+    """Move ``root``'s bond from atom ``old`` to atom ``new``, keeping a stereocentre at ``root`` as it was:
+    RDKit reads a chiral tag against the order of the atom's bonds, and the new bond comes last."""
+    before = [b.GetOtherAtomIdx(root) for b in rw.GetAtomWithIdx(root).GetBonds()]
+    rw.RemoveBond(old, root)
+    rw.AddBond(new, root, bond)
+    a = rw.GetAtomWithIdx(root)
+    if a.GetChiralTag() not in (Chem.ChiralType.CHI_TETRAHEDRAL_CW, Chem.ChiralType.CHI_TETRAHEDRAL_CCW):
+        return
+    want = [new if i == old else i for i in before]
+    now = [b.GetOtherAtomIdx(root) for b in a.GetBonds()]
+    if sorted(want) != sorted(now):
+        return
+    perm = [now.index(i) for i in want]
+    swaps = sum(1 for i in range(len(perm)) for j in range(i + 1, len(perm)) if perm[i] > perm[j])
+    if swaps % 2:
+        a.InvertChirality()
+
+
 def _reattach(mol: Chem.Mol, moves: list[tuple[int, int, int]], keep_h_off: bool = False) -> Chem.Mol | None:
     """Move substituent roots: each (old ring atom, root, new ring atom).  A ring N that loses its
     substituent takes an H ([nH]) unless ``keep_h_off`` (an azole N1 → N2 move: it becomes pyridine-like)."""
     rw = Chem.RWMol(mol)
     for old, root, new in moves:
-        rw.RemoveBond(old, root)
-    for old, root, new in moves:
-        rw.AddBond(new, root, Chem.BondType.SINGLE)
+        _rebond(rw, root, old, new)
     touched = {old for old, _, _ in moves} | {new for _, _, new in moves}
     for i in touched:
         a = rw.GetAtomWithIdx(i)
@@ -453,8 +470,7 @@ def _move_between_n_and_o(mol: Chem.Mol, c, o, n, x, to_oxygen: bool, aromatic_c
     single, double = Chem.BondType.SINGLE, Chem.BondType.DOUBLE
     frm, to = (n, o) if to_oxygen else (o, n)
     rw = Chem.RWMol(mol)
-    rw.RemoveBond(frm.GetIdx(), x.GetIdx())
-    rw.AddBond(to.GetIdx(), x.GetIdx(), single)
+    _rebond(rw, x.GetIdx(), frm.GetIdx(), to.GetIdx())
     rw.GetBondBetweenAtoms(c.GetIdx(), o.GetIdx()).SetBondType(single if to_oxygen else double)
     if not aromatic_cn:
         rw.GetBondBetweenAtoms(c.GetIdx(), n.GetIdx()).SetBondType(double if to_oxygen else single)
@@ -499,8 +515,7 @@ def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 if t == h.GetIdx() or t in group:
                     continue
                 rw = Chem.RWMol(mol)
-                rw.RemoveBond(h.GetIdx(), c.GetIdx())
-                rw.AddBond(t, c.GetIdx(), Chem.BondType.SINGLE)
+                _rebond(rw, c.GetIdx(), h.GetIdx(), t)
                 for i in (h.GetIdx(), t):
                     a = rw.GetAtomWithIdx(i)
                     a.SetNoImplicit(False)
