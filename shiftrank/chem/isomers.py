@@ -31,7 +31,6 @@ as in every assignment table and JSON output.
 from __future__ import annotations
 
 import re
-
 from dataclasses import dataclass
 from functools import lru_cache
 
