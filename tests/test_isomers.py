@@ -278,3 +278,12 @@ def test_moved_groups_keep_their_stereocentres():
     # N- to O-alkylation of a 2-pyridone by a chiral 1-phenylethyl group: the same spatial arrangement
     (alt,) = [a for a in isomers("O=C1C=CC=CN1[C@@H](C)c1ccccc1") if a.kind == "ambident"]
     assert alt.smiles == canon("C[C@H](Oc1ccccn1)c1ccccc1")
+
+
+def test_c_against_o_alkylation_moves_the_alkyl_group_not_a_ring_carbon():
+    # 2-acetyl-2-methylcyclopentan-1-one: the methyl put on C2 could have gone to either carbonyl O (two enol
+    # ethers, hand count; common practice); the ring's own CH2 is no alkylating agent (no ring-expanded ethers)
+    alts = isomers("CC(=O)C1(C)CCCC1=O", kinds=("ambident",))
+    def canon(s):
+        return Chem.MolToSmiles(Chem.MolFromSmiles(s))
+    assert {a.smiles for a in alts} == {canon("COC(C)=C1CCCC1=O"), canon("COC1=C(C(C)=O)CCC1")}

@@ -404,9 +404,10 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
 
 # C- against O-alkylation of 1,3-dicarbonyls, on the Kekulé form: (reaction SMARTS, relation)
 _DICARBONYL = [
-    ("[C;!$(C=*):1](-[CX4:6])(-[C:2]=[O:3])-[C:4]=[O:5]>>[C:1](=[C:2]-[O:3]-[C:6])-[C:4]=[O:5]",
+    # (the alkyl group's bond is a chain bond: a ring carbon is not an alkylating agent's carbon)
+    ("[C;!$(C=*):1](!@[CX4:6])(-[C:2]=[O:3])-[C:4]=[O:5]>>[C:1](=[C:2]-[O:3]-[C:6])-[C:4]=[O:5]",
      "O-alkyl enol ether instead of C-alkyl (1,3-dicarbonyl)"),
-    ("[C:1](=[C:2]-[O:3]-[CX4:6])-[C:4]=[O:5]>>[C:1](-[C:6])(-[C:2]=[O:3])-[C:4]=[O:5]",
+    ("[C:1](=[C:2]-[O:3]!@[CX4:6])-[C:4]=[O:5]>>[C:1](-[C:6])(-[C:2]=[O:3])-[C:4]=[O:5]",
      "C-alkyl instead of O-alkyl enol ether (1,3-dicarbonyl)"),
 ]
 _DICARBONYL_RXNS = None
