@@ -287,3 +287,16 @@ def test_c_against_o_alkylation_moves_the_alkyl_group_not_a_ring_carbon():
     def canon(s):
         return Chem.MolToSmiles(Chem.MolFromSmiles(s))
     assert {a.smiles for a in alts} == {canon("COC(C)=C1CCCC1=O"), canon("COC1=C(C(C)=O)CCC1")}
+
+
+def test_generated_alternatives_carry_their_relation_in_json():
+    # a script reading batch output tells the given structure from the alternatives added by with_isomers
+    from shiftrank.score.ranking import rank
+
+    peaks = [{"shift": s} for s in (166.6, 143.4, 129.5, 129.0, 127.8, 60.7, 21.6, 14.3)]   # as in test_batch_cli
+    d = rank(peaks, ["CCOC(=O)c1ccc(C)cc1"], with_isomers=True).to_dict()
+    given = [c for c in d["ranking"] if c["smiles"] == "CCOC(=O)c1ccc(C)cc1"]
+    added = [c for c in d["ranking"] if c["smiles"] != "CCOC(=O)c1ccc(C)cc1"]
+    assert len(given) == 1 and "relation" not in given[0] and "generated" not in given[0]
+    assert len(added) == 2 and all(c["generated"] is True and c["relation"] == c["name"]
+                                   and c["relation"].startswith(("CH3 moved", "CO2C2H5 moved")) for c in added)

@@ -73,6 +73,7 @@ class CandidateResult:
     formula_ok: bool | None = None
     #: with two or more spectra: the probability each spectrum alone gives (its own temperature, no priors)
     by_spectrum: dict = field(default_factory=dict)
+    generated: bool = False            # an alternative added by ``with_isomers``; ``name`` is its relation
 
     @property
     def main(self) -> NucleusResult | None:
@@ -108,6 +109,8 @@ class CandidateResult:
         d = {"smiles": self.smiles, "score": _r(self.score, 4), "probability": _r(self.probability, 6)}
         if self.name:
             d["name"] = self.name
+        if self.generated:
+            d["relation"], d["generated"] = self.name, True
         if self.error:
             d["error"] = self.error
             return d
@@ -269,6 +272,7 @@ class _Prepared:
     parts: dict = field(default_factory=dict)   # nucleus -> MolParts
     error: str | None = None
     preds: dict = field(default_factory=dict)   # nucleus -> (shifts, sigmas) of the centres
+    generated: bool = False
 
 
 @lru_cache(maxsize=16384)
@@ -340,17 +344,18 @@ def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts 
 
 
 def _prepare(cand, position: int, solvent: str | None, nuclei) -> _Prepared:
-    name = None
+    name, generated = None, False
     if isinstance(cand, tuple):
         name, cand, *rest = cand
         if rest and rest[0]:
             return _Prepared(str(cand), position, name, error=str(rest[0]))
+        generated = len(rest) > 1 and rest[1] == GENERATED
     if isinstance(cand, Chem.Mol):
         cand = Chem.MolToSmiles(Chem.RemoveHs(cand))
     if not isinstance(cand, str):
         return _Prepared(str(cand), position, name, error=f"candidate {position + 1}: expected a SMILES string, "
                                                             f"got {type(cand).__name__}")
-    prep = _Prepared(cand, position, name)
+    prep = _Prepared(cand, position, name, generated=generated)
     mol, _, err = _parse(cand)
     if err:
         prep.error = err
@@ -366,7 +371,7 @@ def _prepare(cand, position: int, solvent: str | None, nuclei) -> _Prepared:
 
 
 def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: RankingSettings) -> CandidateResult:
-    res = CandidateResult(prep.smiles, prep.position, prep.name)
+    res = CandidateResult(prep.smiles, prep.position, prep.name, generated=prep.generated)
     if prep.error:
         res.error = prep.error
         return res
@@ -750,6 +755,10 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     return result
 
 
+#: marks a candidate tuple ``(relation, SMILES, None, GENERATED)`` as an alternative :func:`expand_with_isomers` added
+GENERATED = "generated"
+
+
 def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list, list[str]]:
     """The candidates followed by the alternatives :func:`shiftrank.chem.isomers.isomers` generates for
     each of them (named by their relation), without duplicates; notes on what was added.  An alternative
@@ -798,7 +807,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
             if twin is not None and twin != smi:   # a tautomer of another given candidate
                 relation = f"candidate {twin} drawn as another NH/OH tautomer (the same compound)"
             same += bool(alt.same_compound_as or (twin is not None and twin != smi))
-            out.append((f"{relation} (from {smi})" if len(cands) > 1 else relation, alt.smiles))
+            out.append((f"{relation} (from {smi})" if len(cands) > 1 else relation, alt.smiles, None, GENERATED))
             added += 1
         notes.append(f"{added} generated alternatives of {smi} added ({kinds})"
                      + (f", {same} of them a candidate or an alternative drawn as another NH/OH tautomer (the same "
@@ -949,7 +958,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
                 r = _score_candidate(p, p.preds, peaks, case_settings)
                 _history_checks(r, fcounts, mass, mass_tolerance, charge, ions)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
-                r = CandidateResult(p.smiles, p.position, p.name, error=f"could not be scored ({type(exc).__name__}: {exc})")
+                r = CandidateResult(p.smiles, p.position, p.name, generated=p.generated, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
         _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
