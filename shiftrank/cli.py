@@ -397,7 +397,7 @@ def cmd_report(args) -> int:
     from .score.ranking import case_peaklists
 
     if args.batch:
-        from .score.batch import read_cases
+        from .score.batch import error_line, read_cases
         from .score.ranking import rank_many
 
         items = read_cases(args.batch)
@@ -406,10 +406,9 @@ def cmd_report(args) -> int:
         ranked, failed = [], []
         for n, c in items:
             r = next(results_all) if isinstance(c, dict) else c
-            if isinstance(r, Exception):
-                cid = c.get("id") if isinstance(c, dict) else getattr(c, "case_id", None)
-                msg = str(r)
-                failed.append((cid if cid is not None else f"line {n}", msg if msg.startswith("line ") else f"line {n}: {msg}"))
+            if isinstance(r, Exception):   # the error as batch writes it
+                line = error_line(n, c, r)
+                failed.append((line["id"] if line["id"] is not None else f"line {n}", line["error"]))
             else:
                 ranked.append((c, r))
         if not ranked:

@@ -105,6 +105,13 @@ def _error_line(case, exc: Exception, where: str) -> dict:
     return {"id": cid, "error": msg, "ranking": ranking}
 
 
+def error_line(n: int, c, exc: Exception) -> dict:
+    """The output line of the case read from line ``n`` that could not be ranked: ``c`` is the case dict, or
+    the error met while reading it (which carries the case's id and candidates when they were read)."""
+    case = c if isinstance(c, dict) else {"id": getattr(c, "case_id", None), "candidates": getattr(c, "candidates", None)}
+    return _error_line(case, exc, f"line {n}")
+
+
 def rank_chunk(items, detail: bool = False) -> list[str]:
     """JSON output lines of a chunk of (line number, case or error) items, in order.  Never raises: a
     case that fails unexpectedly becomes an error line of its own (the others keep their results)."""
@@ -127,12 +134,8 @@ def _rank_chunk(items, detail: bool) -> list[str]:
     results = iter(rank_many(cases))
     out = []
     for n, c in items:
-        if not isinstance(c, dict):
-            out.append(json.dumps(_error_line({"id": getattr(c, "case_id", None), "candidates": getattr(c, "candidates", None)},
-                                              c, f"line {n}")))
-            continue
-        r = next(results)
-        out.append(json.dumps(_error_line(c, r, f"line {n}") if isinstance(r, Exception) else r.to_dict(detail)))
+        r = next(results) if isinstance(c, dict) else c
+        out.append(json.dumps(error_line(n, c, r) if isinstance(r, Exception) else r.to_dict(detail)))
     return out
 
 
