@@ -232,17 +232,12 @@ def _read_candidates(tokens: list[str]) -> list:
 
 def _read_text_arg(spec: str) -> tuple[str, str]:
     """Printed characterisation text from a file, or from standard input for '-': (text, source name)."""
+    from .inputs.files import read_stdin_text, read_user_text
     if spec == "-":
-        return sys.stdin.read(), "stdin"
-    p = Path(spec)
-    if not p.exists():
+        return read_stdin_text(), "stdin"
+    if not Path(spec).exists():
         raise InputError(f"{spec}: no such file (give a file of printed NMR text, or - for standard input)")
-    if p.is_dir():
-        raise InputError(f"{spec}: is a directory, expected a text file")
-    try:
-        return p.read_text(encoding="utf-8", errors="replace"), p.name
-    except OSError as exc:
-        raise InputError(f"{spec}: cannot read ({exc.strerror or exc})") from None
+    return read_user_text(spec, "a text file"), Path(spec).name
 
 
 def _case_from_args(args) -> tuple[dict, dict]:

@@ -6,7 +6,6 @@ stops a batch.
 """
 from __future__ import annotations
 
-import gzip
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterator
@@ -14,6 +13,7 @@ from typing import Iterator
 from rdkit import Chem, RDLogger
 
 from ..errors import InputError
+from .files import read_user_text
 
 RDLogger.DisableLog("rdApp.*")
 
@@ -107,11 +107,7 @@ def read_molecules(path: str | Path) -> list[MolRecord]:
     if p.is_dir():
         raise InputError(f"{p}: is a directory, expected a structure file")
     name = p.name.lower()
-    try:
-        raw = gzip.open(p, "rb").read() if name.endswith(".gz") else p.read_bytes()
-        text = raw.decode("utf-8", errors="replace")
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    text = read_user_text(p, "a structure file")
     if not text.strip():
         raise InputError(f"{p}: file is empty")
     stem = name[:-3] if name.endswith(".gz") else name

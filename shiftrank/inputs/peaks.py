@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import InputError
+from .files import read_user_text
 from .solvents import SOLVENTS, match_solvent, normalise_solvent
 
 RANGES = {"13C": (-20.0, 250.0), "1H": (-2.0, 16.0)}
@@ -469,13 +470,7 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
 
 def _read_file(path: str | Path) -> tuple[Path, str]:
     """The path and text of a user's file, or a clear error naming it."""
-    p = Path(path)
-    if not p.exists():
-        raise InputError(f"{p}: no such file")
-    try:
-        return p, p.read_text(encoding="utf-8", errors="replace")
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    return Path(path), read_user_text(path, "a peak list")
 
 
 def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:

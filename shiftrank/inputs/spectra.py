@@ -34,6 +34,7 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import InputError
+from .files import read_user_text
 from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, normalise_1h_multiplicity
 from .solvents import normalise_solvent, solvent_signals
 
@@ -120,7 +121,7 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         raise InputError(f"{p}: no such file")
     if p.stat().st_size > MAX_BYTES:
         raise InputError(f"{p.name}: {p.stat().st_size:,} bytes; JCAMP-DX files above {MAX_BYTES:,} bytes are not read")
-    text = p.read_text(encoding="latin-1")
+    text = read_user_text(p, "a JCAMP-DX file", fallback="latin-1")
     where = p.name
     if not re.search(r"^\s*##JCAMP-?DX\s*=", text, re.I | re.M):
         raise InputError(f"{where}: not a JCAMP-DX file (no '##JCAMP-DX=' line)")

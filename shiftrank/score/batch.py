@@ -11,13 +11,13 @@ last with an ``"error"``).  A line that cannot be read becomes an output line wi
 """
 from __future__ import annotations
 
-import gzip
 import json
 import sys
 from pathlib import Path
 from typing import Iterator
 
 from ..errors import InputError
+from ..inputs.files import read_user_text
 from .ranking import rank_many
 
 CHUNK = 64
@@ -31,12 +31,7 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
     p = Path(path)
     if not p.exists():
         raise InputError(f"{p}: no such file")
-    opener = gzip.open if p.name.endswith(".gz") else open
-    try:
-        with opener(p, "rt", encoding="utf-8", errors="replace") as f:
-            lines = f.readlines()
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc})") from None
+    lines = read_user_text(p, "a JSONL file of cases").splitlines()
     out = []
     for n, line in enumerate(lines, 1):
         if not line.strip():
