@@ -140,5 +140,15 @@ def test_a_peak_file_holding_a_printed_paragraph_is_read_as_text(tmp_path):
                  "3.93 (s, 2H), 3.70 (s, 3H), 3.22 (s, 3H)\n")
     pl = read_peaks(f, "1H")
     assert [p.intensity for p in pl.peaks] == [3, 3, 2, 1, 2, 1] and "printed characterisation text" in pl.notes[0]
-    with pytest.raises(InputError, match="without a 13C section \\(it has 1H\\); give it with --text"):
+    with pytest.raises(InputError, match="without a 13C section \\(it has 1H\\); give it as printed text \\(--text"):
         read_peaks(f, "13C")
+
+
+def test_a_line_of_shifts_copied_without_its_header_is_one_peak_per_value():
+    # a printed 13C list copied from the values on (common practice in notebooks); two numbers stay
+    # 'shift intensity', and a value outside the nucleus' range keeps the line the old form
+    pl = parse_peaks("166.6, 150.1; 137.6 121.9\n55.6\n", "pasted")
+    assert [p.shift for p in pl.peaks] == [55.6, 121.9, 137.6, 150.1, 166.6]
+    assert [(p.shift, p.intensity) for p in parse_peaks("128.4, 1200").peaks] == [(128.4, 1200.0)]
+    with pytest.raises(InputError, match="line 1: expected 'shift"):
+        parse_peaks("20.1 30.2 40.3 CH")

@@ -186,3 +186,17 @@ def test_a_lactim_drawing_is_flagged_and_the_lactam_fits_its_spectrum():
     # the atom is named in the candidate's own numbering, also when standardisation set a counterion aside
     salt = rank([{"shift": v} for v in (165.6, 141.1, 135.0, 120.3, 106.4)], ["[Na+].[Cl-].Oc1ccccn1"]).best
     assert any("hydroxy tautomer (atom 2)" in f for f in salt.flags)
+
+
+def test_peaks_given_as_numpy_array_or_text_rank_as_the_list_does():
+    import numpy as np
+    shifts = [s for s, _ in PARA_PEAKS]
+    ref = rank(shifts, [META, PARA])
+    for given in (np.array(shifts), np.array(shifts, dtype=np.float32), ", ".join(map(str, shifts))):
+        r = rank(given, [META, PARA])
+        assert r.best.smiles == PARA and r.best.probability == pytest.approx(ref.best.probability, abs=1e-4)
+    # a printed paragraph is read as printed text, with the costs fitted on printed lists
+    r = rank("13C NMR (101 MHz, CDCl3) δ " + ", ".join(map(str, shifts)) + ".", [META, PARA])
+    assert r.best.smiles == PARA and "read as printed characterisation text" in r.notes[0]
+    with pytest.raises(InputError, match="got one string"):
+        rank(shifts, PARA)

@@ -234,6 +234,19 @@ def _plain_1h_tokens(tokens: list[str], counted: list[str]) -> list[str]:
     return out
 
 
+def _bare_shifts(tokens: list[str], nucleus: str) -> list[str] | None:
+    """The fields of a line that is only a run of three or more shifts (``166.6, 150.1, 137.6``, as copied
+    from a printed list without its header), else None; two numbers stay 'shift intensity'."""
+    if len(tokens) < 3:
+        return None
+    lo, hi = RANGES[nucleus]
+    try:
+        values = [float(t) for t in tokens]
+    except ValueError:
+        return None
+    return tokens if all(lo <= v <= hi and math.isfinite(v) for v in values) else None
+
+
 def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
     """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H)."""
     out = []
@@ -241,6 +254,10 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
         where = f"{src} line {lineno}"
         if not toks:
             raise InputError(f"{where}: no shift value in '{line}'")
+        shifts = _bare_shifts(toks, nucleus)
+        if shifts:       # '166.6, 150.1, 137.6, …' pasted on one line: one peak per value
+            out.extend(_make_peak(v, None, None, f"{where} value {i}", nucleus, lineno) for i, v in enumerate(shifts, 1))
+            continue
         shift, rest = toks[0], toks[1:]
         rng = None
         if nucleus == "1H":
@@ -481,11 +498,21 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     if is_jcamp(path):
         return read_jcamp(path, nucleus, solvent)
     p, text = _read_file(path)
-    ext = p.suffix.lower()
-    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(ext)
+    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
+    return peak_text(text, p.name, nucleus, fmt, solvent)
+
+
+def peak_text(text: str, source: str = "input", nucleus: str = "13C", fmt: str | None = None,
+              solvent: str | None = None) -> PeakList:
+    """A peak list given as text, whatever its form: a list (see :func:`parse_peaks`) or, when ``fmt`` is
+    not given and the text starts like one, a printed characterisation paragraph (its ``nucleus`` section).
+
+    >>> [p.shift for p in peak_text("13C NMR (101 MHz, CDCl3) δ 170.1, 21.3.").peaks]
+    [21.3, 170.1]
+    """
     if fmt is None and _PRINTED.search(text[:2000]):
-        return _printed_peaks(text, p.name, nucleus, solvent)
-    return parse_peaks(text, p.name, nucleus, fmt, solvent)
+        return _printed_peaks(text, source, nucleus, solvent)
+    return parse_peaks(text, source, nucleus, fmt, solvent)
 
 
 #: the header of a printed characterisation paragraph ('13C NMR (101 MHz, CDCl3) δ …', '1H-NMR', 'δC (100 MHz')
@@ -502,7 +529,7 @@ def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None) -> P
     if pl is None:
         found = sorted({s.nucleus for s in parsed.sections if s.peaks})
         raise InputError(f"{name}: printed NMR text without a {nucleus} section"
-                         + (f" (it has {', '.join(found)})" if found else "") + "; give it with --text instead")
+                         + (f" (it has {', '.join(found)})" if found else "") + "; give it as printed text (--text, or text= in Python)")
     pl.notes.insert(0, f"{name}: read as printed characterisation text (its {nucleus} section)")
     return pl
 

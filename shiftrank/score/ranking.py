@@ -31,7 +31,8 @@ from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
-from ..inputs.peaks import Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates, peaks_from_records
+from ..inputs.peaks import (Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
+                            peak_text, peaks_from_records)
 from ..inputs.solvents import normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
@@ -240,15 +241,22 @@ def _settings_from(man: dict, r: dict) -> RankingSettings:
 
 
 def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> PeakList:
-    """Normalise the accepted peak inputs (PeakList, list of Peak, numbers or dicts) and flag solvent."""
+    """Normalise the accepted peak inputs (PeakList, list of Peak, numbers or dicts, a NumPy array, or text as
+    :func:`~shiftrank.inputs.peaks.peak_text` reads it) and flag solvent."""
+    what = "peaks" if nucleus == "13C" else "peaks_1h"
+    if hasattr(peaks, "tolist") and not isinstance(peaks, (list, tuple, str)):
+        peaks = peaks.tolist()                # a NumPy array of shifts
     if isinstance(peaks, PeakList):
         pl = peaks
+    elif isinstance(peaks, str):
+        # a peak list as typed or pasted (one peak per line, comma-separated values, or a printed paragraph)
+        pl = peak_text(peaks, what, nucleus)
     else:
         if peaks is None or not isinstance(peaks, (list, tuple)) or len(peaks) == 0:
-            raise InputError(f"{'peaks' if nucleus == '13C' else 'peaks_1h'}: the peak list is empty or not a list")
+            raise InputError(f"{what}: the peak list is empty or not a list")
         notes: list[str] = []
         items = list(peaks) if all(isinstance(p, Peak) for p in peaks) else \
-            peaks_from_records(list(peaks), "peaks" if nucleus == "13C" else "peaks_1h", nucleus, notes)
+            peaks_from_records(list(peaks), what, nucleus, notes)
         if nucleus == "13C":
             items = merge_duplicates(items, notes, nucleus)
         else:
@@ -724,9 +732,10 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          rotamers: bool = False) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
-    ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects or lists of
-    shifts or of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"`` and
-    ``"range": [low, high]``); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
+    ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects, lists (or NumPy
+    arrays) of shifts, lists of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"``
+    and ``"range": [low, high]``), or a peak list as text (``"166.6, 150.1, 137.6"``, one peak per line, or a
+    printed paragraph, whose section of that nucleus is read); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
     ``[δC, δH]`` cross peaks.  Any one is enough.
     ``formula``, ``mass`` (neutral, Da) and ``mz`` (a measured m/z, or ``{"found": …, "adduct": "M+H"}``)
     are sample history, as is a mass statement printed in ``text`` (``HRMS (ESI) m/z [M+H]+ calcd for …,
@@ -819,7 +828,9 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
 
 def _stage(case: dict, nuclei_models) -> tuple:
     cands = case.get("candidates")
-    if isinstance(cands, (str, bytes)) or not isinstance(cands, (list, tuple)):
+    if isinstance(cands, (str, bytes)):
+        raise InputError("candidates: expected a list of SMILES strings, got one string (give [\"SMILES\"] for one candidate)")
+    if not isinstance(cands, (list, tuple)):
         raise InputError("candidates: expected a list of SMILES strings")
     cands = list(cands)
     if not cands:
