@@ -3,6 +3,7 @@ import json
 import subprocess
 import sys
 
+import pytest
 from rdkit import Chem
 
 PARA = "CCOC(=O)c1ccc(C)cc1"
@@ -127,3 +128,27 @@ def test_batch_malformed_fields_never_crash(tmp_path):
     assert out[3]["ranking"][0]["smiles"] == PARA
     assert [x["smiles"] for x in out[3]["ranking"][1:]] == ["[Na+].[Cl-]", ""]
     assert all("error" in x for x in out[3]["ranking"][1:])
+
+
+@pytest.mark.parametrize("v3000,crlf", [(False, False), (False, True), (True, False)])
+def test_predict_sdf_records_without_titles_each_read(tmp_path, v3000, crlf):
+    # an SDF record's first line is its title and may be blank (RDKit's SDWriter writes a blank one for an
+    # unnamed molecule; CTfile formats, BIOVIA 2020, from memory): the records after it must still be read
+    smiles = ["OC(=O)c1ccc(Cl)cc1", "CC(=O)Nc1ccccc1", "N#Cc1ccncc1"]
+    sdf = tmp_path / "m.sdf"
+    w = Chem.SDWriter(str(sdf))
+    w.SetForceV3000(v3000)
+    for i, s in enumerate(smiles):
+        m = Chem.MolFromSmiles(s)
+        if i == 1:
+            m.SetProp("_Name", "anilide")
+        w.write(m)
+    w.close()
+    if crlf:
+        sdf.write_bytes(sdf.read_bytes().replace(b"\n", b"\r\n"))
+    r = run("predict", str(sdf), "--jsonl")
+    assert r.returncode == 0, r.stderr
+    out = [json.loads(x) for x in r.stdout.splitlines()]
+    assert [o.get("error") for o in out] == [None] * 3
+    assert [o["id"] for o in out] == ["record 1", "anilide", "record 3"]
+    assert [len(o["shifts"]) for o in out] == [7, 8, 6]

@@ -78,18 +78,29 @@ def _smiles_lines(path: Path, text: str) -> Iterator[MolRecord]:
         yield MolRecord(rid, mol, smi)
 
 
+def _sdf_blocks(text: str) -> Iterator[tuple[int, str]]:
+    """(first line number, molblock) of each record: the lines up to a line that starts with '$$$$'.  A
+    record's first line is its title and may be empty, so nothing before it is stripped."""
+    lines: list[str] = []
+    start = 1
+    for lineno, line in enumerate(text.splitlines(), 1):
+        if line.startswith("$$$$"):
+            yield start, "\n".join(lines) + "\n"
+            lines, start = [], lineno + 1
+        else:
+            lines.append(line)
+    if any(ln.strip() for ln in lines):
+        yield start, "\n".join(lines) + "\n"
+
+
 def _sdf_records(path: Path, text: str) -> Iterator[MolRecord]:
-    blocks = text.split("$$$$")
-    if blocks and not blocks[-1].strip():
-        blocks = blocks[:-1]
-    for i, block in enumerate(blocks):
-        block = block.lstrip("\r\n") if i else block
+    for i, (lineno, block) in enumerate(_sdf_blocks(text)):
         title = block.splitlines()[0].strip() if block.strip() else ""
         rid = title or f"record {i + 1}"
         mol = Chem.MolFromMolBlock(block, sanitize=True, removeHs=True)
         if mol is None:
             yield MolRecord(rid, None, f"{path.name}:{i + 1}",
-                            f"{path.name} record {i + 1} ('{rid}'): RDKit cannot read this molblock")
+                            f"{path.name} record {i + 1} (line {lineno}, '{rid}'): RDKit cannot read this molblock")
             continue
         yield MolRecord(rid, mol, f"{path.name}:{i + 1}")
 
