@@ -37,7 +37,7 @@ def _print_facts(f, out=None) -> None:
         print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}{twin}", file=out)
 
 
-_STRUCTURE_FILES = (".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz", ".sd", ".ism", ".can")
+_STRUCTURE_FILES = (".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz", ".sd", ".ism", ".can", ".csv", ".tsv")
 
 
 def _structure_token(token: str) -> str:
@@ -540,7 +540,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_peaks)
 
     s = sub.add_parser("predict", help="predict 13C and/or 1H shifts for the structures in a file (SDF, mol, SMILES)")
-    s.add_argument("file", help=".sdf, .mol, .smi or .txt (one SMILES per line, optional id after whitespace)")
+    s.add_argument("file", help=".sdf, .mol, .smi, .txt or .csv (one SMILES per line, optional id after whitespace, tab or comma; a header line naming a SMILES column is read)")
     s.add_argument("--jsonl", action="store_true", help="one JSON object per record, atoms keyed by atom index")
     s.add_argument("--nucleus", choices=["13C", "1H", "both"], default="13C",
                    help="13C (each carbon), 1H (mean shift of the protons on each heavy atom) or both")

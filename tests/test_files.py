@@ -71,3 +71,18 @@ def test_batch_file_saved_with_a_mark_and_crlf_ranks_its_first_case(tmp_path):
     lines = [json.loads(x) for x in r.stdout.splitlines()]
     assert [x["id"] for x in lines] == ["first", "second"]
     assert all(x["ranking"][0]["smiles"] == PARA for x in lines)
+
+
+@pytest.mark.parametrize("name,body", [
+    ("hdr.smi", "SMILES\tName\nOc1ccc(Cl)cc1Cl\t2,4-dichlorophenol\nc1ccncc1\tpyridine\n"),
+    ("t.csv", 'name,smiles\n"2,4-dichlorophenol",Oc1ccc(Cl)cc1Cl\npyridine,c1ccncc1\n'),
+    ("plain.smi", "Oc1ccc(Cl)cc1Cl 2,4-dichlorophenol\nc1ccncc1;pyridine\n"),
+])
+def test_smiles_tables_as_spreadsheets_and_scripts_write_them(tmp_path, name, body):
+    # a header naming the columns is no record; SMILES holds no tab, comma or semicolon (Weininger 1988,
+    # the SMILES alphabet), so one of them inside the first field separates the id
+    f = tmp_path / name
+    f.write_text(body)
+    recs = read_molecules(f)
+    assert [(r.id, r.source, r.error) for r in recs] == [("2,4-dichlorophenol", "Oc1ccc(Cl)cc1Cl", None),
+                                                          ("pyridine", "c1ccncc1", None)]

@@ -6,6 +6,7 @@ stops a batch.
 """
 from __future__ import annotations
 
+import csv
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterator
@@ -62,14 +63,51 @@ def check_organic(mol: Chem.Mol, label: str) -> None:
         raise InputError(f"{label}: has no carbon atom")
 
 
+#: first-line cells that name a SMILES column (a table exported from a spreadsheet or a script)
+_SMILES_HEADS = {"smiles", "smi", "smiles_string", "canonical_smiles", "isomeric_smiles", "structure"}
+_ID_HEADS = ("id", "name", "title", "compound", "compound_id", "mol_id", "label", "identifier")
+
+
+def _cells(line: str, delim: str | None) -> list[str]:
+    """A row's cells: by ``delim`` (quotes honoured) or, for None, the first whitespace run only (an id
+    after a SMILES may hold spaces and commas: 'Oc1ccc(Cl)cc1Cl 2,4-dichlorophenol')."""
+    if delim is None:
+        return line.split(None, 1)
+    return [c.strip() for c in next(csv.reader([line], delimiter=delim))]
+
+
+def _row_delimiter(line: str) -> str | None:
+    """Tab, comma or semicolon when the line uses one between its cells; SMILES has none of the three, so
+    one inside the first whitespace-separated field is a delimiter."""
+    first = line.split(None, 1)[0]
+    if "\t" in line:
+        return "\t"
+    return next((d for d in (",", ";") if d in first), None)
+
+
 def _smiles_lines(path: Path, text: str) -> Iterator[MolRecord]:
-    for lineno, line in enumerate(text.splitlines(), 1):
-        line = line.strip()
-        if not line or line.startswith("#"):
+    """One SMILES per line with an optional id after it (whitespace, tab, comma or semicolon between); a
+    first line naming the columns ('SMILES<TAB>Name', 'id,smiles') is a header, read for the columns."""
+    rows = [(n, ln.strip()) for n, ln in enumerate(text.splitlines(), 1)
+            if ln.strip() and not ln.strip().startswith("#")]
+    smi_col, id_col, delim = 0, 1, None
+    if rows:
+        head_delim = _row_delimiter(rows[0][1])
+        head = [c.lower().strip('"') for c in (_cells(rows[0][1], head_delim) if head_delim else rows[0][1].split())]
+        if any(c in _SMILES_HEADS for c in head):
+            smi_col = next(i for i, c in enumerate(head) if c in _SMILES_HEADS)
+            id_col = next((i for i, c in enumerate(head) if c in _ID_HEADS),
+                          1 - smi_col if len(head) == 2 else None)
+            delim = head_delim
+            rows = rows[1:]
+    for lineno, line in rows:
+        d = delim if delim is not None else _row_delimiter(line)
+        cells = _cells(line, d) if d is not None or (smi_col, id_col) == (0, 1) else line.split()
+        smi = cells[smi_col] if smi_col < len(cells) else ""
+        rid = cells[id_col].strip() if id_col is not None and id_col < len(cells) and cells[id_col].strip() else smi
+        if not smi:
+            yield MolRecord(rid or f"line {lineno}", None, smi, f"{path.name} line {lineno}: no SMILES in column {smi_col + 1}")
             continue
-        parts = line.split(None, 1)
-        smi = parts[0]
-        rid = parts[1].strip() if len(parts) > 1 else smi
         try:
             mol = to_mol(smi)
         except InputError as exc:
@@ -106,9 +144,10 @@ def _sdf_records(path: Path, text: str) -> Iterator[MolRecord]:
 
 
 def read_molecules(path: str | Path) -> list[MolRecord]:
-    """Read an SDF (.sdf, .sdf.gz), a molfile (.mol) or a SMILES file (.smi, .txt, .smiles).
+    """Read an SDF (.sdf, .sdf.gz), a molfile (.mol) or a SMILES file (.smi, .txt, .smiles, .csv, .tsv).
 
-    SMILES files hold one SMILES per line with an optional id after whitespace.
+    SMILES files hold one SMILES per line with an optional id after whitespace (or a tab, comma or
+    semicolon); a first line naming the columns (``SMILES<TAB>Name``, ``id,smiles``) is read as a header.
     Raises :class:`InputError` for a missing, empty or unknown file; bad records
     come back with ``error`` set.
     """
@@ -124,10 +163,10 @@ def read_molecules(path: str | Path) -> list[MolRecord]:
     stem = name[:-3] if name.endswith(".gz") else name
     if stem.endswith((".sdf", ".mol", ".sd", ".mdl")):
         records = list(_sdf_records(p, text))
-    elif stem.endswith((".smi", ".smiles", ".txt", ".ism", ".can")):
+    elif stem.endswith((".smi", ".smiles", ".txt", ".ism", ".can", ".csv", ".tsv")):
         records = list(_smiles_lines(p, text))
     else:
-        raise InputError(f"{p}: unknown structure file type; use .sdf, .mol, .smi or .txt")
+        raise InputError(f"{p}: unknown structure file type; use .sdf, .mol, .smi, .txt or .csv")
     if not records:
         raise InputError(f"{p}: no structures found")
     return records
