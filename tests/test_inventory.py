@@ -157,3 +157,13 @@ def test_1h_patterns_of_a_4_fluorophenyl_and_a_lone_azole_singlet():
     # a monosubstituted ring's 2H/2H/1H (d, t, t) still is one (common practice)
     h1 = parse_peaks("7.95 2 d 7.5\n7.55 1 t 7.4\n7.45 2 t 7.6\n2.60 3 s\n", nucleus="1H")
     assert any("monosubstituted" in x for x in take_inventory(None, h1).h_patterns)
+
+
+def test_broad_signals_are_named_exchangeable():
+    # 4-aminobenzamide-like pieces in DMSO-d6 (own choice; shifts from memory): an amide NH2 printed as two
+    # broad 1H singlets near 7.6 and 6.9, an aniline NH2 as a broad 2H singlet near 5.6; broad NH/OH
+    # signals that D2O exchange removes are common practice
+    h1 = parse_peaks("7.62 1 br s\n7.58 2 d 8.6\n6.92 1 br s\n6.52 2 d 8.6\n5.58 2 br s\n", nucleus="1H")
+    lines = [x for x in take_inventory(None, h1).h_patterns if x.startswith("broad")]
+    assert len(lines) == 3 and all("exchangeable" in x and "D2O" in x for x in lines)
+    assert "NH2 (aniline or amide)" in lines[0] and "5.58" in lines[0]

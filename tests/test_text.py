@@ -489,3 +489,13 @@ def test_second_value_of_a_pair_keeps_the_first_ones_details():
     assert sorted(p.shift for p in pairs) == [51.1, 51.7, 160.0, 163.0]
     assert all(p.dept is None and p.sign is None and p.shift_h is None for p in pairs)
     assert {p.note for p in pairs} == {"2CO", "α-CH-Leu"}
+
+
+def test_broad_written_every_way_is_one_broad_multiplicity():
+    # house styles seen in open-access SI paragraphs (the dev paragraphs and common practice): 'br s',
+    # 's, br', 'broad s', 'broad singlet', 'bs', 's (br)', 'br, d'
+    t = ("1H NMR (400 MHz, DMSO-d6) δ 10.2 (s, br, 1H), 9.1 (broad s, 1H), 6.1 (broad singlet, 2H), 5.5 (bs, 1H), "
+         "4.1 (s (br), 1H), 3.3 (br, 1H), 2.9 (br, d, J = 4.8 Hz, 3H), 1.2 (1H, s, broad).")
+    peaks = read_nmr_text(t).sections[0].peaks
+    assert [p.multiplicity for p in peaks] == ["br s", "br s", "br s", "br s", "br s", "br", "br d", "br s"]
+    assert all(p.note == "" for p in peaks)

@@ -439,6 +439,14 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         where = ("OCH3, or NCH3 of an azole" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3
                  else "CH3 on a quaternary carbon")
         inv.h_patterns.append(f"3H singlet at {p.shift:g}: an isolated methyl ({where}; common practice)")
+    for p, n in zip(sample, inv.h_ratio):
+        if (p.multiplicity or "").startswith("br") and n <= 3:
+            what = ("a carboxylic acid OH, or an amide/azole NH" if p.shift >= 10.5 else
+                    "an NH or OH (amide NH, phenol OH)" if p.shift >= 7.5 else
+                    ("an NH2 (aniline or amide)" if n == 2 else "an NH or OH" if n == 1 else "an NH3+ or exchanging OH/NH")
+                    + (" or water exchanging with it" if n <= 2 and 3.0 <= p.shift <= 3.6 else ""))
+            inv.h_patterns.append(f"broad {n}H signal at {p.shift:g}: exchangeable, {what} likely; shaking with D2O would "
+                                  "remove it (common practice)")
 
 
 def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -> None:

@@ -125,6 +125,8 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     ['dd', 't', 'br s', None]
     >>> [normalise_1h_multiplicity(x) for x in ("dd (AB)", "AB system", "overlapping m", "bm", "dm", "br app t")]
     ['dd', 'ABq', 'm', 'br m', 'm', 'br t']
+    >>> [normalise_1h_multiplicity(x) for x in ("broad s", "broad singlet", "br doublet", "broad m")]
+    ['br s', 'br s', 'br d', 'br m']
     """
     if text is None:
         return None
@@ -148,8 +150,12 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     if c.endswith(")") and "(" in c and c.index("(") > 0:  # 'dd (AB)', 'm (ov)': letters, then a remark
         return normalise_1h_multiplicity(c[:c.index("(")])
     for pre in ("broad", "br", "b"):
-        if c.startswith(pre) and len(c) > len(pre) and _COMBO.match(c[len(pre):]):
-            c, br = c[len(pre):], True
+        rest = c[len(pre):]
+        if c.startswith(pre) and rest and _MULT_WORDS.get(rest, "br").split()[0] != "br" and pre != "b":
+            word = _MULT_WORDS[rest]       # 'broad singlet', 'br doublet', 'broad m'
+            return word if word == "ABq" else "br " + word
+        if c.startswith(pre) and rest and _COMBO.match(rest):
+            c, br = rest, True
             break
     if _COMBO.match(c):
         return ("br " if br else "") + c.replace("quint", "p").replace("quin", "p")

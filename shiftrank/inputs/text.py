@@ -413,6 +413,14 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
         if mult is not None and peak.multiplicity is None:
             peak.multiplicity = mult
             continue
+        if mult is not None and nucleus == "1H" and "ABq" not in (mult, peak.multiplicity):
+            # 'broad' printed as a part of its own, after or before the letters: '(s, br, 1H)', '(br, d, 2H)'
+            if mult == "br" and not peak.multiplicity.startswith("br"):
+                peak.multiplicity = "br " + peak.multiplicity
+                continue
+            if peak.multiplicity == "br" and not mult.startswith("br"):
+                peak.multiplicity = "br " + mult
+                continue
         if nucleus == "13C" and compact in _DEPT and peak.dept is None:
             peak.dept = _DEPT[compact]
             continue
