@@ -443,8 +443,9 @@ def cmd_isomers(args) -> int:
     return 0
 
 
-def _one_list(args, which: str):
-    """The sample's or the reference's peak list for ``compare``: a peak file, or printed text (FILE or -)."""
+def _one_list(args, which: str, nucleus: str):
+    """The sample's or the reference's ``nucleus`` peak list for ``compare``: a peak file, or printed text
+    (FILE or -); None when printed text holds no such section."""
     from .inputs.peaks import read_peaks
     from .inputs.text import read_nmr_text
 
@@ -452,38 +453,65 @@ def _one_list(args, which: str):
     if bool(path) == bool(text):
         raise InputError(f"compare: give --{which} FILE or --{which}-text FILE_OR_- (one of them)")
     if path:
-        return read_peaks(path, nucleus=args.nucleus, solvent=args.solvent)
-    body, name = _read_text_arg(text)
-    pl = read_nmr_text(body, name).peaklist(args.nucleus, args.solvent, source=f"{name} ({args.nucleus})")
-    if pl is None:
-        raise InputError(f"compare: {name} prints no {args.nucleus} peaks")
-    return pl
+        return read_peaks(path, nucleus=nucleus, solvent=args.solvent)
+    if which not in args.texts:
+        args.texts[which] = _read_text_arg(text)
+    body, name = args.texts[which]
+    return read_nmr_text(body, name).peaklist(nucleus, args.solvent, source=f"{name} ({nucleus})")
+
+
+def _compare_nuclei(args) -> list[str]:
+    """The nuclei ``compare`` pairs: the one asked for; without --nucleus, each one both sides print when both
+    are printed text (a paragraph usually has 1H and 13C), else 13C."""
+    if args.nucleus:
+        return [args.nucleus]
+    if args.sample_text and args.reference_text and not args.sample and not args.reference:
+        return ["13C", "1H"]
+    return ["13C"]
 
 
 def cmd_compare(args) -> int:
     from .score.reference import CAUTION, compare_spectra
 
-    sample, reference = _one_list(args, "sample"), _one_list(args, "reference")
-    c = compare_spectra(sample, reference, args.tolerance)
-    if args.json:
-        print(json.dumps(c.to_dict()))
-        return 0
-    for pl, who in ((sample, "sample"), (reference, "reference")):
-        for n in pl.notes:
-            print(f"  note ({who}): {n}")
-    print(f"{args.nucleus}: {c.verdict()}")
-    for n in c.notes:
-        print(f"  note: {n}")
-    nd = 2 if args.nucleus == "13C" else 3
-    print(f"  {'reference':>10}  {'sample':>10}  {'diff':>7}  note")
-    rows = [(p.reference, p.sample, p.deviation, p.note) for p in c.pairs] + [(x, None, None, "not found in the sample")
-                                                                              for x in c.missing]
-    for ref, smp, dev, note in sorted(rows, key=lambda r: -r[0]):
-        print(f"  {ref:10.{nd}f}  {'–' if smp is None else f'{smp:.{nd}f}':>10}  "
-              f"{'' if dev is None else f'{round(dev, nd) + 0.0:+.{nd}f}':>7}  {note}")
-    if c.extra:
-        print("  sample lines without a reference line: " + ", ".join(f"{x:.{nd}f}" for x in c.extra))
-    print(f"\nCaution: {CAUTION}")
+    args.texts = {}
+    nuclei = _compare_nuclei(args)
+    done = []
+    for nucleus in nuclei:
+        sample, reference = _one_list(args, "sample", nucleus), _one_list(args, "reference", nucleus)
+        if sample is None or reference is None:
+            if len(nuclei) == 1 or (sample is None) != (reference is None):
+                who = "sample" if sample is None else "reference"
+                if len(nuclei) == 1:
+                    raise InputError(f"compare: {args.texts[who][1]} prints no {nucleus} peaks")
+                print(f"{nucleus}: not compared: the {who} prints no {nucleus} peaks", file=sys.stderr)
+            continue
+        done.append((nucleus, sample, reference, compare_spectra(sample, reference, args.tolerance)))
+    if not done:
+        raise InputError("compare: the sample and the reference print no nucleus in common (13C or 1H)")
+    for nucleus, sample, reference, c in done:
+        if args.json:
+            print(json.dumps(c.to_dict()))
+            continue
+        for pl, who in ((sample, "sample"), (reference, "reference")):
+            for n in pl.notes:
+                print(f"  note ({who}): {n}")
+        print(f"{nucleus}: {c.verdict()}")
+        for n in c.notes:
+            print(f"  note: {n}")
+        nd = 2 if nucleus == "13C" else 3
+        print(f"  {'reference':>10}  {'sample':>10}  {'diff':>7}  note")
+        rows = [(p.reference, p.sample, p.deviation, p.note or ("broad line (NH/OH): wider tolerance"
+                                                               if p.broad and abs(p.deviation) > c.tolerance else ""))
+                for p in c.pairs] + [
+            (x, None, None, "not found in the sample") for x in c.missing]
+        for ref, smp, dev, note in sorted(rows, key=lambda r: -r[0]):
+            print(f"  {ref:10.{nd}f}  {'–' if smp is None else f'{smp:.{nd}f}':>10}  "
+                  f"{'' if dev is None else f'{round(dev, nd) + 0.0:+.{nd}f}':>7}  {note}")
+        if c.extra:
+            print("  sample lines without a reference line: " + ", ".join(f"{x:.{nd}f}" for x in c.extra))
+        print()
+    if not args.json:
+        print(f"Caution: {CAUTION}")
     return 0
 
 
@@ -555,7 +583,8 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--sample-text", metavar="FILE_OR_-", help="or the sample's printed characterisation text")
     s.add_argument("--reference", help="the reference's peak file (an authentic sample, a standard)")
     s.add_argument("--reference-text", metavar="FILE_OR_-", help="or the reference's printed text (e.g. from the literature)")
-    s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
+    s.add_argument("--nucleus", choices=["13C", "1H"],
+                   help="the nucleus to pair (default: 13C for peak files; for two printed texts, each nucleus both print)")
     s.add_argument("--tolerance", type=float, help="largest difference of one signal, ppm (default 13C 0.5, 1H 0.05)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside in both lists")
     s.add_argument("--json", action="store_true", help="the comparison as one JSON object")

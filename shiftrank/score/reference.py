@@ -9,7 +9,7 @@ solvent, and every further sample line is an impurity, a second form or residual
   reported.
 * Lines are paired one to one (Hungarian algorithm, ``scipy.optimize.linear_sum_assignment``) by their
   distance after the offset; a pair further apart than ``tolerance`` (13C 0.5 ppm, 1H 0.05 ppm by default;
-  common practice for spectra taken in one solvent) is no pair.  A 1H pair whose printed or picked
+  common practice for spectra taken in one solvent; a broad 1H line, 0.5 ppm) is no pair.  A 1H pair whose printed or picked
   multiplicities differ, or whose relative integrals differ by more than half, is listed as such.
 * Residual solvent lines of either list take no part.
 
@@ -28,6 +28,19 @@ from ..words import count
 
 #: ppm: largest difference of one signal between two spectra of one compound in one solvent (common practice)
 TOLERANCE = {"13C": 0.5, "1H": 0.05}
+#: ppm: the same for a broad 1H line (NH, OH), whose shift depends on concentration, water and temperature
+#: (common practice)
+BROAD_TOLERANCE = 0.5
+
+
+def _letters(mult: str) -> str:
+    """Multiplet letters without 'br': a broad and a sharp singlet are one pattern; how broad an exchangeable
+    proton's line is depends on the sample's water and acid."""
+    return mult[3:] if mult.startswith("br ") else "s" if mult == "br" else mult
+
+
+def _broad(peak) -> bool:
+    return bool(peak.multiplicity) and peak.multiplicity.startswith("br")
 #: what a comparison with a reference can and cannot say
 CAUTION = ("A match with a reference spectrum supports identity only when both were taken in the same solvent and "
            "conditions; isomers can match closely. Confirm by an orthogonal method where it matters and follow local "
@@ -42,6 +55,7 @@ class LinePair:
     sample: float
     deviation: float                  # sample − reference, after the offset
     note: str = ""                    # 1H: a multiplicity or integral that differs
+    broad: bool = False               # 1H: a broad (exchangeable) line on either side, paired within BROAD_TOLERANCE
 
 
 @dataclass
@@ -60,10 +74,13 @@ class Comparison:
 
     def verdict(self) -> str:
         n_ref = len(self.pairs) + len(self.missing)
-        worst = max((abs(p.deviation) for p in self.pairs), default=0.0)
+        worst = max((abs(p.deviation) for p in self.pairs if not p.broad), default=0.0)
+        moved = max((abs(p.deviation) for p in self.pairs if p.broad and abs(p.deviation) > self.tolerance), default=0.0)
         if self.consistent:
             text = (f"consistent with the reference: all {n_ref} reference {self.nucleus} signals found within "
-                    f"{self.tolerance:g} ppm (largest difference {worst:.2f} ppm)")
+                    f"{self.tolerance:g} ppm (largest difference {worst:.2f} ppm"
+                    + (f"; broad NH/OH lines within {BROAD_TOLERANCE:g} ppm, largest {moved:.2f} ppm" if moved else "")
+                    + ")")
             if self.extra:
                 text += (f"; {count(len(self.extra), 'further sample line')} (an impurity, a second form, solvent, "
                          "or a less symmetric compound?)")
@@ -82,7 +99,8 @@ class Comparison:
         return {"nucleus": self.nucleus, "consistent": self.consistent, "verdict": self.verdict(),
                 "offset": round(self.offset, 4), "tolerance": self.tolerance,
                 "pairs": [{"reference": p.reference, "sample": p.sample, "deviation": round(p.deviation, 4),
-                           **({"note": p.note} if p.note else {})} for p in self.pairs],
+                           **({"note": p.note} if p.note else {}), **({"broad": True} if p.broad else {})}
+                          for p in self.pairs],
                 "missing": self.missing, "extra": self.extra, "notes": self.notes}
 
 
@@ -119,7 +137,15 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
         offset = 0.0
     out.offset = offset
     d = np.abs((s - offset)[None, :] - r[:, None])
-    cost = np.where(d <= tol, d, 1e6)
+    limit = np.full(d.shape, tol)
+    if nuc == "1H" and tolerance is None:
+        # a broad (exchangeable NH/OH) line moves with concentration, water and temperature: a pair with a broad
+        # line on either side (the other list may print the same NH2 as a plain 's') counts within BROAD_TOLERANCE
+        sb = np.array([_broad(p) for p in s_lines])
+        rb = np.array([_broad(p) for p in r_lines])
+        either = rb[:, None] | sb[None, :]
+        limit = np.where(either, BROAD_TOLERANCE, tol)
+    cost = np.where(d <= limit, d, 1e6)
     rows, cols = linear_sum_assignment(cost)
     kept = [(i, j) for i, j in zip(rows, cols) if cost[i, j] < 1e6]
     scale = None
@@ -132,12 +158,13 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
         note = []
         if nuc == "1H":
             ms, mr = s_lines[j].multiplicity, r_lines[i].multiplicity
-            if ms and mr and ms != mr and "m" not in (ms, mr):
+            if ms and mr and _letters(ms) != _letters(mr) and "m" not in (ms, mr):
                 note.append(f"multiplet {ms} against {mr}")
             si, ri = s_lines[j].intensity, r_lines[i].intensity
             if scale and si and ri and not 0.5 <= si / scale / ri <= 1.5:
                 note.append(f"integral {si / scale:.2g} H against {ri:.2g} H")
-        out.pairs.append(LinePair(float(r[i]), float(s[j]), float(s[j] - offset - r[i]), "; ".join(note)))
+        broad = nuc == "1H" and (_broad(s_lines[j]) or _broad(r_lines[i]))
+        out.pairs.append(LinePair(float(r[i]), float(s[j]), float(s[j] - offset - r[i]), "; ".join(note), broad))
     out.pairs.sort(key=lambda p: p.reference)
     paired_r = {i for i, _ in kept}
     paired_s = {j for _, j in kept}
