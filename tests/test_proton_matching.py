@@ -259,3 +259,14 @@ def test_a_lone_candidate_is_judged_by_its_fit_not_by_its_probability_of_one():
     # the para isomer has one ring-proton class too few for the printed 1H + 2H + 1H: a reservation
     para = rank(text=WEINREB_1H, candidates=["CON(C)C(=O)Cc1ccc(Br)cc1"]).verdict
     assert "fit it with reservations (expects 5 1H signals by symmetry, 6 observed" in para
+    # the terminal table and the report show no probability for it; two candidates bring it back
+    import io
+    from shiftrank.outputs.report import render_report
+    from shiftrank.outputs.terminal import print_ranking
+    assert ok.lone and not rank(text=WEINREB_1H, candidates=[WEINREB, "CON(C)C(=O)Cc1ccc(Br)cc1"]).lone
+    buf = io.StringIO()
+    print_ranking(ok, {}, out=buf)
+    row = next(ln for ln in buf.getvalue().splitlines() if ln.strip().startswith("1 "))
+    assert "1.000" not in row and "–" in row
+    html = render_report([ok])
+    assert "one candidate: no probability" in html and "the only candidate" in html and "p = 1.000" not in html

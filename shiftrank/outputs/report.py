@@ -216,7 +216,8 @@ def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_p
     if c.error:
         return f'<div class="card"><b>{title}</b><p class="err">error: {e(c.error)}</p></div>'
     facts = c.facts
-    head = (f"<b>{title}</b><br><span class='note'>p = {c.probability:.3f} · {facts.formula} · DBE {facts.dbe:g}</span>")
+    p = "the only candidate" if result.lone else f"p = {c.probability:.3f}"
+    head = f"<b>{title}</b><br><span class='note'>{p} · {facts.formula} · DBE {facts.dbe:g}</span>"
     flags = "".join(f"<div class='flag'>⚑ {e(f)}</div>" for f in c.flags)
     blocks = "".join(_nucleus_block(result, c, n, rank_no, with_plots) for n in result.nuclei if n in c.nuclei)
     return f"<div class='card'>{head}{flags}{blocks}</div>"
@@ -250,10 +251,11 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
         if c.error:
             rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan={3 + len(result.nuclei) * (2 if alone else 1)} class=err>{e(c.error)}</td></tr>")
             continue
-        maes = "".join((f"<td class=num>{_fmt(c.by_spectrum.get(n), 3)}</td>" if alone else "")
+        maes = "".join((f"<td class=num>{'–' if result.lone else _fmt(c.by_spectrum.get(n), 3)}</td>" if alone else "")
                        + f"<td class=num>{_fmt(c.nuclei[n].mae)}</td>" for n in result.nuclei)
-        rows.append(f"<tr><td>{i}</td><td>{label}</td><td><div class='bar'><span style='width:{100 * c.probability:.1f}%'></span></div> "
-                    f"{c.probability:.3f}</td>{maes}<td class=num>{c.beyond_3sigma}</td>"
+        prob = ("– <span class='note'>(one candidate: no probability)</span>" if result.lone else
+                f"<div class='bar'><span style='width:{100 * c.probability:.1f}%'></span></div> {c.probability:.3f}")
+        rows.append(f"<tr><td>{i}</td><td>{label}</td><td>{prob}</td>{maes}<td class=num>{c.beyond_3sigma}</td>"
                     f"<td>{'✓' if c.formula_ok else ('✗' if c.formula_ok is False else '')}</td></tr>")
     parts.append(f"<table><tr><th>#</th><th>candidate</th><th>probability</th>{nuc_heads}<th>&gt;3σ</th>"
                  "<th>formula</th></tr>" + "".join(rows) + "</table>")
@@ -293,7 +295,7 @@ def render_report(results: list[RankResult], peak_lists=None, histories=None, in
         for k, r in enumerate(results, 1):
             b = r.best
             rows.append(f"<tr><td><a href='#sample-{k}'>{e(str(r.id or k))}</a></td><td><code>{e(b.name or b.smiles)}</code></td>"
-                        f"<td class=num>{b.probability:.3f}</td><td>{e(r.verdict)}</td></tr>")
+                        f"<td class=num>{'–' if r.lone else f'{b.probability:.3f}'}</td><td>{e(r.verdict)}</td></tr>")
         out.append("<h2>Summary</h2><table><tr><th>sample</th><th>best candidate</th><th>p</th><th>verdict</th></tr>"
                    + "".join(rows) + "</table>")
     if failed:

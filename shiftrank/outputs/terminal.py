@@ -51,9 +51,10 @@ def print_ranking(result, inputs: dict, out=None) -> None:
         for n in nuclei:
             r = c.nuclei[n]
             if alone:
-                cols += f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
+                cols += f" {'–':>7}" if result.lone else f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
             cols += f" {_fmt(r.mae, '9.2f', 9)} {len(r.classes):>3}/{r.observed_signals:<2}"
-        print(f" {i:>2}  {c.probability:6.3f} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
+        prob = f"{'–':>6}" if result.lone else f"{c.probability:6.3f}"
+        print(f" {i:>2}  {prob} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
         for fl in c.flags:
             print(f"       ! {fl}", file=out)
     print(f"\nVerdict: {result.verdict}", file=out)

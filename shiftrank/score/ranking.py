@@ -142,6 +142,12 @@ class RankResult:
     def nuclei(self) -> list[str]:
         return [n for n in SPECTRA if n in self.peaks]
 
+    @property
+    def lone(self) -> bool:
+        """One readable candidate: its probability is 1 by construction and says nothing (the tables show a
+        dash for it; the verdict says how the spectra fit)."""
+        return sum(1 for c in self.candidates if not c.error) == 1
+
     def to_dict(self, detail: bool = False) -> dict:
         d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
              "nuclei": self.nuclei}
