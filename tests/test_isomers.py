@@ -300,3 +300,16 @@ def test_generated_alternatives_carry_their_relation_in_json():
     assert len(given) == 1 and "relation" not in given[0] and "generated" not in given[0]
     assert len(added) == 2 and all(c["generated"] is True and c["relation"] == c["name"]
                                    and c["relation"].startswith(("CH3 moved", "CO2C2H5 moved")) for c in added)
+
+
+def test_n1_against_n3_alkylation_of_ring_lactams():
+    # hand enumeration (common practice: uracils and quinazolin-4-ones alkylate at N1 or N3, or at O):
+    # 1-(cyclopropylmethyl)uracil -> its N3 isomer (the H changes places) and the 2-alkoxy pyrimidinone
+    amb = [a for a in isomers("O=c1ccn(CC2CC2)c(=O)[nH]1") if a.kind == "ambident"]
+    assert keys(amb) == {key("O=c1cc[nH]c(=O)n1CC1CC1"), key("O=c1ccnc(OCC2CC2)[nH]1")}
+    assert any("CH2cPr on ring N" in a.relation for a in amb)
+    # 3-ethylquinazolin-4(3H)-one -> 1-ethylquinazolin-4(1H)-one (the double bonds shift) and 4-ethoxyquinazoline
+    amb = [a for a in isomers("CCn1cnc2ccccc2c1=O") if a.kind == "ambident"]
+    assert keys(amb) == {key("CCn1cnc(=O)c2ccccc21"), key("CCOc1ncnc2ccccc12")}
+    # 2-methylpyridazin-3(2H)-one: N1 has no neutral closed-shell form with the methyl, so only O-methyl
+    assert keys([a for a in isomers("Cn1ncccc1=O") if a.kind == "ambident"]) == {key("COc1cccnn1")}

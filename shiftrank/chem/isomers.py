@@ -402,6 +402,32 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """N1 against N3 of a ring lactam (a pyrimidinone, uracil, quinazolinone, xanthine-type ring): the group
+    on one ring N moved to another ring N of the same aromatic system that carries a ring C=O; to an N-H the
+    H changes places with it (uracil N1 ↔ N3), to a pyridine-type N the double bonds shift (quinazolin-4-one
+    N3 ↔ N1), kept only when RDKit finds a neutral closed-shell form for the result."""
+    out = []
+    for system in _ring_systems(mol):
+        carbonyl = any(b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() in (8, 16)
+                       and b.GetOtherAtomIdx(a.GetIdx()) not in system
+                       for a in (mol.GetAtomWithIdx(i) for i in system) for b in a.GetBonds())
+        if not carbonyl:
+            continue
+        ring_n = [i for i in sorted(system) if mol.GetAtomWithIdx(i).GetAtomicNum() == 7]
+        for r, x, name in _substituents(mol, system):
+            if r not in ring_n or mol.GetAtomWithIdx(r).GetFormalCharge():
+                continue
+            for t in ring_n:
+                a = mol.GetAtomWithIdx(t)
+                if t == r or a.GetDegree() != 2 or a.GetFormalCharge() or a.GetTotalNumHs() > 1:
+                    continue
+                m = _reattach(mol, [(r, x, t)], keep_h_off=not a.GetTotalNumHs())
+                if m is not None and not open_shell(m) and not any(at.GetFormalCharge() for at in m.GetAtoms()):
+                    out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
+    return out
+
+
 # C- against O-alkylation of 1,3-dicarbonyls, on the Kekulé form: (reaction SMARTS, relation)
 _DICARBONYL = [
     # (the alkyl group's bond is a chain bond: a ring carbon is not an alkylating agent's carbon)
@@ -532,7 +558,7 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     global _DICARBONYL_RXNS
     if _DICARBONYL_RXNS is None:
         _DICARBONYL_RXNS = [(AllChem.ReactionFromSmarts(s), lab) for s, lab in _DICARBONYL]
-    out = _azole_moves(mol) + _n_o_moves(mol) + _acyl_moves(mol)
+    out = _azole_moves(mol) + _lactam_n_moves(mol) + _n_o_moves(mol) + _acyl_moves(mol)
     kek = Chem.Mol(mol)
     try:
         Chem.Kekulize(kek, clearAromaticFlags=True)
