@@ -106,11 +106,40 @@ def cmd_facts(args) -> int:
 
 
 def cmd_formula(args) -> int:
-    from .chem.formula import average_weight, dbe, dbe_note, hill, monoisotopic_weight, parse_formula
+    import re
+    from collections import Counter
 
-    c = parse_formula(args.formula)
+    from .chem.formula import (_ELECTRON, _PART_SEP, average_weight, dbe, dbe_note, hill, monoisotopic_weight,
+                               parse_formula, sample_formula)
+
+    c, charge, notes = sample_formula(args.formula)
+    if not sum(c.values()):
+        raise InputError(f"formula '{args.formula}': no atoms")
+    if charge:
+        # the ion as written, then the neutral parent a proton gained or lost would leave (not for a
+        # permanently charged ion such as a quaternary ammonium: the note says so)
+        mz = (monoisotopic_weight(c) - charge * _ELECTRON) / abs(charge)
+        sign = "+" if charge > 0 else "-"
+        print(f"[{hill(c)}]{abs(charge) if abs(charge) > 1 else ''}{sign}   ion m/z {mz:.4f} (monoisotopic, electron mass counted)")
+        c = Counter(c)
+        c["H"] -= charge
+        if c["H"] < 0 or not sum(v for v in c.values() if v > 0):
+            raise InputError(f"formula '{args.formula}': no neutral parent (too few H for charge {charge:+d})")
+        notes = [f"below: the neutral parent if the charge is {abs(charge)} proton(s) {'gained' if charge > 0 else 'lost'} "
+                 "(not so for a permanently charged ion, e.g. a quaternary ammonium)"]
     d = dbe(c)
     print(f"{hill(c)}   average mass {average_weight(c):.3f}   monoisotopic {monoisotopic_weight(c):.4f}   DBE {d:g}")
+    parts = [x for x in _PART_SEP.split(args.formula.strip()) if x.strip()]
+    if len(parts) > 1:   # a salt or solvate: what a balance weighs is the whole
+        whole: Counter = Counter()
+        for x in parts:
+            m = re.match(r"^(\d+)\s*(.*)$", x.strip())
+            n, body = (int(m.group(1)), m.group(2)) if m else (1, x.strip())
+            for el, k in parse_formula(body).items():
+                whole[el] += n * k
+        print(f"as written, {args.formula.strip()}: {hill(whole)}   average mass {average_weight(whole):.3f}")
+    for n in notes:
+        print(f"note: {n}")
     note = dbe_note(d)
     if note:
         print(f"note: {note}")

@@ -64,7 +64,7 @@ def test_ion_mz_protonated_ethanol():
 
 @pytest.mark.parametrize("bad,fragment", [
     ("", "empty"), ("C6H5Xx", "not an element"), ("c6h6", "cannot read"),
-    ("C6H6+", "charge"), ("C6H0", "count 0"), ("(CH3)2O", "brackets"), ("C6 H6", "cannot read"),
+    ("C6H6+", "charge"), ("C6H0", "count 0"), ("(CH3)2O", "brackets"), ("C6 H6 x", "cannot read"),
 ])
 def test_bad_formulas_are_refused_clearly(bad, fragment):
     with pytest.raises(InputError, match=fragment):
@@ -99,3 +99,24 @@ def test_deuterium_and_tritium_are_counted_with_their_own_masses():
     assert formula_matches({"C": 2, "H": 3, "D": 3, "O": 1}, f)
     assert formula_matches({"C": 2, "H": 3, "D": 3, "O": 1}, parse_formula("C2H6O"))
     assert not formula_matches({"C": 2, "H": 6, "O": 1}, f)
+
+
+def test_formula_command_reads_salts_ions_spaces_and_subscripts():
+    import subprocess
+    import sys
+
+    def run(f):
+        return subprocess.run([sys.executable, "-m", "shiftrank.cli", "formula", f], capture_output=True, text=True)
+    # caffeine C8H10N4O2: monoisotopic 194.0804, [M+H]+ 195.0877 (PubChem, from memory); the ion's m/z
+    # counts the electron's mass (CODATA 2018)
+    r = run("[C8H11N4O2]+")
+    assert r.returncode == 0 and "[C8H11N4O2]+   ion m/z 195.0877" in r.stdout
+    assert "C8H10N4O2   average mass 194.19" in r.stdout and "neutral parent" in r.stdout
+    # a hydrochloride: the organic part, and the whole salt's average mass (IUPAC 2021 standard atomic
+    # weights, abridged: C 12.011, H 1.008, N 14.007, O 15.999, Cl 35.45 -> 217.649)
+    r = run("C9H11NO3·HCl")
+    assert r.stdout.startswith("C9H11NO3   average mass 181.19") and "C9H12ClNO3   average mass 217.6" in r.stdout
+    for written in ("C8 H10 N4 O2", "C₈H₁₀N₄O₂"):      # elemental-analysis spacing; word-processor subscripts
+        assert run(written).stdout.startswith("C8H10N4O2   average mass")
+    bad = run("H+")
+    assert bad.returncode == 2 and "no neutral parent" in bad.stderr and "Traceback" not in bad.stderr

@@ -16,6 +16,9 @@ from ..errors import InputError
 
 _TOKEN = re.compile(r"([A-Z][a-z]?)(\d*)")
 _ELECTRON = 0.000548579909  # electron mass (u), CODATA 2018
+#: subscript digits, as a formula copied from a word processor carries them ('C₉H₁₁NO₃')
+_SUBSCRIPTS = str.maketrans("₀₁₂₃₄₅₆₇₈₉", "0123456789")
+_SPACED = re.compile(r"^(?:[A-Z][a-z]?\d*\s+)+[A-Z][a-z]?\d*$")
 
 
 def parse_formula(text: str) -> Counter:
@@ -26,10 +29,14 @@ def parse_formula(text: str) -> Counter:
 
     >>> dict(parse_formula("C2H6O"))
     {'C': 2, 'H': 6, 'O': 1}
+    >>> hill(parse_formula("C₉H₁₁NO₃")), hill(parse_formula("C9 H11 N O3"))
+    ('C9H11NO3', 'C9H11NO3')
     """
     if not isinstance(text, str):
         raise InputError(f"formula: expected text, got {type(text).__name__}")
-    s = text.strip()
+    s = text.strip().translate(_SUBSCRIPTS)
+    if _SPACED.match(s):
+        s = re.sub(r"\s+", "", s)      # 'C9 H11 N O3', as elemental-analysis lines print it
     if not s:
         raise InputError("formula: empty formula")
     if any(ch in s for ch in "+-^"):
