@@ -359,7 +359,9 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         # a ring NH takes a carbon, N, O or S group (N- against C-alkylation or arylation); a halogen on a
         # ring N (an N-haloazole) is a reagent, not a substitution product, and is not generated
         x_is_halogen = {x: mol.GetAtomWithIdx(x).GetAtomicNum() in (9, 17, 35, 53) for _, x, _ in subs}
-        for r, x, name in subs:
+        # the smaller group moves first: when moving either of two groups gives one compound (a disubstituted
+        # ring), the label names the methyl that moved, not the rest of the molecule
+        for r, x, name in sorted(subs, key=lambda s: len(_side(mol, s[1], s[0]))):
             others = [(r2, n2) for r2, x2, n2 in subs if (r2, x2) != (r, x)]
             for t in free:
                 if t == r or (mol.GetAtomWithIdx(t).GetAtomicNum() == 7 and x_is_halogen[x]):
