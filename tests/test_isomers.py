@@ -71,6 +71,9 @@ def test_relations_name_common_groups_by_condensed_formula():
     assert "CH3 moved from ring atom 1 to ring atom 2 (now meta to 4-Cl-C6H4)" in rel
     assert any(r.startswith("Cl moved") and "4-CH3-C6H4)" in r for r in rel)   # the smaller group moves
     assert any("(now para to 4-pyridyl)" in a.relation for a in isomers("COc1cccc(-c2ccncc2)c1"))
+    # a terphenyl's end groups: the ring on a ring named the same way, nested
+    assert any("(now meta to 4-(4-F-C6H4)-C6H4)" in a.relation
+               for a in isomers("N#Cc1ccc(-c2ccc(-c3ccc(F)cc3)cc2)cc1", kinds=("positional",)))
     # N-linked rings by their usual names (common practice)
     assert [a.relation for a in isomers("Cc1ccc(N2C(=O)C=CC2=O)cc1", kinds=("positional",))] == [
         "CH3 moved from ring atom 1 to ring atom 2 (now meta to maleimido)",

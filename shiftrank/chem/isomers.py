@@ -234,8 +234,8 @@ def _group_table() -> dict[str, str]:
 
 
 def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
-    """'4-F-C6H4' for a benzene ring carrying one named group besides the bond to the ring it hangs on;
-    None for anything else."""
+    """'4-F-C6H4' for a benzene ring carrying one named group (or one such ring: '4-(4-F-C6H4)-C6H4')
+    besides the bond to the ring it hangs on; None for anything else."""
     a = mol.GetAtomWithIdx(root)
     if a.GetAtomicNum() != 6 or not a.GetIsAromatic():
         return None
@@ -251,6 +251,9 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
         return None
     at, x = subs[0]
     name = _group_table().get(_rooted_smiles(mol, x, at))
+    if name is None:
+        inner = _aryl_name(mol, x, at)          # a biphenylyl: 4-(4-CH3-C6H4)-C6H4
+        name = f"({inner})" if inner else None
     if name is None:
         return None
     d = abs(ring.index(at) - ring.index(root))
