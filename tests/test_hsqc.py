@@ -108,3 +108,19 @@ def test_cross_peaks_printed_in_the_paragraph_are_used():
     r = rank_text(text=text, candidates=["COc1cccc(C)c1", "COc1ccc(C)cc1", "COc1ccccc1C"])
     assert r.best.smiles == "COc1ccc(C)cc1" and set(r.best.nuclei) == {"1H", "HSQC"}
     assert r.best.nuclei["HSQC"].observed_signals == 4
+
+
+def test_a_cross_peak_file_as_printed_or_slash_written_is_read(tmp_path):
+    # δC/δH pairs written with a slash, and a printed HSQC paragraph given to --hsqc, as chemists paste them
+    # (common practice in SI paragraphs; the values are invented, of the demo kind)
+    slash = tmp_path / "slash.txt"
+    slash.write_text("# dC/dH\n119.0/7.28\n113.6/7.22\n")
+    assert read_hsqc(slash).pairs == [(119.0, 7.28), (113.6, 7.22)]
+    printed = tmp_path / "printed.txt"
+    printed.write_text("HSQC (DMSO-d6): δC/δH 119.0/7.28, 113.6/7.22, 55.6/3.84.")
+    h = read_hsqc(printed)
+    assert sorted(h.pairs) == [(55.6, 3.84), (113.6, 7.22), (119.0, 7.28)] and "printed characterisation text" in h.notes[0]
+    none = tmp_path / "none.txt"
+    none.write_text("HSQC was not recorded; 1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H) 3.9/4.0 mix.")
+    with pytest.raises(InputError):
+        read_hsqc(none)

@@ -525,6 +525,10 @@ def peak_text(text: str, source: str = "input", nucleus: str = "13C", fmt: str |
 _PRINTED = re.compile(r"(?:\b1\s*H|\b13\s*C|¹H|¹³C)\s*(?:\{\s*1\s*H\s*\}|\{¹H\})?\s*[-‐ ]?\s*NMR|δ\s*[HC]\b\s*[(\[]")
 
 
+#: a printed HSQC/HMQC section header ('HSQC (DMSO-d6): δC/δH 119.0/7.28, …')
+_PRINTED_HSQC = re.compile(r"\b(?:HSQC|HMQC)\b.{0,60}?\d+\.\d+\s*/\s*\d+\.\d+", re.I | re.S)
+
+
 def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None) -> PeakList:
     """A peak file that holds a printed paragraph instead of a list: its ``nucleus`` section, read as
     ``--text`` reads it (a note says so), or a clear error when it has none."""
@@ -623,8 +627,19 @@ def read_hsqc(path: str | Path) -> HsqcList:
             return hsqc_list(json.loads(text), p.name)
         except json.JSONDecodeError as exc:
             raise InputError(f"{p.name} line {exc.lineno}: invalid JSON ({exc.msg})") from None
+    if _PRINTED_HSQC.search(text[:2000]):
+        # a printed paragraph ('HSQC (DMSO-d6): δC/δH 119.0/7.28, …'): its HSQC section, read as --text reads it
+        from .text import read_nmr_text   # (text builds on this module)
+
+        found = read_nmr_text(text).hsqc(p.name)
+        if found is None:
+            raise InputError(f"{p.name}: printed text without HSQC cross peaks; give 'δC δH' pairs, one per line")
+        found.notes.insert(0, f"{p.name}: read as printed characterisation text (its HSQC section)")
+        return found
     pairs = []
     for n, line, fields in _token_lines(text):
+        if len(fields) == 1 and re.fullmatch(r"-?\d+(?:\.\d+)?/-?\d+(?:\.\d+)?", fields[0]):
+            fields = fields[0].split("/")        # '119.0/7.28', as δC/δH pairs are printed
         try:
             nums = [float(f) for f in fields[:2]]
         except ValueError:
