@@ -52,3 +52,20 @@ def test_a_candidate_without_fluorine_keeps_every_line():
     res = r.best.nuclei["13C"]
     assert res.observed_signals == len(VALUES)
     assert not any("read as one carbon" in f for f in r.best.flags)
+
+
+def test_a_small_coupling_to_another_fluorine_beside_a_large_one_may_go_unprinted():
+    # N-(4-fluoro-3-(trifluoromethyl)phenyl)acetamide (own choice): C4 carries F (1J ≈ 250 Hz) and sits three
+    # bonds from the CF3 fluorines (3J ≈ 4 Hz); papers print it 'd, J = 254 Hz' as often as 'dq' (common
+    # practice; couplings from memory, as in shiftrank.chem.couplings).  Printed 'd' fits; C2, three bonds
+    # from both fluorine sets and with no larger coupling, still needs its splittings
+    from rdkit import Chem
+
+    from shiftrank.chem.couplings import carbon_multiplets, fit_cost
+    mol = Chem.MolFromSmiles("CC(=O)Nc1ccc(F)c(C(F)(F)F)c1")
+    by_atom = {e.atoms[0]: e for e in carbon_multiplets(mol, [type("C", (), {"atoms": [i]}) for i in range(mol.GetNumAtoms())
+                                                               if mol.GetAtomWithIdx(i).GetAtomicNum() == 6])}
+    assert fit_cost(by_atom[7], "d", (254.0,)) == (0, 0)      # C–F ipso, dq printed as d
+    assert fit_cost(by_atom[7], "dq", (254.0, 4.0)) == (0, 0)
+    assert fit_cost(by_atom[10], "q", (272.0,)) == (0, 0)     # the CF3 carbon, qd printed as q
+    assert fit_cost(by_atom[14], "s", ())[0] == 1             # C2: no large coupling, printed 's' misfits

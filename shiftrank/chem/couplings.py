@@ -48,7 +48,7 @@ from .structure import TWIN_NEAR_1H, signal_key, symmetry_ranks, twin_sides
 
 #: how a few coupling kinds read in a label (others by their own name)
 _KIND_NAMES = {"ortho-5-azole": "imidazole/oxazole H4-H5", "vicinal-dia": "vicinal from a diastereotopic CH2",
-               "CF2-sub": "CF2 (ring C without H)"}
+               "CF2-sub": "CF2 (ring C without H)", "CF3-beside": "CF3 (beside a larger C–F coupling)"}
 
 #: (low, high) Hz of each coupling kind, with the optional flag (may be unresolved or absent).
 J_RANGES = {
@@ -78,6 +78,9 @@ J_RANGES = {
     # 13C lines split by fluorine or phosphorus, by the number of bonds between them (see carbon_multiplets)
     "CF1": ((230.0, 300.0), False), "CF2": ((15.0, 45.0), False), "CF2-sub": ((8.0, 25.0), False), "CF3": ((2.0, 12.0), False),
     "CF4": ((0.5, 4.5), True), "CP1": ((100.0, 200.0), False), "CP2": ((2.0, 30.0), False),
+    # a three-bond C–F coupling to another fluorine beside a one- or two-bond one: often left out of the
+    # printed letters ('156.0 (d, J = 254 Hz)' for a dq; common practice)
+    "CF3-beside": ((2.0, 12.0), True),
     "CP3": ((2.0, 30.0), True),
     # deuterium (spin 1: n deuterons give 2n + 1 lines, carried as 2n partners): 13C of a CDn carbon and the
     # proton left on a CHD or CHD2 group (see chem/labels.py)
@@ -592,6 +595,9 @@ def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) ->
                 kind = "CF2-sub"
             if kind:
                 counts[(kind, ranks[x])] = counts.get((kind, ranks[x]), 0) + 1
+        large = {key for (k, key) in counts if k in ("CF1", "CF2", "CF2-sub", "CP1")}
+        if large:
+            counts = {(("CF3-beside" if k == "CF3" and key not in large else k), key): n for (k, key), n in counts.items()}
         groups = [CouplingGroup(k, n, "F" if k.startswith("CF") else "P", key) for (k, key), n in counts.items()]
         out.append(ExpectedMultiplet(list(c.atoms), len(c.atoms), groups + _deuterium_group(labels, a)))
     return out
