@@ -28,7 +28,8 @@ constants; the ranges below are recalled from such tables, "from memory", and de
 13C lines split by fluorine and phosphorus (common practice, e.g. the same tables; from memory):
 ¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho CH ≈ 21;
 a ring carbon without H next to an aryl C–F 8–25, ≈ 10–14 at C1 of 2-fluoroanisole or 2-fluoroaniline), ³J 2–12
-(aryl meta ≈ 8, CF3–C–C ≈ 4), ⁴J 0.5–4.5 (often unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz;
+(aryl meta ≈ 8, CF3–C–C ≈ 4; to a second fluorine beside a ¹J or ²J, often not printed), ⁴J 0.5–4.5 (often
+unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz;
 ¹J(C,D) 17–34 Hz (a CD3 septet ≈ 19–22, the CDCl3 triplet ≈ 32); a CDn carbon shows 2n + 1 lines.
 
 The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
