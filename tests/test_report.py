@@ -53,7 +53,7 @@ def test_one_sample_report_takes_the_rank_options(tmp_path):
                        capture_output=True, text=True)
     assert r.returncode == 0, r.stderr
     html = out.read_text()
-    assert "CO2C2H5 moved from ring atom 5 to ring atom 6 (now meta to CH3)" in html   # the meta ester
+    assert "CH3 moved from ring atom 8 to ring atom 7 (now meta to CO2C2H5)" in html   # the meta ester
     assert "measured m/z 165.091 ([M+H]+)" in html
 
 
