@@ -152,3 +152,16 @@ def test_a_line_of_shifts_copied_without_its_header_is_one_peak_per_value():
     assert [(p.shift, p.intensity) for p in parse_peaks("128.4, 1200").peaks] == [(128.4, 1200.0)]
     with pytest.raises(InputError, match="line 1: expected 'shift"):
         parse_peaks("20.1 30.2 40.3 CH")
+
+
+def test_solvents_beyond_fulmer_and_mixtures_set_aside_their_lines():
+    # pyridine-d5 13C 150.35, 135.91, 123.87 and DMF-d7 163.15, 34.89, 29.76 as commonly tabulated (from
+    # memory); a mixture printed 'CDCl3/CD3OD (9:1)' sets aside both solvents' lines (Fulmer 2010 values)
+    assert normalise_solvent("pyridine-d5") == "pyridine-d5" and normalise_solvent("C5D5N") == "pyridine-d5"
+    assert normalise_solvent("DMF-d7") == "DMF-d7" and normalise_solvent("CD3SOCD3") == "DMSO-d6"
+    pl = parse_peaks("150.4\n135.9\n123.9\n128.7\n", solvent="pyridine-d5")
+    assert [p.shift for p in pl.peaks if p.solvent] == [123.9, 135.9, 150.4]
+    key = normalise_solvent("CDCl3/CD3OD (9:1)")
+    assert key == "CDCl3 + CD3OD" and normalise_solvent("CDCl3 + 1 drop CD3OD") == key
+    pl = parse_peaks("170.1\n77.2\n49.0\n21.3\n", solvent=key)
+    assert [p.shift for p in pl.peaks if p.solvent] == [49.0, 77.2]

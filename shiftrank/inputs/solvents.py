@@ -2,7 +2,9 @@
 
 Values are those of Fulmer, G. R. et al. (2010) Organometallics 29, 2176,
 Table 1 (residual 1H of the solvent and of water) and Table 2 (13C of the
-solvent), at 298 K, referenced to TMS.  Peaks that sit on these positions are
+solvent), at 298 K, referenced to TMS; pyridine-d5, DMF-d7 and TFA-d, which
+those tables do not hold, as commonly tabulated (from memory).  A mixture
+('CDCl3 + CD3OD') sets aside the lines of each part.  Peaks that sit on these positions are
 set aside with a note rather than silently used or dropped.
 """
 from __future__ import annotations
@@ -32,12 +34,16 @@ SOLVENTS = {
     "CD2Cl2": Solvent("CD2Cl2", "dichloromethane-d2", (5.32,), 1.52, (53.84,)),
     "THF-d8": Solvent("THF-d8", "tetrahydrofuran-d8", (1.72, 3.58), 2.46, (25.31, 67.21)),
     "toluene-d8": Solvent("toluene-d8", "toluene-d8", (2.08, 6.97, 7.01, 7.09), 0.43, (20.43, 125.13, 127.96, 128.87, 137.48)),
+    # not in Fulmer et al. 2010; residual lines as commonly tabulated for these solvents (from memory)
+    "pyridine-d5": Solvent("pyridine-d5", "pyridine-d5", (7.22, 7.58, 8.74), 4.9, (123.87, 135.91, 150.35)),
+    "DMF-d7": Solvent("DMF-d7", "N,N-dimethylformamide-d7", (2.75, 2.92, 8.03), 3.5, (29.76, 34.89, 163.15)),
+    "TFA-d": Solvent("TFA-d", "trifluoroacetic acid-d", (11.50,), None, (116.6, 164.2)),
 }
 
 _ALIASES = [
     (r"cdcl3|cdci3|chcl3-d|chloroform", "CDCl3"),
-    (r"dmso|dimethyl ?sul(?:f|ph)oxide|c2d6so", "DMSO-d6"),
-    (r"cd3od|methanol|meod|cd4o", "CD3OD"),
+    (r"dmso|dimethyl ?sul(?:f|ph)oxide|c2d6so|cd3socd3", "DMSO-d6"),
+    (r"cd3od|methanol|meod|meoh|cd4o", "CD3OD"),
     (r"acetone|\(cd3\)2co|c3d6o", "acetone-d6"),
     (r"c6d6|benzene", "C6D6"),
     (r"cd3cn|acetonitrile|c2d3n", "CD3CN"),
@@ -45,7 +51,12 @@ _ALIASES = [
     (r"cd2cl2|dichloromethane|methylene chloride", "CD2Cl2"),
     (r"thf|tetrahydrofuran", "THF-d8"),
     (r"toluene", "toluene-d8"),
+    (r"pyridine|c5d5n", "pyridine-d5"),
+    (r"\bdmf\b|dmf-|dimethylformamide|c3d7no", "DMF-d7"),
+    (r"\btfa\b|tfa-d|trifluoroacetic|cf3cood", "TFA-d"),
 ]
+#: between the parts of a solvent mixture ('CDCl3 + CD3OD', 'CDCl3/DMSO-d6 (4:1)')
+_MIXTURE_SEP = re.compile(r"\s*(?:\+|/|:|\band\b|;)\s*")
 
 #: Half-width of the window in which a peak counts as a solvent signal.
 TOLERANCE = {"13C": 0.5, "1H": 0.05}
@@ -66,7 +77,40 @@ def normalise_solvent(name: str | None) -> str | None:
         if s == key.lower():
             return key
     hits = {key for pattern, key in _ALIASES if re.search(pattern, s)}
-    return hits.pop() if len(hits) == 1 else None
+    if len(hits) == 1:
+        return hits.pop()
+    if len(hits) > 1:
+        return _mixture(s)
+    return None
+
+
+def _mixture(s: str) -> str | None:
+    """The key of a mixture of two or three known solvents ('CDCl3 + CD3OD'), registered in :data:`SOLVENTS`
+    with every part's residual lines (the water line moves with the mixture and is left out); None when the
+    parts are not each one known solvent.
+
+    >>> normalise_solvent("CDCl3 + CD3OD"), SOLVENTS["CDCl3 + CD3OD"].carbon_13c
+    ('CDCl3 + CD3OD', (77.16, 49.0))
+    """
+    s = re.sub(r"\(.*?\)|\d+(?:\.\d+)?\s*:\s*\d+(?:\.\d+)?|\d+(?:\.\d+)?\s*%", " ", s)   # '(9:1)', '10%'
+    parts = [x.strip() for x in _MIXTURE_SEP.split(s) if x.strip()]
+    keys = []
+    for part in parts:
+        if not part:
+            continue
+        found = {key for pattern, key in _ALIASES if re.search(pattern, part)}
+        if len(found) != 1:
+            return None
+        keys.append(found.pop())
+    keys = list(dict.fromkeys(keys))
+    if not 2 <= len(keys) <= 3:
+        return None
+    key = " + ".join(keys)
+    if key not in SOLVENTS:
+        sols = [SOLVENTS[k] for k in keys]
+        SOLVENTS[key] = Solvent(key, " + ".join(x.name for x in sols), tuple(v for x in sols for v in x.residual_1h),
+                                None, tuple(v for x in sols for v in x.carbon_13c))
+    return key
 
 
 def solvent_signals(key: str, nucleus: str = "13C") -> tuple[float, ...]:
