@@ -16,7 +16,16 @@ from .errors import InputError
 from .words import count
 
 
-def _print_facts(f, out=None) -> None:
+def _proton_classes(mol) -> list[dict]:
+    """Each proton class of ``mol``: its atoms, proton count, expected first-order multiplet and whether its two
+    protons may show as two signals (ring or diastereotopic CH2, a primary amide's NH2)."""
+    from .chem.couplings import expected_multiplets
+
+    return [{"atoms": e.atoms, "h": e.n_h, "multiplet": e.letters(), "exchangeable": e.exchangeable,
+             "may_split": e.may_split} for e in expected_multiplets(mol)]
+
+
+def _print_facts(f, out=None, protons: list[dict] | None = None) -> None:
     from .chem.structure import TWIN_WHY
 
     out = out or sys.stdout
@@ -27,7 +36,10 @@ def _print_facts(f, out=None) -> None:
     mc = f.multiplicity_counts()
     kinds = ", ".join(f"{mc[k]} {k}" for k in ("CH3", "CH2", "CH", "C") if k in mc)
     print(f"  carbons {f.n_carbons} in {f.expected_13c_signals} symmetry classes (expected 13C signals: {kinds})", file=out)
-    print(f"  expected 1H environments {f.expected_1h_signals}", file=out)
+    split = sum(1 for pc in protons or [] if pc["may_split"])
+    print(f"  expected 1H environments {f.expected_1h_signals}"
+          + (f" (up to {f.expected_1h_signals + split}: the two protons of {count(split, 'CH2 or NH2 group')} may "
+             "show apart)" if split else ""), file=out)
     for c in f.carbon_classes:
         atoms = ",".join(str(i) for i in c.atoms)
         twin = ""
@@ -35,6 +47,11 @@ def _print_facts(f, out=None) -> None:
             d, why = c.twin
             twin = f"  (a signal apart from alike {'atom' if len(d) == 1 else 'atoms'} {','.join(str(i) for i in d)}: {TWIN_WHY[why]})"
         print(f"    class {c.multiplicity:<4} x{c.size}  atoms {atoms}{twin}", file=out)
+    for pc in protons or []:
+        atoms = ",".join(str(i) for i in pc["atoms"])
+        note = "  exchangeable (may be broad or absent)" if pc["exchangeable"] else ""
+        note += "  may show as two signals" if pc["may_split"] else ""
+        print(f"    1H   {pc['h']}H {pc['multiplet']:<8} atoms {atoms}{note}", file=out)
 
 
 _STRUCTURE_FILES = (".sdf", ".mol", ".smi", ".txt", ".smiles", ".sdf.gz", ".sd", ".ism", ".can", ".csv", ".tsv")
@@ -64,26 +81,29 @@ def cmd_facts(args) -> int:
     from .chem.structure import facts_from_mol, structure_facts
     from .inputs.molecules import read_molecules
 
+    from .inputs.molecules import to_mol
+
     items = []
     for token in args.structures:
         try:
             kind = _structure_token(token)
         except InputError as exc:
-            items.append((token[:60], str(exc), None))
+            items.append((token[:60], str(exc), None, None))
             continue
         if kind == "file":
             for rec in read_molecules(token):
                 try:
-                    items.append((rec.id, rec.error, None if rec.error else facts_from_mol(rec.mol, rec.source)))
+                    items.append((rec.id, rec.error, None if rec.error else facts_from_mol(rec.mol, rec.source),
+                                  None if rec.error else rec.mol))
                 except InputError as exc:
-                    items.append((rec.id, str(exc), None))
+                    items.append((rec.id, str(exc), None, None))
         else:
             try:
-                items.append((token, None, structure_facts(token)))
+                items.append((token, None, structure_facts(token), to_mol(token)))
             except InputError as exc:
-                items.append((token, str(exc), None))
+                items.append((token, str(exc), None, None))
     bad = 0
-    for rid, err, f in items:
+    for rid, err, f, mol in items:
         if err:
             bad += 1
             if args.json:
@@ -97,9 +117,10 @@ def cmd_facts(args) -> int:
                               "expected_13c_signals": f.expected_13c_signals, "expected_1h_signals": f.expected_1h_signals,
                               "carbon_classes": [{"atoms": c.atoms, "multiplicity": c.multiplicity,
                                                   **({"twin": {"atoms": c.twin[0], "why": c.twin[1]}} if c.twin else {})}
-                                                 for c in f.carbon_classes]}))
+                                                 for c in f.carbon_classes],
+                              "proton_classes": _proton_classes(mol)}))
         else:
-            _print_facts(f)
+            _print_facts(f, protons=_proton_classes(mol))
     if bad and len(items) > 1:
         print(f"{bad} of {len(items)} structures could not be read", file=sys.stderr)
     return 2 if bad else 0

@@ -46,3 +46,19 @@ def test_facts_name_carbons_alike_in_constitution_that_give_two_signals():
     # N,N-dimethylacetamide: the N-methyls cis and trans to the C=O, 38.0 and 35.0 ppm (common practice, from memory)
     d = json.loads(run("facts", "CC(=O)N(C)C", "--json").stdout)
     assert d["expected_13c_signals"] == 4
+
+
+def test_facts_list_proton_classes_with_their_expected_multiplets():
+    # 1-(4-methoxyphenyl)ethylamine (own choice): CH3 d, CH q, NH2 br s, two 2H ring doublets, OCH3 s; a
+    # para-disubstituted benzene gives two 2H doublets (common practice).  A primary benzamide's NH2 may show
+    # as two signals (slow C–N rotation; common practice)
+    import json
+
+    r = run("facts", "C[C@H](N)c1ccc(OC)cc1")
+    assert r.returncode == 0
+    assert "1H   3H d        atoms 0" in r.stdout and "1H   1H q" in r.stdout and "1H   3H s        atoms 8" in r.stdout
+    d = json.loads(run("facts", "NC(=O)c1ccc(Cl)cc1", "--json").stdout)
+    nh2 = next(c for c in d["proton_classes"] if c["atoms"] == [0])
+    assert nh2["exchangeable"] and nh2["may_split"] and nh2["h"] == 2
+    assert sorted(c["multiplet"] for c in d["proton_classes"] if not c["exchangeable"]) == ["d", "d"]
+    assert "up to 4: the two protons of 1 CH2 or NH2 group may show apart" in run("facts", "NC(=O)c1ccc(Cl)cc1").stdout
