@@ -270,3 +270,18 @@ def test_a_lone_candidate_is_judged_by_its_fit_not_by_its_probability_of_one():
     assert "1.000" not in row and "–" in row
     html = render_report([ok])
     assert "one candidate: no probability" in html and "the only candidate" in html and "p = 1.000" not in html
+
+
+def test_ring_ch2_groups_show_axial_and_equatorial_halves():
+    # trans-4-(4-methoxyphenyl)cyclohexan-1-ol (own choice; 1H in CDCl3 from memory, approximate): the two
+    # ring CH2 classes (4H each) print as four 2H multiplets, axial and equatorial; the CH-O and the benzylic
+    # CH as tt (axial–axial J ≈ 10–13 Hz, axial–equatorial ≈ 3–4 Hz; common practice)
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.12 (d, J = 8.6 Hz, 2H), 6.84 (d, J = 8.6 Hz, 2H), 3.79 (s, 3H), "
+            "3.66 (tt, J = 10.8, 4.2 Hz, 1H), 2.45 (tt, J = 12.1, 3.4 Hz, 1H), 2.08 (m, 2H), 1.90 (m, 2H), "
+            "1.52 (m, 2H), 1.42 (m, 2H).")
+    best = rank(text=text, candidates=["COc1ccc([C@H]2CC[C@H](O)CC2)cc1"]).best
+    r = best.nuclei["1H"]
+    ring = [p for p in r.assignment.pairings if len(r.classes[p.cls].atoms) == 2 and r.classes[p.cls].units == 4]
+    assert sorted(p.units for p in ring) == [2, 2, 2, 2] and len({p.peak for p in ring}) == 4
+    assert all(p.multiplicity_ok for p in r.assignment.pairings)       # 'tt' is a CH between two ring CH2
+    assert not r.assignment.unmatched_peaks and not any("by symmetry" in f for f in best.flags)

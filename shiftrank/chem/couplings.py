@@ -136,7 +136,11 @@ class ExpectedMultiplet:
         next to a stereocentre or in a ring, or of a =CH2, differ; slow rotation about the C–N bond of a
         primary amide, thioamide or thiourea often shows its NH2 as two 1H signals (common practice, e.g.
         in DMSO-d6).  An aniline, sulfonamide, urea or carbamate NH2 stays one signal."""
-        return len(self.atoms) == 1 and (self.amide_nh2 or any(g.kind in ("geminal", "geminal-alkene") for g in self.groups))
+        if len(self.atoms) > 1:
+            # equivalent CH2 groups of a ring (a 1,4-disubstituted cyclohexane's C2/C6): axial and equatorial
+            # protons, two signals of half the class each
+            return any(g.kind == "geminal" for g in self.groups)
+        return self.amide_nh2 or any(g.kind in ("geminal", "geminal-alkene") for g in self.groups)
 
     def patterns(self) -> frozenset[tuple[int, ...]]:
         """Every line-count pattern the class may show: sorted tuples of (n + 1) per resolved group,
@@ -177,13 +181,15 @@ def _patterns_of(groups_sig: tuple) -> frozenset[tuple[int, ...]]:
 
 
 def _concrete(groups: list[CouplingGroup]) -> list[list[CouplingGroup]]:
-    """The group lists a signal may show: a '-pair' group (the two diastereotopic protons of a CH2) as one
-    group of two equal couplings or as two groups of one."""
+    """The group lists a signal may show: a '-pair' group (the two diastereotopic protons of a CH2, or of
+    each of two equivalent CH2 groups) as one group of equal couplings or as two groups of half as many
+    partners each (a cyclohexane CH between two CH2: 'p', or 'tt' with axial–axial and axial–equatorial J)."""
     out: list[list[CouplingGroup]] = [[]]
     for g in groups:
-        if g.kind.endswith("-pair"):
-            one = CouplingGroup(g.kind, 1, g.partner, g.key)
-            out = [v + w for v in out for w in ([g], [one, one])]
+        if g.kind.endswith("-pair") and g.n >= 2:
+            a = CouplingGroup(g.kind, g.n // 2, g.partner, g.key)
+            b = CouplingGroup(g.kind, g.n - g.n // 2, g.partner, g.key)
+            out = [v + w for v in out for w in ([g], [a, b])]
         else:
             out = [v + [g] for v in out]
     return out

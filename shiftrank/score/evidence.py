@@ -481,8 +481,8 @@ def _integrals_explain_sharing(res: NucleusResult) -> bool:
         return False
     held: dict[int, int] = {}
     for p in a.pairings:
-        if p.peak is not None:
-            held[p.peak] = held.get(p.peak, 0) + classes[p.cls].units
+        if p.peak is not None:   # (a class split over two multiplets, a CH2's two protons, gives each its share)
+            held[p.peak] = held.get(p.peak, 0) + p.units
     return all(peaks[j].capacity == n for j, n in held.items())
 
 

@@ -349,7 +349,9 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     # targets it was split over - the combination giving the cheapest assignment - and solved again
     for _ in range(4):
         target = col_peak_arr[c_idx[np.argsort(r_idx)]]
-        bad_split = [i for i in range(nc) if not classes[i].splittable and len(set(target[row_cls == i].tolist())) > 1]
+        # (a splittable class shows at most two signals: the two protons of its CH2, or its axial and
+        # equatorial halves)
+        bad_split = [i for i in range(nc) if len(set(target[row_cls == i].tolist())) > (2 if classes[i].splittable else 1)]
         if not bad_split:
             break
         options = [np.unique(target[row_cls == i]).tolist() for i in bad_split]
