@@ -200,3 +200,14 @@ def test_peaks_given_as_numpy_array_or_text_rank_as_the_list_does():
     assert r.best.smiles == PARA and "read as printed characterisation text" in r.notes[0]
     with pytest.raises(InputError, match="got one string"):
         rank(shifts, PARA)
+
+
+def test_candidates_differing_only_in_stereochemistry_are_called_so():
+    # cis- and trans-4-(4-methoxyphenyl)cyclohexanol (own choice; INVENTED list shaped like their spectra): a
+    # model that reads the molecular graph gives both the same shifts, and the verdict says what could tell
+    # them apart (coupling constants, NOE: common practice)
+    shifts = [158.0, 138.9, 127.7, 113.9, 70.8, 55.3, 43.1, 36.0, 32.6]
+    r = rank(shifts, ["COc1ccc([C@H]2CC[C@H](O)CC2)cc1", "COc1ccc([C@H]2CC[C@@H](O)CC2)cc1"])
+    assert "indistinguishable" in r.verdict and "differ only in stereochemistry" in r.verdict
+    r = rank(shifts, ["COc1ccc(C2CCC(O)CC2)cc1", "COc1ccc(C2CCCC(O)C2)cc1"])
+    assert "stereochemistry" not in r.verdict

@@ -543,9 +543,21 @@ def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> s
     rest = [c for c in valid if all(c is not x for x in same)]
     second = rest[0] if rest else None
     if second is not None and p_best + second.probability >= 0.9 and second.probability >= 0.2:
+        stereo = ("; they differ only in stereochemistry, which shifts predicted from the structure's graph do not "
+                  "tell apart: compare coupling constants (axial/equatorial, cis/trans alkene J) or NOE"
+                  if _same_constitution(best.smiles, second.smiles) else "")
         return (f"two candidates indistinguishable from {spectra} alone: {shown} and "
-                f"{second.name or second.smiles} (p = {second.probability:.2f}){conflict}")
+                f"{second.name or second.smiles} (p = {second.probability:.2f}){stereo}{conflict}")
     return f"leaning to {shown}; not decisive{conflict}"
+
+
+def _same_constitution(a: str, b: str) -> bool:
+    """Whether two candidate SMILES are one constitution drawn with different stereochemistry."""
+    from ..chem.isomers import structure_key
+
+    ma, mb = _parse(a)[0], _parse(b)[0]
+    return ma is not None and mb is not None and Chem.MolToSmiles(ma) != Chem.MolToSmiles(mb) \
+        and structure_key(ma) == structure_key(mb)
 
 
 def _one_candidate_verdict(best: CandidateResult, label: str) -> str:
