@@ -41,7 +41,7 @@ def _signature(text: str, nucleus: str):
         if s.nucleus == nucleus:
             for p in s.peaks:
                 out.append((round(p.shift, 2), p.lo and round(p.lo, 2), p.hi and round(p.hi, 2), p.integral,
-                            p.multiplicity, tuple(round(j, 1) for j in p.j), p.count))
+                            p.multiplicity, tuple(round(j, 1) for j in p.j), p.count, p.dept))
     return sorted(out, key=str)
 
 
@@ -76,6 +76,8 @@ STYLES = {
     "no δ": lambda t: t.replace("δ", ""),
     "δH / δC header": lambda t: re.sub(r"^1H[ -]NMR\s*(\([^()]*\))[:,]?\s*δ\s*[:=]?", r"δH \1",
                                        re.sub(r"^13C[ -]NMR\s*(\([^()]*\))[:,]?\s*δ\s*[:=]?", r"δC \1", t)),
+    "δH: / δC: after the header": lambda t: re.sub(r"^(1H|13C)([ -]NMR\s*\([^()]*\))[:,]?\s*δ\s*[:=]?",
+                                                   lambda m: m.group(1) + m.group(2) + " δ" + m.group(1)[-1] + ":", t),
     "ppm after each 13C value": lambda t: re.sub(r"(\d+\.\d+)(?=\s*[,(;])", r"\1 ppm", t) if t.startswith("13C") else t,
     "superscript nuclei": lambda t: (t.replace("1H NMR", "¹H NMR").replace("13C NMR", "¹³C NMR")
                                      .replace("1H-NMR", "¹H-NMR").replace("13C-NMR", "¹³C-NMR")),

@@ -499,3 +499,12 @@ def test_broad_written_every_way_is_one_broad_multiplicity():
     peaks = read_nmr_text(t).sections[0].peaks
     assert [p.multiplicity for p in peaks] == ["br s", "br s", "br s", "br s", "br s", "br", "br d", "br s"]
     assert all(p.note == "" for p in peaks)
+
+
+def test_the_delta_c_symbol_with_a_colon_is_no_quaternary_label():
+    # '13C NMR (CDCl3) δC: 55.2, …' is the δC symbol (a common house style); 'δ C, 34.8, CH, 146.7' (dev
+    # paragraph PMC6271139) labels its first value quaternary
+    peaks = read_nmr_text("13C NMR (101 MHz, CDCl3) δC: 170.1, 55.2, 21.0.").sections[0].peaks
+    assert [p.dept for p in peaks] == [None, None, None]
+    peaks = read_nmr_text("13C-NMR (500 MHz, toluene-d8) δ C, 34.82, CH, 146.7, 118.4; CH3, 29.5").sections[0].peaks
+    assert [p.dept for p in peaks] == ["C", "CH", "CH", "CH3"]

@@ -651,7 +651,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         two = _DOUBLED.search(header + " " + cond) or _DOUBLED.search(peaks_text)
         if two:
             sec.doubled = two.group(0)
-        lead = re.search(r"(?<![A-Za-z0-9])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
+        # ('C:' of the 'δC:' symbol is no label: "13C NMR (CDCl3) δC: 55.2, …" has no quaternary carbons; with a
+        # space, "δ C, 34.8, CH, 146.7", it is one)
+        lead = re.search(r"(?<![A-Za-z0-9δ])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
         if sec.nucleus == "13C":
             _dept135(sec, header + " " + cond)
