@@ -130,8 +130,12 @@ def cmd_formula(args) -> int:
     import re
     from collections import Counter
 
-    from .chem.formula import (_ELECTRON, _PART_SEP, average_weight, dbe, dbe_note, hill, monoisotopic_weight,
-                               parse_formula, sample_formula)
+    from .chem.formula import (_ELECTRON, average_weight, dbe, dbe_note, hill, monoisotopic_weight, parse_formula,
+                               salt_parts, sample_formula)
+
+    def _hill_order(counts) -> list[str]:
+        rest = sorted(e for e in counts if e not in ("C", "H"))
+        return ([e for e in ("C", "H") if e in counts] + rest) if "C" in counts else sorted(counts)
 
     c, charge, notes = sample_formula(args.formula)
     if not sum(c.values()):
@@ -150,15 +154,16 @@ def cmd_formula(args) -> int:
                  "(not so for a permanently charged ion, e.g. a quaternary ammonium)"]
     d = dbe(c)
     print(f"{hill(c)}   average mass {average_weight(c):.3f}   monoisotopic {monoisotopic_weight(c):.4f}   DBE {d:g}")
-    parts = [x for x in _PART_SEP.split(args.formula.strip()) if x.strip()]
+    parts = salt_parts(args.formula)
     if len(parts) > 1:   # a salt or solvate: what a balance weighs is the whole
         whole: Counter = Counter()
         for x in parts:
-            m = re.match(r"^(\d+)\s*(.*)$", x.strip())
-            n, body = (int(m.group(1)), m.group(2)) if m else (1, x.strip())
+            m = re.match(r"^(\d+(?:\.\d+)?)\s*(.*)$", x.strip())
+            n, body = (float(m.group(1)), m.group(2)) if m else (1.0, x.strip())
             for el, k in parse_formula(body).items():
                 whole[el] += n * k
-        print(f"as written, {args.formula.strip()}: {hill(whole)}   average mass {average_weight(whole):.3f}")
+        shown = "".join(f"{el}{v:g}" if v != 1 else el for el, v in ((e, whole[e]) for e in _hill_order(whole)))
+        print(f"as written, {args.formula.strip()}: {shown}   average mass {average_weight(whole):.3f}")
     for n in notes:
         print(f"note: {n}")
     note = dbe_note(d)
@@ -396,6 +401,12 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
     if lists.get("13C") is None and lists.get("1H") is None:
         return None   # cross peaks alone: nothing to count pieces from
     formula, mz = args.formula, getattr(args, "mz", None)
+    if case is not None and formula is None:
+        from .inputs.mass import read_analysis_formula
+
+        formula = read_analysis_formula(case.get("text") or "")
+        if formula and notes is not None:
+            notes.append(f"formula {formula} taken from the text's elemental analysis")
     if case is not None and (formula is None or mz is None):
         from .inputs.mass import read_mass_statements
 

@@ -165,3 +165,25 @@ def test_resolution_follows_the_printed_decimals():
 ])
 def test_ions_other_than_the_molecules_own_are_not_used(text):
     assert read_mass_statements(text) == []
+
+
+def test_elemental_analysis_and_subscripted_formulas_are_sample_history():
+    # 'Anal. Calcd for …' gives the formula the sample was analysed as (a hemihydrate here, read on its organic
+    # part); formulas copied from a word processor carry subscript digits.  Methyl 3-amino-4-methoxybenzoate
+    # C9H11NO3 (own choice): [M+H]+ 182.0812 from monoisotopic masses (AME2020, CODATA electron mass)
+    from shiftrank.chem.inventory import take_inventory
+    from shiftrank.inputs.mass import read_analysis_formula, read_mass_statements
+    from shiftrank.inputs.peaks import parse_peaks
+    from shiftrank.score.ranking import rank
+
+    st = read_mass_statements("HRMS m/z (ESI) calcd for C₉H₁₂NO₃ [M+H]⁺ 182.0812, found 182.0810")[0]
+    assert st.formula == "C9H12NO3" and st.neutral == "C9H11NO3"
+    analysis = "Anal. Calcd for C9H11NO3·0.5H2O: C, 56.83; H, 6.36; N, 7.36. Found: C, 56.70; H, 6.41; N, 7.30."
+    assert read_analysis_formula(analysis) == "C9H11NO3·0.5H2O"
+    text = "13C NMR (101 MHz, DMSO-d6) δ 166.6, 150.1, 137.6, 121.9, 119.0, 113.6, 109.9, 55.6, 51.7. " + analysis
+    r = rank(text=text, candidates=["COC(=O)c1ccc(OC)c(N)c1", "COC(=O)c1ccc(OC)c(NC)c1"])
+    assert any("elemental analysis was calculated for C9H11NO3·0.5H2O" in n for n in r.notes)
+    assert r.best.formula_ok and not r.candidates[-1].formula_ok      # the N-methyl amine is C10H13NO3
+    inv = take_inventory(parse_peaks("166.6\n150.1\n137.6\n121.9\n119.0\n113.6\n109.9\n55.6\n51.7\n"), None,
+                         "C9H11NO3·0.5H2O")
+    assert inv.formula == "C9H11NO3" and any("set aside: 0.5H2O" in f for f in inv.findings)

@@ -147,6 +147,18 @@ _CHARGE = re.compile(r"^\[?(?P<body>[^\]\[]*?)\]?(?P<charge>\s*[+-]\d*|\s*\(\s*\
 _PART_SEP = re.compile(r"\s*(?:·|•|\u22c5|\*|\.|\s\+\s|;|,)\s*")
 
 
+def salt_parts(text: str) -> list[str]:
+    """The parts of a salt or solvate formula as written ('C9H11NO3·0.5H2O' -> ['C9H11NO3', '0.5H2O']): a
+    decimal point in a part's leading coefficient is no separator.
+
+    >>> salt_parts("C9H11NO3.2HCl"), salt_parts("C9H11NO3 · 1.5 H2O")
+    (['C9H11NO3', '2HCl'], ['C9H11NO3', '1.5 H2O'])
+    """
+    protected = re.sub(r"(?:(?<=[·•*;,+\u22c5])|(?<=\s))(\s*\d+)\.(\d+)", lambda m: m.group(1) + "\0" + m.group(2),
+                       text.strip())
+    return [p.replace("\0", ".").strip() for p in _PART_SEP.split(protected) if p.strip()]
+
+
 def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
     """The formula of a sample as chemists write it: element counts of the organic parent, its charge,
     and notes on what was done.
@@ -165,11 +177,11 @@ def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
         raise InputError(f"formula: expected text, got {type(text).__name__}")
     s = text.strip()
     notes: list[str] = []
-    parts = [p for p in _PART_SEP.split(s) if p.strip()]
+    parts = salt_parts(s)
     if len(parts) > 1:
         parsed = []
         for p in parts:
-            p2 = re.sub(r"^\d+\s*", "", p.strip())  # '2 HCl', '3H2O'
+            p2 = re.sub(r"^\d+(?:\.\d+)?\s*", "", p.strip())  # '2 HCl', '3H2O', '0.5 H2O'
             try:
                 parsed.append((p, *_one_part(p2)))
             except InputError:

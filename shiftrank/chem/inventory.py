@@ -17,11 +17,12 @@ Shift ranges are common practice (typical 13C regions found in any spectroscopy 
 from __future__ import annotations
 
 import itertools
+from collections import Counter
 from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..errors import InputError
-from .formula import dbe, dbe_note, hill, ion_label, ion_mz, parse_formula
+from .formula import dbe, dbe_note, hill, ion_label, ion_mz, sample_formula
 from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
 from ..words import count
 
@@ -459,7 +460,13 @@ def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -
 
 def _formula_findings(inv: Inventory, formula: str) -> dict:
     """Parse the sample formula into ``inv`` (Hill formula, DBE and its note); return the counts."""
-    fc = parse_formula(formula)
+    # a salt, solvate or ion as printed ('C9H11NO3·0.5H2O', '[C9H12NO3]+'): its organic parent, as a ranking reads it
+    fc, charge, notes = sample_formula(formula)
+    if charge:
+        fc = Counter(fc)
+        fc["H"] = max(0, fc["H"] - charge)
+        notes = notes + [f"read as the neutral parent {hill(fc)} ({'-' if charge > 0 else '+'}{abs(charge)} H)"]
+    inv.findings.extend(f"note: {n}" for n in notes)
     inv.formula = hill(fc)
     inv.dbe = dbe(fc)
     note = dbe_note(inv.dbe)

@@ -135,11 +135,15 @@ def _remove(counts: Counter, delta: dict) -> Counter | None:
     return out if out else None
 
 
+_SUBSCRIPTS = str.maketrans("₀₁₂₃₄₅₆₇₈₉", "0123456789")
+
+
 def read_mass_statements(text: str) -> list[MassStatement]:
     """Molecular-ion statements in characterisation text (nothing when there is none)."""
     if not isinstance(text, str):
         return []
     t = text.replace("−", "-").replace("–", "-").replace("⁺", "+").replace("⁻", "-").replace("·", "•")
+    t = t.translate(_SUBSCRIPTS)   # 'C₉H₁₂NO₃', as a formula copied from a word processor carries it
     out: list[MassStatement] = []
     pos = 0
     for start in _START.finditer(t):
@@ -203,3 +207,26 @@ def nearest_ion(counts: Counter | dict, st: MassStatement) -> tuple[str, float]:
     """The candidate's ion closest to the found value: (adduct, m/z)."""
     adducts = [st.adduct] if st.adduct else LIKELY_ADDUCTS
     return min(((a, ion_mz(counts, a)) for a in adducts), key=lambda x: abs(x[1] - st.found))
+
+
+#: an elemental analysis: 'Anal. Calcd for C9H11NO3: C, 59.66; …', 'Elemental analysis calcd (%) for C9H11NO3',
+#: 'Anal. calc. for C9H11NO3·0.5H2O'
+_ANALYSIS = re.compile(r"\b(?:Anal(?:ysis)?|Elemental\s+analysis|Microanalysis)\.?\s*(?:\(%\)\s*)?"
+                       r"(?:calcd|calc\.?|calculated|required|requires)\.?\s*(?:\(%\)\s*)?(?:for\s*)?:?\s*"
+                       r"(?P<f>(?:[A-Z][a-z]?\d*)+(?:\s*[·•.]\s*\d*(?:\.\d+)?\s*(?:[A-Z][a-z]?\d*)+)*)", re.I)
+
+
+def read_analysis_formula(text: str) -> str | None:
+    """The formula an elemental analysis in characterisation text was calculated for (a solvate or salt as
+    printed, 'C9H11NO3·0.5H2O'), or None.
+
+    >>> read_analysis_formula("Anal. Calcd for C₉H₁₁NO₃: C, 59.66; H, 6.12; N, 7.73. Found: C, 59.58")
+    'C9H11NO3'
+    """
+    if not isinstance(text, str):
+        return None
+    m = _ANALYSIS.search(text.translate(_SUBSCRIPTS).replace("•", "·"))
+    if m is None or not re.search(r"C\d*", m.group("f")):
+        return None
+    return m.group("f").strip(" .")
+

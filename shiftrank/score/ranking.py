@@ -34,7 +34,7 @@ from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import (Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
                             peak_text, peaks_from_records)
 from ..inputs.solvents import normalise_solvent
-from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_mass_statements
+from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
@@ -875,6 +875,10 @@ def _stage(case: dict, nuclei_models) -> tuple:
     if f is not None and not isinstance(f, str):
         raise InputError("formula: expected a formula string such as C9H9N3O2")
     fcounts, charge = None, 0
+    if not f and case_text(case):
+        f = read_analysis_formula(case_text(case))   # 'Anal. Calcd for C9H11NO3: C, 59.66; …'
+        if f:
+            notes.append(f"sample history from the text: the elemental analysis was calculated for {f}")
     if f:
         fcounts, charge, fnotes = sample_formula(f)
         notes.extend(fnotes)
