@@ -152,3 +152,19 @@ def test_predict_sdf_records_without_titles_each_read(tmp_path, v3000, crlf):
     assert [o.get("error") for o in out] == [None] * 3
     assert [o["id"] for o in out] == ["record 1", "anilide", "record 3"]
     assert [len(o["shifts"]) for o in out] == [7, 8, 6]
+
+
+def test_named_candidate_objects_and_a_bad_entry_in_one_case(tmp_path):
+    # a registry export gives {"smiles": …, "name": …} objects; an entry that is neither is that candidate's
+    # error, listed last, while the others are ranked (the same INVENTED peaks as above)
+    case = {"id": "named", "peaks": PEAKS, "formula": "C10H12O2",
+            "candidates": [{"smiles": META, "name": "meta ester"}, PARA, {"name": "no structure"}, 42]}
+    f = tmp_path / "cases.jsonl"
+    f.write_text(json.dumps(case) + "\n")
+    r = run("batch", str(f))
+    assert r.returncode == 0, r.stderr
+    out = json.loads(r.stdout)
+    rows = out["ranking"]
+    assert [x["smiles"] for x in rows[:2]] == [PARA, META] and rows[1].get("name") == "meta ester"
+    assert len(rows) == 4 and all("error" in x for x in rows[2:])
+    assert "candidate 3: expected a SMILES string or an object with a 'smiles' string" in rows[2]["error"]

@@ -51,8 +51,11 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
         case = {k: obj.get(k) for k in FIELDS}
         case["id"] = case_id
         cands = case["candidates"]
-        if not isinstance(cands, list) or not all(isinstance(c, str) for c in cands):
-            exc = InputError(f"line {n}: 'candidates' must be a list of SMILES strings")
+        if isinstance(cands, list):
+            cands = case["candidates"] = [_candidate_entry(c, k) for k, c in enumerate(cands, 1)]
+        if not isinstance(cands, list):
+            exc = InputError(f"line {n}: 'candidates' must be a list of SMILES strings (or of {{\"smiles\": …, "
+                             f"\"name\": …}} objects)")
             exc.case_id = case_id
             out.append((n, exc))
             continue
@@ -68,6 +71,20 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
     if not out:
         raise InputError(f"{p}: no cases found")
     return out
+
+
+def _candidate_entry(c, k: int):
+    """One entry of a case's candidate list as the ranking takes it: a SMILES string as given; an object
+    ``{"smiles": …, "name": …}`` (a registry export) as a (name, SMILES) pair; anything else as a record that
+    could not be read, (label, text, error), listed last with its error while the others are ranked."""
+    if isinstance(c, str):
+        return c
+    if isinstance(c, dict) and isinstance(c.get("smiles"), str):
+        name = c.get("name") if c.get("name") is not None else c.get("id")
+        return (str(name), c["smiles"]) if name is not None and str(name) else c["smiles"]
+    label = str(c.get("name") or c.get("id") or f"candidate {k}") if isinstance(c, dict) else f"candidate {k}"
+    return (label, json.dumps(c)[:80], f"candidate {k}: expected a SMILES string or an object with a 'smiles' "
+                                       f"string, got {json.dumps(c)[:60]}")
 
 
 #: case keys naming a peak file (any format ``read_peaks`` reads: text, CSV, JSON, JCAMP-DX), relative to the batch file
