@@ -287,3 +287,16 @@ def test_ring_ch2_groups_show_axial_and_equatorial_halves():
     assert not r.assignment.unmatched_peaks and not any("by symmetry" in f for f in best.flags)
     # 17 printed H of 18: the one missing is the unobserved OH, which is how spectra are, not a reservation
     assert not any("integrals sum" in f for f in best.flags)
+
+
+def test_integrals_no_candidate_has_are_noted_beside_the_verdict():
+    # ethyl 4-methylbenzoate against its meta isomer (own choice; 1H in CDCl3 from memory) with a stray 3H
+    # singlet printed: both candidates have 12 H, the integrals sum to 15; the order stands (common practice:
+    # integrals count protons), and the verdict says what does not fit
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.94 (d, J = 8.2 Hz, 2H), 7.23 (d, J = 8.2 Hz, 2H), 4.36 (q, J = 7.1 Hz, 2H), "
+            "2.40 (s, 3H), 2.17 (s, 3H), 1.38 (t, J = 7.1 Hz, 3H).")
+    r = rank(text=text, candidates=["CCOC(=O)c1cccc(C)c1", "CCOC(=O)c1ccc(C)cc1"])
+    assert r.best.smiles == "CCOC(=O)c1ccc(C)cc1"
+    assert "(note: the 1H integrals sum to 15 H, more than any candidate has (12 H)" in r.verdict
+    clean = rank(text=text.replace("2.17 (s, 3H), ", ""), candidates=["CCOC(=O)c1cccc(C)c1", "CCOC(=O)c1ccc(C)cc1"])
+    assert "integrals sum" not in clean.verdict

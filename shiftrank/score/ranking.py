@@ -504,7 +504,18 @@ def _order_key(c: CandidateResult, demote: bool):
 
 
 def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> str:
-    """One line on the best candidate: clear winner, indistinguishable pair, leaning, or no fit."""
+    """One line on the best candidate: clear winner, indistinguishable pair, leaning, or no fit; a note
+    follows when the 1H integrals fit no candidate's proton count."""
+    line = _verdict(cands, nuclei)
+    valid = [c for c in cands if not c.error]
+    if len(valid) > 1 and valid[0].formula_ok is not False:
+        note = _proton_total_misfit(valid)
+        if note:
+            line += f" (note: {note})"
+    return line
+
+
+def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
     valid = [c for c in cands if not c.error]
     if not valid:
         return "no candidate could be evaluated"
@@ -619,6 +630,24 @@ def _tautomer_note(group: list[CandidateResult]) -> str:
     names = " and ".join(c.smiles for c in group)   # (a generated one's name is its relation: too long here)
     return (f"{names} are one compound drawn as different NH/OH tautomers; together p = "
             f"{sum(c.probability for c in group):.2f}")
+
+
+def _proton_total_misfit(valid: list[CandidateResult]) -> str | None:
+    """A note when the 1H integrals fit no candidate's proton count (its NH/OH may be missing).  Candidates of
+    one formula all miss alike, so the order stands; the note goes beside the verdict, not into it."""
+    rs = [c.nuclei["1H"] for c in valid if "1H" in c.nuclei and c.nuclei["1H"].by_protons]
+    if not rs or len(rs) != len(valid) or any(p.doubled for p in rs[0].peaks):
+        return None
+    printed = sum(p.capacity or 0 for p in rs[0].peaks if not p.solvent)
+    totals = [(sum(c.units for c in r.classes), sum(c.units for c in r.classes if c.exchangeable)) for r in rs]
+    slack = 1 if max(n for n, _ in totals) >= 20 else 0   # (large integrals are often rounded by one)
+    if any(n - x - slack <= printed <= n + slack for n, x in totals):
+        return None
+    span = sorted({n for n, _ in totals})
+    shown = f"{span[0]}" if len(span) == 1 else f"{span[0]}–{span[-1]}"
+    why = ("an impurity, a solvent or another compound?" if printed > span[-1] else
+           "signals unlisted or integrated low, or another compound?")
+    return f"the 1H integrals sum to {printed} H, {'more' if printed > span[-1] else 'fewer'} than any candidate has ({shown} H): {why}"
 
 
 def _count_misfit(valid: list[CandidateResult]) -> str | None:
