@@ -592,9 +592,10 @@ def _sample_options(s, candidates_required: bool) -> None:
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
                    "or JCAMP-DX spectrum / peak table (.jdx, .dx)")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
-    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' pair per line (.txt, .csv) or a JSON list of pairs")
+    s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
+                   "pairs, or a printed HSQC paragraph")
     s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
-                   help="SMILES strings and/or structure files (.sdf, .mol, .smi)")
+                   help="SMILES strings and/or structure files (.sdf, .mol, .smi, .csv)")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
     s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
     s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
