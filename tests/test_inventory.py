@@ -167,3 +167,17 @@ def test_broad_signals_are_named_exchangeable():
     lines = [x for x in take_inventory(None, h1).h_patterns if x.startswith("broad")]
     assert len(lines) == 3 and all("exchangeable" in x and "D2O" in x for x in lines)
     assert "NH2 (aniline or amide)" in lines[0] and "5.58" in lines[0]
+
+
+def test_1h_integrals_pick_which_pieces_symmetry_doubles():
+    # diethyl terephthalate (own choice; shifts from memory, CDCl3): 13C 165.8 C, 134.1 C, 129.6 CH, 61.5 CH2,
+    # 14.3 CH3 for C12H14O4, and 1H 8.10 (s, 4H), 4.41 (q, 4H), 1.41 (t, 6H).  From 13C alone two ways of
+    # doubling fit the formula; the integrals 6:4:4 leave the one a para-disubstituted ring gives: four CH,
+    # two CH2, two CH3 (common practice: integrals count protons)
+    c13 = parse_peaks("165.8 C\n134.1 C\n129.6 CH\n61.5 CH2\n14.3 CH3\n")
+    h1 = parse_peaks("8.10 4 s\n4.41 4 q\n1.41 6 t\n", nucleus="1H")
+    dup = [f for f in take_inventory(c13, h1, "C12H14O4").findings if "formula needs" in f][0]
+    assert "that the 1H integrals (6:4:4) fit: 1 more CH3 and 1 more CH2 and 3 more CH and 2 more C" in dup
+    assert "; or " not in dup
+    alone = [f for f in take_inventory(c13, None, "C12H14O4").findings if "formula needs" in f][0]
+    assert "integrals" not in alone and "; or " in alone

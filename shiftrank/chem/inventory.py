@@ -157,16 +157,22 @@ def mass_check_line(checks: list[MassCheck]) -> str:
             f"(expected m/z {near.expected_mz:.4f}, error {near.error_ppm:+.1f} ppm)")
 
 
-def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> list[tuple[dict, int]]:
-    """Ways to add dC carbons and dH hydrogens (dH in dH_range) as extra copies of observed piece types.
+def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3, classes: dict | None = None,
+                  h_signals: list[int] | None = None) -> list[tuple[dict, int, bool]]:
+    """Ways to add dC carbons and dH hydrogens (dH in dH_range) as extra copies of observed piece types:
+    (extra pieces by type, dH, whether the 1H integrals fit it).
 
-    At most one way per number of H left for heteroatoms (OH/NH), fewest such H first; for each,
-    a whole-spectrum k-fold copy when it fits (k-fold symmetry), else the way closest to duplicating
-    each observed type in proportion to its count.
+    With ``classes`` (the 13C signals of each protonated type, each its carbon count) and ``h_signals`` (the
+    1H integrals in protons), the ways whose copies, spread over those signals, give the printed integrals
+    exactly come first: a 2H aromatic singlet and a 6H triplet beside one CH and one CH3 signal say which
+    pieces are doubled.  Otherwise at most one way per number of H left for heteroatoms (OH/NH), fewest such H
+    first; for each, a whole-spectrum k-fold copy when it fits (k-fold symmetry), else the way closest to
+    duplicating each observed type in proportion to its count.
     """
     types = [t for t in ORDER if counts.get(t)]
     total = sum(counts[t] for t in types)
     best: dict[int, tuple] = {}
+    fitting: list[tuple] = []
     for combo in itertools.product(range(dC + 1), repeat=len(types)):
         if sum(combo) != dC:
             continue
@@ -175,10 +181,49 @@ def _duplications(counts: dict, dC: int, dH_range: range, limit: int = 3) -> lis
             continue
         k_fold = total and all(n == counts[t] * dC / total for n, t in zip(combo, types))
         spread = -1.0 if k_fold else sum(abs(n - counts[t] * dC / total) for n, t in zip(combo, types))
+        pieces = {t: n for t, n in zip(types, combo) if n}
+        if classes and h_signals and _integrals_fit(pieces, classes, h_signals):
+            fitting.append((spread, h, pieces))
         if h not in best or spread < best[h][0]:
-            best[h] = (spread, {t: n for t, n in zip(types, combo) if n})
+            best[h] = (spread, pieces)
+    if fitting:
+        fitting.sort(key=lambda x: (x[0], -x[1]))
+        return [(pieces, h, True) for _, h, pieces in fitting[:limit]]
     ordered = sorted(best.items(), key=lambda kv: -kv[0])
-    return [(pieces, h) for h, (_, pieces) in ordered[:limit]]
+    return [(pieces, h, False) for h, (_, pieces) in ordered[:limit]]
+
+
+def _integrals_in_protons(inv, nH: int) -> list[int] | None:
+    """The 1H integrals as proton counts: the small-integer ratio, scaled when the formula's H is a whole
+    multiple of its sum (a symmetric molecule integrated against its smallest signal)."""
+    if not inv.h_ratio or not inv.h_total_from_integrals:
+        return None
+    f = nH // inv.h_total_from_integrals if nH % inv.h_total_from_integrals == 0 else 1
+    return [x * max(f, 1) for x in inv.h_ratio]
+
+
+def _integrals_fit(pieces: dict, classes: dict, h_signals: list[int]) -> bool:
+    """Whether the extra pieces, spread over the 13C signals of their type, can give every 1H integral: the
+    protonated signals' proton counts (size × H per carbon) equal the printed integrals, NH/OH signals (the
+    integrals left over) allowed."""
+    want = Counter(h_signals)
+    options_by_type = []
+    for t in ("CH3", "CH2", "CH"):
+        sizes = classes.get(t, [])
+        extra = pieces.get(t, 0)
+        if not sizes:
+            if extra:
+                return False
+            continue
+        ways = [c for c in itertools.product(range(extra + 1), repeat=len(sizes)) if sum(c) == extra]
+        if len(ways) > 2000:
+            return False   # too many ways to spread them: no claim
+        options_by_type.append([[(n + k) * H_OF[t] for n, k in zip(sizes, c)] for c in ways])
+    for combo in itertools.product(*options_by_type):
+        got = Counter(h for hs in combo for h in hs)
+        if not got - want:
+            return True
+    return False
 
 
 #: ppm: a cross peak belongs to a 13C peak within this distance in δC; a proton shift to a 1H peak within this
@@ -327,17 +372,22 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
         elif inv.dbe is not None:
             inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
         if dC > 0 and not unknown:
-            ways = _duplications(by_type, dC, range(max(0, nH - h_on_c - n_xh_max), nH - h_on_c + 1))
+            classes = {t: [n for m, n in types if m == t] for t in ("CH3", "CH2", "CH")}
+            ways = _duplications(by_type, dC, range(max(0, nH - h_on_c - n_xh_max), nH - h_on_c + 1),
+                                 classes=classes, h_signals=_integrals_in_protons(inv, nH))
             if ways:
                 texts = []
-                for pieces, dh in ways:
+                fits = ways[0][2]
+                for pieces, dh, _fit in ways:
                     xh = nH - h_on_c - dh
                     k_fold = dC % carbons == 0 and all(pieces.get(t, 0) == by_type[t] * (dC // carbons) for t in ORDER if by_type[t])
                     texts.append(" and ".join(f"{n} more {t}" for t, n in pieces.items())
                                  + (f" ({xh} H on O/N)" if xh else " (no H on O/N)")
                                  + (f": a {dC // carbons + 1}-fold symmetric molecule" if k_fold else ""))
                 inv.findings.append(f"the formula needs {dC} more C than the signals account for: symmetry-equivalent "
-                                    f"(or overlapping) carbons; possible duplicated pieces: " + "; or ".join(texts))
+                                    f"(or overlapping) carbons; possible duplicated pieces"
+                                    + (f" that the 1H integrals ({':'.join(map(str, _integrals_in_protons(inv, nH)))}) "
+                                       "fit" if fits else "") + ": " + "; or ".join(texts))
             else:
                 inv.findings.append(f"the formula has {dC} more carbons than the signals account for; no duplication of the "
                                     "observed CHn pieces fits its H count: check the multiplicities or the formula")
