@@ -85,6 +85,12 @@ STYLES = {
     "unicode subscripts in solvents": lambda t: t.replace("CDCl3", "CDCl₃").replace("DMSO-d6", "DMSO-d₆"),
     "(2 × C)": lambda t: re.sub(r"\((\d)C\)", r"(\1 × C)", t),
     "final full stop": lambda t: t.rstrip(".") + ".",
+    "em dash ranges": lambda t: re.sub(r"(\d)\s*[–−-]\s*(\d)", r"\1—\2", t),
+    "J = a and b Hz": lambda t: re.sub(r"J\s*=\s*(\d+\.?\d*),\s*(\d+\.?\d*)\s*Hz", r"J = \1 and \2 Hz", t),
+    "J(H,H) = …": lambda t: re.sub(r"(?<!\w)J\s*=", "J(H,H) =", t),
+    "no-break and thin spaces": lambda t: t.replace(" = ", "\u2009=\u2009").replace(", ", ",\u00a0"),
+    "full-width brackets and commas": lambda t: t.replace("(", "（").replace(")", "）").replace(", ", "，"),
+    "hard line breaks (PDF copy)": lambda t: re.sub(r"(\S+ \S+ \S+ \S+ \S+ \S+) ", r"\1\n", t),
 }
 
 

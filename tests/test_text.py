@@ -508,3 +508,13 @@ def test_the_delta_c_symbol_with_a_colon_is_no_quaternary_label():
     assert [p.dept for p in peaks] == [None, None, None]
     peaks = read_nmr_text("13C-NMR (500 MHz, toluene-d8) δ C, 34.82, CH, 146.7, 118.4; CH3, 29.5").sections[0].peaks
     assert [p.dept for p in peaks] == ["C", "CH", "CH", "CH3"]
+
+
+def test_full_width_punctuation_of_east_asian_input_reads_as_ascii():
+    # text typed with an East Asian input method carries full-width brackets, commas and colons (Unicode
+    # Standard, Halfwidth and Fullwidth Forms block U+FF00–U+FFEF); read as their ASCII forms
+    t = read_nmr_text("1H NMR（400 MHz，CDCl3）δ 7.26（d，J = 8.4 Hz，2H），3.80（s，3H）。13C NMR（101 MHz，CDCl3）δ 170.1，21.3。")
+    h, c = t.sections
+    assert h.solvent == "CDCl3" and [(p.shift, p.multiplicity, p.integral, p.j) for p in h.peaks] == [
+        (7.26, "d", 2.0, (8.4,)), (3.8, "s", 3.0, ())]
+    assert [p.shift for p in c.peaks] == [170.1, 21.3]

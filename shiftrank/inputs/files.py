@@ -61,3 +61,18 @@ def read_stdin_text() -> str:
     """Standard input decoded by the same rule as a file."""
     buffer = getattr(sys.stdin, "buffer", None)
     return decode_text(buffer.read()) if buffer is not None else sys.stdin.read().lstrip("\ufeff")
+
+
+#: full-width forms (U+FF01–U+FF5E) as ASCII, and the ideographic comma, full stop and space: text typed with an
+#: East Asian input method prints '（d，J = 8.4 Hz，2H）'
+_FULL_WIDTH = {**{c: c - 0xFEE0 for c in range(0xFF01, 0xFF5F)}, 0x3001: ord(","), 0x3002: ord("."), 0x3000: ord(" ")}
+
+
+def fold_full_width(text: str) -> str:
+    """``text`` with full-width punctuation, digits and letters as their ASCII forms.
+
+    >>> fold_full_width("7.26（d，J = 8.4 Hz，2H）")
+    '7.26(d,J = 8.4 Hz,2H)'
+    """
+    return text.translate(_FULL_WIDTH)
+

@@ -28,6 +28,7 @@ from dataclasses import dataclass
 
 from ..chem.formula import ADDUCTS, hill, ion_label, ion_mz, parse_formula
 from ..errors import InputError
+from .files import fold_full_width
 
 #: ions tried when a statement prints none: the common ones (the molecule's formula, the nearest ion),
 #: and every ion a candidate may fit
@@ -142,7 +143,7 @@ def read_mass_statements(text: str) -> list[MassStatement]:
     """Molecular-ion statements in characterisation text (nothing when there is none)."""
     if not isinstance(text, str):
         return []
-    t = text.replace("−", "-").replace("–", "-").replace("⁺", "+").replace("⁻", "-").replace("·", "•")
+    t = fold_full_width(text).replace("−", "-").replace("–", "-").replace("⁺", "+").replace("⁻", "-").replace("·", "•")
     t = t.translate(_SUBSCRIPTS)   # 'C₉H₁₂NO₃', as a formula copied from a word processor carries it
     out: list[MassStatement] = []
     pos = 0

@@ -24,6 +24,7 @@ import re
 from dataclasses import dataclass, field
 
 from ..errors import InputError
+from .files import fold_full_width
 from ..words import count
 from .peaks import (HSQC_KINDS, RANGES, HsqcList, Peak, PeakList, check_count, doubled_note, flag_solvent, hsqc_list,
                     mark_doubled, merge_duplicates, normalise_1h_multiplicity)
@@ -248,7 +249,7 @@ def _repair(text: str) -> str:
                 continue
         else:   # a paste mixing the accident with real unicode ('¹H-NMR … Î´ 1.52â€“1.58'): mend run by run
             text = _MOJIBAKE_RUN.sub(_mend_run, text)
-    text = text.translate(_SUPER)
+    text = fold_full_width(text).translate(_SUPER)
     for ch in _DASHES:
         text = text.replace(ch, "-")
     text = re.sub(r"[\u00a0\u2009\u202f\u2002\u2003\u200b\t]", " ", text)
