@@ -90,6 +90,9 @@ STYLES = {
     "J(H,H) = …": lambda t: re.sub(r"(?<!\w)J\s*=", "J(H,H) =", t),
     "no-break and thin spaces": lambda t: t.replace(" = ", "\u2009=\u2009").replace(", ", ",\u00a0"),
     "full-width brackets and commas": lambda t: t.replace("(", "（").replace(")", "）").replace(", ", "，"),
+    "J values split by ';'": lambda t: re.sub(r"J\s*=\s*(\d+\.?\d*),\s*(\d+\.?\d*)\s*Hz", r"J = \1; \2 Hz", t),
+    "upper-case conditions": lambda t: re.sub(r"\(([^()]*MHz[^()]*)\)", lambda m: "(" + m.group(1).upper() + ")", t),
+    "ppm after each 1H value": lambda t: re.sub(r"(\d+\.\d+)(?=\s*\()", r"\1 ppm", t) if t.startswith("1H") else t,
     "hard line breaks (PDF copy)": lambda t: re.sub(r"(\S+ \S+ \S+ \S+ \S+ \S+) ", r"\1\n", t),
 }
 
