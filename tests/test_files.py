@@ -86,3 +86,9 @@ def test_smiles_tables_as_spreadsheets_and_scripts_write_them(tmp_path, name, bo
     recs = read_molecules(f)
     assert [(r.id, r.source, r.error) for r in recs] == [("2,4-dichlorophenol", "Oc1ccc(Cl)cc1Cl", None),
                                                           ("pyridine", "c1ccncc1", None)]
+
+
+def test_a_first_record_named_like_a_header_word_stays_a_record(tmp_path):
+    f = tmp_path / "named.smi"
+    f.write_text("CCO structure\nc1ccncc1 pyridine\n")
+    assert [(r.id, r.source) for r in read_molecules(f)] == [("structure", "CCO"), ("pyridine", "c1ccncc1")]

@@ -93,8 +93,10 @@ def _smiles_lines(path: Path, text: str) -> Iterator[MolRecord]:
     smi_col, id_col, delim = 0, 1, None
     if rows:
         head_delim = _row_delimiter(rows[0][1])
-        head = [c.lower().strip('"') for c in (_cells(rows[0][1], head_delim) if head_delim else rows[0][1].split())]
-        if any(c in _SMILES_HEADS for c in head):
+        raw = [c.strip('"') for c in (_cells(rows[0][1], head_delim) if head_delim else rows[0][1].split())]
+        head = [c.lower() for c in raw]
+        # (a data row whose name happens to be 'structure' is no header: a header has no cell RDKit reads)
+        if any(c in _SMILES_HEADS for c in head) and not any(Chem.MolFromSmiles(c) for c in raw if c):
             smi_col = next(i for i, c in enumerate(head) if c in _SMILES_HEADS)
             id_col = next((i for i, c in enumerate(head) if c in _ID_HEADS),
                           1 - smi_col if len(head) == 2 else None)
