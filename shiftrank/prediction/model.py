@@ -176,7 +176,9 @@ class ShiftModel:
             return []
         mu, sigma, radius, count = self.predict_env_arrays(envs)
         R = envs[0].codes.shape[1]
-        rows = zip(np.concatenate([e.centres for e in envs]).tolist(), mu.tolist(), sigma.tolist(),
+        # (float32 arithmetic: 120.69999694824219 is 120.7 to the model's precision; four decimals are shown)
+        rows = zip(np.concatenate([e.centres for e in envs]).tolist(), np.round(mu.astype(np.float64), 4).tolist(),
+                   np.round(np.asarray(sigma, dtype=np.float64), 4).tolist(),
                    np.minimum(radius, R).tolist(), count.tolist(), (radius > R).tolist())
         atoms = [AtomPrediction(*row) for row in rows]
         out, k = [], 0
