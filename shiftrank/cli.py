@@ -79,9 +79,7 @@ def _structure_token(token: str) -> str:
 
 def cmd_facts(args) -> int:
     from .chem.structure import facts_from_mol, structure_facts
-    from .inputs.molecules import read_molecules
-
-    from .inputs.molecules import to_mol
+    from .inputs.molecules import read_molecules, to_mol
 
     items = []
     for token in args.structures:
@@ -127,15 +125,10 @@ def cmd_facts(args) -> int:
 
 
 def cmd_formula(args) -> int:
-    import re
     from collections import Counter
 
-    from .chem.formula import (_ELECTRON, average_weight, dbe, dbe_note, hill, monoisotopic_weight, parse_formula,
-                               salt_parts, sample_formula)
-
-    def _hill_order(counts) -> list[str]:
-        rest = sorted(e for e in counts if e not in ("C", "H"))
-        return ([e for e in ("C", "H") if e in counts] + rest) if "C" in counts else sorted(counts)
+    from .chem.formula import average_weight, charged_mz, dbe, dbe_note, hill, monoisotopic_weight, sample_formula, \
+        written_whole
 
     c, charge, notes = sample_formula(args.formula)
     if not sum(c.values()):
@@ -143,9 +136,9 @@ def cmd_formula(args) -> int:
     if charge:
         # the ion as written, then the neutral parent a proton gained or lost would leave (not for a
         # permanently charged ion such as a quaternary ammonium: the note says so)
-        mz = (monoisotopic_weight(c) - charge * _ELECTRON) / abs(charge)
         sign = "+" if charge > 0 else "-"
-        print(f"[{hill(c)}]{abs(charge) if abs(charge) > 1 else ''}{sign}   ion m/z {mz:.4f} (monoisotopic, electron mass counted)")
+        print(f"[{hill(c)}]{abs(charge) if abs(charge) > 1 else ''}{sign}   ion m/z {charged_mz(c, charge):.4f} "
+              "(monoisotopic, electron mass counted)")
         c = Counter(c)
         c["H"] -= charge
         if c["H"] < 0 or not sum(v for v in c.values() if v > 0):
@@ -154,16 +147,9 @@ def cmd_formula(args) -> int:
                  "(not so for a permanently charged ion, e.g. a quaternary ammonium)"]
     d = dbe(c)
     print(f"{hill(c)}   average mass {average_weight(c):.3f}   monoisotopic {monoisotopic_weight(c):.4f}   DBE {d:g}")
-    parts = salt_parts(args.formula)
-    if len(parts) > 1:   # a salt or solvate: what a balance weighs is the whole
-        whole: Counter = Counter()
-        for x in parts:
-            m = re.match(r"^(\d+(?:\.\d+)?)\s*(.*)$", x.strip())
-            n, body = (float(m.group(1)), m.group(2)) if m else (1.0, x.strip())
-            for el, k in parse_formula(body).items():
-                whole[el] += n * k
-        shown = "".join(f"{el}{v:g}" if v != 1 else el for el, v in ((e, whole[e]) for e in _hill_order(whole)))
-        print(f"as written, {args.formula.strip()}: {shown}   average mass {average_weight(whole):.3f}")
+    whole = written_whole(args.formula)
+    if whole is not None:   # a salt or solvate: what a balance weighs is the whole
+        print(f"as written, {args.formula.strip()}: {hill(whole)}   average mass {average_weight(whole):.3f}")
     for n in notes:
         print(f"note: {n}")
     note = dbe_note(d)

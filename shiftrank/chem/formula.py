@@ -69,7 +69,7 @@ def hill(counts: Counter | dict) -> str:
     """
     def part(sym: str) -> str:
         n = counts[sym]
-        return sym if n == 1 else f"{sym}{n}"
+        return sym if n == 1 else f"{sym}{n:g}"   # (a solvate as written may count half a water's O: 'O3.5')
 
     syms = [s for s, n in counts.items() if n > 0]
     if "C" in syms:
@@ -157,6 +157,30 @@ def salt_parts(text: str) -> list[str]:
     protected = re.sub(r"(?:(?<=[·•*;,+\u22c5])|(?<=\s))(\s*\d+)\.(\d+)", lambda m: m.group(1) + "\0" + m.group(2),
                        text.strip())
     return [p.replace("\0", ".").strip() for p in _PART_SEP.split(protected) if p.strip()]
+
+
+def written_whole(text: str) -> Counter | None:
+    """Element counts of a salt or solvate as written, coefficients included (what a balance weighs), or None
+    for a formula of one part.
+
+    >>> hill(written_whole("C9H11NO3·0.5H2O")), hill(written_whole("C10H14N2 * 2 HCl"))
+    ('C9H12NO3.5', 'C10H16Cl2N2')
+    """
+    parts = salt_parts(text)
+    if len(parts) < 2:
+        return None
+    whole: Counter = Counter()
+    for x in parts:
+        m = re.match(r"^(\d+(?:\.\d+)?)\s*(.*)$", x.strip())
+        n, body = (float(m.group(1)), m.group(2)) if m else (1, x.strip())
+        for el, k in _one_part(body)[0].items():
+            whole[el] += n * k
+    return whole
+
+
+def charged_mz(counts: Counter | dict, charge: int) -> float:
+    """m/z of an ion of the given elements and charge (monoisotopic, the electrons' mass counted)."""
+    return (monoisotopic_weight(counts) - charge * _ELECTRON) / abs(charge)
 
 
 def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
