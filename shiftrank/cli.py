@@ -125,10 +125,8 @@ def cmd_facts(args) -> int:
 
 
 def cmd_formula(args) -> int:
-    from collections import Counter
-
-    from .chem.formula import average_weight, charged_mz, dbe, dbe_note, hill, monoisotopic_weight, sample_formula, \
-        written_whole
+    from .chem.formula import (average_weight, charged_mz, dbe, dbe_note, hill, monoisotopic_weight, neutral_parent,
+                               sample_formula, written_whole)
 
     c, charge, notes = sample_formula(args.formula)
     if not sum(c.values()):
@@ -139,9 +137,8 @@ def cmd_formula(args) -> int:
         sign = "+" if charge > 0 else "-"
         print(f"[{hill(c)}]{abs(charge) if abs(charge) > 1 else ''}{sign}   ion m/z {charged_mz(c, charge):.4f} "
               "(monoisotopic, electron mass counted)")
-        c = Counter(c)
-        c["H"] -= charge
-        if c["H"] < 0 or not sum(v for v in c.values() if v > 0):
+        c = neutral_parent(c, charge)
+        if c is None:
             raise InputError(f"formula '{args.formula}': no neutral parent (too few H for charge {charge:+d})")
         notes = [f"below: the neutral parent if the charge is {abs(charge)} proton(s) {'gained' if charge > 0 else 'lost'} "
                  "(not so for a permanently charged ion, e.g. a quaternary ammonium)"]

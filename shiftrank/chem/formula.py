@@ -178,6 +178,20 @@ def written_whole(text: str) -> Counter | None:
     return whole
 
 
+def neutral_parent(counts: Counter | dict, charge: int) -> Counter | None:
+    """The neutral molecule a protonated (charge > 0) or deprotonated (< 0) ion would leave: |charge| H fewer
+    or more; None when the ion has too few H.  (A permanently charged ion, a quaternary ammonium, has none.)
+
+    >>> hill(neutral_parent(parse_formula("C9H12NO3"), 1))
+    'C9H11NO3'
+    """
+    out = Counter(counts)
+    out["H"] -= charge
+    if out["H"] < 0 or not any(v > 0 for v in out.values()):
+        return None
+    return out
+
+
 def charged_mz(counts: Counter | dict, charge: int) -> float:
     """m/z of an ion of the given elements and charge (monoisotopic, the electrons' mass counted)."""
     return (monoisotopic_weight(counts) - charge * _ELECTRON) / abs(charge)

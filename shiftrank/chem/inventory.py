@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..errors import InputError
-from .formula import dbe, dbe_note, hill, ion_label, ion_mz, sample_formula
+from .formula import dbe, dbe_note, hill, ion_label, ion_mz, neutral_parent, sample_formula
 from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
 from ..words import count
 
@@ -512,9 +512,8 @@ def _formula_findings(inv: Inventory, formula: str) -> dict:
     """Parse the sample formula into ``inv`` (Hill formula, DBE and its note); return the counts."""
     # a salt, solvate or ion as printed ('C9H11NO3·0.5H2O', '[C9H12NO3]+'): its organic parent, as a ranking reads it
     fc, charge, notes = sample_formula(formula)
-    if charge:
-        fc = Counter(fc)
-        fc["H"] = max(0, fc["H"] - charge)
+    if charge and neutral_parent(fc, charge) is not None:
+        fc = neutral_parent(fc, charge)
         notes = notes + [f"read as the neutral parent {hill(fc)} ({'-' if charge > 0 else '+'}{abs(charge)} H)"]
     inv.findings.extend(f"note: {n}" for n in notes)
     inv.formula = hill(fc)

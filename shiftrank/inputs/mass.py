@@ -26,7 +26,7 @@ import re
 from collections import Counter
 from dataclasses import dataclass
 
-from ..chem.formula import ADDUCTS, hill, ion_label, ion_mz, parse_formula
+from ..chem.formula import _SUBSCRIPTS, ADDUCTS, hill, ion_label, ion_mz, parse_formula
 from ..errors import InputError
 from .files import fold_full_width
 
@@ -136,9 +136,6 @@ def _remove(counts: Counter, delta: dict) -> Counter | None:
     return out if out else None
 
 
-_SUBSCRIPTS = str.maketrans("₀₁₂₃₄₅₆₇₈₉", "0123456789")
-
-
 def read_mass_statements(text: str) -> list[MassStatement]:
     """Molecular-ion statements in characterisation text (nothing when there is none)."""
     if not isinstance(text, str):
@@ -230,4 +227,3 @@ def read_analysis_formula(text: str) -> str | None:
     if m is None or not re.search(r"C\d*", m.group("f")):
         return None
     return m.group("f").strip(" .")
-
