@@ -211,3 +211,11 @@ def test_candidates_differing_only_in_stereochemistry_are_called_so():
     assert "indistinguishable" in r.verdict and "differ only in stereochemistry" in r.verdict
     r = rank(shifts, ["COc1ccc(C2CCC(O)CC2)cc1", "COc1ccc(C2CCCC(O)C2)cc1"])
     assert "stereochemistry" not in r.verdict
+
+
+def test_a_peak_list_given_beside_text_wins_with_a_note():
+    # nothing is dropped without a word: the text's 13C section, unused because a list was given, is noted
+    text = "13C NMR (101 MHz, CDCl3) δ " + ", ".join(str(s) for s, _ in META_PEAKS) + "."
+    r = rank([s for s, _ in PARA_PEAKS], [META, PARA], text=text)
+    assert r.best.smiles == PARA and len(r.peaks["13C"]) == len(PARA_PEAKS)
+    assert any("13C from 'peaks'; the text's 13C section (10 peaks) was not used" in n for n in r.notes)

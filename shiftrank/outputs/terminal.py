@@ -16,12 +16,14 @@ SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc"
 
 
 def peak_sources(given: dict) -> dict:
-    """Nucleus -> the named inputs (files) that may have given its peaks, from ``{field: name}``.
+    """Nucleus -> the named input (file) that gave its peaks, from ``{field: name}``: a peak list given for the
+    nucleus before the text (the ranking reads it so).
 
-    >>> peak_sources({"peaks": "a_13c.txt", "peaks_1h": "a_1h.txt"})["1H"]
-    'a_1h.txt'
+    >>> s = peak_sources({"peaks": "a_13c.txt", "peaks_1h": None, "text": "a.txt"})
+    >>> s["13C"], s["1H"]
+    ('a_13c.txt', 'a.txt')
     """
-    return {n: ", ".join(given[k] for k in keys if given.get(k)) for n, keys in SOURCES.items()}
+    return {n: next((given[k] for k in keys if given.get(k)), "") for n, keys in SOURCES.items()}
 
 
 def print_ranking(result, inputs: dict, out=None) -> None:

@@ -721,6 +721,10 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
             continue
         if given is None or (isinstance(given, (list, tuple)) and len(given) == 0 and nucleus == "1H"):
             continue
+        if parsed is not None and parsed.section(nucleus) is not None and parsed.section(nucleus).peaks:
+            # both given: the list wins, and nothing is dropped without a word
+            notes.append(f"{nucleus} from '{key}'; the text's {nucleus} section "
+                         f"({len(parsed.section(nucleus).peaks)} peaks) was not used")
         pl = as_peaklist(given, sec_solvent, nucleus)
         out[nucleus] = pl
         notes.extend(pl.notes)
