@@ -518,3 +518,11 @@ def test_full_width_punctuation_of_east_asian_input_reads_as_ascii():
     assert h.solvent == "CDCl3" and [(p.shift, p.multiplicity, p.integral, p.j) for p in h.peaks] == [
         (7.26, "d", 2.0, (8.4,)), (3.8, "s", 3.0, ())]
     assert [p.shift for p in c.peaks] == [170.1, 21.3]
+
+
+def test_a_typo_of_four_digits_before_the_list_is_noted_not_lost():
+    # '1666' for 166.6 (a dropped decimal point) stands where the conditions end: it is named in a note
+    sec = read_nmr_text("13C NMR (101 MHz, DMSO-d6) δ 1666, 150.1, 137.6.").sections[0]
+    assert [p.shift for p in sec.peaks] == [150.1, 137.6]
+    assert any("not read as peaks: 1666" in n for n in sec.notes)
+    assert not read_nmr_text("13C NMR (101 MHz, DMSO-d6, 298 K) δ 150.1").sections[0].notes

@@ -630,7 +630,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             sec = TextSection(nuc, header)
         if comma_note:
             sec.notes.append(comma_note)
-        stray = re.findall(r"(?<![\d.])\d{1,3}\.\d+(?![\d.])(?!\s*(?:MHz|K\b|°|Hz|ppm\)|ppm\s*\)))", cond)
+        # (a value of four or more digits before the list, '1666, 150.1', is a typo for a shift, not a condition)
+        stray = re.findall(r"(?<![\d.\w])(?:\d{1,3}\.\d+|\d{4,}(?:\.\d+)?)(?![\d.])(?!\s*(?:MHz|K\b|°|Hz|ppm\)|ppm\s*\)))",
+                           cond)
         if stray and peaks_text:
             sec.notes.append(f"values before the peak list were not read as peaks: {', '.join(stray[:5])} (in '{cond.strip()[:60]}')")
         # conditions may also trail the header without brackets: "1H NMR, CDCl3, 400 MHz: δ …"
