@@ -526,3 +526,13 @@ def test_a_typo_of_four_digits_before_the_list_is_noted_not_lost():
     assert [p.shift for p in sec.peaks] == [150.1, 137.6]
     assert any("not read as peaks: 1666" in n for n in sec.notes)
     assert not read_nmr_text("13C NMR (101 MHz, DMSO-d6, 298 K) δ 150.1").sections[0].notes
+
+
+def test_slips_inside_a_value_are_mended_with_a_note():
+    # the letter O for a zero ('15O.1', OCR and typing slips), and a value with two decimal points (dev paragraph
+    # PMC2267062 prints '5.7.59 (d, 2H, …)'): read as one value each, with a note; 'H2O' is left alone
+    sec = read_nmr_text("13C NMR (101 MHz, DMSO-d6) δ 166.6, 15O.1, 137.6, 121.9.1.").sections[0]
+    assert [p.shift for p in sec.peaks] == [166.6, 150.1, 137.6, 121.9]
+    assert any("letter O" in n for n in sec.notes) and any("'121.9.1' has two decimal points" in n for n in sec.notes)
+    sec = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H), 4.79 (s, H2O).").sections[0]
+    assert not sec.notes

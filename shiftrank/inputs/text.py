@@ -485,6 +485,14 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
     if fixed != body:
         sec.notes.append("decimal commas read as decimal points (e.g. '6,98' as 6.98)")
         body = fixed
+    # typing and OCR slips inside a value: the letter O for a zero ('15O.1', '3.8O'), two decimal points
+    fixed = re.sub(r"(?<=\d)[Oo](?=\.\d)|(?<=\d\.)[Oo](?=\d|\b)|(?<=\d\.\d)[Oo](?![A-Za-z])", "0", body)
+    if fixed != body:
+        sec.notes.append("the letter O inside a value read as a zero (e.g. '15O.1' as 150.1)")
+        body = fixed
+    for m in re.finditer(r"(?<![\d.])(\d{1,3}\.\d+)\.\d+(?![\d.])", body):
+        sec.notes.append(f"'{m.group(0)}' has two decimal points: read as {m.group(1)}")
+    body = re.sub(r"(?<![\d.])(\d{1,3}\.\d+)\.\d+(?![\d.])", r"\1", body)
     if body.count("(") != body.count(")") or body.count("[") != body.count("]"):
         # an unclosed bracket would swallow every later peak: split before each 'shift (' and at top-level commas
         sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift (' and at commas outside brackets")
