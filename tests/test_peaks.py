@@ -75,6 +75,10 @@ def test_a_typed_1h_multiplet_across_the_chloroform_line_is_the_compounds():
     assert [p.shift for p in bare.peaks if p.solvent] == [7.26]
     listed = parse_peaks("7.26 1H s\n7.35-7.20 m\n2.35 3H s\n", nucleus="1H", solvent="CDCl3")
     assert not any(p.solvent for p in listed.peaks)
+    # an instrument's integration that took in the residual DMSO line: 0.4 beside 0.96 for one H is less
+    # than half a proton, so the line stays set aside (the demo's QC bottle list)
+    raw = parse_peaks("2.50 0.4 m\n3.78 3.1 s\n6.85 2.0 d\n10.31 0.96 br\n", nucleus="1H", solvent="DMSO-d6")
+    assert [p.shift for p in raw.peaks if p.solvent] == [2.50]
 
 
 def test_plain_1h_lines_as_people_type_them():

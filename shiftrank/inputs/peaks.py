@@ -441,18 +441,22 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
 
     13C peaks with a DEPT multiplicity other than C are never solvent (a
     deuterated carbon carries no H); with ``keep_integrated`` (printed 1H text and typed 1H lists, where
-    people integrate their compound's signals, not the solvent's) a 1H peak with an integral is never
-    solvent either, and a 1H multiplet printed as a range wider than ``SOLVENT_RANGE_MAX`` ppm
+    people integrate their compound's signals, not the solvent's) a 1H peak with an integral of at least half
+    a proton is never solvent either, and a 1H multiplet printed as a range wider than ``SOLVENT_RANGE_MAX`` ppm
     (``7.35–7.20 (m)``) is not a residual line whatever its centre.
     Flagged peaks stay in the list; the ranking lets them go unmatched at no cost.
     """
     key = normalise_solvent(solvent)
     if key is None:
         return peaks
-    for p in peaks.peaks:
+    for k, p in enumerate(peaks.peaks):
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
             continue
-        if peaks.nucleus == "1H" and (keep_integrated and p.intensity is not None
+        # (an integral below half a proton, counted on the list's own scale, is no proton of the compound: a
+        # residual line that an instrument's integration took in, '2.50 0.4 m' beside 0.96 for one H)
+        others = [q.intensity for i, q in enumerate(peaks.peaks) if i != k and q.intensity] or [1.0]
+        whole = p.intensity is not None and p.intensity >= 0.5 * min(1.0, min(others))
+        if peaks.nucleus == "1H" and (keep_integrated and whole
                                       or p.lo is not None and p.hi - p.lo > SOLVENT_RANGE_MAX):
             continue
         ref = match_solvent(p.shift, key, peaks.nucleus)
