@@ -219,3 +219,12 @@ def test_a_peak_list_given_beside_text_wins_with_a_note():
     r = rank([s for s, _ in PARA_PEAKS], [META, PARA], text=text)
     assert r.best.smiles == PARA and len(r.peaks["13C"]) == len(PARA_PEAKS)
     assert any("13C from 'peaks'; the text's 13C section (10 peaks) was not used" in n for n in r.notes)
+
+
+def test_one_structure_given_twice_is_named_so_and_counted_once():
+    # the para ester written as aromatic and as Kekulé SMILES: the same structure, whose probabilities add up
+    kekule = "CCOC(=O)C1=CC=C(C)C=C1"
+    r = rank(peaks(PARA_PEAKS), [META, PARA, kekule])
+    assert any(n.startswith(f"{PARA} and {kekule} are the same structure written twice") or
+               n.startswith(f"{kekule} and {PARA} are the same structure written twice") for n in r.notes)
+    assert r.verdict.startswith("clear winner") and "it is the same structure: together p = " in r.verdict

@@ -547,8 +547,10 @@ def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
     p_best = sum(c.probability for c in same)
     shown = f"{label} (p = {best.probability:.2f})"
     if len(same) > 1:
-        shown = (f"{label} (p = {best.probability:.2f}; drawn as {', '.join(c.smiles for c in same[1:])} it is the "
-                 f"same compound, an NH/OH tautomer: together p = {p_best:.2f})")
+        alike = _drawn_alike(same)
+        how = "the same structure" if alike else "the same compound, an NH/OH tautomer"
+        shown = (f"{label} (p = {best.probability:.2f}; {'written' if alike else 'drawn'} as "
+                 f"{', '.join(c.smiles for c in same[1:])} it is {how}: together p = {p_best:.2f})")
     if p_best >= 0.9:
         return f"clear winner: {shown}{conflict}"
     rest = [c for c in valid if all(c is not x for x in same)]
@@ -606,30 +608,42 @@ def _compound_of(smiles: str) -> str:
 
 
 def tautomer_groups(cands: list[CandidateResult]) -> list[list[CandidateResult]]:
-    """Candidates (best first) that are one compound drawn as different NH/OH tautomers (the H on another
-    ring N, or on O instead of N): a chemist counts them as one structure, so their probabilities add up.
-    Only candidates with one heavy-atom graph are compared by InChI (:func:`shiftrank.chem.isomers.compound_key`)."""
+    """Candidates (best first) that are one compound: the same structure written twice (another SMILES of the
+    same molecule, a Kekulé form), or drawn as different NH/OH tautomers (the H on another ring N, or on O
+    instead of N).  A chemist counts them as one structure, so their probabilities add up.  Tautomers are
+    compared by InChI (:func:`shiftrank.chem.isomers.compound_key`) among candidates of one heavy-atom graph."""
     by_graph: dict = {}
     for c in cands:
         if not c.error:
-            g = _skeleton_of(c.smiles)
-            if g is not None:
+            skeleton = _skeleton_of(c.smiles)
+            g = ("graph", skeleton) if skeleton is not None else ("same", _canonical_of(c.smiles))
+            if g[1] is not None:
                 by_graph.setdefault(g, []).append(c)
     out = []
-    for same_graph in by_graph.values():
+    for key, same_graph in by_graph.items():
         if len(same_graph) < 2:
             continue
         groups: dict = {}
         for c in same_graph:
-            groups.setdefault(_compound_of(c.smiles), []).append(c)
+            groups.setdefault(_compound_of(c.smiles) if key[0] != "same" else key, []).append(c)
         out += [g for g in groups.values() if len(g) > 1]
     return out
 
 
+def _canonical_of(smiles: str) -> str | None:
+    mol = _parse(smiles)[0]
+    return Chem.MolToSmiles(mol) if mol is not None else None
+
+
+def _drawn_alike(group: list[CandidateResult]) -> bool:
+    """Whether a group of one compound is one structure written more than once (not tautomer drawings)."""
+    return len({_canonical_of(c.smiles) for c in group}) == 1
+
+
 def _tautomer_note(group: list[CandidateResult]) -> str:
     names = " and ".join(c.smiles for c in group)   # (a generated one's name is its relation: too long here)
-    return (f"{names} are one compound drawn as different NH/OH tautomers; together p = "
-            f"{sum(c.probability for c in group):.2f}")
+    how = "the same structure written twice" if _drawn_alike(group) else "one compound drawn as different NH/OH tautomers"
+    return f"{names} are {how}; together p = {sum(c.probability for c in group):.2f}"
 
 
 def _proton_total_misfit(valid: list[CandidateResult]) -> str | None:
