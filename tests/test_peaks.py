@@ -169,3 +169,12 @@ def test_solvents_beyond_fulmer_and_mixtures_set_aside_their_lines():
     assert key == "CDCl3 + CD3OD" and normalise_solvent("CDCl3 + 1 drop CD3OD") == key
     pl = parse_peaks("170.1\n77.2\n49.0\n21.3\n", solvent=key)
     assert [p.shift for p in pl.peaks if p.solvent] == [49.0, 77.2]
+
+
+def test_spreadsheet_peak_tables_with_units_in_the_header_and_semicolons():
+    # column headers as spreadsheets and instrument exports write them ('Shift (ppm)', 'Integral', 'Mult.'),
+    # comma- or (European locale) semicolon-separated (common practice)
+    pl = parse_peaks("Shift (ppm),Intensity,Type\n166.6,120,C\n55.6,900,CH3\n")
+    assert [(p.shift, p.multiplicity) for p in pl.peaks] == [(55.6, "CH3"), (166.6, "C")]
+    h1 = parse_peaks("ppm;Integral;Mult.\n7.28;1;dd\n3.84;3;s\n", nucleus="1H")
+    assert [(p.shift, p.intensity, p.multiplicity) for p in h1.peaks] == [(3.84, 3.0, "s"), (7.28, 1.0, "dd")]

@@ -295,8 +295,15 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
 
 
 def _pick(header: list[str], names: tuple[str, ...]) -> int | None:
-    for i, h in enumerate(header):
-        if h.strip().lower() in names:
+    """The column whose header is one of ``names``, or else whose header starts with one of them before a
+    unit or remark ('Shift (ppm)', 'δ [ppm]', 'Integral (rel.)', 'Mult.')."""
+    heads = [h.strip().lower() for h in header]
+    for i, h in enumerate(heads):
+        if h in names:
+            return i
+    for i, h in enumerate(heads):
+        word = re.split(r"[\s(\[/.:]", h, maxsplit=1)[0]
+        if word in names:
             return i
     return None
 
@@ -307,8 +314,10 @@ def _cell(row: list[str], i: int | None) -> str | None:
 
 def _from_csv(text: str, src: str, nucleus: str) -> list[Peak]:
     lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    dialect = csv.excel_tab if "\t" in lines[0] and "," not in lines[0] else csv.excel
-    rows = list(csv.reader(io.StringIO("\n".join(lines)), dialect))
+    first = lines[0]
+    # tab, comma or (a European spreadsheet's export) semicolon, whichever the header uses most
+    delim = max(("\t", ",", ";"), key=first.count) if any(d in first for d in "\t,;") else ","
+    rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delim))
     header = rows[0]
     si = _pick(header, _SHIFT_COLS)
     if si is None:
@@ -482,7 +491,7 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
             if not content:
                 raise InputError(f"{source}: no peaks (only comments)")
             first = content[0]
-            fmt = "csv" if re.search(r"[A-Za-zδ]{3,}", first) and any(c in first for c in ",\t") else "text"
+            fmt = "csv" if re.search(r"[A-Za-zδ]{3,}", first) and any(c in first for c in ",\t;") else "text"
     reader = {"json": _from_json, "csv": _from_csv, "text": _from_text}.get(fmt)
     if reader is None:
         raise InputError(f"peak format '{fmt}': use text, csv or json")
