@@ -228,3 +228,10 @@ def test_one_structure_given_twice_is_named_so_and_counted_once():
     assert any(n.startswith(f"{PARA} and {kekule} are the same structure written twice") or
                n.startswith(f"{kekule} and {PARA} are the same structure written twice") for n in r.notes)
     assert r.verdict.startswith("clear winner") and "it is the same structure: together p = " in r.verdict
+
+
+def test_a_given_solvent_that_differs_from_the_printed_one_is_noted():
+    text = "13C NMR (101 MHz, DMSO-d6) δ " + ", ".join(str(s) for s, _ in PARA_PEAKS) + "."
+    r = rank(text=text, candidates=[META, PARA], solvent="CDCl3")
+    assert any("printed in DMSO-d6, but the solvent given is CDCl3: CDCl3 is used" in n for n in r.notes)
+    assert not any("printed in" in n for n in rank(text=text, candidates=[META, PARA], solvent="DMSO").notes)

@@ -729,6 +729,9 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
             sec = parsed.section(nucleus)
             if sec is not None and sec.peaks:
                 sec_solvent = solvent or sec.solvent
+                if solvent and sec.solvent and normalise_solvent(sec.solvent) not in (None, solvent):
+                    notes.append(f"{nucleus} text: printed in {sec.solvent}, but the solvent given is {solvent}: "
+                                 f"{solvent} is used")
                 pl = parsed.peaklist(nucleus, sec_solvent, source=f"{nucleus} text")
                 out[nucleus] = pl
                 notes.extend(pl.notes)
