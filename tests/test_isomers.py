@@ -308,12 +308,22 @@ def test_generated_alternatives_carry_their_relation_in_json():
 
 def test_n1_against_n3_alkylation_of_ring_lactams():
     # hand enumeration (common practice: uracils and quinazolin-4-ones alkylate at N1 or N3, or at O):
-    # 1-(cyclopropylmethyl)uracil -> its N3 isomer (the H changes places) and the 2-alkoxy pyrimidinone
+    # 1-(cyclopropylmethyl)uracil -> its N3 isomer (the H changes places) and the 2- and 4-alkoxy pyrimidinones
     amb = [a for a in isomers("O=c1ccn(CC2CC2)c(=O)[nH]1") if a.kind == "ambident"]
-    assert keys(amb) == {key("O=c1cc[nH]c(=O)n1CC1CC1"), key("O=c1ccnc(OCC2CC2)[nH]1")}
+    assert keys(amb) == {key("O=c1cc[nH]c(=O)n1CC1CC1"), key("O=c1ccnc(OCC2CC2)[nH]1"), key("O=c1nccc(OCC2CC2)[nH]1")}
     assert any("CH2cPr on ring N" in a.relation for a in amb)
     # 3-ethylquinazolin-4(3H)-one -> 1-ethylquinazolin-4(1H)-one (the double bonds shift) and 4-ethoxyquinazoline
     amb = [a for a in isomers("CCn1cnc2ccccc2c1=O") if a.kind == "ambident"]
     assert keys(amb) == {key("CCn1cnc(=O)c2ccccc21"), key("CCOc1ncnc2ccccc12")}
     # 2-methylpyridazin-3(2H)-one: N1 has no neutral closed-shell form with the methyl, so only O-methyl
     assert keys([a for a in isomers("Cn1ncccc1=O") if a.kind == "ambident"]) == {key("COc1cccnn1")}
+
+
+def test_4_pyridone_n_and_o_alkylation_both_ways():
+    # hand enumeration (common practice: 4-pyridones and 4-quinolones alkylate at N or at O): the C=O is not
+    # next to the N, so the amide rule alone missed them; an alkoxy on the benzo ring of a quinoline has no
+    # such partner
+    assert keys([a for a in isomers("Cn1ccc(=O)cc1") if a.kind == "ambident"]) == {key("COc1ccncc1")}
+    back = [a for a in isomers("COc1ccncc1") if a.kind == "ambident"]
+    assert keys(back) == {key("Cn1ccc(=O)cc1")} and "N-alkyl instead of O-alkyl" in back[0].relation
+    assert not [a for a in isomers("COc1ccc2ncccc2c1") if a.kind == "ambident"]

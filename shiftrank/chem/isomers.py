@@ -430,7 +430,74 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 m = _reattach(mol, [(r, x, t)], keep_h_off=not a.GetTotalNumHs())
                 if m is not None and not open_shell(m) and not any(at.GetFormalCharge() for at in m.GetAtoms()):
                     out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
+            kind = _group_kind(mol, x)
+            if kind is None:
+                continue
+            # O-alkylation at a ring C=O further round the ring (a uracil's O4 for its N1 group; the C=O next to
+            # the N is the N- against O-alkylation of the amide, below)
+            for c in system:
+                for b in mol.GetAtomWithIdx(c).GetBonds():
+                    o = b.GetOtherAtomIdx(c)
+                    if (b.GetBondType() != Chem.BondType.DOUBLE or mol.GetAtomWithIdx(o).GetAtomicNum() != 8
+                            or o in system or mol.GetBondBetweenAtoms(c, r) is not None):
+                        continue
+                    m = _to_ring_oxygen(mol, r, x, c, o)
+                    if m is not None:
+                        out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {r} to O atom {o})"))
     return out
+
+
+def _alkoxy_azine_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """The reverse of the O-alkylation above: the group of an alkoxy- or acyloxy-azine moved from its O to a ring
+    N of the same six-membered ring further round (4-methoxypyridine -> 1-methylpyridin-4-one; the N next to
+    the carbon is the amide case of :func:`_n_o_moves`)."""
+    out = []
+    rings6 = [set(r) for r in mol.GetRingInfo().AtomRings() if len(r) == 6]
+    for system in _ring_systems(mol):
+        for c in system:
+            for b in mol.GetAtomWithIdx(c).GetBonds():
+                o = b.GetOtherAtom(mol.GetAtomWithIdx(c))
+                if o.GetAtomicNum() != 8 or o.GetIdx() in system or o.GetDegree() != 2 or b.GetBondType() != Chem.BondType.SINGLE:
+                    continue
+                x = next(n.GetIdx() for n in o.GetNeighbors() if n.GetIdx() != c)
+                kind = _group_kind(mol, x)
+                if kind is None:
+                    continue
+                for t in system:
+                    a = mol.GetAtomWithIdx(t)
+                    if (a.GetAtomicNum() != 7 or a.GetDegree() != 2 or a.GetTotalNumHs() or a.GetFormalCharge()
+                            or mol.GetBondBetweenAtoms(c, t) is not None or not any({c, t} <= r for r in rings6)):
+                        continue
+                    rw = Chem.RWMol(mol)
+                    _rebond(rw, x, o.GetIdx(), t)
+                    bond = rw.GetBondBetweenAtoms(c, o.GetIdx())
+                    bond.SetBondType(Chem.BondType.DOUBLE)
+                    bond.SetIsAromatic(False)
+                    n = rw.GetAtomWithIdx(t)
+                    n.SetNoImplicit(True)
+                    n.SetNumExplicitHs(0)
+                    m = _finish(rw)
+                    if m is not None and not open_shell(m) and not any(z.GetFormalCharge() for z in m.GetAtoms()):
+                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx()} to N atom {t})"))
+    return out
+
+
+def _to_ring_oxygen(mol: Chem.Mol, r: int, x: int, c: int, o: int) -> Chem.Mol | None:
+    """Group root ``x`` moved from ring N ``r`` to the oxygen ``o`` of the ring C=O at ``c``: the C–O bond becomes
+    single, N ``r`` keeps no H, and RDKit's kekulization places the ring's double bonds (None when it cannot,
+    or the result is charged or open-shell)."""
+    rw = Chem.RWMol(mol)
+    _rebond(rw, x, r, o)
+    bond = rw.GetBondBetweenAtoms(c, o)
+    bond.SetBondType(Chem.BondType.SINGLE)
+    bond.SetIsAromatic(False)
+    n = rw.GetAtomWithIdx(r)
+    n.SetNoImplicit(True)
+    n.SetNumExplicitHs(0)
+    m = _finish(rw)
+    if m is None or open_shell(m) or any(a.GetFormalCharge() for a in m.GetAtoms()):
+        return None
+    return m
 
 
 # C- against O-alkylation of 1,3-dicarbonyls, on the Kekulé form: (reaction SMARTS, relation)
@@ -563,7 +630,7 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     global _DICARBONYL_RXNS
     if _DICARBONYL_RXNS is None:
         _DICARBONYL_RXNS = [(AllChem.ReactionFromSmarts(s), lab) for s, lab in _DICARBONYL]
-    out = _azole_moves(mol) + _lactam_n_moves(mol) + _n_o_moves(mol) + _acyl_moves(mol)
+    out = _azole_moves(mol) + _lactam_n_moves(mol) + _n_o_moves(mol) + _alkoxy_azine_moves(mol) + _acyl_moves(mol)
     kek = Chem.Mol(mol)
     try:
         Chem.Kekulize(kek, clearAromaticFlags=True)
