@@ -181,3 +181,17 @@ def test_1h_integrals_pick_which_pieces_symmetry_doubles():
     assert "; or " not in dup
     alone = [f for f in take_inventory(c13, None, "C12H14O4").findings if "formula needs" in f][0]
     assert "integrals" not in alone and "; or " in alone
+
+
+def test_printed_proton_counts_are_kept_and_read_for_symmetry():
+    # diethyl terephthalate (own choice; 1H from memory): printed as whole protons 4H, 4H, 6H, they are kept (a
+    # ratio 2:2:3 would hide that they match the formula), a 6H t with a 4H q reads as two equivalent ethyls and
+    # a 4H aromatic singlet as equivalent ring protons (common practice); tert-butyl 9H s likewise
+    h1 = parse_peaks("8.10 4 s\n4.41 4 q\n1.41 6 t\n", nucleus="1H")
+    inv = take_inventory(None, h1, "C12H14O4")
+    assert inv.h_ratio == [6, 4, 4] and inv.h_as_printed
+    assert any("2 equivalent ethyl groups" in x for x in inv.h_patterns)
+    assert any(x.startswith("4H singlet at 8.1 among the aromatic signals") for x in inv.h_patterns)
+    assert any("sum to the formula's 14 H" in f for f in inv.findings)
+    boc = take_inventory(None, parse_peaks("4.60 1 br s\n3.10 2 q\n1.44 9 s\n1.10 3 t\n", nucleus="1H"))
+    assert any("tert-butyl" in x for x in boc.h_patterns) and any("an ethyl group" in x for x in boc.h_patterns)

@@ -106,6 +106,7 @@ class Inventory:
     h_on_carbon_observed: int = 0
     h_ratio: list[int] | None = None
     h_total_from_integrals: int | None = None
+    h_as_printed: bool = False    # the integrals were whole proton counts ('2H'), kept as given
     formula: str | None = None
     dbe: float | None = None
     tentative: str = ""
@@ -129,7 +130,8 @@ class Inventory:
         elif self.has_13c:
             out.append(f"13C signals: {self.carbons_observed} (no DEPT multiplicities, so no CHn or H count from 13C)")
         if self.h_ratio:
-            out.append(f"1H integrals as small integers: {':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
+            out.append(f"1H integrals {'as printed' if self.h_as_printed else 'as small integers'}: "
+                       f"{':'.join(map(str, self.h_ratio))} (sum {sum(self.h_ratio)})")
         if self.h_regions:
             out.append("1H by region: " + ", ".join(f"{n:g} H {r}" for r, n in self.h_regions if n))
         out.extend(f"1H pattern: {x}" for x in self.h_patterns)
@@ -367,7 +369,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
             n_arom = sum(1 for p in peaks if 110 <= p.shift <= 160)
             msg = f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); {count(n_arom, '13C signal lies', '13C signals lie')} in 110-160 ppm"
             if h1 is not None:
-                msg += f", {sum(1 for p in h1.sample_peaks() if p.shift > 6.5)} 1H signals above 6.5 ppm"
+                msg += f", {count(sum(1 for p in h1.sample_peaks() if p.shift > 6.5), '1H signal')} above 6.5 ppm"
             inv.findings.append(msg)
         elif inv.dbe is not None:
             inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
@@ -456,7 +458,12 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         inv.findings.append(f"1H integrals printed as shares of two forms (e.g. {min(ints):g}H): they sum to {total:g} H")
         inv.h_regions = [(name, round(n, 1)) for name, n in _by_region(sample, ints)]
         return
-    inv.h_ratio = integer_ratio(ints, max_multiplier=8)
+    if all(x >= 0.95 and abs(x - round(x)) < 0.05 for x in ints):
+        # whole proton counts, as printed ('6H', '4H'): they already count protons, and reducing them to a
+        # ratio (3:2:2) would hide that they match the formula
+        inv.h_ratio, inv.h_as_printed = [round(x) for x in ints], True
+    else:
+        inv.h_ratio = integer_ratio(ints, max_multiplier=8)
     inv.h_total_from_integrals = sum(inv.h_ratio)
     inv.h_regions = _by_region(sample, inv.h_ratio)
     arom = [(p, n) for p, n in zip(sample, inv.h_ratio) if 6.5 <= p.shift < 8.6]
@@ -480,11 +487,24 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         inv.h_patterns.append(f"{len(doublets_2h)} aromatic 2H doublets: para-disubstituted ring(s) likely (common practice)")
     if sum(n for _, n in ring_h) == 5 and len(ring_h) <= 3:
         inv.h_patterns.append("5 aromatic H in at most three signals: a monosubstituted benzene ring is likely (common practice)")
-    trip3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "t" and p.shift < 1.6]
-    quart2 = [p for p, n in zip(sample, inv.h_ratio) if n == 2 and p.multiplicity == "q"]
-    if trip3 and quart2:
-        inv.h_patterns.append(f"a 3H triplet ({trip3[0].shift:g}) and a 2H quartet ({quart2[0].shift:g}): an ethyl group "
-                              "(common practice)" + (", on O or an aromatic N (quartet above 3.5 ppm)" if quart2[0].shift > 3.5 else ""))
+    # an ethyl group: a 3H triplet and a 2H quartet (k equivalent ethyls: 3k H and 2k H)
+    ethyls = [(t, q, n // 3) for t, n in zip(sample, inv.h_ratio) if n % 3 == 0 and n and t.multiplicity == "t"
+              and t.shift < 1.6 for q, m in zip(sample, inv.h_ratio) if q.multiplicity == "q" and m * 3 == n * 2]
+    if ethyls:
+        t, q, k = ethyls[0]
+        what = "an ethyl group" if k == 1 else f"{k} equivalent ethyl groups (symmetry)"
+        inv.h_patterns.append(f"a {3 * k}H triplet ({t.shift:g}) and a {2 * k}H quartet ({q.shift:g}): {what} "
+                              "(common practice)" + (", on O or an aromatic N (quartet above 3.5 ppm)" if q.shift > 3.5 else ""))
+    for p, n in zip(sample, inv.h_ratio):
+        if p.multiplicity == "s" and n >= 2 and 6.5 <= p.shift < 8.6:
+            inv.h_patterns.append(f"{n}H singlet at {p.shift:g} among the aromatic signals: equivalent ring protons without "
+                                  "a distinct neighbour (a symmetric substitution, e.g. a para ring with two like "
+                                  "groups; common practice)")
+        if p.multiplicity == "s" and n == 9 and 0.8 <= p.shift <= 1.6:
+            inv.h_patterns.append(f"9H singlet at {p.shift:g}: a tert-butyl group (Boc or tBu; common practice)")
+        elif p.multiplicity == "s" and n == 6:
+            inv.h_patterns.append(f"6H singlet at {p.shift:g}: two equivalent methyls (a gem-dimethyl, N(CH3)2, or a "
+                                  "symmetric molecule; common practice)")
     singlets3 = [p for p, n in zip(sample, inv.h_ratio) if n == 3 and p.multiplicity == "s"]
     for p in singlets3:
         where = ("OCH3, or NCH3 of an azole" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3
@@ -534,7 +554,7 @@ def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_toleran
         nH = fc.get("H", 0)
         if inv.dbe >= 4:
             inv.findings.append(f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); "
-                                f"{sum(1 for p in h1.sample_peaks() if p.shift > 6.5)} 1H signals above 6.5 ppm")
+                                f"{count(sum(1 for p in h1.sample_peaks() if p.shift > 6.5), '1H signal')} above 6.5 ppm")
         else:
             inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
         if inv.h_total_from_integrals:
