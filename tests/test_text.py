@@ -536,3 +536,9 @@ def test_slips_inside_a_value_are_mended_with_a_note():
     assert any("letter O" in n for n in sec.notes) and any("'121.9.1' has two decimal points" in n for n in sec.notes)
     sec = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H), 4.79 (s, H2O).").sections[0]
     assert not sec.notes
+
+
+def test_a_printed_13c_region_is_noted():
+    # 'δ 13.9–31.2 (Caliphatic)' (dev paragraph PMC8648852) names a region of several carbons, not one line
+    pl = read_nmr_text("13C NMR (75 MHz, DMSO-d6) δ (ppm): 13.9–31.2 (Caliphatic); 42.3; 128.4-128.6.").peaklist("13C")
+    assert sum("is a region (13.9–31.2 ppm)" in n for n in pl.notes) == 1 and len(pl.peaks) == 3

@@ -194,6 +194,10 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
             pk = Peak(p.shift, _OFF_RESONANCE.get(p.multiplicity or ""), None, max(p.count, 1), None, None)
         elif sec.nucleus == "13C":
             pk = Peak(p.shift, p.dept, None, max(p.count, 1), None, None, coupling=_coupling(p), j=p.j)
+            if p.lo is not None and p.hi is not None and p.hi - p.lo > 1.0:
+                # '114.2–134.8 (Caromatic)': a region of several carbons, which a 13C list cannot rank on
+                notes.append(f"13C text: '{p.fragment}' is a region ({p.lo:g}–{p.hi:g} ppm), read as one line at its "
+                             f"centre; its carbons are not listed one by one, so the ranking uses little of it")
         else:
             pk = Peak(p.shift, p.multiplicity, p.integral, 1, None, None, lo=p.lo, hi=p.hi, j=p.j)
         pk.note = p.note
