@@ -295,7 +295,7 @@ def _case_from_args(args) -> tuple[dict, dict]:
     if args.text:
         case["text"], _ = _read_text_arg(args.text)
     if hsqc:
-        case["hsqc"] = read_hsqc(hsqc).records()
+        lists["HSQC"] = case["hsqc"] = read_hsqc(hsqc)
     sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc) if s]
     case["id"] = Path(sources[0]).stem if sources[0] != "-" else "stdin"
     return case, lists

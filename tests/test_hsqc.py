@@ -120,6 +120,9 @@ def test_a_cross_peak_file_as_printed_or_slash_written_is_read(tmp_path):
     printed.write_text("HSQC (DMSO-d6): δC/δH 119.0/7.28, 113.6/7.22, 55.6/3.84.")
     h = read_hsqc(printed)
     assert sorted(h.pairs) == [(55.6, 3.84), (113.6, 7.22), (119.0, 7.28)] and "printed characterisation text" in h.notes[0]
+    # the note reaches the ranking's notes when the file is given to `rank --hsqc`
+    r = rank(hsqc=h, candidates=["COC(=O)c1ccc(OC)c(N)c1"])
+    assert any("read as printed characterisation text (its HSQC section)" in n for n in r.notes)
     none = tmp_path / "none.txt"
     none.write_text("HSQC was not recorded; 1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H) 3.9/4.0 mix.")
     with pytest.raises(InputError):

@@ -31,7 +31,7 @@ from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symmetry_ranks
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
-from ..inputs.peaks import (Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
+from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
                             peak_text, peaks_from_records)
 from ..inputs.solvents import normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
@@ -745,7 +745,10 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
         pl = as_peaklist(given, sec_solvent, nucleus)
         out[nucleus] = pl
         notes.extend(pl.notes)
-    if case.get("hsqc") is not None:
+    if isinstance(case.get("hsqc"), HsqcList):   # read from a file already, with its notes
+        out["HSQC"] = case["hsqc"]
+        notes.extend(case["hsqc"].notes)
+    elif case.get("hsqc") is not None:
         out["HSQC"] = hsqc_list(case["hsqc"], "hsqc")
     elif parsed is not None:
         hs = parsed.hsqc()   # an HSQC/HMQC section printed with the paragraph: δC/δH pairs
