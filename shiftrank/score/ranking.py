@@ -807,7 +807,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     arrays) of shifts, lists of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"``
     and ``"range": [low, high]``), or a peak list as text (``"166.6, 150.1, 137.6"``, one peak per line, or a
     printed paragraph, whose section of that nucleus is read); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
-    ``[δC, δH]`` cross peaks.  Any one is enough.
+    ``[δC, δH]`` cross peaks (or an :class:`~shiftrank.inputs.peaks.HsqcList` from ``read_hsqc``).  Any one is enough.
     ``formula``, ``mass`` (neutral, Da) and ``mz`` (a measured m/z, or ``{"found": …, "adduct": "M+H"}``)
     are sample history, as is a mass statement printed in ``text`` (``HRMS (ESI) m/z [M+H]+ calcd for …,
     found …``): a candidate they contradict is flagged and ranked last.
