@@ -338,17 +338,22 @@ def _reattach(mol: Chem.Mol, moves: list[tuple[int, int, int]], keep_h_off: bool
 
 
 def _relative(mol: Chem.Mol, system: set[int], target: int, others: list[tuple[int, str]]) -> str:
-    """'ortho/meta/para to X' for a six-membered ring with one other substituent (else '')."""
+    """'(now ortho to X)' for a six-membered ring, naming where the moved group stands against the other
+    substituents of that ring (up to three: '(now para to OCH3, meta to NH2)'); '' when it shares its ring
+    with none of them."""
     rings = [r for r in mol.GetRingInfo().AtomRings() if target in r and len(r) == 6 and set(r) <= system]
-    if not rings or len(others) != 1:
+    if not rings or not others or len(others) > 3:
         return ""
     ring = rings[0]
-    r_other, name = others[0]
-    if r_other not in ring:
-        return ""
-    d = abs(ring.index(target) - ring.index(r_other))
-    d = min(d, 6 - d)
-    return f" (now {['ipso', 'ortho', 'meta', 'para'][d]} to {name})" if d else ""
+    where = []
+    for r_other, name in others:
+        if r_other not in ring:
+            continue
+        d = abs(ring.index(target) - ring.index(r_other))
+        d = min(d, 6 - d)
+        if d:
+            where.append(f"{['ipso', 'ortho', 'meta', 'para'][d]} to {name}")
+    return f" (now {', '.join(where)})" if where else ""
 
 
 def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
