@@ -71,6 +71,9 @@ def test_relations_name_common_groups_by_condensed_formula():
     assert "CH3 moved from ring atom 1 to ring atom 2 (now meta to 4-Cl-C6H4)" in rel
     assert any(r.startswith("Cl moved") and "4-CH3-C6H4)" in r for r in rel)   # the smaller group moves
     assert any("(now para to 4-pyridyl)" in a.relation for a in isomers("COc1cccc(-c2ccncc2)c1"))
+    # methyl 3-amino-4-methoxybenzoate (own choice): where a moved group stands against both others, by hand
+    rel = [a.relation for a in isomers("COC(=O)c1ccc(OC)c(N)c1", kinds=("positional",))]
+    assert "OCH3 moved from ring atom 7 to ring atom 5 (now ortho to CO2CH3, para to NH2)" in rel
     # a terphenyl's end groups: the ring on a ring named the same way, nested
     assert any("(now meta to 4-(4-F-C6H4)-C6H4)" in a.relation
                for a in isomers("N#Cc1ccc(-c2ccc(-c3ccc(F)cc3)cc2)cc1", kinds=("positional",)))
