@@ -235,3 +235,8 @@ def test_a_given_solvent_that_differs_from_the_printed_one_is_noted():
     r = rank(text=text, candidates=[META, PARA], solvent="CDCl3")
     assert any("printed in DMSO-d6, but the solvent given is CDCl3: CDCl3 is used" in n for n in r.notes)
     assert not any("printed in" in n for n in rank(text=text, candidates=[META, PARA], solvent="DMSO").notes)
+
+
+def test_text_with_only_another_nucleus_says_so():
+    with pytest.raises(InputError, match="only 19F peaks were read; shiftrank ranks on 13C, 1H and HSQC"):
+        rank(text="19F NMR (376 MHz, CDCl3) δ -62.5 (s).", candidates=["FC(F)(F)c1ccccc1"])

@@ -756,6 +756,10 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
             out["HSQC"] = hs
             notes.extend(f"text: {n}" for n in hs.notes)
     if not out:
+        other = sorted({sec.nucleus for sec in parsed.sections if sec.peaks}) if parsed is not None else []
+        if other:
+            raise InputError(f"text: only {', '.join(other)} peaks were read; shiftrank ranks on 13C, 1H and HSQC "
+                             "(give one of those sections or lists)")
         raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
     two = case.get("rotamers")
     if two is not None and not isinstance(two, bool):
