@@ -917,7 +917,10 @@ def _stage(case: dict, nuclei_models) -> tuple:
         kinds = case["with_isomers"]
         if not isinstance(kinds, (bool, str)):
             raise InputError("with_isomers: expected true or a kinds string such as 'positional,ambident'")
-        cands, iso_notes = expand_with_isomers(cands, kinds)
+        try:
+            cands, iso_notes = expand_with_isomers(cands, kinds)
+        except InputError as exc:
+            raise InputError(f"with_isomers: {exc}") from None
         if len(cands) > MAX_CANDIDATES:
             raise InputError(f"candidates: {len(cands):,} with the generated alternatives; the limit is {MAX_CANDIDATES:,} "
                              "per case (narrow the isomer kinds)")
