@@ -240,3 +240,9 @@ def test_a_given_solvent_that_differs_from_the_printed_one_is_noted():
 def test_text_with_only_another_nucleus_says_so():
     with pytest.raises(InputError, match="only 19F peaks were read; shiftrank ranks on 13C, 1H and HSQC"):
         rank(text="19F NMR (376 MHz, CDCl3) δ -62.5 (s).", candidates=["FC(F)(F)c1ccccc1"])
+
+
+def test_an_unknown_solvent_name_is_noted():
+    r = rank(peaks(PARA_PEAKS), [META, PARA], solvent="xyz-d9")
+    assert any(n.startswith("solvent 'xyz-d9' is not one whose residual lines are known (CDCl3, DMSO-d6") for n in r.notes)
+    assert not any("residual lines are known" in n for n in rank(peaks(PARA_PEAKS), [META, PARA], solvent="Unreported").notes)

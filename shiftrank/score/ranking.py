@@ -33,7 +33,7 @@ from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
                             peak_text, peaks_from_records)
-from ..inputs.solvents import normalise_solvent
+from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
@@ -716,6 +716,11 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     solvent = normalise_solvent(case.get("solvent")) if isinstance(case.get("solvent"), str) else None
     if case.get("solvent") is not None and not isinstance(case.get("solvent"), str):
         raise InputError("solvent: expected a solvent name such as CDCl3")
+    given_solvent = case.get("solvent").strip() if isinstance(case.get("solvent"), str) else ""
+    if given_solvent and solvent is None and given_solvent.lower() not in ("unreported", "unknown", "n/a", "none", "-"):
+        known = ", ".join(k for k in SOLVENTS if " + " not in k)
+        notes.append(f"solvent '{given_solvent}' is not one whose residual lines are known ({known}, or a mixture of "
+                     "them): none set aside")
     text = case_text(case)
     parsed: NmrText | None = None
     if text is not None:
