@@ -99,3 +99,20 @@ def test_random_peak_records_rank_or_refuse(peaks, peaks_1h):
     from shiftrank.score.ranking import rank_many
     out = rank_many([{"id": "x", "peaks": peaks, "peaks_1h": peaks_1h or None, "candidates": [PARA, META]}])
     assert len(out) == 1 and (isinstance(out[0], InputError) or len(out[0].candidates) == 2)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.binary(max_size=300), st.sampled_from(["x.smi", "x.csv", "x.sdf", "p.txt", "c.jsonl", "h.txt"]))
+def test_random_bytes_in_any_user_file_read_or_refuse(tmp_path_factory, raw, name):
+    # any bytes (marks, UTF-16, Windows-1252, binary noise) through every file reader: a result or InputError
+    from shiftrank.inputs.molecules import read_molecules
+    from shiftrank.inputs.peaks import read_hsqc, read_peaks
+    from shiftrank.score.batch import read_cases
+    f = tmp_path_factory.mktemp("fz") / name
+    f.write_bytes(raw)
+    reader = {"x.smi": read_molecules, "x.csv": read_molecules, "x.sdf": read_molecules, "p.txt": read_peaks,
+              "c.jsonl": read_cases, "h.txt": read_hsqc}[name]
+    try:
+        reader(f)
+    except InputError:
+        pass
