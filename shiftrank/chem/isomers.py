@@ -433,7 +433,7 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 if t == r or a.GetDegree() != 2 or a.GetFormalCharge() or a.GetTotalNumHs() > 1:
                     continue
                 m = _reattach(mol, [(r, x, t)], keep_h_off=not a.GetTotalNumHs())
-                if m is not None and not open_shell(m) and not any(at.GetFormalCharge() for at in m.GetAtoms()):
+                if _neutral_closed_shell(m):
                     out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
             kind = _group_kind(mol, x)
             if kind is None:
@@ -446,7 +446,7 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     if (b.GetBondType() != Chem.BondType.DOUBLE or mol.GetAtomWithIdx(o).GetAtomicNum() != 8
                             or o in system or mol.GetBondBetweenAtoms(c, r) is not None):
                         continue
-                    m = _to_ring_oxygen(mol, r, x, c, o)
+                    m = _ring_n_o_move(mol, x, r, o, c, o, r, Chem.BondType.SINGLE)
                     if m is not None:
                         out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {r} to O atom {o})"))
     return out
@@ -473,36 +473,32 @@ def _alkoxy_azine_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     if (a.GetAtomicNum() != 7 or a.GetDegree() != 2 or a.GetTotalNumHs() or a.GetFormalCharge()
                             or mol.GetBondBetweenAtoms(c, t) is not None or not any({c, t} <= r for r in rings6)):
                         continue
-                    rw = Chem.RWMol(mol)
-                    _rebond(rw, x, o.GetIdx(), t)
-                    bond = rw.GetBondBetweenAtoms(c, o.GetIdx())
-                    bond.SetBondType(Chem.BondType.DOUBLE)
-                    bond.SetIsAromatic(False)
-                    n = rw.GetAtomWithIdx(t)
-                    n.SetNoImplicit(True)
-                    n.SetNumExplicitHs(0)
-                    m = _finish(rw)
-                    if m is not None and not open_shell(m) and not any(z.GetFormalCharge() for z in m.GetAtoms()):
+                    m = _ring_n_o_move(mol, x, o.GetIdx(), t, c, o.GetIdx(), t, Chem.BondType.DOUBLE)
+                    if m is not None:
                         out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx()} to N atom {t})"))
     return out
 
 
-def _to_ring_oxygen(mol: Chem.Mol, r: int, x: int, c: int, o: int) -> Chem.Mol | None:
-    """Group root ``x`` moved from ring N ``r`` to the oxygen ``o`` of the ring C=O at ``c``: the C–O bond becomes
-    single, N ``r`` keeps no H, and RDKit's kekulization places the ring's double bonds (None when it cannot,
-    or the result is charged or open-shell)."""
+def _ring_n_o_move(mol: Chem.Mol, x: int, old: int, new: int, c: int, o: int, n: int, co: Chem.BondType) -> Chem.Mol | None:
+    """Group root ``x`` moved from atom ``old`` to atom ``new`` between a ring N ``n`` and the oxygen ``o`` on ring
+    carbon ``c``: the C–O bond becomes ``co`` (single when the group goes onto O, double when it leaves it), the
+    ring N keeps no H, and RDKit's kekulization places the ring's double bonds.  None when it cannot, or when
+    the result is charged or open-shell."""
     rw = Chem.RWMol(mol)
-    _rebond(rw, x, r, o)
+    _rebond(rw, x, old, new)
     bond = rw.GetBondBetweenAtoms(c, o)
-    bond.SetBondType(Chem.BondType.SINGLE)
+    bond.SetBondType(co)
     bond.SetIsAromatic(False)
-    n = rw.GetAtomWithIdx(r)
-    n.SetNoImplicit(True)
-    n.SetNumExplicitHs(0)
+    ring_n = rw.GetAtomWithIdx(n)
+    ring_n.SetNoImplicit(True)
+    ring_n.SetNumExplicitHs(0)
     m = _finish(rw)
-    if m is None or open_shell(m) or any(a.GetFormalCharge() for a in m.GetAtoms()):
-        return None
-    return m
+    return m if _neutral_closed_shell(m) else None
+
+
+def _neutral_closed_shell(m: Chem.Mol | None) -> bool:
+    """Whether an edited structure is one an alkylation gives: read by RDKit, uncharged, no unpaired electron."""
+    return m is not None and not open_shell(m) and not any(a.GetFormalCharge() for a in m.GetAtoms())
 
 
 # C- against O-alkylation of 1,3-dicarbonyls, on the Kekulé form: (reaction SMARTS, relation)
