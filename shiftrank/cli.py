@@ -487,9 +487,9 @@ def cmd_isomers(args) -> int:
     return 0
 
 
-def _one_list(args, which: str, nucleus: str):
+def _one_list(args, which: str, nucleus: str, texts: dict):
     """The sample's or the reference's ``nucleus`` peak list for ``compare``: a peak file, or printed text
-    (FILE or -); None when printed text holds no such section."""
+    (FILE or -, read once into ``texts`` for every nucleus); None when printed text holds no such section."""
     from .inputs.peaks import read_peaks
     from .inputs.text import read_nmr_text
 
@@ -498,9 +498,9 @@ def _one_list(args, which: str, nucleus: str):
         raise InputError(f"compare: give --{which} FILE or --{which}-text FILE_OR_- (one of them)")
     if path:
         return read_peaks(path, nucleus=nucleus, solvent=args.solvent)
-    if which not in args.texts:
-        args.texts[which] = _read_text_arg(text)
-    body, name = args.texts[which]
+    if which not in texts:
+        texts[which] = _read_text_arg(text)
+    body, name = texts[which]
     return read_nmr_text(body, name).peaklist(nucleus, args.solvent, source=f"{name} ({nucleus})")
 
 
@@ -517,16 +517,16 @@ def _compare_nuclei(args) -> list[str]:
 def cmd_compare(args) -> int:
     from .score.reference import CAUTION, compare_spectra
 
-    args.texts = {}
+    texts: dict = {}
     nuclei = _compare_nuclei(args)
     done = []
     for nucleus in nuclei:
-        sample, reference = _one_list(args, "sample", nucleus), _one_list(args, "reference", nucleus)
+        sample, reference = _one_list(args, "sample", nucleus, texts), _one_list(args, "reference", nucleus, texts)
         if sample is None or reference is None:
             if len(nuclei) == 1 or (sample is None) != (reference is None):
                 who = "sample" if sample is None else "reference"
                 if len(nuclei) == 1:
-                    raise InputError(f"compare: {args.texts[who][1]} prints no {nucleus} peaks")
+                    raise InputError(f"compare: {texts[who][1]} prints no {nucleus} peaks")
                 print(f"{nucleus}: not compared: the {who} prints no {nucleus} peaks", file=sys.stderr)
             continue
         done.append((nucleus, sample, reference, compare_spectra(sample, reference, args.tolerance)))
