@@ -458,13 +458,15 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
     key = normalise_solvent(solvent)
     if key is None:
         return peaks
-    for k, p in enumerate(peaks.peaks):
+    ints = sorted(q.intensity for q in peaks.peaks if q.intensity)   # once, not per peak: lists may be long
+    for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
             continue
         # (an integral below half a proton, counted on the list's own scale, is no proton of the compound: a
         # residual line that an instrument's integration took in, '2.50 0.4 m' beside 0.96 for one H)
-        others = [q.intensity for i, q in enumerate(peaks.peaks) if i != k and q.intensity] or [1.0]
-        whole = p.intensity is not None and p.intensity >= 0.5 * min(1.0, min(others))
+        others_min = (ints[1] if len(ints) > 1 else 1.0) if ints and p.intensity and p.intensity == ints[0] else \
+            (ints[0] if ints else 1.0)
+        whole = p.intensity is not None and p.intensity >= 0.5 * min(1.0, others_min)
         if peaks.nucleus == "1H" and (keep_integrated and whole
                                       or p.lo is not None and p.hi - p.lo > SOLVENT_RANGE_MAX):
             continue
