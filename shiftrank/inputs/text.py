@@ -478,6 +478,10 @@ _GROUP = re.compile(r"^(?:[A-Za-z][\w\-' ]{0,30}|\([^()]{1,20}\))\s*\[(?P<inner>
 _PEAK_START = re.compile(r"[,;]\s*(?=(?:and\s+)?\d{1,3}\.\d+\s*(?:-\s*\d{1,3}\.\d+\s*)?[(\[])")
 
 
+#: a value printed with two decimal points ('121.9.1'): its first part is the shift
+_TWO_POINTS = re.compile(r"(?<![\d.])(\d{1,3}\.\d+)\.\d+(?![\d.])")
+
+
 def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> None:
     body = _strip_lead(text.strip()).rstrip(".").strip()
     body = re.sub(r"\s*ppm\s*\.?\s*$", "", body)
@@ -494,9 +498,10 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
     if fixed != body:
         sec.notes.append("the letter O inside a value read as a zero (e.g. '15O.1' as 150.1)")
         body = fixed
-    for m in re.finditer(r"(?<![\d.])(\d{1,3}\.\d+)\.\d+(?![\d.])", body):
+    def first_part(m: re.Match) -> str:
         sec.notes.append(f"'{m.group(0)}' has two decimal points: read as {m.group(1)}")
-    body = re.sub(r"(?<![\d.])(\d{1,3}\.\d+)\.\d+(?![\d.])", r"\1", body)
+        return m.group(1)
+    body = _TWO_POINTS.sub(first_part, body)
     if body.count("(") != body.count(")") or body.count("[") != body.count("]"):
         # an unclosed bracket would swallow every later peak: split before each 'shift (' and at top-level commas
         sec.notes.append("brackets in the peak list are unbalanced; peaks were separated at each 'shift (' and at commas outside brackets")
