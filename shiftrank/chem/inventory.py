@@ -375,8 +375,9 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
             inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
         if dC > 0 and not unknown:
             classes = {t: [n for m, n in types if m == t] for t in ("CH3", "CH2", "CH")}
+            h_signals = _integrals_in_protons(inv, nH)
             ways = _duplications(by_type, dC, range(max(0, nH - h_on_c - n_xh_max), nH - h_on_c + 1),
-                                 classes=classes, h_signals=_integrals_in_protons(inv, nH))
+                                 classes=classes, h_signals=h_signals)
             if ways:
                 texts = []
                 fits = ways[0][2]
@@ -388,7 +389,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
                                  + (f": a {dC // carbons + 1}-fold symmetric molecule" if k_fold else ""))
                 inv.findings.append(f"the formula needs {dC} more C than the signals account for: symmetry-equivalent "
                                     f"(or overlapping) carbons; possible duplicated pieces"
-                                    + (f" that the 1H integrals ({':'.join(map(str, _integrals_in_protons(inv, nH)))}) "
+                                    + (f" that the 1H integrals ({':'.join(map(str, h_signals))}) "
                                        "fit" if fits else "") + ": " + "; or ".join(texts))
             else:
                 inv.findings.append(f"the formula has {dC} more carbons than the signals account for; no duplication of the "
