@@ -39,3 +39,7 @@ def __getattr__(name):  # lazy imports keep `import shiftrank` and the CLI start
         from .errors import InputError
         return InputError
     raise AttributeError(f"module 'shiftrank' has no attribute {name!r}")
+
+
+def __dir__():  # tab completion and dir() list the lazy names too
+    return sorted(set(globals()) | set(__all__))

@@ -62,3 +62,11 @@ def test_facts_list_proton_classes_with_their_expected_multiplets():
     assert nh2["exchangeable"] and nh2["may_split"] and nh2["h"] == 2
     assert sorted(c["multiplet"] for c in d["proton_classes"] if not c["exchangeable"]) == ["d", "d"]
     assert "up to 4: the two protons of 1 CH2 or NH2 group may show apart" in run("facts", "NC(=O)c1ccc(Cl)cc1").stdout
+
+
+def test_the_lazy_public_names_are_listed_by_dir_and_each_resolves():
+    import shiftrank
+    names = dir(shiftrank)
+    for name in shiftrank.__all__:
+        assert name in names
+        assert getattr(shiftrank, name) is not None
