@@ -542,3 +542,14 @@ def test_a_printed_13c_region_is_noted():
     # 'δ 13.9–31.2 (Caliphatic)' (dev paragraph PMC8648852) names a region of several carbons, not one line
     pl = read_nmr_text("13C NMR (75 MHz, DMSO-d6) δ (ppm): 13.9–31.2 (Caliphatic); 42.3; 128.4-128.6.").peaklist("13C")
     assert sum("is a region (13.9–31.2 ppm)" in n for n in pl.notes) == 1 and len(pl.peaks) == 3
+
+
+def test_short_forms_of_higher_multiplets_from_report_generators():
+    # 'p' (pentet), 'h' (hextet), 'hept', 'sep' as automatic report writers and some house styles print them
+    # (common practice); an n-butyl ether's chain: p for OCH2CH2, h for CH2CH3
+    t = ("1H NMR (400 MHz, CDCl3) δ 4.02 (t, J = 6.5 Hz, 2H), 1.78 (p, J = 6.5 Hz, 2H), 1.47 (h, J = 7.4 Hz, 2H), "
+         "0.97 (t, J = 7.4 Hz, 3H), 2.90 (sep, J = 6.9 Hz, 1H), 2.85 (qui, J = 7.0 Hz, 1H).")
+    peaks = read_nmr_text(t).sections[0].peaks
+    assert [p.multiplicity for p in peaks] == ["t", "p", "sext", "t", "sept", "p"]
+    assert [p.j for p in peaks][2] == (7.4,)
+    assert all(p.note == "" for p in peaks)

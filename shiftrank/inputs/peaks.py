@@ -105,7 +105,8 @@ _MULT_WORDS = {
     "s": "s", "singlet": "s", "d": "d", "doublet": "d", "t": "t", "triplet": "t", "q": "q", "quartet": "q",
     "quint": "p", "quin": "p", "quintet": "p", "p": "p", "pent": "p", "pentet": "p",
     "sext": "sext", "sextet": "sext", "hex": "sext", "sex": "sext", "sept": "sept", "septet": "sept", "hept": "sept",
-    "heptet": "sept", "oct": "oct", "octet": "oct", "non": "non", "nonet": "non",
+    "heptet": "sept", "sep": "sept", "hep": "sept", "h": "sext", "hextet": "sext", "qui": "p", "qn": "p", "qnt": "p",
+    "oct": "oct", "octet": "oct", "non": "non", "nonet": "non",
     "m": "m", "multiplet": "m", "mc": "m", "brm": "br m",
     "br": "br", "broad": "br", "brs": "br s", "bs": "br s", "brd": "br d", "bd": "br d", "brt": "br t", "bt": "br t",
     "brsinglet": "br s", "abq": "ABq", "ab": "ABq", "ab q": "ABq", "abx": "m", "aa'bb'": "m", "aabb": "m",
@@ -127,6 +128,8 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     ['dd', 'ABq', 'm', 'br m', 'm', 'br t']
     >>> [normalise_1h_multiplicity(x) for x in ("broad s", "broad singlet", "br doublet", "broad m")]
     ['br s', 'br s', 'br d', 'br m']
+    >>> [normalise_1h_multiplicity(x) for x in ("h", "hextet", "sep", "qui", "qnt")]   # report generators' short forms
+    ['sext', 'sext', 'sept', 'p', 'p']
     """
     if text is None:
         return None
