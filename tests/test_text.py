@@ -553,3 +553,23 @@ def test_short_forms_of_higher_multiplets_from_report_generators():
     assert [p.multiplicity for p in peaks] == ["t", "p", "sext", "t", "sept", "p"]
     assert [p.j for p in peaks][2] == (7.4,)
     assert all(p.note == "" for p in peaks)
+
+
+def test_values_separated_by_spaces_or_line_breaks_are_each_a_peak():
+    # a list typed or pasted one value per line, or with spaces only (common practice in notebooks): every
+    # value is a peak, not only the last one
+    for t in ("13C NMR (CDCl3) δ 162.9 161.0 157.5 101.5 66.3 44.4", "13C NMR (CDCl3) δ\n162.9\n161.0\n157.5\n101.5\n66.3\n44.4"):
+        sec = read_nmr_text(t).section("13C")
+        assert [p.shift for p in sec.peaks] == [162.9, 161.0, 157.5, 101.5, 66.3, 44.4]
+        assert sec.notes == []
+    plain = read_nmr_text("8.05\n6.40\n3.78\n3.65").sections[0]
+    assert plain.nucleus == "1H" and [p.shift for p in plain.peaks] == [8.05, 6.40, 3.78, 3.65]
+    # the field in the conditions is no peak
+    assert [p.shift for p in read_nmr_text("13C NMR (100.6 MHz, CDCl3) δ 162.9 161.0").section("13C").peaks] == [162.9, 161.0]
+
+
+def test_a_1h_range_whose_dash_was_lost_in_copying_is_one_multiplet_with_a_note():
+    sec = read_nmr_text("1H NMR (CDCl3) δ 7.50 (s, 1H), 7.36 7.28 (m, 4H) 2.35 (s, 3H)").section("1H")
+    assert [(p.lo, p.hi, p.integral, p.multiplicity) for p in sec.peaks] == [
+        (None, None, 1.0, "s"), (7.28, 7.36, 4.0, "m"), (None, None, 3.0, "s")]
+    assert any("dash lost" in n for n in sec.notes)
