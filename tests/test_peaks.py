@@ -178,3 +178,16 @@ def test_spreadsheet_peak_tables_with_units_in_the_header_and_semicolons():
     assert [(p.shift, p.multiplicity) for p in pl.peaks] == [(55.6, "CH3"), (166.6, "C")]
     h1 = parse_peaks("ppm;Integral;Mult.\n7.28;1;dd\n3.84;3;s\n", nucleus="1H")
     assert [(p.shift, p.intensity, p.multiplicity) for p in h1.peaks] == [(3.84, 3.0, "s"), (7.28, 1.0, "dd")]
+
+
+def test_a_1h_list_given_as_13c_and_the_reverse_are_named_as_such():
+    # 13C lines of organic compounds spread over 0-220 ppm, 1H lines over 0-12 (common practice): a list of
+    # 1H values given as the 13C peaks is refused with the option to use, not ranked into nonsense
+    import shiftrank
+    with pytest.raises(shiftrank.InputError, match="is this a 1H list"):
+        shiftrank.rank(peaks=[8.05, 6.40, 3.78, 3.65], candidates=["Clc1nccc(N2CCOCC2)n1"])
+    with pytest.raises(shiftrank.InputError, match="is this a 13C list"):
+        shiftrank.rank(peaks_1h=[162.9, 161.0, 157.5, 101.5], candidates=["Clc1nccc(N2CCOCC2)n1"])
+    # two values below 12.5 ppm can be a real 13C list's aliphatic part
+    r = shiftrank.rank(peaks=[10.2, 11.9], candidates=["CCC"])
+    assert r.candidates[0].error is None

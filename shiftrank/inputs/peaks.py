@@ -189,7 +189,9 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
     rlo, rhi = RANGES[nucleus]
     for v in (s, lo, hi):
         if v is not None and not rlo <= v <= rhi:
-            raise OutOfRange(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm")
+            hint = ("; is this a 13C list? 13C peaks go with --peaks ('peaks' in a batch case)"
+                    if nucleus == "1H" and 20 <= v <= RANGES["13C"][1] else "")
+            raise OutOfRange(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm{hint}")
     if nucleus == "13C":
         m = normalise_multiplicity(mult, where)
     else:
