@@ -515,6 +515,7 @@ def _compare_nuclei(args) -> list[str]:
 
 
 def cmd_compare(args) -> int:
+    from .inputs.peaks import looks_like_1h, not_13c_message
     from .score.reference import CAUTION, compare_spectra
 
     texts: dict = {}
@@ -522,6 +523,19 @@ def cmd_compare(args) -> int:
     done = []
     for nucleus in nuclei:
         sample, reference = _one_list(args, "sample", nucleus, texts), _one_list(args, "reference", nucleus, texts)
+        if nucleus == "13C" and not (args.sample_text and args.reference_text):
+            lists = [pl for pl in (sample, reference) if pl is not None]
+            if lists and args.nucleus is None and all(looks_like_1h(p.shift for p in pl.peaks) for pl in lists):
+                # two peak files of 1H values and no --nucleus: compared as 1H, with its tolerance
+                print("  note: every value of both lists lies below 12.5 ppm: compared as 1H (give --nucleus 13C "
+                      "to insist)", file=sys.stderr)
+                nucleus = "1H"
+                sample, reference = (_one_list(args, "sample", nucleus, texts),
+                                     _one_list(args, "reference", nucleus, texts))
+            else:
+                bad = next((pl for pl in lists if looks_like_1h(p.shift for p in pl.peaks)), None)
+                if bad is not None and args.nucleus is None:
+                    raise InputError(not_13c_message(bad, "compare lists of one nucleus (--nucleus 1H for 1H lists)"))
         if sample is None or reference is None:
             if len(nuclei) == 1 or (sample is None) != (reference is None):
                 who = "sample" if sample is None else "reference"

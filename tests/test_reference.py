@@ -105,3 +105,20 @@ def test_cli_compares_each_nucleus_two_printed_texts_hold(tmp_path):
     assert out.returncode == 0 and out.stdout.startswith("13C: consistent") and "1H: not compared" in out.stderr
     out = run("--sample-text", str(s), "--reference-text", str(r), "--nucleus", "1H")
     assert out.returncode == 2 and "prints no 1H peaks" in out.stderr
+
+
+def test_cli_two_1h_peak_files_without_a_nucleus_are_compared_as_1h(tmp_path):
+    # 1H lines lie within 0-12.5 ppm, 13C lines of organic compounds over 0-220 ppm (common practice): two
+    # files of 1H values are compared with the 1H tolerance, a 1H file against a 13C file is refused
+    s, r, c = tmp_path / "s.txt", tmp_path / "r.txt", tmp_path / "c.txt"
+    s.write_text("8.05\n6.40\n3.78\n3.65\n")
+    r.write_text("8.07\n6.41\n3.79\n3.55\n")
+    c.write_text("162.9\n161.0\n157.5\n101.5\n")
+    run = lambda *a: subprocess.run([sys.executable, "-m", "shiftrank.cli", "compare", *a], capture_output=True, text=True)
+    out = run("--sample", str(s), "--reference", str(r), "--json")
+    assert out.returncode == 0, out.stderr
+    obj = json.loads(out.stdout)
+    assert obj["nucleus"] == "1H" and obj["consistent"] is False    # 3.55 against 3.65: beyond the 1H tolerance
+    assert "compared as 1H" in out.stderr
+    mixed = run("--sample", str(s), "--reference", str(c))
+    assert mixed.returncode == 2 and "is this a 1H list" in mixed.stderr and "Traceback" not in mixed.stderr

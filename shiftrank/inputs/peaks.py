@@ -349,6 +349,20 @@ def _from_json(text: str, src: str, nucleus: str) -> list[Peak]:
     return peaks_from_records(data, src, nucleus)
 
 
+def looks_like_1h(shifts) -> bool:
+    """Whether a list given as 13C is a 1H list: three or more values, all below 12.5 ppm (13C lines of
+    organic compounds spread over 0-220 ppm; common practice)."""
+    shifts = list(shifts)
+    return len(shifts) >= 3 and max(shifts) <= 12.5
+
+
+def not_13c_message(pl: "PeakList", hint: str = "Give it as the 1H peaks (--peaks-1h; 'peaks_1h' in a batch case "
+                                                  "or from Python)") -> str:
+    shifts = [p.shift for p in pl.peaks]
+    return (f"{pl.source}: all {len(shifts)} 13C values lie between {min(shifts):g} and {max(shifts):g} ppm, the range "
+            f"of 1H shifts: is this a 1H list? {hint}")
+
+
 class OutOfRange(InputError):
     """A shift outside the nucleus's range (a typo, usually); lenient readers set it aside."""
 

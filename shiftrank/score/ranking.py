@@ -32,7 +32,7 @@ from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symme
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
-                            peak_text, peaks_from_records)
+                            looks_like_1h, not_13c_message, peak_text, peaks_from_records)
 from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
@@ -270,13 +270,8 @@ def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> Peak
         pl = PeakList(nucleus, items, "peaks", notes)
     if not pl.peaks:
         raise InputError(f"{pl.source}: the peak list is empty")
-    shifts = [p.shift for p in pl.peaks]
-    if nucleus == "13C" and len(shifts) >= 3 and max(shifts) <= 12.5:
-        # (13C lines of organic compounds spread over 0-220 ppm; three or more lines all below 12.5 ppm is a 1H
-        # list given as 13C, common practice)
-        raise InputError(f"{pl.source}: all {len(shifts)} 13C values lie between {min(shifts):g} and {max(shifts):g} ppm, "
-                         "the range of 1H shifts: is this a 1H list? Give it as the 1H peaks (rank --peaks-1h; "
-                         "'peaks_1h' in a batch case or from Python)")
+    if nucleus == "13C" and looks_like_1h(p.shift for p in pl.peaks):
+        raise InputError(not_13c_message(pl))
     return flag_solvent(pl, solvent, keep_integrated=True)
 
 
