@@ -36,6 +36,18 @@ def test_n_alkyl_indazole_gives_its_n2_isomer():
     alts = isomers("CCn1ncc2ccccc21")
     assert keys(alts) == {key("CCn1cc2ccccc2n1")}
     assert "instead of ring N" in alts[0].relation and alts[0].kind == "ambident"
+    # the two sites told apart by their ring neighbours: indazole N1 lies beside the ring fusion (C7a), N2
+    # between N1 and C3-H (ring numbering of indazole, common practice)
+    assert alts[0].relation == ("C2H5 on ring N (atom 3, between CH and N) instead of ring N (atom 2, between N and "
+                                "the ring fusion)")
+
+
+def test_benzimidazole_n_sites_named_by_the_substituent_beside_the_fusion():
+    # 4-chloro-1-methylbenzimidazole against 7-chloro-1-methylbenzimidazole (hand drawn): the methyl moves to
+    # the N whose fusion carbon stands next to C-Cl
+    alts = isomers("Cn1cnc2c1cccc2Cl", kinds=("ambident",))
+    assert keys(alts) == {key("Cn1cnc2cccc(Cl)c21")}
+    assert "on ring N (atom 3, between CH and the ring fusion next to C-Cl)" in alts[0].relation
 
 
 def test_pyridone_n_and_o_alkylation_both_ways():

@@ -388,6 +388,42 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+def _n_site(mol: Chem.Mol, n: int, system: set[int], moving: int) -> str:
+    """Where ring N ``n`` stands, by its two ring neighbours: 'ring N (atom 2, between N and the ring fusion)',
+    'ring N (atom 1, between N and C-CH3)', so that N1 and N2 of an azole are told apart without a locant
+    scheme; ``moving`` is the root of the group that moves (not counted as a neighbour's substituent)."""
+    ring = next((r for r in mol.GetRingInfo().AtomRings() if n in r and set(r) <= system), ())
+    words = []
+    for b in mol.GetAtomWithIdx(n).GetBonds():
+        j = b.GetOtherAtomIdx(n)
+        if j not in ring:
+            continue
+        a = mol.GetAtomWithIdx(j)
+        if sum(1 for r in mol.GetRingInfo().AtomRings() if j in r and set(r) <= system) > 1:
+            # beside a substituted carbon of the other ring (a benzimidazole's 4- against 7-position)
+            near = [_fragment_name(mol, c.GetOtherAtomIdx(k.GetIdx()), k.GetIdx())
+                    for k in a.GetNeighbors() if k.GetIdx() not in ring and k.GetIdx() in system
+                    and k.GetAtomicNum() == 6 for c in k.GetBonds()
+                    if c.GetOtherAtomIdx(k.GetIdx()) not in system and c.GetBondType() == Chem.BondType.SINGLE]
+            words.append("the ring fusion" + (f" next to C-{near[0]}" if near and near[0] else ""))
+            continue
+        if a.GetAtomicNum() != 6:
+            words.append(a.GetSymbol())
+            continue
+        outside = [c for c in a.GetBonds() if c.GetOtherAtomIdx(j) not in system and c.GetOtherAtomIdx(j) != moving]
+        if not outside:
+            words.append("CH" if a.GetTotalNumHs() else "C")
+            continue
+        c = outside[0]
+        x = c.GetOtherAtomIdx(j)
+        if c.GetBondType() == Chem.BondType.DOUBLE:
+            words.append(f"C={mol.GetAtomWithIdx(x).GetSymbol()}")
+        else:
+            words.append(f"C-{_fragment_name(mol, x, j) or mol.GetAtomWithIdx(x).GetSymbol()}")
+    words.sort(key=lambda w: (w.startswith("the ring fusion"), w))
+    return f"ring N (atom {n}, between {' and '.join(words)})" if len(words) == 2 else f"ring N (atom {n})"
+
+
 def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """N1 ↔ N2 (↔ N3 …) of an N-substituted azole: the substituent moved to every other ring nitrogen
     of the same five-membered aromatic ring (or its fused system) that carries neither H nor substituent."""
@@ -408,7 +444,7 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue  # a pyridine-type N of a fused six-membered ring does not take the group
                 m = _reattach(mol, [(r, x, t)], keep_h_off=True)
                 if m is not None:
-                    out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
+                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x)}"))
     return out
 
 
@@ -434,7 +470,7 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r, x, t)], keep_h_off=not a.GetTotalNumHs())
                 if _neutral_closed_shell(m):
-                    out.append((m, f"{name} on ring N (atom {t}) instead of ring N (atom {r})"))
+                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x)}"))
             kind = _group_kind(mol, x)
             if kind is None:
                 continue
