@@ -246,3 +246,20 @@ def test_an_unknown_solvent_name_is_noted():
     r = rank(peaks(PARA_PEAKS), [META, PARA], solvent="xyz-d9")
     assert any(n.startswith("solvent 'xyz-d9' is not one whose residual lines are known (CDCl3, DMSO-d6") for n in r.notes)
     assert not any("residual lines are known" in n for n in rank(peaks(PARA_PEAKS), [META, PARA], solvent="Unreported").notes)
+
+
+def test_a_carbon_bound_to_boron_may_go_unlisted():
+    # 2-(4-methoxyphenyl)-4,4,5,5-tetramethyl-1,3,2-dioxaborolane, 13C in CDCl3 (values from memory): the
+    # carbon bound to boron is broadened by 11B and usually not printed (common practice)
+    text = "13C NMR (101 MHz, CDCl3) δ 162.1, 136.5, 113.3, 83.5, 55.1, 24.8."
+    true = "COc1ccc(B2OC(C)(C)C(C)(C)O2)cc1"
+    r = rank(text=text, candidates=[true, "COc1cccc(B2OC(C)(C)C(C)(C)O2)c1"])
+    best = r.candidates[0]
+    assert best.smiles == true and best.probability > 0.9
+    row = next(x for x in best.nuclei["13C"].assignment_table() if x["observed"] is None)
+    assert "bound to boron" in row["notes"][0]
+    assert not best.nuclei["13C"].flags                  # one unseen C-B carbon is how such spectra are printed
+    assert "fit no candidate" not in r.verdict
+    # without boron the same shortfall is a flagged count misfit: an anisole missing its ipso carbon
+    r2 = rank(text="13C NMR (101 MHz, CDCl3) δ 129.5, 120.7, 114.0, 55.1.", candidates=["COc1ccccc1"])
+    assert any("expects 5 signals" in f for f in r2.candidates[0].nuclei["13C"].flags)

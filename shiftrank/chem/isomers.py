@@ -204,6 +204,10 @@ GROUP_NAMES = {
     "*N1CCNCC1": "piperazin-1-yl", "*N1CCN(C)CC1": "4-methylpiperazin-1-yl", "*n1cccn1": "pyrazol-1-yl",
     "*n1ccnc1": "imidazol-1-yl", "*n1ccnn1": "1,2,3-triazol-1-yl", "*n1cncn1": "1,2,4-triazol-1-yl",
     "*N1C(=O)C=CC1=O": "maleimido", "*N1C(=O)c2ccccc2C1=O": "phthalimido",
+    # coupling handles and leaving or protecting groups on O and N
+    "*B1OC(C)(C)C(C)(C)O1": "Bpin", "*[B-](F)(F)F": "BF3−", "*OS(=O)(=O)C(F)(F)F": "OTf", "*OS(C)(=O)=O": "OMs",
+    "*OS(=O)(=O)c1ccc(C)cc1": "OTs", "*O[Si](C)(C)C(C)(C)C": "OTBS", "*OCOC": "OMOM", "*NC(=O)OCc1ccccc1": "NHCbz",
+    "*N(C)C(=O)OC(C)(C)C": "N(CH3)Boc", "*Sc1ccccc1": "SC6H5", "*C(=O)N1CCOCC1": "CO-morpholin-4-yl",
     "*F": "F", "*Cl": "Cl", "*Br": "Br", "*I": "I",
     "*[O-]": "O−", "*S(=O)(=O)O": "SO3H", "*S(=O)(=O)[O-]": "SO3−", "*C(=O)[O-]": "CO2−", "*S(=O)(=O)Cl": "SO2Cl",
 }

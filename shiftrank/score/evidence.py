@@ -138,7 +138,7 @@ class NucleusResult:
         rows = []
         for p in self.assignment.pairings:
             c = self.classes[p.cls]
-            notes = (["unobserved" + (" (exchangeable)" if c.exchangeable else "")] if p.peak is None else []) \
+            notes = (["unobserved" + (f" ({c.unseen_why})" if c.exchangeable else "")] if p.peak is None else []) \
                 + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
                 + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"])
             row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
@@ -256,8 +256,15 @@ class CarbonEvidence(_Evidence):
         cc = _carbon_classes(mol, ranks, facts)
         if isinstance(mu, ClassMeans):
             m, s = mu.of([c.atoms for c in cc])
-            return [SignalClass(c.atoms, c.multiplicity, a, b) for c, a, b in zip(cc, m.tolist(), s.tolist())]
-        return [SignalClass(c.atoms, c.multiplicity, _mean(mu, c.atoms), _mean(sg, c.atoms)) for c in cc]
+            out = [SignalClass(c.atoms, c.multiplicity, a, b) for c, a, b in zip(cc, m.tolist(), s.tolist())]
+        else:
+            out = [SignalClass(c.atoms, c.multiplicity, _mean(mu, c.atoms), _mean(sg, c.atoms)) for c in cc]
+        for c in out:
+            if any(n.GetAtomicNum() == 5 for n in mol.GetAtomWithIdx(c.atoms[0]).GetNeighbors()):
+                # a carbon bound to boron is broadened by the quadrupolar 11B and often not seen at all
+                # ('the carbon attached to boron was not observed': common practice): cheap to leave unlisted
+                c.exchangeable, c.unseen_why = True, "bound to boron, often not seen"
+        return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)
@@ -498,11 +505,14 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     n_missing = len({p.cls for p in missing})
     n_missing_x = len({p.cls for p in missing if res.classes[p.cls].exchangeable})
     n_shared = len({p.cls for p in a.pairings if p.shared})
+    if n_missing and n_missing == n_missing_x and not n_shared and not n_unexplained:
+        return []   # only classes that often go unseen (NH/OH, a carbon on boron) are missing: how spectra are
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
                 + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
                 + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
-                + (f" ({n_missing_x} exchangeable)" if n_missing_x else "")
+                + (f" ({n_missing_x} {res.classes[next(p.cls for p in missing if res.classes[p.cls].exchangeable)].unseen_why})"
+                   if n_missing_x else "")
                 + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained{second}" if n_unexplained else "")]
     return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained{second}"] if n_unexplained else []
 

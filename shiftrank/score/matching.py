@@ -97,7 +97,8 @@ class SignalClass:
     shift: float
     sigma: float
     units: int = 1              # 1H with integrals: protons in the class
-    exchangeable: bool = False  # 1H: OH/NH/SH
+    exchangeable: bool = False  # may go unobserved for a physical reason: 1H OH/NH/SH; 13C a carbon bound to boron
+    unseen_why: str = "exchangeable"   # that reason, as the tables and flags say it
     splittable: bool = False    # 1H: a CH2 whose two protons may differ (may show two multiplets)
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
     shift_h: float | None = None  # HSQC: predicted mean shift of the carbon's protons, and its σ
