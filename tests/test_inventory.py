@@ -195,3 +195,12 @@ def test_printed_proton_counts_are_kept_and_read_for_symmetry():
     assert any("sum to the formula's 14 H" in f for f in inv.findings)
     boc = take_inventory(None, parse_peaks("4.60 1 br s\n3.10 2 q\n1.44 9 s\n1.10 3 t\n", nucleus="1H"))
     assert any("tert-butyl" in x for x in boc.h_patterns) and any("an ethyl group" in x for x in boc.h_patterns)
+
+
+def test_a_boron_formula_names_the_carbon_on_boron_as_a_likely_missing_line():
+    # an aryl pinacol boronate printed without its C-B line (values from memory; the C-B carbon is often not
+    # seen, common practice)
+    from shiftrank.inputs.text import read_nmr_text
+    pl = read_nmr_text("13C NMR (101 MHz, CDCl3) δ 162.1, 136.5, 113.3, 83.5, 55.1, 24.8.").peaklist("13C")
+    inv = take_inventory(pl, formula="C13H19BO3")
+    assert any("bound to boron" in f for f in inv.findings)

@@ -390,12 +390,16 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
                 inv.findings.append(f"the formula needs {dC} more C than the signals account for: symmetry-equivalent "
                                     f"(or overlapping) carbons; possible duplicated pieces"
                                     + (f" that the 1H integrals ({':'.join(map(str, h_signals))}) "
-                                       "fit" if fits else "") + ": " + "; or ".join(texts))
+                                       "fit" if fits else "") + ": " + "; or ".join(texts)
+                                    + ("; or a carbon bound to boron, which is often not seen (common practice)"
+                                       if fc.get("B") else ""))
             else:
                 inv.findings.append(f"the formula has {dC} more carbons than the signals account for; no duplication of the "
                                     "observed CHn pieces fits its H count: check the multiplicities or the formula")
         elif dC > 0:
-            inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap")
+            inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap"
+                                + (" (or a carbon bound to boron, which is often not seen: common practice)"
+                                   if fc.get("B") else ""))
         elif dC < 0 and pairs:
             left = carbons - pairs
             inv.findings.append(f"{-dC} more carbon signals than the formula has carbons; the spectrum shows two forms "
