@@ -77,6 +77,7 @@ class PeakList:
     field_mhz: float | None = None    # observation frequency of this nucleus, when known (printed text)
     trace: tuple | None = None        # (ppm, intensity) of the measured spectrum the peaks were picked from, thinned for display
     printed: bool = False             # read from a printed characterisation paragraph (the ranking has costs of its own for it)
+    solvent: str | None = None        # the solvent's key (solvents.SOLVENTS), when known
 
     @property
     def shifts(self) -> list[float]:
@@ -477,6 +478,7 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
     key = normalise_solvent(solvent)
     if key is None:
         return peaks
+    peaks.solvent = key
     ints = sorted(q.intensity for q in peaks.peaks if q.intensity)   # once, not per peak: lists may be long
     for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):

@@ -19,6 +19,7 @@ runs the shared assignment (:func:`shiftrank.score.matching.assign`).  The nucle
 """
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -30,6 +31,7 @@ from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
 from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
+from ..inputs.solvents import SOLVENTS
 from ..words import count
 from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
 
@@ -138,7 +140,7 @@ class NucleusResult:
         rows = []
         for p in self.assignment.pairings:
             c = self.classes[p.cls]
-            notes = (["unobserved" + (f" ({c.unseen_why})" if c.exchangeable else "")] if p.peak is None else []) \
+            notes = (["unobserved" + (f" ({c.unseen_why})" if c.may_go_unseen else "")] if p.peak is None else []) \
                 + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
                 + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"])
             row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
@@ -239,6 +241,19 @@ class _Evidence:
         return res
 
 
+#: ppm either side of a 13C solvent line that its multiplet covers (a CDCl3 triplet or a DMSO-d6 septet of
+#: J(C,D) about 20-32 Hz spans 0.6-1.3 ppm at 100 MHz; from memory)
+SOLVENT_HALF_WIDTH = 0.6
+#: the chance of lying under the line from which an unlisted carbon is said to be maybe hidden there
+HIDDEN_MIN = 0.1
+
+
+def _hidden_chance(shift: float, sigma: float, line: float) -> float:
+    """The chance that a carbon predicted at ``shift`` ± ``sigma`` (normal) lies under the solvent line at ``line``."""
+    s = max(float(sigma), 0.3) * math.sqrt(2.0)
+    return 0.5 * (math.erf((line + SOLVENT_HALF_WIDTH - shift) / s) - math.erf((line - SOLVENT_HALF_WIDTH - shift) / s))
+
+
 class CarbonEvidence(_Evidence):
     """13C: carbons by symmetry class and CHn; DEPT multiplicities compared exactly; printed C–F and
     C–P splittings compared with the candidate's carbons one to four bonds from F (three from P)."""
@@ -250,6 +265,8 @@ class CarbonEvidence(_Evidence):
                                    coupling=p.coupling, field=pl.field_mhz, doubled=p.doubled)
                       for p in pl.peaks)
         out.printed = pl.printed   # a printed paragraph's list: the ranking's printed-text settings apply
+        if pl.solvent in SOLVENTS:
+            out.solvent_lines = tuple((x, pl.solvent) for x in SOLVENTS[pl.solvent].carbon_13c)
         return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
@@ -264,6 +281,13 @@ class CarbonEvidence(_Evidence):
                 # a carbon bound to boron is broadened by the quadrupolar 11B and often not seen at all
                 # ('the carbon attached to boron was not observed': common practice): cheap to leave unlisted
                 c.exchangeable, c.unseen_why = True, "bound to boron, often not seen"
+                continue
+            for line, solvent in getattr(peaks, "solvent_lines", ()):
+                if _hidden_chance(c.shift, c.sigma, line) >= HIDDEN_MIN:
+                    # said so beside the table and the signal count; the cost of leaving it out is unchanged: a
+                    # discount by this chance was measured and lost a database isomer case, gaining none
+                    c.maybe_hidden, c.unseen_why = True, f"may lie under the {solvent} line at {line:g} ppm"
+                    break
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
@@ -503,7 +527,7 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     second = f" ({n_second} beside another line: a second form's?)" if n_second else ""
     missing = [p for p in a.pairings if p.peak is None]
     n_missing = len({p.cls for p in missing})
-    n_missing_x = len({p.cls for p in missing if res.classes[p.cls].exchangeable})
+    n_missing_x = len({p.cls for p in missing if res.classes[p.cls].may_go_unseen})
     n_shared = len({p.cls for p in a.pairings if p.shared})
     if n_missing and n_missing == n_missing_x and not n_shared and not n_unexplained:
         return []   # only classes that often go unseen (NH/OH, a carbon on boron) are missing: how spectra are
@@ -511,7 +535,7 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
                 + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
                 + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
-                + (f" ({n_missing_x} {res.classes[next(p.cls for p in missing if res.classes[p.cls].exchangeable)].unseen_why})"
+                + (f" ({n_missing_x} {res.classes[next(p.cls for p in missing if res.classes[p.cls].may_go_unseen)].unseen_why})"
                    if n_missing_x else "")
                 + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained{second}" if n_unexplained else "")]
     return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained{second}"] if n_unexplained else []

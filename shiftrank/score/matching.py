@@ -99,11 +99,16 @@ class SignalClass:
     units: int = 1              # 1H with integrals: protons in the class
     exchangeable: bool = False  # may go unobserved for a physical reason: 1H OH/NH/SH; 13C a carbon bound to boron
     unseen_why: str = "exchangeable"   # that reason, as the tables and flags say it
+    maybe_hidden: bool = False  # 13C: predicted under the solvent's line; said so when unlisted, at the full cost
     splittable: bool = False    # 1H: a CH2 whose two protons may differ (may show two multiplets)
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
     shift_h: float | None = None  # HSQC: predicted mean shift of the carbon's protons, and its σ
     sigma_h: float | None = None
     twin_of: int | None = None  # 1H: classes with the same value are alike groups told apart (one multiplet is fine)
+
+    @property
+    def may_go_unseen(self) -> bool:
+        return self.exchangeable or self.maybe_hidden
 
 
 @dataclass
@@ -165,6 +170,7 @@ class PeakSet(list):
 
     _arrays = None
     printed = False   # read from printed text (see RankingSettings.for_peaks)
+    solvent_lines: tuple = ()   # 13C: the solvent's own lines (ppm), under which a carbon can hide
 
     def arrays(self):
         if self._arrays is None:
