@@ -74,6 +74,8 @@ def _structure_token(token: str) -> str:
     except InputError as exc:
         if token.lower().endswith(_STRUCTURE_FILES) or "/" in token and not any(ch in token for ch in "=#()[]"):
             raise InputError(f"{token}: no such file") from None
+        if token.startswith("InChI="):
+            raise
         raise InputError(f"'{token[:60]}' is neither an existing file nor a SMILES RDKit can read ({exc})") from None
 
 
@@ -285,6 +287,9 @@ def _case_from_args(args) -> tuple[dict, dict]:
     hsqc = getattr(args, "hsqc", None)
     if not (args.peaks or args.peaks_1h or args.text or hsqc):
         raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc (cross peaks) and/or --text (printed characterisation)")
+    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "text", "hsqc") if getattr(args, n, None) == "-"]
+    if len(piped) > 1:
+        raise InputError(f"{' and '.join(piped)} both read standard input ('-'): one of them can; give the other as a file")
     lists = {}
     case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent,
             "rotamers": bool(getattr(args, "rotamers", False))}
@@ -585,14 +590,14 @@ ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an is
 
 def _sample_options(s, candidates_required: bool) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
-    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx)")
+    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
-                   "or JCAMP-DX spectrum / peak table (.jdx, .dx)")
+                   "or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
-                   "pairs, or a printed HSQC paragraph")
+                   "pairs, or a printed HSQC paragraph; - reads stdin")
     s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
-                   help="SMILES strings and/or structure files (.sdf, .mol, .smi, .csv)")
+                   help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv)")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
     s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
     s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
@@ -621,7 +626,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_formula)
 
     s = sub.add_parser("peaks", help="read and check a peak list (ranges, duplicates, solvent signals)")
-    s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx)")
+    s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
     s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
@@ -666,9 +671,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_batch)
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
-    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file")
+    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file; - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
-                   "or a JCAMP-DX file")
+                   "or a JCAMP-DX file; - reads stdin")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")

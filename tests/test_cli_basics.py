@@ -1,4 +1,5 @@
 """Command-line behaviour: help, exit codes, one-line errors."""
+import json
 import subprocess
 import sys
 
@@ -70,3 +71,31 @@ def test_the_lazy_public_names_are_listed_by_dir_and_each_resolves():
     for name in shiftrank.__all__:
         assert name in names
         assert getattr(shiftrank, name) is not None
+
+
+def run_in(stdin, *args):
+    return subprocess.run([sys.executable, "-m", "shiftrank.cli", *args], capture_output=True, text=True, input=stdin)
+
+
+def test_peak_lists_and_hsqc_from_standard_input_and_one_reader_of_it():
+    r = run_in("9.6 1 s\n2.0 3 s\n", "peaks", "-", "--nucleus", "1H")
+    assert r.returncode == 0 and "2 signals" in r.stdout
+    r = run_in("1H NMR (400 MHz, CDCl3) δ 7.26 (d, J = 8.4 Hz, 2H), 2.35 (s, 3H)\n", "rank", "--candidates",
+               "Cc1ccc(Br)cc1", "Cc1cccc(Br)c1", "--peaks-1h", "-")
+    assert r.returncode == 0, r.stderr
+    two = run_in("9.6 1 s\n", "rank", "--candidates", "CC", "--peaks-1h", "-", "--text", "-")
+    assert two.returncode == 2 and "both read standard input" in two.stderr and "Traceback" not in two.stderr
+
+
+def test_candidates_given_as_standard_inchi(tmp_path):
+    # the InChI of 4-hydroxyacetanilide as a database prints it (IUPAC standard InChI; its mobile-H layer
+    # '(H,9,10)' leaves the amide/imidic acid tautomer open): read and put in the amide form
+    inchi = "InChI=1S/C8H9NO2/c1-6(10)9-7-2-4-8(11)5-3-7/h2-5,11H,1H3,(H,9,10)"
+    r = run("facts", inchi)
+    assert r.returncode == 0 and "C8H9NO2" in r.stdout
+    smi = tmp_path / "c.smi"
+    smi.write_text(f"{inchi} para\nCC(=O)Nc1cccc(O)c1 meta\n")
+    out = run("predict", str(smi), "--jsonl")
+    assert out.returncode == 0 and [json.loads(x)["id"] for x in out.stdout.splitlines()] == ["para", "meta"]
+    bad = run("facts", "InChI=1S/garbage")
+    assert bad.returncode == 2 and "InChI" in bad.stderr and "Traceback" not in bad.stderr

@@ -7,6 +7,7 @@ stops a batch.
 from __future__ import annotations
 
 import csv
+import re
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Iterator
@@ -36,7 +37,8 @@ class MolRecord:
 
 
 def to_mol(smiles: str) -> Chem.Mol:
-    """Parse a SMILES string into a sanitised RDKit molecule, or raise :class:`InputError`.
+    """Parse a SMILES string (or a standard InChI, see :func:`_from_inchi`) into a sanitised RDKit molecule,
+    or raise :class:`InputError`.
 
     >>> to_mol("c1ccncc1").GetNumAtoms()
     6
@@ -45,11 +47,33 @@ def to_mol(smiles: str) -> Chem.Mol:
         raise InputError("SMILES: empty string")
     if len(smiles) > MAX_SMILES:
         raise InputError(f"SMILES '{smiles[:40]}…': {len(smiles):,} characters; the limit is {MAX_SMILES:,}")
+    if smiles.strip().startswith("InChI="):
+        return _from_inchi(smiles.strip())
     mol = Chem.MolFromSmiles(smiles.strip())
     if mol is None:
         raise InputError(f"SMILES '{smiles}': RDKit cannot parse it (check brackets, ring closures and valences)")
     if mol.GetNumAtoms() == 0:
         raise InputError(f"SMILES '{smiles}': no atoms")
+    return mol
+
+
+def _from_inchi(inchi: str) -> Chem.Mol:
+    """A structure given as a standard InChI (copied from a database entry).  Its mobile-H layer ('(H,9,10)')
+    leaves the tautomer open, and RDKit then draws one of them (an amide as its imidic acid): such a structure
+    is put in RDKit's canonical tautomer (the amide, the 2-pyridone).  Atoms are numbered as RDKit reads the
+    InChI.
+
+    >>> from rdkit import Chem
+    >>> Chem.MolToSmiles(to_mol("InChI=1S/C8H9NO2/c1-6(10)9-7-2-4-8(11)5-3-7/h2-5,11H,1H3,(H,9,10)"))
+    'CC(=O)Nc1ccc(O)cc1'
+    """
+    mol = Chem.MolFromInchi(inchi)   # (RDKit's log is off for this module: its errors become ours)
+    if mol is None or mol.GetNumAtoms() == 0:
+        raise InputError(f"InChI '{inchi[:60]}': RDKit cannot read it (check that it is complete, layers and all)")
+    if re.search(r"/h[^/]*\(H", inchi):
+        from rdkit.Chem.MolStandardize import rdMolStandardize
+
+        mol = rdMolStandardize.TautomerEnumerator().Canonicalize(mol)
     return mol
 
 
@@ -64,7 +88,7 @@ def check_organic(mol: Chem.Mol, label: str) -> None:
 
 
 #: first-line cells that name a SMILES column (a table exported from a spreadsheet or a script)
-_SMILES_HEADS = {"smiles", "smi", "smiles_string", "canonical_smiles", "isomeric_smiles", "structure"}
+_SMILES_HEADS = {"smiles", "smi", "smiles_string", "canonical_smiles", "isomeric_smiles", "structure", "inchi"}
 _ID_HEADS = ("id", "name", "title", "compound", "compound_id", "mol_id", "label", "identifier")
 
 
@@ -82,6 +106,8 @@ def _row_delimiter(line: str) -> str | None:
     first = line.split(None, 1)[0]
     if "\t" in line:
         return "\t"
+    if first.startswith("InChI="):
+        return None     # an InChI's layers hold commas and semicolons of their own
     return next((d for d in (",", ";") if d in first), None)
 
 

@@ -528,15 +528,26 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
 
 
 def _read_file(path: str | Path) -> tuple[Path, str]:
-    """The path and text of a user's file, or a clear error naming it."""
+    """The path and text of a user's file (standard input for '-'), or a clear error naming it."""
+    if str(path) == "-":
+        from .files import read_stdin_text
+
+        return Path("stdin"), read_stdin_text()
     return Path(path), read_user_text(path, "a peak list")
 
 
 def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
     """Read a peak file (.txt, .csv, .tsv, .json; a JCAMP-DX peak table or 1D spectrum, .jdx/.dx, whose
-    peaks are picked; anything else is read as text)."""
+    peaks are picked; anything else is read as text), or standard input for '-'."""
     from .spectra import is_jcamp, read_jcamp   # (spectra builds on this module)
 
+    if str(path) == "-":   # standard input: a list or a printed paragraph, pasted or piped
+        from .files import read_stdin_text
+
+        text = read_stdin_text()
+        if not text.strip():
+            raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
+        return peak_text(text, "stdin", nucleus, None, solvent)
     if is_jcamp(path):
         return read_jcamp(path, nucleus, solvent)
     p, text = _read_file(path)
