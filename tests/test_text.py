@@ -573,3 +573,15 @@ def test_a_1h_range_whose_dash_was_lost_in_copying_is_one_multiplet_with_a_note(
     assert [(p.lo, p.hi, p.integral, p.multiplicity) for p in sec.peaks] == [
         (None, None, 1.0, "s"), (7.28, 7.36, 4.0, "m"), (None, None, 3.0, "s")]
     assert any("dash lost" in n for n in sec.notes)
+
+
+def test_a_line_the_authors_mark_as_solvent_or_water_is_set_aside():
+    # '1.56 (br s, 2H, H2O)' in CDCl3 and '5.30 (s, CH2Cl2)' (water and dichloromethane in CDCl3: Fulmer et al.
+    # 2010, Table 1) are printed with their assignment; 'overlapped with CHCl3' and 'exchangeable with D2O'
+    # describe the compound's own lines, and a TMS group is a compound's Si(CH3)3
+    t = ("1H NMR (400 MHz, CDCl3) δ 7.26 (m, 2H, overlapped with CHCl3), 5.30 (s, 2H, CH2Cl2), 4.9 (br s, 1H, "
+         "exchangeable with D2O), 1.56 (br s, 2H, H2O), 0.10 (s, 9H, TMS)")
+    pl = read_nmr_text(t).peaklist("1H")
+    aside = sorted(p.shift for p in pl.peaks if p.solvent)
+    assert aside == [1.56, 5.30]
+    assert sum(1 for n in pl.notes if "set aside" in n and "marked as" in n) == 2

@@ -161,6 +161,16 @@ class NmrText:
         return section_peaklist(sec, solvent, source)
 
 
+#: an assignment note that names a solvent, water or grease and nothing else: the line is not the compound's
+#: ('overlapped with CHCl3' and 'exchangeable with D2O' are the compound's own lines and do not match; TMS is
+#: also a group, Si(CH3)3, and is left out)
+_MARKED_SOLVENT = re.compile(
+    r"^\s*(?:residual\s+)?(?:H2O|HDO|HOD|water|CHCl3|CDCl3|DMSO(?:-d6)?|CH2Cl2|CD2Cl2|DCM|EtOAc|AcOEt|ethyl acetate|acetone"
+    r"|CH3OH|MeOH|methanol|CD3OD|hexanes?|n-hexane|grease|Et2O|diethyl ether|toluene|THF|pentane|CH3CN|MeCN|acetonitrile"
+    r"|C6H6|benzene|solvent|impurity|residual solvent)(?:\s*(?:solvent|signal|peak|impurity|residual|\+\s*H2O))?\s*$",
+    re.I)
+
+
 #: off-resonance notation of a 13C list: the letters count the attached H (common practice)
 _OFF_RESONANCE = {"s": "C", "d": "CH", "t": "CH2", "q": "CH3"}
 
@@ -202,6 +212,11 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
             pk = Peak(p.shift, p.multiplicity, p.integral, 1, None, None, lo=p.lo, hi=p.hi, j=p.j)
         pk.note = p.note
         pk.doubled = bool(sec.doubled and p.twin)
+        if _MARKED_SOLVENT.match(p.note or ""):
+            # '1.56 (br s, 2H, H2O)', '5.30 (s, CH2Cl2)', '77.16 (CDCl3)': the authors say the line is not their
+            # compound's (their integral counts the solvent's protons)
+            pk.solvent = p.note
+            notes.append(f"{sec.nucleus} text: '{p.fragment}' is marked as {p.note} in the text: set aside")
         peaks.append(pk)
     if sec.doubled:   # the pairs printed with one description are marked already
         n = mark_doubled(peaks, sec.nucleus)
