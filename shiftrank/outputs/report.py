@@ -20,6 +20,8 @@ from rdkit import Chem  # noqa: E402
 from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 
 from .. import __version__  # noqa: E402
+from ..errors import InputError  # noqa: E402
+from ..inputs.molecules import to_mol  # noqa: E402
 from ..score.ranking import CAUTION, CandidateResult, RankResult  # noqa: E402
 from ..words import count  # noqa: E402
 
@@ -63,7 +65,10 @@ def _hex_rgb(h: str) -> tuple[float, float, float]:
 def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) -> str:
     """RDKit drawing with each observed atom labelled by its deviation and tinted by |z| (worst pairing)."""
     res = cand.nuclei.get(nucleus)
-    mol = Chem.MolFromSmiles(cand.smiles)
+    try:
+        mol = to_mol(cand.smiles)   # (a SMILES or an InChI, numbered as the tables number it)
+    except InputError:
+        mol = None
     if mol is None or res is None:
         return ""
     worst: dict[int, tuple] = {}
@@ -76,7 +81,7 @@ def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) 
     nd = 1 if nucleus == "13C" else 2
     for a, (_, p) in worst.items():
         colours[a] = _hex_rgb(tint(p.z))
-        notes[a] = "n/o" if p.deviation is None else f"{p.deviation:+.{nd}f}"
+        notes[a] = f"{a}: " + ("n/o" if p.deviation is None else f"{p.deviation:+.{nd}f}")
     for a, text in notes.items():
         mol.GetAtomWithIdx(a).SetProp("atomNote", text)
     d = rdMolDraw2D.MolDraw2DSVG(*size)
@@ -270,7 +275,7 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     parts.append("<h3>Candidates</h3>")
     key = "".join(f"<span style='background:{col}'></span>{lab}" for _, col, lab in SCALE)
     parts.append(f"<div class='key note'>atom tint, |observed − predicted| / σ: {key}<span style='background:{UNOBSERVED}'></span>unobserved"
-                 " · labels on atoms: deviation in ppm (13C drawings: carbons; 1H drawings: the atoms carrying each proton class)"
+                 " · labels on atoms: atom number (as in the tables): deviation in ppm, n/o unobserved (13C drawings: carbons; 1H drawings: the atoms carrying each proton class)"
                  " · red marks with × : peaks the candidate does not explain · 1H bars: printed range, height ∝ integral</div>")
     for i, c in enumerate(result.candidates, 1):
         parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error))
