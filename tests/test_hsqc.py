@@ -127,3 +127,17 @@ def test_a_cross_peak_file_as_printed_or_slash_written_is_read(tmp_path):
     none.write_text("HSQC was not recorded; 1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H) 3.9/4.0 mix.")
     with pytest.raises(InputError):
         read_hsqc(none)
+
+
+def test_cross_peaks_printed_with_brackets_tuples_or_arrows():
+    # house styles of printed HSQC data (common practice): δC with its protons in brackets, a '(δH, δC)'
+    # tuple list, an arrow between the two shifts; the same pairs in each
+    from shiftrank.inputs.text import read_nmr_text
+    styles = ["1H-13C HSQC (CDCl3): 128.4 (7.26), 55.2 (3.80), 41.2 (2.95, 3.10)",
+              "HSQC (CDCl3): (δH, δC) (7.26, 128.4), (3.80, 55.2), (2.95, 41.2), (3.10, 41.2)",
+              "HSQC: δC 128.4 ↔ δH 7.26, δC 55.2 ↔ δH 3.80, δC 41.2 ↔ δH 2.95, δC 41.2 ↔ δH 3.10"]
+    for t in styles:
+        sec = read_nmr_text(t).section("HSQC")
+        assert sorted((p.shift, p.shift_h) for p in sec.peaks) == [(41.2, 2.95), (41.2, 3.10), (55.2, 3.80), (128.4, 7.26)], t
+    # a bracket after a 13C value outside an HSQC section stays a detail
+    assert read_nmr_text("13C NMR (CDCl3) δ 128.4 (CH, from HSQC), 55.2").section("HSQC") is None

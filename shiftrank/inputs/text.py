@@ -62,6 +62,24 @@ _CORRELATION = re.compile(r"\d\s*/\s*[+-]?\d|\bH-?[\w′']+(?:\s*\([^()]*\))?\s*
 #: phase or CHn in brackets
 _HSQC_PAIR = re.compile(r"(?<![\d.])(?P<a>[+-]?\d{1,3}(?:\.\d+)?)\s*/\s*(?P<b>[+-]?\d{1,3}(?:\.\d+)?)"
                         r"(?:\s*-\s*(?P<b2>\d{1,3}\.\d+))?(?!\d|\.\d)(?:\s*\(\s*(?P<kind>[^()]{1,12}?)\s*\))?")
+_V = r"[+-]?\d{1,3}\.\d+"
+#: other ways of printing a cross peak, rewritten as 'a/b' before the pairs are read: '128.4 (7.26)' or
+#: '41.2 (2.95, 3.10)' (δC with its protons in brackets), '(7.26, 128.4)' (a bracketed pair after '(δH, δC)'),
+#: 'δC 128.4 ↔ δH 7.26' (an arrow between the two)
+_HSQC_BRACKETED_H = re.compile(rf"(?<![\d./])(?P<c>{_V})\s*\(\s*(?P<h>{_V}(?:\s*[,;]\s*{_V})?)\s*\)")
+_HSQC_TUPLE = re.compile(rf"\(\s*(?P<a>{_V})\s*[,;]\s*(?P<b>{_V})\s*\)")
+_HSQC_ARROW = re.compile(rf"(?P<a>{_V})\s*(?:↔|⟷|<->|<=>|→|⇔)\s*(?:δ\s*[HC]?\s*[=:]?\s*)?(?P<b>{_V})")
+
+
+def _hsqc_slashes(text: str) -> str:
+    """``text`` with its bracketed, tupled and arrowed cross peaks written as 'a/b' pairs."""
+    def bracketed(m: re.Match) -> str:
+        return ", ".join(f"{m.group('c')}/{h}" for h in re.split(r"\s*[,;]\s*", m.group("h").strip()))
+    text = _HSQC_BRACKETED_H.sub(bracketed, text)
+    text = _HSQC_TUPLE.sub(lambda m: f"{m.group('a')}/{m.group('b')}", text)
+    return _HSQC_ARROW.sub(lambda m: f"{m.group('a')}/{m.group('b')}", text)
+
+
 #: superscript and subscript digits as printed in '¹³C NMR' and 'CDCl₃'
 _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹₀₁₂₃₄₅₆₇₈₉", "01234567890123456789")
 _NUM = r"[+-]?\d+(?:\.\d+)?"
@@ -671,6 +689,8 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             # house styles, ISO 80000-1; from memory): every digit,digit of the section is a decimal comma
             body = re.sub(r"(?<=\d),(?=\d)", ".", body)
             comma_note = "decimal commas read as decimal points throughout the section (no value has a decimal point)"
+        if nuc == "HSQC":
+            body = _hsqc_slashes(body)
         cond, peaks_text = _header_end(body)
         if nuc is None:
             nuc, why = _infer_nucleus(peaks_text, nucleus)
@@ -770,7 +790,8 @@ def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:
             if before.count("(") > before.count(")") or before.count("[") > before.count("]"):
                 continue
             end = heads[k + 1].start() if k + 1 < len(heads) else len(t)
-            if not (_HSQC_PAIR if h.group("hsqc") else _CORRELATION).search(t, h.end(), end):
+            span = t[h.end():end]
+            if not (_HSQC_PAIR.search(_hsqc_slashes(span)) if h.group("hsqc") else _CORRELATION.search(span)):
                 continue
         out.append(h)
     return out
@@ -833,11 +854,12 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
     '1H/13C'); without either, the larger value of a pair is taken as δC (a protonated carbon's shift in ppm
     exceeds its protons' except near 0 ppm, e.g. a silyl methyl), with a note."""
     order = None
-    m = re.search(r"δ\s?([HC])\s*/\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
+    m = re.search(r"δ\s?([HC])\s*[/,]\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
     if m:
         first = (m.group(1) or m.group(3) or "").upper()
         order = "HC" if first in ("H", "1H") else "CH"
     guessed = 0
+    text = _hsqc_slashes(text)
     for pm in _HSQC_PAIR.finditer(text):
         a, b = float(pm.group("a")), float(pm.group("b"))
         if order == "HC" or (order is None and b > a):
