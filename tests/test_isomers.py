@@ -342,3 +342,13 @@ def test_4_pyridone_n_and_o_alkylation_both_ways():
     back = [a for a in isomers("COc1ccncc1") if a.kind == "ambident"]
     assert keys(back) == {key("Cn1ccc(=O)cc1")} and "N-alkyl instead of O-alkyl" in back[0].relation
     assert not [a for a in isomers("COc1ccc2ncccc2c1") if a.kind == "ambident"]
+
+
+def test_reaction_outcomes_name_the_reactant_atoms_the_template_acted_on():
+    # SNAr of 2,4-dichloropyrimidine with morpholine: substitution at C4 (atom 1 of the SMILES below) or at C2
+    # (atom 5) gives the two regioisomers a chemist must tell apart (hand enumeration)
+    alts = isomers(None, kinds=(), reaction="[c:1]Cl.[NH1:3]>>[c:1][N:3]", reactants="Clc1ccnc(Cl)n1.C1COCCN1")
+    by = {a.smiles: a.relation for a in alts}
+    assert set(map(key, by)) == {key("Clc1nccc(N2CCOCC2)n1"), key("Clc1ccnc(N2CCOCC2)n1")}
+    c4 = next(r for s, r in by.items() if key(s) == key("Clc1nccc(N2CCOCC2)n1"))
+    assert "reactant 1 atom 1 (C)" in c4 and "reactant 2 atom 5 (N)" in c4

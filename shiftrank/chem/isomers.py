@@ -762,9 +762,14 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     out = []
     for k, prods in enumerate(rxn.RunReactants(tuple(mols))):
         for j, p in enumerate(prods):
+            # where the template acted: its mapped atoms, named by reactant and atom number ('reactant 1
+            # atom 5 (C)'), which is what tells regioisomeric outcomes apart
+            sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
+                            for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
+            where = "; at " + ", ".join(f"reactant {r + 1} atom {i} ({sym})" for r, i, sym in sites) if sites else ""
             m = _finish(Chem.RWMol(p))
             if m is not None:
-                out.append((m, f"reaction product (outcome {k + 1}, product {j + 1})"))
+                out.append((m, f"reaction product (outcome {k + 1}, product {j + 1}{where})"))
     return out
 
 
