@@ -187,3 +187,15 @@ def test_elemental_analysis_and_subscripted_formulas_are_sample_history():
     inv = take_inventory(parse_peaks("166.6\n150.1\n137.6\n121.9\n119.0\n113.6\n109.9\n55.6\n51.7\n"), None,
                          "C9H11NO3·0.5H2O")
     assert inv.formula == "C9H11NO3" and any("set aside: 0.5H2O" in f for f in inv.findings)
+
+
+def test_a_given_formula_that_differs_from_the_printed_ms_molecule_is_noted():
+    # an HRMS statement printed with its formula (calcd for C8H11ClN3O [M+H]+: the molecule is C8H10ClN3O; ion
+    # masses from the IUPAC atomic masses) beside a formula typed from another sample
+    from shiftrank.score.ranking import rank
+    text = ("1H NMR (400 MHz, CDCl3) δ 8.05 (d, J = 6.2 Hz, 1H), 6.40 (d, J = 6.2 Hz, 1H), 3.78 (m, 4H), 3.65 (m, 4H). "
+            "HRMS (ESI) m/z [M+H]+ calcd for C8H11ClN3O 200.0585, found 200.0583.")
+    r = rank(text=text, candidates=["Clc1nccc(N2CCOCC2)n1"], formula="C10H13NO3")
+    assert any("differs from the molecule of the text's MS statement (C8H10ClN3O)" in n for n in r.notes)
+    same = rank(text=text, candidates=["Clc1nccc(N2CCOCC2)n1"], formula="C8H10ClN3O")
+    assert not any("differs from" in n for n in same.notes)

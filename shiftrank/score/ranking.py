@@ -963,6 +963,11 @@ def _stage(case: dict, nuclei_models) -> tuple:
     ions = case_ions(case)
     notes.extend(f"sample history{' from the text: MS' if st.source == 'text' else ': measured'} {st.describe()}"
                  for st in ions)
+    if fcounts is not None:
+        for st in ions:
+            if st.source == "text" and st.neutral and hill(fcounts) != st.neutral:
+                notes.append(f"the formula given ({f}) differs from the molecule of the text's MS statement "
+                             f"({st.neutral}): each candidate is checked against both")
     priors = _check_priors(case.get("priors"), len(cands))
     preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
     return case, peaks, notes, (fcounts, charge, ions), mass, priors, preps
