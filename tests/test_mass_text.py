@@ -190,8 +190,8 @@ def test_elemental_analysis_and_subscripted_formulas_are_sample_history():
 
 
 def test_a_given_formula_that_differs_from_the_printed_ms_molecule_is_noted():
-    # an HRMS statement printed with its formula (calcd for C8H11ClN3O [M+H]+: the molecule is C8H10ClN3O; ion
-    # masses from the IUPAC atomic masses) beside a formula typed from another sample
+    # an HRMS statement printed with its formula (calcd for C8H11ClN3O [M+H]+: the molecule is C8H10ClN3O)
+    # beside a formula typed from another sample (invented values)
     from shiftrank.score.ranking import rank
     text = ("1H NMR (400 MHz, CDCl3) δ 8.05 (d, J = 6.2 Hz, 1H), 6.40 (d, J = 6.2 Hz, 1H), 3.78 (m, 4H), 3.65 (m, 4H). "
             "HRMS (ESI) m/z [M+H]+ calcd for C8H11ClN3O 200.0585, found 200.0583.")
