@@ -355,3 +355,21 @@ def test_xypoints_spectrum_and_factors(tmp_path):
                            + ["##END="]) + "\n")
     pl = read_jcamp(f)
     assert np.allclose(sorted(p.shift for p in pl.peaks if p.solvent is None), sorted(s for s, _ in PARABEN), atol=0.03)
+
+
+def test_two_close_methoxy_singlets_are_not_read_as_one_wide_doublet(tmp_path):
+    # two OCH3 singlets 0.035 ppm (14 Hz at 400 MHz) apart, as in a 3,4-dimethoxyaryl compound (values
+    # invented), beside a one-proton trans-alkene doublet of J 15.9 Hz: no H–H doublet wider than about 12 Hz
+    # carries more than one proton per line pair (geminal or trans couplings, common practice)
+    lines = (_multiplet(7.62, 1, [(15.9, 1)]) + _multiplet(6.85, 1, [(8.2, 1)]) + _multiplet(6.40, 1, [(15.9, 1)])
+             + _multiplet(3.870, 3, []) + _multiplet(3.835, 3, []))
+    x, y = _trace(lines, -1, 12, 65536, 0.0025, 2.0)
+    pl = read_jcamp(_write(tmp_path / "dimethoxy.dx", _header("1H", MHZ_H, x[0], x[-1], len(y), solvent="CDCl3"),
+                           _affn(x, y)), "1H")
+    got = {round(p.shift, 3): p for p in pl.peaks if p.solvent is None}
+    methoxy = [got[s] for s in sorted(got) if 3.8 < s < 3.9]
+    assert [m.multiplicity for m in methoxy] == ["s", "s"]
+    assert [m.intensity for m in methoxy] == [pytest.approx(3.0, abs=0.2)] * 2   # 3H each against a 1H doublet
+    alkene = [got[s] for s in sorted(got) if 6.3 < s < 6.5 or 7.5 < s < 7.7]
+    assert [a.multiplicity for a in alkene] == ["d", "d"] and alkene[0].j[0] == pytest.approx(15.9, abs=0.3)
+    assert any("read as two singlets" in n for n in pl.notes)

@@ -195,6 +195,7 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         for q in pl.peaks:
             if q.intensity is not None:
                 q.intensity = round(q.intensity / unit, 2)
+        _split_wide_doublets(pl, mhz, where)
     n = sum(1 for q in pl.peaks if q.solvent)
     if n or inside:   # one note for the solvent's lines instead of one per line
         del pl.notes[before:]
@@ -205,6 +206,30 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         pl.notes.append(f"{where}: the residual {key} signal lies inside the multiplet{'s' if len(inside) > 1 else ''} "
                         f"{', '.join(inside)}: kept as the sample's, its integral includes the solvent")
     return pl
+
+
+#: 1H: a doublet this wide (Hz) is a geminal or trans-alkene coupling, one proton per line pair (common practice)
+WIDE_DOUBLET_HZ = 12.0
+
+
+def _split_wide_doublets(pl: PeakList, mhz: float, where: str) -> None:
+    """Two lines read as a doublet with J above ``WIDE_DOUBLET_HZ`` whose integral is 2.5 or more times the
+    smallest multiplet's are two singlets (two OCH3 groups 14 Hz apart), not one proton's geminal or trans
+    coupling: split, with a note."""
+    out, split = [], []
+    for q in pl.peaks:
+        if (q.solvent is None and q.multiplicity == "d" and q.j and q.j[0] > WIDE_DOUBLET_HZ and q.intensity
+                and q.intensity >= 2.5 and q.lo is not None and q.hi is not None):
+            for x in (q.lo, q.hi):
+                out.append(Peak(x, "s", round(q.intensity / 2, 2), 1, None, None))
+            split.append(f"{q.shift:g}")
+        else:
+            out.append(q)
+    if split:
+        pl.peaks = sorted(out, key=lambda q: q.shift)
+        pl.notes.append(f"{where}: {len(split)} two-line group{'s' if len(split) != 1 else ''} at {', '.join(split)} ppm "
+                        f"read as two singlets: a doublet wider than {WIDE_DOUBLET_HZ:g} Hz is one proton's (geminal or "
+                        "trans), and these integrate to more")
 
 
 #: Hz: largest one-bond 13C–2H coupling of the common deuterated solvents (CDCl3 32 Hz; DMSO-d6 21 Hz;
