@@ -20,6 +20,7 @@ runs the shared assignment (:func:`shiftrank.score.matching.assign`).  The nucle
 from __future__ import annotations
 
 import math
+from collections import Counter
 from dataclasses import dataclass, field, replace
 
 import numpy as np
@@ -527,16 +528,18 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     second = f" ({n_second} beside another line: a second form's?)" if n_second else ""
     missing = [p for p in a.pairings if p.peak is None]
     n_missing = len({p.cls for p in missing})
-    n_missing_x = len({p.cls for p in missing if res.classes[p.cls].may_go_unseen})
+    unseen = sorted({p.cls for p in missing if res.classes[p.cls].may_go_unseen})
+    why = Counter(res.classes[i].unseen_why for i in unseen)
     n_shared = len({p.cls for p in a.pairings if p.shared})
-    if n_missing and n_missing == n_missing_x and not n_shared and not n_unexplained:
-        return []   # only classes that often go unseen (NH/OH, a carbon on boron) are missing: how spectra are
+    if n_missing and n_missing == len(unseen) and not n_shared and not n_unexplained:
+        # only classes that often go unseen are missing (NH/OH, a carbon on boron, one under the solvent's
+        # line): how such spectra are printed
+        return []
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
                 + (f"; {count(n_shared, 'class shares a peak', 'classes share peaks')}" if n_shared else "")
                 + (f"; {count(n_missing, 'class', 'classes')} unobserved" if n_missing else "")
-                + (f" ({n_missing_x} {res.classes[next(p.cls for p in missing if res.classes[p.cls].may_go_unseen)].unseen_why})"
-                   if n_missing_x else "")
+                + (f" ({', '.join(f'{n} {w}' for w, n in why.items())})" if why else "")
                 + (f"; {count(n_unexplained, 'peak', 'peaks')} unexplained{second}" if n_unexplained else "")]
     return [f"{count(n_unexplained, res.nucleus + ' peak', res.nucleus + ' peaks')} unexplained{second}"] if n_unexplained else []
 

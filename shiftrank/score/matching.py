@@ -170,7 +170,7 @@ class PeakSet(list):
 
     _arrays = None
     printed = False   # read from printed text (see RankingSettings.for_peaks)
-    solvent_lines: tuple = ()   # 13C: the solvent's own lines (ppm), under which a carbon can hide
+    solvent_lines: tuple = ()   # 13C: (ppm, solvent) of the solvent's own lines, under which a carbon can hide
 
     def arrays(self):
         if self._arrays is None:
