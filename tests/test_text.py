@@ -585,3 +585,13 @@ def test_a_line_the_authors_mark_as_solvent_or_water_is_set_aside():
     aside = sorted(p.shift for p in pl.peaks if p.solvent)
     assert aside == [1.56, 5.30]
     assert sum(1 for n in pl.notes if "set aside" in n and "marked as" in n) == 2
+
+
+def test_carbons_at_one_value_counted_in_words():
+    # '42.7 (two overlapping signals)', '128.5 (three overlapping signals)' as printed in PMC6100353 (the dev
+    # paragraphs), and '(two C)': carbons printed once at one value
+    t = ("13C NMR (50 MHz, DMSO-d6) δ: 42.7 (two overlapping signals), 125.1 (two overlapping signals), 128.3, "
+         "128.5 (three overlapping signals), 98.0 (two C), 97.0 (2 overlapped carbons)")
+    peaks = read_nmr_text(t).section("13C").peaks
+    assert [p.count for p in peaks] == [2, 2, 1, 3, 2, 2]
+    assert all(p.note == "" for p in peaks)

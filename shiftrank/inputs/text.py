@@ -94,6 +94,10 @@ _LETTERS_THEN_INTEGRAL = re.compile(r"^(?P<letters>[A-Za-z][A-Za-z. ]{0,12}?)\s+
 #: a carbon count: "2C", "2 × CH", "2CH3", "CH2 × 2", "x 2", "2 x"; the H label (group h or c2) says CH/CH2/CH3
 _CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?P<h>H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?P<c2>C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
+_NUMBER_WORDS = {"two": 2, "three": 3, "four": 4, "five": 5, "six": 6}
+#: carbons counted in words or with a word between: 'two overlapping signals', 'two C', '3 overlapped carbons'
+_WORD_CARBONS = re.compile(r"^(?P<n>two|three|four|five|six|[2-9])\s+(?:(?:overlapping|overlapped|coincident|equivalent|"
+                           r"coinciding)\s+)?(?:signals?|carbons?|C|peaks?|lines?|resonances?)$", re.I)
 #: a J value: not the '1' of '1H' or '1Н' ('J = 7.9 and 4.8 Hz' is a list), nor, after a list printed without
 #: its 'Hz', an atom label or a count ('J = 4.0, 5′′-H', 'J = 15.6, 3-H', '3(9)-CH3', '2 × CH', '1,4-disubstituted')
 _JNUM = (r"[+-]?(?:\d+\.\d+|\d+(?!(?:,\d+)+-))(?![\d.])(?!\s*(?!Hz|and\b)[^\W\d_])"
@@ -436,6 +440,12 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             continue
         if m:   # '(m, 8H; 6H, OCH3, 2H, NH2)': the first count is the multiplet's, the later ones a breakdown
             leftovers.append(w)
+            continue
+        wm = _WORD_CARBONS.match(w)
+        if wm and nucleus == "13C" and peak.count == 1:
+            # '(two overlapping signals)', '(two C)', '(3 overlapping carbons)': carbons printed at one value
+            n = wm.group("n")
+            peak.count = int(n) if n.isdigit() else _NUMBER_WORDS[n.lower()]
             continue
         m = _CARBONS.match(w)
         if m and nucleus == "13C":
