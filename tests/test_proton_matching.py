@@ -300,3 +300,19 @@ def test_integrals_no_candidate_has_are_noted_beside_the_verdict():
     assert "(note: the 1H integrals sum to 15 H, more than any candidate has (12 H)" in r.verdict
     clean = rank(text=text.replace("2.17 (s, 3H), ", ""), candidates=["CCOC(=O)c1cccc(C)c1", "CCOC(=O)c1ccc(C)cc1"])
     assert "integrals sum" not in clean.verdict
+
+
+def test_an_unlisted_proton_class_under_the_water_line_is_said_to_be_maybe_hidden():
+    # 1-chloro-4-(methylsulfonyl)benzene in DMSO-d6 printed without its SO2CH3 singlet (about 3.25 ppm, from
+    # memory), which lies by the water line of DMSO-d6 at 3.33 ppm (Fulmer et al. 2010): named so, no count flag
+    from shiftrank.score.ranking import rank
+    text = "1H NMR (400 MHz, DMSO-d6) δ 7.95 (d, J = 8.6 Hz, 2H), 7.60 (d, J = 8.6 Hz, 2H)"
+    res = rank(text=text, candidates=["CS(=O)(=O)c1ccc(Cl)cc1"]).candidates[0].nuclei["1H"]
+    row = next(r for r in res.assignment_table() if r["observed"] is None)
+    assert "under the water (DMSO-d6) line at 3.33 ppm" in row["notes"][0]
+    assert not any("expects" in f for f in res.flags)
+    # an ester and ether OCH3 pair (about 3.8 ppm) left out of the same kind of list lies by no solvent line
+    text2 = "1H NMR (400 MHz, DMSO-d6) δ 7.90 (d, J = 8.9 Hz, 2H), 7.03 (d, J = 8.9 Hz, 2H)"
+    res2 = rank(text=text2, candidates=["COC(=O)c1ccc(OC)cc1"]).candidates[0].nuclei["1H"]
+    notes = [n for r in res2.assignment_table() if r["observed"] is None for n in r["notes"]]
+    assert notes and not any("under the" in n for n in notes)

@@ -242,17 +242,30 @@ class _Evidence:
         return res
 
 
-#: ppm either side of a 13C solvent line that its multiplet covers (a CDCl3 triplet or a DMSO-d6 septet of
-#: J(C,D) about 20-32 Hz spans 0.6-1.3 ppm at 100 MHz; from memory)
-SOLVENT_HALF_WIDTH = 0.6
-#: the chance of lying under the line from which an unlisted carbon is said to be maybe hidden there
+#: ppm either side of a solvent line that it covers: 13C, a CDCl3 triplet or a DMSO-d6 septet of J(C,D) about
+#: 20-32 Hz spans 0.6-1.3 ppm at 100 MHz; 1H, a residual quintet or a broad water line (from memory)
+SOLVENT_HALF_WIDTH = {"13C": 0.6, "1H": 0.08}
+#: the chance of lying under the line from which an unlisted class is said to be maybe hidden there
 HIDDEN_MIN = 0.1
 
 
-def _hidden_chance(shift: float, sigma: float, line: float) -> float:
-    """The chance that a carbon predicted at ``shift`` ± ``sigma`` (normal) lies under the solvent line at ``line``."""
-    s = max(float(sigma), 0.3) * math.sqrt(2.0)
-    return 0.5 * (math.erf((line + SOLVENT_HALF_WIDTH - shift) / s) - math.erf((line - SOLVENT_HALF_WIDTH - shift) / s))
+def _hidden_chance(shift: float, sigma: float, line: float, half_width: float) -> float:
+    """The chance that a class predicted at ``shift`` ± ``sigma`` (normal) lies within ``half_width`` of ``line``."""
+    s = max(float(sigma), 0.5 * half_width) * math.sqrt(2.0)
+    return 0.5 * (math.erf((line + half_width - shift) / s) - math.erf((line - half_width - shift) / s))
+
+
+def _mark_hidden(classes: list[SignalClass], peaks, nucleus: str) -> None:
+    """Mark the classes (not NH/OH) that may lie under one of the solvent's lines: when unlisted, the table and
+    the signal count say so.  The cost of leaving one out is unchanged: a discount by this chance was measured
+    (13C) and lost a database isomer case, gaining none."""
+    for c in classes:
+        if c.exchangeable:
+            continue
+        for line, solvent in getattr(peaks, "solvent_lines", ()):
+            if _hidden_chance(c.shift, c.sigma, line, SOLVENT_HALF_WIDTH[nucleus]) >= HIDDEN_MIN:
+                c.maybe_hidden, c.unseen_why = True, f"may lie under the {solvent} line at {line:g} ppm"
+                break
 
 
 class CarbonEvidence(_Evidence):
@@ -282,13 +295,7 @@ class CarbonEvidence(_Evidence):
                 # a carbon bound to boron is broadened by the quadrupolar 11B and often not seen at all
                 # ('the carbon attached to boron was not observed': common practice): cheap to leave unlisted
                 c.exchangeable, c.unseen_why = True, "bound to boron, often not seen"
-                continue
-            for line, solvent in getattr(peaks, "solvent_lines", ()):
-                if _hidden_chance(c.shift, c.sigma, line) >= HIDDEN_MIN:
-                    # said so beside the table and the signal count; the cost of leaving it out is unchanged: a
-                    # discount by this chance was measured and lost a database isomer case, gaining none
-                    c.maybe_hidden, c.unseen_why = True, f"may lie under the {solvent} line at {line:g} ppm"
-                    break
+        _mark_hidden(out, peaks, "13C")
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
@@ -444,6 +451,10 @@ class ProtonEvidence(_Evidence):
         for k, p in enumerate(pl.peaks):
             out.append(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, p.lo, p.hi, tuple(p.j),
                                     caps.get(k) if caps else None, doubled=p.doubled))
+        if pl.solvent in SOLVENTS:
+            sv = SOLVENTS[pl.solvent]
+            out.solvent_lines = tuple((x, pl.solvent) for x in sv.residual_1h) + (
+                ((sv.water_1h, f"water ({pl.solvent})"),) if sv.water_1h is not None else ())
         return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
@@ -463,6 +474,7 @@ class ProtonEvidence(_Evidence):
             out.append(SignalClass(e.atoms, e.letters(), float(m_), float(s_),
                                    e.n_h if by_protons else 1,
                                    exchangeable=e.exchangeable, splittable=e.may_split, expected=e, twin_of=e.twin_of))
+        _mark_hidden(out, peaks, "1H")
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:
