@@ -174,3 +174,20 @@ def test_expected_letters_put_resolved_splittings_before_optional_ones():
     ex = _by_atom("c1ccc(N2CCOCC2)cc1")
     assert ex[(5, 9)].letters() == "t(d)" and ex[(6, 8)].letters() == "t(d)"
     assert ex[(5, 9)].label().startswith("t(d) (vicinal")
+
+
+def test_long_range_c_p_couplings_of_a_benzylphosphonate_ring():
+    # diethyl 4-methylbenzylphosphonate: its meta and para ring carbons, four and five bonds from P, print
+    # 'd, J ≈ 3 Hz' (values from memory); those are allowed, optional, and the CH3 carbons stay singlets
+    from rdkit import Chem
+    from shiftrank.chem.couplings import carbon_multiplets, fit_cost
+    from shiftrank.chem.structure import carbon_classes
+
+    mol = Chem.MolFromSmiles("CCOP(=O)(Cc1ccc(C)cc1)OCC")
+    classes = carbon_classes(mol)
+    exp = {tuple(c.atoms): e for c, e in zip(classes, carbon_multiplets(mol, classes))}
+    para, meta, aryl_ch3 = exp[(9,)], exp[(8, 11)], exp[(10,)]
+    assert fit_cost(para, "d", (3.6,), tolerance=2.0) == (0, 0)
+    assert fit_cost(meta, "d", (3.0,), tolerance=2.0) == (0, 0)
+    assert fit_cost(para, None, (), tolerance=2.0)[0] == 0        # unresolved: fine too
+    assert not aryl_ch3.groups                                     # six bonds from P

@@ -29,7 +29,7 @@ constants; the ranges below are recalled from such tables, "from memory", and de
 ¹J(C,F) 230–300 Hz (CF3 ≈ 272, aryl C–F ≈ 245), ²J 15–45 (CF3–C ≈ 32, aryl ortho CH ≈ 21;
 a ring carbon without H next to an aryl C–F 8–25, ≈ 10–14 at C1 of 2-fluoroanisole or 2-fluoroaniline), ³J 2–12
 (aryl meta ≈ 8, CF3–C–C ≈ 4; to a second fluorine beside a ¹J or ²J, often not printed), ⁴J 0.5–4.5 (often
-unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz;
+unresolved); ¹J(C,P) 100–200 Hz, ²J and ³J 2–30 Hz, ⁴J and ⁵J through a ring 0.5–5 Hz (optional);
 ¹J(C,D) 17–34 Hz (a CD3 septet ≈ 19–22, the CDCl3 triplet ≈ 32); a CDn carbon shows 2n + 1 lines.
 
 The comparison with a printed multiplet is evidence, not a filter: "m", "br" and overlapped signals
@@ -83,6 +83,9 @@ J_RANGES = {
     # printed letters ('156.0 (d, J = 254 Hz)' for a dq; common practice)
     "CF3-beside": ((2.0, 12.0), True),
     "CP3": ((2.0, 30.0), True),
+    # four and five bonds from P through a ring: a benzylphosphonate's meta and para carbons print d, J ≈ 3 Hz
+    # (from memory); often unresolved
+    "CP-long": ((0.5, 5.0), True),
     # deuterium (spin 1: n deuterons give 2n + 1 lines, carried as 2n partners): 13C of a CDn carbon and the
     # proton left on a CHD or CHD2 group (see chem/labels.py)
     "CD1": ((17.0, 34.0), False), "HD-geminal": ((1.0, 2.6), True),
@@ -567,7 +570,7 @@ def _next_to_ring_n(mol: Chem.Mol, i: int, j: int) -> bool:
 
 
 _CF_KIND = {("F", 1): "CF1", ("F", 2): "CF2", ("F", 3): "CF3", ("F", 4): "CF4",
-            ("P", 1): "CP1", ("P", 2): "CP2", ("P", 3): "CP3"}
+            ("P", 1): "CP1", ("P", 2): "CP2", ("P", 3): "CP3", ("P", 4): "CP-long", ("P", 5): "CP-long"}
 
 
 def _ring_carbon_without_h_beside_aryl_f(mol: Chem.Mol, a: int, f: int) -> bool:
@@ -580,7 +583,7 @@ def _ring_carbon_without_h_beside_aryl_f(mol: Chem.Mol, a: int, f: int) -> bool:
 
 
 def carbon_multiplets(mol: Chem.Mol, classes, ranks: list[int] | None = None) -> list[ExpectedMultiplet]:
-    """Expected C–F / C–P / C–D splitting of every carbon class (one to four bonds from F, one to three from
+    """Expected C–F / C–P / C–D splitting of every carbon class (one to four bonds from F, one to five from
     P, deuterium on the carbon itself), in the order of ``classes`` (objects with ``atoms``); a class far
     from F and P and without 2H is a singlet."""
     if ranks is None:
