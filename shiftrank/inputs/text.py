@@ -869,8 +869,7 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
         first = (m.group(1) or m.group(3) or "").upper()
         order = "HC" if first in ("H", "1H") else "CH"
     guessed = 0
-    text = _hsqc_slashes(text)
-    for pm in _HSQC_PAIR.finditer(text):
+    for pm in _HSQC_PAIR.finditer(text):   # (other ways of printing a pair were rewritten as 'a/b' by the caller)
         a, b = float(pm.group("a")), float(pm.group("b"))
         if order == "HC" or (order is None and b > a):
             if pm.group("b2"):   # 'δH-range/δC' is not a form in use; read the pair as printed
