@@ -190,9 +190,9 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
     rlo, rhi = RANGES[nucleus]
     for v in (s, lo, hi):
         if v is not None and not rlo <= v <= rhi:
-            hint = ("; is this a 13C list? 13C peaks go with --peaks ('peaks' in a batch case)"
+            hint = ("is this a 13C list? 13C peaks go with --peaks ('peaks' in a batch case)"
                     if nucleus == "1H" and 20 <= v <= RANGES["13C"][1] else "")
-            raise OutOfRange(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm{hint}")
+            raise OutOfRange(f"{where}: shift {v:g} ppm is outside the {nucleus} range {rlo:g}…{rhi:g} ppm", hint)
     if nucleus == "13C":
         m = normalise_multiplicity(mult, where)
     else:
@@ -365,7 +365,12 @@ def not_13c_message(pl: "PeakList", hint: str = "Give it as the 1H peaks (--peak
 
 
 class OutOfRange(InputError):
-    """A shift outside the nucleus's range (a typo, usually); lenient readers set it aside."""
+    """A shift outside the nucleus's range (a typo, usually); lenient readers set it aside.  ``hint`` says what a
+    whole list of such values may be (13C values given as 1H); it is part of the message, not of a set-aside note."""
+
+    def __init__(self, plain: str, hint: str = ""):
+        super().__init__(f"{plain}; {hint}" if hint else plain)
+        self.plain = plain
 
 
 #: Lenient readers set aside out-of-range values (typos) only while they are this share of the list at most.
@@ -390,11 +395,11 @@ def peaks_from_records(data: list, src: str = "peaks", nucleus: str = "13C", not
         except OutOfRange as exc:
             if notes is None:
                 raise
-            dropped.append(str(exc))
+            dropped.append(exc)
     if dropped:
         if len(dropped) > MAX_OUT_OF_RANGE * len(data) or not out:
             raise InputError(f"{src}: {len(dropped)} of {len(data)} shifts lie outside the {nucleus} range ({dropped[0]})")
-        notes.extend(f"{d}: set aside" for d in dropped)
+        notes.extend(f"{d.plain}: set aside" for d in dropped)
     return out
 
 
