@@ -352,3 +352,12 @@ def test_reaction_outcomes_name_the_reactant_atoms_the_template_acted_on():
     assert set(map(key, by)) == {key("Clc1nccc(N2CCOCC2)n1"), key("Clc1ccnc(N2CCOCC2)n1")}
     c4 = next(r for s, r in by.items() if key(s) == key("Clc1nccc(N2CCOCC2)n1"))
     assert "reactant 1 atom 1 (C)" in c4 and "reactant 2 atom 5 (N)" in c4
+
+
+def test_a_swap_never_puts_a_halogen_on_a_ring_n():
+    # 4-chloropyridine N-oxide: trading the O for the Cl would give an N-chloropyridinium olate, a reagent's
+    # structure rather than a product (the positional moves already keep halogens off ring N); the Cl's two
+    # moves stay (hand enumeration)
+    alts = isomers("[O-][n+]1ccc(Cl)cc1", kinds=("positional",))
+    assert key("[O-]c1cc[n+](Cl)cc1") not in keys(alts)
+    assert {key("[O-][n+]1ccccc1Cl"), key("[O-][n+]1cccc(Cl)c1")} <= keys(alts)

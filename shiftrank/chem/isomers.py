@@ -386,6 +386,12 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             for r2, x2, n2 in subs[k + 1:]:
                 if r1 == r2 or n1 == n2:
                     continue
+                if (mol.GetAtomWithIdx(r2).GetAtomicNum() == 7 and x_is_halogen[x1]
+                        or mol.GetAtomWithIdx(r1).GetAtomicNum() == 7 and x_is_halogen[x2]):
+                    # a halogen traded onto a ring N (an N-oxide's O for a ring Cl: '[O-]c1cc[n+](Cl)cc1') is a
+                    # reagent, not a product, as in the moves above; an alkyl may (2-picoline N-oxide against
+                    # 1-methyl-2-pyridone)
+                    continue
                 m = _reattach(mol, [(r1, x1, r2), (r2, x2, r1)])
                 if m is not None:
                     out.append((m, f"{n1} and {n2} swapped (ring atoms {r1} and {r2})"))
