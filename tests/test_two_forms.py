@@ -107,3 +107,17 @@ def test_rotamers_field_is_checked_in_batch(tmp_path):
 def test_rotamers_argument_must_be_a_boolean():
     with pytest.raises(InputError, match="rotamers"):
         shiftrank.rank(_values(C13), [TRUTH], rotamers="yes")
+
+
+def test_lines_of_the_second_form_alone_raise_no_count_flag():
+    # tert-butyl 2-(4-fluorophenyl)pyrrolidine-1-carboxylate, 13C printed with its rotamer pairs (values
+    # invented in the pattern such paragraphs print): the true structure explains every line but the second
+    # form's, so no signal-count flag; a positional isomer still gets one
+    from shiftrank.score.ranking import rank
+    text = ("13C NMR (101 MHz, CDCl3, mixture of rotamers) δ 161.5 (d, J = 244 Hz), 154.6, 140.8, 127.2 (d, J = 7.9 Hz), "
+            "115.1 (d, J = 21.2 Hz), 79.3, 60.5 and 59.9, 47.1 and 46.8, 36.1 and 34.9, 28.5 and 28.2, 23.5 and 23.1.")
+    r = rank(text=text, candidates=["CC(C)(C)OC(=O)N1CCCC1c1ccc(F)cc1", "CC(C)(C)OC(=O)N1CCCC1c1cccc(F)c1"])
+    best, other = r.candidates
+    assert best.smiles == "CC(C)(C)OC(=O)N1CCCC1c1ccc(F)cc1"
+    assert not any("expects" in f for f in best.nuclei["13C"].flags)
+    assert any("expects" in f for f in other.nuclei["13C"].flags)

@@ -518,12 +518,12 @@ class ProtonEvidence(_Evidence):
 def _integrals_explain_sharing(res: NucleusResult) -> bool:
     """Whether the 1H signal count differs only because printed multiplets hold several classes, each
     such multiplet integrating to exactly their protons (``7.51–7.47 (m, 3H)`` over a 2H and a 1H class):
-    every class but an exchangeable NH/OH is on a peak, no peak is unexplained.  That is how 1H spectra
-    are printed, not a warning."""
+    every class but one that often goes unseen (NH/OH, one under a solvent line) is on a peak, no peak is
+    unexplained but a second form's line beside its partner.  That is how 1H spectra are printed, not a warning."""
     a, peaks, classes = res.assignment, res.peaks, res.classes
-    if not res.by_protons or any(p.peak is None and not classes[p.cls].exchangeable for p in a.pairings):
+    if not res.by_protons or any(p.peak is None and not classes[p.cls].may_go_unseen for p in a.pairings):
         return False
-    if any(not peaks[j].solvent for j in a.unmatched_peaks):
+    if any(not peaks[j].solvent and not peaks[j].doubled for j in a.unmatched_peaks):
         return False
     held: dict[int, int] = {}
     for p in a.pairings:
@@ -543,9 +543,10 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     unseen = sorted({p.cls for p in missing if res.classes[p.cls].may_go_unseen})
     why = Counter(res.classes[i].unseen_why for i in unseen)
     n_shared = len({p.cls for p in a.pairings if p.shared})
-    if n_missing and n_missing == len(unseen) and not n_shared and not n_unexplained:
+    if n_missing == len(unseen) and not n_shared and n_unexplained == n_second:
         # only classes that often go unseen are missing (NH/OH, a carbon on boron, one under the solvent's
-        # line): how such spectra are printed
+        # line), and the only lines left over are a second form's beside their partners (the text says the
+        # spectrum shows two forms): how such spectra are printed
         return []
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"
