@@ -280,3 +280,14 @@ def test_a_carbon_predicted_under_the_solvent_line_is_said_to_be_maybe_hidden():
     r2 = rank(text=text.replace("DMSO-d6", "CDCl3"), candidates=[true])
     res2 = r2.candidates[0].nuclei["13C"]
     assert any("expects 6 signals" in f for f in res2.flags)
+
+
+def test_one_candidate_string_given_again_is_counted_not_repeated():
+    # a candidate file concatenated with itself: the same string four times is "given 4 times" in the verdict
+    # and the note, not listed four times (13C values invented for the demo-like check)
+    t = "13C NMR (101 MHz, CDCl3) δ 166.5, 155.9, 133.4, 130.6, 122.8, 117.1, 112.2, 56.4, 52.4."
+    r = rank(text=t, candidates=["COC(=O)c1ccc(Br)c(OC)c1"] * 4 + ["COC(=O)c1ccc(Br)cc1OC"])
+    assert "given 4 times" in r.verdict and r.verdict.count("COC(=O)c1ccc(Br)c(OC)c1") == 1
+    assert "COC(=O)c1ccc(Br)c(OC)c1 was given 4 times; together p" in " ".join(r.notes)
+    r2 = rank(text=t, candidates=["COC(=O)c1ccc(Br)c(OC)c1"] * 2 + ["O=C(OC)c1ccc(Br)c(OC)c1"])
+    assert "COC(=O)c1ccc(Br)c(OC)c1 (given 2 times) and O=C(OC)c1ccc(Br)c(OC)c1 are the same structure, given 3 times" in " ".join(r2.notes)

@@ -19,6 +19,7 @@ mass) is flagged and, by default, ranked last with probability 0 and the reason.
 """
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from typing import Sequence
@@ -551,8 +552,11 @@ def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
     if len(same) > 1:
         alike = _drawn_alike(same)
         how = "the same structure" if alike else "the same compound, an NH/OH tautomer"
-        shown = (f"{label} (p = {best.probability:.2f}; {'written' if alike else 'drawn'} as "
-                 f"{', '.join(c.smiles for c in same[1:])} it is {how}: together p = {p_best:.2f})")
+        given = sum(1 for c in same if c.smiles == best.smiles)
+        others = list(dict.fromkeys(c.smiles for c in same if c.smiles != best.smiles))
+        parts = ([f"given {given} times"] if given > 1 else []) + (
+            [f"{'written' if alike else 'drawn'} as {', '.join(others)} it is {how}"] if others else [])
+        shown = f"{label} (p = {best.probability:.2f}; {'; '.join(parts)}: together p = {p_best:.2f})"
     if p_best >= 0.9:
         return f"clear winner: {shown}{conflict}"
     rest = [c for c in valid if all(c is not x for x in same)]
@@ -643,9 +647,17 @@ def _drawn_alike(group: list[CandidateResult]) -> bool:
 
 
 def _tautomer_note(group: list[CandidateResult]) -> str:
-    names = " and ".join(c.smiles for c in group)   # (a generated one's name is its relation: too long here)
-    how = "the same structure written twice" if _drawn_alike(group) else "one compound drawn as different NH/OH tautomers"
-    return f"{names} are {how}; together p = {sum(c.probability for c in group):.2f}"
+    # (a generated one's name is its relation: too long here); one string given again is counted, not repeated
+    times = Counter(c.smiles for c in group)
+    together = f"together p = {sum(c.probability for c in group):.2f}"
+    if len(times) == 1:
+        return f"{group[0].smiles} was given {len(group)} times; {together}"
+    names = " and ".join(f"{s}" + (f" (given {n} times)" if n > 1 else "") for s, n in times.items())
+    if _drawn_alike(group):
+        how = "the same structure written twice" if len(group) == 2 else f"the same structure, given {len(group)} times"
+    else:
+        how = "one compound drawn as different NH/OH tautomers"
+    return f"{names} are {how}; {together}"
 
 
 def _proton_total_misfit(valid: list[CandidateResult]) -> str | None:
