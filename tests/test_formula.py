@@ -120,3 +120,16 @@ def test_formula_command_reads_salts_ions_spaces_and_subscripts():
         assert run(written).stdout.startswith("C8H10N4O2   average mass")
     bad = run("H+")
     assert bad.returncode == 2 and "no neutral parent" in bad.stderr and "Traceback" not in bad.stderr
+
+
+def test_a_molecular_weight_written_after_the_formula_is_checked_not_refused():
+    # formulas copied from a notebook or catalogue with their weight; C8H10ClN3O weighs 199.64 and its
+    # hydrochloride 236.10 from the standard atomic weights (IUPAC)
+    from shiftrank.chem.formula import sample_formula
+    for text in ("C8H10ClN3O (MW 199.6)", "C8H10ClN3O, 199.64 g/mol", "C8H10ClN3O [FW = 199.6]"):
+        counts, charge, notes = sample_formula(text)
+        assert hill(counts) == "C8H10ClN3O" and charge == 0
+        assert any("agrees with C8H10ClN3O" in n for n in notes)
+    assert any("differs from" in n for n in sample_formula("C8H10ClN3O (MW 236.1)")[2])
+    assert any("agrees with C8H11Cl2N3O" in n for n in sample_formula("C8H10ClN3O·HCl (MW 236.1)")[2])
+    assert sample_formula("C6H12")[2] == []          # trailing digits of the formula itself are no weight

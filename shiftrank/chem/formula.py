@@ -159,6 +159,26 @@ def salt_parts(text: str) -> list[str]:
     return [p.replace("\0", ".").strip() for p in _PART_SEP.split(protected) if p.strip()]
 
 
+#: a molecular weight written after a formula: ' (MW 199.6)', ', 199.64 g/mol', ' [FW = 236.1]'
+_TRAILING_MASS = re.compile(
+    r"(?:[\s,;]+|[\s,;]*[(\[])\s*(?:(?:MW|M\.W\.|FW|F\.W\.|Mr|M\.?\s*wt\.?|mol(?:ecular|\.)?\s*w(?:eigh)?t\.?|MM)\s*[=:]?\s*)?"
+    r"(?P<m>\d{2,4}(?:\.\d+)?)\s*(?:g\s*/\s*mol|g\s*mol(?:-1|−1|⁻¹)|Da)?\s*[)\]]?\s*$", re.I)
+
+
+def split_weight(text: str) -> tuple[str, float | None]:
+    """A formula and the molecular weight written after it, if any ('C8H10ClN3O (MW 199.6)' ->
+    ('C8H10ClN3O', 199.6)), as formulas are copied from notebooks and catalogues.
+
+    >>> split_weight("C8H10ClN3O, 199.64 g/mol"), split_weight("C6H12")
+    (('C8H10ClN3O', 199.64), ('C6H12', None))
+    """
+    s = text.strip()
+    m = _TRAILING_MASS.search(s)
+    if m and re.search(r"[A-Z]", s[:m.start()]):
+        return s[:m.start()].strip().rstrip(",;").strip(), float(m.group("m"))
+    return s, None
+
+
 def written_whole(text: str) -> Counter | None:
     """Element counts of a salt or solvate as written, coefficients included (what a balance weighs), or None
     for a formula of one part.
@@ -166,7 +186,7 @@ def written_whole(text: str) -> Counter | None:
     >>> hill(written_whole("C9H11NO3·0.5H2O")), hill(written_whole("C10H14N2 * 2 HCl"))
     ('C9H12NO3.5', 'C10H16Cl2N2')
     """
-    parts = salt_parts(text)
+    parts = salt_parts(split_weight(text)[0])
     if len(parts) < 2:
         return None
     whole: Counter = Counter()
@@ -215,6 +235,8 @@ def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
         raise InputError(f"formula: expected text, got {type(text).__name__}")
     s = text.strip()
     notes: list[str] = []
+    # 'C8H10ClN3O (MW 199.6)', 'C8H10ClN3O, 199.64 g/mol' as copied from a notebook: the weight is checked
+    s, printed_mw = split_weight(s)
     parts = salt_parts(s)
     if len(parts) > 1:
         parsed = []
@@ -231,12 +253,23 @@ def sample_formula(text: str) -> tuple[Counter, int, list[str]]:
         dropped = [x[0] for x in parsed if x is not main]
         notes.append(f"formula '{text}': compared on its organic part {hill(main[1])}"
                      f"{' (charge ' + format(main[2], '+d') + ')' if main[2] else ''}; set aside: {', '.join(dropped)}")
+        if printed_mw is not None:
+            notes.append(_weight_note(text, printed_mw, written_whole(s)))
         return main[1], main[2], notes
     counts, charge = _one_part(s)
     if charge:
         notes.append(f"formula '{text}' carries a charge ({charge:+d}): compared on its elements, allowing "
                      f"{abs(charge)} H more or fewer for the neutral form")
+    if printed_mw is not None:
+        notes.append(_weight_note(text, printed_mw, counts))
     return counts, charge, notes
+
+
+def _weight_note(text: str, printed: float, counts) -> str:
+    """Whether the weight written after a formula agrees with the formula's average weight (a salt's as written)."""
+    mw = average_weight(fold_isotopes(counts))
+    agree = "agrees with" if abs(mw - printed) <= 0.6 else "differs from"
+    return f"formula '{text}': the weight {printed:g} written after it {agree} {hill(counts)} ({mw:.2f})"
 
 
 def _one_part(s: str) -> tuple[Counter, int]:
