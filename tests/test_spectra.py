@@ -373,3 +373,16 @@ def test_two_close_methoxy_singlets_are_not_read_as_one_wide_doublet(tmp_path):
     alkene = [got[s] for s in sorted(got) if 6.3 < s < 6.5 or 7.5 < s < 7.7]
     assert [a.multiplicity for a in alkene] == ["d", "d"] and alkene[0].j[0] == pytest.approx(15.9, abs=0.3)
     assert any("read as two singlets" in n for n in pl.notes)
+
+
+def test_a_2d_file_is_named_as_such_for_peaks_and_for_hsqc(tmp_path):
+    # a JCAMP-DX 6 nD NMR header (##NUM DIM= 2, NTUPLES; McDonald & Wilks 1988 labels) without 1D data
+    p = tmp_path / "hsqc.jdx"
+    p.write_text("\n".join(["##TITLE= hsqc", "##JCAMP-DX= 6.00", "##DATA TYPE= nD NMR SPECTRUM", "##NUM DIM= 2",
+                            "##.OBSERVE FREQUENCY= 400.13", "##.OBSERVE NUCLEUS= ^1H", "##NTUPLES= nD NMR SPECTRUM",
+                            "##VAR_NAME= FREQUENCY1, FREQUENCY2, SPECTRUM", "##END NTUPLES= nD NMR SPECTRUM", "##END="]) + "\n")
+    with pytest.raises(InputError, match="a 2D spectrum"):
+        read_jcamp(p, "1H")
+    from shiftrank.inputs.peaks import read_hsqc
+    with pytest.raises(InputError, match="2D spectra are not read"):
+        read_hsqc(p)

@@ -674,6 +674,9 @@ def read_hsqc(path: str | Path) -> HsqcList:
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
     (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped."""
     p, text = _read_file(path)
+    if re.search(r"^\s*##JCAMP-?DX\s*=", text[:4000], re.I | re.M):
+        raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the HSQC cross peaks as 'δC δH' "
+                         "pairs, one per line, or the printed HSQC paragraph")
     if p.suffix.lower() == ".json":
         try:
             return hsqc_list(json.loads(text), p.name)

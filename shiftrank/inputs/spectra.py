@@ -129,10 +129,13 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     table = next((b for b in blocks if "PEAKTABLE" in b), None)
     spectrum = next((b for b in blocks if "XYDATA" in b or "DATATABLE" in b or "XYPOINTS" in b), None)
     block = table if table is not None else spectrum
+    head = blocks[0]
+    dims = ((block or head).get("NUMDIM") or head.get("NUMDIM") or "1").split()[0]
+    if block is None and (dims != "1" or re.search(r"nD|2D", head.get("DATATYPE", ""))):
+        raise InputError(f"{where}: a 2D spectrum (##NUM DIM= {dims}); give the 1D 13C or 1H spectrum, or its peak list "
+                         "(HSQC: its cross peaks as 'δC δH' pairs)")
     if block is None:
         raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=, ##XYPOINTS=)")
-    head = blocks[0]
-    dims = (block.get("NUMDIM") or head.get("NUMDIM") or "1").split()[0]
     if dims != "1" or re.search(r"^\s*##PAGE=\s*F1\s*=", text, re.I | re.M):
         raise InputError(f"{where}: a 2D spectrum (##NUM DIM= {dims}); give the 1D 13C or 1H spectrum, or its peak list")
     found = _nucleus(block) or _nucleus(head)
