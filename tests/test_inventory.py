@@ -204,3 +204,20 @@ def test_a_boron_formula_names_the_carbon_on_boron_as_a_likely_missing_line():
     pl = read_nmr_text("13C NMR (101 MHz, CDCl3) δ 162.1, 136.5, 113.3, 83.5, 55.1, 24.8.").peaklist("13C")
     inv = take_inventory(pl, formula="C13H19BO3")
     assert any("bound to boron" in f for f in inv.findings)
+
+
+def test_1h_integrals_account_for_carbons_the_13c_list_shows_once():
+    # ethyl 4-methoxybenzoate, C10H12O3, 8 printed 13C lines (values from memory): the two aromatic 2H doublets
+    # are two pairs of equivalent CH, which is the two carbons the count lacks (symmetry reading, common practice)
+    from shiftrank.inputs.text import read_nmr_text
+    t = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.92 (d, J = 8.8 Hz, 2H), 6.90 (d, J = 8.8 Hz, 2H), 4.34 (q, J = 7.1 Hz, "
+                      "2H), 3.85 (s, 3H), 1.37 (t, J = 7.1 Hz, 3H). 13C NMR (101 MHz, CDCl3) δ 166.4, 163.3, 131.5, 122.9, "
+                      "113.5, 60.6, 55.4, 14.4.")
+    inv = take_inventory(t.peaklist("13C"), t.peaklist("1H"), formula="C10H12O3")
+    line = next(f for f in inv.findings if "more carbons than the signals" in f)
+    assert "the 1H integrals account for all 2" in line and "2H d at 7.92" in line
+    # a 4-morpholinopyrimidine-like list (invented): two 4H multiplets of CH2 next to N and O
+    t2 = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 8.05 (d, J = 6.2 Hz, 1H), 6.40 (d, J = 6.2 Hz, 1H), 3.78 (m, 4H), "
+                       "3.65 (m, 4H). 13C NMR (101 MHz, CDCl3) δ 162.9, 161.0, 157.5, 101.5, 66.3, 44.4.")
+    inv2 = take_inventory(t2.peaklist("13C"), t2.peaklist("1H"), formula="C8H10ClN3O")
+    assert any("account for all 2" in f and "two equivalent CH2" in f for f in inv2.findings)

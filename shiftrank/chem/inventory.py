@@ -118,6 +118,7 @@ class Inventory:
     has_13c: bool = True
     h_regions: list[tuple[str, int]] = field(default_factory=list)   # (region, protons) from 1H integrals
     h_patterns: list[str] = field(default_factory=list)              # first-order patterns read from 1H
+    h_duplicates: list[tuple[int, str]] = field(default_factory=list)  # carbons 1H symmetry repeats, and why
 
     def lines(self) -> list[str]:
         out = []
@@ -399,7 +400,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
         elif dC > 0:
             inv.findings.append(f"the formula has {dC} more carbons than the signals: symmetry or overlap"
                                 + (" (or a carbon bound to boron, which is often not seen: common practice)"
-                                   if fc.get("B") else ""))
+                                   if fc.get("B") else "") + _symmetry_from_1h(inv.h_duplicates, dC))
         elif dC < 0 and pairs:
             left = carbons - pairs
             inv.findings.append(f"{-dC} more carbon signals than the formula has carbons; the spectrum shows two forms "
@@ -515,6 +516,7 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         where = ("OCH3, or NCH3 of an azole" if 3.3 <= p.shift <= 4.1 else "NCH3 or COCH3/ArCH3" if 2.0 <= p.shift < 3.3
                  else "CH3 on a quaternary carbon")
         inv.h_patterns.append(f"3H singlet at {p.shift:g}: an isolated methyl ({where}; common practice)")
+    inv.h_duplicates = _duplicated_carbons(sample, inv.h_ratio, ethyls[0][2] if ethyls else 1)
     for p, n in zip(sample, inv.h_ratio):
         if (p.multiplicity or "").startswith("br") and n <= 3:
             what = ("a carboxylic acid OH, or an amide/azole NH" if p.shift >= 10.5 else
@@ -523,6 +525,41 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
                     + (" or water exchanging with it" if n <= 2 and 3.0 <= p.shift <= 3.6 else ""))
             inv.h_patterns.append(f"broad {n}H signal at {p.shift:g}: exchangeable, {what} likely; shaking with D2O would "
                                   "remove it (common practice)")
+
+
+def _symmetry_from_1h(dups: list[tuple[int, str]], dC: int) -> str:
+    """What the 1H integrals say about ``dC`` carbons more in the formula than 13C signals."""
+    if not dups:
+        return ""
+    k = sum(n for n, _ in dups)
+    why = "; ".join(w for _, w in dups)
+    if k == dC:
+        return f"; the 1H integrals account for all {dC}: {why}"
+    if k < dC:
+        return (f"; the 1H integrals account for {k} ({why}), leaving {dC - k} for carbons printed once at one "
+                "value or not listed (often quaternary)")
+    return f"; the 1H integrals suggest {k} repeated carbons ({why}), more than {dC}: some are likely not equivalent"
+
+
+def _duplicated_carbons(sample, ratio: list[int], ethyls: int) -> list[tuple[int, str]]:
+    """Carbons that symmetry repeats, read from 1H signals whose integral counts equivalent groups (common
+    practice): an aromatic 2H d/t/dd/s is two equivalent CH (one carbon more than signals), a 4H signal of CH2
+    next to a heteroatom two equivalent CH2, a 6H methyl singlet or doublet two CH3, a 9H singlet three,
+    k equivalent ethyls 2(k − 1)."""
+    out = []
+    for p, n in zip(sample, ratio):
+        m = (p.multiplicity or "").replace("br ", "")
+        if 6.5 <= p.shift < 8.6 and n == 2 and m in ("d", "t", "dd", "s"):
+            out.append((1, f"2H {m} at {p.shift:g} (two equivalent ring CH)"))
+        elif 2.5 <= p.shift < 4.6 and n == 4 and m in ("t", "m", "s", "br t", "dd"):
+            out.append((1, f"4H {m} at {p.shift:g} (two equivalent CH2, as in a morpholine, piperazine or symmetric chain)"))
+        elif n == 6 and m in ("s", "d") and p.shift < 4.2:
+            out.append((1, f"6H {m} at {p.shift:g} (two equivalent CH3)"))
+        elif n == 9 and m == "s" and p.shift < 1.6:
+            out.append((2, f"9H s at {p.shift:g} (three equivalent CH3)"))
+    if ethyls > 1:
+        out.append((2 * (ethyls - 1), f"{ethyls} equivalent ethyl groups"))
+    return out
 
 
 def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -> None:
