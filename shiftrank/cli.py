@@ -76,7 +76,7 @@ def _structure_token(token: str) -> str:
             raise InputError(f"{token}: no such file") from None
         if token.startswith("InChI="):
             raise
-        raise InputError(f"'{token[:60]}' is neither an existing file nor a SMILES RDKit can read ({exc})") from None
+        raise InputError(f"{exc} (and no file of that name exists)") from None
 
 
 def cmd_facts(args) -> int:

@@ -48,7 +48,7 @@ def test_hydrogen_classes():
 
 
 def test_bad_smiles():
-    with pytest.raises(InputError, match="cannot parse"):
+    with pytest.raises(InputError, match=r"cannot read it: unbalanced brackets: 1 '\(' against 0 '\)'"):
         structure_facts("C1CC(")
 
 
@@ -112,3 +112,14 @@ def test_stereo_splits_constitutional_halves_seen_in_the_open_data(shared_data):
 ])
 def test_lactim_drawings_are_found(smiles, sites):
     assert lactim_sites(Chem.MolFromSmiles(smiles)) == sites
+
+
+@pytest.mark.parametrize("smiles,says", [
+    ("c1ccnc1", r"aromatic N that carries H is written \[nH\]"),      # pyrrole without its NH (common slip)
+    ("CC(C)(C)(C)C", r"atom 1 \(C\) has 5 bonds"),
+    ("C1CC", "ring closure 1 is opened but never closed"),
+    ("c1ccccc1X", "a symbol RDKit does not read"),
+])
+def test_a_refused_smiles_says_what_is_wrong(smiles, says):
+    with pytest.raises(InputError, match=says):
+        structure_facts(smiles)

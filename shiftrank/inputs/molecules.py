@@ -51,10 +51,49 @@ def to_mol(smiles: str) -> Chem.Mol:
         return _from_inchi(smiles.strip())
     mol = Chem.MolFromSmiles(smiles.strip())
     if mol is None:
-        raise InputError(f"SMILES '{smiles}': RDKit cannot parse it (check brackets, ring closures and valences)")
+        raise InputError(f"SMILES '{smiles}': RDKit cannot read it: {_smiles_problem(smiles.strip())}")
     if mol.GetNumAtoms() == 0:
         raise InputError(f"SMILES '{smiles}': no atoms")
     return mol
+
+
+def _smiles_problem(smiles: str) -> str:
+    """What is wrong with a SMILES RDKit refuses, in a chemist's words where it can be told: an aromatic ring
+    that has no Kekulé form (a pyrrole-type N written without its H), an atom over its valence, brackets or a
+    ring closure left open.
+
+    >>> _smiles_problem("c1ccnc1")
+    'its aromatic ring cannot be written with alternating double bonds (atoms 0 1 2 3 4): an aromatic N that carries H is written [nH], as in c1cc[nH]c1, or give a Kekulé form'
+    >>> _smiles_problem("CC(=O")
+    "unbalanced brackets: 1 '(' against 0 ')'"
+    """
+    raw = Chem.MolFromSmiles(smiles, sanitize=False)
+    if raw is not None:
+        try:
+            Chem.SanitizeMol(raw)
+        except Chem.KekulizeException as exc:
+            m = re.search(r"Unkekulized atoms:\s*([\d ]+)", str(exc))
+            where = f" (atoms {m.group(1).strip()})" if m else ""
+            return (f"its aromatic ring cannot be written with alternating double bonds{where}: an aromatic N that "
+                    "carries H is written [nH], as in c1cc[nH]c1, or give a Kekulé form")
+        except Chem.AtomValenceException as exc:
+            m = re.search(r"atom # ?(\d+) (\w+), (\d+)", str(exc))
+            if m:
+                return (f"atom {m.group(1)} ({m.group(2)}) has {m.group(3)} bonds, more than its valence allows: "
+                        "check bond orders and charges")
+            return "an atom exceeds its valence: check bond orders and charges"
+        except Exception as exc:  # noqa: BLE001 - RDKit's own sanitisation message, passed on
+            return str(exc).strip() or "RDKit's checks refuse it"
+        return "check brackets, ring closures and valences"
+    for o, c in ("()", "[]"):
+        if smiles.count(o) != smiles.count(c):
+            return f"unbalanced brackets: {smiles.count(o)} '{o}' against {smiles.count(c)} '{c}'"
+    outside = re.sub(r"\[[^\]]*\]", "", smiles)
+    closures = re.findall(r"%\d\d|\d", outside)
+    open_ = sorted({d for d in closures if closures.count(d) % 2})
+    if open_:
+        return f"ring closure {', '.join(open_)} is opened but never closed"
+    return "a symbol RDKit does not read as SMILES (check element symbols, bonds and brackets)"
 
 
 def _from_inchi(inchi: str) -> Chem.Mol:
