@@ -595,3 +595,13 @@ def test_carbons_at_one_value_counted_in_words():
     peaks = read_nmr_text(t).section("13C").peaks
     assert [p.count for p in peaks] == [2, 2, 1, 3, 2, 2]
     assert all(p.note == "" for p in peaks)
+
+
+def test_j_values_with_atom_locants_in_brackets_or_with_primes():
+    # 'J(5,6) = 8.2 Hz', 'J2',3' = 8 Hz', "3J3′′,2′′ = 7.5 Hz" (PMC10187637) and "J’ = 1.4 Hz" (PMC10144346), as
+    # printed in the dev paragraphs: the values are couplings, not notes
+    t = ("1H NMR (CDCl3) δ 7.58 (d, J(5,6) = 8.2 Hz, 1H), 7.30 (d, J2',3' = 8 Hz, 2H), 1.44 (tt, 3J3′′,2′′ = 7.5 Hz, "
+         "3J3′′,4′′ = 7.5 Hz, 2H), 7.81 (dd, 1H, J = 7.9 Hz, J’ = 1.4 Hz)")
+    peaks = read_nmr_text(t).sections[0].peaks
+    assert [p.j for p in peaks] == [(8.2,), (8.0,), (7.5, 7.5), (7.9, 1.4)]
+    assert all(p.note == "" for p in peaks)
