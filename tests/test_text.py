@@ -605,3 +605,6 @@ def test_j_values_with_atom_locants_in_brackets_or_with_primes():
     peaks = read_nmr_text(t).sections[0].peaks
     assert [p.j for p in peaks] == [(8.2,), (8.0,), (7.5, 7.5), (7.9, 1.4)]
     assert all(p.note == "" for p in peaks)
+    # a C–F coupling named with a double-primed locant (PMC4413193: '104.7 (d, JC4″-F = 21.6 Hz)')
+    c = read_nmr_text("13C NMR (CDCl3) δ 104.7 (d, JC4″-F = 21.6 Hz)").sections[0].peaks[0]
+    assert c.j == (21.6,) and c.note == ""

@@ -102,7 +102,7 @@ _WORD_CARBONS = re.compile(r"^(?P<n>two|three|four|five|six|[2-9])\s+(?:(?:overl
 #: its 'Hz', an atom label or a count ('J = 4.0, 5′′-H', 'J = 15.6, 3-H', '3(9)-CH3', '2 × CH', '1,4-disubstituted')
 _JNUM = (r"[+-]?(?:\d+\.\d+|\d+(?!(?:,\d+)+-))(?![\d.])(?!\s*(?!Hz|and\b)[^\W\d_])"
          r"(?![′″'’‘`]|-\s*[^\W\d_]|\(|\s*×)")
-_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:[-_]?[A-Za-z0-9,\-′'’]{{0,10}}|\s*[-_]?\s*[A-Za-z][A-Za-z0-9,\-′'’]{{0,9}})?(?:\s*\(\s*[A-Za-z0-9′'’]{{1,4}}\s*,\s*[A-Za-z0-9′'’]{{1,4}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
+_JVAL = re.compile(rf"(?<![A-Za-z0-9])(?:[1-5]\s?)?J(?:[-_]?[A-Za-z0-9,\-′″‴'’]{{0,10}}|\s*[-_]?\s*[A-Za-z][A-Za-z0-9,\-′″‴'’]{{0,9}})?(?:\s*\(\s*[A-Za-z0-9′″‴'’]{{1,4}}\s*,\s*[A-Za-z0-9′″‴'’]{{1,4}}\s*\))?\s*(?:[=:]|\s|-(?=\s*\d))\s*(?P<vals>{_JNUM}(?:\s*(?:,|and|&|/|;)\s*{_JNUM})*)\s*(?:Hz)?", re.I)
 _DEPT = {"ch3": "CH3", "ch2": "CH2", "ch": "CH", "c": "C", "cq": "C", "qc": "C", "quaternary": "C", "q c": "C", "c q": "C"}
 
 
