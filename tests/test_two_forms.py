@@ -121,3 +121,18 @@ def test_lines_of_the_second_form_alone_raise_no_count_flag():
     assert best.smiles == "CC(C)(C)OC(=O)N1CCCC1c1ccc(F)cc1"
     assert not any("expects" in f for f in best.nuclei["13C"].flags)
     assert any("expects" in f for f in other.nuclei["13C"].flags)
+
+
+def test_values_in_brackets_beside_values_are_a_second_forms_lines():
+    # PMC6268300 (dev paragraphs) prints a benzimidazole's minor tautomer after the major one:
+    # '144.63 (142.48), 135.52 (133.60), …': each bracketed value is a line of its own, and two or more such
+    # pairs say the spectrum shows two forms
+    t = ("13C-NMR: δ 152.55, 144.63 (142.48), 135.52 (133.60), 130.15, 129.56, 128.94, 126.50, 122.53 (122.08), "
+         "120.02, 118.18, 112.53 (110.92)")
+    sec = read_nmr_text(t).section("13C")
+    assert len(sec.peaks) == 15 and sec.doubled
+    assert {p.shift for p in sec.peaks if p.twin} == {144.63, 142.48, 135.52, 133.60, 122.53, 122.08, 112.53, 110.92}
+    assert any("printed in brackets" in n for n in sec.notes)
+    # a bracket holding a value far away, or a count, is no twin
+    one = read_nmr_text("13C NMR (CDCl3) δ 128.4 (2C), 55.2").section("13C")
+    assert [p.shift for p in one.peaks] == [128.4, 55.2] and one.peaks[0].count == 2 and not one.doubled

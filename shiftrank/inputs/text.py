@@ -136,6 +136,7 @@ class TextSection:
     solvent_text: str | None = None
     peaks: list[PrintedPeak] = field(default_factory=list)
     notes: list[str] = field(default_factory=list)
+    bracket_twins: int = 0            # values printed in brackets beside values ('144.63 (142.48)')
     doubled: str | None = None      # the printed words saying the spectrum shows two forms ('mixture of rotamers')
 
     @property
@@ -608,6 +609,12 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
             detail, extra = pm.group("d"), pm.group("after").strip()
         elif rest.startswith(("(", "[")):  # unclosed bracket: take the rest as the detail
             detail, extra = rest[1:], ""
+        alt = re.fullmatch(rf"\s*({_NUM})\s*", detail) if detail and twin is None and b is None else None
+        if alt and 0 < abs(float(alt.group(1)) - a) <= (5.0 if sec.nucleus == "13C" else 0.5) and "." in alt.group(1):
+            # '144.63 (142.48)': a value in brackets beside a value, the second form's line (a tautomer, rotamer or
+            # isomer printed after the main one); read as a line of its own, marked as its twin
+            twin, detail = float(alt.group(1)), ""
+            sec.bracket_twins += 1
         if detail:
             _parse_detail(detail, peak, sec.nucleus, sec.notes)
         if extra:
@@ -739,6 +746,13 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         # space, "δ C, 34.8, CH, 146.7", it is one)
         lead = re.search(r"(?<![A-Za-z0-9δ])(Cq|C|CH|CH2|CH3)\s*[:,]\s*(?:δ\s*[HC]?)?\s*[:=]?\s*$", cond)
         _read_peaks(sec, peaks_text, _DEPT.get(lead.group(1).lower()) if lead and sec.nucleus == "13C" else None)
+        if sec.bracket_twins:
+            one = sec.bracket_twins == 1
+            sec.notes.append(f"{count(sec.bracket_twins, 'value')} printed in brackets beside "
+                             f"{'another read as a line of its own' if one else 'others read as lines of their own'} "
+                             "(a second form's: a tautomer, rotamer or isomer?)")
+            if sec.bracket_twins >= 2 and sec.doubled is None:
+                sec.doubled = "second-form values in brackets"
         if sec.nucleus == "13C":
             _dept135(sec, header + " " + cond)
         if _read_prose(sec, body):
