@@ -131,13 +131,12 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     block = table if table is not None else spectrum
     head = blocks[0]
     dims = ((block or head).get("NUMDIM") or head.get("NUMDIM") or "1").split()[0]
-    if block is None and (dims != "1" or re.search(r"nD|2D", head.get("DATATYPE", ""))):
+    if (dims != "1" or re.search(r"^\s*##PAGE=\s*F1\s*=", text, re.I | re.M)
+            or block is None and re.search(r"nD|2D", head.get("DATATYPE", ""))):
         raise InputError(f"{where}: a 2D spectrum (##NUM DIM= {dims}); give the 1D 13C or 1H spectrum, or its peak list "
                          "(HSQC: its cross peaks as 'δC δH' pairs)")
     if block is None:
         raise InputError(f"{where}: JCAMP-DX file without a peak table (##PEAK TABLE=) or a spectrum (##XYDATA=, ##XYPOINTS=)")
-    if dims != "1" or re.search(r"^\s*##PAGE=\s*F1\s*=", text, re.I | re.M):
-        raise InputError(f"{where}: a 2D spectrum (##NUM DIM= {dims}); give the 1D 13C or 1H spectrum, or its peak list")
     found = _nucleus(block) or _nucleus(head)
     if found is not None and found != nucleus:
         raise InputError(f"{where}: the file holds a {found} spectrum (##.OBSERVE NUCLEUS= "
@@ -198,7 +197,7 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         for q in pl.peaks:
             if q.intensity is not None:
                 q.intensity = round(q.intensity / unit, 2)
-        _split_wide_doublets(pl, mhz, where)
+        _split_wide_doublets(pl, where)
     n = sum(1 for q in pl.peaks if q.solvent)
     if n or inside:   # one note for the solvent's lines instead of one per line
         del pl.notes[before:]
@@ -215,7 +214,7 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
 WIDE_DOUBLET_HZ = 12.0
 
 
-def _split_wide_doublets(pl: PeakList, mhz: float, where: str) -> None:
+def _split_wide_doublets(pl: PeakList, where: str) -> None:
     """Two lines read as a doublet with J above ``WIDE_DOUBLET_HZ`` whose integral is 2.5 or more times the
     smallest multiplet's are two singlets (two OCH3 groups 14 Hz apart), not one proton's geminal or trans
     coupling: split, with a note."""
