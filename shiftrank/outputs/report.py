@@ -63,7 +63,7 @@ def _hex_rgb(h: str) -> tuple[float, float, float]:
 
 
 def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) -> str:
-    """RDKit drawing with each observed atom labelled by its deviation and tinted by |z| (worst pairing)."""
+    """RDKit drawing with each observed atom labelled by its number and deviation and tinted by |z| (worst pairing)."""
     res = cand.nuclei.get(nucleus)
     try:
         mol = to_mol(cand.smiles)   # (a SMILES or an InChI, numbered as the tables number it)
