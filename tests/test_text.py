@@ -608,3 +608,16 @@ def test_j_values_with_atom_locants_in_brackets_or_with_primes():
     # a C–F coupling named with a double-primed locant (PMC4413193: '104.7 (d, JC4″-F = 21.6 Hz)')
     c = read_nmr_text("13C NMR (CDCl3) δ 104.7 (d, JC4″-F = 21.6 Hz)").sections[0].peaks[0]
     assert c.j == (21.6,) and c.note == ""
+
+
+def test_cyrillic_look_alikes_and_russian_letters_are_read():
+    # PMC6270984 (dev paragraphs) prints '1Н' and 'СН3' with Cyrillic Н and С; Russian-language papers print
+    # с/д/т/к/м and 'уш. с' for s/d/t/q/m and br s, 'Гц' for Hz and 'м.д.' for ppm (common practice)
+    t = ("Спектр ЯМР 1H (400 МГц, CDCl3), δ, м.д.: 8.53 (д, J = 2 Гц, 1Н), 2.65 (с, 3Н, СН3), "
+         "7.1 (дд, J = 8.0, 2.0 Гц, 1H), 10.2 (уш. с, 1H)")
+    peaks = read_nmr_text(t).section("1H").peaks
+    assert [(p.shift, p.integral, p.multiplicity, p.j) for p in peaks] == [
+        (8.53, 1.0, "d", (2.0,)), (2.65, 3.0, "s", ()), (7.1, 1.0, "dd", (8.0, 2.0)), (10.2, 1.0, "br s", ())]
+    # in a Latin paragraph, Cyrillic С and Н standing alone are the DEPT labels C and CH (PMC6270984's 13C line)
+    c13 = read_nmr_text("13C-NMR: δ = 197.0 (С, СО), 133.6 (СН), 62.6 (СН3, СО2СН3) ppm").section("13C").peaks
+    assert [p.dept for p in c13] == ["C", "CH", "CH3"]

@@ -115,6 +115,7 @@ _MULT_WORDS = {
     "dm": "m", "tm": "m",  # a doublet or triplet of unresolved multiplets: not first-order
     "overlappingm": "m", "overlappedm": "m", "mov": "m", "ovm": "m", "complexm": "m", "aa'xx'": "m", "aaxx": "m",
 }
+_RUSSIAN_LETTERS = str.maketrans("сдткм", "sdtqm")
 _COMBO = re.compile(r"^(?:[dtq]|quint|quin|p|sext|sept){1,4}$")
 
 
@@ -131,10 +132,15 @@ def normalise_1h_multiplicity(text: str | None) -> str | None:
     ['br s', 'br s', 'br d', 'br m']
     >>> [normalise_1h_multiplicity(x) for x in ("h", "hextet", "sep", "qui", "qnt")]   # report generators' short forms
     ['sext', 'sext', 'sept', 'p', 'p']
+    >>> [normalise_1h_multiplicity(x) for x in ("с", "дд", "т", "к", "м", "уш. с")]   # Russian-language letters
+    ['s', 'dd', 't', 'q', 'm', 'br s']
     """
     if text is None:
         return None
     c = re.sub(r"[\s.\-]", "", str(text).lower())
+    if c and re.fullmatch(r"(?:уш)?[сдткм]+", c):
+        # the letters of Russian-language papers: с (s), д (d), т (t), к (q), м (m), уш. (broad); common practice
+        c = ("br" if c.startswith("уш") else "") + c.removeprefix("уш").translate(_RUSSIAN_LETTERS)
     # 'apparent', 'app', 'pseudo' as a prefix, or after 'br' ('br app t'); not inside a word ('overlapping')
     for pre in ("", "broad", "br", "b"):
         hit = next((w for w in ("apparent", "app", "pseudo") if c.startswith(pre + w)), None)

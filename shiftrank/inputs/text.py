@@ -280,6 +280,10 @@ def _mend_run(m: re.Match) -> str:
     return m.group(0)
 
 
+#: Cyrillic letters drawn like Latin ones
+_CYRILLIC_LOOKALIKE = str.maketrans("АВСЕНКМОРТХаеорсху", "ABCEHKMOPTXaeopcxy")
+
+
 def _repair(text: str) -> str:
     """Undo the usual encoding accident (UTF-8 read as Latin-1/cp1252) and normalise dashes and spaces."""
     if any(m in text for m in _MOJIBAKE):
@@ -296,6 +300,14 @@ def _repair(text: str) -> str:
         text = text.replace(ch, "-")
     text = re.sub(r"[\u00a0\u2009\u202f\u2002\u2003\u200b\t]", " ", text)
     text = text.replace("\u00d7", "×").replace("\u03b4", "δ").replace("\u2032", "'")
+    if re.search("[\u0400-\u04ff]", text):
+        # Cyrillic look-alikes in Latin text ('1Н', 'СН3', '(С)': a keyboard layout or an OCR slip) are their Latin
+        # letters.  A paragraph in Russian (Cyrillic letters that look like no Latin one: 'ЯМР', 'Гц', 'д') keeps
+        # its words, 'с' for a singlet among them; only tokens mixing scripts are mended there
+        russian = re.search("[\u0400-\u04ff]", text.translate(_CYRILLIC_LOOKALIKE))
+        text = re.sub(r"\w+", lambda m: m.group(0).translate(_CYRILLIC_LOOKALIKE)
+                      if not russian or re.search(r"[0-9A-Za-z]", m.group(0)) else m.group(0), text)
+        text = text.replace("Гц", "Hz").replace("м.д.", "ppm")   # Russian units: hertz, parts per million
     return text
 
 
