@@ -595,6 +595,9 @@ def test_carbons_at_one_value_counted_in_words():
     peaks = read_nmr_text(t).section("13C").peaks
     assert [p.count for p in peaks] == [2, 2, 1, 3, 2, 2]
     assert all(p.note == "" for p in peaks)
+    # '146.4 (m, 2 × CF)' (PMC8002371, dev paragraphs): two fluorinated carbons at one value
+    cf = read_nmr_text("13C NMR (CDCl3) δ 146.4 (m, 2 × CF)").section("13C").peaks[0]
+    assert cf.count == 2 and cf.note == ""
 
 
 def test_j_values_with_atom_locants_in_brackets_or_with_primes():

@@ -92,7 +92,7 @@ _INTEGRAL_LEAD = re.compile(r"^(?:each\s+)?(?:(?P<times>[1-9])\s*[x×]\s*)?(?P<n
                             r"(?:\s+(?P<rest>(?![A-Za-z]*NMR)\S.*))?$")
 _LETTERS_THEN_INTEGRAL = re.compile(r"^(?P<letters>[A-Za-z][A-Za-z. ]{0,12}?)\s+(?P<n>[1-9]\d?)\s*H$")
 #: a carbon count: "2C", "2 × CH", "2CH3", "CH2 × 2", "x 2", "2 x"; the H label (group h or c2) says CH/CH2/CH3
-_CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:C|carbons?|Cs)(?:[\s-]?(?P<h>H[0-9]?|q|ar|arom|Ar))?\b"
+_CARBONS = re.compile(r"^(?:(?P<n>\d+)\s*(?:[x×]\s*)?(?:CF|C|carbons?|Cs)(?:[\s-]?(?P<h>H[0-9]?|q|ar|arom|Ar))?\b"
                       r"|(?P<c2>C|CH[0-9]?)\s*[x×]\s*(?P<n2>\d+)\b|[x×]\s*(?P<n3>\d)$|(?P<n4>\d)\s*[x×]$)", re.I)
 _NUMBER_WORDS = {"two": 2, "three": 3, "four": 4, "five": 5, "six": 6}
 #: carbons counted in words or with a word between: 'two overlapping signals', 'two C', '3 overlapped carbons'
