@@ -191,3 +191,22 @@ def test_a_1h_list_given_as_13c_and_the_reverse_are_named_as_such():
     # two values below 12.5 ppm can be a real 13C list's aliphatic part
     r = shiftrank.rank(peaks=[10.2, 11.9], candidates=["CCC"])
     assert r.candidates[0].error is None
+
+
+def test_a_13c_list_with_signed_intensities_is_a_dept135_list():
+    # DEPT-135: CH2 lines point down, CH and CH3 up, quaternary carbons are absent (common practice); an
+    # exported list keeps the signs (values invented for the check)
+    pl = parse_peaks("131.5 100\n115.4 95\n66.3 -80\n44.4 -75\n55.3 60\n", "dept.txt")
+    got = {p.shift: p.multiplicity for p in pl.peaks}
+    assert got == {131.5: "CH/CH3", 115.4: "CH/CH3", 66.3: "CH2", 44.4: "CH2", 55.3: "CH/CH3"}
+    assert pl.dept135 and all(p.intensity > 0 for p in pl.peaks) and any("DEPT-135" in n for n in pl.notes)
+    # ranked, the quaternary carbons a DEPT-135 list cannot show are not missed: 4-(4-methoxyphenyl)morpholine
+    import shiftrank
+    r = shiftrank.rank(peaks=[{"shift": 118.0, "intensity": 90}, {"shift": 114.5, "intensity": 95},
+                              {"shift": 67.0, "intensity": -80}, {"shift": 50.8, "intensity": -70},
+                              {"shift": 55.5, "intensity": 60}], candidates=["COc1ccc(N2CCOCC2)cc1"])
+    res = r.candidates[0].nuclei["13C"]
+    assert res.assignment.parts["missing"] <= 2.5 and not any("expects" in f for f in res.flags)
+    # a negative 1H integral is still an error
+    with pytest.raises(InputError, match="negative"):
+        parse_peaks("7.26 -2 d\n", "h.txt", "1H")

@@ -78,6 +78,7 @@ class PeakList:
     trace: tuple | None = None        # (ppm, intensity) of the measured spectrum the peaks were picked from, thinned for display
     printed: bool = False             # read from a printed characterisation paragraph (the ranking has costs of its own for it)
     solvent: str | None = None        # the solvent's key (solvents.SOLVENTS), when known
+    dept135: bool = False             # 13C: a DEPT-135 list (signed intensities): no quaternary carbon can show
 
     @property
     def shifts(self) -> list[float]:
@@ -204,8 +205,8 @@ def _make_peak(shift, mult, inten, where: str, nucleus: str, lineno: int | None,
     else:
         m = normalise_1h_multiplicity(mult) if mult not in (None, "") else None
     i = _number(inten, where, "intensity") if inten not in (None, "") else None
-    if i is not None and i < 0:
-        raise InputError(f"{where}: intensity/integral {i:g} is negative")
+    if i is not None and i < 0 and nucleus != "13C":
+        raise InputError(f"{where}: integral {i:g} is negative")   # (13C: a DEPT-135 phase, see dept135_from_signs)
     js = ()
     if j is not None:
         if isinstance(j, (int, float)) and not isinstance(j, bool):
@@ -354,6 +355,23 @@ def _from_json(text: str, src: str, nucleus: str) -> list[Peak]:
     if not isinstance(data, list):
         raise InputError(f"{src}: JSON must be a list of peaks or an object with a 'peaks' list")
     return peaks_from_records(data, src, nucleus)
+
+
+def dept135_from_signs(peaks: list[Peak], notes: list[str], source: str) -> bool:
+    """A 13C list with negative intensities is a DEPT-135 spectrum's (common practice): negative lines are CH2,
+    positive ones CH or CH3, and quaternary carbons do not appear.  Sets the multiplicities not given and the
+    intensities' sizes; True when the list is one."""
+    if not any(p.intensity is not None and p.intensity < 0 for p in peaks):
+        return False
+    for p in peaks:
+        if p.intensity is None:
+            continue
+        if p.multiplicity is None:
+            p.multiplicity = "CH2" if p.intensity < 0 else "CH/CH3"
+        p.intensity = abs(p.intensity)
+    notes.append(f"{source}: negative intensities: read as a DEPT-135 list (negative CH2, positive CH or CH3; "
+                 "quaternary carbons do not show in it, so none is missed)")
+    return True
 
 
 def looks_like_1h(shifts) -> bool:
@@ -534,7 +552,8 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
         raise InputError(f"{source}: no peaks found")
     check_count(len(raw), source)
     notes: list[str] = []
-    pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes)
+    dept135 = nucleus == "13C" and dept135_from_signs(raw, notes, source)
+    pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes, dept135=dept135)
     return flag_solvent(pl, solvent, keep_integrated=True)
 
 

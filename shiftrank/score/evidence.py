@@ -279,6 +279,7 @@ class CarbonEvidence(_Evidence):
                                    coupling=p.coupling, field=pl.field_mhz, doubled=p.doubled)
                       for p in pl.peaks)
         out.printed = pl.printed   # a printed paragraph's list: the ranking's printed-text settings apply
+        out.dept135 = pl.dept135
         if pl.solvent in SOLVENTS:
             out.solvent_lines = tuple((x, pl.solvent) for x in SOLVENTS[pl.solvent].carbon_13c)
         return out
@@ -295,6 +296,8 @@ class CarbonEvidence(_Evidence):
                 # a carbon bound to boron is broadened by the quadrupolar 11B and often not seen at all
                 # ('the carbon attached to boron was not observed': common practice): cheap to leave unlisted
                 c.exchangeable, c.unseen_why = True, "bound to boron, often not seen"
+            elif getattr(peaks, "dept135", False) and c.multiplicity == "C":
+                c.exchangeable, c.unseen_why = True, "quaternary: DEPT-135 does not show it"
         _mark_hidden(out, peaks, "13C")
         return out
 

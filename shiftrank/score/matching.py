@@ -171,6 +171,7 @@ class PeakSet(list):
     _arrays = None
     printed = False   # read from printed text (see RankingSettings.for_peaks)
     solvent_lines: tuple = ()   # 13C: (ppm, solvent) of the solvent's own lines, under which a carbon can hide
+    dept135 = False             # 13C: a DEPT-135 list, which shows no quaternary carbon
 
     def arrays(self):
         if self._arrays is None:

@@ -33,7 +33,7 @@ from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symme
 from ..errors import InputError
 from ..inputs.molecules import check_organic, to_mol
 from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
-                            looks_like_1h, not_13c_message, peak_text, peaks_from_records)
+                            dept135_from_signs, looks_like_1h, not_13c_message, peak_text, peaks_from_records)
 from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
@@ -264,11 +264,12 @@ def as_peaklist(peaks, solvent: str | None = None, nucleus: str = "13C") -> Peak
         notes: list[str] = []
         items = list(peaks) if all(isinstance(p, Peak) for p in peaks) else \
             peaks_from_records(list(peaks), what, nucleus, notes)
+        dept135 = nucleus == "13C" and dept135_from_signs(items, notes, what)
         if nucleus == "13C":
             items = merge_duplicates(items, notes, nucleus)
         else:
             items = sorted(items, key=lambda p: p.shift)
-        pl = PeakList(nucleus, items, "peaks", notes)
+        pl = PeakList(nucleus, items, "peaks", notes, dept135=dept135)
     if not pl.peaks:
         raise InputError(f"{pl.source}: the peak list is empty")
     if nucleus == "13C" and looks_like_1h(p.shift for p in pl.peaks):
