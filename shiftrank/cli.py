@@ -287,7 +287,7 @@ def _case_from_args(args) -> tuple[dict, dict]:
     hsqc = getattr(args, "hsqc", None)
     if not (args.peaks or args.peaks_1h or args.text or hsqc):
         raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc (cross peaks) and/or --text (printed characterisation)")
-    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "text", "hsqc") if getattr(args, n, None) == "-"]
+    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "dept135", "text", "hsqc") if getattr(args, n, None) == "-"]
     if len(piped) > 1:
         raise InputError(f"{' and '.join(piped)} both read standard input ('-'): one of them can; give the other as a file")
     lists = {}
@@ -295,6 +295,12 @@ def _case_from_args(args) -> tuple[dict, dict]:
             "rotamers": bool(getattr(args, "rotamers", False))}
     if args.peaks:
         lists["13C"] = case["peaks"] = read_peaks(args.peaks, solvent=args.solvent)
+    if getattr(args, "dept135", None):
+        from .inputs.peaks import merge_dept135
+
+        if not args.peaks:
+            raise InputError("--dept135 gives the multiplicities of a 13C list: give the 13C list with --peaks too")
+        lists["13C"] = case["peaks"] = merge_dept135(lists["13C"], read_peaks(args.dept135, solvent=args.solvent))
     if args.peaks_1h:
         lists["1H"] = case["peaks_1h"] = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent)
     if args.text:
@@ -593,6 +599,8 @@ def _sample_options(s, candidates_required: bool) -> None:
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
                    "or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
+    s.add_argument("--dept135", metavar="FILE", help="DEPT-135 peak list of the same sample (signed intensities, or "
+                   "CH2 / CH/CH3): gives the --peaks list its multiplicities (no line: quaternary)")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
                    "pairs, or a printed HSQC paragraph; - reads stdin")
@@ -672,6 +680,8 @@ def build_parser() -> argparse.ArgumentParser:
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
     s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file; - reads stdin")
+    s.add_argument("--dept135", metavar="FILE", help="DEPT-135 peak list of the same sample (signed intensities, or "
+                   "CH2 / CH/CH3): gives the --peaks list its multiplicities")
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
                    "or a JCAMP-DX file; - reads stdin")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")

@@ -210,3 +210,27 @@ def test_a_13c_list_with_signed_intensities_is_a_dept135_list():
     # a negative 1H integral is still an error
     with pytest.raises(InputError, match="negative"):
         parse_peaks("7.26 -2 d\n", "h.txt", "1H")
+
+
+def test_a_dept135_list_gives_a_13c_list_its_multiplicities(tmp_path):
+    # 13C{1H} and DEPT-135 of one sample (common practice: a 13C line without a DEPT-135 line is quaternary,
+    # a negative one CH2, a positive one CH or CH3); values invented for the check
+    from shiftrank.inputs.peaks import merge_dept135
+    c = parse_peaks("170.1\n131.5\n66.3\n21.0\n", "c13.txt")
+    d = parse_peaks("131.6 100\n66.3 -80\n21.0 60\n45.0 -20\n", "dept.txt")
+    m = merge_dept135(c, d)
+    assert [(p.shift, p.multiplicity) for p in m.peaks] == [(21.0, "CH/CH3"), (66.3, "CH2"), (131.5, "CH/CH3"), (170.1, "C")]
+    assert any("45" in n and "without a 13C line" in n for n in m.notes)
+    # a DEPT-135 list of shifts only: its lines are protonated carbons of unknown kind, the others quaternary
+    m2 = merge_dept135(c, parse_peaks("131.6\n66.3\n21.0\n", "d.txt"))
+    assert [p.multiplicity for p in m2.peaks] == [None, None, None, "C"]
+    # on the command line, --dept135 needs --peaks
+    (tmp_path / "c.txt").write_text("170.1\n131.5\n66.3\n21.0\n")
+    (tmp_path / "d.txt").write_text("131.6 100\n66.3 -80\n21.0 60\n")
+    import subprocess, sys
+    run = lambda *a: subprocess.run([sys.executable, "-m", "shiftrank.cli", *a], capture_output=True, text=True)
+    ok = run("rank", "--peaks", str(tmp_path / "c.txt"), "--dept135", str(tmp_path / "d.txt"), "--candidates",
+             "CC(=O)OCc1ccccc1", "--json")
+    assert ok.returncode == 0, ok.stderr
+    bad = run("rank", "--dept135", str(tmp_path / "d.txt"), "--candidates", "CCO", "--peaks-1h", str(tmp_path / "d.txt"))
+    assert bad.returncode == 2 and "--peaks too" in bad.stderr

@@ -14,7 +14,7 @@ import io
 import json
 import math
 import re
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from ..errors import InputError
@@ -372,6 +372,51 @@ def dept135_from_signs(peaks: list[Peak], notes: list[str], source: str) -> bool
     notes.append(f"{source}: negative intensities: read as a DEPT-135 list (negative CH2, positive CH or CH3; "
                  "quaternary carbons do not show in it, so none is missed)")
     return True
+
+
+def merge_dept135(c13: PeakList, dept: PeakList, tolerance: float = 0.25) -> PeakList:
+    r"""The 13C list with multiplicities from a DEPT-135 list of the same sample (common practice): a 13C line
+    with a negative DEPT-135 line within ``tolerance`` ppm is CH2, with a positive one CH or CH3, with none a
+    quaternary carbon.  Multiplicities already given are kept; DEPT-135 lines with no 13C line are named.
+
+    >>> c = parse_peaks("170.1\n131.5\n66.3\n21.0")
+    >>> d = parse_peaks("131.6 100\n66.3 -80\n21.0 60")
+    >>> [(p.shift, p.multiplicity) for p in merge_dept135(c, d).peaks]
+    [(21.0, 'CH/CH3'), (66.3, 'CH2'), (131.5, 'CH/CH3'), (170.1, 'C')]
+    """
+    if c13.nucleus != "13C" or dept.nucleus != "13C":
+        raise InputError("DEPT-135: both lists must be 13C")
+    lines = [p for p in dept.peaks if p.solvent is None]
+    if not lines:
+        raise InputError(f"{dept.source}: no DEPT-135 line")
+
+    def phase(p: Peak) -> str | None:
+        """CH2 down, CH/CH3 up; a line without sign or letters is a protonated carbon of unknown kind."""
+        if p.multiplicity in ("CH2", "CH/CH3", "CH", "CH3"):
+            return p.multiplicity
+        if p.intensity:
+            return "CH2" if p.intensity < 0 else "CH/CH3"
+        return None
+
+    out, used, n = [], set(), {"CH2": 0, "CH/CH3": 0, "C": 0, "protonated": 0}
+    for p in c13.peaks:
+        q = replace(p)
+        if p.solvent is None and p.multiplicity is None:
+            k = min(range(len(lines)), key=lambda i: abs(lines[i].shift - p.shift))
+            if abs(lines[k].shift - p.shift) <= tolerance:
+                used.add(k)
+                q.multiplicity = phase(lines[k])
+            else:
+                q.multiplicity = "C"
+            n["protonated" if q.multiplicity is None else q.multiplicity if q.multiplicity in n else "CH/CH3"] += 1
+        out.append(q)
+    notes = list(c13.notes) + [f"DEPT-135 from {dept.source}: {n['CH2']} CH2, {n['CH/CH3']} CH or CH3, {n['C']} "
+                               f"quaternary (no DEPT-135 line within {tolerance:g} ppm)"
+                               + (f", {n['protonated']} protonated of unknown kind (no sign)" if n["protonated"] else "")]
+    orphans = [f"{lines[i].shift:g}" for i in range(len(lines)) if i not in used]
+    if orphans:
+        notes.append(f"DEPT-135 lines without a 13C line within {tolerance:g} ppm: {', '.join(orphans[:8])}")
+    return replace(c13, peaks=out, notes=notes)
 
 
 def looks_like_1h(shifts) -> bool:
