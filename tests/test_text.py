@@ -624,3 +624,11 @@ def test_cyrillic_look_alikes_and_russian_letters_are_read():
     # in a Latin paragraph, Cyrillic С and Н standing alone are the DEPT labels C and CH (PMC6270984's 13C line)
     c13 = read_nmr_text("13C-NMR: δ = 197.0 (С, СО), 133.6 (СН), 62.6 (СН3, СО2СН3) ppm").section("13C").peaks
     assert [p.dept for p in c13] == ["C", "CH", "CH3"]
+
+
+def test_a_j_value_run_into_the_assignment_note_is_read():
+    # '1.32 (t, 3H, J = 7.2 CH3)' (PMC6268463) and '7.27 (1H, dd, J 8.0, 2.0 Aryl-H)' (PMC6891769), dev
+    # paragraphs: the J values without 'Hz' run into the note
+    t = "1H NMR (CDCl3) δ 1.32 (t, 3H, J = 7.2 CH3), 7.27 (1H, dd, J 8.0, 2.0 Aryl-H), 4.35 (q, 2H, JHH = 7.2 CH2)"
+    peaks = read_nmr_text(t).sections[0].peaks
+    assert [(p.j, p.note) for p in peaks] == [((7.2,), "CH3"), ((8.0, 2.0), "Aryl-H"), ((7.2,), "CH2")]

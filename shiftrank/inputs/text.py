@@ -504,6 +504,17 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
             # '(d, 5.4, 2H)': a J printed with neither 'J' nor 'Hz', after letters that have splittings
             js.append(float(w))
             continue
+        jm = re.fullmatch(r"(?:[1-5]\s?)?J(?:\s*\(\s*[A-Za-z]{1,2}\s*,\s*[A-Za-z]{1,2}\s*\)|[A-Za-z]{0,3})\s*[=:]?\s*"
+                          r"(\d{1,2}\.\d+)\s+([A-Za-z].*)", w)
+        more = re.fullmatch(r"(\d{1,2}\.\d+)\s+([A-Za-z].*)", w)
+        splits = len(re.findall(r"[dtqp]", re.sub(r"^br\s*", "", peak.multiplicity or "")))
+        if jm or (more and js and len(js) < splits):
+            # 'J = 7.2 CH3', '(dd, J 8.0, 2.0 Aryl-H)': a J value printed without 'Hz' and run into the
+            # assignment note (the second only while the letters still want a splitting)
+            m2 = jm or more
+            js.append(float(m2.group(1)))
+            parts.insert(0, m2.group(2))
+            continue
         if (nucleus == "1H" and peak.multiplicity is not None and peak.integral is None and not leftovers
                 and re.fullmatch(r"[1-9]\d?", w)):
             # "(t, 2, J = 7.1 Hz, CH2Cl)": the proton count without its 'H', after the letters; a bare
