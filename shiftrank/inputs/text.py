@@ -611,6 +611,13 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
         a = float(m.group("a"))
         b = float(m.group("b")) if m.group("b") else None
         rest = m.group("rest").strip()
+        lost = re.match(rf"^(?P<b>{_NUM})\s*(?P<rest>[(\[].*)$", rest, re.S) if sec.nucleus == "1H" and b is None else None
+        if lost and 0 < abs(a - float(lost.group("b"))) <= 1.0:
+            # '7.36 7.28 (m, 4H)': a bare 1H value beside a described one is a range whose dash was lost in copying
+            # from a PDF (a plain list of values, '8.05 6.40 3.78', has no descriptions); read as the range it is
+            b, rest = float(lost.group("b")), lost.group("rest")
+            sec.notes.append(f"'{m.group('a')} {lost.group('b')}': read as the range {max(a, b):g}–{min(a, b):g} "
+                             "(a dash lost in copying?)")
         twin = None
         tm = (re.match(rf"^(?:and)\s*(?P<b>{_NUM})(?:\s*-\s*{_NUM})?\s*(?P<rest>[(\[].*)$", rest, re.S)
               or re.match(rf"^/\s*(?P<b>{_NUM})(?:\s*-\s*{_NUM})?\s*(?P<rest>(?:[(\[].*)?)$", rest, re.S))
@@ -642,24 +649,7 @@ def _read_peaks(sec: TextSection, text: str, start_dept: str | None = None) -> N
             _parse_detail(detail, peak, sec.nucleus, sec.notes)
         if extra:
             words = extra.strip(" .")
-            lost = re.match(rf"^(?P<b>{_NUM})\s*(?P<rest>[(\[].*)$", words, re.S)
-            if (lost and sec.nucleus == "1H" and not detail and b is None
-                    and 0 < abs(a - float(lost.group("b"))) <= 1.0):
-                # '7.36 7.28 (m, 4H)': a bare 1H value beside a described one is a range whose dash was lost in
-                # copying from a PDF; a plain list of values ('8.05 6.40 3.78') has no descriptions
-                b = float(lost.group("b"))
-                peak.lo, peak.hi, peak.shift = min(a, b), max(a, b), round((a + b) / 2, 4)
-                dm = re.match(r"^[(\[](?P<d>[^()\[\]]*(?:\([^()]*\)[^()\[\]]*)*)[)\]]\s*(?P<after>.*)$", lost.group("rest"), re.S)
-                if dm:
-                    _parse_detail(dm.group("d"), peak, sec.nucleus, sec.notes)
-                    if dm.group("after").strip(" ."):
-                        pending.insert(0, dm.group("after"))
-                        peak.fragment = frag[:len(frag) - len(dm.group("after"))].strip()
-                else:
-                    pending.insert(0, lost.group("rest"))
-                sec.notes.append(f"'{peak.fragment[:60]}': read as the range {max(a, b):g}–{min(a, b):g} "
-                                 "(a dash lost in copying?)")
-            elif re.match(rf"^(?:and\s+)?{_NUM}\b", words) and re.match(r"^(?:and\s+)?\d", words):
+            if re.match(rf"^(?:and\s+)?{_NUM}\b", words) and re.match(r"^(?:and\s+)?\d", words):
                 pending.insert(0, words)  # two peaks without a separator: "1.46 (s, 9H) 1.45-1.20 (m, 6H)"
                 peak.fragment = frag[:len(frag) - len(extra)].strip()
             else:
