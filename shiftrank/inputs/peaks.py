@@ -616,16 +616,11 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     peaks are picked; anything else is read as text), or standard input for '-'."""
     from .spectra import is_jcamp, read_jcamp   # (spectra builds on this module)
 
-    if str(path) == "-":   # standard input: a list or a printed paragraph, pasted or piped
-        from .files import read_stdin_text
-
-        text = read_stdin_text()
-        if not text.strip():
-            raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
-        return peak_text(text, "stdin", nucleus, None, solvent)
-    if is_jcamp(path):
+    if str(path) != "-" and is_jcamp(path):
         return read_jcamp(path, nucleus, solvent)
-    p, text = _read_file(path)
+    p, text = _read_file(path)   # ('-': standard input, a list or a printed paragraph, pasted or piped)
+    if str(path) == "-" and not text.strip():
+        raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
     fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
     return peak_text(text, p.name, nucleus, fmt, solvent)
 
@@ -743,8 +738,10 @@ def read_hsqc(path: str | Path) -> HsqcList:
     """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
     (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped."""
+    from .spectra import JCAMP_HEADER   # (spectra builds on this module)
+
     p, text = _read_file(path)
-    if re.search(r"^\s*##JCAMP-?DX\s*=", text[:4000], re.I | re.M):
+    if JCAMP_HEADER.search(text[:4000]):
         raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the HSQC cross peaks as 'δC δH' "
                          "pairs, one per line, or the printed HSQC paragraph")
     if p.suffix.lower() == ".json":

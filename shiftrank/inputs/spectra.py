@@ -66,6 +66,10 @@ def is_jcamp(path: str | Path) -> bool:
     return Path(path).suffix.lower() in JCAMP_EXTENSIONS
 
 
+#: the line every JCAMP-DX file carries
+JCAMP_HEADER = re.compile(r"^\s*##JCAMP-?DX\s*=", re.I | re.M)
+
+
 def _label(raw: str) -> str:
     """A JCAMP-DX label in its compared form: upper case without spaces, '-', '/', '_' (the standard's rule)."""
     return re.sub(r"[\s\-/_]", "", raw).upper()
@@ -123,7 +127,7 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         raise InputError(f"{p.name}: {p.stat().st_size:,} bytes; JCAMP-DX files above {MAX_BYTES:,} bytes are not read")
     text = read_user_text(p, "a JCAMP-DX file", fallback="latin-1")
     where = p.name
-    if not re.search(r"^\s*##JCAMP-?DX\s*=", text, re.I | re.M):
+    if not JCAMP_HEADER.search(text):
         raise InputError(f"{where}: not a JCAMP-DX file (no '##JCAMP-DX=' line)")
     blocks = _blocks(text)
     table = next((b for b in blocks if "PEAKTABLE" in b), None)
