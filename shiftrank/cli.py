@@ -590,6 +590,8 @@ def cmd_demo(args) -> int:
     return run_demo(args.output)
 
 
+DEPT135_HELP = ("DEPT-135 peak list of the same sample (signed intensities, or CH2 / CH/CH3): gives the --peaks list "
+                "its multiplicities (no line: quaternary)")
 ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an isomer mixture): a line beside another "
                  "may be the second form's (a paragraph saying 'mixture of rotamers' is read so without this)")
 
@@ -599,8 +601,7 @@ def _sample_options(s, candidates_required: bool) -> None:
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
                    "or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
-    s.add_argument("--dept135", metavar="FILE", help="DEPT-135 peak list of the same sample (signed intensities, or "
-                   "CH2 / CH/CH3): gives the --peaks list its multiplicities (no line: quaternary)")
+    s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
                    "pairs, or a printed HSQC paragraph; - reads stdin")
@@ -680,8 +681,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
     s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file; - reads stdin")
-    s.add_argument("--dept135", metavar="FILE", help="DEPT-135 peak list of the same sample (signed intensities, or "
-                   "CH2 / CH/CH3): gives the --peaks list its multiplicities")
+    s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
                    "or a JCAMP-DX file; - reads stdin")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
