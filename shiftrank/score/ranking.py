@@ -575,9 +575,8 @@ def _same_constitution(a: str, b: str) -> bool:
     """Whether two candidate SMILES are one constitution drawn with different stereochemistry."""
     from ..chem.isomers import structure_key
 
-    ma, mb = _parse(a)[0], _parse(b)[0]
-    return ma is not None and mb is not None and Chem.MolToSmiles(ma) != Chem.MolToSmiles(mb) \
-        and structure_key(ma) == structure_key(mb)
+    ca, cb = _canonical_of(a), _canonical_of(b)
+    return ca is not None and cb is not None and ca != cb and structure_key(_parse(a)[0]) == structure_key(_parse(b)[0])
 
 
 def _one_candidate_verdict(best: CandidateResult, label: str) -> str:
