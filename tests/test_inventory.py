@@ -221,3 +221,15 @@ def test_1h_integrals_account_for_carbons_the_13c_list_shows_once():
                        "3.65 (m, 4H). 13C NMR (101 MHz, CDCl3) δ 162.9, 161.0, 157.5, 101.5, 66.3, 44.4.")
     inv2 = take_inventory(t2.peaklist("13C"), t2.peaklist("1H"), formula="C8H10ClN3O")
     assert any("account for all 2" in f and "two equivalent CH2" in f for f in inv2.findings)
+
+
+def test_protons_missing_from_the_integrals_in_cd3od_are_said_to_be_exchanged():
+    # PMC10155833 (literature_dev.jsonl.gz): C15H16N2O2 printed in CD3OD with 14 H, its NH and COOH not seen
+    from shiftrank.inputs.text import read_nmr_text
+    t = ("1H NMR (400 MHz, CD3OD) δ 0.97 (t, 3H, J = 7.3 Hz), 1.68 (tq, 2H, J = 7.3, 7.3 Hz), 2.66 (t, 2H, "
+         "J = 7.3 Hz), 7.26 (dd, 1H, J = 2.3, 7.3 Hz), 7.32 (d, 2H, J = 8.2 Hz), 7.37 (d, 2H, J = 8.2 Hz), "
+         "7.48 (d, 1H, J = 2.3 Hz), 8.32 (d, 1H, J = 7.3 Hz)")
+    inv = take_inventory(None, read_nmr_text(t).peaklist("1H"), formula="C15H16N2O2")
+    assert "2 H not seen, as expected in CD3OD" in " ".join(inv.findings)
+    inv2 = take_inventory(None, read_nmr_text(t.replace("CD3OD", "DMSO-d6")).peaklist("1H"), formula="C15H16N2O2")
+    assert "2 H not seen, likely OH/NH exchanging" in " ".join(inv2.findings)

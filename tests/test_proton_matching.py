@@ -316,3 +316,22 @@ def test_an_unlisted_proton_class_under_the_water_line_is_said_to_be_maybe_hidde
     res2 = rank(text=text2, candidates=["COC(=O)c1ccc(OC)cc1"]).candidates[0].nuclei["1H"]
     notes = [n for r in res2.assignment_table() if r["observed"] is None for n in r["notes"]]
     assert notes and not any("under the" in n for n in notes)
+
+
+# PMC10155833: a 4-anilinopyridine-2-carboxylic acid printed in CD3OD without its NH and COOH protons
+ACID_CD3OD_1H = ("1H NMR (400 MHz, CD3OD) δ 0.97 (t, 3H, J = 7.3 Hz), 1.68 (tq, 2H, J = 7.3, 7.3 Hz), 2.66 (t, 2H, "
+                 "J = 7.3 Hz), 7.26 (dd, 1H, J = 2.3, 7.3 Hz), 7.32 (d, 2H, J = 8.2 Hz), 7.37 (d, 2H, J = 8.2 Hz), "
+                 "7.48 (d, 1H, J = 2.3 Hz), 8.32 (d, 1H, J = 7.3 Hz)")
+ACID = "CCCc1ccc(Nc2ccnc(C(=O)O)c2)cc1"
+
+
+def test_nh_and_oh_protons_in_cd3od_are_exchanged_for_deuterium_and_cost_nothing_unseen():
+    # in CD3OD (and D2O) the solvent's deuterium replaces OH/NH protons, which are then not seen (common practice)
+    res = rank(text=ACID_CD3OD_1H, candidates=[ACID]).candidates[0].nuclei["1H"]
+    unseen = [r["notes"][0] for r in res.assignment_table() if r["observed"] is None]
+    assert unseen == ["unobserved (exchanged for deuterium in CD3OD)"] * 2
+    assert res.assignment.parts["missing"] == 0.0 and not res.flags
+    # the same list said to be in CDCl3: two exchangeable protons unseen, at their (small) cost
+    res2 = rank(text=ACID_CD3OD_1H.replace("CD3OD", "CDCl3"), candidates=[ACID]).candidates[0].nuclei["1H"]
+    assert res2.assignment.parts["missing"] > 0
+    assert all("exchanged" not in n for r in res2.assignment_table() for n in r["notes"])

@@ -24,6 +24,7 @@ from fractions import Fraction
 from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_label, ion_mz, neutral_parent, sample_formula
 from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
+from ..inputs.solvents import exchanges_deuterium
 from ..words import count
 
 H_OF = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
@@ -420,15 +421,7 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
                 inv.findings.append(f"carbon count matches the formula; {xh} H not on carbon (OH/NH)" if xh else
                                     "carbon and hydrogen counts match the formula exactly")
         if inv.h_total_from_integrals:
-            if nH % inv.h_total_from_integrals == 0 and nH != inv.h_total_from_integrals:
-                f = nH // inv.h_total_from_integrals
-                inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}; the formula has {nH} H: scale ×{f} "
-                                    f"({':'.join(str(x * f) for x in inv.h_ratio)}), a hint of {f}-fold symmetry")
-            elif nH == inv.h_total_from_integrals:
-                inv.findings.append(f"1H integrals sum to the formula's {nH} H")
-            else:
-                inv.findings.append(f"1H integrals sum to {inv.h_total_from_integrals}, formula has {nH} H "
-                                    f"(ratio {Fraction(nH, inv.h_total_from_integrals)}): exchange-broadened or hidden signals?")
+            inv.findings.append(_h_sum_finding(inv, fc, h1.solvent))
         if mz is not None:
             _mass_checks(inv, fc, mz, mz_tolerance_ppm)
     elif mz is not None:
@@ -562,6 +555,27 @@ def _duplicated_carbons(sample, ratio: list[int], ethyls: int) -> list[tuple[int
     return out
 
 
+def _h_sum_finding(inv: Inventory, fc: dict, solvent: str | None) -> str:
+    """The 1H integrals' sum against the formula's H: equal, a whole fraction of it (symmetry: the integrals
+    were scaled to the smallest signal), short by no more than the O/N/S could carry (OH/NH not seen; in
+    CD3OD or D2O their deuterium replaces them), or otherwise off."""
+    nH, tot = fc.get("H", 0), inv.h_total_from_integrals
+    n_xh_max = fc.get("O", 0) + fc.get("N", 0) * 2 + fc.get("S", 0)
+    swap = exchanges_deuterium(solvent)
+    if nH == tot:
+        return f"1H integrals sum to the formula's {nH} H"
+    if nH % tot == 0:
+        f = nH // tot
+        return (f"1H integrals sum to {tot}; the formula has {nH} H: scale ×{f} "
+                f"({':'.join(str(x * f) for x in inv.h_ratio)}), a hint of {f}-fold symmetry")
+    if 0 < nH - tot <= n_xh_max:
+        return (f"1H integrals sum to {tot}, the formula has {nH} H: {nH - tot} H not seen, "
+                + (f"as expected in {swap}: its deuterium replaces OH/NH protons (common practice)" if swap else
+                   "likely OH/NH exchanging with the solvent or its water"))
+    return (f"1H integrals sum to {tot}, formula has {nH} H (ratio {Fraction(nH, tot)}): "
+            "overlapped, exchange-broadened or extra signals?")
+
+
 def _mass_checks(inv: Inventory, fc: dict, mz: float, mz_tolerance_ppm: float) -> None:
     """Compare a measured m/z with the formula's [M]+, [M+H]+ and [M+Na]+ ions."""
     for adduct in ("M+", "M+H", "M+Na"):
@@ -600,20 +614,7 @@ def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_toleran
         else:
             inv.findings.append(f"DBE {inv.dbe:g}: rings plus π bonds; below 4 an aromatic ring is unlikely (common practice)")
         if inv.h_total_from_integrals:
-            tot = inv.h_total_from_integrals
-            n_xh_max = fc.get("O", 0) + fc.get("N", 0) * 2 + fc.get("S", 0)
-            if nH == tot:
-                inv.findings.append(f"1H integrals sum to the formula's {nH} H")
-            elif nH % tot == 0:
-                f = nH // tot
-                inv.findings.append(f"1H integrals sum to {tot}; the formula has {nH} H: scale ×{f} "
-                                    f"({':'.join(str(x * f) for x in inv.h_ratio)}), a hint of {f}-fold symmetry")
-            elif 0 < nH - tot <= n_xh_max:
-                inv.findings.append(f"1H integrals sum to {tot}, the formula has {nH} H: {nH - tot} H not seen, "
-                                    "likely OH/NH exchanging with the solvent or its water")
-            else:
-                inv.findings.append(f"1H integrals sum to {tot}, formula has {nH} H (ratio {Fraction(nH, tot)}): "
-                                    "overlapped, exchange-broadened or extra signals?")
+            inv.findings.append(_h_sum_finding(inv, fc, h1.solvent))
         if mz is not None:
             _mass_checks(inv, fc, mz, mz_tolerance_ppm)
     elif mz is not None:

@@ -121,6 +121,25 @@ def solvent_signals(key: str, nucleus: str = "13C") -> tuple[float, ...]:
     return sol.residual_1h + ((sol.water_1h,) if sol.water_1h is not None else ())
 
 
+#: Solvents whose deuterium takes the place of OH/NH/SH protons (and of the water's): in these those protons
+#: are usually not seen at all (common practice).  A mixture with one of them exchanges too.
+EXCHANGING = ("CD3OD", "D2O", "TFA-d")
+
+
+def exchanges_deuterium(key: str | None) -> str | None:
+    """The part of solvent ``key`` that exchanges OH/NH protons for deuterium, or None.
+
+    >>> exchanges_deuterium("CDCl3 + CD3OD"), exchanges_deuterium("DMSO-d6")
+    ('CD3OD', None)
+    """
+    if not key:
+        return None
+    for part in key.split(" + "):
+        if part in EXCHANGING:
+            return part
+    return None
+
+
 def match_solvent(shift: float, key: str, nucleus: str = "13C") -> float | None:
     """The residual signal of ``key`` within tolerance of ``shift``, or None."""
     tol = TOLERANCE[nucleus]

@@ -32,7 +32,7 @@ from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
 from ..errors import InputError
 from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
-from ..inputs.solvents import SOLVENTS
+from ..inputs.solvents import SOLVENTS, exchanges_deuterium
 from ..words import count
 from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
 
@@ -458,6 +458,7 @@ class ProtonEvidence(_Evidence):
             sv = SOLVENTS[pl.solvent]
             out.solvent_lines = tuple((x, pl.solvent) for x in sv.residual_1h) + (
                 ((sv.water_1h, f"water ({pl.solvent})"),) if sv.water_1h is not None else ())
+        out.exchanging = exchanges_deuterium(pl.solvent)   # OH/NH protons replaced by D: expected unseen
         return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:
@@ -478,6 +479,11 @@ class ProtonEvidence(_Evidence):
                                    e.n_h if by_protons else 1,
                                    exchangeable=e.exchangeable, splittable=e.may_split, expected=e, twin_of=e.twin_of))
         _mark_hidden(out, peaks, "1H")
+        swap = getattr(peaks, "exchanging", None)
+        if swap:
+            for c in out:
+                if c.exchangeable:
+                    c.exchanged, c.unseen_why = True, f"exchanged for deuterium in {swap}"
         return out
 
     def prepare(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks: list[ObservedPeak], facts=None) -> Prepared:

@@ -55,6 +55,7 @@ class MatchCosts:
     extra: float = 6.0
     multiplicity_mismatch: float = 9.0   # 13C: DEPT against CHn; 1H: printed letters against the expected multiplet
     missing_exchangeable: float = 1.0    # 1H: an OH/NH/SH class not observed
+    missing_exchanged: float = 0.0       # 1H: the same in CD3OD or D2O, whose deuterium replaces it; chosen, not fitted
     j_mismatch: float = 1.0              # per printed J no expected coupling explains (1H: H–H/H–F; 13C: C–F/C–P)
     integral_mismatch: float = 2.0       # 1H: per proton beyond, or missing from, a multiplet's integral
     overlap_far: float | None = None     # overlap cost of a class whose nearest other class is predicted ≥ near_scale away
@@ -77,9 +78,11 @@ class MatchCosts:
         return self.overlap + (self.overlap_far - self.overlap) * w
 
     def missing_for(self, classes, gap: np.ndarray) -> np.ndarray:
-        """Cost of leaving each class unlisted: ``missing`` (``missing_exchangeable`` for OH/NH/SH), lowered to
+        """Cost of leaving each class unlisted: ``missing`` (``missing_exchangeable`` for OH/NH/SH, ``missing_exchanged``
+        for those in a solvent that exchanges them for deuterium), lowered to
         ``missing_quaternary`` for quaternary carbons and ``missing_near`` next to another class's prediction."""
-        out = np.array([self.missing_exchangeable if c.exchangeable else self.missing for c in classes], dtype=float)
+        out = np.array([self.missing_exchanged if c.exchanged else self.missing_exchangeable if c.exchangeable
+                        else self.missing for c in classes], dtype=float)
         if self.missing_quaternary is not None:
             q = np.array([c.multiplicity == "C" for c in classes], dtype=bool)
             out = np.where(q, np.minimum(out, self.missing_quaternary), out)
@@ -99,6 +102,7 @@ class SignalClass:
     units: int = 1              # 1H with integrals: protons in the class
     exchangeable: bool = False  # may go unobserved for a physical reason: 1H OH/NH/SH; 13C a carbon bound to boron
     unseen_why: str = "exchangeable"   # that reason, as the tables and flags say it
+    exchanged: bool = False     # 1H: an OH/NH/SH class in CD3OD or D2O: replaced by deuterium, expected unseen
     maybe_hidden: bool = False  # 13C: predicted under the solvent's line; said so when unlisted, at the full cost
     splittable: bool = False    # 1H: a CH2 whose two protons may differ (may show two multiplets)
     expected: object = None     # 1H: shiftrank.chem.couplings.ExpectedMultiplet
@@ -172,6 +176,7 @@ class PeakSet(list):
     printed = False   # read from printed text (see RankingSettings.for_peaks)
     solvent_lines: tuple = ()   # 13C: (ppm, solvent) of the solvent's own lines, under which a carbon can hide
     dept135 = False             # 13C: a DEPT-135 list, which shows no quaternary carbon
+    exchanging: str | None = None   # 1H: the solvent (part) whose deuterium replaces OH/NH protons (CD3OD, D2O)
 
     def arrays(self):
         if self._arrays is None:
