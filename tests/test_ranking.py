@@ -211,6 +211,19 @@ def test_candidates_differing_only_in_stereochemistry_are_called_so():
     assert "indistinguishable" in r.verdict and "differ only in stereochemistry" in r.verdict
     r = rank(shifts, ["COc1ccc(C2CCC(O)CC2)cc1", "COc1ccc(C2CCCC(O)C2)cc1"])
     assert "stereochemistry" not in r.verdict
+    # a list one line short: the count reservation comes first and the stereo reading is still said
+    r = rank(shifts[:-1], ["COc1ccc([C@H]2CC[C@H](O)CC2)cc1", "COc1ccc([C@H]2CC[C@@H](O)CC2)cc1"])
+    assert "fit no candidate" in r.verdict and "differ only in stereochemistry" in r.verdict
+
+
+def test_e_and_z_alkenes_told_apart_by_the_printed_alkene_j_are_said_so():
+    # (E)-N-methylcinnamamide's alkene doublets with J = 15.6 Hz (values from memory); a trans alkene J of
+    # 12-18 Hz against 6-12 Hz cis (common practice): the Z drawing's protons cannot show it, the verdict says so
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.62 (d, J = 15.6 Hz, 1H), 7.50–7.30 (m, 5H), 6.40 (d, J = 15.6 Hz, 1H), "
+            "5.90 (br s, 1H), 2.95 (d, J = 4.9 Hz, 3H)")
+    r = rank(text=text, candidates=["CNC(=O)/C=C\\c1ccccc1", "CNC(=O)/C=C/c1ccccc1"])
+    assert r.best.smiles == "CNC(=O)/C=C/c1ccccc1"
+    assert "the printed coupling constants do" in r.verdict
 
 
 def test_a_peak_list_given_beside_text_wins_with_a_note():

@@ -545,7 +545,7 @@ def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
     conflict = f"; the spectra disagree: {conflict}" if conflict else ""
     count_note = _count_misfit(valid)
     if count_note:
-        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{conflict}"
+        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{_stereo_note(valid)}{conflict}"
     # the best structure as a compound: its NH/OH tautomer drawings among the candidates count with it
     same = next((g for g in tautomer_groups(valid) if g[0] is best), [best])
     p_best = sum(c.probability for c in same)
@@ -563,12 +563,27 @@ def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
     rest = [c for c in valid if all(c is not x for x in same)]
     second = rest[0] if rest else None
     if second is not None and p_best + second.probability >= 0.9 and second.probability >= 0.2:
-        stereo = ("; they differ only in stereochemistry, which shifts predicted from the structure's graph do not "
-                  "tell apart: compare coupling constants (axial/equatorial, cis/trans alkene J) or NOE"
-                  if _same_constitution(best.smiles, second.smiles) else "")
         return (f"two candidates indistinguishable from {spectra} alone: {shown} and "
-                f"{second.name or second.smiles} (p = {second.probability:.2f}){stereo}{conflict}")
-    return f"leaning to {shown}; not decisive{conflict}"
+                f"{second.name or second.smiles} (p = {second.probability:.2f}){_stereo_note(valid)}{conflict}")
+    return f"leaning to {shown}; not decisive{_stereo_note(valid)}{conflict}"
+
+
+def _stereo_note(valid: list[CandidateResult]) -> str:
+    """When the best candidate and the next structure after it (its own repeats aside) are one constitution drawn with different stereochemistry, what the ranking cannot see and what can."""
+    best = valid[0]
+    second = next((c for c in valid[1:] if _canonical_of(c.smiles) != _canonical_of(best.smiles)), None)
+    if second is None or not _same_constitution(best.smiles, second.smiles):
+        return ""
+
+    def misfits(c):
+        r = c.nuclei.get("1H")
+        return 0 if r is None else len({p.cls for p in r.assignment.pairings if not p.multiplicity_ok})
+    if misfits(second) > misfits(best):
+        return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the printed "
+                f"coupling constants do ({second.name or second.smiles}'s protons cannot show "
+                f"{'them' if misfits(second) > 1 else 'one of them'}); NOE would confirm")
+    return ("; they differ only in stereochemistry, which shifts predicted from the structure's graph do not "
+            "tell apart: compare coupling constants (axial/equatorial, cis/trans alkene J) or NOE")
 
 
 def _same_constitution(a: str, b: str) -> bool:
