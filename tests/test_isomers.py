@@ -35,11 +35,15 @@ def test_trisubstituted_benzene_gives_the_five_other_dichlorotoluenes():
 def test_n_alkyl_indazole_gives_its_n2_isomer():
     alts = isomers("CCn1ncc2ccccc21")
     assert keys(alts) == {key("CCn1cc2ccccc2n1")}
-    assert "instead of ring N" in alts[0].relation and alts[0].kind == "ambident"
-    # the two sites told apart by their ring neighbours: indazole N1 lies beside the ring fusion (C7a), N2
-    # between N1 and C3-H (ring numbering of indazole, common practice)
-    assert alts[0].relation == ("C2H5 on ring N (atom 3, between CH and N) instead of ring N (atom 2, between N and "
-                                "the ring fusion)")
+    assert alts[0].kind == "ambident"
+    # named by the indazole's ring numbering (N1 beside the ring fusion C7a, N2 between N1 and C3-H: IUPAC
+    # fused-ring numbering, common practice) and by their ring neighbours
+    assert alts[0].relation == ("C2H5 on N2 of the indazole (atom 3, between CH and N) instead of N1 (atom 2, "
+                                "between N and the ring fusion)")
+    # a 1-ethylindazole with no numbering table (a group the locant table lacks: a pyrazolo[3,4-c]pyridine) keeps
+    # the neighbour description alone
+    alts = isomers("CCn1ncc2ccncc21", kinds=("ambident",))
+    assert alts and alts[0].relation.startswith("C2H5 on ring N (atom 3, between CH and N) instead of ring N (atom 2")
 
 
 def test_benzimidazole_n_sites_named_by_the_substituent_beside_the_fusion():
@@ -47,7 +51,7 @@ def test_benzimidazole_n_sites_named_by_the_substituent_beside_the_fusion():
     # the N whose fusion carbon stands next to C-Cl
     alts = isomers("Cn1cnc2c1cccc2Cl", kinds=("ambident",))
     assert keys(alts) == {key("Cn1cnc2cccc(Cl)c21")}
-    assert "on ring N (atom 3, between CH and the ring fusion next to C-Cl)" in alts[0].relation
+    assert "on N3 of the benzimidazole (atom 3, between CH and the ring fusion next to C-Cl)" in alts[0].relation
 
 
 def test_pyridone_n_and_o_alkylation_both_ways():
@@ -96,7 +100,7 @@ def test_relations_name_common_groups_by_condensed_formula():
     assert any(a.relation.startswith("morpholin-4-yl moved") for a in isomers("O=[N+]([O-])c1ccc(N2CCOCC2)cc1F"))
     # amides, benzoyl and sulfonamide groups by their condensed formulas (common practice)
     rel = [a.relation for a in isomers("O=C(Nc1ccccc1)c1ccc(Br)cn1", kinds=("positional",))]
-    assert "CONHC6H5 moved from ring atom 9 to ring atom 10 (now meta to Br)" in rel
+    assert "CONHC6H5 moved from C2 to C3 of the pyridine (atom 9 to atom 10; now meta to Br)" in rel
     assert any(a.relation.startswith("NHSO2CH3 moved") for a in isomers("CS(=O)(=O)Nc1ccc(C(=O)c2ccccc2)cc1"))
 
 
@@ -253,7 +257,7 @@ def test_n_alkylation_of_a_3_5_disubstituted_pyrazole_is_named_as_such():
     alts = {a.smiles: a for a in isomers("CCOC(=O)c1cc(C)n(CC2CC2)n1")}
     other_n = alts[Chem.MolToSmiles(Chem.MolFromSmiles("CCOC(=O)c1cc(C)nn1CC1CC1"))]
     assert other_n.kind == "ambident"
-    assert other_n.relation.startswith("CH2cPr on ring N") and "the same as: CO2C2H5 and CH3 swapped" in other_n.relation
+    assert other_n.relation.startswith("CH2cPr on N2 of the pyrazole") and "the same as: CO2C2H5 and CH3 swapped" in other_n.relation
     assert len(alts) == 3
 
 
@@ -270,7 +274,7 @@ def test_a_group_moved_off_a_charged_ring_n_is_labelled_and_not_ranked():
     # one-substituent rule still lists it (the development cases were built by that rule)
     alts = isomers("Cc1cccc[n+]1[O-]")
     odd = [a for a in alts if "unpaired electron" in a.relation]
-    assert len(alts) == 7 and len(odd) == 4 and all(a.relation.startswith("O− moved from ring atom 6") for a in odd)
+    assert len(alts) == 7 and len(odd) == 4 and all(a.relation.startswith("O− moved from N1 to C") for a in odd)
     from shiftrank.score.ranking import expand_with_isomers
     out, notes = expand_with_isomers(["Cc1cccc[n+]1[O-]"])
     assert len(out) == 1 + 3 and "4 with an unpaired electron" in notes[0]
@@ -326,7 +330,9 @@ def test_n1_against_n3_alkylation_of_ring_lactams():
     # 1-(cyclopropylmethyl)uracil -> its N3 isomer (the H changes places) and the 2- and 4-alkoxy pyrimidinones
     amb = [a for a in isomers("O=c1ccn(CC2CC2)c(=O)[nH]1") if a.kind == "ambident"]
     assert keys(amb) == {key("O=c1cc[nH]c(=O)n1CC1CC1"), key("O=c1ccnc(OCC2CC2)[nH]1"), key("O=c1nccc(OCC2CC2)[nH]1")}
-    assert any("CH2cPr on ring N" in a.relation for a in amb)
+    # uracil numbering (N1 beside C6-H, N3 between the two C=O: common practice)
+    assert any(a.relation.startswith("CH2cPr on N3 of the pyrimidine (atom 11, between C=O and C=O) instead of N1")
+               for a in amb)
     # 3-ethylquinazolin-4(3H)-one -> 1-ethylquinazolin-4(1H)-one (the double bonds shift) and 4-ethoxyquinazoline
     amb = [a for a in isomers("CCn1cnc2ccccc2c1=O") if a.kind == "ambident"]
     assert keys(amb) == {key("CCn1cnc(=O)c2ccccc21"), key("CCOc1ncnc2ccccc12")}
@@ -361,3 +367,23 @@ def test_a_swap_never_puts_a_halogen_on_a_ring_n():
     alts = isomers("[O-][n+]1ccc(Cl)cc1", kinds=("positional",))
     assert key("[O-]c1cc[n+](Cl)cc1") not in keys(alts)
     assert {key("[O-][n+]1ccccc1Cl"), key("[O-][n+]1cccc(Cl)c1")} <= keys(alts)
+
+
+@pytest.mark.parametrize("smiles, expected", [
+    # numbering of parent rings (IUPAC fused-ring numbering, common practice), the lowest locants going to the
+    # substituted positions; written out by hand
+    ("Clc1ccc2ncccc2c1", ("quinoline", {1: "C6", 5: "N1", 9: "C4a", 4: "C8a"})),          # 6-chloroquinoline
+    ("Cc1ccc2cccc(C)c2c1", ("naphthalene", {1: "C7", 8: "C1"})),                         # 1,7-dimethylnaphthalene
+    ("Clc1ccc2nccn2c1", ("imidazo[1,2-a]pyridine", {1: "C6", 5: "N1", 8: "N4"})),        # 6-chloroimidazo[1,2-a]pyridine
+    ("Cn1ccccc1=O", ("pyridine", {1: "N1", 6: "C2"})),                                   # 1-methylpyridin-2-one
+    ("CCOC(=O)c1ccc2[nH]ncc2c1", ("indazole", {5: "C5", 9: "N1", 10: "N2"})),           # ethyl 1H-indazole-5-carboxylate
+])
+def test_ring_positions_carry_their_conventional_locants(smiles, expected):
+    from shiftrank.chem.isomers import _ring_systems
+    from shiftrank.chem.locants import ring_locants
+    mol = Chem.MolFromSmiles(smiles)
+    system = next(s for s in _ring_systems(mol) if min(expected[1]) in s)
+    name, loc = ring_locants(mol, system)
+    assert name == expected[0] and {i: loc[i] for i in expected[1]} == expected[1]
+    # benzene is left to ortho/meta/para
+    assert ring_locants(Chem.MolFromSmiles("Cc1ccccc1"), {1, 2, 3, 4, 5, 6}) is None

@@ -23,7 +23,8 @@ the given structure or of an earlier alternative (:func:`compound_key`: the H mo
 an NH-azole, or between N and O of a lactam; ethyl imidazole-4-carboxylate moved "to C5" is the same
 compound) is not another product: it stays in the list, since its drawing is predicted differently, but its
 relation says so and ``same_compound_as`` names the structure it duplicates.  Atom numbers in the relations are the 0-based indices of the given structure,
-as in every assignment table and JSON output.
+as in every assignment table and JSON output; positions of common heteroaromatic and fused parent rings are
+also named by their conventional locants (:mod:`.locants`: 'moved from C2 to C3 of the pyridine').
 
 >>> [a.relation for a in isomers("Cc1ccc(F)cc1", kinds=("positional",))]
 ['CH3 moved from ring atom 1 to ring atom 2 (now meta to F)', 'CH3 moved from ring atom 1 to ring atom 3 (now ortho to F)']
@@ -40,6 +41,7 @@ from rdkit.Chem.MolStandardize import rdMolStandardize
 
 from ..errors import InputError
 from ..inputs.molecules import to_mol
+from .locants import ring_locants
 
 KINDS = ("positional", "ambident", "tautomer")
 DEFAULT_KINDS = ("positional", "ambident")
@@ -342,8 +344,8 @@ def _reattach(mol: Chem.Mol, moves: list[tuple[int, int, int]], keep_h_off: bool
 
 
 def _relative(mol: Chem.Mol, system: set[int], target: int, others: list[tuple[int, str]]) -> str:
-    """'(now ortho to X)' for a six-membered ring, naming where the moved group stands against the other
-    substituents of that ring (up to three: '(now para to OCH3, meta to NH2)'); '' when it shares its ring
+    """'now ortho to X' for a six-membered ring, naming where the moved group stands against the other
+    substituents of that ring (up to three: 'now para to OCH3, meta to NH2'); '' when it shares its ring
     with none of them."""
     rings = [r for r in mol.GetRingInfo().AtomRings() if target in r and len(r) == 6 and set(r) <= system]
     if not rings or not others or len(others) > 3:
@@ -357,12 +359,13 @@ def _relative(mol: Chem.Mol, system: set[int], target: int, others: list[tuple[i
         d = min(d, 6 - d)
         if d:
             where.append(f"{['ipso', 'ortho', 'meta', 'para'][d]} to {name}")
-    return f" (now {', '.join(where)})" if where else ""
+    return f"now {', '.join(where)}" if where else ""
 
 
 def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     out = []
     for system in _ring_systems(mol):
+        loc = ring_locants(mol, system)
         # a group on a neutral five-ring nitrogen is an N-substituent: its alternatives are the other ring
         # N (ambident); groups on carbons and on charged six-ring N (pyridinium, N-oxide) move around
         subs = [s for s in _substituents(mol, system) if mol.GetAtomWithIdx(s[0]).GetAtomicNum() == 6
@@ -380,8 +383,12 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r, x, t)])
                 if m is not None:
-                    out.append((m, f"{name} moved from ring atom {r} to ring atom {t}"
-                                   f"{_relative(mol, system, t, others)}"))
+                    rel = _relative(mol, system, t, others)
+                    if loc:   # 'moved from C2 to C3 of the pyridine (atom 4 to atom 5; now ortho to CF3)'
+                        out.append((m, f"{name} moved from {loc[1][r]} to {loc[1][t]} of the {loc[0]} "
+                                       f"(atom {r} to atom {t}{'; ' + rel if rel else ''})"))
+                    else:
+                        out.append((m, f"{name} moved from ring atom {r} to ring atom {t}{f' ({rel})' if rel else ''}"))
         for k, (r1, x1, n1) in enumerate(subs):
             for r2, x2, n2 in subs[k + 1:]:
                 if r1 == r2 or n1 == n2:
@@ -394,14 +401,16 @@ def _positional(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r1, x1, r2), (r2, x2, r1)])
                 if m is not None:
-                    out.append((m, f"{n1} and {n2} swapped (ring atoms {r1} and {r2})"))
+                    where = f"{loc[1][r1]} and {loc[1][r2]} of the {loc[0]}; " if loc else ""
+                    out.append((m, f"{n1} and {n2} swapped ({where}ring atoms {r1} and {r2})"))
     return out
 
 
-def _n_site(mol: Chem.Mol, n: int, system: set[int], moving: int) -> str:
-    """Where ring N ``n`` stands, by its two ring neighbours: 'ring N (atom 2, between N and the ring fusion)',
-    'ring N (atom 1, between N and C-CH3)', so that N1 and N2 of an azole are told apart without a locant
-    scheme; ``moving`` is the root of the group that moves (not counted as a neighbour's substituent)."""
+def _n_site(mol: Chem.Mol, n: int, system: set[int], moving: int, parent: bool = True) -> str:
+    """Where ring N ``n`` stands: its locant in a parent ring of :mod:`.locants` ('N2 of the indazole', the
+    parent named when ``parent``) and its two ring neighbours ('(atom 3, between CH and N)'); without a
+    locant 'ring N (atom 1, between N and C-CH3)', so that N1 and N2 of an azole are told apart all the same.
+    ``moving`` is the root of the group that moves (not counted as a neighbour's substituent)."""
     ring = next((r for r in mol.GetRingInfo().AtomRings() if n in r and set(r) <= system), ())
     words = []
     for b in mol.GetAtomWithIdx(n).GetBonds():
@@ -431,7 +440,11 @@ def _n_site(mol: Chem.Mol, n: int, system: set[int], moving: int) -> str:
         else:
             words.append(f"C-{_fragment_name(mol, x, j) or mol.GetAtomWithIdx(x).GetSymbol()}")
     words.sort(key=lambda w: (w.startswith("the ring fusion"), w))
-    return f"ring N (atom {n}, between {' and '.join(words)})" if len(words) == 2 else f"ring N (atom {n})"
+    where = f"atom {n}, between {' and '.join(words)}" if len(words) == 2 else f"atom {n}"
+    loc = ring_locants(mol, system)
+    if loc and n in loc[1]:
+        return f"{loc[1][n]}{f' of the {loc[0]}' if parent else ''} ({where})"
+    return f"ring N ({where})"
 
 
 def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
@@ -454,7 +467,7 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue  # a pyridine-type N of a fused six-membered ring does not take the group
                 m = _reattach(mol, [(r, x, t)], keep_h_off=True)
                 if m is not None:
-                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x)}"))
+                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x, parent=False)}"))
     return out
 
 
@@ -480,7 +493,7 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                     continue
                 m = _reattach(mol, [(r, x, t)], keep_h_off=not a.GetTotalNumHs())
                 if _neutral_closed_shell(m):
-                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x)}"))
+                    out.append((m, f"{name} on {_n_site(mol, t, system, x)} instead of {_n_site(mol, r, system, x, parent=False)}"))
             kind = _group_kind(mol, x)
             if kind is None:
                 continue
