@@ -356,24 +356,58 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
     mat = np.hstack(cols + [missing]) if cols else missing
     n_pc = len(col_peak)
     col_peak_arr = np.array(col_peak + [-1] * n_rows)
-    r_idx, c_idx = linear_sum_assignment(mat)
-    # equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
-    # =CH2) may split over multiplets; the classes split by the optimum are tied each to one of the
-    # targets it was split over - the combination giving the cheapest assignment - and solved again
-    for _ in range(4):
+
+    def build(r, c) -> Assignment:
+        return _unit_assignment(r, c, classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over,
+                                sg, row_cls, col_peak, col_kind, n_pc, caps, under)
+
+    r0, c0 = linear_sum_assignment(mat)
+
+    def split_classes(r_idx, c_idx) -> tuple[np.ndarray, list[int]]:
         target = col_peak_arr[c_idx[np.argsort(r_idx)]]
         # (a splittable class shows at most two signals: the two protons of its CH2, or its axial and
         # equatorial halves)
-        bad_split = [i for i in range(nc) if len(set(target[row_cls == i].tolist())) > (2 if classes[i].splittable else 1)]
-        if not bad_split:
-            break
-        options = [np.unique(target[row_cls == i]).tolist() for i in bad_split]
-        if np.prod([len(o) for o in options]) <= MAX_TIE_COMBINATIONS:
-            groups = [list(zip(bad_split, combo)) for combo in itertools.product(*options)]   # all at once
-            mat, r_idx, c_idx = _cheapest_tie(mat, groups, row_cls, col_peak_arr)
-        else:
-            for i, opts in zip(bad_split, options):   # too many: one class after another
-                mat, r_idx, c_idx = _cheapest_tie(mat, [[(i, keep)] for keep in opts], row_cls, col_peak_arr)
+        return target, [i for i in range(nc) if len(set(target[row_cls == i].tolist())) > (2 if classes[i].splittable else 1)]
+
+    def exact_lines(i: int) -> set[int]:
+        return {j for j in range(npk) if peaks[j].capacity is not None and caps[j] == units[i] and abs(dev[i, j]) <= 3.0 * sg[i]}
+
+    def untie(mat, r_idx, c_idx, also_exact: bool):
+        """Equivalent protons cannot show two signals: only a CH2 whose protons may differ (diastereotopic,
+        =CH2) may split over multiplets; the classes split by the optimum are tied each to one of the targets
+        it was split over (``also_exact``: or to a multiplet integrating to exactly its protons within 3σ) -
+        the combination giving the cheapest assignment - and solved again."""
+        for _ in range(4):
+            target, bad_split = split_classes(r_idx, c_idx)
+            if not bad_split:
+                break
+            options = [sorted(set(np.unique(target[row_cls == i]).tolist()) | (exact_lines(i) if also_exact else set()))
+                       for i in bad_split]
+            if np.prod([len(o) for o in options]) <= MAX_TIE_COMBINATIONS:
+                groups = [list(zip(bad_split, combo)) for combo in itertools.product(*options)]   # all at once
+                mat, r_idx, c_idx = _cheapest_tie(mat, groups, row_cls, col_peak_arr)
+            else:
+                for i, opts in zip(bad_split, options):   # too many: one class after another
+                    mat, r_idx, c_idx = _cheapest_tie(mat, [[(i, keep)] for keep in opts], row_cls, col_peak_arr)
+        return build(r_idx, c_idx)
+
+    # the unit optimum may fill a multiplet with two smaller classes (two 3H singlets in a 6H singlet) and split
+    # the class that fits it whole, which the shared-multiplet cost (charged afterwards) then makes the worse
+    # reading: the ties are also tried with such exact multiplets, and the cheaper whole assignment is kept
+    target, split = split_classes(r0, c0)
+    if not split:
+        return build(r0, c0)
+    plain = untie(mat, r0, c0, False)
+    if all(exact_lines(i) <= set(target[row_cls == i].tolist()) for i in split):
+        return plain   # (no exact line beyond the split targets: the same ties)
+    exact = untie(mat, r0, c0, True)
+    return exact if exact.total_cost < plain.total_cost - 1e-9 else plain
+
+
+def _unit_assignment(r_idx, c_idx, classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over,
+                     sg, row_cls, col_peak, col_kind, n_pc, caps, under) -> Assignment:
+    """The :class:`Assignment` (pairings, unexplained peaks, cost parts) of one unit assignment (rows, columns)."""
+    npk = len(peaks)
     got: dict[tuple[int, int | None], list[int]] = {}
     parts = {"deviation": 0.0, "overlap": 0.0, "missing": 0.0, "extra": 0.0, "multiplicity": 0.0, "integral": 0.0}
     used = np.zeros(npk, dtype=int)
@@ -403,7 +437,7 @@ def _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, mi
         # a clean doublet or triplet holding two different protons is a coincidence; an 'm' or a printed
         # range often holds several classes, but each further class there still needs its own shift to fall
         # inside it, and a class inside a range otherwise gains its best density for free
-        # (charged after the assignment, which it does not steer)
+        # (charged after the assignment; it decides only between the two ways of tying split classes)
         # (two alike groups told apart, such as the methyls of an isopropyl beside a stereocentre, often share one)
         for j in range(npk):
             if classes_on_peak[j] > 1:
