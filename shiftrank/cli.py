@@ -182,7 +182,11 @@ def cmd_predict(args) -> int:
     from .prediction.model_files import default_manifest
 
     nuclei = ["13C", "1H"] if args.nucleus == "both" else [args.nucleus]
-    records = read_molecules(args.file)
+    if _structure_token(args.file) == "smiles":   # a structure typed on the command line, as rank and facts take it
+        from .inputs.molecules import MolRecord, to_mol
+        records = [MolRecord(args.file, to_mol(args.file), args.file)]
+    else:
+        records = read_molecules(args.file)
     runs = {n: predict_records(records, args.solvent, n) for n in nuclei}
     version = default_manifest().get("version")
     n_bad = 0
@@ -640,8 +644,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
 
-    s = sub.add_parser("predict", help="predict 13C and/or 1H shifts for the structures in a file (SDF, mol, SMILES)")
-    s.add_argument("file", help=".sdf, .mol, .smi, .txt or .csv (one SMILES per line, optional id after whitespace, tab or comma; a header line naming a SMILES column is read)")
+    s = sub.add_parser("predict", help="predict 13C and/or 1H shifts for the structures in a file (SDF, mol, SMILES) or of one SMILES")
+    s.add_argument("file", metavar="FILE_OR_SMILES", help=".sdf, .mol, .smi, .txt or .csv (one SMILES per line, optional id after whitespace, "
+                   "tab or comma; a header line naming a SMILES column is read), or one SMILES or InChI")
     s.add_argument("--jsonl", action="store_true", help="one JSON object per record, atoms keyed by atom index")
     s.add_argument("--nucleus", choices=["13C", "1H", "both"], default="13C",
                    help="13C (each carbon), 1H (mean shift of the protons on each heavy atom) or both")

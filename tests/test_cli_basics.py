@@ -99,3 +99,14 @@ def test_candidates_given_as_standard_inchi(tmp_path):
     assert out.returncode == 0 and [json.loads(x)["id"] for x in out.stdout.splitlines()] == ["para", "meta"]
     bad = run("facts", "InChI=1S/garbage")
     assert bad.returncode == 2 and "InChI" in bad.stderr and "Traceback" not in bad.stderr
+
+
+def test_predict_takes_one_smiles_and_a_chemical_name_is_refused_as_a_name():
+    # a structure typed on the command line, as rank and facts take it
+    r = run("predict", "Nc1ccc(Cl)cc1", "--jsonl")
+    assert r.returncode == 0 and set(json.loads(r.stdout)["shifts"]) == {"1", "2", "3", "4", "6", "7"}
+    # a name where a structure belongs: said so, not taken for a SMILES with an open ring closure
+    r = run("predict", "4-chloroaniline")
+    assert r.returncode == 2 and "reads as a chemical name" in r.stderr and "Traceback" not in r.stderr
+    r = run_in("7.90 2\n6.85 2\n3.80 3\n", "rank", "--peaks-1h", "-", "--candidates", "methyl 4-hydroxybenzoate")
+    assert "reads as a chemical name" in r.stdout + r.stderr

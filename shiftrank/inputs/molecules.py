@@ -57,6 +57,14 @@ def to_mol(smiles: str) -> Chem.Mol:
     return mol
 
 
+def _looks_like_name(text: str) -> bool:
+    """A word of four or more letters outside brackets holding a letter no SMILES atom symbol uses there
+    ('4-chloroaniline', 'Methyl 4-hydroxybenzoate'): SMILES letters outside brackets are B C N O P S F I, Cl,
+    Br and aromatic b c n o p s."""
+    outside = re.sub(r"\[[^\]]*\]", "", text).replace("Cl", "").replace("Br", "")
+    return any(re.search(r"[^BCNOPSFIbcnops]", w) for w in re.findall(r"[A-Za-z]{4,}", outside))
+
+
 def _smiles_problem(smiles: str) -> str:
     """What is wrong with a SMILES RDKit refuses, in a chemist's words where it can be told: an aromatic ring
     that has no Kekulé form (a pyrrole-type N written without its H), an atom over its valence, brackets or a
@@ -66,7 +74,12 @@ def _smiles_problem(smiles: str) -> str:
     'its aromatic ring cannot be written with alternating double bonds (atoms 0 1 2 3 4): an aromatic N that carries H is written [nH], as in c1cc[nH]c1, or give a Kekulé form'
     >>> _smiles_problem("CC(=O")
     "unbalanced brackets: 1 '(' against 0 ')'"
+    >>> _smiles_problem("4-chloroaniline")[:40]
+    'it reads as a chemical name, not a SMILE'
     """
+    if _looks_like_name(smiles):
+        return ("it reads as a chemical name, not a SMILES: give the structure as a SMILES, a standard InChI or a "
+                "structure file (.sdf, .mol, .smi); names are not converted")
     raw = Chem.MolFromSmiles(smiles, sanitize=False)
     if raw is not None:
         try:
