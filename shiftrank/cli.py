@@ -158,19 +158,22 @@ def cmd_formula(args) -> int:
 
 
 def cmd_peaks(args) -> int:
-    from .inputs.peaks import read_peaks
+    from .inputs.peaks import read_peak_lists
 
-    pl = read_peaks(args.file, nucleus=args.nucleus, solvent=args.solvent)
-    for p in pl.peaks:
-        where = f"{p.hi:.2f}–{p.lo:.2f}" if p.lo is not None and p.hi is not None and p.hi > p.lo else f"{p.shift:.2f}"
-        extra = "  ".join(x for x in (p.multiplicity or "", f"x{p.count}" if p.count > 1 else "",
-                                      f"∫{p.intensity:g}" if pl.nucleus == "1H" and p.intensity is not None else "",
-                                      "J = " + ", ".join(f"{j:g}" for j in p.j) + " Hz" if p.j else "",
-                                      f"[{p.solvent} residual]" if p.solvent else "") if x)
-        print(f"{where:>13}  {extra}")
-    for n in pl.notes:
-        print(f"note: {n}")
-    print(f"{count(len(pl.peaks), 'signal')} ({len(pl.sample_peaks())} from the sample)")
+    lists = read_peak_lists(args.file, nucleus=args.nucleus, solvent=args.solvent)
+    for k, pl in enumerate(lists):
+        if len(lists) > 1:   # a printed paragraph's sections, each in turn
+            print(("\n" if k else "") + f"{pl.nucleus}:")
+        for p in pl.peaks:
+            where = f"{p.hi:.2f}–{p.lo:.2f}" if p.lo is not None and p.hi is not None and p.hi > p.lo else f"{p.shift:.2f}"
+            extra = "  ".join(x for x in (p.multiplicity or "", f"x{p.count}" if p.count > 1 else "",
+                                          f"∫{p.intensity:g}" if pl.nucleus == "1H" and p.intensity is not None else "",
+                                          "J = " + ", ".join(f"{j:g}" for j in p.j) + " Hz" if p.j else "",
+                                          f"[{p.solvent} residual]" if p.solvent else "") if x)
+            print(f"{where:>13}  {extra}")
+        for n in pl.notes:
+            print(f"note: {n}")
+        print(f"{count(len(pl.peaks), 'signal')} ({len(pl.sample_peaks())} from the sample)")
     return 0
 
 
@@ -640,7 +643,9 @@ def build_parser() -> argparse.ArgumentParser:
 
     s = sub.add_parser("peaks", help="read and check a peak list (ranges, duplicates, solvent signals)")
     s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
-    s.add_argument("--nucleus", choices=["13C", "1H"], default="13C")
+    s.add_argument("--nucleus", choices=["13C", "1H"],
+                   help="read the file as this nucleus's list (default: each section of a printed paragraph; a plain "
+                        "list as 13C, or as 1H when every value lies below 12.5 ppm)")
     s.add_argument("--solvent", help="NMR solvent, e.g. CDCl3, DMSO-d6")
     s.set_defaults(func=cmd_peaks)
 

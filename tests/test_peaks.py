@@ -234,3 +234,22 @@ def test_a_dept135_list_gives_a_13c_list_its_multiplicities(tmp_path):
     assert ok.returncode == 0, ok.stderr
     bad = run("rank", "--dept135", str(tmp_path / "d.txt"), "--candidates", "CCO", "--peaks-1h", str(tmp_path / "d.txt"))
     assert bad.returncode == 2 and "--peaks too" in bad.stderr
+
+
+def test_the_peaks_command_shows_every_section_of_a_paragraph_and_reads_a_1h_list_as_1h(tmp_path):
+    # PMC6268426 (literature_dev.jsonl.gz, dev half): its 1H and 13C paragraphs, 9 and 14 lines as printed
+    from shiftrank.inputs.peaks import read_peak_lists
+    p = tmp_path / "sample.txt"
+    p.write_text("1H-NMR δ: 3.73 (s, 3H, OCH3), 3.74 (s, 3H, OCH3), 5.28 (d, 1H, J = 2.4 Hz, CH), 6.78−6.80 (dd, 1H, "
+                 "J = 2.4 Hz, J = 8.0 Hz, H6'), 6.93 (d, 1H, J = 2.0 Hz, H2'), 6.94 (d, 1H, J = 8.4 Hz, H5'), 7.18 (s, 2H, "
+                 "NH2), 7.70 (s, 1H, CH, H6), 8.69 (d, 1H, J = 2.4 Hz, NH)\n13C-NMR δ: 53.63, 55.36, 55.43, 55.96, 110.11, "
+                 "111.57, 118.13, 118.98, 135.25, 146.93, 148.51, 148.63, 151.72, 153.83\n", encoding="utf-8")
+    lists = read_peak_lists(p)
+    assert [(pl.nucleus, len(pl.peaks)) for pl in lists] == [("13C", 14), ("1H", 9)]
+    assert [pl.nucleus for pl in read_peak_lists(p, "1H")] == ["1H"]
+    # a plain list whose values all lie below 12.5 ppm is a 1H list (common practice: 13C spreads over 0-220 ppm)
+    q = tmp_path / "h.txt"
+    q.write_text("7.68 2 d\n6.81 2 d\n2.89 3 s\n", encoding="utf-8")
+    (pl,) = read_peak_lists(q)
+    assert pl.nucleus == "1H" and "read as a 1H list" in pl.notes[0]
+    assert read_peak_lists(q, "13C")[0].nucleus == "13C"

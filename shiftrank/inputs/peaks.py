@@ -625,6 +625,44 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     return peak_text(text, p.name, nucleus, fmt, solvent)
 
 
+def read_peak_lists(path: str | Path, nucleus: str | None = None, solvent: str | None = None) -> list[PeakList]:
+    """Every peak list a file holds, for looking at (``shiftrank peaks``).  With ``nucleus``, that one list as
+    :func:`read_peaks` reads it.  Without: each 13C and 1H section of a printed paragraph; a plain list as 13C,
+    unless all its values lie in the 1H range (:func:`looks_like_1h`: '7.26 d 2' is not a CH at 7.26 ppm), when
+    it is read as 1H with a note saying so.
+    """
+    from .spectra import is_jcamp
+
+    if nucleus is not None or (str(path) != "-" and is_jcamp(path)):
+        return [read_peaks(path, nucleus or "13C", solvent)]
+    p, text = _read_file(path)
+    if str(path) == "-" and not text.strip():
+        raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
+    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
+    if fmt is None and _PRINTED.search(text[:2000]):
+        from .text import read_nmr_text
+
+        parsed = read_nmr_text(text)
+        found = [n for n in ("13C", "1H") if parsed.peaklist(n) is not None]
+        return [_printed_peaks(text, p.name, n, solvent) for n in found or ["13C"]]
+    try:
+        pl = parse_peaks(text, p.name, "13C", fmt, solvent)
+    except InputError as exc13:
+        try:
+            pl = parse_peaks(text, p.name, "1H", fmt, solvent)
+        except InputError:
+            raise exc13 from None
+        if not looks_like_1h(x.shift for x in pl.peaks):
+            raise exc13 from None
+    else:
+        if not looks_like_1h(x.shift for x in pl.peaks):
+            return [pl]
+        pl = parse_peaks(text, p.name, "1H", fmt, solvent)
+    pl.notes.insert(0, f"{p.name}: every value lies in the 1H range (below 12.5 ppm): read as a 1H list "
+                       "(--nucleus 13C reads it as 13C)")
+    return [pl]
+
+
 def peak_text(text: str, source: str = "input", nucleus: str = "13C", fmt: str | None = None,
               solvent: str | None = None) -> PeakList:
     """A peak list given as text, whatever its form: a list (see :func:`parse_peaks`) or, when ``fmt`` is
