@@ -357,7 +357,10 @@ def test_reaction_outcomes_name_the_reactant_atoms_the_template_acted_on():
     by = {a.smiles: a.relation for a in alts}
     assert set(map(key, by)) == {key("Clc1nccc(N2CCOCC2)n1"), key("Clc1ccnc(N2CCOCC2)n1")}
     c4 = next(r for s, r in by.items() if key(s) == key("Clc1nccc(N2CCOCC2)n1"))
-    assert "reactant 1 atom 1 (C)" in c4 and "reactant 2 atom 5 (N)" in c4
+    # named by the pyrimidine's numbering too (C4 against C2; common practice)
+    assert "C4 of the pyrimidine (reactant 1 atom 1)" in c4 and "reactant 2 atom 5 (N)" in c4
+    c2 = next(r for s, r in by.items() if key(s) == key("Clc1ccnc(N2CCOCC2)n1"))
+    assert "C2 of the pyrimidine (reactant 1 atom 5)" in c2
 
 
 def test_a_swap_never_puts_a_halogen_on_a_ring_n():

@@ -766,6 +766,17 @@ def _dicarbonyl_carbon(mol: Chem.Mol, i: int) -> bool:
     return acyl(a) and any(sum(acyl(m) for m in n.GetNeighbors()) >= 2 for n in a.GetNeighbors())
 
 
+def _site_name(mol: Chem.Mol, i: int, atom: str, symbol: str) -> str:
+    """'C4 of the pyrimidine (reactant 1 atom 1)' for an atom of a parent ring with locants (:mod:`.locants`),
+    else 'reactant 1 atom 1 (C)'."""
+    for system in _ring_systems(mol):
+        if i in system:
+            loc = ring_locants(mol, system)
+            if loc and i in loc[1]:
+                return f"{loc[1][i]} of the {loc[0]} ({atom})"
+    return f"{atom} ({symbol})"
+
+
 def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     try:
         rxn = AllChem.ReactionFromSmarts(smarts)
@@ -785,7 +796,8 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
             # atom 5 (C)'), which is what tells regioisomeric outcomes apart
             sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
                             for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
-            where = "; at " + ", ".join(f"reactant {r + 1} atom {i} ({sym})" for r, i, sym in sites) if sites else ""
+            where = "; at " + ", ".join(_site_name(mols[r], i, f"reactant {r + 1} atom {i}", sym)
+                                        for r, i, sym in sites) if sites else ""
             m = _finish(Chem.RWMol(p))
             if m is not None:
                 out.append((m, f"reaction product (outcome {k + 1}, product {j + 1}{where})"))
