@@ -253,3 +253,15 @@ def test_the_peaks_command_shows_every_section_of_a_paragraph_and_reads_a_1h_lis
     (pl,) = read_peak_lists(q)
     assert pl.nucleus == "1H" and "read as a 1H list" in pl.notes[0]
     assert read_peak_lists(q, "13C")[0].nucleus == "13C"
+
+
+
+def test_a_1h_list_typed_shift_multiplicity_integral_reads_the_number_as_the_integral():
+    # PMC6268426's lines (literature_dev.jsonl.gz) typed 'shift multiplicity integral': a singlet has no J (common
+    # practice), so the one whole number after the letters is the integral
+    pl = parse_peaks("3.73 s 3\n5.28 d 1\n6.93 d 1\n7.70 s 1\n", nucleus="1H")
+    assert [p.intensity for p in pl.peaks] == [3, 1, 1, 1] and all(p.j == () for p in pl.peaks)
+    assert "shift multiplicity integral" in pl.notes[0]
+    # without a singlet or multiplet the number after a doublet's letter stays its J (2.4 Hz meta, 8 Hz ortho)
+    pl = parse_peaks("6.93 d 2\n6.94 d 8\n", nucleus="1H")
+    assert [p.j for p in pl.peaks] == [(2.0,), (8.0,)] and [p.intensity for p in pl.peaks] == [None, None]

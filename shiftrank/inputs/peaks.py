@@ -266,9 +266,13 @@ def _bare_shifts(tokens: list[str], nucleus: str) -> list[str] | None:
     return tokens if all(lo <= v <= hi and math.isfinite(v) for v in values) else None
 
 
-def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
-    """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H)."""
+def _from_text(text: str, src: str, nucleus: str, notes: list[str] | None = None) -> list[Peak]:
+    """Plain lines: ``shift [intensity] [multiplicity]`` (13C); ``shift-or-range [integral] [multiplicity] [J …]`` (1H).
+    A 1H list typed ``shift multiplicity integral`` ('2.89 s 3') is read so when no line has an integral before its
+    letters, every line has one whole number after them, and a singlet or an unresolved multiplet is among them
+    (which has no J to print)."""
     out = []
+    pending = []   # 1H lines, read once the whole list is seen
     for lineno, line, toks in _token_lines(text):
         where = f"{src} line {lineno}"
         if not toks:
@@ -297,13 +301,23 @@ def _from_text(text: str, src: str, nucleus: str) -> list[Peak]:
         if nucleus == "1H":
             if len(nums) + len(counted) > 1 or len(words) > 1:
                 raise InputError(f"{where}: expected 'shift-or-range [integral] [multiplicity] [J values]', got '{line}'")
-            out.append(_make_peak(shift, words[0] if words else None, (counted + nums)[0] if counted + nums else None, where,
-                                  nucleus, lineno, rng, after or None))
+            pending.append((shift, words[0] if words else None, (counted + nums)[0] if counted + nums else None, where,
+                            lineno, rng, after))
             continue
         if len(nums) + len(after) > 1 or len(words) > 1:
             raise InputError(f"{where}: expected 'shift [intensity] [multiplicity]', got '{line}'")
         num = (nums + after)[0] if nums + after else None
         out.append(_make_peak(shift, words[0] if words else None, num, where, nucleus, lineno))
+    if pending:
+        swapped = (all(integral is None and len(after) == 1 and float(after[0]).is_integer() and 1 <= float(after[0]) <= 30
+                       for _, _, integral, _, _, _, after in pending)
+                   and any(m is not None and re.fullmatch(r"(?:br\.? ?)?[sm]|br", m.lower()) for _, m, _, _, _, _, _ in pending))
+        if swapped and notes is not None:
+            notes.append(f"{src}: read as 'shift multiplicity integral' (a singlet's number cannot be a J value)")
+        for shift, mult, integral, where, lineno, rng, after in pending:
+            if swapped:   # the one number after the letters is the integral ('2.89 s 3': a singlet has no J)
+                integral, after = after[0], []
+            out.append(_make_peak(shift, mult, integral, where, nucleus, lineno, rng, after or None))
     return out
 
 
@@ -592,11 +606,11 @@ def parse_peaks(text: str, source: str = "input", nucleus: str = "13C", fmt: str
     reader = {"json": _from_json, "csv": _from_csv, "text": _from_text}.get(fmt)
     if reader is None:
         raise InputError(f"peak format '{fmt}': use text, csv or json")
-    raw = reader(body, source, nucleus)
+    notes: list[str] = []
+    raw = _from_text(body, source, nucleus, notes) if reader is _from_text else reader(body, source, nucleus)
     if not raw:
         raise InputError(f"{source}: no peaks found")
     check_count(len(raw), source)
-    notes: list[str] = []
     dept135 = nucleus == "13C" and dept135_from_signs(raw, notes, source)
     pl = PeakList(nucleus, merge_duplicates(raw, notes, nucleus), source, notes, dept135=dept135)
     return flag_solvent(pl, solvent, keep_integrated=True)
