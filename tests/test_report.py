@@ -69,3 +69,18 @@ def test_batch_report_lists_the_cases_it_could_not_rank(tmp_path):
     assert main(["report", "--batch", str(cases), "-o", str(out)]) == 2   # written, but two cases failed
     page = out.read_text()
     assert "Not ranked (2)" in page and "no-peaks" in page and "line 3: invalid JSON" in page
+
+
+def test_a_ranking_shows_itself_briefly_as_a_table_and_in_a_notebook():
+    # what a script or a notebook cell shows for a result: a short repr, the terminal table as str(), and the
+    # report's section with its style kept to itself (a notebook's page is not restyled)
+    pl = parse_peaks(TEXT, solvent="CDCl3")
+    r = rank(pl, [META, PARA], id="S-1")
+    assert repr(r).startswith("<RankResult S-1: 2 candidates, 13C; verdict: ") and len(repr(r)) < 400
+    assert repr(r.best).startswith(f"<CandidateResult {r.best.smiles} p=")
+    assert "Verdict:" in str(r) and "13C assignment for" in str(r)
+    html = r._repr_html_()
+    assert r.verdict in html and "evidence, not a certificate of identity" in html
+    style = re.search(r"<style>(.*?)</style>", html, re.S).group(1)
+    selectors = [sel for group in re.findall(r"(?:^|})([^{}]+)\{", style) for sel in group.split(",")]
+    assert selectors and "body{" not in style and all(sel.startswith(".shiftrank-report") for sel in selectors)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import html
 import io
+import re
 from pathlib import Path
 
 import matplotlib
@@ -282,6 +283,27 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     for i, c in enumerate(result.candidates, 1):
         parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error))
     return "\n".join(parts)
+
+
+def _scoped(css: str, scope: str) -> str:
+    """``css`` with every selector put inside ``scope`` (``body`` becomes the scope itself), so that a report
+    section shown inside another page (a notebook) styles only itself.
+
+    >>> _scoped("body{margin:0}h2,td{color:red}", ".x")
+    '.x{margin:0}.x h2,.x td{color:red}'
+    """
+    def one(m):
+        sels = [x.strip() for x in m.group(1).split(",")]
+        return ",".join(scope if x == "body" else f"{scope} {x}" for x in sels) + "{"
+    return re.sub(r"([^{}]+)\{", one, css.strip().replace("\n", ""))
+
+
+def notebook_html(result: RankResult) -> str:
+    """One case's report section, styled, for a notebook cell (``RankResult._repr_html_``); its style is scoped
+    to the section and leaves the notebook's own alone."""
+    e = html.escape
+    return (f"<div class='shiftrank-report'><style>{_scoped(CSS, '.shiftrank-report')}</style>{_sample_section(1, result)}"
+            f"<div class='caution'><b>Caution.</b> {e(CAUTION)}</div></div>")
 
 
 def render_report(results: list[RankResult], peak_lists=None, histories=None, inventories=None,

@@ -77,6 +77,14 @@ class CandidateResult:
     by_spectrum: dict = field(default_factory=dict)
     generated: bool = False            # an alternative added by ``with_isomers``; ``name`` is its relation
 
+    def __repr__(self) -> str:
+        """Short: the structure, its probability and fit (the full record is :meth:`to_dict`)."""
+        if self.error:
+            return f"<CandidateResult {self.name or self.smiles}: error: {self.error}>"
+        fit = ", ".join(f"{n} MAE {r.mae:.2f}" for n, r in self.nuclei.items() if r.mae is not None)
+        named = f" ({self.name})" if self.name and self.name != self.smiles else ""
+        return f"<CandidateResult {self.smiles}{named} p={self.probability:.3f}; {fit}>"
+
     @property
     def main(self) -> NucleusResult | None:
         """The 13C result when 13C was observed, else the 1H one."""
@@ -138,6 +146,27 @@ class RankResult:
     @property
     def best(self) -> CandidateResult:
         return self.candidates[0]
+
+    def __repr__(self) -> str:
+        """Short, for a script or a notebook: candidates, spectra, verdict (``str()`` gives the terminal table,
+        :meth:`to_dict` the full record)."""
+        return (f"<RankResult {self.id + ': ' if self.id else ''}{len(self.candidates)} candidates, "
+                f"{' + '.join(self.nuclei) or 'no spectra'}; verdict: {self.verdict}>")
+
+    def __str__(self) -> str:
+        """The ranking as the command line prints it (table, flags, verdict, best candidate's assignment)."""
+        import io
+        from ..outputs.terminal import print_ranking
+
+        buf = io.StringIO()
+        print_ranking(self, {}, buf)
+        return buf.getvalue()
+
+    def _repr_html_(self) -> str:
+        """The report's section for this case, shown by a notebook."""
+        from ..outputs.report import notebook_html
+
+        return notebook_html(self)
 
     @property
     def nuclei(self) -> list[str]:
