@@ -632,3 +632,11 @@ def test_a_j_value_run_into_the_assignment_note_is_read():
     t = "1H NMR (CDCl3) δ 1.32 (t, 3H, J = 7.2 CH3), 7.27 (1H, dd, J 8.0, 2.0 Aryl-H), 4.35 (q, 2H, JHH = 7.2 CH2)"
     peaks = read_nmr_text(t).sections[0].peaks
     assert [(p.j, p.note) for p in peaks] == [((7.2,), "CH3"), ((8.0, 2.0), "Aryl-H"), ((7.2,), "CH2")]
+
+
+def test_a_one_value_section_followed_by_the_next_sentence_reads_its_value():
+    # a 19F section of one CF3 line followed by the HRMS sentence, as SI paragraphs print them (the format is
+    # common practice; the values are INVENTED): the line is read and the mass values are not taken for it
+    t = read_nmr_text("19F NMR (376 MHz, CDCl3) δ −65.2. HRMS (ESI) m/z calcd for C8H7F3NO2 [M+H]+ 206.0423, "
+                      "found 206.0427.")
+    assert [(s.nucleus, [p.shift for p in s.peaks]) for s in t.sections] == [("19F", [-65.2])]

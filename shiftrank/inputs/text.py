@@ -368,7 +368,9 @@ def _read_conditions(sec: TextSection, cond: str) -> None:
             sec.notes.append(f"solvent '{part}' has no residual-signal table here; its signals are not set aside")
 
 
-_FIRST_SHIFT = re.compile(r"(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s*(?:(?:-|~|to)\s*\d{1,3}\.\d+\s*)?(?:ppm\s*)?(?:[(\[,;/]|and\b|\.?\s*$))"
+#: the first shift of a list: a value followed by a bracket, a separator, the end, or a full stop and the next
+#: sentence ('19F NMR (376 MHz, CDCl3) δ −65.2. HRMS …', a one-line section)
+_FIRST_SHIFT = re.compile(r"(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s*(?:(?:-|~|to)\s*\d{1,3}\.\d+\s*)?(?:ppm\s*)?(?:[(\[,;/]|and\b|\.?\s*$|\.\s+(?=[A-Z])))"
                           # or a list with spaces or line breaks between its values: 'δ 162.9 161.0 157.5'
                           r"|(?<![A-Za-z0-9.,/])[+-]?\d{1,3}\.\d+(?=\s+[+-]?\d{1,3}\.\d+(?![\d.])(?!\s*(?:MHz|Hz|K\b)))")
 
