@@ -304,3 +304,19 @@ def test_one_candidate_string_given_again_is_counted_not_repeated():
     assert "COC(=O)c1ccc(Br)c(OC)c1 was given 4 times; together p" in " ".join(r.notes)
     r2 = rank(text=t, candidates=["COC(=O)c1ccc(Br)c(OC)c1"] * 2 + ["O=C(OC)c1ccc(Br)c(OC)c1"])
     assert "COC(=O)c1ccc(Br)c(OC)c1 (given 2 times) and O=C(OC)c1ccc(Br)c(OC)c1 are the same structure, given 3 times" in " ".join(r2.notes)
+
+
+def test_a_printed_19f_section_is_compared_with_each_candidates_fluorine_environments_by_count():
+    # 2,4- against 3,5-difluoroanisole: two fluorine environments against one (symmetry, common practice); the
+    # 19F section (format as printed in SI; the values are INVENTED) lists two lines.  A reservation on the
+    # candidate whose count differs, named in the notes; no 19F shift is predicted
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.45 (m, 1H), 6.95 (m, 1H), 6.85 (m, 1H), 3.90 (s, 3H).\n"
+            "19F NMR (376 MHz, CDCl3) δ −110.5 (m, 1F), −113.8 (m, 1F).")
+    r = rank(text=text, candidates=["COc1ccc(F)cc1F", "COc1cc(F)cc(F)c1"])
+    by = {c.smiles: c for c in r.candidates}
+    assert "19F: the text lists 2 signals; the candidate has 1 fluorine environment by symmetry" in by["COc1cc(F)cc(F)c1"].flags
+    assert not any(f.startswith("19F") for f in by["COc1ccc(F)cc1F"].flags)
+    assert any("19F section (2 signals) compared" in n for n in r.notes)
+    # a candidate without fluorine is told so
+    r = rank(text=text, candidates=["COc1ccc(Cl)cc1Cl"])
+    assert "19F: the text lists 2 signals but the candidate has no fluorine" in r.best.flags

@@ -19,6 +19,7 @@ mass) is flagged and, by default, ranked last with probability 0 and the reason.
 """
 from __future__ import annotations
 
+import re
 from collections import Counter
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
@@ -837,11 +838,41 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
                     notes.append(f"{nucleus}: {doubled_note('rotamers', n)}")
     if parsed is not None:
         for sec in parsed.sections:
-            if sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
+            if sec.nucleus == "19F" and sec.peaks:
+                notes.append(f"text: 19F section ({count(len(sec.peaks), 'signal')}) compared with each candidate's "
+                             "fluorine environments by count only (19F shifts are not predicted)")
+            elif sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
         solvent = parsed.solvent
     return out, solvent, notes
+
+
+def printed_fluorine_lines(case: dict) -> int | None:
+    """How many 19F signals the case's printed text lists (its 19F section), or None without one."""
+    text = case_text(case)
+    if text is None or not re.search(r"19\s*F|¹⁹F", text):
+        return None
+    try:
+        sec = read_nmr_text(text, "text").section("19F")
+    except InputError:
+        return None
+    return len(sec.peaks) if sec is not None and sec.peaks else None
+
+
+def _fluorine_check(res: CandidateResult, lines: int | None) -> None:
+    """Flag a candidate whose fluorine environments (symmetry classes of F) differ in number from the printed
+    19F signals.  A count only (no 19F shifts are predicted), shown as a reservation, not priced: a CF2 beside a
+    stereocentre may show two lines and two environments may coincide."""
+    if res.error or lines is None:
+        return
+    mol, ranks, _ = _parse(res.smiles)
+    envs = len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == 9})
+    if envs == 0:
+        res.flags.append(f"19F: the text lists {count(lines, 'signal')} but the candidate has no fluorine")
+    elif envs != lines:
+        res.flags.append(f"19F: the text lists {count(lines, 'signal')}; the candidate has "
+                         f"{count(envs, 'fluorine environment')} by symmetry")
 
 
 def case_ions(case: dict) -> list[MassStatement]:
@@ -1017,6 +1048,7 @@ def _stage(case: dict, nuclei_models) -> tuple:
         if not np.isfinite(mass) or mass <= 0:
             raise InputError(f"mass: {mass} is not a positive number")
     ions = case_ions(case)
+    f19 = printed_fluorine_lines(case)
     notes.extend(f"sample history{' from the text: MS' if st.source == 'text' else ': measured'} {st.describe()}"
                  for st in ions)
     if fcounts is not None:
@@ -1026,13 +1058,14 @@ def _stage(case: dict, nuclei_models) -> tuple:
                              f"({st.neutral}): each candidate is checked against both")
     priors = _check_priors(case.get("priors"), len(cands))
     preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
-    return case, peaks, notes, (fcounts, charge, ions), mass, priors, preps
+    return case, peaks, notes, (fcounts, charge, ions, f19), mass, priors, preps
 
 
 def stage_cases(cases: list[dict]) -> list:
     """Read every case (peaks, text, formula, candidates) and predict every candidate with one model call
     per nucleus.  Each item is the case's :class:`InputError` or a tuple
-    ``(case, peaks, notes, (formula counts, charge), mass, priors, preps)`` whose preps carry ``preds``."""
+    ``(case, peaks, notes, (formula counts, charge, MS statements, printed 19F lines), mass, priors, preps)`` whose
+    preps carry ``preds``."""
     man = default_manifest()
     available = tuple(n for n in NUCLEI if n in man.get("nuclei", {}))
     staged = []
@@ -1110,7 +1143,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         if isinstance(s, Exception):
             out.append(s)
             continue
-        case, peaks, notes, (fcounts, charge, ions), mass, priors, preps = s
+        case, peaks, notes, (fcounts, charge, ions, f19), mass, priors, preps = s
         case_settings = settings.for_peaks(peaks)
         results = []
         for p in preps:
@@ -1119,6 +1152,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
                     p.error = f"SMILES '{p.smiles}': could not be predicted"
                 r = _score_candidate(p, p.preds, peaks, case_settings)
                 _history_checks(r, fcounts, mass, mass_tolerance, charge, ions)
+                _fluorine_check(r, f19)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, generated=p.generated, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
