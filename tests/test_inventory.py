@@ -233,3 +233,27 @@ def test_protons_missing_from_the_integrals_in_cd3od_are_said_to_be_exchanged():
     assert "2 H not seen, as expected in CD3OD" in " ".join(inv.findings)
     inv2 = take_inventory(None, read_nmr_text(t.replace("CD3OD", "DMSO-d6")).peaklist("1H"), formula="C15H16N2O2")
     assert "2 H not seen, likely OH/NH exchanging" in " ".join(inv2.findings)
+
+
+@pytest.mark.parametrize("lines, n_f, words", [
+    # symmetry reading of a 19F count against the formula's F (common practice)
+    (1, 3, "three equivalent F, a CF3 group"),
+    (1, 2, "1 F equivalent to others by symmetry"),
+    (2, 2, "each F in an environment of its own"),
+    (3, 2, "more signals than F atoms"),
+    (1, 0, "the formula has no F"),
+    (2, None, "at least 2 fluorine environments"),
+])
+def test_a_19f_count_is_read_against_the_formulas_fluorine(lines, n_f, words):
+    from shiftrank.chem.inventory import fluorine_finding
+    assert words in fluorine_finding(lines, n_f)
+
+
+def test_inventory_of_a_paragraph_with_a_19f_section_reads_its_count():
+    # PMC8622415 (literature_dev.jsonl.gz, dev half): a 3-CF3-benzylamine, C21H19F3N2O2, its 13C paragraph; one
+    # 19F line (as a CF3 shows; the paragraph prints none, so the count is given here)
+    from shiftrank.inputs.text import read_nmr_text
+    c13 = read_nmr_text("13C NMR (CDCl3, 100 MHz) δ 158.9, 149.9, 149.7, 149.2, 148.6, 140.6, 131.7, 131.1, 130.8, 129.1, "
+                        "125.5, 124.2, 124.1, 124.1, 119.4, 112.2, 111.3, 109.9, 104.5, 56.0, 55.9, 45.9").peaklist("13C")
+    inv = take_inventory(c13, formula="C21H19F3N2O2", fluorine_lines=1)
+    assert any(f.startswith("19F: 1 signal for 3 F") for f in inv.findings)

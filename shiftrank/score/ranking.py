@@ -839,8 +839,8 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     if parsed is not None:
         for sec in parsed.sections:
             if sec.nucleus == "19F" and sec.peaks:
-                notes.append(f"text: 19F section ({count(len(sec.peaks), 'signal')}) compared with each candidate's "
-                             "fluorine environments by count only (19F shifts are not predicted)")
+                notes.append(f"text: 19F section ({count(len(sec.peaks), 'signal')}) used by its count only, against "
+                             "fluorine environments (19F shifts are not predicted)")
             elif sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
