@@ -390,3 +390,15 @@ def test_ring_positions_carry_their_conventional_locants(smiles, expected):
     assert name == expected[0] and {i: loc[i] for i in expected[1]} == expected[1]
     # benzene is left to ortho/meta/para
     assert ring_locants(Chem.MolFromSmiles("Cc1ccccc1"), {1, 2, 3, 4, 5, 6}) is None
+
+
+@pytest.mark.parametrize("given, expected, relation", [
+    # heterocyclic thiols/thiones alkylate at S or at the ring N next to the C=S (common practice): both ways
+    ("CSc1nc2ccccc2[nH]1", "Cn1c(=S)[nH]c2ccccc21", "N-alkyl instead of S-alkyl"),   # 2-(methylthio)benzimidazole
+    ("Cn1ccccc1=S", "CSc1ccccn1", "S-alkyl instead of N-alkyl"),                      # 1-methylpyridine-2-thione
+    ("CSc1ccncc1", "Cn1ccc(=S)cc1", "N-alkyl instead of S-alkyl"),                    # 4-(methylthio)pyridine
+])
+def test_s_against_n_alkylation_of_heterocyclic_thiones(given, expected, relation):
+    alts = isomers(given, kinds=("ambident",))
+    assert key(expected) in keys(alts)
+    assert any(a.relation.startswith(relation) for a in alts if key(a.smiles) == key(expected))

@@ -8,7 +8,8 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
   rings and fused ring systems) moved to every other free position (a ring atom carrying H; a ring
   NH only for a group that is not a halogen) of its ring system, and every pair of substituents on
   one ring system swapped;
-* **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways); N- against
+* **ambident**: N- against O-alkylation/acylation of amides, lactams and pyridones (both ways), and N- against
+  S-alkylation of their sulfur analogues (heterocyclic thiones, alkylthio-azines); N- against
   O-acylation where a molecule has a free amine or hydroxy group besides its acyl group (aminophenols,
   amino alcohols, diols: which nucleophile took the acyl group);
   N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
@@ -502,12 +503,13 @@ def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             for c in system:
                 for b in mol.GetAtomWithIdx(c).GetBonds():
                     o = b.GetOtherAtomIdx(c)
-                    if (b.GetBondType() != Chem.BondType.DOUBLE or mol.GetAtomWithIdx(o).GetAtomicNum() != 8
+                    if (b.GetBondType() != Chem.BondType.DOUBLE or mol.GetAtomWithIdx(o).GetAtomicNum() not in (8, 16)
                             or o in system or mol.GetBondBetweenAtoms(c, r) is not None):
                         continue
                     m = _ring_n_o_move(mol, x, r, o, c, o, r, Chem.BondType.SINGLE)
                     if m is not None:
-                        out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {r} to O atom {o})"))
+                        ch = mol.GetAtomWithIdx(o).GetSymbol()
+                        out.append((m, f"{ch}-{kind} instead of N-{kind} (group moved from N atom {r} to {ch} atom {o})"))
     return out
 
 
@@ -521,7 +523,7 @@ def _alkoxy_azine_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         for c in system:
             for b in mol.GetAtomWithIdx(c).GetBonds():
                 o = b.GetOtherAtom(mol.GetAtomWithIdx(c))
-                if o.GetAtomicNum() != 8 or o.GetIdx() in system or o.GetDegree() != 2 or b.GetBondType() != Chem.BondType.SINGLE:
+                if o.GetAtomicNum() not in (8, 16) or o.GetIdx() in system or o.GetDegree() != 2 or b.GetBondType() != Chem.BondType.SINGLE:
                     continue
                 x = next(n.GetIdx() for n in o.GetNeighbors() if n.GetIdx() != c)
                 kind = _group_kind(mol, x)
@@ -534,7 +536,7 @@ def _alkoxy_azine_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                         continue
                     m = _ring_n_o_move(mol, x, o.GetIdx(), t, c, o.GetIdx(), t, Chem.BondType.DOUBLE)
                     if m is not None:
-                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx()} to N atom {t})"))
+                        out.append((m, f"N-{kind} instead of {o.GetSymbol()}-{kind} (group moved from {o.GetSymbol()} atom {o.GetIdx()} to N atom {t})"))
     return out
 
 
@@ -590,8 +592,9 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             continue
         for bo in c.GetBonds():
             o = bo.GetOtherAtom(c)
-            if o.GetAtomicNum() != 8:
+            if o.GetAtomicNum() not in (8, 16):   # O, or S of a thioamide, thione or alkylthio-azine
                 continue
+            ch = o.GetSymbol()
             for bn in c.GetBonds():
                 n = bn.GetOtherAtom(c)
                 if n.GetAtomicNum() != 7 or n.GetFormalCharge() or o.GetFormalCharge():
@@ -607,7 +610,7 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                             continue
                         m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=True, aromatic_cn=bn.GetIsAromatic())
                         if m is not None:
-                            out.append((m, f"O-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx()} to O atom {o.GetIdx()})"))
+                            out.append((m, f"{ch}-{kind} instead of N-{kind} (group moved from N atom {n.GetIdx()} to {ch} atom {o.GetIdx()})"))
                 # O-R imidate / alkoxy-azine  ->  N-R amide / pyridone
                 if bo.GetBondType() == Chem.BondType.SINGLE and not bo.GetIsAromatic() and o.GetDegree() == 2 \
                         and not n.GetTotalNumHs() and n.GetDegree() == 2 and \
@@ -618,7 +621,7 @@ def _n_o_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                         continue
                     m = _move_between_n_and_o(mol, c, o, n, x, to_oxygen=False, aromatic_cn=bn.GetIsAromatic())
                     if m is not None:
-                        out.append((m, f"N-{kind} instead of O-{kind} (group moved from O atom {o.GetIdx()} to N atom {n.GetIdx()})"))
+                        out.append((m, f"N-{kind} instead of {ch}-{kind} (group moved from {ch} atom {o.GetIdx()} to N atom {n.GetIdx()})"))
     return out
 
 
