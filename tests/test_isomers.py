@@ -402,3 +402,14 @@ def test_s_against_n_alkylation_of_heterocyclic_thiones(given, expected, relatio
     alts = isomers(given, kinds=("ambident",))
     assert key(expected) in keys(alts)
     assert any(a.relation.startswith(relation) for a in alts if key(a.smiles) == key(expected))
+
+
+def test_acylation_of_an_amino_azole_at_the_ring_nh_instead_of_the_amine():
+    # an aminopyrazole or aminoindazole acylates at the exocyclic NH2 or at either ring N (common practice): the
+    # acetamide of 3-aminopyrazole against 1-acetyl-3- and 1-acetyl-5-aminopyrazole (hand enumeration), and back
+    alts = isomers("CC(=O)Nc1cc[nH]n1", kinds=("ambident",))
+    assert keys(alts) == {key("CC(=O)n1ccc(N)n1"), key("CC(=O)n1nccc1N")}
+    assert all("instead of the exocyclic N" in a.relation for a in alts)
+    back = isomers("CC(=O)n1ccc(N)n1", kinds=("ambident",))
+    assert key("CC(=O)Nc1cc[nH]n1") in keys(back)
+    assert any(a.relation.startswith("N-acyl instead of acyl on ring N1 of the pyrazole") for a in back)

@@ -653,39 +653,90 @@ def _free_nucleophile(a: Chem.Atom) -> str | None:
     return {7: "N", 8: "O"}.get(a.GetAtomicNum())
 
 
+def _ring_nh(a: Chem.Atom) -> bool:
+    """A pyrrole-type N-H of a five-membered aromatic ring (an azole's NH), which can take an acyl group."""
+    return (a.GetAtomicNum() == 7 and a.GetIsAromatic() and a.GetTotalNumHs() == 1 and not a.GetFormalCharge()
+            and a.IsInRingSize(5))
+
+
+def _ring_n_name(mol: Chem.Mol, i: int) -> str:
+    """'ring N1 of the pyrazole' (a parent with locants, :mod:`.locants`) or 'ring N'."""
+    for system in _ring_systems(mol):
+        if i in system:
+            loc = ring_locants(mol, system)
+            if loc and i in loc[1]:
+                return f"ring {loc[1][i]} of the {loc[0]}"
+    return "ring N"
+
+
 def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """N- against O-acylation of a molecule with both an amine and a hydroxy group (an aminophenol, an amino
     alcohol): an acyl group on one heteroatom moved to every free N-H or O-H of the other kind or the same kind
     elsewhere (chemoselectivity of the acylation; common practice).  The acyl group is a C=O carbon bound by a
     chain bond (not a ring bond) to a non-aromatic N or O, with all it carries (Boc as CO2tBu: N-Boc against
-    the O-Boc carbonate)."""
+    the O-Boc carbonate).  An azole's ring NH is a nucleophile too: an aminopyrazole's acetamide against the
+    1-acetylpyrazole amine, both ways (a group moving between the azole's own ring N is an azole move)."""
     out = []
-    targets = [(a.GetIdx(), k) for a in mol.GetAtoms() for k in [_free_nucleophile(a)] if k]
+    targets = [(a.GetIdx(), k) for a in mol.GetAtoms() for k in [_free_nucleophile(a) or ("ring N" if _ring_nh(a) else None)] if k]
+    # the other ring N of an NH-azole too (its H moves off the NH): 1-acyl-3-amino and 1-acyl-5-aminopyrazole
+    ring_h = {}
+    for t, k in list(targets):
+        if k != "ring N":
+            continue
+        for ring in mol.GetRingInfo().AtomRings():
+            if t in ring and len(ring) == 5:
+                for i in ring:
+                    a = mol.GetAtomWithIdx(i)
+                    if (a.GetAtomicNum() == 7 and a.GetIsAromatic() and a.GetDegree() == 2 and not a.GetTotalNumHs()
+                            and not a.GetFormalCharge() and i not in ring_h):
+                        ring_h[i] = t
+                        targets.append((i, "ring N"))
     if not targets:
         return out
     for b in mol.GetBonds():
         if b.IsInRing() or b.GetBondType() != Chem.BondType.SINGLE:
             continue
         for h, c in ((b.GetBeginAtom(), b.GetEndAtom()), (b.GetEndAtom(), b.GetBeginAtom())):
-            if h.GetAtomicNum() not in (7, 8) or h.GetIsAromatic() or h.GetFormalCharge() or _group_kind(mol, c.GetIdx()) != "acyl":
+            ring_source = h.GetIsAromatic() and h.GetAtomicNum() == 7 and h.IsInRingSize(5) and h.GetDegree() == 3
+            if (h.GetAtomicNum() not in (7, 8) or h.GetIsAromatic() and not ring_source or h.GetFormalCharge()
+                    or _group_kind(mol, c.GetIdx()) != "acyl"):
                 continue
             frm = "N" if h.GetAtomicNum() == 7 else "O"
             name = _fragment_name(mol, c.GetIdx(), h.GetIdx()) or "acyl"
             group = set(_side(mol, c.GetIdx(), h.GetIdx()))
             for t, to in targets:
-                if t == h.GetIdx() or t in group:
+                if t == h.GetIdx() or t in group or ring_source and to == "ring N":
                     continue
-                rw = Chem.RWMol(mol)
-                _rebond(rw, c.GetIdx(), h.GetIdx(), t)
-                for i in (h.GetIdx(), t):
-                    a = rw.GetAtomWithIdx(i)
-                    a.SetNoImplicit(False)
-                    a.SetNumExplicitHs(0)
-                m = _finish(rw)
-                if m is not None:
+                if ring_source or to == "ring N":   # an azole N gains or loses the group: its H goes or comes
+                    src = mol
+                    if t in ring_h:   # onto the pyridine-type N: the ring's NH gives up its H
+                        rw = Chem.RWMol(mol)
+                        nh = rw.GetAtomWithIdx(ring_h[t])
+                        nh.SetNoImplicit(True)
+                        nh.SetNumExplicitHs(0)
+                        src = rw.GetMol()
+                    m = _reattach(src, [(h.GetIdx(), c.GetIdx(), t)])
+                else:
+                    rw = Chem.RWMol(mol)
+                    _rebond(rw, c.GetIdx(), h.GetIdx(), t)
+                    for i in (h.GetIdx(), t):
+                        a = rw.GetAtomWithIdx(i)
+                        a.SetNoImplicit(False)
+                        a.SetNumExplicitHs(0)
+                    m = _finish(rw)
+                if m is None:
+                    continue
+                if to == "ring N":
+                    what = f"acyl on {_ring_n_name(mol, t)} instead of the exocyclic {frm}"
+                    to_word = "N"
+                elif ring_source:
+                    what = f"{to}-acyl instead of acyl on {_ring_n_name(mol, h.GetIdx())}"
+                    to_word = to
+                else:
                     what = (f"{to}-acyl instead of {frm}-acyl" if to != frm else
                             f"acyl on another {to}")   # (a diol's other OH: which hydroxy took the group)
-                    out.append((m, f"{what} ({name} moved from {frm} atom {h.GetIdx()} to {to} atom {t})"))
+                    to_word = to
+                out.append((m, f"{what} ({name} moved from {frm} atom {h.GetIdx()} to {to_word} atom {t})"))
     return out
 
 
