@@ -413,3 +413,11 @@ def test_acylation_of_an_amino_azole_at_the_ring_nh_instead_of_the_amine():
     back = isomers("CC(=O)n1ccc(N)n1", kinds=("ambident",))
     assert key("CC(=O)Nc1cc[nH]n1") in keys(back)
     assert any(a.relation.startswith("N-acyl instead of acyl on ring N1 of the pyrazole") for a in back)
+
+
+def test_sulfonyl_groups_move_between_n_and_o_like_acyl_groups():
+    # chemoselectivity of a sulfonylation (common practice): 4-aminophenol's N-tosyl against its O-tosylate, and a
+    # 2-pyridyl triflate against the N-triflyl pyridone (hand enumeration)
+    alts = isomers("Cc1ccc(S(=O)(=O)Nc2ccc(O)cc2)cc1", kinds=("ambident",))
+    assert keys(alts) == {key("Cc1ccc(S(=O)(=O)Oc2ccc(N)cc2)cc1")} and alts[0].relation.startswith("O-sulfonyl instead of N-sulfonyl (Ts")
+    assert key("O=c1ccccn1S(=O)(=O)C(F)(F)F") in keys(isomers("O=S(=O)(Oc1ccccn1)C(F)(F)F", kinds=("ambident",)))

@@ -574,8 +574,12 @@ _DICARBONYL_RXNS = None
 
 
 def _group_kind(mol: Chem.Mol, root: int) -> str | None:
-    """'alkyl' (sp3 carbon), 'acyl' (C=O carbon) or None for a group that does not migrate between N and O."""
+    """'alkyl' (sp3 carbon), 'acyl' (C=O carbon), 'sulfonyl' (an S with two =O: Ts, Ms, Tf) or None for a group
+    that does not migrate between N and O."""
     a = mol.GetAtomWithIdx(root)
+    if a.GetAtomicNum() == 16 and not a.GetIsAromatic() and sum(
+            1 for b in a.GetBonds() if b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() == 8) == 2:
+        return "sulfonyl"
     if a.GetAtomicNum() != 6 or a.GetIsAromatic():
         return None
     if any(b.GetBondType() == Chem.BondType.DOUBLE and b.GetOtherAtom(a).GetAtomicNum() == 8 for b in a.GetBonds()):
@@ -699,10 +703,11 @@ def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         for h, c in ((b.GetBeginAtom(), b.GetEndAtom()), (b.GetEndAtom(), b.GetBeginAtom())):
             ring_source = h.GetIsAromatic() and h.GetAtomicNum() == 7 and h.IsInRingSize(5) and h.GetDegree() == 3
             if (h.GetAtomicNum() not in (7, 8) or h.GetIsAromatic() and not ring_source or h.GetFormalCharge()
-                    or _group_kind(mol, c.GetIdx()) != "acyl"):
+                    or _group_kind(mol, c.GetIdx()) not in ("acyl", "sulfonyl")):
                 continue
+            kind = _group_kind(mol, c.GetIdx())
             frm = "N" if h.GetAtomicNum() == 7 else "O"
-            name = _fragment_name(mol, c.GetIdx(), h.GetIdx()) or "acyl"
+            name = _fragment_name(mol, c.GetIdx(), h.GetIdx())
             group = set(_side(mol, c.GetIdx(), h.GetIdx()))
             for t, to in targets:
                 if t == h.GetIdx() or t in group or ring_source and to == "ring N":
@@ -727,16 +732,16 @@ def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 if m is None:
                     continue
                 if to == "ring N":
-                    what = f"acyl on {_ring_n_name(mol, t)} instead of the exocyclic {frm}"
+                    what = f"{kind} on {_ring_n_name(mol, t)} instead of the exocyclic {frm}"
                     to_word = "N"
                 elif ring_source:
-                    what = f"{to}-acyl instead of acyl on {_ring_n_name(mol, h.GetIdx())}"
+                    what = f"{to}-{kind} instead of {kind} on {_ring_n_name(mol, h.GetIdx())}"
                     to_word = to
                 else:
-                    what = (f"{to}-acyl instead of {frm}-acyl" if to != frm else
-                            f"acyl on another {to}")   # (a diol's other OH: which hydroxy took the group)
+                    what = (f"{to}-{kind} instead of {frm}-{kind}" if to != frm else
+                            f"{kind} on another {to}")   # (a diol's other OH: which hydroxy took the group)
                     to_word = to
-                out.append((m, f"{what} ({name} moved from {frm} atom {h.GetIdx()} to {to_word} atom {t})"))
+                out.append((m, f"{what} ({name or kind} moved from {frm} atom {h.GetIdx()} to {to_word} atom {t})"))
     return out
 
 
