@@ -608,9 +608,9 @@ ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an is
 
 def _sample_options(s, candidates_required: bool) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
-    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
+    s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
-                   "or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
+                   "or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
     s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
@@ -645,7 +645,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_formula)
 
     s = sub.add_parser("peaks", help="read and check a peak list (ranges, duplicates, solvent signals)")
-    s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx); - reads stdin")
+    s.add_argument("file", help="peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
     s.add_argument("--nucleus", choices=["13C", "1H"],
                    help="read the file as this nucleus's list (default: each section of a printed paragraph; a plain "
                         "list as 13C, or as 1H when every value lies below 12.5 ppm)")
@@ -665,7 +665,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_predict)
 
     s = sub.add_parser("compare", help="pair a sample's peaks with a reference spectrum of the compound (identity check)")
-    s.add_argument("--sample", help="the sample's peak file (.txt, .csv, .json, JCAMP-DX .jdx)")
+    s.add_argument("--sample", help="the sample's peak file (.txt, .csv, .json, JCAMP-DX .jdx, a Bruker data set)")
     s.add_argument("--sample-text", metavar="FILE_OR_-", help="or the sample's printed characterisation text")
     s.add_argument("--reference", help="the reference's peak file (an authentic sample, a standard)")
     s.add_argument("--reference-text", metavar="FILE_OR_-", help="or the reference's printed text (e.g. from the literature)")
@@ -693,10 +693,10 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_batch)
 
     s = sub.add_parser("inventory", help="count CHn pieces and H, compare with the formula, DBE, regions, mass check")
-    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file; - reads stdin")
+    s.add_argument("--peaks", help="13C peak list (with DEPT multiplicities when known), or a JCAMP-DX file or Bruker data set; - reads stdin")
     s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
-                   "or a JCAMP-DX file; - reads stdin")
+                   "or a JCAMP-DX file or Bruker data set; - reads stdin")
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")

@@ -386,3 +386,52 @@ def test_a_2d_file_is_named_as_such_for_peaks_and_for_hsqc(tmp_path):
     from shiftrank.inputs.peaks import read_hsqc
     with pytest.raises(InputError, match="2D spectra are not read"):
         read_hsqc(p)
+
+
+def _bruker_set(root, lines, nucleus, mhz, offset, sw_ppm, si, width, noise, solvent="CDCl3", nc=2, seed=3):
+    """A Bruker processed 1D data set as the processed-data layout has it: pdata/1/1r (little-endian int32,
+    the trace divided by 2**NC_proc) with its procs (OFFSET = ppm of the first point, SW_p in Hz, SF in MHz, SI
+    points) and the experiment's acqus (NUC1, SOLVENT)."""
+    exp = root / "10"
+    pdir = exp / "pdata" / "1"
+    pdir.mkdir(parents=True)
+    ppm = offset - np.arange(si) * sw_ppm / si
+    y = np.zeros(si)
+    for x0, h in lines:
+        y += h / (1 + ((ppm - x0) / (width / 2)) ** 2)
+    y += np.random.default_rng(seed).normal(0, noise, si)
+    (pdir / "1r").write_bytes(np.round(y / 2 ** nc).astype("<i4").tobytes())
+    (pdir / "procs").write_text("\n".join([
+        "##TITLE= Parameter file", "##JCAMPDX= 5.0", "##$BYTORDP= 0", "##$DTYPP= 0", f"##$NC_proc= {nc}",
+        f"##$OFFSET= {offset}", f"##$SF= {mhz}", f"##$SI= {si}", f"##$SW_p= {sw_ppm * mhz}", f"##$AXNUC= <{nucleus}>",
+        "##END="]) + "\n")
+    (exp / "acqus").write_text("\n".join(["##TITLE= Parameter file", "##JCAMPDX= 5.0", f"##$NUC1= <{nucleus}>",
+                                          f"##$SOLVENT= <{solvent}>", f"##$SFO1= {mhz}", "##END="]) + "\n")
+    return exp
+
+
+def test_a_bruker_processed_data_set_is_read_like_a_spectrum(tmp_path):
+    # 4-ethylanisole's 1H multiplets (module text: from memory) and the CHCl3 line, as a Bruker 1r/procs/acqus set
+    lines = (_multiplet(7.10, 2, [(8.6, 1)]) + _multiplet(6.83, 2, [(8.6, 1)]) + _multiplet(3.79, 3, [])
+             + _multiplet(2.59, 2, [(7.6, 3)]) + _multiplet(1.21, 3, [(7.6, 2)]) + _multiplet(7.26, 0.1, []))
+    exp = _bruker_set(tmp_path, [(x, h * 1000) for x, h in lines], "1H", MHZ_H, 12.0, 14.0, 65536, 0.0025, 2000.0)
+    for given in (exp, exp / "pdata" / "1", exp / "pdata" / "1" / "1r"):   # the folder, its pdata/1, or the 1r file
+        pl = shiftrank.read_peaks(given, nucleus="1H")
+        got = {round(p.shift, 2): p for p in pl.peaks if p.solvent is None}
+        assert sorted(got) == [1.21, 2.59, 3.79, 6.83, 7.10]
+        assert [got[s].multiplicity for s in (1.21, 2.59, 3.79, 6.83, 7.10)] == ["t", "q", "s", "d", "d"]
+        assert [p.shift for p in pl.peaks if p.solvent] == [pytest.approx(7.26, abs=0.01)]   # the acqus solvent
+    r = shiftrank.rank(None, ANISOLE_ISOMERS, peaks_1h=pl)
+    assert r.best.smiles == ANISOLE_ISOMERS[0]
+    # the acqus nucleus is checked, and `peaks` without --nucleus reads it
+    with pytest.raises(InputError, match="holds a 1H spectrum"):
+        shiftrank.read_peaks(exp, nucleus="13C")
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "peaks", str(exp)], capture_output=True, text=True)
+    assert out.returncode == 0 and "Bruker 1H spectrum" in out.stdout and " q " in out.stdout
+    # a 2D data set and a folder of something else are named
+    (tmp_path / "11" / "pdata" / "1").mkdir(parents=True)
+    (tmp_path / "11" / "pdata" / "1" / "2rr").write_bytes(b"\0" * 64)
+    with pytest.raises(InputError, match="a 2D spectrum"):
+        shiftrank.read_peaks(tmp_path / "11", nucleus="13C")
+    with pytest.raises(InputError, match="Bruker data set"):
+        shiftrank.read_peaks(tmp_path, nucleus="13C")

@@ -49,7 +49,8 @@ def read_user_text(path: str | Path, what: str = "a text file", fallback: str = 
     if not p.exists():
         raise InputError(f"{path}: no such file")
     if p.is_dir():
-        raise InputError(f"{path}: is a directory, expected {what}")
+        raise InputError(f"{path}: is a directory, expected {what}"
+                         + (" (or a Bruker data set: a folder with pdata/N/1r)" if what == "a peak list" else ""))
     try:
         raw = gzip.open(p, "rb").read() if p.name.lower().endswith(".gz") else p.read_bytes()
     except (OSError, EOFError) as exc:

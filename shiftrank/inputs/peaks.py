@@ -628,10 +628,12 @@ def _read_file(path: str | Path) -> tuple[Path, str]:
 def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
     """Read a peak file (.txt, .csv, .tsv, .json; a JCAMP-DX peak table or 1D spectrum, .jdx/.dx, whose
     peaks are picked; anything else is read as text), or standard input for '-'."""
-    from .spectra import is_jcamp, read_jcamp   # (spectra builds on this module)
+    from .spectra import bruker_pdata, is_jcamp, read_bruker, read_jcamp   # (spectra builds on this module)
 
     if str(path) != "-" and is_jcamp(path):
         return read_jcamp(path, nucleus, solvent)
+    if str(path) != "-" and bruker_pdata(path) is not None:
+        return read_bruker(path, nucleus, solvent)
     p, text = _read_file(path)   # ('-': standard input, a list or a printed paragraph, pasted or piped)
     if str(path) == "-" and not text.strip():
         raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
@@ -645,10 +647,10 @@ def read_peak_lists(path: str | Path, nucleus: str | None = None, solvent: str |
     unless all its values lie in the 1H range (:func:`looks_like_1h`: '7.26 d 2' is not a CH at 7.26 ppm), when
     it is read as 1H with a note saying so.
     """
-    from .spectra import is_jcamp
+    from .spectra import bruker_pdata, instrument_nucleus as _instrument_nucleus, is_jcamp
 
-    if nucleus is not None or (str(path) != "-" and is_jcamp(path)):
-        return [read_peaks(path, nucleus or "13C", solvent)]
+    if nucleus is not None or (str(path) != "-" and (is_jcamp(path) or bruker_pdata(path) is not None)):
+        return [read_peaks(path, nucleus or _instrument_nucleus(path), solvent)]
     p, text = _read_file(path)
     if str(path) == "-" and not text.strip():
         raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")

@@ -1,4 +1,5 @@
-"""Instrument files: JCAMP-DX 1D NMR spectra and peak tables, read into peak lists.
+"""Instrument files: JCAMP-DX 1D NMR spectra and peak tables, and Bruker processed 1D data sets, read into
+peak lists.
 
 JCAMP-DX is the open exchange format of IUPAC (McDonald, R. S.; Wilks, P. A. (1988) Appl. Spectrosc. 42,
 151; the NMR labels: Davies, A. N.; Lampen, P. (1993) Appl. Spectrosc. 47, 1093).  Two kinds of block
@@ -19,6 +20,11 @@ peak table); a first-order pattern is named when the lines say so (one line s; t
 at the observe frequency.  Residual solvent signals (Fulmer et al. 2010) are flagged as for typed lists.
 X values in Hz are converted with ``##.OBSERVE FREQUENCY``; ``##.SHIFT REFERENCE`` is not applied (the
 trace is taken as referenced).
+
+A **Bruker processed data set** (the experiment folder, its ``pdata/N`` folder or the ``1r`` file) is read with
+nmrglue's Bruker reader: the real spectrum ``1r`` scaled by ``NC_proc``, placed on the ppm scale by the
+``procs`` parameters (``OFFSET``, ``SW_p``, ``SF``, ``SI``), its nucleus and solvent from the experiment's
+``acqus`` (``NUC1``, ``SOLVENT``); its peaks are picked as a JCAMP-DX trace's are.
 
 Owns file reading and peak picking; returns :class:`~shiftrank.inputs.peaks.PeakList` objects for the
 rest of the program, which never sees the trace.
@@ -66,6 +72,81 @@ def is_jcamp(path: str | Path) -> bool:
     return Path(path).suffix.lower() in JCAMP_EXTENSIONS
 
 
+def bruker_pdata(path: str | Path) -> Path | None:
+    """The processed-data folder of a Bruker data set given as the experiment folder ('…/10': its pdata/1), a
+    processing folder ('…/10/pdata/1') or its real spectrum file ('…/1r'); None for anything else."""
+    p = Path(path)
+    try:
+        if p.is_file() and p.name in ("1r", "procs"):
+            p = p.parent
+        if p.is_dir():
+            if (p / "1r").is_file() or (p / "2rr").is_file():
+                return p
+            if (p / "pdata").is_dir():
+                numbered = sorted((d for d in (p / "pdata").iterdir() if d.is_dir() and d.name.isdigit()),
+                                  key=lambda d: int(d.name))
+                for d in numbered:
+                    if (d / "1r").is_file() or (d / "2rr").is_file():
+                        return d
+    except OSError:
+        return None
+    return None
+
+
+def _bruker_text(value) -> str | None:
+    """A Bruker parameter string without its angle brackets ('<CDCl3>' -> 'CDCl3')."""
+    if value is None:
+        return None
+    t = str(value).strip().strip("<>").strip()
+    return t or None
+
+
+def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = None,
+                min_snr: float | None = None) -> PeakList:
+    """Peaks picked from a Bruker processed 1D spectrum (the real part, ``1r``, with its ``procs``; the
+    experiment's ``acqus`` for the nucleus and solvent when present), read with nmrglue.  The ppm scale is
+    the processing parameters': the first point at ``OFFSET`` ppm, ``SW_p`` Hz over ``SI`` points at ``SF`` MHz
+    (Bruker's processed-data layout; the spectrum is taken as referenced, as a JCAMP-DX trace is)."""
+    pdir = bruker_pdata(path)
+    where = str(path)
+    if pdir is None:
+        raise InputError(f"{path}: not a Bruker processed data set (no pdata/N/1r)")
+    if (pdir / "2rr").is_file() and not (pdir / "1r").is_file():
+        raise InputError(f"{where}: a 2D spectrum (2rr); give the 1D 13C or 1H data set, or its peak list "
+                         "(HSQC: its cross peaks as 'δC δH' pairs)")
+    try:
+        import nmrglue as ng
+    except ImportError:   # pragma: no cover - a dependency of the package
+        raise InputError("reading Bruker data needs nmrglue (pip install nmrglue)") from None
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        try:
+            dic, data = ng.bruker.read_pdata(str(pdir), scale_data=True)
+        except Exception as exc:   # nmrglue's own errors on a damaged data set
+            raise InputError(f"{where}: the processed data cannot be read ({type(exc).__name__}: {exc})") from None
+    procs, acqus = dic.get("procs") or {}, dic.get("acqus") or {}
+    y = np.asarray(data, dtype=float)
+    if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
+        raise InputError(f"{where}: the processed data are not a 1D trace of finite values ({y.shape} values)")
+    try:
+        offset, sw_p, sf = float(procs["OFFSET"]), float(procs["SW_p"]), float(procs["SF"])
+    except (KeyError, TypeError, ValueError):
+        raise InputError(f"{where}: procs lacks OFFSET, SW_p or SF, which place the spectrum on the ppm scale") from None
+    if sf <= 0 or sw_p <= 0:
+        raise InputError(f"{where}: procs has SF = {sf:g} MHz and SW_p = {sw_p:g} Hz; both must be positive")
+    ppm = offset - np.arange(len(y)) * (sw_p / sf) / len(y)
+    found = _bruker_text(acqus.get("NUC1")) or _bruker_text(procs.get("AXNUC"))
+    found = found if found in ("1H", "13C") else (None if found in (None, "off") else found)
+    if found is not None and found != nucleus:
+        raise InputError(f"{where}: the data set holds a {found} spectrum (NUC1 {found}), given as {nucleus}")
+    trace = Trace(ppm[::-1].copy(), y[::-1].copy(), sf)
+    picked, height, width = pick_lines(trace, nucleus, min_snr)
+    what = (f"Bruker {nucleus} spectrum ({pdir.parent.parent.name}/pdata/{pdir.name}), {len(y):,} points: {len(picked)} "
+            f"lines picked above {min_snr or MIN_SNR[nucleus]:g}× the noise")
+    return _lines_to_peaklist(picked, height, width, [None] * len(picked), trace, nucleus, sf,
+                              _bruker_text(acqus.get("SOLVENT")), solvent, where, what, [])
+
+
 #: the line every JCAMP-DX file carries
 JCAMP_HEADER = re.compile(r"^\s*##JCAMP-?DX\s*=", re.I | re.M)
 
@@ -101,6 +182,26 @@ def _nucleus(block: dict) -> str | None:
     if not m:
         return None
     return m.group(1) + m.group(2).capitalize()
+
+
+def instrument_nucleus(path: str | Path) -> str:
+    """The nucleus an instrument file declares (JCAMP-DX ``##.OBSERVE NUCLEUS=``, Bruker ``acqus`` ``NUC1``) when
+    it is 1H or 13C; '13C' otherwise (what a peak file is read as by default)."""
+    found = None
+    try:
+        pdir = bruker_pdata(path)
+        if pdir is not None:
+            acqus = pdir.parent.parent / "acqus"
+            if acqus.is_file():
+                m = re.search(r"^##\$NUC1=\s*<?([^>\s]+)", acqus.read_text(errors="replace"), re.M)
+                found = m.group(1) if m else None
+        elif is_jcamp(path):
+            head = Path(path).read_text(errors="replace")[:20000]
+            m = re.search(r"^##\.OBSERVE\s*NUCLEUS=\s*\^?(\d+)\s*([A-Za-z]{1,2})", head, re.M | re.I)
+            found = m.group(1) + m.group(2).capitalize() if m else None
+    except OSError:
+        found = None
+    return found if found in ("1H", "13C") else "13C"
 
 
 def _float(block: dict, key: str, where: str) -> float | None:
@@ -159,6 +260,13 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         letters = [None] * len(ppm)
         what = (f"JCAMP-DX {nucleus} spectrum, {len(trace.y):,} points: {len(ppm)} lines picked above "
                 f"{min_snr or MIN_SNR[nucleus]:g}× the noise")
+    return _lines_to_peaklist(ppm, height, width, letters, trace, nucleus, mhz, file_solvent, solvent, where, what, notes)
+
+
+def _lines_to_peaklist(ppm, height, width, letters, trace, nucleus: str, mhz, file_solvent, solvent, where: str,
+                       what: str, notes: list[str]) -> PeakList:
+    """The lines of an instrument file (a peak table's, or those picked from a ``trace``) as a peak list: range
+    checks, 1H multiplets and integrals, the solvent's lines set aside (the file's solvent unless ``solvent``)."""
     if mhz:
         what += f", {mhz:g} MHz"
     if file_solvent:
@@ -394,7 +502,13 @@ def noise_sigma(y: np.ndarray) -> float:
     """Robust noise level of a trace: 1.4826 × the median absolute deviation of its point-to-point
     differences / √2 (the baseline dominates a spectrum; differences remove a slow baseline drift)."""
     d = np.diff(y)
-    return float(1.4826 * np.median(np.abs(d - np.median(d))) / np.sqrt(2.0))
+    dev = np.abs(d - np.median(d))
+    s = 1.4826 * np.median(dev) / np.sqrt(2.0)
+    if s == 0:   # integer data with a noise below one count: the median difference is 0; the mean is not
+        s = 1.2533 * np.mean(dev) / np.sqrt(2.0)
+    if s == 0:   # a noiseless (computed) trace: a millionth of its largest value
+        s = 1e-6 * float(np.max(np.abs(y))) or 1.0
+    return float(s)
 
 
 def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None):
