@@ -79,6 +79,20 @@ def _structure_token(token: str) -> str:
         raise InputError(f"{exc} (and no file of that name exists)") from None
 
 
+def _sample_name(source: str) -> str:
+    """A sample's name from its first input: the file's stem; a Bruker data set by its name and experiment
+    number ('ab123/10'), as the instrument's folders name it; 'stdin' for standard input."""
+    if source == "-":
+        return "stdin"
+    from .inputs.spectra import bruker_pdata
+
+    pdir = bruker_pdata(source)
+    if pdir is not None:
+        exp = pdir.parent.parent
+        return f"{exp.parent.name}/{exp.name}" if exp.parent.name else exp.name
+    return Path(source).stem
+
+
 def cmd_facts(args) -> int:
     from .chem.structure import facts_from_mol, structure_facts
     from .inputs.molecules import read_molecules, to_mol
@@ -315,7 +329,7 @@ def _case_from_args(args) -> tuple[dict, dict]:
     if hsqc:
         lists["HSQC"] = case["hsqc"] = read_hsqc(hsqc)
     sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc) if s]
-    case["id"] = Path(sources[0]).stem if sources[0] != "-" else "stdin"
+    case["id"] = _sample_name(sources[0])
     return case, lists
 
 
