@@ -337,7 +337,17 @@ def _rank_sample(args, case: dict):
     """``rank`` and the one-sample ``report``: the same options give the same ranking."""
     from .score.ranking import rank
 
-    return rank(case.get("peaks"), _read_candidates(args.candidates), formula=args.formula, mass=args.mass,
+    cands = _read_candidates(args.candidates or [])
+    if getattr(args, "reaction", None):   # the products of a named reaction or reaction SMARTS, named by where it acted
+        from .chem.isomers import isomers
+
+        if not args.reactants:
+            raise InputError("--reaction needs --reactants (the reaction's reactants as SMILES separated by '.')")
+        cands += [(a.relation, a.smiles, None) for a in isomers(None, kinds=(), reaction=args.reaction,
+                                                               reactants=args.reactants)]
+    if not cands:
+        raise InputError("give --candidates (SMILES or structure files) and/or --reaction NAME --reactants A.B")
+    return rank(case.get("peaks"), cands, formula=args.formula, mass=args.mass,
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
                 hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"])
@@ -498,8 +508,9 @@ def cmd_report(args) -> int:
                   file=sys.stderr)
             return 2
     else:
-        if not args.candidates:
-            raise InputError("report: give --candidates with --peaks/--peaks-1h/--hsqc/--text, or --batch CASES.jsonl")
+        if not args.candidates and not args.reaction:
+            raise InputError("report: give --candidates (or --reaction with --reactants) with --peaks/--peaks-1h/--hsqc/"
+                             "--text, or --batch CASES.jsonl")
         case, _ = _case_from_args(args)
         _write_sample_report(args, case, _rank_sample(args, case), args.output)
     print(f"report written to {args.output}")
@@ -516,7 +527,16 @@ def cmd_isomers(args) -> int:
         for a in alts:
             print(json.dumps(a.to_dict()))
         return 0
-    print(f"{count(len(alts), 'alternative')} to {args.smiles or 'the reaction products'} ({args.kind}):")
+    if args.smi:   # a candidates file for rank: the given structure first, each alternative named by its relation
+        if args.smiles:
+            print(f"{args.smiles}\tgiven structure")
+        for a in alts:
+            print(f"{a.smiles}\t{a.relation}")
+        return 0
+    if args.smiles:
+        print(f"{count(len(alts), 'alternative')} to {args.smiles} ({args.kind}):")
+    else:
+        print(f"{count(len(alts), 'reaction product')} of {args.reaction} on {args.reactants}:")
     for k, a in enumerate(alts, 1):
         print(f"  {k:>3}  {a.kind:<10} {a.smiles:<45} {a.relation}")
     return 0
@@ -620,7 +640,7 @@ ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an is
                  "may be the second form's (a paragraph saying 'mixture of rotamers' is read so without this)")
 
 
-def _sample_options(s, candidates_required: bool) -> None:
+def _sample_options(s) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
@@ -629,8 +649,8 @@ def _sample_options(s, candidates_required: bool) -> None:
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
                    "pairs, or a printed HSQC paragraph; - reads stdin")
-    s.add_argument("--candidates", required=candidates_required, nargs="+", metavar="FILE_OR_SMILES",
-                   help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv)")
+    s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES",
+                   help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv); or give --reaction")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
     s.add_argument("--mass", type=float, help="molecular mass of the neutral sample (Da)")
     s.add_argument("--mz", type=float, help="measured m/z of the molecular ion (high resolution: within 10 ppm)")
@@ -641,6 +661,10 @@ def _sample_options(s, candidates_required: bool) -> None:
                    help="do not demote candidates contradicting formula, mass or m/z")
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
                    help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
+    s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="add every product of this reaction on --reactants as a "
+                   "candidate: a named reaction (snar, buchwald, suzuki, alkylation, n-alkylation, o-alkylation, acylation, "
+                   "sulfonylation) or a reaction SMARTS")
+    s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -691,7 +715,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_compare)
 
     s = sub.add_parser("rank", help="rank candidate structures against 13C and/or 1H peaks or printed NMR text")
-    _sample_options(s, candidates_required=True)
+    _sample_options(s)
     s.add_argument("--json", action="store_true", help="print the full result as JSON")
     s.add_argument("--report", metavar="HTML", help="also write an HTML report")
     s.set_defaults(func=cmd_rank)
@@ -722,7 +746,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     s = sub.add_parser("report", help="write a self-contained HTML report for one sample or a batch")
     s.add_argument("--batch", metavar="CASES.jsonl", help="rank a JSONL batch and report every case")
-    _sample_options(s, candidates_required=False)
+    _sample_options(s)
     s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance of the report's inventory in ppm (default 5)")
     s.add_argument("-o", "--output", required=True, help="HTML file to write")
     s.set_defaults(func=cmd_report)
@@ -730,10 +754,14 @@ def build_parser() -> argparse.ArgumentParser:
     s = sub.add_parser("isomers", help="alternatives a reaction could have given: positional, ambident, tautomers")
     s.add_argument("smiles", nargs="?", help="the intended product (SMILES)")
     s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer")
-    s.add_argument("--reaction", metavar="SMARTS", help="a reaction SMARTS; every product is listed")
+    s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="a named reaction (snar, buchwald, suzuki, alkylation, "
+                   "n-alkylation, o-alkylation, acylation, sulfonylation; run on the reactants' NH/OH tautomers too) or a "
+                   "reaction SMARTS; every product is listed")
     s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
     s.add_argument("--limit", type=int, default=500, help="refuse to list more alternatives than this (default 500)")
     s.add_argument("--jsonl", action="store_true", help="one JSON object per alternative: smiles, relation, kind")
+    s.add_argument("--smi", action="store_true", help="'SMILES<TAB>relation' lines, the given structure first: a "
+                   "candidates file for rank")
     s.set_defaults(func=cmd_isomers)
 
     s = sub.add_parser("demo", help="run the bundled demo scenario (invented data) end to end")

@@ -110,3 +110,17 @@ def test_predict_takes_one_smiles_and_a_chemical_name_is_refused_as_a_name():
     assert r.returncode == 2 and "reads as a chemical name" in r.stderr and "Traceback" not in r.stderr
     r = run_in("7.90 2\n6.85 2\n3.80 3\n", "rank", "--peaks-1h", "-", "--candidates", "methyl 4-hydroxybenzoate")
     assert "reads as a chemical name" in r.stdout + r.stderr
+
+
+def test_rank_takes_the_products_of_a_named_reaction_as_candidates():
+    # SNAr of 2,4-dichloropyrimidine with morpholine (common practice: C4 or C2); the 13C list only carries the
+    # case (INVENTED values; which product wins is not asserted): both products are ranked, named by their site
+    r = run_in("13C NMR (101 MHz, CDCl3) δ 161.9, 161.0, 156.4, 101.9, 66.4, 44.1.", "rank", "--text", "-",
+               "--reaction", "snar", "--reactants", "Clc1ccnc(Cl)n1.C1COCCN1", "--json")
+    assert r.returncode == 0, r.stderr
+    names = [c["name"] for c in json.loads(r.stdout)["ranking"]]
+    assert len(names) == 2 and all(n.startswith("snar product at C") for n in names)
+    r = run_in("13C NMR δ 161.9, 66.4", "rank", "--text", "-")
+    assert r.returncode == 2 and "--reaction NAME --reactants" in r.stderr
+    r = run("isomers", "--reaction", "snar", "--reactants", "Clc1ccnc(Cl)n1.C1COCCN1", "--smi")
+    assert [ln.split("\t")[1].split(" product")[0] for ln in r.stdout.splitlines()] == ["snar", "snar"]

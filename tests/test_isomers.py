@@ -421,3 +421,27 @@ def test_sulfonyl_groups_move_between_n_and_o_like_acyl_groups():
     alts = isomers("Cc1ccc(S(=O)(=O)Nc2ccc(O)cc2)cc1", kinds=("ambident",))
     assert keys(alts) == {key("Cc1ccc(S(=O)(=O)Oc2ccc(N)cc2)cc1")} and alts[0].relation.startswith("O-sulfonyl instead of N-sulfonyl (Ts")
     assert key("O=c1ccccn1S(=O)(=O)C(F)(F)F") in keys(isomers("O=S(=O)(Oc1ccccn1)C(F)(F)F", kinds=("ambident",)))
+
+
+@pytest.mark.parametrize("name, reactants, products, site", [
+    # the regiochemistry questions of textbook reaction types (common practice), by hand enumeration:
+    # SNAr of 2,4-dichloropyrimidine with morpholine at C4 or C2
+    ("snar", "Clc1ccnc(Cl)n1.C1COCCN1", {"Clc1nccc(N2CCOCC2)n1", "Clc1ccnc(N2CCOCC2)n1"}, "at C4 of the pyrimidine"),
+    # Suzuki coupling of 2,4-dibromopyridine at C2 or C4
+    ("suzuki", "Brc1ccnc(Br)c1.OB(O)c1ccccc1", {"Brc1cc(-c2ccccc2)ccn1", "Brc1ccnc(-c2ccccc2)c1"}, "at C2 of the pyridine"),
+    # methylation of indazole at N1 or (through its 2H tautomer) N2
+    ("n-alkylation", "c1ccc2[nH]ncc2c1.CI", {"Cn1ncc2ccccc21", "Cn1cc2ccccc2n1"}, "at N2 of the indazole"),
+    # ethylation of 2-pyridone at N or (through 2-hydroxypyridine) O
+    ("alkylation", "O=c1cccc[nH]1.CCBr", {"CCn1ccccc1=O", "CCOc1ccccn1"}, "NH/OH tautomer"),
+    # acetylation of 4-aminophenol at N or O
+    ("acylation", "Nc1ccc(O)cc1.CC(=O)Cl", {"CC(=O)Nc1ccc(O)cc1", "CC(=O)Oc1ccc(N)cc1"}, "acylation product at"),
+])
+def test_named_reactions_give_every_regiochemical_outcome(name, reactants, products, site):
+    alts = isomers(None, kinds=(), reaction=name, reactants=reactants)
+    assert keys(alts) == {key(s) for s in products}
+    assert any(site in a.relation for a in alts) and all(a.relation.startswith(f"{name} product at") for a in alts)
+
+
+def test_an_unknown_reaction_name_lists_the_names():
+    with pytest.raises(InputError, match="neither a reaction SMARTS nor a named reaction \\(snar, buchwald, suzuki"):
+        isomers(None, kinds=(), reaction="heck", reactants="C.C")

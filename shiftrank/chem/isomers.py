@@ -32,6 +32,7 @@ also named by their conventional locants (:mod:`.locants`: 'moved from C2 to C3 
 """
 from __future__ import annotations
 
+import itertools
 import re
 from dataclasses import dataclass
 from functools import lru_cache
@@ -837,8 +838,16 @@ def _site_name(mol: Chem.Mol, i: int, atom: str, symbol: str) -> str:
 
 
 def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
+    """Every product of a reaction SMARTS, or of a named template (:mod:`.reactions`: 'snar', 'suzuki',
+    'alkylation' …; run on the reactants' NH/OH tautomers too), on the '.'-separated reactants."""
+    from .reactions import named_reaction, reaction_names
+
+    named = named_reaction(smarts) if not any(ch in smarts for ch in ">[") else None
+    if named is None and not any(ch in smarts for ch in ">["):
+        raise InputError(f"reaction '{smarts}': neither a reaction SMARTS nor a named reaction ({reaction_names()})")
+    name = smarts.strip().lower() if named is not None else None
     try:
-        rxn = AllChem.ReactionFromSmarts(smarts)
+        rxn = AllChem.ReactionFromSmarts(named.smarts if named is not None else smarts)
     except Exception as exc:  # noqa: BLE001 - RDKit's parse error, reported to the user
         raise InputError(f"reaction SMARTS '{smarts}': RDKit cannot read it ({exc})") from None
     if rxn is None or rxn.GetNumReactantTemplates() == 0:
@@ -846,21 +855,37 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     mols = [to_mol(s) for s in reactants.split(".")] if reactants else []
     n = rxn.GetNumReactantTemplates()
     if len(mols) != n:
-        raise InputError(f"reaction SMARTS '{smarts}' takes {n} reactant(s); --reactants gave {len(mols)} "
-                         "(separate them with '.')")
+        raise InputError(f"reaction {'template' if named else 'SMARTS'} '{smarts}' takes {n} reactant(s); --reactants "
+                         f"gave {len(mols)} (separate them with '.')")
+    # a named template also runs on each reactant's NH/OH tautomers (an NH-azole reacts at N1 or N2, a
+    # 2-pyridone at N or O); the enumerator keeps the atom order, so the sites name the given reactants' atoms
+    variants = [[(m, False)] + ([(t, True) for t, _ in _tautomers(m)][:MAX_REACTANT_TAUTOMERS]
+                                if named is not None and named.tautomers else []) for m in mols]
     out = []
-    for k, prods in enumerate(rxn.RunReactants(tuple(mols))):
-        for j, p in enumerate(prods):
-            # where the template acted: its mapped atoms, named by reactant and atom number ('reactant 1
-            # atom 5 (C)'), which is what tells regioisomeric outcomes apart
-            sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
-                            for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
-            where = "; at " + ", ".join(_site_name(mols[r], i, f"reactant {r + 1} atom {i}", sym)
-                                        for r, i, sym in sites) if sites else ""
-            m = _finish(Chem.RWMol(p))
-            if m is not None:
-                out.append((m, f"reaction product (outcome {k + 1}, product {j + 1}{where})"))
+    k = 0
+    for combo in itertools.islice(itertools.product(*variants), MAX_REACTANT_COMBINATIONS):
+        for prods in rxn.RunReactants(tuple(m for m, _ in combo)):
+            k += 1   # (outcomes counted over the reactants as given first, then their tautomers)
+            for j, p in enumerate(prods):
+                # where the template acted: its mapped atoms, named by reactant and atom number ('reactant 1
+                # atom 5 (C)'), which is what tells regioisomeric outcomes apart
+                sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
+                                for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
+                at = ", ".join(_site_name(mols[r], i, f"reactant {r + 1} atom {i}", sym) for r, i, sym in sites)
+                taut = "; from a reactant's NH/OH tautomer" if any(t for _, t in combo) else ""
+                m = _finish(Chem.RWMol(p))
+                if m is None:
+                    continue
+                if name:   # 'snar product at C4 of the pyrimidine (reactant 1 atom 1), reactant 2 atom 5 (N)'
+                    out.append((m, f"{name} product at {at or 'the template'}{taut}"))
+                else:
+                    out.append((m, f"reaction product (outcome {k}, product {j + 1}{'; at ' + at if at else ''}{taut})"))
     return out
+
+
+#: a named template runs on at most this many NH/OH tautomers of each reactant, and this many combinations
+MAX_REACTANT_TAUTOMERS = 6
+MAX_REACTANT_COMBINATIONS = 64
 
 
 def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None, reactants: str | None = None,
