@@ -168,3 +168,20 @@ def test_named_candidate_objects_and_a_bad_entry_in_one_case(tmp_path):
     assert [x["smiles"] for x in rows[:2]] == [PARA, META] and rows[1].get("name") == "meta ester"
     assert len(rows) == 4 and all("error" in x for x in rows[2:])
     assert "candidate 3: expected a SMILES string or an object with a 'smiles' string" in rows[2]["error"]
+
+
+def test_a_batch_case_may_name_a_reaction_whose_products_are_its_candidates(tmp_path):
+    # methylation of indazole at N1 or N2 (common practice); the 1H list only carries the case (INVENTED values)
+    import json as _json
+    from shiftrank.score.batch import run_batch
+    cases = tmp_path / "c.jsonl"
+    cases.write_text(_json.dumps({"id": "r", "peaks_1h": [{"shift": 8.0, "integral": 1}, {"shift": 4.1, "integral": 3}],
+                                  "reaction": "n-alkylation", "reactants": "c1ccc2[nH]ncc2c1.CI"}) + "\n"
+                     + _json.dumps({"id": "bad", "peaks_1h": [8.0], "reaction": "n-alkylation"}) + "\n")
+    out = tmp_path / "o.jsonl"
+    with out.open("w") as f:
+        run_batch(cases, f)
+    first, second = [_json.loads(x) for x in out.read_text().splitlines()]
+    assert sorted(c["name"].split(" (")[0] for c in first["ranking"]) == [
+        "n-alkylation product at N1 of the indazole", "n-alkylation product at N2 of the indazole"]
+    assert "reaction: give a reaction name or SMARTS with 'reactants'" in second["error"]

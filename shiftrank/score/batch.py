@@ -4,7 +4,8 @@ Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "peaks_1h": [{"shift
 "integral"?, "multiplicity"?, "j"?}], "text": "<printed paragraph(s)>", "candidates": [SMILES…],
 "formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?, "rotamers"?}``; any one of ``peaks``, ``peaks_1h``
 or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives;
-``"rotamers": true`` says the spectra show two forms of the compound; ``"file_13c"``/``"file_1h"`` name
+``"rotamers": true`` says the spectra show two forms of the compound; ``"reaction"`` (a named reaction or a reaction
+SMARTS) with ``"reactants"`` adds the reaction's products as candidates; ``"file_13c"``/``"file_1h"`` name
 peak files (text, CSV, JSON or JCAMP-DX, relative to the batch file) read in place of ``peaks``/``peaks_1h``.
 Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
 last with an ``"error"``).  A line that cannot be read becomes an output line with an ``"error"``.
@@ -23,7 +24,7 @@ from .ranking import rank_many
 CHUNK = 64
 MAX_LINE = 5_000_000   # characters in one JSON line (one case)
 FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers",
-          "rotamers")
+          "rotamers", "reaction", "reactants")
 
 
 def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
@@ -51,6 +52,8 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
         case = {k: obj.get(k) for k in FIELDS}
         case["id"] = case_id
         cands = case["candidates"]
+        if cands is None and case.get("reaction") is not None:
+            cands = case["candidates"] = []   # the reaction's products alone
         if isinstance(cands, list):
             cands = case["candidates"] = [_candidate_entry(c, k) for k, c in enumerate(cands, 1)]
         if not isinstance(cands, list):

@@ -998,6 +998,14 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
 
 def _stage(case: dict, nuclei_models) -> tuple:
     cands = case.get("candidates")
+    if case.get("reaction") is not None:   # the products of a named reaction or reaction SMARTS join the candidates
+        from ..chem.isomers import isomers
+
+        if not isinstance(case["reaction"], str) or not isinstance(case.get("reactants"), str):
+            raise InputError("reaction: give a reaction name or SMARTS with 'reactants' (SMILES separated by '.')")
+        products = [(a.relation, a.smiles) for a in isomers(None, kinds=(), reaction=case["reaction"],
+                                                             reactants=case["reactants"])]
+        cands = list(cands or []) + products if not isinstance(cands, (str, bytes)) else cands
     if isinstance(cands, (str, bytes)):
         raise InputError("candidates: expected a list of SMILES strings, got one string (give [\"SMILES\"] for one candidate)")
     if not isinstance(cands, (list, tuple)):
