@@ -225,7 +225,7 @@ def test_tautomers_keep_aromatic_rings_and_name_the_moved_h():
     # 2-hydroxypyridine's lactam (2-pyridone) is, with the H moved from O (atom 0) to N (atom 6)
     assert isomers("Oc1ccccc1", kinds=("tautomer",)) == []
     alts = isomers("Oc1ccccn1", kinds=("tautomer",))
-    assert keys(alts) == {key("O=c1cccc[nH]1")} and alts[0].relation == "tautomer: H moved from atom 0 to atom 6"
+    assert keys(alts) == {key("O=c1cccc[nH]1")} and alts[0].relation == "tautomer: H moved from O (atom 0) to N1 of the pyridine (atom 6)"
     indole = isomers("CC(=O)c1ccc2[nH]ccc2c1", kinds=("tautomer",))
     assert all(Chem.MolFromSmiles(a.smiles).GetRingInfo().NumRings() == 2 for a in indole)
     assert all(sum(at.GetIsAromatic() for at in Chem.MolFromSmiles(a.smiles).GetAtoms()) == 9 for a in indole)

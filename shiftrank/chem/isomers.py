@@ -764,6 +764,16 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+def _atom_name(mol: Chem.Mol, i: int) -> str:
+    """'N3 of the pyrimidine (atom 11)' for an atom of a parent ring with locants, else 'O (atom 10)'."""
+    for system in _ring_systems(mol):
+        if i in system:
+            loc = ring_locants(mol, system)
+            if loc and i in loc[1]:
+                return f"{loc[1][i]} of the {loc[0]} (atom {i})"
+    return f"{mol.GetAtomWithIdx(i).GetSymbol()} (atom {i})"
+
+
 def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """RDKit's tautomers of ``mol`` that keep at least its aromatic atoms (one that gives up an aromatic ring,
     a cyclohexadienone for a phenol or a 3H-indole for an indole, is not what a chemist proposes; common
@@ -782,8 +792,8 @@ def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             continue
         lost = [i for i, (x, y) in enumerate(zip(base_h, h)) if y < x]
         gained = [i for i, (x, y) in enumerate(zip(base_h, h)) if y > x]
-        label = (f"tautomer: H moved from atom {lost[0]} to atom {gained[0]}" if len(lost) == 1 and len(gained) == 1
-                 and len(h) == len(base_h) else "tautomer")
+        label = (f"tautomer: H moved from {_atom_name(mol, lost[0])} to {_atom_name(mol, gained[0])}"
+                 if len(lost) == 1 and len(gained) == 1 and len(h) == len(base_h) else "tautomer")
         out.append((m, label))
     return out
 
