@@ -286,6 +286,15 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     return f"{hill(element_counts(mol, _side(mol, root, ring_atom)))} group (bound through atom {root})"
 
 
+def _locant(mol: Chem.Mol, i: int) -> str | None:
+    """'C4 of the pyrimidine': atom ``i``'s locant in its parent ring (:mod:`.locants`), or None."""
+    for system in _ring_systems(mol):
+        if i in system:
+            loc = ring_locants(mol, system)
+            return f"{loc[1][i]} of the {loc[0]}" if loc and i in loc[1] else None
+    return None
+
+
 def _substituents(mol: Chem.Mol, system: set[int]) -> list[tuple[int, int, str]]:
     """(ring atom, substituent root atom, name) of every single-bonded, non-ring substituent of a ring system."""
     out = []
@@ -664,16 +673,6 @@ def _ring_nh(a: Chem.Atom) -> bool:
             and a.IsInRingSize(5))
 
 
-def _ring_n_name(mol: Chem.Mol, i: int) -> str:
-    """'ring N1 of the pyrazole' (a parent with locants, :mod:`.locants`) or 'ring N'."""
-    for system in _ring_systems(mol):
-        if i in system:
-            loc = ring_locants(mol, system)
-            if loc and i in loc[1]:
-                return f"ring {loc[1][i]} of the {loc[0]}"
-    return "ring N"
-
-
 def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """N- against O-acylation of a molecule with both an amine and a hydroxy group (an aminophenol, an amino
     alcohol): an acyl group on one heteroatom moved to every free N-H or O-H of the other kind or the same kind
@@ -733,10 +732,10 @@ def _acyl_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
                 if m is None:
                     continue
                 if to == "ring N":
-                    what = f"{kind} on {_ring_n_name(mol, t)} instead of the exocyclic {frm}"
+                    what = f"{kind} on ring {_locant(mol, t) or 'N'} instead of the exocyclic {frm}"
                     to_word = "N"
                 elif ring_source:
-                    what = f"{to}-{kind} instead of {kind} on {_ring_n_name(mol, h.GetIdx())}"
+                    what = f"{to}-{kind} instead of {kind} on ring {_locant(mol, h.GetIdx()) or 'N'}"
                     to_word = to
                 else:
                     what = (f"{to}-{kind} instead of {frm}-{kind}" if to != frm else
@@ -764,16 +763,6 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
-def _atom_name(mol: Chem.Mol, i: int) -> str:
-    """'N3 of the pyrimidine (atom 11)' for an atom of a parent ring with locants, else 'O (atom 10)'."""
-    for system in _ring_systems(mol):
-        if i in system:
-            loc = ring_locants(mol, system)
-            if loc and i in loc[1]:
-                return f"{loc[1][i]} of the {loc[0]} (atom {i})"
-    return f"{mol.GetAtomWithIdx(i).GetSymbol()} (atom {i})"
-
-
 def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """RDKit's tautomers of ``mol`` that keep at least its aromatic atoms (one that gives up an aromatic ring,
     a cyclohexadienone for a phenol or a 3H-indole for an indole, is not what a chemist proposes; common
@@ -792,7 +781,9 @@ def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             continue
         lost = [i for i, (x, y) in enumerate(zip(base_h, h)) if y < x]
         gained = [i for i, (x, y) in enumerate(zip(base_h, h)) if y > x]
-        label = (f"tautomer: H moved from {_atom_name(mol, lost[0])} to {_atom_name(mol, gained[0])}"
+        def name(i):   # 'N3 of the pyrimidine (atom 11)', 'O (atom 10)'
+            return f"{_locant(mol, i) or mol.GetAtomWithIdx(i).GetSymbol()} (atom {i})"
+        label = (f"tautomer: H moved from {name(lost[0])} to {name(gained[0])}"
                  if len(lost) == 1 and len(gained) == 1 and len(h) == len(base_h) else "tautomer")
         out.append((m, label))
     return out
@@ -836,17 +827,6 @@ def _dicarbonyl_carbon(mol: Chem.Mol, i: int) -> bool:
     return acyl(a) and any(sum(acyl(m) for m in n.GetNeighbors()) >= 2 for n in a.GetNeighbors())
 
 
-def _site_name(mol: Chem.Mol, i: int, atom: str, symbol: str) -> str:
-    """'C4 of the pyrimidine (reactant 1 atom 1)' for an atom of a parent ring with locants (:mod:`.locants`),
-    else 'reactant 1 atom 1 (C)'."""
-    for system in _ring_systems(mol):
-        if i in system:
-            loc = ring_locants(mol, system)
-            if loc and i in loc[1]:
-                return f"{loc[1][i]} of the {loc[0]} ({atom})"
-    return f"{atom} ({symbol})"
-
-
 def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     """Every product of a reaction SMARTS, or of a named template (:mod:`.reactions`: 'snar', 'suzuki',
     'alkylation' …; run on the reactants' NH/OH tautomers too), on the '.'-separated reactants."""
@@ -881,7 +861,9 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
                 # atom 5 (C)'), which is what tells regioisomeric outcomes apart
                 sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
                                 for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
-                at = ", ".join(_site_name(mols[r], i, f"reactant {r + 1} atom {i}", sym) for r, i, sym in sites)
+                # 'C4 of the pyrimidine (reactant 1 atom 1)', 'reactant 2 atom 5 (N)'
+                at = ", ".join(f"{_locant(mols[r], i)} (reactant {r + 1} atom {i})" if _locant(mols[r], i) else
+                               f"reactant {r + 1} atom {i} ({sym})" for r, i, sym in sites)
                 taut = "; from a reactant's NH/OH tautomer" if any(t for _, t in combo) else ""
                 m = _finish(Chem.RWMol(p))
                 if m is None:
