@@ -751,7 +751,12 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("-o", "--output", required=True, help="HTML file to write")
     s.set_defaults(func=cmd_report)
 
-    s = sub.add_parser("isomers", help="alternatives a reaction could have given: positional, ambident, tautomers")
+    from .chem.reactions import REACTIONS
+
+    s = sub.add_parser("isomers", help="alternatives a reaction could have given: positional, ambident, tautomers",
+                       formatter_class=argparse.RawDescriptionHelpFormatter,
+                       epilog="named reactions (--reaction NAME; also for rank):\n"
+                              + "\n".join(f"  {k:<14} {r.what}" for k, r in REACTIONS.items()))
     s.add_argument("smiles", nargs="?", help="the intended product (SMILES)")
     s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer")
     s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="a named reaction (snar, buchwald, suzuki, alkylation, "
