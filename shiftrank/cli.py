@@ -321,7 +321,7 @@ def _case_from_args(args) -> tuple[dict, dict]:
 
         if not args.peaks:
             raise InputError("--dept135 gives the multiplicities of a 13C list: give the 13C list with --peaks too")
-        lists["13C"] = case["peaks"] = merge_dept135(lists["13C"], read_peaks(args.dept135, solvent=args.solvent))
+        lists["13C"] = case["peaks"] = merge_dept135(lists["13C"], read_peaks(args.dept135, solvent=args.solvent, dept135=True))
     if args.peaks_1h:
         lists["1H"] = case["peaks_1h"] = read_peaks(args.peaks_1h, nucleus="1H", solvent=args.solvent)
     if args.text:

@@ -435,3 +435,28 @@ def test_a_bruker_processed_data_set_is_read_like_a_spectrum(tmp_path):
         shiftrank.read_peaks(tmp_path / "11", nucleus="13C")
     with pytest.raises(InputError, match="Bruker data set"):
         shiftrank.read_peaks(tmp_path, nucleus="13C")
+
+
+# 4-ethylanisole's 13C lines (from memory): C 157.7, C 136.4, CH 128.7, CH 113.8, OCH3 55.3, CH2 28.0, CH3 15.9;
+# a DEPT-135 spectrum shows the protonated ones, CH2 pointing down (common practice)
+ANISOLE_13C = "157.7\n136.4\n128.7\n113.8\n55.3\n28.0\n15.9\n"
+ANISOLE_DEPT = [(128.7, 900), (113.8, 900), (55.3, 500), (28.0, -450), (15.9, 400)]
+
+
+def test_a_dept135_trace_reads_its_downward_ch2_lines(tmp_path):
+    from shiftrank.inputs.peaks import merge_dept135, parse_peaks
+    # a Bruker set whose pulse program is dept135: read signed without being told
+    exp = _bruker_set(tmp_path, ANISOLE_DEPT, "13C", 100.6, 220.0, 230.0, 32768, 0.012, 3.0)
+    acqus = exp / "acqus"
+    acqus.write_text(acqus.read_text().replace("##END=", "##$PULPROG= <dept135>\n##END="))
+    dept = shiftrank.read_peaks(exp, nucleus="13C")
+    assert dept.dept135 and {round(p.shift): p.multiplicity for p in dept.peaks} == {
+        129: "CH/CH3", 114: "CH/CH3", 55: "CH/CH3", 28: "CH2", 16: "CH/CH3"}
+    merged = merge_dept135(parse_peaks(ANISOLE_13C), dept)
+    assert {p.shift: p.multiplicity for p in merged.peaks} == {
+        157.7: "C", 136.4: "C", 128.7: "CH/CH3", 113.8: "CH/CH3", 55.3: "CH/CH3", 28.0: "CH2", 15.9: "CH/CH3"}
+    # a JCAMP-DX trace given as the DEPT-135 list (--dept135) is read signed too; as a plain 13C file it is not
+    x, y = _trace(ANISOLE_DEPT, -5, 220, 32768, 0.012, 3.0)
+    f = _write(tmp_path / "dept.jdx", _header("13C", 100.6, x[0], x[-1], len(y)), _affn(x, y))
+    assert {round(p.shift): p.multiplicity for p in shiftrank.read_peaks(f, dept135=True).peaks}[28] == "CH2"
+    assert 28 not in {round(p.shift) for p in shiftrank.read_peaks(f).peaks}

@@ -625,15 +625,17 @@ def _read_file(path: str | Path) -> tuple[Path, str]:
     return Path(path), read_user_text(path, "a peak list")
 
 
-def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None) -> PeakList:
-    """Read a peak file (.txt, .csv, .tsv, .json; a JCAMP-DX peak table or 1D spectrum, .jdx/.dx, whose
-    peaks are picked; anything else is read as text), or standard input for '-'."""
+def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = None, dept135: bool = False) -> PeakList:
+    """Read a peak file (.txt, .csv, .tsv, .json; a JCAMP-DX peak table or 1D spectrum, .jdx/.dx, or a Bruker
+    processed data set, whose peaks are picked; anything else is read as text), or standard input for '-'.
+    ``dept135``: the file is a DEPT-135 spectrum (a trace's lines below the baseline are picked too, as CH2; a
+    trace whose title or pulse program says DEPT is read so anyway)."""
     from .spectra import bruker_pdata, is_jcamp, read_bruker, read_jcamp   # (spectra builds on this module)
 
     if str(path) != "-" and is_jcamp(path):
-        return read_jcamp(path, nucleus, solvent)
+        return read_jcamp(path, nucleus, solvent, signed=dept135 or None)
     if str(path) != "-" and bruker_pdata(path) is not None:
-        return read_bruker(path, nucleus, solvent)
+        return read_bruker(path, nucleus, solvent, signed=dept135 or None)
     p, text = _read_file(path)   # ('-': standard input, a list or a printed paragraph, pasted or piped)
     if str(path) == "-" and not text.strip():
         raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")

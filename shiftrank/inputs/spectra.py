@@ -41,7 +41,7 @@ import numpy as np
 
 from ..errors import InputError
 from .files import read_user_text
-from .peaks import RANGES, Peak, PeakList, check_count, flag_solvent, normalise_1h_multiplicity
+from .peaks import RANGES, Peak, PeakList, check_count, dept135_from_signs, flag_solvent, normalise_1h_multiplicity
 from .solvents import normalise_solvent, solvent_signals
 
 #: file name endings read as JCAMP-DX
@@ -102,7 +102,7 @@ def _bruker_text(value) -> str | None:
 
 
 def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = None,
-                min_snr: float | None = None) -> PeakList:
+                min_snr: float | None = None, signed: bool | None = None) -> PeakList:
     """Peaks picked from a Bruker processed 1D spectrum (the real part, ``1r``, with its ``procs``; the
     experiment's ``acqus`` for the nucleus and solvent when present), read with nmrglue.  The ppm scale is
     the processing parameters': the first point at ``OFFSET`` ppm, ``SW_p`` Hz over ``SI`` points at ``SF`` MHz
@@ -140,7 +140,9 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
     if found is not None and found != nucleus:
         raise InputError(f"{where}: the data set holds a {found} spectrum (NUC1 {found}), given as {nucleus}")
     trace = Trace(ppm[::-1].copy(), y[::-1].copy(), sf)
-    picked, height, width = pick_lines(trace, nucleus, min_snr)
+    if signed is None:   # a DEPT pulse program ('dept135')
+        signed = nucleus == "13C" and "dept" in str(acqus.get("PULPROG", "")).lower()
+    picked, height, width = pick_lines(trace, nucleus, min_snr, signed=bool(signed))
     what = (f"Bruker {nucleus} spectrum ({pdir.parent.parent.name}/pdata/{pdir.name}), {len(y):,} points: {len(picked)} "
             f"lines picked above {min_snr or MIN_SNR[nucleus]:g}× the noise")
     return _lines_to_peaklist(picked, height, width, [None] * len(picked), trace, nucleus, sf,
@@ -215,7 +217,7 @@ def _float(block: dict, key: str, where: str) -> float | None:
 
 
 def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = None,
-               min_snr: float | None = None) -> PeakList:
+               min_snr: float | None = None, signed: bool | None = None) -> PeakList:
     """Peaks of a JCAMP-DX file (a peak table, or a processed 1D spectrum whose peaks are picked).
 
     Raises :class:`~shiftrank.errors.InputError` naming the file and the problem (not JCAMP-DX, another
@@ -256,7 +258,10 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     else:
         trace = (_xypoints(block, mhz, where) if "XYPOINTS" in block and "XYDATA" not in block and "DATATABLE" not in block
                  else _trace(p, block, mhz, where))
-        ppm, height, width = pick_lines(trace, nucleus, min_snr)
+        if signed is None:   # a DEPT spectrum says so in its title or pulse sequence
+            signed = nucleus == "13C" and bool(re.search(r"dept", " ".join(
+                (b.get(k) or "") for b in (block, head) for k in ("TITLE", ".PULSESEQUENCE")), re.I))
+        ppm, height, width = pick_lines(trace, nucleus, min_snr, signed=bool(signed))
         letters = [None] * len(ppm)
         what = (f"JCAMP-DX {nucleus} spectrum, {len(trace.y):,} points: {len(ppm)} lines picked above "
                 f"{min_snr or MIN_SNR[nucleus]:g}× the noise")
@@ -282,13 +287,15 @@ def _lines_to_peaklist(ppm, height, width, letters, trace, nucleus: str, mhz, fi
     letters = [m for m, k in zip(letters, keep) if k]
     if not len(ppm):
         raise InputError(f"{where}: no {nucleus} peak within {lo:g}…{hi:g} ppm")
+    dept = False
     if nucleus == "13C":
         peaks = [Peak(round(float(x), 3), None, round(float(h), 4), line=None) for x, h in zip(ppm, height)]
+        dept = dept135_from_signs(peaks, notes, where)   # lines picked below the baseline: a DEPT-135 trace
     else:
         peaks = _multiplets(ppm, height, width, letters, mhz, trace, notes, where)
     check_count(len(peaks), where)
     pl = PeakList(nucleus, sorted(peaks, key=lambda q: q.shift), where, notes, mhz,
-                  trace=thumbnail(trace) if trace is not None else None)
+                  trace=thumbnail(trace) if trace is not None else None, dept135=dept)
     key = normalise_solvent(solvent) if solvent else normalise_solvent(file_solvent) if file_solvent else None
     if file_solvent and key is None and not solvent:
         notes.append(f"{where}: solvent '{file_solvent}' has no residual-signal table here; its signals are not set aside")
@@ -511,9 +518,17 @@ def noise_sigma(y: np.ndarray) -> float:
     return float(s)
 
 
-def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None):
+def pick_lines(trace: Trace, nucleus: str, min_snr: float | None = None, signed: bool = False):
     """(ppm, height, width in ppm) of the lines standing ``min_snr`` × σ above the baseline and as much
-    above the lower of their two neighbouring minima (so the noise on a strong line's flank is no line)."""
+    above the lower of their two neighbouring minima (so the noise on a strong line's flank is no line).
+    ``signed`` (a DEPT-135 trace, whose CH2 lines point down): the lines below the baseline too, with negative
+    heights."""
+    if signed:
+        up = pick_lines(trace, nucleus, min_snr)
+        down = pick_lines(Trace(trace.ppm, -trace.y, trace.mhz), nucleus, min_snr)
+        order = np.argsort(np.concatenate([up[0], down[0]]))
+        return (np.concatenate([up[0], down[0]])[order], np.concatenate([up[1], -down[1]])[order],
+                np.concatenate([up[2], down[2]])[order])
     from scipy.signal import find_peaks
 
     y, x = trace.y, trace.ppm
