@@ -445,3 +445,15 @@ def test_named_reactions_give_every_regiochemical_outcome(name, reactants, produ
 def test_an_unknown_reaction_name_lists_the_names():
     with pytest.raises(InputError, match="neither a reaction SMARTS nor a named reaction \\(snar, buchwald, suzuki"):
         isomers(None, kinds=(), reaction="heck", reactants="C.C")
+
+
+def test_electrophilic_substitution_templates_offer_every_ring_ch_named_by_position():
+    # bromination of 5-methoxyindole: C2, C3, C4, C6 or C7 (hand count of its ring CH); nitration of 2-methylbenzoic
+    # acid at its four ring CH, named against the ring's substituents (common practice)
+    alts = isomers(None, kinds=(), reaction="bromination", reactants="COc1ccc2[nH]ccc2c1")
+    assert sorted(a.relation.split(" of the")[0][-2:] for a in alts) == ["C2", "C3", "C4", "C6", "C7"]
+    rel = {a.relation for a in isomers(None, kinds=(), reaction="nitration", reactants="Cc1ccccc1C(=O)O")}
+    assert "nitration product at reactant 1 atom 4 (C; para to CH3, meta to COOH)" in rel and len(rel) == 4
+    # an SNAr on a benzene names the position against the nitro group
+    snar = {a.relation for a in isomers(None, kinds=(), reaction="snar", reactants="Fc1ccc([N+](=O)[O-])c(F)c1.C1COCCN1")}
+    assert any("(C; para to NO2, meta to F)" in r for r in snar) and any("ortho to NO2" in r for r in snar)

@@ -286,6 +286,16 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     return f"{hill(element_counts(mol, _side(mol, root, ring_atom)))} group (bound through atom {root})"
 
 
+def _ring_relation(mol: Chem.Mol, i: int) -> str:
+    """'; ortho to CH3, meta to CO2H' for a six-membered aromatic ring atom of a reactant, against that ring's
+    substituents (not counting one on ``i`` itself); '' otherwise."""
+    for system in _ring_systems(mol):
+        if i in system:
+            rel = _relative(mol, system, i, [(r, name) for r, _, name in _substituents(mol, system) if r != i])
+            return f"; {rel[4:]}" if rel.startswith("now ") else ""
+    return ""
+
+
 def _locant(mol: Chem.Mol, i: int) -> str | None:
     """'C4 of the pyrimidine': atom ``i``'s locant in its parent ring (:mod:`.locants`), or None."""
     for system in _ring_systems(mol):
@@ -861,9 +871,10 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
                 # atom 5 (C)'), which is what tells regioisomeric outcomes apart
                 sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
                                 for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
-                # 'C4 of the pyrimidine (reactant 1 atom 1)', 'reactant 2 atom 5 (N)'
+                # 'C4 of the pyrimidine (reactant 1 atom 1)', 'reactant 1 atom 2 (C; ortho to CH3, meta to CO2H)',
+                # 'reactant 2 atom 5 (N)'
                 at = ", ".join(f"{_locant(mols[r], i)} (reactant {r + 1} atom {i})" if _locant(mols[r], i) else
-                               f"reactant {r + 1} atom {i} ({sym})" for r, i, sym in sites)
+                               f"reactant {r + 1} atom {i} ({sym}{_ring_relation(mols[r], i)})" for r, i, sym in sites)
                 taut = "; from a reactant's NH/OH tautomer" if any(t for _, t in combo) else ""
                 m = _finish(Chem.RWMol(p))
                 if m is None:

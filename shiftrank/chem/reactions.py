@@ -47,6 +47,12 @@ REACTIONS = {
     "acylation": NamedReaction(
         "[#7,#8;!H0;!$(*-C=O):1].[C:2](=[O:3])-[Cl,Br,$(O-C=O),$(O-c),OH]>>[*:1]-[C:2]=[O:3]",
         "acylation of an N- or O-H by an acid chloride, anhydride, aryl ester or acid"),
+    # electrophilic substitution of an aromatic C-H (one reactant, the substrate): every ring CH a reagent could
+    # have taken
+    "bromination": NamedReaction("[cH:1]>>[c:1]-Br", "an aromatic C-H brominated (Br2, NBS)", tautomers=False),
+    "chlorination": NamedReaction("[cH:1]>>[c:1]-Cl", "an aromatic C-H chlorinated (Cl2, NCS)", tautomers=False),
+    "iodination": NamedReaction("[cH:1]>>[c:1]-I", "an aromatic C-H iodinated (I2, NIS)", tautomers=False),
+    "nitration": NamedReaction("[cH:1]>>[c:1]-[N+](=O)[O-]", "an aromatic C-H nitrated", tautomers=False),
     "sulfonylation": NamedReaction(
         "[#7,#8;!H0:1].[S:2](=[O:3])(=[O:4])-[F,Cl]>>[*:1]-[S:2](=[O:3])=[O:4]",
         "sulfonylation of an N- or O-H by a sulfonyl chloride or fluoride"),
