@@ -642,6 +642,7 @@ ROTAMERS_HELP = ("the spectra show two forms (amide or carbamate rotamers, an is
 
 def _sample_options(s) -> None:
     """The options that describe one sample and its candidates: the same for ``rank`` and ``report``."""
+    from .chem.reactions import reaction_names
     s.add_argument("--peaks", help="13C peak list (.txt, .csv, .json) or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
     s.add_argument("--peaks-1h", help="1H peak list: shift or range, integral, multiplicity, J values (.txt, .csv, .json), "
                    "or JCAMP-DX spectrum / peak table (.jdx, .dx), or a Bruker processed data set (its folder, pdata/N or 1r); - reads stdin")
@@ -662,8 +663,7 @@ def _sample_options(s) -> None:
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
                    help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
     s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="add every product of this reaction on --reactants as a "
-                   "candidate: a named reaction (snar, buchwald, suzuki, alkylation, n-alkylation, o-alkylation, acylation, "
-                   "sulfonylation) or a reaction SMARTS")
+                   f"candidate: a named reaction ({reaction_names()}; see isomers --help) or a reaction SMARTS")
     s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
 
 
@@ -759,9 +759,8 @@ def build_parser() -> argparse.ArgumentParser:
                               + "\n".join(f"  {k:<14} {r.what}" for k, r in REACTIONS.items()))
     s.add_argument("smiles", nargs="?", help="the intended product (SMILES)")
     s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer")
-    s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="a named reaction (snar, buchwald, suzuki, alkylation, "
-                   "n-alkylation, o-alkylation, acylation, sulfonylation; run on the reactants' NH/OH tautomers too) or a "
-                   "reaction SMARTS; every product is listed")
+    s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="a named reaction (listed below; run on the reactants' "
+                   "NH/OH tautomers too) or a reaction SMARTS; every product is listed")
     s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
     s.add_argument("--limit", type=int, default=500, help="refuse to list more alternatives than this (default 500)")
     s.add_argument("--jsonl", action="store_true", help="one JSON object per alternative: smiles, relation, kind")
