@@ -198,9 +198,8 @@ def instrument_nucleus(path: str | Path) -> str:
                 m = re.search(r"^##\$NUC1=\s*<?([^>\s]+)", acqus.read_text(errors="replace"), re.M)
                 found = m.group(1) if m else None
         elif is_jcamp(path):
-            head = Path(path).read_text(errors="replace")[:20000]
-            m = re.search(r"^##\.OBSERVE\s*NUCLEUS=\s*\^?(\d+)\s*([A-Za-z]{1,2})", head, re.M | re.I)
-            found = m.group(1) + m.group(2).capitalize() if m else None
+            blocks = _blocks(Path(path).read_text(errors="replace"))
+            found = next((n for n in map(_nucleus, blocks) if n), None)
     except OSError:
         found = None
     return found if found in ("1H", "13C") else "13C"
