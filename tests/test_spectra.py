@@ -460,3 +460,9 @@ def test_a_dept135_trace_reads_its_downward_ch2_lines(tmp_path):
     f = _write(tmp_path / "dept.jdx", _header("13C", 100.6, x[0], x[-1], len(y)), _affn(x, y))
     assert {round(p.shift): p.multiplicity for p in shiftrank.read_peaks(f, dept135=True).peaks}[28] == "CH2"
     assert 28 not in {round(p.shift) for p in shiftrank.read_peaks(f).peaks}
+
+
+def test_peaks_without_nucleus_reads_an_instrument_file_as_the_nucleus_it_declares(tmp_path):
+    f = _anisole_file(tmp_path)   # ##.OBSERVE NUCLEUS= ^1H
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "peaks", str(f)], capture_output=True, text=True)
+    assert out.returncode == 0 and "JCAMP-DX 1H spectrum" in out.stdout and " q " in out.stdout
