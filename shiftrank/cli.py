@@ -561,12 +561,17 @@ def _one_list(args, which: str, nucleus: str, texts: dict):
 
 def _compare_nuclei(args) -> list[str]:
     """The nuclei ``compare`` pairs: the one asked for; without --nucleus, each one both sides print when both
-    are printed text (a paragraph usually has 1H and 13C), else 13C."""
+    are printed text (a paragraph usually has 1H and 13C), the one an instrument file declares, else 13C."""
     if args.nucleus:
         return [args.nucleus]
     if args.sample_text and args.reference_text and not args.sample and not args.reference:
         return ["13C", "1H"]
-    return ["13C"]
+    from .inputs.spectra import bruker_pdata, instrument_nucleus, is_jcamp
+
+    # an instrument file (JCAMP-DX, a Bruker data set) says which nucleus it holds
+    declared = {instrument_nucleus(f) for f in (args.sample, args.reference)
+                if f and f != "-" and (is_jcamp(f) or bruker_pdata(f) is not None)}
+    return [declared.pop()] if len(declared) == 1 else ["13C"]
 
 
 def cmd_compare(args) -> int:

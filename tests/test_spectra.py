@@ -466,3 +466,17 @@ def test_peaks_without_nucleus_reads_an_instrument_file_as_the_nucleus_it_declar
     f = _anisole_file(tmp_path)   # ##.OBSERVE NUCLEUS= ^1H
     out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "peaks", str(f)], capture_output=True, text=True)
     assert out.returncode == 0 and "JCAMP-DX 1H spectrum" in out.stdout and " q " in out.stdout
+
+
+def test_compare_reads_an_instrument_file_as_its_declared_nucleus(tmp_path):
+    # the 4-ethylanisole 1H file (module text) against its own printed values: compared as 1H without --nucleus
+    f = _anisole_file(tmp_path)
+    ref = tmp_path / "ref.txt"
+    ref.write_text("1H NMR (400 MHz, CDCl3) δ 7.10 (d, J = 8.6 Hz, 2H), 6.83 (d, J = 8.6 Hz, 2H), 3.79 (s, 3H), "
+                   "2.59 (q, J = 7.6 Hz, 2H), 1.21 (t, J = 7.6 Hz, 3H).", encoding="utf-8")
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "compare", "--sample", str(f), "--reference-text", str(ref)],
+                         capture_output=True, text=True)
+    assert out.returncode == 0 and "1H: consistent with the reference" in out.stdout
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "rank", "--peaks", str(f), "--candidates", "CCO"],
+                         capture_output=True, text=True)
+    assert out.returncode == 2 and "goes to --peaks-1h" in out.stderr

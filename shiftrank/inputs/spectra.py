@@ -138,7 +138,7 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
     found = _bruker_text(acqus.get("NUC1")) or _bruker_text(procs.get("AXNUC"))
     found = found if found in ("1H", "13C") else (None if found in (None, "off") else found)
     if found is not None and found != nucleus:
-        raise InputError(f"{where}: the data set holds a {found} spectrum (NUC1 {found}), given as {nucleus}")
+        raise InputError(f"{where}: the data set holds a {found} spectrum (NUC1 {found}), given as {nucleus}{_nucleus_hint(found)}")
     trace = Trace(ppm[::-1].copy(), y[::-1].copy(), sf)
     if signed is None:   # a DEPT pulse program ('dept135')
         signed = nucleus == "13C" and "dept" in str(acqus.get("PULPROG", "")).lower()
@@ -184,6 +184,12 @@ def _nucleus(block: dict) -> str | None:
     if not m:
         return None
     return m.group(1) + m.group(2).capitalize()
+
+
+def _nucleus_hint(found: str) -> str:
+    """Which option takes a spectrum of nucleus ``found``."""
+    return {"1H": " (a 1H spectrum goes to --peaks-1h, 'peaks_1h' or 'file_1h')",
+            "13C": " (a 13C spectrum goes to --peaks, 'peaks' or 'file_13c')"}.get(found, "")
 
 
 def instrument_nucleus(path: str | Path) -> str:
@@ -246,7 +252,8 @@ def read_jcamp(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
     found = _nucleus(block) or _nucleus(head)
     if found is not None and found != nucleus:
         raise InputError(f"{where}: the file holds a {found} spectrum (##.OBSERVE NUCLEUS= "
-                         f"{(block.get('.OBSERVENUCLEUS') or head.get('.OBSERVENUCLEUS') or '').strip()}), given as {nucleus}")
+                         f"{(block.get('.OBSERVENUCLEUS') or head.get('.OBSERVENUCLEUS') or '').strip()}), given as {nucleus}"
+                         f"{_nucleus_hint(found)}")
     mhz = _float(block, ".OBSERVEFREQUENCY", where) or _float(head, ".OBSERVEFREQUENCY", where)
     file_solvent = (block.get(".SOLVENTNAME") or head.get(".SOLVENTNAME") or "").strip() or None
     notes: list[str] = []
