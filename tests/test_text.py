@@ -640,3 +640,13 @@ def test_a_one_value_section_followed_by_the_next_sentence_reads_its_value():
     t = read_nmr_text("19F NMR (376 MHz, CDCl3) δ −65.2. HRMS (ESI) m/z calcd for C8H7F3NO2 [M+H]+ 206.0423, "
                       "found 206.0427.")
     assert [(s.nucleus, [p.shift for p in s.peaks]) for s in t.sections] == [("19F", [-65.2])]
+
+
+@pytest.mark.parametrize("said", ["a 3:1 mixture of regioisomers", "an inseparable mixture of N1 and N2 isomers",
+                                  "mixture of anomers", "a regioisomeric mixture", "mixture of cis/trans isomers"])
+def test_a_paragraph_saying_it_shows_a_mixture_of_isomers_marks_two_forms(said):
+    # how experimental sections state an isomer mixture (common practice): the lines of the second form may stand
+    # beside the first's, as for rotamers
+    t = read_nmr_text(f"Obtained as {said}. 1H NMR (400 MHz, CDCl3) δ 7.95 (s, 1H), 7.90 (s, 1H), 4.10 (s, 3H), "
+                      "4.05 (s, 3H).")
+    assert t.section("1H").doubled

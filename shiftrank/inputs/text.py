@@ -256,9 +256,9 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
 
 
 #: words saying that a spectrum shows two forms of the compound
-_DOUBLED = re.compile(r"\brotamer|\bconformers?\b|\bmixture\s+of\s+(?:\w+\s+){0,2}(?:isomers|diastereo(?:iso)?mers|"
-                      r"rotamers|conformers|tautomers|atropisomers|[EZ]\s*/\s*[EZ])|\b[EZ]\s*/\s*[EZ][\s-]+(?:isomers|mixture)|"
-                      r"\b(?:isomeric|diastereomeric|rotameric|conformational)\s+mixture", re.I)
+_DOUBLED = re.compile(r"\brotamer|\bconformers?\b|\bmixture\s+of\s+(?:[\w/]+\s+){0,3}(?:(?:regio-?)?isomers|diastereo(?:iso)?mers|"
+                      r"rotamers|conformers|tautomers|atropisomers|anomers|epimers|[EZ]\s*/\s*[EZ])|\b[EZ]\s*/\s*[EZ][\s-]+(?:isomers|mixture)|"
+                      r"\b(?:isomeric|diastereomeric|rotameric|conformational|regioisomeric)\s+mixture", re.I)
 
 
 def _coupling(p: PrintedPeak) -> str | None:
@@ -781,7 +781,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
         if sec.nucleus not in ("1H", "13C") and sec.peaks:
             sec.notes.append(f"{sec.nucleus} section read ({count(len(sec.peaks), 'peak')}) but not used for ranking")
         out.sections.append(sec)
-    said = next((s.doubled for s in out.sections if s.doubled), None)
+    # (a sentence before the first header may say it too: 'obtained as a 3:1 mixture of regioisomers. 1H NMR …')
+    said = next((s.doubled for s in out.sections if s.doubled), None) or (
+        m.group(0) if (m := _DOUBLED.search(pre)) else None)
     for s in out.sections:   # the compound shows its two forms in every spectrum of the paragraph
         if said and s.doubled is None and s.nucleus in ("1H", "13C"):
             s.doubled = said
