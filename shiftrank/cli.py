@@ -313,7 +313,7 @@ def _case_from_args(args) -> tuple[dict, dict]:
         raise InputError(f"{' and '.join(piped)} both read standard input ('-'): one of them can; give the other as a file")
     lists = {}
     case = {"formula": args.formula, "mass": getattr(args, "mass", None), "solvent": args.solvent,
-            "rotamers": bool(getattr(args, "rotamers", False))}
+            "rotamers": bool(getattr(args, "rotamers", False)), "mixture": bool(getattr(args, "mixture", False))}
     if args.peaks:
         lists["13C"] = case["peaks"] = read_peaks(args.peaks, solvent=args.solvent)
     if getattr(args, "dept135", None):
@@ -350,7 +350,7 @@ def _rank_sample(args, case: dict):
     return rank(case.get("peaks"), cands, formula=args.formula, mass=args.mass,
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
-                hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"])
+                hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"], mixture=case["mixture"])
 
 
 def _write_sample_report(args, case: dict, result, path: str) -> None:
@@ -663,6 +663,9 @@ def _sample_options(s) -> None:
     s.add_argument("--adduct", choices=list(ADDUCTS), help="the ion --mz was measured as (default: any common one)")
     s.add_argument("--solvent", help="NMR solvent; its residual signals are set aside")
     s.add_argument("--rotamers", action="store_true", help=ROTAMERS_HELP)
+    s.add_argument("--mixture", action="store_true", help="the sample is a mixture of two isomers (a reaction's two "
+                   "products): lines are read as for --rotamers, and a note names the candidate that best explains the "
+                   "13C lines the best one leaves")
     s.add_argument("--keep-mismatches", action="store_true",
                    help="do not demote candidates contradicting formula, mass or m/z")
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",

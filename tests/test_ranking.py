@@ -320,3 +320,23 @@ def test_a_printed_19f_section_is_compared_with_each_candidates_fluorine_environ
     # a candidate without fluorine is told so
     r = rank(text=text, candidates=["COc1ccc(Cl)cc1Cl"])
     assert "19F: the text lists 2 signals but the candidate has no fluorine" in r.best.flags
+
+
+# NMRShiftDB2 13C lists (dev_cases_regio.jsonl.gz, records 20209552 and 20208179): 3,4- and 2,5-difluoroacetophenone
+DIFLUORO_34 = [26.3, 117.16, 117.56, 125.5, 134.63, 150.57, 153.78, 195.28]
+DIFLUORO_25 = [31.27, 116.43, 118.29, 121.48, 126.69, 158.31, 158.65, 194.51]
+DIFLUORO_ISOMERS = ["CC(=O)c1ccc(F)c(F)c1", "CC(=O)c1cccc(F)c1F", "CC(=O)c1cc(F)ccc1F", "CC(=O)c1cc(F)cc(F)c1",
+                    "CC(=O)c1ccc(F)cc1F", "CC(=O)c1c(F)cccc1F"]
+
+
+def test_a_mixture_of_two_isomers_names_the_second_form():
+    # the two database lists merged, as a 1:1 mixture's printed list would read: the best candidate is one of the
+    # pair and the note names the other as the second form (benchmarks/bench_mixtures.py measures this rule)
+    r = rank(DIFLUORO_34 + DIFLUORO_25, DIFLUORO_ISOMERS, mixture=True)
+    assert r.best.smiles == "CC(=O)c1ccc(F)c(F)c1"
+    note = next(n for n in r.notes if "two isomers" in n)
+    assert "fit CC(=O)c1cc(F)ccc1F best as the second" in note
+    # a paragraph saying so does the same; rotamers (one compound in two forms) do not ask for a second candidate
+    text = "13C NMR (101 MHz, CDCl3, 1:1 mixture of regioisomers) δ " + ", ".join(map(str, DIFLUORO_34 + DIFLUORO_25))
+    assert any("fit CC(=O)c1cc(F)ccc1F best" in n for n in rank(text=text, candidates=DIFLUORO_ISOMERS).notes)
+    assert not any("two isomers" in n for n in rank(DIFLUORO_34 + DIFLUORO_25, DIFLUORO_ISOMERS, rotamers=True).notes)

@@ -79,6 +79,7 @@ class PeakList:
     printed: bool = False             # read from a printed characterisation paragraph (the ranking has costs of its own for it)
     solvent: str | None = None        # the solvent's key (solvents.SOLVENTS), when known
     dept135: bool = False             # 13C: a DEPT-135 list (signed intensities): no quaternary carbon can show
+    two_forms: str | None = None      # the spectrum shows two forms, as said ('mixture of rotamers', 'mixture of isomers')
 
     @property
     def shifts(self) -> list[float]:

@@ -251,7 +251,7 @@ def section_peaklist(sec: TextSection, solvent: str | None = None, source: str =
         merged = sorted(peaks, key=lambda q: -q.shift)
         merged.reverse()
     pl = PeakList(sec.nucleus, merged, source, notes,
-                  sec.carbon_mhz if sec.nucleus == "13C" else sec.field_mhz, printed=True)
+                  sec.carbon_mhz if sec.nucleus == "13C" else sec.field_mhz, printed=True, two_forms=sec.doubled)
     return flag_solvent(pl, solvent or sec.solvent, keep_integrated=True)
 
 

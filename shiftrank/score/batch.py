@@ -4,7 +4,8 @@ Input line: ``{"id", "peaks": [{"shift", "multiplicity"?}], "peaks_1h": [{"shift
 "integral"?, "multiplicity"?, "j"?}], "text": "<printed paragraph(s)>", "candidates": [SMILES…],
 "formula"?, "mass"?, "solvent"?, "priors"?, "with_isomers"?, "rotamers"?}``; any one of ``peaks``, ``peaks_1h``
 or ``text`` is enough; ``"with_isomers": true`` (or a kinds string) adds generated alternatives;
-``"rotamers": true`` says the spectra show two forms of the compound; ``"reaction"`` (a named reaction or a reaction
+``"rotamers": true`` says the spectra show two forms of the compound, ``"mixture": true`` that the sample
+holds two isomers (the candidate that best explains the second's lines is named in a note); ``"reaction"`` (a named reaction or a reaction
 SMARTS) with ``"reactants"`` adds the reaction's products as candidates; ``"file_13c"``/``"file_1h"`` name
 peak files (text, CSV, JSON or JCAMP-DX, relative to the batch file) read in place of ``peaks``/``peaks_1h``.
 Output line: ``{"id", "ranking": [...]}`` best first, every candidate once (invalid ones
@@ -24,7 +25,7 @@ from .ranking import rank_many
 CHUNK = 64
 MAX_LINE = 5_000_000   # characters in one JSON line (one case)
 FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers",
-          "rotamers", "reaction", "reactants")
+          "rotamers", "mixture", "reaction", "reactants")
 
 
 def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:

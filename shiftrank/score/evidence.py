@@ -280,6 +280,7 @@ class CarbonEvidence(_Evidence):
                       for p in pl.peaks)
         out.printed = pl.printed   # a printed paragraph's list: the ranking's printed-text settings apply
         out.dept135 = pl.dept135
+        out.two_forms = pl.two_forms
         if pl.solvent in SOLVENTS:
             out.solvent_lines = tuple((x, pl.solvent) for x in SOLVENTS[pl.solvent].carbon_13c)
         return out
@@ -459,6 +460,7 @@ class ProtonEvidence(_Evidence):
             out.solvent_lines = tuple((x, pl.solvent) for x in sv.residual_1h) + (
                 ((sv.water_1h, f"water ({pl.solvent})"),) if sv.water_1h is not None else ())
         out.exchanging = exchanges_deuterium(pl.solvent)   # OH/NH protons replaced by D: expected unseen
+        out.two_forms = pl.two_forms
         return out
 
     def classes(self, mol: Chem.Mol, ranks, mu: dict, sg: dict, peaks, facts=None) -> list[SignalClass]:

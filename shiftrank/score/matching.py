@@ -177,6 +177,7 @@ class PeakSet(list):
     solvent_lines: tuple = ()   # 13C: (ppm, solvent) of the solvent's own lines, under which a carbon can hide
     dept135 = False             # 13C: a DEPT-135 list, which shows no quaternary carbon
     exchanging: str | None = None   # 1H: the solvent (part) whose deuterium replaces OH/NH protons (CD3OD, D2O)
+    two_forms: str | None = None    # the spectrum shows two forms, as said (PeakList.two_forms)
 
     def arrays(self):
         if self._arrays is None:

@@ -826,16 +826,20 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
             raise InputError(f"text: only {', '.join(other)} peaks were read; shiftrank ranks on 13C, 1H and HSQC "
                              "(give one of those sections or lists)")
         raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
-    two = case.get("rotamers")
+    two, mix = case.get("rotamers"), case.get("mixture")
     if two is not None and not isinstance(two, bool):
         raise InputError("rotamers: expected true or false (the spectra show two forms of the compound)")
-    if two:
+    if mix is not None and not isinstance(mix, bool):
+        raise InputError("mixture: expected true or false (the sample is a mixture of two isomers)")
+    if two or mix:
+        said = "mixture of isomers" if mix else "rotamers"
         for nucleus in ("13C", "1H"):
             pl = out.get(nucleus)
             if pl is not None:
+                pl.two_forms = said
                 n = mark_doubled(pl.peaks, nucleus)
                 if n:
-                    notes.append(f"{nucleus}: {doubled_note('rotamers', n)}")
+                    notes.append(f"{nucleus}: {doubled_note(said, n)}")
     if parsed is not None:
         for sec in parsed.sections:
             if sec.nucleus == "19F" and sec.peaks:
@@ -846,6 +850,49 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     if solvent is None and parsed is not None and parsed.solvent:
         solvent = parsed.solvent
     return out, solvent, notes
+
+
+#: words of a two-form statement that name different compounds (not rotamers or conformers of one)
+_ISOMER_MIXTURE = re.compile(r"isomer|anomer|epimer|[EZ]\s*/\s*[EZ]", re.I)
+#: nats by which a second candidate must explain the lines the best one leaves, to be named as the second form
+SECOND_FORM_GAIN = 2.0
+
+
+def second_form_note(results: list[CandidateResult], peaks: dict, settings: "RankingSettings") -> str | None:
+    """For a sample said to be a mixture of isomers: which other candidate best explains, beside the best one,
+    the 13C lines (its classes and the best one's matched to the whole list together, the Hungarian matching
+    with the case's costs), against leaving those lines unexplained.  None when the case is not such a mixture,
+    has no 13C list or fewer than two readable candidates."""
+    obs = peaks.get("13C")
+    said = getattr(obs, "two_forms", None) if obs is not None else None
+    if not said or not _ISOMER_MIXTURE.search(said):
+        return None
+    valid = [c for c in results if not c.error and "13C" in c.nuclei]
+    if len(valid) < 2:
+        return None
+    from .matching import assign
+
+    best = valid[0]
+    # (a line no class explains costs in full here: under the mixture, every line is one of the two compounds')
+    costs = replace(settings.costs_for("13C", len(peaks) > 1), extra_doubled=settings.costs_for("13C", len(peaks) > 1).extra)
+    base = best.nuclei["13C"].classes
+    alone = assign(base, obs, costs).total_cost
+    key = _canonical_of(best.smiles)
+    scored = sorted(((assign(base + c.nuclei["13C"].classes, obs, costs).total_cost, k, c)
+                     for k, c in enumerate(valid[1:]) if _canonical_of(c.smiles) != key), key=lambda t: t[:2])
+    if not scored:
+        return None
+    head = f"the text says the sample holds two isomers ('{said}')" if said != "mixture of isomers" else \
+        "the sample holds two isomers (as said)"
+    label = best.name or best.smiles
+    u, _, c = scored[0]
+    if alone - u < SECOND_FORM_GAIN:
+        return (f"{head}: beside {label} as the major form, no other candidate explains the 13C lines it leaves "
+                "better than leaving them unexplained (the second may be none of the candidates)")
+    ahead = f", {scored[1][0] - u:.1f} nats ahead of {scored[1][2].name or scored[1][2].smiles}" if len(scored) > 1 else ""
+    return (f"{head}: beside {label} as the major form, the 13C lines it leaves fit {c.name or c.smiles} best as the "
+            f"second ({alone - u:.1f} nats better than leaving them unexplained{ahead}); read the two forms' lines "
+            "against each other before trusting either")
 
 
 def printed_fluorine_lines(case: dict) -> int | None:
@@ -899,7 +946,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
          peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
-         rotamers: bool = False) -> RankResult:
+         rotamers: bool = False, mixture: bool = False) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
 
     ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects, lists (or NumPy
@@ -915,7 +962,9 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     ``rotamers`` says the spectra show two forms of the compound (amide or carbamate rotamers, an isomer
     mixture): a line within a few tenths of a ppm (13C: 2 ppm) of another may be the second form's and
     costs little when no class explains it; a paragraph that says so (``mixture of rotamers``) is read so
-    without it.
+    without it.  ``mixture`` says the sample is a mixture of two isomers (a paragraph saying ``3:1 mixture of
+    regioisomers`` the same): the lines are read so too, and a note names the candidate that best explains, as
+    the second component, the 13C lines the best one leaves (:func:`second_form_note`).
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
     with its error.
 
@@ -927,7 +976,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
                              mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz,
-                             rotamers=rotamers)],
+                             rotamers=rotamers, mixture=mixture)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
@@ -1167,5 +1216,8 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
         notes = notes + [_tautomer_note(g) for g in tautomer_groups(results)]
+        second = second_form_note(results, peaks, case_settings)
+        if second:
+            notes.append(second)
         out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
     return out
