@@ -5,7 +5,7 @@
 For every development regio case (``dev_cases_regio.jsonl.gz``) one of whose candidates is itself the truth of
 another case in the same solvent (two positional isomers, both with a database 13C list), the two lists are
 merged without multiplicities (as a printed list of a 1:1 mixture would read), ranked against the first case's
-candidates with ``mixture=True``, and the note of :func:`shiftrank.score.ranking.second_form_note` is read: is
+candidates with ``mixture=True``, and the note of :func:`shiftrank.score.ranking.second_form` is read: is
 the top candidate one of the pair, and is the other one named as the second form?  Reported for the dev and the
 held-out (validation/test skeleton) truths separately; the second-form rule was not fitted on either.
 """

@@ -340,3 +340,10 @@ def test_a_mixture_of_two_isomers_names_the_second_form():
     text = "13C NMR (101 MHz, CDCl3, 1:1 mixture of regioisomers) δ " + ", ".join(map(str, DIFLUORO_34 + DIFLUORO_25))
     assert any("fit CC(=O)c1cc(F)ccc1F best" in n for n in rank(text=text, candidates=DIFLUORO_ISOMERS).notes)
     assert not any("two isomers" in n for n in rank(DIFLUORO_34 + DIFLUORO_25, DIFLUORO_ISOMERS, rotamers=True).notes)
+
+
+def test_the_verdict_of_a_mixture_names_the_second_form_and_raises_no_count_reservation():
+    # the difluoroacetophenone pair above: 15 lines for 8-carbon candidates is what a mixture shows
+    r = rank(DIFLUORO_34 + DIFLUORO_25, DIFLUORO_ISOMERS, mixture=True)
+    assert "fit no candidate" not in r.verdict
+    assert r.verdict.endswith("the lines left fit CC(=O)c1cc(F)ccc1F best as the second (see the notes)")

@@ -414,7 +414,8 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
                      + ",".join(str(a) for a in c.atoms))
     if not used:
         return peaks, []
-    out = PeakSet(sorted([p for j, p in enumerate(peaks) if j not in used] + merged, key=lambda p: p.shift))
+    kept = sorted([p for j, p in enumerate(peaks) if j not in used] + merged, key=lambda p: p.shift)
+    out = peaks.derived(kept) if isinstance(peaks, PeakSet) else PeakSet(kept)
     return out, notes
 
 

@@ -179,6 +179,13 @@ class PeakSet(list):
     exchanging: str | None = None   # 1H: the solvent (part) whose deuterium replaces OH/NH protons (CD3OD, D2O)
     two_forms: str | None = None    # the spectrum shows two forms, as said (PeakList.two_forms)
 
+    def derived(self, peaks) -> "PeakSet":
+        """A PeakSet of other peaks (C–F lines read as one carbon) that keeps what is known of this one's spectrum
+        (printed, solvent lines, DEPT-135, exchange, two forms)."""
+        out = PeakSet(peaks)
+        out.__dict__.update({k: v for k, v in self.__dict__.items() if k != "_arrays"})
+        return out
+
     def arrays(self):
         if self._arrays is None:
             obs = np.array([p.shift for p in self], dtype=float)

@@ -732,6 +732,9 @@ def _count_misfit(valid: list[CandidateResult]) -> str | None:
         if not rs:
             continue
         observed = rs[0].observed_signals
+        said = getattr(rs[0].peaks, "two_forms", None)
+        if said and _ISOMER_MIXTURE.search(said) and observed >= min(len(r.classes) for r in rs):
+            return None   # a mixture of two isomers shows more lines than either has carbons
         pairs = doubled_pairs(rs[0].peaks, n)   # two forms: each pair of close lines may be one carbon
         if pairs and any(observed - pairs <= len(r.classes) <= observed for r in rs):
             return None
@@ -858,11 +861,13 @@ _ISOMER_MIXTURE = re.compile(r"isomer|anomer|epimer|[EZ]\s*/\s*[EZ]", re.I)
 SECOND_FORM_GAIN = 2.0
 
 
-def second_form_note(results: list[CandidateResult], peaks: dict, settings: "RankingSettings") -> str | None:
+def second_form(results: list[CandidateResult], peaks: dict,
+                settings: "RankingSettings") -> tuple[str, CandidateResult | None] | None:
     """For a sample said to be a mixture of isomers: which other candidate best explains, beside the best one,
     the 13C lines (its classes and the best one's matched to the whole list together, the Hungarian matching
-    with the case's costs), against leaving those lines unexplained.  None when the case is not such a mixture,
-    has no 13C list or fewer than two readable candidates."""
+    with the case's costs), against leaving those lines unexplained: (the note, that candidate or None when
+    none explains them).  None when the case is not such a mixture, has no 13C list or fewer than two readable
+    candidates."""
     obs = peaks.get("13C")
     said = getattr(obs, "two_forms", None) if obs is not None else None
     if not said or not _ISOMER_MIXTURE.search(said):
@@ -888,11 +893,11 @@ def second_form_note(results: list[CandidateResult], peaks: dict, settings: "Ran
     u, _, c = scored[0]
     if alone - u < SECOND_FORM_GAIN:
         return (f"{head}: beside {label} as the major form, no other candidate explains the 13C lines it leaves "
-                "better than leaving them unexplained (the second may be none of the candidates)")
+                "better than leaving them unexplained (the second may be none of the candidates)"), None
     ahead = f", {scored[1][0] - u:.1f} nats ahead of {scored[1][2].name or scored[1][2].smiles}" if len(scored) > 1 else ""
     return (f"{head}: beside {label} as the major form, the 13C lines it leaves fit {c.name or c.smiles} best as the "
             f"second ({alone - u:.1f} nats better than leaving them unexplained{ahead}); read the two forms' lines "
-            "against each other before trusting either")
+            "against each other before trusting either"), c
 
 
 def printed_fluorine_lines(case: dict) -> int | None:
@@ -964,7 +969,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     costs little when no class explains it; a paragraph that says so (``mixture of rotamers``) is read so
     without it.  ``mixture`` says the sample is a mixture of two isomers (a paragraph saying ``3:1 mixture of
     regioisomers`` the same): the lines are read so too, and a note names the candidate that best explains, as
-    the second component, the 13C lines the best one leaves (:func:`second_form_note`).
+    the second component, the 13C lines the best one leaves (:func:`second_form`).
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
     with its error.
 
@@ -1216,8 +1221,13 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
         notes = notes + [_tautomer_note(g) for g in tautomer_groups(results)]
-        second = second_form_note(results, peaks, case_settings)
+        second = second_form(results, peaks, case_settings)
+        said = verdict(results, tuple(peaks))
         if second:
-            notes.append(second)
-        out.append(RankResult(case.get("id"), results, peaks, verdict(results, tuple(peaks)), notes, version))
+            note, other = second
+            notes.append(note)
+            said += (f"; the sample holds two isomers, and the lines left fit {other.name or other.smiles} best as the "
+                     "second (see the notes)" if other is not None else
+                     "; the sample holds two isomers; no other candidate explains the lines left (see the notes)")
+        out.append(RankResult(case.get("id"), results, peaks, said, notes, version))
     return out
