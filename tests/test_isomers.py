@@ -435,6 +435,11 @@ def test_sulfonyl_groups_move_between_n_and_o_like_acyl_groups():
     ("alkylation", "O=c1cccc[nH]1.CCBr", {"CCn1ccccc1=O", "CCOc1ccccn1"}, "NH/OH tautomer"),
     # acetylation of 4-aminophenol at N or O
     ("acylation", "Nc1ccc(O)cc1.CC(=O)Cl", {"CC(=O)Nc1ccc(O)cc1", "CC(=O)Oc1ccc(N)cc1"}, "acylation product at"),
+    # Mitsunobu benzylation of 2-pyridone at N or O; Chan-Lam phenylation of 3-methylpyrazole at either N;
+    # Sonogashira coupling of 1-bromo-4-iodobenzene at C-I or C-Br
+    ("mitsunobu", "O=c1cccc[nH]1.OCc1ccccc1", {"O=c1ccccn1Cc1ccccc1", "c1ccc(COc2ccccn2)cc1"}, "NH/OH tautomer"),
+    ("chan-lam", "Cc1cc[nH]n1.OB(O)c1ccccc1", {"Cc1ccn(-c2ccccc2)n1", "Cc1ccnn1-c1ccccc1"}, "of the pyrazole"),
+    ("sonogashira", "Brc1ccc(I)cc1.C#Cc1ccccc1", {"Ic1ccc(C#Cc2ccccc2)cc1", "Brc1ccc(C#Cc2ccccc2)cc1"}, "para to I"),
 ])
 def test_named_reactions_give_every_regiochemical_outcome(name, reactants, products, site):
     alts = isomers(None, kinds=(), reaction=name, reactants=reactants)

@@ -35,6 +35,15 @@ REACTIONS = {
     "suzuki": NamedReaction(
         f"[c:1]-{_ARYL_LG}.[#6:2]-[B]>>[c:1]-[#6:2]",
         "C-C coupling: a boronic acid, ester or trifluoroborate on an aryl (pseudo)halide", tautomers=False),
+    "sonogashira": NamedReaction(
+        f"[c:1]-{_ARYL_LG}.[CH:2]#[C:3]>>[c:1]-[C:2]#[C:3]",
+        "C-C coupling: a terminal alkyne on an aryl (pseudo)halide", tautomers=False),
+    "chan-lam": NamedReaction(
+        "[#7,#8;!$(*-[C,S]=[O,S]);!H0:1].[c:2]-[B]>>[*:1]-[c:2]",
+        "N- or O-arylation by an aryl boronic acid or ester (an NH-azole at either N)"),
+    "mitsunobu": NamedReaction(
+        "[#7,#8,#16;!H0:1].[CX4:2]-[OH]>>[*:1]-[*:2]",
+        "an alcohol's carbon on an acidic N-, O- or S-H (a 2-pyridone at N or O)"),
     "alkylation": NamedReaction(
         f"[#7,#8,#16;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
         "alkylation of an N-, O- or S-H by an alkyl halide or sulfonate"),
