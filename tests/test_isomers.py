@@ -462,3 +462,9 @@ def test_electrophilic_substitution_templates_offer_every_ring_ch_named_by_posit
     # an SNAr on a benzene names the position against the nitro group
     snar = {a.relation for a in isomers(None, kinds=(), reaction="snar", reactants="Fc1ccc([N+](=O)[O-])c(F)c1.C1COCCN1")}
     assert any("(C; para to NO2, meta to F)" in r for r in snar) and any("ortho to NO2" in r for r in snar)
+
+
+def test_a_reactant_given_with_its_counter_ion_is_named_in_the_error():
+    # morpholine written as its hydrochloride: the extra carbon-free fragment is named, not just counted
+    with pytest.raises(InputError, match="'Cl' has no carbon: a counter-ion or salt part"):
+        isomers(None, kinds=(), reaction="snar", reactants="Clc1ccnc(Cl)n1.C1COCCN1.Cl")

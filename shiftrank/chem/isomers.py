@@ -855,8 +855,11 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     mols = [to_mol(s) for s in reactants.split(".")] if reactants else []
     n = rxn.GetNumReactantTemplates()
     if len(mols) != n:
+        salts = [s for s, m in zip(reactants.split("."), mols) if not any(a.GetAtomicNum() == 6 for a in m.GetAtoms())]
+        hint = (f"; {', '.join(repr(x) for x in salts)} has no carbon: a counter-ion or salt part? give each reactant "
+                "without it") if salts and len(mols) > n else ""
         raise InputError(f"reaction {'template' if named else 'SMARTS'} '{smarts}' takes {n} reactant(s); --reactants "
-                         f"gave {len(mols)} (separate them with '.')")
+                         f"gave {len(mols)} (separate them with '.'){hint}")
     # a named template also runs on each reactant's NH/OH tautomers (an NH-azole reacts at N1 or N2, a
     # 2-pyridone at N or O); the enumerator keeps the atom order, so the sites name the given reactants' atoms
     variants = [[(m, False)] + ([(t, True) for t, _ in _tautomers(m)][:MAX_REACTANT_TAUTOMERS]
