@@ -183,5 +183,5 @@ def test_a_batch_case_may_name_a_reaction_whose_products_are_its_candidates(tmp_
         run_batch(cases, f)
     first, second = [_json.loads(x) for x in out.read_text().splitlines()]
     assert sorted(c["name"].split(" (")[0] for c in first["ranking"]) == [
-        "n-alkylation product at N1 of the indazole", "n-alkylation product at N2 of the indazole"]
+        "N-alkylation product at N1 of the indazole", "N-alkylation product at N2 of the indazole"]
     assert "reaction: give a reaction name or SMARTS with 'reactants'" in second["error"]

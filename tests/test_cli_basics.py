@@ -119,8 +119,8 @@ def test_rank_takes_the_products_of_a_named_reaction_as_candidates():
                "--reaction", "snar", "--reactants", "Clc1ccnc(Cl)n1.C1COCCN1", "--json")
     assert r.returncode == 0, r.stderr
     names = [c["name"] for c in json.loads(r.stdout)["ranking"]]
-    assert len(names) == 2 and all(n.startswith("snar product at C") for n in names)
+    assert len(names) == 2 and all(n.startswith("SNAr product at C") for n in names)
     r = run_in("13C NMR δ 161.9, 66.4", "rank", "--text", "-")
     assert r.returncode == 2 and "--reaction NAME --reactants" in r.stderr
     r = run("isomers", "--reaction", "snar", "--reactants", "Clc1ccnc(Cl)n1.C1COCCN1", "--smi")
-    assert [ln.split("\t")[1].split(" product")[0] for ln in r.stdout.splitlines()] == ["snar", "snar"]
+    assert [ln.split("\t")[1].split(" product")[0] for ln in r.stdout.splitlines()] == ["SNAr", "SNAr"]

@@ -845,7 +845,7 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     named = named_reaction(smarts) if not any(ch in smarts for ch in ">[") else None
     if named is None and not any(ch in smarts for ch in ">["):
         raise InputError(f"reaction '{smarts}': neither a reaction SMARTS nor a named reaction ({reaction_names()})")
-    name = smarts.strip().lower() if named is not None else None
+    name = (named.label or smarts.strip().lower()) if named is not None else None
     try:
         rxn = AllChem.ReactionFromSmarts(named.smarts if named is not None else smarts)
     except Exception as exc:  # noqa: BLE001 - RDKit's parse error, reported to the user
@@ -882,7 +882,7 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
                 m = _finish(Chem.RWMol(p))
                 if m is None:
                     continue
-                if name:   # 'snar product at C4 of the pyrimidine (reactant 1 atom 1), reactant 2 atom 5 (N)'
+                if name:   # 'SNAr product at C4 of the pyrimidine (reactant 1 atom 1), reactant 2 atom 5 (N)'
                     out.append((m, f"{name} product at {at or 'the template'}{taut}"))
                 else:
                     out.append((m, f"reaction product (outcome {k}, product {j + 1}{'; at ' + at if at else ''}{taut})"))

@@ -23,36 +23,37 @@ class NamedReaction:
     smarts: str
     what: str              # one line for the help text
     tautomers: bool = True  # also run on the reactants' NH/OH tautomers
+    label: str = ""        # how a product's relation names the reaction ('SNAr product at …'); the key when empty
 
 
 REACTIONS = {
     "snar": NamedReaction(
         "[c:1]-[F,Cl,Br,I].[#7,#8,#16;!$(*-[C,S,P]=[O,S,N]);!H0:2]>>[c:1]-[*:2]",
-        "SNAr: an N-, O- or S-H nucleophile replaces an aryl halide"),
+        "SNAr: an N-, O- or S-H nucleophile replaces an aryl halide", label="SNAr"),
     "buchwald": NamedReaction(
         f"[c:1]-{_ARYL_LG}.[#7;!$(*-[C,S,P]=[O,S,N]);!H0:2]>>[c:1]-[*:2]",
-        "C-N coupling: an N-H amine or azole on an aryl (pseudo)halide"),
+        "C-N coupling: an N-H amine or azole on an aryl (pseudo)halide", label="C–N coupling"),
     "suzuki": NamedReaction(
         f"[c:1]-{_ARYL_LG}.[#6:2]-[B]>>[c:1]-[#6:2]",
-        "C-C coupling: a boronic acid, ester or trifluoroborate on an aryl (pseudo)halide", tautomers=False),
+        "C-C coupling: a boronic acid, ester or trifluoroborate on an aryl (pseudo)halide", tautomers=False, label="Suzuki coupling"),
     "sonogashira": NamedReaction(
         f"[c:1]-{_ARYL_LG}.[CH:2]#[C:3]>>[c:1]-[C:2]#[C:3]",
-        "C-C coupling: a terminal alkyne on an aryl (pseudo)halide", tautomers=False),
+        "C-C coupling: a terminal alkyne on an aryl (pseudo)halide", tautomers=False, label="Sonogashira coupling"),
     "chan-lam": NamedReaction(
         "[#7,#8;!$(*-[C,S]=[O,S]);!H0:1].[c:2]-[B]>>[*:1]-[c:2]",
-        "N- or O-arylation by an aryl boronic acid or ester (an NH-azole at either N)"),
+        "N- or O-arylation by an aryl boronic acid or ester (an NH-azole at either N)", label="Chan–Lam coupling"),
     "mitsunobu": NamedReaction(
         "[#7,#8,#16;!H0:1].[CX4:2]-[OH]>>[*:1]-[*:2]",
-        "an alcohol's carbon on an acidic N-, O- or S-H (a 2-pyridone at N or O)"),
+        "an alcohol's carbon on an acidic N-, O- or S-H (a 2-pyridone at N or O)", label="Mitsunobu"),
     "alkylation": NamedReaction(
         f"[#7,#8,#16;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
         "alkylation of an N-, O- or S-H by an alkyl halide or sulfonate"),
     "n-alkylation": NamedReaction(
         f"[#7;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
-        "alkylation of an N-H by an alkyl halide or sulfonate"),
+        "alkylation of an N-H by an alkyl halide or sulfonate", label="N-alkylation"),
     "o-alkylation": NamedReaction(
         f"[#8;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
-        "alkylation of an O-H by an alkyl halide or sulfonate"),
+        "alkylation of an O-H by an alkyl halide or sulfonate", label="O-alkylation"),
     "acylation": NamedReaction(
         "[#7,#8;!H0;!$(*-C=O):1].[C:2](=[O:3])-[Cl,Br,$(O-C=O),$(O-c),OH]>>[*:1]-[C:2]=[O:3]",
         "acylation of an N- or O-H by an acid chloride, anhydride, aryl ester or acid"),
