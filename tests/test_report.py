@@ -84,3 +84,12 @@ def test_a_ranking_shows_itself_briefly_as_a_table_and_in_a_notebook():
     style = re.search(r"<style>(.*?)</style>", html, re.S).group(1)
     selectors = [sel for group in re.findall(r"(?:^|})([^{}]+)\{", style) for sel in group.split(",")]
     assert selectors and "body{" not in style and all(sel.startswith(".shiftrank-report") for sel in selectors)
+
+
+def test_beside_generated_alternatives_the_given_structure_is_marked():
+    # rank --with-isomers: the table and the report say which row is the structure the chemist gave
+    pl = parse_peaks(TEXT, solvent="CDCl3")
+    r = rank(pl, [PARA], with_isomers=True)
+    assert "(given) " + PARA in str(r)
+    assert "<b>given</b> <code>" + PARA in render_report([r])
+    assert "(given)" not in str(rank(pl, [META, PARA]))   # no generated alternatives: nothing to tell apart

@@ -252,10 +252,13 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     rows = []
     alone = len(result.nuclei) > 1   # each spectrum's own probability beside its fit
     nuc_heads = "".join((f"<th>p, {n} alone</th>" if alone else "") + f"<th>MAE {n} (ppm)</th>" for n in result.nuclei)
+    generated = any(c.generated for c in result.candidates)
     for i, c in enumerate(result.candidates, 1):
         # a named candidate (a generated alternative is named by its relation) shows its SMILES beneath
         label = (f"{e(c.name)}<br><code class='note'>{e(c.smiles)}</code>" if c.name and c.name != c.smiles
                  else f"<code>{e(c.smiles)}</code>")
+        if generated and not c.generated:   # beside generated alternatives: the structure(s) the chemist gave
+            label = f"<b>given</b> {label}"
         if c.error:
             rows.append(f"<tr><td>{i}</td><td>{label}</td><td colspan={3 + len(result.nuclei) * (2 if alone else 1)} class=err>{e(c.error)}</td></tr>")
             continue

@@ -44,8 +44,11 @@ def print_ranking(result, inputs: dict, out=None) -> None:
     alone = len(nuclei) > 1   # then each spectrum's own probability is shown beside its fit
     head = "".join((f" {'p ' + n:>7}" if alone else "") + f" {'MAE ' + n:>9} {'sig.':>6}" for n in nuclei)
     print(f" {'#':>2}  {'p':>6} {head} {'>3σ':>4}  candidate", file=out)
+    generated = any(c.generated for c in result.candidates)
     for i, c in enumerate(result.candidates, 1):
         label = f"{c.name}  {c.smiles}" if c.name else c.smiles
+        if generated and not c.generated:   # beside generated alternatives: which structures the chemist gave
+            label = f"(given) {label}"
         if c.error:
             print(f" {i:>2}  {'-':>6} {' ' * len(head)} {'':>4}  {label}\n       error: {c.error}", file=out)
             continue
