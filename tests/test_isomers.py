@@ -470,3 +470,14 @@ def test_a_reactant_given_with_its_counter_ion_is_named_in_the_error():
     # morpholine written as its hydrochloride: the extra carbon-free fragment is named, not just counted
     with pytest.raises(InputError, match="'Cl' has no carbon: a counter-ion or salt part"):
         isomers(None, kinds=(), reaction="snar", reactants="Clc1ccnc(Cl)n1.C1COCCN1.Cl")
+
+
+def test_groups_linked_through_ch2_o_or_nh_are_named_by_their_ring():
+    # a 2-fluorobenzyl on an indazole N, a 4-chlorobenzyl indole, a pyridylmethyl aryl ether, a phenethyl (names as
+    # chemists condense them; common practice)
+    rel = [a.relation for a in isomers("COC(=O)c1nn(Cc2ccccc2F)c2ccccc12", kinds=("ambident",))]
+    assert rel and rel[0].startswith("CH2(2-F-C6H4) on N2 of the indazole")
+    assert any("(now meta to CH2(indol-1-yl))" in a.relation for a in isomers("Clc1ccc(Cn2ccc3ccccc32)cc1"))
+    assert any(a.relation.startswith("CH2O(4-F-C6H4) moved from C2 to C3 of the pyridine")
+               for a in isomers("Fc1ccc(OCc2ccccn2)cc1"))
+    assert any("(now meta to CH2CH2C6H5)" in a.relation for a in isomers("Clc1ccc(CCc2ccccc2)cc1"))

@@ -268,13 +268,47 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     return f"{1 + min(d, 6 - d)}-{name}-C6H4"
 
 
+def _linked_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
+    """A CH2, O, NH or S link to a named benzene ring or to an unsubstituted parent ring with locants:
+    'CH2(2-F-C6H4)', 'O(4-CH3-C6H4)', 'CH2(indazol-1-yl)'; None for anything else."""
+    links = {(6, 2): "CH2", (8, 0): "O", (7, 1): "NH", (16, 0): "S"}
+    prefix, prev, cur = "", ring_atom, root
+    for _ in range(2):   # a link of one or two atoms: CH2, O, CH2O, OCH2, CH2CH2 …
+        a = mol.GetAtomWithIdx(cur)
+        label = links.get((a.GetAtomicNum(), a.GetTotalNumHs()))
+        if a.GetIsAromatic() or a.IsInRing() or a.GetDegree() != 2 or a.GetFormalCharge() or label is None:
+            return None
+        prefix += label
+        nxt = next(n.GetIdx() for n in a.GetNeighbors() if n.GetIdx() != prev)
+        if mol.GetAtomWithIdx(nxt).IsInRing():
+            break
+        prev, cur = cur, nxt
+    else:
+        return None
+    root = cur
+    if _group_table().get(_rooted_smiles(mol, nxt, root)) == "C6H5":
+        return f"{prefix}C6H5"   # CH2CH2C6H5, CH2OC6H5
+    aryl = _aryl_name(mol, nxt, root)
+    if aryl:
+        return f"{prefix}({aryl})"
+    system = next((s for s in _ring_systems(mol) if nxt in s), None)
+    if system is None or any(n.GetIdx() not in system and n.GetIdx() != root
+                             for i in system for n in mol.GetAtomWithIdx(i).GetNeighbors()):
+        return None   # (a ring carrying more than the link: its name would leave its groups out)
+    loc = ring_locants(mol, system)
+    if not loc or nxt not in loc[1]:
+        return None
+    stem = loc[0][:-1] if loc[0].endswith("e") else loc[0]   # pyridine -> pyridin-2-yl, furan -> furan-2-yl
+    return f"{prefix}({stem}-{loc[1][nxt][1:]}-yl)"
+
+
 def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     smi = _rooted_smiles(mol, root, ring_atom)
     if not smi:
         return ""
     if smi in _group_table():
         return _group_table()[smi]
-    aryl = _aryl_name(mol, root, ring_atom)
+    aryl = _aryl_name(mol, root, ring_atom) or _linked_name(mol, root, ring_atom)
     if aryl:
         return aryl
     if len(smi) <= 24:
