@@ -114,20 +114,10 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
     if (pdir / "2rr").is_file() and not (pdir / "1r").is_file():
         raise InputError(f"{where}: a 2D spectrum (2rr); give the 1D 13C or 1H data set, or its peak list "
                          "(HSQC: its cross peaks as 'δC δH' pairs)")
-    try:
-        import nmrglue as ng
-    except ImportError:   # pragma: no cover - a dependency of the package
-        raise InputError("reading Bruker data needs nmrglue (pip install nmrglue)") from None
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        try:
-            dic, data = ng.bruker.read_pdata(str(pdir), scale_data=True)
-        except Exception as exc:   # nmrglue's own errors on a damaged data set
-            raise InputError(f"{where}: the processed data cannot be read ({type(exc).__name__}: {exc})") from None
+    dic, data = _nmrglue(lambda ng: ng.bruker.read_pdata(str(pdir), scale_data=True), "Bruker data",
+                         f"{where}: the processed data cannot be read")
     procs, acqus = dic.get("procs") or {}, dic.get("acqus") or {}
-    y = np.asarray(data, dtype=float)
-    if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
-        raise InputError(f"{where}: the processed data are not a 1D trace of finite values ({y.shape} values)")
+    y = _one_d(data, f"{where}: the processed data")
     try:
         offset, sw_p, sf = float(procs["OFFSET"]), float(procs["SW_p"]), float(procs["SF"])
     except (KeyError, TypeError, ValueError):
@@ -452,22 +442,35 @@ def _to_ppm(x: np.ndarray, block: dict, mhz: float | None, where: str) -> np.nda
     raise InputError(f"{where}: ##XUNITS= {block.get('XUNITS')} is neither PPM nor HZ")
 
 
-def _trace(path: Path, block: dict, mhz: float | None, where: str) -> Trace:
+def _nmrglue(read, what: str, cannot: str):
+    """``read(nmrglue)`` with nmrglue's warnings silenced; its own errors (malformed or damaged data) become an
+    :class:`InputError` starting with ``cannot``."""
     try:
         import nmrglue as ng
     except ImportError:   # pragma: no cover - a dependency of the package
-        raise InputError("reading JCAMP-DX spectra needs nmrglue (pip install nmrglue)") from None
+        raise InputError(f"reading {what} needs nmrglue (pip install nmrglue)") from None
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         try:
-            dic, data = ng.jcampdx.read(str(path))
-        except Exception as exc:   # nmrglue's own errors on malformed data lines
-            raise InputError(f"{where}: the spectrum's data lines cannot be decoded ({type(exc).__name__}: {exc})") from None
+            return read(ng)
+        except Exception as exc:   # nmrglue's own errors on malformed lines or a damaged data set
+            raise InputError(f"{cannot} ({type(exc).__name__}: {exc})") from None
+
+
+def _one_d(data, what: str) -> np.ndarray:
+    """The decoded data as a 1D trace of at least 16 finite values, or an error naming ``what`` it should be."""
+    y = np.asarray(data, dtype=float)
+    if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
+        raise InputError(f"{what} are not a 1D trace of finite values ({y.shape} values)")
+    return y
+
+
+def _trace(path: Path, block: dict, mhz: float | None, where: str) -> Trace:
+    dic, data = _nmrglue(lambda ng: ng.jcampdx.read(str(path)), "JCAMP-DX spectra",
+                         f"{where}: the spectrum's data lines cannot be decoded")
     if data is None:
         raise InputError(f"{where}: no spectrum data could be decoded")
-    y = np.asarray(data[0] if isinstance(data, list) else data, dtype=float)
-    if y.ndim != 1 or len(y) < 16 or not np.isfinite(y).all():
-        raise InputError(f"{where}: the spectrum data are not a 1D trace of finite values ({y.shape} values)")
+    y = _one_d(data[0] if isinstance(data, list) else data, f"{where}: the spectrum data")
     first, last, unit = _x_range(block, where)
     x = _to_ppm(np.linspace(first, last, len(y)), {"XUNITS": unit}, mhz, where)
     if x[0] > x[-1]:
