@@ -650,10 +650,10 @@ def read_peak_lists(path: str | Path, nucleus: str | None = None, solvent: str |
     unless all its values lie in the 1H range (:func:`looks_like_1h`: '7.26 d 2' is not a CH at 7.26 ppm), when
     it is read as 1H with a note saying so.
     """
-    from .spectra import bruker_pdata, instrument_nucleus as _instrument_nucleus, is_jcamp
+    from .spectra import bruker_pdata, instrument_nucleus, is_jcamp
 
     if nucleus is not None or (str(path) != "-" and (is_jcamp(path) or bruker_pdata(path) is not None)):
-        return [read_peaks(path, nucleus or _instrument_nucleus(path), solvent)]
+        return [read_peaks(path, nucleus or instrument_nucleus(path), solvent)]
     p, text = _read_file(path)
     if str(path) == "-" and not text.strip():
         raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")

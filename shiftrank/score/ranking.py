@@ -44,7 +44,7 @@ from ..prediction.model_files import default_manifest, default_model
 from ..prediction.pi_system import pi_descriptors
 from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from ..words import count
-from .matching import MatchCosts, ObservedPeak
+from .matching import MatchCosts, ObservedPeak, assign
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
@@ -877,8 +877,6 @@ def second_form(results: list[CandidateResult], peaks: dict,
     valid = [c for c in results if not c.error and nucleus in c.nuclei]
     if len(valid) < 2:
         return None
-    from .matching import assign
-
     best = valid[0]
     # (a line no class explains costs in full here: under the mixture, every line is one of the two compounds')
     base_costs = settings.costs_for(nucleus, len(peaks) > 1)
