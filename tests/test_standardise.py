@@ -42,10 +42,20 @@ def test_prediction_keys_stay_in_the_input_atom_order():
 
 
 @pytest.mark.parametrize("smiles,fragment", [("[CH3]", "unpaired"), ("C[Mg]Br", "organometallic"),
-                                             ("[Na+].[Cl-]", "no fragment contains carbon")])
+                                             ("[Na+].[Cl-]", "no fragment contains carbon"),
+                                             # organometallics drawn as ions are not salts (butyllithium, ferrocene)
+                                             ("[CH2-]CCC.[Li+]", "carbanion .* beside Li"),
+                                             ("[CH-]1C=CC=C1.[CH-]1C=CC=C1.[Fe+2]", "beside Fe"),
+                                             # the cyclopentadienide alone: no valid neutral form of that drawing
+                                             ("c1cc[cH-]c1", "no neutral form")])
 def test_what_cannot_be_predicted_is_refused(smiles, fragment):
     with pytest.raises(InputError, match=fragment):
         standardise(Chem.MolFromSmiles(smiles), smiles)
+
+
+def test_an_isocyanide_beside_a_counter_ion_is_not_a_carbanion():
+    s = standardise(Chem.MolFromSmiles("[C-]#[N+]CC(=O)[O-].[K+]"), "isocyanoacetate")
+    assert Chem.MolToSmiles(s.mol) == "[C-]#[N+]CC(=O)O"
 
 
 def test_deuterium_is_read_as_hydrogen():

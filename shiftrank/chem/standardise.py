@@ -67,6 +67,15 @@ def check_organometallic(mol: Chem.Mol, label: str) -> None:
             metal = b.GetBeginAtom() if z1 in _METALS else b.GetEndAtom()
             raise InputError(f"{label}: {metal.GetSymbol()} is bonded to carbon: organometallic compounds are not "
                              "supported")
+    # the same compounds drawn as ions: a carbanion beside a metal cation (butyllithium as [CH2-]CCC.[Li+],
+    # ferrocene as two cyclopentadienides and Fe2+) is not a salt whose counter-ion can be set aside
+    metals = [a for a in mol.GetAtoms() if a.GetAtomicNum() in _METALS]
+    # (a C− beside a cation, as in an isocyanide R–N+≡C− or an ylide, is a zwitterion, not a carbanion)
+    carbanion = next((a for a in mol.GetAtoms() if a.GetAtomicNum() == 6 and a.GetFormalCharge() < 0
+                      and not any(n.GetFormalCharge() > 0 for n in a.GetNeighbors())), None)
+    if metals and carbanion is not None:
+        raise InputError(f"{label}: a carbanion (atom {carbanion.GetIdx()}) beside {metals[0].GetSymbol()}: a metal "
+                         "compound drawn as ions (an organometallic or a metal cyanide), which is not supported")
 
 
 def plain(smiles: str) -> bool:
@@ -131,6 +140,10 @@ def standardise(mol: Chem.Mol, label: str = "structure") -> Standardised:
         except Exception:  # noqa: BLE001 - keep the molecule as drawn when RDKit cannot neutralise it
             neutral = mol
         after = _smiles(neutral)
+        if after != before and neutral.GetNumAtoms() == mol.GetNumAtoms() and Chem.MolFromSmiles(after) is None:
+            # (a cyclopentadienide loses its charge but not its aromatic flags: no valid structure)
+            raise InputError(f"{label}: {before} has no neutral form that is a valid structure; give the neutral "
+                             "compound") from None
         if after != before and neutral.GetNumAtoms() == mol.GetNumAtoms():
             notes.append(f"neutralised: {before} → {after}")
             mol = neutral
