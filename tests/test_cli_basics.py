@@ -110,6 +110,9 @@ def test_predict_takes_one_smiles_and_a_chemical_name_is_refused_as_a_name():
     assert r.returncode == 2 and "reads as a chemical name" in r.stderr and "Traceback" not in r.stderr
     r = run_in("7.90 2\n6.85 2\n3.80 3\n", "rank", "--peaks-1h", "-", "--candidates", "methyl 4-hydroxybenzoate")
     assert "reads as a chemical name" in r.stdout + r.stderr
+    # a fragment with its attachment point is not a metal compound
+    r = run("predict", "*c1ccc(Cl)cc1")
+    assert r.returncode != 0 and "attachment point (*)" in r.stderr and "metal" not in r.stderr
 
 
 def test_rank_takes_the_products_of_a_named_reaction_as_candidates():

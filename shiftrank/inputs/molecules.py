@@ -133,6 +133,9 @@ def check_organic(mol: Chem.Mol, label: str) -> None:
     """Raise :class:`InputError` when ``mol`` has no carbon or contains a metal."""
     syms = {a.GetSymbol() for a in map(mol.GetAtomWithIdx, range(mol.GetNumAtoms()))}
     other = sorted(syms - ORGANIC)
+    if "*" in other:
+        raise InputError(f"{label}: contains a wildcard or attachment point (*), as in a fragment or a Markush "
+                         "drawing; give the whole compound")
     if other:
         raise InputError(f"{label}: contains {', '.join(other)}; only organic molecules (no metals) are supported")
     if "C" not in syms:
