@@ -448,10 +448,10 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
                     notes.append(f"m/z {st.found} taken from the text's MS statement")
     if for_ranking and formula is None:
         mz = None
-    from .score.ranking import printed_fluorine_lines
+    from .score.ranking import printed_counted_lines
 
     return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0), hsqc=lists.get("HSQC"),
-                          fluorine_lines=printed_fluorine_lines(case) if case is not None else None)
+                          counted_lines=printed_counted_lines(case) if case is not None else None)
 
 
 def cmd_inventory(args) -> int:

@@ -245,8 +245,15 @@ def test_protons_missing_from_the_integrals_in_cd3od_are_said_to_be_exchanged():
     (2, None, "at least 2 fluorine environments"),
 ])
 def test_a_19f_count_is_read_against_the_formulas_fluorine(lines, n_f, words):
-    from shiftrank.chem.inventory import fluorine_finding
-    assert words in fluorine_finding(lines, n_f)
+    from shiftrank.chem.inventory import counted_finding
+    assert words in counted_finding("19F", lines, n_f)
+
+
+def test_a_31p_count_is_read_against_the_formulas_phosphorus():
+    # two P printed as one signal: equivalent by symmetry (common practice), as in a symmetric bisphosphonate
+    from shiftrank.chem.inventory import counted_finding
+    assert "1 P equivalent to others by symmetry" in counted_finding("31P", 1, 2)
+    assert "the formula has no P" in counted_finding("31P", 1, 0)
 
 
 def test_inventory_of_a_paragraph_with_a_19f_section_reads_its_count():
@@ -255,5 +262,5 @@ def test_inventory_of_a_paragraph_with_a_19f_section_reads_its_count():
     from shiftrank.inputs.text import read_nmr_text
     c13 = read_nmr_text("13C NMR (CDCl3, 100 MHz) δ 158.9, 149.9, 149.7, 149.2, 148.6, 140.6, 131.7, 131.1, 130.8, 129.1, "
                         "125.5, 124.2, 124.1, 124.1, 119.4, 112.2, 111.3, 109.9, 104.5, 56.0, 55.9, 45.9").peaklist("13C")
-    inv = take_inventory(c13, formula="C21H19F3N2O2", fluorine_lines=1)
+    inv = take_inventory(c13, formula="C21H19F3N2O2", counted_lines={"19F": 1})
     assert any(f.startswith("19F: 1 signal for 3 F") for f in inv.findings)

@@ -322,6 +322,22 @@ def test_a_printed_19f_section_is_compared_with_each_candidates_fluorine_environ
     assert "19F: the text lists 2 signals but the candidate has no fluorine" in r.best.flags
 
 
+def test_a_printed_31p_section_is_counted_like_a_19f_one():
+    # diethyl benzylphosphonate: its 1H paragraph and one 31P line (values from memory; only the count is read)
+    # against a bisphosphonate with two P environments and an ester without P
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.35–7.20 (m, 5H), 4.01 (m, 4H), 3.15 (d, J = 21.6 Hz, 2H), 1.24 (t, J = 7.0 Hz, 6H).\n"
+            "31P NMR (162 MHz, CDCl3) δ 26.4.")
+    r = rank(text=text, candidates=["CCOP(=O)(Cc1ccccc1)OCC", "CCOP(=O)(Cc1ccc(CP(=O)(OC)OC)cc1)OCC",
+                                    "CCOC(=O)Cc1ccccc1"])
+    by = {c.smiles: c for c in r.candidates}
+    assert not any(f.startswith("31P") for f in by["CCOP(=O)(Cc1ccccc1)OCC"].flags)
+    assert ("31P: the text lists 1 signal; the candidate has 2 phosphorus environments by symmetry"
+            in by["CCOP(=O)(Cc1ccc(CP(=O)(OC)OC)cc1)OCC"].flags)
+    assert "31P: the text lists 1 signal but the candidate has no phosphorus" in by["CCOC(=O)Cc1ccccc1"].flags
+    assert any("31P section (1 signal) used by its count only, against phosphorus environments" in n for n in r.notes)
+    assert r.best.smiles == "CCOP(=O)(Cc1ccccc1)OCC"
+
+
 # NMRShiftDB2 13C lists (dev_cases_regio.jsonl.gz, records 20209552 and 20208179): 3,4- and 2,5-difluoroacetophenone
 DIFLUORO_34 = [26.3, 117.16, 117.56, 125.5, 134.63, 150.57, 153.78, 195.28]
 DIFLUORO_25 = [31.27, 116.43, 118.29, 121.48, 126.69, 158.31, 158.65, 194.51]

@@ -307,38 +307,46 @@ def chn_from_hsqc(peaks: list, hsqc, h1: PeakList | None = None) -> list[tuple[s
 
 def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: str | None = None,
                    mz: float | None = None, mz_tolerance_ppm: float = 5.0, hsqc=None,
-                   fluorine_lines: int | None = None) -> Inventory:
+                   counted_lines: dict[str, int] | None = None) -> Inventory:
     """Inventory of a 13C list and/or a 1H list with integrals against the sample history; ``hsqc``
     (cross peaks) gives the CHn of 13C peaks printed without DEPT (:func:`chn_from_hsqc`);
-    ``fluorine_lines``, the number of printed 19F signals, is read against the formula's F."""
+    ``counted_lines``, the number of printed 19F and 31P signals ({nucleus: signals}), is read against the
+    formula's F and P."""
     if c13 is None and h1 is None:
         raise InputError("inventory: give a 13C peak list, a 1H peak list or both")
     inv = (_proton_only(h1, formula, mz, mz_tolerance_ppm) if c13 is None
            else _take(c13, h1, formula, mz, mz_tolerance_ppm, hsqc))
-    if fluorine_lines:
-        inv.findings.append(fluorine_finding(fluorine_lines, sample_formula(formula)[0].get("F", 0) if formula else None))
+    for nucleus, lines in (counted_lines or {}).items():
+        el = _COUNTED[nucleus][0]
+        inv.findings.append(counted_finding(nucleus, lines, sample_formula(formula)[0].get(el, 0) if formula else None))
     return inv
 
 
-def fluorine_finding(lines: int, n_f: int | None) -> str:
-    """What the number of printed 19F signals says against the formula's fluorine count (common practice).
+#: printed nuclei counted against the formula's atoms of their element: nucleus -> (element, word)
+_COUNTED = {"19F": ("F", "fluorine"), "31P": ("P", "phosphorus")}
 
-    >>> fluorine_finding(1, 3)
+
+def counted_finding(nucleus: str, lines: int, n_atoms: int | None) -> str:
+    """What the number of printed 19F (31P) signals says against the formula's F (P) count (common practice).
+
+    >>> counted_finding("19F", 1, 3)
     '19F: 1 signal for 3 F in the formula: three equivalent F, a CF3 group most likely'
     """
-    head = f"19F: {count(lines, 'signal')}"
-    if n_f is None:
-        return f"{head}: at least {count(lines, 'fluorine environment')}"
-    if n_f == 0:
-        return f"{head} but the formula has no F: check the formula"
-    if lines > n_f:
-        return f"{head} for {n_f} F in the formula: more signals than F atoms (an isomer mixture, rotamers or an impurity?)"
-    if lines == n_f:
-        return f"{head} for {n_f} F in the formula: {'each F in an environment of its own' if n_f > 1 else 'one F'}"
-    if lines == 1 and n_f == 3:
+    el, word = _COUNTED[nucleus]
+    head = f"{nucleus}: {count(lines, 'signal')}"
+    if n_atoms is None:
+        return f"{head}: at least {count(lines, word + ' environment')}"
+    if n_atoms == 0:
+        return f"{head} but the formula has no {el}: check the formula"
+    if lines > n_atoms:
+        return (f"{head} for {n_atoms} {el} in the formula: more signals than {el} atoms (an isomer mixture, rotamers "
+                "or an impurity?)")
+    if lines == n_atoms:
+        return f"{head} for {n_atoms} {el} in the formula: {f'each {el} in an environment of its own' if n_atoms > 1 else f'one {el}'}"
+    if el == "F" and lines == 1 and n_atoms == 3:
         return f"{head} for 3 F in the formula: three equivalent F, a CF3 group most likely"
-    return (f"{head} for {n_f} F in the formula: {n_f - lines} F equivalent to others by symmetry "
-            "(a CF3 or CF2 group, or a symmetric substitution pattern)")
+    like = "a CF3 or CF2 group, or a symmetric substitution pattern" if el == "F" else "a symmetric molecule"
+    return f"{head} for {n_atoms} {el} in the formula: {n_atoms - lines} {el} equivalent to others by symmetry ({like})"
 
 
 def _take(c13: PeakList, h1: PeakList | None, formula: str | None, mz: float | None, mz_tolerance_ppm: float,

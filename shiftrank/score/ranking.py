@@ -845,9 +845,10 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
                     notes.append(f"{nucleus}: {doubled_note(said, n)}")
     if parsed is not None:
         for sec in parsed.sections:
-            if sec.nucleus == "19F" and sec.peaks:
-                notes.append(f"text: 19F section ({count(len(sec.peaks), 'signal')}) used by its count only, against "
-                             "fluorine environments (19F shifts are not predicted)")
+            if sec.nucleus in COUNTED_NUCLEI and sec.peaks and sec is parsed.section(sec.nucleus):
+                word = COUNTED_NUCLEI[sec.nucleus][2]
+                notes.append(f"text: {sec.nucleus} section ({count(len(sec.peaks), 'signal')}) used by its count only, "
+                             f"against {word} environments ({sec.nucleus} shifts are not predicted)")
             elif sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
@@ -907,31 +908,45 @@ def second_form(results: list[CandidateResult], peaks: dict,
             "against each other before trusting either"), c
 
 
-def printed_fluorine_lines(case: dict) -> int | None:
-    """How many 19F signals the case's printed text lists (its 19F section), or None without one."""
+#: nuclei whose printed signals are counted against each candidate's environments of the element (no shifts of
+#: theirs are predicted): nucleus -> (atomic number, element, word)
+COUNTED_NUCLEI = {"19F": (9, "F", "fluorine"), "31P": (15, "P", "phosphorus")}
+_COUNTED_HEADER = re.compile(r"19\s*F|¹⁹F|31\s*P|³¹P")
+
+
+def printed_counted_lines(case: dict) -> dict[str, int]:
+    """How many signals the case's printed text lists in its 19F and 31P sections ({nucleus: signals}; a
+    nucleus without a section with peaks is left out)."""
     text = case_text(case)
-    if text is None or not re.search(r"19\s*F|¹⁹F", text):
-        return None
+    if text is None or not _COUNTED_HEADER.search(text):
+        return {}
     try:
-        sec = read_nmr_text(text, "text").section("19F")
+        parsed = read_nmr_text(text, "text")
     except InputError:
-        return None
-    return len(sec.peaks) if sec is not None and sec.peaks else None
+        return {}
+    out = {}
+    for nucleus in COUNTED_NUCLEI:
+        sec = parsed.section(nucleus)
+        if sec is not None and sec.peaks:
+            out[nucleus] = len(sec.peaks)
+    return out
 
 
-def _fluorine_check(res: CandidateResult, lines: int | None) -> None:
-    """Flag a candidate whose fluorine environments (symmetry classes of F) differ in number from the printed
-    19F signals.  A count only (no 19F shifts are predicted), shown as a reservation, not priced: a CF2 beside a
-    stereocentre may show two lines and two environments may coincide."""
-    if res.error or lines is None:
+def _count_checks(res: CandidateResult, lines: dict[str, int]) -> None:
+    """Flag a candidate whose fluorine (phosphorus) environments, symmetry classes of the element, differ in
+    number from the printed 19F (31P) signals.  A count only (no 19F or 31P shifts are predicted), shown as a
+    reservation, not priced: a CF2 beside a stereocentre may show two lines and two environments may coincide."""
+    if res.error or not lines:
         return
     mol, ranks, _ = _parse(res.smiles)
-    envs = len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == 9})
-    if envs == 0:
-        res.flags.append(f"19F: the text lists {count(lines, 'signal')} but the candidate has no fluorine")
-    elif envs != lines:
-        res.flags.append(f"19F: the text lists {count(lines, 'signal')}; the candidate has "
-                         f"{count(envs, 'fluorine environment')} by symmetry")
+    for nucleus, n in lines.items():
+        z, _, word = COUNTED_NUCLEI[nucleus]
+        envs = len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == z})
+        if envs == 0:
+            res.flags.append(f"{nucleus}: the text lists {count(n, 'signal')} but the candidate has no {word}")
+        elif envs != n:
+            res.flags.append(f"{nucleus}: the text lists {count(n, 'signal')}; the candidate has "
+                             f"{count(envs, word + ' environment')} by symmetry")
 
 
 def case_ions(case: dict) -> list[MassStatement]:
@@ -1117,7 +1132,7 @@ def _stage(case: dict, nuclei_models) -> tuple:
         if not np.isfinite(mass) or mass <= 0:
             raise InputError(f"mass: {mass} is not a positive number")
     ions = case_ions(case)
-    f19 = printed_fluorine_lines(case)
+    counted = printed_counted_lines(case)
     notes.extend(f"sample history{' from the text: MS' if st.source == 'text' else ': measured'} {st.describe()}"
                  for st in ions)
     if fcounts is not None:
@@ -1127,7 +1142,7 @@ def _stage(case: dict, nuclei_models) -> tuple:
                              f"({st.neutral}): each candidate is checked against both")
     priors = _check_priors(case.get("priors"), len(cands))
     preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
-    return case, peaks, notes, (fcounts, charge, ions, f19), mass, priors, preps
+    return case, peaks, notes, (fcounts, charge, ions, counted), mass, priors, preps
 
 
 def stage_cases(cases: list[dict]) -> list:
@@ -1212,7 +1227,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         if isinstance(s, Exception):
             out.append(s)
             continue
-        case, peaks, notes, (fcounts, charge, ions, f19), mass, priors, preps = s
+        case, peaks, notes, (fcounts, charge, ions, counted), mass, priors, preps = s
         case_settings = settings.for_peaks(peaks)
         results = []
         for p in preps:
@@ -1221,7 +1236,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
                     p.error = f"SMILES '{p.smiles}': could not be predicted"
                 r = _score_candidate(p, p.preds, peaks, case_settings)
                 _history_checks(r, fcounts, mass, mass_tolerance, charge, ions)
-                _fluorine_check(r, f19)
+                _count_checks(r, counted)
             except Exception as exc:  # noqa: BLE001 - one candidate must not stop the case or the batch
                 r = CandidateResult(p.smiles, p.position, p.name, generated=p.generated, error=f"could not be scored ({type(exc).__name__}: {exc})")
             results.append(r)
