@@ -178,6 +178,10 @@ def test_spreadsheet_peak_tables_with_units_in_the_header_and_semicolons():
     assert [(p.shift, p.multiplicity) for p in pl.peaks] == [(55.6, "CH3"), (166.6, "C")]
     h1 = parse_peaks("ppm;Integral;Mult.\n7.28;1;dd\n3.84;3;s\n", nucleus="1H")
     assert [(p.shift, p.intensity, p.multiplicity) for p in h1.peaks] == [(3.84, 3.0, "s"), (7.28, 1.0, "dd")]
+    # the same locale writes decimal commas; with semicolons or tabs between cells they are unambiguous
+    eu = parse_peaks("ppm;Intensity\n166,6;120\n55,6;900\n")
+    assert [(p.shift, p.intensity) for p in eu.peaks] == [(55.6, 900.0), (166.6, 120.0)]
+    assert [p.shift for p in parse_peaks("ppm\tIntegral\n7,28\t1\n3,84\t3\n", nucleus="1H").peaks] == [3.84, 7.28]
 
 
 def test_a_1h_list_given_as_13c_and_the_reverse_are_named_as_such():

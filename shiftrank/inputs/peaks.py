@@ -340,12 +340,19 @@ def _cell(row: list[str], i: int | None) -> str | None:
     return row[i] if i is not None and i < len(row) else None
 
 
+_DECIMAL_COMMA = re.compile(r"^\s*([−-]?\d+),(\d+)\s*$")
+
+
 def _from_csv(text: str, src: str, nucleus: str) -> list[Peak]:
     lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
     first = lines[0]
     # tab, comma or (a European spreadsheet's export) semicolon, whichever the header uses most
     delim = max(("\t", ",", ";"), key=first.count) if any(d in first for d in "\t,;") else ","
     rows = list(csv.reader(io.StringIO("\n".join(lines)), delimiter=delim))
+    if delim != ",":
+        # a spreadsheet saved in a locale that writes decimal commas ('170,1;1200'): with another separator
+        # a comma between digits can only be the decimal mark
+        rows = [[_DECIMAL_COMMA.sub(r"\1.\2", c) for c in row] for row in rows]
     header = rows[0]
     si = _pick(header, _SHIFT_COLS)
     if si is None:
