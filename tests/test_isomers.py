@@ -481,3 +481,18 @@ def test_groups_linked_through_ch2_o_or_nh_are_named_by_their_ring():
     assert any(a.relation.startswith("CH2O(4-F-C6H4) moved from C2 to C3 of the pyridine")
                for a in isomers("Fc1ccc(OCc2ccccn2)cc1"))
     assert any("(now meta to CH2CH2C6H5)" in a.relation for a in isomers("Clc1ccc(CCc2ccccc2)cc1"))
+
+
+def test_substituted_heteroaryl_and_n_linked_ring_groups_are_named_not_given_as_formulas():
+    # a pyrazol-4-yl carrying N-CH3, a 5-fluoroindol-1-ylmethyl, a Boc-piperazinylphenyl beside a substituted
+    # benzimidazole (ring names and locants as chemists write them; common practice)
+    rel = [a.relation for a in isomers("Cn1cc(-c2ccc(Cl)cc2)cn1", kinds=("positional",))]
+    assert "Cl moved from ring atom 7 to ring atom 6 (now meta to 1-CH3-pyrazol-4-yl)" in rel
+    assert any("(now ortho to CH2(5-F-indol-1-yl))" in r for r in
+               (a.relation for a in isomers("Clc1ccc(Cn2ccc3cc(F)ccc32)cc1", kinds=("positional",))))
+    rel = [a.relation for a in isomers("CC(C)(C)OC(=O)N1CCN(c2ccc(-c3nc4cc(F)ccc4n3Cc3ccc(OC)cc3)cc2)CC1",
+                                       kinds=("positional",))]
+    assert any(r.startswith("4-(4-Boc-piperazin-1-yl)-C6H4 moved from C2 to") for r in rel)
+    assert any(r.startswith("4-Boc-piperazin-1-yl moved") and r.endswith("(now meta to 1-PMB-5-F-benzimidazol-2-yl)")
+               for r in rel)
+    assert not any("group (bound through" in r for r in rel)

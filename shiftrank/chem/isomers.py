@@ -206,6 +206,10 @@ GROUP_NAMES = {
     # N-linked rings as chemists name them
     "*N1CCOCC1": "morpholin-4-yl", "*N1CCCCC1": "piperidin-1-yl", "*N1CCCC1": "pyrrolidin-1-yl",
     "*N1CCNCC1": "piperazin-1-yl", "*N1CCN(C)CC1": "4-methylpiperazin-1-yl", "*n1cccn1": "pyrazol-1-yl",
+    "*N1CCN(C(=O)OC(C)(C)C)CC1": "4-Boc-piperazin-1-yl", "*N1CCN(C(C)=O)CC1": "4-acetylpiperazin-1-yl",
+    "*N1CCN(CC)CC1": "4-ethylpiperazin-1-yl", "*N1CCN(c2ccccc2)CC1": "4-phenylpiperazin-1-yl",
+    "*N1CCC(O)CC1": "4-hydroxypiperidin-1-yl", "*N1CCS(=O)(=O)CC1": "1,1-dioxothiomorpholin-4-yl",
+    "*N1CCSCC1": "thiomorpholin-4-yl", "*N1CCCCCC1": "azepan-1-yl", "*N1CC1": "aziridin-1-yl", "*N1CCC1": "azetidin-1-yl",
     "*n1ccnc1": "imidazol-1-yl", "*n1ccnn1": "1,2,3-triazol-1-yl", "*n1cncn1": "1,2,4-triazol-1-yl",
     "*N1C(=O)C=CC1=O": "maleimido", "*N1C(=O)c2ccccc2C1=O": "phthalimido",
     # coupling handles and leaving or protecting groups on O and N
@@ -264,6 +268,8 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
         name = f"({inner})" if inner else None
     if name is None:
         return None
+    if "-" in name and not name.startswith("("):
+        name = f"({name})"   # 4-(morpholin-4-yl)-C6H4, not 4-morpholin-4-yl-C6H4
     d = abs(ring.index(at) - ring.index(root))
     return f"{1 + min(d, 6 - d)}-{name}-C6H4"
 
@@ -288,18 +294,41 @@ def _linked_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     root = cur
     if _group_table().get(_rooted_smiles(mol, nxt, root)) == "C6H5":
         return f"{prefix}C6H5"   # CH2CH2C6H5, CH2OC6H5
-    aryl = _aryl_name(mol, nxt, root)
-    if aryl:
-        return f"{prefix}({aryl})"
-    system = next((s for s in _ring_systems(mol) if nxt in s), None)
-    if system is None or any(n.GetIdx() not in system and n.GetIdx() != root
-                             for i in system for n in mol.GetAtomWithIdx(i).GetNeighbors()):
-        return None   # (a ring carrying more than the link: its name would leave its groups out)
-    loc = ring_locants(mol, system)
-    if not loc or nxt not in loc[1]:
+    ring = _aryl_name(mol, nxt, root) or _ring_group_name(mol, nxt, root)
+    return f"{prefix}({ring})" if ring else None
+
+
+def _ring_group_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
+    """A parent ring system (:data:`.locants.PARENTS`) bound through ``root``, named with its locants and
+    its other substituents when each of those has a short name: 'pyridin-2-yl', '5-F-1-PMB-benzimidazol-2-yl',
+    '1-CH3-pyrazol-4-yl'; None for anything else (a ring that closes back, an unnamed substituent)."""
+    system = next((s for s in _ring_systems(mol) if root in s), None)
+    if system is None or ring_atom in system:
         return None
+    subs = [(i, n.GetIdx()) for i in system for n in mol.GetAtomWithIdx(i).GetNeighbors()
+            if n.GetIdx() not in system and not (i == root and n.GetIdx() == ring_atom)]
+    if len(subs) > 3:
+        return None
+    loc = ring_locants(mol, system)
+    if not loc or root not in loc[1]:
+        return None
+    parts = []
+    for i, x in subs:
+        if mol.GetBondBetweenAtoms(i, x).GetBondTypeAsDouble() != 1.0:
+            return None   # (an oxo or imino group: the parent's name would change)
+        name = _group_table().get(_rooted_smiles(mol, x, i)) or _aryl_name(mol, x, i)
+        if name is None:
+            return None
+        parts.append((loc[1][i], f"({name})" if "-" in name and not name.startswith("(") else name))
     stem = loc[0][:-1] if loc[0].endswith("e") else loc[0]   # pyridine -> pyridin-2-yl, furan -> furan-2-yl
-    return f"{prefix}({stem}-{loc[1][nxt][1:]}-yl)"
+    prefix = "".join(f"{where[1:]}-{name}-" for where, name in sorted(parts, key=lambda p: _locant_key(p[0])))
+    return f"{prefix}{stem}-{loc[1][root][1:]}-yl"
+
+
+def _locant_key(label: str) -> tuple:
+    """'N1' < 'C2' < 'C3a' < 'C4' … by number, then letter."""
+    m = re.match(r"[A-Z][a-z]?(\d+)([a-z]?)", label)
+    return (int(m.group(1)), m.group(2)) if m else (99, label)
 
 
 def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
@@ -308,7 +337,7 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
         return ""
     if smi in _group_table():
         return _group_table()[smi]
-    aryl = _aryl_name(mol, root, ring_atom) or _linked_name(mol, root, ring_atom)
+    aryl = _aryl_name(mol, root, ring_atom) or _linked_name(mol, root, ring_atom) or _ring_group_name(mol, root, ring_atom)
     if aryl:
         return aryl
     if len(smi) <= 24:
