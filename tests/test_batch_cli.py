@@ -168,6 +168,10 @@ def test_named_candidate_objects_and_a_bad_entry_in_one_case(tmp_path):
     assert [x["smiles"] for x in rows[:2]] == [PARA, META] and rows[1].get("name") == "meta ester"
     assert len(rows) == 4 and all("error" in x for x in rows[2:])
     assert "candidate 3: expected a SMILES string or an object with a 'smiles' string" in rows[2]["error"]
+    # candidates as an object of names and SMILES (a dict in a script)
+    f.write_text(json.dumps({"id": "dict", "peaks": PEAKS, "candidates": {"meta ester": META, "para ester": PARA}}) + "\n")
+    rows = json.loads(run("batch", str(f)).stdout)["ranking"]
+    assert [(x["name"], x["smiles"]) for x in rows] == [("para ester", PARA), ("meta ester", META)]
 
 
 def test_a_batch_case_may_name_a_reaction_whose_products_are_its_candidates(tmp_path):

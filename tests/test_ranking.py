@@ -322,6 +322,13 @@ def test_a_printed_19f_section_is_compared_with_each_candidates_fluorine_environ
     assert "19F: the text lists 2 signals but the candidate has no fluorine" in r.best.flags
 
 
+def test_candidates_may_be_a_dict_of_names_and_smiles():
+    # diethyl benzylphosphonate's 1H paragraph (values from memory) against an ester without P
+    text = "1H NMR (400 MHz, CDCl3) δ 7.35–7.20 (m, 5H), 4.01 (m, 4H), 3.15 (d, J = 21.6 Hz, 2H), 1.24 (t, J = 7.0 Hz, 6H)."
+    r = rank(text=text, candidates={"phosphonate": "CCOP(=O)(Cc1ccccc1)OCC", "ester": "CCOC(=O)Cc1ccccc1"})
+    assert [c.name for c in r.candidates] == ["phosphonate", "ester"]
+
+
 def test_a_printed_31p_section_is_counted_like_a_19f_one():
     # diethyl benzylphosphonate: its 1H paragraph and one 31P line (values from memory; only the count is read)
     # against a bisphosphonate with two P environments and an ester without P

@@ -55,11 +55,13 @@ def read_cases(path: str | Path) -> list[tuple[int, dict | InputError]]:
         cands = case["candidates"]
         if cands is None and case.get("reaction") is not None:
             cands = case["candidates"] = []   # the reaction's products alone
+        if isinstance(cands, dict):   # {name: SMILES}
+            cands = [{"name": k, "smiles": v} if isinstance(v, str) else v for k, v in cands.items()]
         if isinstance(cands, list):
             cands = case["candidates"] = [_candidate_entry(c, k) for k, c in enumerate(cands, 1)]
         if not isinstance(cands, list):
             exc = InputError(f"line {n}: 'candidates' must be a list of SMILES strings (or of {{\"smiles\": …, "
-                             f"\"name\": …}} objects)")
+                             f"\"name\": …}} objects, or an object of names and SMILES)")
             exc.case_id = case_id
             out.append((n, exc))
             continue

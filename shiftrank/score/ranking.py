@@ -974,7 +974,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
          peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
          rotamers: bool = False, mixture: bool = False) -> RankResult:
-    """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules) against peaks.
+    """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules, or a ``{name: SMILES}``
+    dict) against peaks.
 
     ``peaks`` (13C) and ``peaks_1h`` are :class:`~shiftrank.inputs.peaks.PeakList` objects, lists (or NumPy
     arrays) of shifts, lists of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"``
@@ -1074,6 +1075,8 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
 
 def _stage(case: dict, nuclei_models) -> tuple:
     cands = case.get("candidates")
+    if isinstance(cands, dict):   # {name: SMILES}, as a script or a batch case may hold them
+        cands = list(cands.items())
     if case.get("reaction") is not None:   # the products of a named reaction or reaction SMARTS join the candidates
         from ..chem.isomers import isomers
 
@@ -1085,7 +1088,8 @@ def _stage(case: dict, nuclei_models) -> tuple:
     if isinstance(cands, (str, bytes)):
         raise InputError("candidates: expected a list of SMILES strings, got one string (give [\"SMILES\"] for one candidate)")
     if not isinstance(cands, (list, tuple)):
-        raise InputError("candidates: expected a list of SMILES strings")
+        raise InputError("candidates: expected a list of SMILES strings (or of [name, SMILES] pairs, or an object "
+                         "of names and SMILES)")
     cands = list(cands)
     if not cands:
         raise InputError("candidates: no candidate structures given")
