@@ -152,6 +152,7 @@ class Assignment:
     unmatched_peaks: list[int]
     total_cost: float
     parts: dict = field(default_factory=dict)   # cost by kind: deviation, overlap, missing, extra, multiplicity, …
+    extra_costs: tuple = ()                     # per peak: what it costs when no class explains it
 
 
 _LOGC: dict[float, float] = {}
@@ -272,8 +273,11 @@ def assign(classes: list[SignalClass], peaks: list[ObservedPeak], costs: MatchCo
     over = costs.overlap_for(gap)
     units = np.array([max(1, int(c.units)) for c in classes])
     if units.max(initial=1) == 1 and flexible:
-        return _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over)
-    return _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over)
+        a = _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over)
+    else:
+        a = _assign_units(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, units, over)
+    a.extra_costs = tuple(float(x) for x in extra)
+    return a
 
 
 def _assign_classes(classes, peaks, costs, dev, dcost, mcost, bad, base, extra, miss, over) -> Assignment:

@@ -77,6 +77,7 @@ class CandidateResult:
     #: with two or more spectra: the probability each spectrum alone gives (its own temperature, no priors)
     by_spectrum: dict = field(default_factory=dict)
     generated: bool = False            # an alternative added by ``with_isomers``; ``name`` is its relation
+    divisors: dict = field(default_factory=dict)  # nucleus -> the temperature its cost was divided by
 
     def __repr__(self) -> str:
         """Short: the structure, its probability and fit (the full record is :meth:`to_dict`)."""
@@ -179,9 +180,27 @@ class RankResult:
         dash for it; the verdict says how the spectra fit)."""
         return sum(1 for c in self.candidates if not c.error) == 1
 
+    @property
+    def runner_up(self) -> CandidateResult | None:
+        """The second readable candidate (None when fewer than two could be read)."""
+        valid = [c for c in self.candidates if not c.error]
+        return valid[1] if len(valid) > 1 and not self.candidates[0].error else None
+
+    def separation(self, limit: int = 4) -> list:
+        """The observed lines that separate the best candidate from the runner-up most, in ln odds
+        (:func:`shiftrank.score.separation.separating_signals`); empty with fewer than two candidates."""
+        from .separation import separating_signals
+
+        second = self.runner_up
+        return separating_signals(self.best, second, limit) if second is not None else []
+
     def to_dict(self, detail: bool = False) -> dict:
         d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
              "nuclei": self.nuclei}
+        sep = self.separation()
+        if sep:
+            d["separation"] = {"first": self.best.smiles, "second": self.runner_up.smiles,
+                               "signals": [s.to_dict() for s in sep]}
         if self.notes:
             d["notes"] = self.notes
         if detail:
@@ -447,7 +466,8 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
                 c.atoms = [std.atom_map[a] for a in c.atoms]
         res.nuclei[n] = r
         res.flags.extend(r.flags)
-        total += r.cost / settings.divisor(n, len(peaks) > 1)
+        res.divisors[n] = settings.divisor(n, len(peaks) > 1)
+        total += r.cost / res.divisors[n]
     res.cost = total
     return res
 

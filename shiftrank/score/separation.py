@@ -1,0 +1,130 @@
+"""Which signals separate the best candidate from the runner-up.
+
+The ranking's score is a sum over spectra of each assignment's cost divided by that spectrum's
+temperature, and an assignment's cost is itself a sum over the observed lines: the classes placed on a
+line (shift deviation, multiplicity misfit, a shared line), a line no class explains, and classes left
+unobserved.  Splitting both candidates' costs line by line over the same observed lines therefore says
+where the difference in their scores comes from: the lines whose share differs most are the ones a
+chemist should look at (and, with 2D data, confirm).  A share is in natural-log units of the odds
+between the two candidates (the probabilities' ratio is e to the sum of the shares); what the assignment
+charges without a line of its own (1H integrals a multiplet promises and nobody supplies, a second class in
+a resolved multiplet) is kept as one 'rest' share per spectrum.
+
+>>> s = Separator("13C", 133.0, None, 2.3, ["atom 4 CH predicted 133.6 (−0.6)"], ["atom 4 CH predicted 122.1 (+10.9)"])
+>>> s.line, round(s.factor, 1)
+('133.0', 10.0)
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+#: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
+MIN_SHARE = 0.3
+#: nuclei whose lines are split (HSQC cross peaks are left to the assignment table)
+NUCLEI = ("13C", "1H")
+
+
+@dataclass
+class Separator:
+    """One observed line (``kind`` 'line'), the classes left unobserved ('unobserved') or the rest of a
+    spectrum's cost ('rest'), and how much it favours the first candidate over the second (``share``, ln
+    odds; negative favours the second)."""
+
+    nucleus: str
+    shift: float | None
+    range: tuple | None
+    share: float
+    first: list[str]
+    second: list[str]
+    kind: str = "line"
+
+    @property
+    def factor(self) -> float:
+        return math.exp(min(abs(self.share), 50.0))
+
+    @property
+    def line(self) -> str:
+        if self.kind != "line":
+            return {"unobserved": "unobserved classes", "rest": "integrals, shared multiplets"}[self.kind]
+        if self.range is not None:
+            return f"{_ppm(self.range[1])}–{_ppm(self.range[0])}"
+        return _ppm(self.shift)
+
+    def to_dict(self) -> dict:
+        return {"nucleus": self.nucleus, "kind": self.kind, "shift": self.shift, "range": list(self.range) if self.range else None,
+                "ln_odds": round(self.share, 3), "first": self.first, "second": self.second}
+
+
+def _ppm(v: float) -> str:
+    """A shift as printed: '133.0', '7.26', '121.05' (at least one decimal, at most three)."""
+    text = f"{v:.3f}".rstrip("0")
+    return text + "0" if text.endswith(".") else text
+
+
+def _same_lines(a, b) -> bool:
+    """The two candidates read the spectrum as the same lines (a C–F multiplet read as one carbon by one of them
+    only makes the readings differ)."""
+    return len(a.peaks) == len(b.peaks) and all(p.shift == q.shift for p, q in zip(a.peaks, b.peaks))
+
+
+def _describe(res, pairing) -> str:
+    c = res.classes[pairing.cls]
+    atoms = ",".join(str(a) for a in c.atoms)
+    what = f"atom{'s' if len(c.atoms) > 1 else ''} {atoms} {c.multiplicity}"
+    nd = 1 if res.nucleus == "13C" else 2
+    if pairing.peak is None:
+        return f"{what} predicted {c.shift:.{nd}f}, unobserved"
+    dev = "" if pairing.deviation is None else f" ({pairing.deviation:+.{nd}f}"
+    z = "" if pairing.z is None or abs(pairing.z) < 2 else f", {abs(pairing.z):.1f}σ"
+    return f"{what} predicted {c.shift:.{nd}f}{dev}{z})" if dev else f"{what} predicted {c.shift:.{nd}f}"
+
+
+def _line_costs(res) -> tuple[np.ndarray, float, float]:
+    """(cost per observed line, cost of the unobserved classes, the rest) of one spectrum's assignment."""
+    a = res.assignment
+    per = np.zeros(len(res.peaks))
+    unobserved = 0.0
+    for p in a.pairings:
+        if p.peak is None:
+            unobserved += p.cost
+        else:
+            per[p.peak] += p.cost
+    for j in a.unmatched_peaks:
+        if j < len(a.extra_costs):
+            per[j] += a.extra_costs[j]
+    return per, unobserved, a.total_cost - per.sum() - unobserved
+
+
+def separating_signals(first, second, limit: int | None = 4, min_share: float = MIN_SHARE) -> list[Separator]:
+    """The lines whose cost shares differ most between ``first`` and ``second`` (:class:`CandidateResult`
+    objects of one ranking), largest first, at most ``limit``; both directions are listed, so a line that
+    favours the runner-up is shown beside those that favour the best."""
+    out: list[Separator] = []
+    for n in NUCLEI:
+        a, b = first.nuclei.get(n), second.nuclei.get(n)
+        if a is None or b is None or not _same_lines(a, b):
+            continue
+        t = first.divisors.get(n, 1.0)
+        ca, ua, ra = _line_costs(a)
+        cb, ub, rb = _line_costs(b)
+        on_a = {j: [p for p in a.assignment.pairings if p.peak == j] for j in range(len(a.peaks))}
+        on_b = {j: [p for p in b.assignment.pairings if p.peak == j] for j in range(len(b.peaks))}
+        for j, pk in enumerate(a.peaks):
+            share = float(cb[j] - ca[j]) / t
+            rng = (pk.lo, pk.hi) if pk.lo is not None and pk.hi is not None and pk.lo != pk.hi else None
+            out.append(Separator(n, pk.shift, rng, share,
+                                 [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
+                                 [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"]))
+        miss_a = [_describe(a, p) for p in a.assignment.pairings if p.peak is None]
+        miss_b = [_describe(b, p) for p in b.assignment.pairings if p.peak is None]
+        if miss_a or miss_b:
+            out.append(Separator(n, None, None, float(ub - ua) / t, miss_a or ["none"], miss_b or ["none"],
+                                 "unobserved"))
+        if abs(rb - ra) / t >= min_share:
+            out.append(Separator(n, None, None, float(rb - ra) / t, [f"{ra:.1f} nats"], [f"{rb:.1f} nats"], "rest"))
+    out = [s for s in out if abs(s.share) >= min_share]
+    out.sort(key=lambda s: -abs(s.share))
+    return out[:limit] if limit is not None else out

@@ -1,0 +1,55 @@
+"""The lines that separate the best candidate from the runner-up.
+
+Spectra: 1-methylindazole, 13C in CDCl3 (values from memory: C3 132.7, C3a 124.0, C4 121.0, C5 120.4, C6 126.2,
+C7 108.8, C7a 139.8, NCH3 35.4); ethyl 4-methoxybenzoate, 1H and 13C as a printed paragraph (values from memory).
+"""
+import json
+
+import pytest
+
+from shiftrank import rank
+from shiftrank.score.separation import separating_signals
+
+INDAZOLE_13C = [132.7, 124.0, 121.0, 120.4, 126.2, 108.8, 139.8, 35.4]
+N1, N2 = "Cn1ncc2ccccc21", "Cn1cc2ccccc2n1"
+ANISATE = ("1H NMR (400 MHz, CDCl3) δ 7.95 (d, J = 8.8 Hz, 2H), 6.92 (d, J = 8.8 Hz, 2H), 4.35 (q, J = 7.1 Hz, 2H), "
+           "3.86 (s, 3H), 1.38 (t, J = 7.1 Hz, 3H). 13C NMR (101 MHz, CDCl3) δ 166.4, 163.3, 131.6, 122.9, 113.6, 60.7, "
+           "55.4, 14.4.")
+
+
+@pytest.mark.parametrize("kwargs", [
+    {"peaks": INDAZOLE_13C, "candidates": [N1, N2]},
+    {"text": ANISATE, "candidates": ["CCOC(=O)c1ccc(OC)cc1", "CCOC(=O)c1cccc(OC)c1", "CCOC(=O)c1ccccc1OC"]},
+])
+def test_the_shares_of_all_lines_add_up_to_the_score_difference(kwargs):
+    # the probabilities' ratio of #1 and #2 is e to the sum of the shares (no priors given)
+    r = rank(**kwargs)
+    shares = separating_signals(r.best, r.runner_up, limit=None, min_share=0.0)
+    assert sum(s.share for s in shares) == pytest.approx(r.best.score - r.runner_up.score, abs=1e-6)
+    assert r.best.probability / r.runner_up.probability == pytest.approx(
+        2.718281828 ** sum(s.share for s in shares), rel=1e-4)
+
+
+def test_n1_against_n2_methylindazole_is_told_by_c3_and_c7():
+    # the carbons chemists compare to tell 1- from 2-alkylindazoles: C3 (about 133 against 123 ppm) and C7 (about
+    # 109 against 117) (common practice; values from memory)
+    r = rank(peaks=INDAZOLE_13C, candidates=[N2, N1])
+    assert r.best.smiles == N1
+    top = r.separation()
+    assert {s.line for s in top[:2]} == {"132.7", "108.8"}
+    assert all(s.share > 0 for s in top[:2]) and all(s.nucleus == "13C" and s.kind == "line" for s in top)
+    assert "4.1σ" in " ".join(top[0].second + top[1].second)   # the runner-up's misfit is named
+
+
+def test_separation_is_shown_in_the_table_json_and_report(tmp_path):
+    r = rank(peaks=INDAZOLE_13C, candidates=[N1, N2])
+    assert "What separates #1 from #2 most" in str(r)
+    d = r.to_dict()
+    assert d["separation"]["first"] == N1 and d["separation"]["second"] == N2
+    assert d["separation"]["signals"][0]["ln_odds"] > 0
+    json.dumps(d)
+    assert "What separates #1 from #2 most" in r._repr_html_()
+    # one candidate: nothing to separate
+    one = rank(peaks=INDAZOLE_13C, candidates=[N1])
+    assert one.separation() == [] and "separation" not in one.to_dict()
+    assert "What separates" not in str(one)
