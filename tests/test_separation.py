@@ -1,6 +1,7 @@
 """The lines that separate the best candidate from the runner-up.
 
-Spectra: 1-methylindazole, 13C in CDCl3 (values from memory: C3 132.7, C3a 124.0, C4 121.0, C5 120.4, C6 126.2,
+Spectra: ethyl acetate's HSQC cross peaks from the 1H and 13C of Fulmer et al. 2010 (Organometallics 29, 2176;
+from memory, as in test_hsqc.py); 1-methylindazole, 13C in CDCl3 (values from memory: C3 132.7, C3a 124.0, C4 121.0, C5 120.4, C6 126.2,
 C7 108.8, C7a 139.8, NCH3 35.4); ethyl 4-methoxybenzoate, 1H and 13C as a printed paragraph (values from memory).
 """
 import json
@@ -20,11 +21,14 @@ ANISATE = ("1H NMR (400 MHz, CDCl3) δ 7.95 (d, J = 8.8 Hz, 2H), 6.92 (d, J = 8.
 @pytest.mark.parametrize("kwargs", [
     {"peaks": INDAZOLE_13C, "candidates": [N1, N2]},
     {"text": ANISATE, "candidates": ["CCOC(=O)c1ccc(OC)cc1", "CCOC(=O)c1cccc(OC)c1", "CCOC(=O)c1ccccc1OC"]},
+    {"hsqc": [[21.04, 2.05], [60.49, 4.12], [14.19, 1.26]], "peaks": [171.36, 60.49, 21.04, 14.19],
+     "candidates": ["CCOC(C)=O", "CCC(=O)OC"]},
 ])
 def test_the_shares_of_all_lines_add_up_to_the_score_difference(kwargs):
     # the probabilities' ratio of #1 and #2 is e to the sum of the shares (no priors given)
     r = rank(**kwargs)
     shares = separating_signals(r.best, r.runner_up, limit=None, min_share=0.0)
+    assert {s.nucleus for s in shares} == set(r.nuclei)
     assert sum(s.share for s in shares) == pytest.approx(r.best.score - r.runner_up.score, abs=1e-6)
     assert r.best.probability / r.runner_up.probability == pytest.approx(
         2.718281828 ** sum(s.share for s in shares), rel=1e-4)

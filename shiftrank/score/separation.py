@@ -23,8 +23,8 @@ import numpy as np
 
 #: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
 MIN_SHARE = 0.3
-#: nuclei whose lines are split (HSQC cross peaks are left to the assignment table)
-NUCLEI = ("13C", "1H")
+#: spectra whose lines are split (an HSQC line is a cross peak, named δC/δH)
+NUCLEI = ("13C", "1H", "HSQC")
 
 
 @dataclass
@@ -40,6 +40,7 @@ class Separator:
     first: list[str]
     second: list[str]
     kind: str = "line"
+    h: float | None = None     # HSQC: the cross peak's δH
 
     @property
     def factor(self) -> float:
@@ -51,11 +52,14 @@ class Separator:
             return {"unobserved": "unobserved classes", "rest": "integrals, shared multiplets"}[self.kind]
         if self.range is not None:
             return f"{_ppm(self.range[1])}–{_ppm(self.range[0])}"
-        return _ppm(self.shift)
+        return _ppm(self.shift) + (f"/{_ppm(self.h)}" if self.h is not None else "")
 
     def to_dict(self) -> dict:
-        return {"nucleus": self.nucleus, "kind": self.kind, "shift": self.shift, "range": list(self.range) if self.range else None,
-                "ln_odds": round(self.share, 3), "first": self.first, "second": self.second}
+        d = {"nucleus": self.nucleus, "kind": self.kind, "shift": self.shift, "range": list(self.range) if self.range else None,
+             "ln_odds": round(self.share, 3), "first": self.first, "second": self.second}
+        if self.h is not None:
+            d["shift_h"] = self.h
+        return d
 
 
 def _ppm(v: float) -> str:
@@ -67,14 +71,14 @@ def _ppm(v: float) -> str:
 def _same_lines(a, b) -> bool:
     """The two candidates read the spectrum as the same lines (a C–F multiplet read as one carbon by one of them
     only makes the readings differ)."""
-    return len(a.peaks) == len(b.peaks) and all(p.shift == q.shift for p, q in zip(a.peaks, b.peaks))
+    return len(a.peaks) == len(b.peaks) and all(p.shift == q.shift and p.h_lo == q.h_lo for p, q in zip(a.peaks, b.peaks))
 
 
 def _describe(res, pairing) -> str:
     c = res.classes[pairing.cls]
     atoms = ",".join(str(a) for a in c.atoms)
     what = f"atom{'s' if len(c.atoms) > 1 else ''} {atoms} {c.multiplicity}"
-    nd = 1 if res.nucleus == "13C" else 2
+    nd = 2 if res.nucleus == "1H" else 1
     if pairing.peak is None:
         return f"{what} predicted {c.shift:.{nd}f}, unobserved"
     dev = "" if pairing.deviation is None else f" ({pairing.deviation:+.{nd}f}"
@@ -117,7 +121,8 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
             rng = (pk.lo, pk.hi) if pk.lo is not None and pk.hi is not None and pk.lo != pk.hi else None
             out.append(Separator(n, pk.shift, rng, share,
                                  [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
-                                 [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"]))
+                                 [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"],
+                                 h=pk.h_lo if n == "HSQC" else None))
         miss_a = [_describe(a, p) for p in a.assignment.pairings if p.peak is None]
         miss_b = [_describe(b, p) for p in b.assignment.pairings if p.peak is None]
         if miss_a or miss_b:
