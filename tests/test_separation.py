@@ -57,3 +57,22 @@ def test_separation_is_shown_in_the_table_json_and_report(tmp_path):
     one = rank(peaks=INDAZOLE_13C, candidates=[N1])
     assert one.separation() == [] and "separation" not in one.to_dict()
     assert "What separates" not in str(one)
+
+
+def test_next_measurement_is_suggested_only_when_the_first_two_stay_close():
+    # 1H of 1-methylindazole in CDCl3 (from memory): H3 7.98 s, H4 7.72 d, H6/H7 7.40 m, H5 7.15 m, NCH3 4.07 s
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.98 (s, 1H), 7.72 (d, J = 8.1 Hz, 1H), 7.42–7.35 (m, 2H), 7.15 (m, 1H), "
+            "4.07 (s, 3H).")
+    r = rank(text=text, candidates=[N1, N2])
+    r.candidates[0].probability, r.candidates[1].probability = 0.6, 0.4   # as if the 1H lines left them close
+    hints = r.next_spectrum()
+    # the two differ most at C3 (about 133 against 123 ppm) or C7 (about 109 against 117) (common practice)
+    assert len(hints) == 1 and hints[0].startswith("a 13C spectrum would likely tell #1 and #2 apart")
+    assert "(predictions)" in hints[0]
+    assert "next measurement: a 13C spectrum" in str(r)
+    r.candidates[0].probability = 0.95
+    assert r.next_spectrum() == []
+    # both 1D spectra given and still close: 2D correlations are named (common practice)
+    both = rank(peaks=INDAZOLE_13C, peaks_1h=[7.98, 7.72, 7.40, 7.15, 4.07], candidates=[N1, N2])
+    both.candidates[0].probability = 0.7
+    assert "HMBC" in both.next_spectrum()[0]

@@ -272,14 +272,15 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
                  "<th>formula</th></tr>" + "".join(rows) + "</table>")
     if result.notes:
         parts.append("<div class='note'>" + "<br>".join(e(n) for n in result.notes) + "</div>")
-    sep = result.separation()
-    if sep:
+    sep, hints = result.separation(), result.next_spectrum()
+    if sep or hints:
         srows = "".join(f"<tr><td>{e(s.nucleus)}</td><td class=num>{e(s.line)}</td><td class=num>{s.share:+.1f}</td>"
                         f"<td>{e('; '.join(s.first))}</td><td>{e('; '.join(s.second))}</td></tr>" for s in sep)
-        parts.append("<details open><summary>What separates #1 from #2 most</summary><table><tr><th>spectrum</th>"
-                     "<th>line (ppm)</th><th>ln odds</th><th>#1 places there</th><th>#2 places there</th></tr>"
-                     f"{srows}</table><p class='note'>each line's share of the two candidates' score difference "
-                     "(+ favours #1; the probabilities' ratio is e to the sum over all lines)</p></details>")
+        table = ("<table><tr><th>spectrum</th><th>line (ppm)</th><th>ln odds</th><th>#1 places there</th>"
+                 f"<th>#2 places there</th></tr>{srows}</table><p class='note'>each line's share of the two candidates' "
+                 "score difference (+ favours #1; the probabilities' ratio is e to the sum over all lines)</p>") if sep else ""
+        parts.append("<details open><summary>What separates #1 from #2 most</summary>" + table
+                     + "".join(f"<p class='note'>next measurement: {e(h)}</p>" for h in hints) + "</details>")
     if inventory is not None:
         parts.append("<h3>Inventory and sample-history checks</h3><ul>" + "".join(f"<li>{e(x)}</li>" for x in inventory.lines()) + "</ul>")
         if inventory.regions:

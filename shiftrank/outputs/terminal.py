@@ -74,13 +74,14 @@ def print_ranking(result, inputs: dict, out=None) -> None:
 def print_separation(result, out=None) -> None:
     """The lines that separate the best candidate from the runner-up (:meth:`RankResult.separation`)."""
     out = out or sys.stdout
-    sep = result.separation()
-    if not sep:
-        return
-    print("\nWhat separates #1 from #2 most (ln odds of the line; + favours #1, − favours #2):", file=out)
+    sep, hints = result.separation(), result.next_spectrum()
+    if sep or hints:
+        print("\nWhat separates #1 from #2 most (ln odds of the line; + favours #1, − favours #2):", file=out)
     for s in sep:
         print(f"  {s.nucleus:<4}{s.line:>14}  {s.share:+6.1f}  #1: {'; '.join(s.first)}", file=out)
         print(f"  {'':<4}{'':>14}  {'':>6}  #2: {'; '.join(s.second)}", file=out)
+    for hint in hints:
+        print(f"  next measurement: {hint}", file=out)
 
 
 def print_assignment(cand, nucleus: str, out=None) -> None:

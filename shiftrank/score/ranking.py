@@ -144,6 +144,7 @@ class RankResult:
     verdict: str
     notes: list[str] = field(default_factory=list)
     model_version: str | None = None
+    solvent: str | None = None          # as the case gave it (predictions for a spectrum not given use it)
 
     @property
     def best(self) -> CandidateResult:
@@ -194,6 +195,13 @@ class RankResult:
         second = self.runner_up
         return separating_signals(self.best, second, limit) if second is not None else []
 
+    def next_spectrum(self) -> list[str]:
+        """With #1 not clearly ahead, what a 13C or 1H spectrum not given would add (predictions of the two,
+        :func:`shiftrank.score.separation.next_spectrum`)."""
+        from .separation import next_spectrum
+
+        return next_spectrum(self, self.solvent)
+
     def to_dict(self, detail: bool = False) -> dict:
         d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
              "nuclei": self.nuclei}
@@ -205,6 +213,9 @@ class RankResult:
             d["notes"] = self.notes
         if detail:
             d["peaks"] = {n: [_peak_dict(p) for p in ps] for n, ps in self.peaks.items()}
+            nxt = self.next_spectrum()
+            if nxt:
+                d["next_spectrum"] = nxt
         d["model"] = self.model_version
         return d
 
@@ -1275,5 +1286,6 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             said += (f"; the sample holds two isomers, and the lines left fit {other.name or other.smiles} best as the "
                      "second (see the notes)" if other is not None else
                      "; the sample holds two isomers; no other candidate explains the lines left (see the notes)")
-        out.append(RankResult(case.get("id"), results, peaks, said, notes, version))
+        solvent = case.get("solvent") if isinstance(case.get("solvent"), str) else None
+        out.append(RankResult(case.get("id"), results, peaks, said, notes, version, normalise_solvent(solvent)))
     return out

@@ -133,3 +133,74 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
     out = [s for s in out if abs(s.share) >= min_share]
     out.sort(key=lambda s: -abs(s.share))
     return out[:limit] if limit is not None else out
+
+
+#: below this probability of the best candidate, a spectrum not given is weighed as the next measurement
+NEXT_BELOW = 0.9
+#: predicted lines this many combined σ apart would likely be told apart by a measured spectrum
+NEXT_Z = 2.0
+
+
+def _predicted_classes(smiles: str, nucleus: str, solvent: str | None) -> list[tuple[str, float, float]]:
+    """(label, mean predicted shift, σ) per symmetry class of ``smiles`` for ``nucleus``."""
+    from ..chem.structure import symmetry_ranks
+    from ..inputs.molecules import to_mol
+    from ..prediction.api import predict
+
+    pred = predict(smiles, solvent, nucleus)
+    mol = to_mol(smiles)
+    ranks = symmetry_ranks(mol)
+    groups: dict[int, list] = {}
+    for a in pred.atoms:
+        groups.setdefault(ranks[a.atom], []).append(a)
+    out = []
+    for members in groups.values():
+        atom = mol.GetAtomWithIdx(members[0].atom)
+        h = atom.GetTotalNumHs()
+        kind = ("C" if h == 0 else f"CH{h if h > 1 else ''}") if nucleus == "13C" else f"{h * len(members)}H on {atom.GetSymbol()}"
+        where = ",".join(str(m.atom) for m in members)
+        out.append((f"{kind}, atom{'s' if len(members) > 1 else ''} {where}",
+                    float(np.mean([m.shift for m in members])), float(np.mean([m.sigma for m in members]))))
+    return out
+
+
+def next_spectrum(result, solvent: str | None = None) -> list[str]:
+    """When #1 is not clearly ahead (p below :data:`NEXT_BELOW`), what a 13C or 1H spectrum not given would add:
+    the two candidates' predicted spectra are matched class to class (Hungarian matching on the shift
+    difference over the combined σ) and the most separated pair, or a difference in the number of expected
+    signals, is named; or it is said that the predictions hardly differ.  Predictions, not measurements: a
+    suggestion for the next experiment, not evidence."""
+    from scipy.optimize import linear_sum_assignment
+
+    from ..errors import InputError
+
+    first, second = result.best, result.runner_up
+    if second is None or first.probability >= NEXT_BELOW:
+        return []
+    out = []
+    if all(n in result.peaks for n in ("13C", "1H")):
+        return ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they differ "
+                "(HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common practice)"]
+    for n in ("13C", "1H"):
+        if n in result.peaks or (n == "13C" and "HSQC" in result.peaks):
+            continue
+        try:
+            a = _predicted_classes(first.smiles, n, solvent)
+            b = _predicted_classes(second.smiles, n, solvent)
+        except InputError:
+            continue
+        if not a or not b:
+            continue
+        z = np.array([[abs(x[1] - y[1]) / math.hypot(x[2], y[2]) for y in b] for x in a])
+        rows, cols = linear_sum_assignment(z)
+        k = int(np.argmax(z[rows, cols]))
+        i, j = rows[k], cols[k]
+        nd = 1 if n == "13C" else 2
+        counts = (f"; #1 expects {len(a)} signals, #2 {len(b)} (symmetry)" if len(a) != len(b) else "")
+        if z[i, j] >= NEXT_Z:
+            out.append(f"a {n} spectrum would likely tell #1 and #2 apart: #1 predicts {a[i][1]:.{nd}f} ({a[i][0]}) where "
+                       f"#2's matching class is at {b[j][1]:.{nd}f} ({b[j][0]}), {z[i, j]:.1f}σ apart{counts} (predictions)")
+        else:
+            out.append(f"a {n} spectrum would hardly tell #1 and #2 apart by shifts (their predicted classes differ by at "
+                       f"most {z[i, j]:.1f}σ){counts} (predictions)")
+    return out
