@@ -144,7 +144,7 @@ class RankResult:
     verdict: str
     notes: list[str] = field(default_factory=list)
     model_version: str | None = None
-    solvent: str | None = None          # as the case gave it (predictions for a spectrum not given use it)
+    solvent: str | None = None          # as given or printed (predictions for a spectrum not given use it)
 
     @property
     def best(self) -> CandidateResult:
@@ -1177,6 +1177,7 @@ def _stage(case: dict, nuclei_models) -> tuple:
                              f"({st.neutral}): each candidate is checked against both")
     priors = _check_priors(case.get("priors"), len(cands))
     preps = [_prepare(c, i, solvent, needed) for i, c in enumerate(cands)]
+    case = {**case, "_solvent": solvent}   # the solvent as read (given, or from the paragraph), for the result
     return case, peaks, notes, (fcounts, charge, ions, counted), mass, priors, preps
 
 
@@ -1286,6 +1287,5 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             said += (f"; the sample holds two isomers, and the lines left fit {other.name or other.smiles} best as the "
                      "second (see the notes)" if other is not None else
                      "; the sample holds two isomers; no other candidate explains the lines left (see the notes)")
-        solvent = case.get("solvent") if isinstance(case.get("solvent"), str) else None
-        out.append(RankResult(case.get("id"), results, peaks, said, notes, version, normalise_solvent(solvent)))
+        out.append(RankResult(case.get("id"), results, peaks, said, notes, version, case.get("_solvent")))
     return out
