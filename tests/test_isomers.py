@@ -496,3 +496,13 @@ def test_substituted_heteroaryl_and_n_linked_ring_groups_are_named_not_given_as_
     assert any(r.startswith("4-Boc-piperazin-1-yl moved") and r.endswith("(now meta to 1-PMB-5-F-benzimidazol-2-yl)")
                for r in rel)
     assert not any("group (bound through" in r for r in rel)
+
+
+def test_amide_and_sulfonamide_links_and_rings_with_several_groups_are_named():
+    # an anilide's NHCO(aryl), a sulfonamide's SO2NH(pyridyl) and NHSO2(aryl) with two groups on its ring (names
+    # as chemists condense them; common practice)
+    rel = [a.relation for a in isomers("COc1ccc(C(=O)Nc2ccc(N3CCOCC3)c(C)c2)cc1", kinds=("positional",))]
+    assert "CH3 moved from ring atom 19 to ring atom 10 (now ortho to NHCO(4-OCH3-C6H4), meta to morpholin-4-yl)" in rel
+    rel = [a.relation for a in isomers("Cc1ccc(S(=O)(=O)Nc2ccccn2)cc1Cl", kinds=("positional",))]
+    assert any(r.startswith("NHSO2(3-Cl-4-CH3-C6H3) moved from C2 to C3 of the pyridine") for r in rel)
+    assert any("(now meta to SO2NH(pyridin-2-yl), meta to Cl)" in r for r in rel)

@@ -246,8 +246,9 @@ def _group_table() -> dict[str, str]:
 
 
 def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
-    """'4-F-C6H4' for a benzene ring carrying one named group (or one such ring: '4-(4-F-C6H4)-C6H4')
-    besides the bond to the ring it hangs on; None for anything else."""
+    """'4-F-C6H4' for a benzene ring carrying one to three named groups besides the bond to the ring it hangs
+    on ('3-Cl-4-CH3-C6H3', numbered from that bond for the lowest locants), or one such ring
+    ('4-(4-F-C6H4)-C6H4'); None for anything else."""
     a = mol.GetAtomWithIdx(root)
     if a.GetAtomicNum() != 6 or not a.GetIsAromatic():
         return None
@@ -259,33 +260,42 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
         return None   # fused
     subs = [(i, b.GetOtherAtomIdx(i)) for i in ring for b in mol.GetAtomWithIdx(i).GetBonds()
             if b.GetOtherAtomIdx(i) not in ring and not (i == root and b.GetOtherAtomIdx(i) == ring_atom)]
-    if len(subs) != 1:
+    if not 1 <= len(subs) <= 3:
         return None
-    at, x = subs[0]
-    name = _group_table().get(_rooted_smiles(mol, x, at))
-    if name is None:
-        inner = _aryl_name(mol, x, at)          # a biphenylyl: 4-(4-CH3-C6H4)-C6H4
-        name = f"({inner})" if inner else None
-    if name is None:
-        return None
-    if "-" in name and not name.startswith("("):
-        name = f"({name})"   # 4-(morpholin-4-yl)-C6H4, not 4-morpholin-4-yl-C6H4
-    d = abs(ring.index(at) - ring.index(root))
-    return f"{1 + min(d, 6 - d)}-{name}-C6H4"
+    named = []
+    for at, x in subs:
+        name = _group_table().get(_rooted_smiles(mol, x, at))
+        if name is None and len(subs) == 1:
+            inner = _aryl_name(mol, x, at)          # a biphenylyl: 4-(4-CH3-C6H4)-C6H4
+            name = f"({inner})" if inner else None
+        if name is None:
+            return None
+        if "-" in name and not name.startswith("("):
+            name = f"({name})"   # 4-(morpholin-4-yl)-C6H4, not 4-morpholin-4-yl-C6H4
+        named.append((at, name))
+    k = ring.index(root)
+    numbered = min(([(1 + ((ring.index(at) - k) * d) % 6, name) for at, name in named] for d in (1, -1)),
+                   key=lambda pairs: sorted(p for p, _ in pairs))
+    return "".join(f"{p}-{name}-" for p, name in sorted(numbered)) + f"C6H{5 - len(subs)}"
 
 
 def _linked_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
-    """A CH2, O, NH or S link to a named benzene ring or to an unsubstituted parent ring with locants:
-    'CH2(2-F-C6H4)', 'O(4-CH3-C6H4)', 'CH2(indazol-1-yl)'; None for anything else."""
+    """A CH2, O, NH, S, CO or SO2 link (one or two of them) to a named benzene ring or to a parent ring with
+    locants: 'CH2(2-F-C6H4)', 'O(4-CH3-C6H4)', 'CH2(indazol-1-yl)', 'NHCO(4-OCH3-C6H4)', 'SO2NH(pyridin-2-yl)';
+    None for anything else."""
     links = {(6, 2): "CH2", (8, 0): "O", (7, 1): "NH", (16, 0): "S"}
     prefix, prev, cur = "", ring_atom, root
-    for _ in range(2):   # a link of one or two atoms: CH2, O, CH2O, OCH2, CH2CH2 …
+    for _ in range(2):   # a link of one or two atoms: CH2, O, CH2O, OCH2, CH2CH2, NHCO, CONH, SO2NH …
         a = mol.GetAtomWithIdx(cur)
+        oxo = [n.GetIdx() for n in a.GetNeighbors() if n.GetAtomicNum() == 8 and n.GetDegree() == 1
+               and mol.GetBondBetweenAtoms(cur, n.GetIdx()).GetBondTypeAsDouble() == 2.0]
         label = links.get((a.GetAtomicNum(), a.GetTotalNumHs()))
-        if a.GetIsAromatic() or a.IsInRing() or a.GetDegree() != 2 or a.GetFormalCharge() or label is None:
+        if oxo:   # a carbonyl or sulfonyl link: its =O atoms are part of it
+            label = {(6, 1): "CO", (16, 2): "SO2"}.get((a.GetAtomicNum(), len(oxo)))
+        if a.GetIsAromatic() or a.IsInRing() or a.GetDegree() - len(oxo) != 2 or a.GetFormalCharge() or label is None:
             return None
         prefix += label
-        nxt = next(n.GetIdx() for n in a.GetNeighbors() if n.GetIdx() != prev)
+        nxt = next(n.GetIdx() for n in a.GetNeighbors() if n.GetIdx() != prev and n.GetIdx() not in oxo)
         if mol.GetAtomWithIdx(nxt).IsInRing():
             break
         prev, cur = cur, nxt
