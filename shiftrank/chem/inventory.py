@@ -317,13 +317,14 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     inv = (_proton_only(h1, formula, mz, mz_tolerance_ppm) if c13 is None
            else _take(c13, h1, formula, mz, mz_tolerance_ppm, hsqc))
     for nucleus, lines in (counted_lines or {}).items():
-        el = _COUNTED[nucleus][0]
+        el = COUNTED_NUCLEI[nucleus][1]
         inv.findings.append(counted_finding(nucleus, lines, sample_formula(formula)[0].get(el, 0) if formula else None))
     return inv
 
 
-#: printed nuclei counted against the formula's atoms of their element: nucleus -> (element, word)
-_COUNTED = {"19F": ("F", "fluorine"), "31P": ("P", "phosphorus")}
+#: printed nuclei whose signals are counted, not predicted (against the formula's atoms of their element here, against
+#: each candidate's environments of it in the ranking): nucleus -> (atomic number, element, word)
+COUNTED_NUCLEI = {"19F": (9, "F", "fluorine"), "31P": (15, "P", "phosphorus")}
 
 
 def counted_finding(nucleus: str, lines: int, n_atoms: int | None) -> str:
@@ -332,7 +333,7 @@ def counted_finding(nucleus: str, lines: int, n_atoms: int | None) -> str:
     >>> counted_finding("19F", 1, 3)
     '19F: 1 signal for 3 F in the formula: three equivalent F, a CF3 group most likely'
     """
-    el, word = _COUNTED[nucleus]
+    _, el, word = COUNTED_NUCLEI[nucleus]
     head = f"{nucleus}: {count(lines, 'signal')}"
     if n_atoms is None:
         return f"{head}: at least {count(lines, word + ' environment')}"

@@ -29,6 +29,7 @@ import numpy as np
 from rdkit import Chem
 
 from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_formula
+from ..chem.inventory import COUNTED_NUCLEI
 from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
 from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symmetry_ranks
 from ..errors import InputError
@@ -939,9 +940,6 @@ def second_form(results: list[CandidateResult], peaks: dict,
             "against each other before trusting either"), c
 
 
-#: nuclei whose printed signals are counted against each candidate's environments of the element (no shifts of
-#: theirs are predicted): nucleus -> (atomic number, element, word)
-COUNTED_NUCLEI = {"19F": (9, "F", "fluorine"), "31P": (15, "P", "phosphorus")}
 _COUNTED_HEADER = re.compile(r"19\s*F|¹⁹F|31\s*P|³¹P")
 
 
