@@ -177,10 +177,10 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
     first, second = result.best, result.runner_up
     if second is None or first.probability >= NEXT_BELOW:
         return []
-    out = []
     if all(n in result.peaks for n in ("13C", "1H")):
         return ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they differ "
                 "(HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common practice)"]
+    out = []
     for n in ("13C", "1H"):
         if n in result.peaks or (n == "13C" and "HSQC" in result.peaks):
             continue
