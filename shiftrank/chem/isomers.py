@@ -264,7 +264,7 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
         return None
     named = []
     for at, x in subs:
-        name = _group_table().get(_rooted_smiles(mol, x, at))
+        name = _table_name(mol, x, at)
         if name is None and len(subs) == 1:
             inner = _aryl_name(mol, x, at)          # a biphenylyl: 4-(4-CH3-C6H4)-C6H4
             name = f"({inner})" if inner else None
@@ -302,7 +302,7 @@ def _linked_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     else:
         return None
     root = cur
-    if _group_table().get(_rooted_smiles(mol, nxt, root)) == "C6H5":
+    if _table_name(mol, nxt, root) == "C6H5":
         return f"{prefix}C6H5"   # CH2CH2C6H5, CH2OC6H5
     ring = _aryl_name(mol, nxt, root) or _ring_group_name(mol, nxt, root)
     return f"{prefix}({ring})" if ring else None
@@ -326,7 +326,7 @@ def _ring_group_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     for i, x in subs:
         if mol.GetBondBetweenAtoms(i, x).GetBondTypeAsDouble() != 1.0:
             return None   # (an oxo or imino group: the parent's name would change)
-        name = _group_table().get(_rooted_smiles(mol, x, i)) or _aryl_name(mol, x, i)
+        name = _table_name(mol, x, i) or _aryl_name(mol, x, i)
         if name is None:
             return None
         parts.append((loc[1][i], f"({name})" if "-" in name and not name.startswith("(") else name))
@@ -342,21 +342,40 @@ def _locant_key(label: str) -> tuple:
 
 
 def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
-    smi = _rooted_smiles(mol, root, ring_atom)
-    if not smi:
-        return ""
+    atoms = _side(mol, root, ring_atom)
+    if ring_atom in atoms:
+        return ""   # (the group closes back onto the ring: not a simple substituent)
+    # (a side longer than a SMILES shown in full is never written out: most of a big group's cost)
+    smi = _rooted_smiles(mol, root, ring_atom) if len(atoms) <= MAX_SHOWN_SMILES else None
     if smi in _group_table():
         return _group_table()[smi]
     aryl = _aryl_name(mol, root, ring_atom) or _linked_name(mol, root, ring_atom) or _ring_group_name(mol, root, ring_atom)
     if aryl:
         return aryl
-    if len(smi) <= 24:
+    if smi is not None and len(smi) <= MAX_SHOWN_SMILES:
         return smi
     # a large group: its formula and the atom it is bound through, not a cut-off SMILES
     from .formula import hill
     from .structure import element_counts
 
-    return f"{hill(element_counts(mol, _side(mol, root, ring_atom)))} group (bound through atom {root})"
+    return f"{hill(element_counts(mol, atoms))} group (bound through atom {root})"
+
+
+#: longest substituent SMILES a label shows as it is (a larger group is named by its formula)
+MAX_SHOWN_SMILES = 24
+
+
+def _table_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
+    """The :data:`GROUP_NAMES` name of the group on ``ring_atom`` through ``root``, or None; a side with more
+    atoms than the table's largest group is not written out to look it up."""
+    if len(_side(mol, root, ring_atom)) > _group_table_size():
+        return None
+    return _group_table().get(_rooted_smiles(mol, root, ring_atom))
+
+
+@lru_cache(maxsize=1)
+def _group_table_size() -> int:
+    return max(Chem.MolFromSmiles(smi).GetNumAtoms() - 1 for smi in GROUP_NAMES)
 
 
 def _ring_relation(mol: Chem.Mol, i: int) -> str:
