@@ -76,3 +76,17 @@ def test_next_measurement_is_suggested_only_when_the_first_two_stay_close():
     both = rank(peaks=INDAZOLE_13C, peaks_1h=[7.98, 7.72, 7.40, 7.15, 4.07], candidates=[N1, N2])
     both.candidates[0].probability = 0.7
     assert "HMBC" in both.next_spectrum()[0]
+
+
+def test_a_19f_count_is_suggested_when_the_two_differ_in_fluorine_environments():
+    # 3,5- against 2,4-difluoroanisole: one fluorine environment against two (symmetry, common practice); 1H of the
+    # 3,5-isomer as a rough list (values from memory); not suggested once a 19F section is printed
+    h1 = [{"shift": 6.42, "integral": 3, "multiplicity": "m"}, {"shift": 3.78, "integral": 3, "multiplicity": "s"}]
+    r = rank(peaks_1h=h1, candidates=["COc1cc(F)cc(F)c1", "COc1ccc(F)cc1F"])
+    r.candidates[0].probability = 0.6
+    hints = r.next_spectrum()
+    assert any(h.startswith("a 19F spectrum would tell #1 and #2 apart by its count") for h in hints)
+    text = "1H NMR (400 MHz, CDCl3) δ 6.42 (m, 3H), 3.78 (s, 3H). 19F NMR (376 MHz, CDCl3) δ −109.5."
+    r = rank(text=text, candidates=["COc1cc(F)cc(F)c1", "COc1ccc(F)cc1F"])
+    r.candidates[0].probability = 0.6
+    assert not any("19F" in h for h in r.next_spectrum())

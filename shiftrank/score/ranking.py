@@ -146,6 +146,7 @@ class RankResult:
     notes: list[str] = field(default_factory=list)
     model_version: str | None = None
     solvent: str | None = None          # as given or printed (predictions for a spectrum not given use it)
+    counted: dict = field(default_factory=dict)   # printed 19F/31P signals by nucleus (counted, not predicted)
 
     @property
     def best(self) -> CandidateResult:
@@ -1285,5 +1286,5 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
             said += (f"; the sample holds two isomers, and the lines left fit {other.name or other.smiles} best as the "
                      "second (see the notes)" if other is not None else
                      "; the sample holds two isomers; no other candidate explains the lines left (see the notes)")
-        out.append(RankResult(case.get("id"), results, peaks, said, notes, version, case.get("_solvent")))
+        out.append(RankResult(case.get("id"), results, peaks, said, notes, version, case.get("_solvent"), counted))
     return out

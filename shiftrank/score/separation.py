@@ -164,12 +164,39 @@ def _predicted_classes(smiles: str, nucleus: str, solvent: str | None) -> list[t
     return out
 
 
+def _counted_hints(first: str, second: str, printed=()) -> list[str]:
+    """A 19F or 31P spectrum's signal count where #1 and #2 have different numbers of fluorine (phosphorus)
+    environments by symmetry (common practice); not for a nucleus whose section was ``printed``."""
+    from ..chem.inventory import COUNTED_NUCLEI
+    from ..chem.structure import symmetry_ranks
+    from ..errors import InputError
+    from ..inputs.molecules import to_mol
+
+    try:
+        mols = [to_mol(first), to_mol(second)]
+    except InputError:
+        return []
+    out = []
+    for nucleus, (z, _, word) in COUNTED_NUCLEI.items():
+        if nucleus in printed:
+            continue
+        envs = []
+        for m in mols:
+            ranks = symmetry_ranks(m)
+            envs.append(len({ranks[a.GetIdx()] for a in m.GetAtoms() if a.GetAtomicNum() == z}))
+        if envs[0] != envs[1]:
+            out.append(f"a {nucleus} spectrum would tell #1 and #2 apart by its count: #1 has "
+                       f"{envs[0]} {word} environment{'s' if envs[0] != 1 else ''}, #2 {envs[1]} (symmetry)")
+    return out
+
+
 def next_spectrum(result, solvent: str | None = None) -> list[str]:
     """When #1 is not clearly ahead (p below :data:`NEXT_BELOW`), what a 13C or 1H spectrum not given would add:
     the two candidates' predicted spectra are matched class to class (Hungarian matching on the shift
     difference over the combined σ) and the most separated pair, or a difference in the number of expected
-    signals, is named; or it is said that the predictions hardly differ.  Predictions, not measurements: a
-    suggestion for the next experiment, not evidence."""
+    signals, is named; or it is said that the predictions hardly differ; a 19F or 31P count is named where
+    the two have different numbers of F or P environments.  Predictions, not measurements: a suggestion for
+    the next experiment, not evidence."""
     from scipy.optimize import linear_sum_assignment
 
     from ..errors import InputError
@@ -177,10 +204,11 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
     first, second = result.best, result.runner_up
     if second is None or first.probability >= NEXT_BELOW:
         return []
+    out = _counted_hints(first.smiles, second.smiles, result.counted)
     if all(n in result.peaks for n in ("13C", "1H")):
-        return ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they differ "
-                "(HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common practice)"]
-    out = []
+        return out + ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they "
+                      "differ (HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common "
+                      "practice)"]
     for n in ("13C", "1H"):
         if n in result.peaks or (n == "13C" and "HSQC" in result.peaks):
             continue
