@@ -270,13 +270,16 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
             name = f"({inner})" if inner else None
         if name is None:
             return None
-        if "-" in name and not name.startswith("("):
-            name = f"({name})"   # 4-(morpholin-4-yl)-C6H4, not 4-morpholin-4-yl-C6H4
-        named.append((at, name))
+        named.append((at, _bracketed(name)))
     k = ring.index(root)
     numbered = min(([(1 + ((ring.index(at) - k) * d) % 6, name) for at, name in named] for d in (1, -1)),
                    key=lambda pairs: sorted(p for p, _ in pairs))
     return "".join(f"{p}-{name}-" for p, name in sorted(numbered)) + f"C6H{5 - len(subs)}"
+
+
+def _bracketed(name: str) -> str:
+    """A group's name as a prefix inside another name: 4-(morpholin-4-yl)-C6H4, not 4-morpholin-4-yl-C6H4."""
+    return f"({name})" if "-" in name and not name.startswith("(") else name
 
 
 def _linked_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
@@ -329,7 +332,7 @@ def _ring_group_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
         name = _table_name(mol, x, i) or _aryl_name(mol, x, i)
         if name is None:
             return None
-        parts.append((loc[1][i], f"({name})" if "-" in name and not name.startswith("(") else name))
+        parts.append((loc[1][i], _bracketed(name)))
     stem = loc[0][:-1] if loc[0].endswith("e") else loc[0]   # pyridine -> pyridin-2-yl, furan -> furan-2-yl
     prefix = "".join(f"{where[1:]}-{name}-" for where, name in sorted(parts, key=lambda p: _locant_key(p[0])))
     return f"{prefix}{stem}-{loc[1][root][1:]}-yl"
