@@ -50,7 +50,8 @@ def test_separation_is_shown_in_the_table_json_and_report(tmp_path):
     assert "What separates #1 from #2 most" in str(r)
     d = r.to_dict()
     assert d["separation"]["first"] == N1 and d["separation"]["second"] == N2
-    assert d["separation"]["signals"][0]["ln_odds"] > 0
+    top = d["separation"]["signals"][0]
+    assert top["ln_odds"] > 0 and top["first_classes"][0]["atoms"] and top["second_classes"][0]["predicted"] > 100
     json.dumps(d)
     assert "What separates #1 from #2 most" in r._repr_html_()
     # one candidate: nothing to separate

@@ -17,7 +17,7 @@ a resolved multiplet) is kept as one 'rest' share per spectrum.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -41,6 +41,8 @@ class Separator:
     second: list[str]
     kind: str = "line"
     h: float | None = None     # HSQC: the cross peak's δH
+    first_classes: list = field(default_factory=list)    # the classes as data: atoms, predicted, deviation, z
+    second_classes: list = field(default_factory=list)
 
     @property
     def factor(self) -> float:
@@ -56,7 +58,8 @@ class Separator:
 
     def to_dict(self) -> dict:
         d = {"nucleus": self.nucleus, "kind": self.kind, "shift": self.shift, "range": list(self.range) if self.range else None,
-             "ln_odds": round(self.share, 3), "first": self.first, "second": self.second}
+             "ln_odds": round(self.share, 3), "first": self.first, "second": self.second,
+             "first_classes": self.first_classes, "second_classes": self.second_classes}
         if self.h is not None:
             d["shift_h"] = self.h
         return d
@@ -72,6 +75,14 @@ def _same_lines(a, b) -> bool:
     """The two candidates read the spectrum as the same lines (a C–F multiplet read as one carbon by one of them
     only makes the readings differ)."""
     return len(a.peaks) == len(b.peaks) and all(p.shift == q.shift and p.h_lo == q.h_lo for p, q in zip(a.peaks, b.peaks))
+
+
+def _row(res, pairing) -> dict:
+    """One class placed on (or missing from) a line, as data."""
+    c = res.classes[pairing.cls]
+    r = lambda x: None if x is None else round(float(x), 3)  # noqa: E731
+    return {"atoms": list(c.atoms), "multiplicity": c.multiplicity, "predicted": r(c.shift), "sigma": r(c.sigma),
+            "deviation": r(pairing.deviation), "z": r(pairing.z)}
 
 
 def _describe(res, pairing) -> str:
@@ -122,12 +133,14 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
             out.append(Separator(n, pk.shift, rng, share,
                                  [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
                                  [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"],
-                                 h=pk.h_lo if n == "HSQC" else None))
-        miss_a = [_describe(a, p) for p in a.assignment.pairings if p.peak is None]
-        miss_b = [_describe(b, p) for p in b.assignment.pairings if p.peak is None]
-        if miss_a or miss_b:
-            out.append(Separator(n, None, None, float(ub - ua) / t, miss_a or ["none"], miss_b or ["none"],
-                                 "unobserved"))
+                                 h=pk.h_lo if n == "HSQC" else None,
+                                 first_classes=[_row(a, p) for p in on_a[j]], second_classes=[_row(b, p) for p in on_b[j]]))
+        gone_a = [p for p in a.assignment.pairings if p.peak is None]
+        gone_b = [p for p in b.assignment.pairings if p.peak is None]
+        if gone_a or gone_b:
+            out.append(Separator(n, None, None, float(ub - ua) / t, [_describe(a, p) for p in gone_a] or ["none"],
+                                 [_describe(b, p) for p in gone_b] or ["none"], "unobserved",
+                                 first_classes=[_row(a, p) for p in gone_a], second_classes=[_row(b, p) for p in gone_b]))
         if abs(rb - ra) / t >= min_share:
             out.append(Separator(n, None, None, float(rb - ra) / t, [f"{ra:.1f} nats"], [f"{rb:.1f} nats"], "rest"))
     out = [s for s in out if abs(s.share) >= min_share]
