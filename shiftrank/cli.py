@@ -535,6 +535,12 @@ def cmd_isomers(args) -> int:
         return 0
     if args.smiles:
         print(f"{count(len(alts), 'alternative')} to {args.smiles} ({args.kind}):")
+        if not alts:
+            others = [k for k in ("positional", "ambident", "tautomer") if k not in args.kind.split(",")]
+            print("  none: no ring substituent can move to a position that is not equivalent by symmetry"
+                  + (", and no group sits on an ambident site (N against O, N1 against N2, N against S)" if "ambident" in args.kind else "")
+                  + (f"; other kinds: --kind {','.join(others)}" if others else "")
+                  + "; the products of a named reaction: --reaction NAME --reactants A.B")
     else:
         print(f"{count(len(alts), 'reaction product')} of {args.reaction} on {args.reactants}:")
     for k, a in enumerate(alts, 1):

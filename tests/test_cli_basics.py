@@ -127,3 +127,10 @@ def test_rank_takes_the_products_of_a_named_reaction_as_candidates():
     assert r.returncode == 2 and "--reaction NAME --reactants" in r.stderr
     r = run("isomers", "--reaction", "snar", "--reactants", "Clc1ccnc(Cl)n1.C1COCCN1", "--smi")
     assert [ln.split("\t")[1].split(" product")[0] for ln in r.stdout.splitlines()] == ["SNAr", "SNAr"]
+
+
+def test_isomers_says_why_there_is_no_alternative():
+    # toluene: every ring position of a lone methyl is equivalent (symmetry; common practice)
+    r = run("isomers", "Cc1ccccc1", "--kind", "positional")
+    assert r.returncode == 0 and "0 alternatives" in r.stdout
+    assert "equivalent by symmetry" in r.stdout and "--kind ambident,tautomer" in r.stdout
