@@ -91,3 +91,19 @@ def test_a_19f_count_is_suggested_when_the_two_differ_in_fluorine_environments()
     r = rank(text=text, candidates=["COc1cc(F)cc(F)c1", "COc1ccc(F)cc1F"])
     r.candidates[0].probability = 0.6
     assert not any("19F" in h for h in r.next_spectrum())
+
+
+def test_a_dept_135_is_suggested_when_the_two_differ_in_chn():
+    # C- against O-methylation of pentane-2,4-dione: 3-methylpentane-2,4-dione (keto form, 13C from memory: 204.5,
+    # 61.5, 28.9, 12.7) has a CH where 4-methoxypent-3-en-2-one has an =CH and one more C and CH3 (common practice)
+    r = rank(peaks=[204.5, 61.5, 28.9, 12.7], candidates=["CC(=O)C(C)C(C)=O", "COC(C)=CC(C)=O"])
+    r.candidates[0].probability = 0.6
+    hints = r.next_spectrum()
+    assert hints[0] == ("a DEPT-135 (or an edited HSQC) would tell #1 and #2 apart: #1 has 1 C, 1 CH, 2 CH3 signals, "
+                        "#2 2 C, 1 CH, 3 CH3")
+    # with multiplicities given there is nothing a DEPT would add
+    typed = rank(peaks=[{"shift": 204.5, "multiplicity": "C"}, {"shift": 61.5, "multiplicity": "CH"},
+                        {"shift": 28.9, "multiplicity": "CH3"}, {"shift": 12.7, "multiplicity": "CH3"}],
+                 candidates=["CC(=O)C(C)C(C)=O", "COC(C)=CC(C)=O"])
+    typed.candidates[0].probability = 0.6
+    assert not any("DEPT" in h for h in typed.next_spectrum())

@@ -203,12 +203,29 @@ def _counted_hints(first: str, second: str, printed=()) -> list[str]:
     return out
 
 
+def _dept_hint(result, first, second) -> list[str]:
+    """A DEPT-135 (or an edited HSQC) where a 13C list without multiplicities was given and #1 and #2 differ in
+    their numbers of C, CH, CH2 and CH3 signals (common practice)."""
+    peaks = result.peaks.get("13C")
+    a, b = first.nuclei.get("13C"), second.nuclei.get("13C")
+    if peaks is None or a is None or b is None or any(p.multiplicity for p in peaks if not p.solvent):
+        return []
+    kinds = ("C", "CH", "CH2", "CH3")
+    ca = {k: sum(1 for c in a.classes if c.multiplicity == k) for k in kinds}
+    cb = {k: sum(1 for c in b.classes if c.multiplicity == k) for k in kinds}
+    if ca == cb:
+        return []
+    say = lambda d: ", ".join(f"{d[k]} {k}" for k in kinds if d[k])  # noqa: E731
+    return [f"a DEPT-135 (or an edited HSQC) would tell #1 and #2 apart: #1 has {say(ca)} signals, #2 {say(cb)}"]
+
+
 def next_spectrum(result, solvent: str | None = None) -> list[str]:
     """When #1 is not clearly ahead (p below :data:`NEXT_BELOW`), what a 13C or 1H spectrum not given would add:
     the two candidates' predicted spectra are matched class to class (Hungarian matching on the shift
     difference over the combined σ) and the most separated pair, or a difference in the number of expected
     signals, is named; or it is said that the predictions hardly differ; a 19F or 31P count is named where
-    the two have different numbers of F or P environments.  Predictions, not measurements: a suggestion for
+    the two have different numbers of F or P environments, a DEPT-135 where a 13C list without multiplicities
+    leaves two candidates with different numbers of C, CH, CH2 and CH3 signals.  Predictions, not measurements: a suggestion for
     the next experiment, not evidence."""
     from scipy.optimize import linear_sum_assignment
 
@@ -217,7 +234,7 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
     first, second = result.best, result.runner_up
     if second is None or first.probability >= NEXT_BELOW:
         return []
-    out = _counted_hints(first.smiles, second.smiles, result.counted)
+    out = _counted_hints(first.smiles, second.smiles, result.counted) + _dept_hint(result, first, second)
     if all(n in result.peaks for n in ("13C", "1H")):
         return out + ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they "
                       "differ (HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common "
