@@ -47,7 +47,7 @@ def test_n1_against_n2_methylindazole_is_told_by_c3_and_c7():
 
 def test_separation_is_shown_in_the_table_json_and_report(tmp_path):
     r = rank(peaks=INDAZOLE_13C, candidates=[N1, N2])
-    assert "What separates #1 from #2 most" in str(r)
+    assert f"What separates #1 ({N1}) from #2 ({N2}) most" in str(r)
     d = r.to_dict()
     assert d["separation"]["first"] == N1 and d["separation"]["second"] == N2
     top = d["separation"]["signals"][0]

@@ -71,12 +71,18 @@ def print_ranking(result, inputs: dict, out=None) -> None:
     print(f"\nModels {result.model_version}. Caution: {CAUTION}", file=out)
 
 
+def _short(label: str, width: int = 40) -> str:
+    return label if len(label) <= width else label[:width - 1] + "…"
+
+
 def print_separation(result, out=None) -> None:
     """The lines that separate the best candidate from the runner-up (:meth:`RankResult.separation`)."""
     out = out or sys.stdout
     sep, hints = result.separation(), result.next_spectrum()
     if sep or hints:
-        print("\nWhat separates #1 from #2 most (ln odds of the line; + favours #1, − favours #2):", file=out)
+        one, two = (_short(c.name or c.smiles) for c in (result.best, result.runner_up))
+        print(f"\nWhat separates #1 ({one}) from #2 ({two}) most (ln odds of the line; + favours #1, − favours #2):",
+              file=out)
     for s in sep:
         print(f"  {s.nucleus:<4}{s.line:>14}  {s.share:+6.1f}  #1: {'; '.join(s.first)}", file=out)
         print(f"  {'':<4}{'':>14}  {'':>6}  #2: {'; '.join(s.second)}", file=out)
