@@ -53,7 +53,8 @@ def test_separation_is_shown_in_the_table_json_and_report(tmp_path):
     top = d["separation"]["signals"][0]
     assert top["ln_odds"] > 0 and top["first_classes"][0]["atoms"] and top["second_classes"][0]["predicted"] > 100
     json.dumps(d)
-    assert "What separates #1 from #2 most" in r._repr_html_()
+    html_text = r._repr_html_()
+    assert "What separates #1 from #2 most" in html_text and "a larger disc and * before the number" in html_text
     # one candidate: nothing to separate
     one = rank(peaks=INDAZOLE_13C, candidates=[N1])
     assert one.separation() == [] and "separation" not in one.to_dict()

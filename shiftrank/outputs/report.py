@@ -63,8 +63,10 @@ def _hex_rgb(h: str) -> tuple[float, float, float]:
     return tuple(int(h[i:i + 2], 16) / 255 for i in (1, 3, 5))
 
 
-def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) -> str:
-    """RDKit drawing with each observed atom labelled by its number and deviation and tinted by |z| (worst pairing)."""
+def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260), marked=frozenset()) -> str:
+    """RDKit drawing with each observed atom labelled by its number and deviation and tinted by |z| (worst pairing);
+    the ``marked`` atoms (those of the lines that separate #1 from #2 most) are drawn with a larger disc and a * before
+    their number (RDKit's drawing font has no symbols beyond ASCII)."""
     res = cand.nuclei.get(nucleus)
     try:
         mol = to_mol(cand.smiles)   # (a SMILES or an InChI, numbered as the tables number it)
@@ -82,15 +84,16 @@ def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260)) 
     nd = 1 if nucleus == "13C" else 2
     for a, (_, p) in worst.items():
         colours[a] = _hex_rgb(tint(p.z))
-        notes[a] = f"{a}: " + ("n/o" if p.deviation is None else f"{p.deviation:+.{nd}f}")
+        notes[a] = ("*" if a in marked else "") + f"{a}: " + ("n/o" if p.deviation is None else f"{p.deviation:+.{nd}f}")
     for a, text in notes.items():
         mol.GetAtomWithIdx(a).SetProp("atomNote", text)
     d = rdMolDraw2D.MolDraw2DSVG(*size)
     opts = d.drawOptions()
     opts.annotationFontScale = 0.7
     opts.clearBackground = False
+    radii = {a: (0.55 if a in marked else 0.3) for a in colours}
     rdMolDraw2D.PrepareAndDrawMolecule(d, mol, highlightAtoms=list(colours), highlightAtomColors=colours,
-                                       highlightBonds=[])
+                                       highlightBonds=[], highlightAtomRadii=radii)
     d.FinishDrawing()
     svg = d.GetDrawingText()
     return svg[svg.find("<svg"):]
@@ -209,7 +212,13 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
                  f"slope {slope:.4f}</p>" + table)
     pics = ""
     if with_plots and nucleus != "HSQC":   # HSQC: the table (δC / δH) is the picture
-        pics = f"<div class='cardrow'><div>{structure_svg(c, nucleus)}</div><div>{spectrum_svg(result, c, nucleus)}</div></div>"
+        marked = frozenset()
+        if rank_no in (1, 2):   # the atoms of the lines that separate #1 from #2 most
+            side = "first_classes" if rank_no == 1 else "second_classes"
+            marked = frozenset(a for sp in result.separation() if sp.nucleus == nucleus
+                               for row in getattr(sp, side) for a in row["atoms"])
+        pics = (f"<div class='cardrow'><div>{structure_svg(c, nucleus, marked=marked)}</div>"
+                f"<div>{spectrum_svg(result, c, nucleus)}</div></div>")
     summary = (f"{nucleus}: {count(len(res.classes), 'expected signal')}, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
                f"{res.beyond_3sigma} beyond 3σ · cost {res.cost:.1f} nats")
     return (f"<div class='nuc'>{e(summary)}</div>{pics}<details{' open' if rank_no == 1 else ''}>"
@@ -290,7 +299,8 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     parts.append("<h3>Candidates</h3>")
     key = "".join(f"<span style='background:{col}'></span>{lab}" for _, col, lab in SCALE)
     parts.append(f"<div class='key note'>atom tint, |observed − predicted| / σ: {key}<span style='background:{UNOBSERVED}'></span>unobserved"
-                 " · labels on atoms: atom number (as in the tables): deviation in ppm, n/o unobserved (13C drawings: carbons; 1H drawings: the atoms carrying each proton class)"
+                 " · labels on atoms: atom number (as in the tables): deviation in ppm, n/o unobserved (13C drawings: carbons; 1H drawings: the atoms carrying each proton class);"
+                 " on #1 and #2, a larger disc and * before the number: an atom of a line that separates them most"
                  " · red marks with × : peaks the candidate does not explain · 1H bars: printed range, height ∝ integral</div>")
     for i, c in enumerate(result.candidates, 1):
         parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error))
