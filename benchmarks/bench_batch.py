@@ -56,12 +56,13 @@ def rdkit_reference(smiles: list[str]) -> float:
 def stages(cases: list[dict]) -> dict:
     """Seconds per stage of ranking ``cases`` in this process (caches cleared first)."""
     from shiftrank.score import ranking as R
+    from shiftrank.score import structures as S
     from shiftrank.score.evidence import EVIDENCE
     from shiftrank.prediction.api import environments_isolated
     from shiftrank.prediction.model_files import default_model
 
-    R._parse.cache_clear()
-    R._standardised.cache_clear()
+    S.parse_candidate.cache_clear()
+    S.standardised_candidate.cache_clear()
     R._describe.cache_clear()
     default_model("13C")
     settings = R.ranking_settings()
@@ -75,7 +76,7 @@ def stages(cases: list[dict]) -> dict:
     t0 = time.perf_counter()
     for c, _, _ in staged:
         for s in c["candidates"]:
-            R._parse(s)
+            S.parse_candidate(s)
     t["parse + standardise + symmetry"] = time.perf_counter() - t0
     t0 = time.perf_counter()
     preps = []

@@ -48,7 +48,8 @@ from scipy.optimize import minimize
 
 from shiftrank.score.evidence import EVIDENCE, MODELS_FOR, ClassMeans
 from shiftrank.score.matching import MatchCosts
-from shiftrank.score.ranking import _parse, settings_from_manifest, stage_cases
+from shiftrank.score.ranking import settings_from_manifest, stage_cases
+from shiftrank.score.structures import parse_candidate
 from training.data import DEFAULT_DATA, hsqc_cases, literature_part, split_of
 
 REPO = Path(__file__).resolve().parents[1]
@@ -138,7 +139,7 @@ def stage(cases: list[dict], mode: str) -> list:
                 if p.error or any(m not in p.preds for m in MODELS_FOR[n]):
                     rows.append(None)
                     continue
-                _, ranks, _ = _parse(p.smiles)
+                _, ranks, _ = parse_candidate(p.smiles)
                 if n == "HSQC":   # both predictions, as class means
                     mu, sg = tuple(ClassMeans(p.parts[m].centres, *p.preds[m]) for m in ("13C", "1H")), None
                 else:

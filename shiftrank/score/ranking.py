@@ -16,11 +16,14 @@ Peaks come as lists (``peaks`` for 13C, ``peaks_1h`` for 1H) or as printed chara
 
 A candidate whose formula contradicts the sample's formula (or whose mass contradicts the given
 mass) is flagged and, by default, ranked last with probability 0 and the reason.
+
+Each candidate's structure facts are computed once per SMILES (:mod:`shiftrank.score.structures`); the
+verdict in words comes from :mod:`shiftrank.score.verdicts`, the lines that separate the best two from
+:mod:`shiftrank.score.separation`.
 """
 from __future__ import annotations
 
 import re
-from collections import Counter
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
 from typing import Sequence
@@ -30,11 +33,9 @@ from rdkit import Chem
 
 from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_formula
 from ..chem.inventory import COUNTED_NUCLEI
-from ..chem.standardise import MAX_HEAVY_ATOMS, Standardised, plain, standardise
-from ..chem.structure import StructureFacts, facts_from_mol, lactim_sites, symmetry_ranks
+from ..chem.structure import StructureFacts
 from ..errors import InputError
-from ..inputs.molecules import check_organic, to_mol
-from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, doubled_pairs, flag_solvent, mark_doubled, merge_duplicates,
+from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, flag_solvent, mark_doubled, merge_duplicates,
                             dept135_from_signs, looks_like_1h, not_13c_message, peak_text, peaks_from_records)
 from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
@@ -42,10 +43,12 @@ from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
-from ..prediction.pi_system import pi_descriptors
 from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from ..words import count
 from .matching import MatchCosts, ObservedPeak, assign
+from .structures import candidate_facts, candidate_pi, parse_candidate, standardised_candidate, tautomer_notes
+from .verdicts import (ISOMER_MIXTURE, _canonical_of, _tautomer_note, spectra_disagreement,  # noqa: F401 - re-exported
+                       tautomer_groups, verdict)
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
@@ -355,70 +358,14 @@ class _Prepared:
     generated: bool = False
 
 
-@lru_cache(maxsize=16384)
-def _parse(smiles: str) -> tuple[Chem.Mol | None, tuple | None, str | None]:
-    """Standardised parent molecule and its symmetry ranks from a SMILES (cached: batches often repeat
-    candidates); the standardisation record is kept in :func:`_standardised`."""
-    try:
-        std = _standardised(smiles)
-        return std.mol, tuple(symmetry_ranks(std.mol)), None
-    except InputError as exc:
-        return None, None, str(exc)
-
-
-@lru_cache(maxsize=16384)
-def _standardised(smiles: str) -> Standardised:
-    mol = to_mol(smiles)
-    if plain(smiles):   # nothing to standardise: skip the checks (the batch fast path)
-        std = Standardised(mol, list(range(mol.GetNumAtoms())))
-    else:
-        std = standardise(mol, f"SMILES '{smiles}'")
-    check_organic(std.mol, f"SMILES '{smiles}'")
-    if std.mol.GetNumHeavyAtoms() > MAX_HEAVY_ATOMS:
-        raise InputError(f"SMILES '{smiles[:40]}…': {std.mol.GetNumHeavyAtoms()} heavy atoms; the limit is {MAX_HEAVY_ATOMS}")
-    return std
-
-
-@lru_cache(maxsize=16384)
-def _facts(smiles: str) -> StructureFacts:
-    mol, ranks, _ = _parse(smiles)
-    return facts_from_mol(mol, smiles, hydrogens=False, ranks=ranks)
-
-
-@lru_cache(maxsize=16384)
-def _tautomer_notes(smiles: str) -> tuple[str, ...]:
-    """A note per OH/SH drawn as the minor tautomer of a lactam or thione (:func:`lactim_sites`), naming the
-    atom in the candidate's own numbering; once per SMILES, as the other structure facts."""
-    std = _standardised(smiles)
-    out = []
-    for x, _ in lactim_sites(std.mol):
-        hydroxy = std.mol.GetAtomWithIdx(x).GetSymbol() == "O"
-        out.append(f"drawn as the {'hydroxy' if hydroxy else 'mercapto'} tautomer (atom {std.atom_map[x]}); in solution such "
-                   f"compounds are mostly the {'oxo' if hydroxy else 'thioxo'} N–H form (common practice), and the "
-                   "prediction is for the form as drawn: add that tautomer as a candidate (isomers, kind 'tautomer')")
-    return tuple(out)
-
-
-@lru_cache(maxsize=4096)
-def _pi(smiles: str):
-    """The Hückel columns of a candidate, computed once for both nuclei (and every solvent)."""
-    mol, _, err = _parse(smiles)
-    if err:
-        return None
-    try:
-        return np.column_stack(pi_descriptors(mol))
-    except Exception:  # noqa: BLE001 - left to mol_parts, which reports a failure with the candidate's name
-        return None
-
-
 @lru_cache(maxsize=32768)
 def _describe(smiles: str, solvent: str | None, nucleus: str) -> tuple[MolParts | None, str | None]:
     """RDKit facts of a candidate for the descriptors of ``nucleus`` (cached per SMILES and solvent)."""
-    mol, _, err = _parse(smiles)
+    mol, _, err = parse_candidate(smiles)
     if err:
         return None, err
     try:
-        return checked_parts(mol, f"SMILES '{smiles}'", solvent, nucleus, _pi(smiles)), None
+        return checked_parts(mol, f"SMILES '{smiles}'", solvent, nucleus, candidate_pi(smiles)), None
     except InputError as exc:
         return None, str(exc)
 
@@ -436,7 +383,7 @@ def _prepare(cand, position: int, solvent: str | None, nuclei) -> _Prepared:
         return _Prepared(str(cand), position, name, error=f"candidate {position + 1}: expected a SMILES string, "
                                                             f"got {type(cand).__name__}")
     prep = _Prepared(cand, position, name, generated=generated)
-    mol, _, err = _parse(cand)
+    mol, _, err = parse_candidate(cand)
     if err:
         prep.error = err
         return prep
@@ -455,14 +402,14 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
     if prep.error:
         res.error = prep.error
         return res
-    _, ranks, _ = _parse(prep.smiles)
-    std = _standardised(prep.smiles)
-    res.facts = _facts(prep.smiles)
+    _, ranks, _ = parse_candidate(prep.smiles)
+    std = standardised_candidate(prep.smiles)
+    res.facts = candidate_facts(prep.smiles)
     if std.notes:
         only_labels = all("isotope label" in n for n in std.notes)   # the formula keeps D/T (chem/labels.py)
         res.flags.append(f"standardised ({'prediction uses' if only_labels else 'formula and prediction use'} the parent): "
                          + "; ".join(std.notes))
-    res.flags.extend(_tautomer_notes(prep.smiles))
+    res.flags.extend(tautomer_notes(prep.smiles))
     identity = std.atom_map == list(range(len(std.atom_map)))
     total = 0.0
     means = {}
@@ -536,249 +483,8 @@ def _softmax(logp: np.ndarray) -> np.ndarray:
     return w / w.sum()
 
 
-#: A spectrum "favours" its best candidate over another when it gives it at least this many times the
-#: other's probability (a likelihood ratio of 2 under that spectrum's own temperature).
-FAVOUR_RATIO = 2.0
-
-
-def spectra_disagreement(cands: list[CandidateResult]) -> str | None:
-    """A note when two spectra, each taken alone, favour different candidates (each at least
-    :data:`FAVOUR_RATIO` times over the other's favourite), e.g. ``'13C alone favours A (p = 0.71), 1H
-    alone favours B (p = 0.64)'``; None when they agree or only one spectrum was observed.
-
-    On the printed-text regio development cases (1H + 13C, both halves, model set 1.8.0 with the 1H settings
-    of its second round) the top candidate was right in 311 of 369 cases without this note (84 %) and in 38
-    of the 69 with it (55 %); README.md.
-    """
-    pool = [c for c in cands if not c.error and c.by_spectrum]
-    if len(pool) < 2:
-        return None
-    spectra = list(pool[0].by_spectrum)
-    fav = {n: max(pool, key=lambda c: c.by_spectrum[n]) for n in spectra}
-    for i, n in enumerate(spectra):
-        for m in spectra[i + 1:]:
-            a, b = fav[n], fav[m]
-            if a is b:
-                continue
-            if a.by_spectrum[n] >= FAVOUR_RATIO * b.by_spectrum[n] and b.by_spectrum[m] >= FAVOUR_RATIO * a.by_spectrum[m]:
-                return (f"{n} alone favours {a.name or a.smiles} (p = {a.by_spectrum[n]:.2f}), "
-                        f"{m} alone favours {b.name or b.smiles} (p = {b.by_spectrum[m]:.2f})")
-    return None
-
-
 def _order_key(c: CandidateResult, demote: bool):
     return (c.error is not None, demote and c.formula_ok is False, -c.probability, c.cost, c.position)
-
-
-def verdict(cands: list[CandidateResult], nuclei: Sequence[str] = ("13C",)) -> str:
-    """One line on the best candidate: clear winner, indistinguishable pair, leaning, or no fit; a note
-    follows when the 1H integrals fit no candidate's proton count."""
-    line = _verdict(cands, nuclei)
-    valid = [c for c in cands if not c.error]
-    if len(valid) > 1 and valid[0].formula_ok is not False:
-        note = _proton_total_misfit(valid)
-        if note:
-            line += f" (note: {note})"
-    return line
-
-
-def _verdict(cands: list[CandidateResult], nuclei: Sequence[str]) -> str:
-    valid = [c for c in cands if not c.error]
-    if not valid:
-        return "no candidate could be evaluated"
-    best = valid[0]
-    label = best.name or best.smiles
-    if best.formula_ok is False:
-        return "no candidate fits the sample history (formula/mass)"
-    spectra = " + ".join(nuclei) if nuclei else "the spectra"
-    poor = []
-    for n, r in best.nuclei.items():
-        k = max(len(r.classes), 1)
-        limit = 0.6 if n == "1H" else 4.0
-        # (a line beside another in a spectrum of two forms may be the second form's: not counted)
-        unexplained = sum(1 for j in r.assignment.unmatched_peaks if not r.peaks[j].solvent and not r.peaks[j].doubled)
-        if (r.mae is not None and r.mae > limit) or r.beyond_3sigma > max(1, 0.25 * k) or unexplained > max(2, 0.3 * k):
-            poor.append(f"{n} MAE {r.mae:.2f} ppm, {count(r.beyond_3sigma, 'class', 'classes')} beyond 3σ, {count(unexplained, 'peak')} unexplained"
-                        if r.mae is not None else f"{n}: nothing assigned")
-    if poor:
-        return f"no candidate fits well: the best ({label}) has " + "; ".join(poor)
-    if len(valid) == 1:
-        return _one_candidate_verdict(best, label)
-    conflict = spectra_disagreement(valid)
-    conflict = f"; the spectra disagree: {conflict}" if conflict else ""
-    count_note = _count_misfit(valid)
-    if count_note:
-        return f"leaning to {label} (p = {best.probability:.2f}), but {count_note}{_stereo_note(valid)}{conflict}"
-    # the best structure as a compound: its NH/OH tautomer drawings among the candidates count with it
-    same = next((g for g in tautomer_groups(valid) if g[0] is best), [best])
-    p_best = sum(c.probability for c in same)
-    shown = f"{label} (p = {best.probability:.2f})"
-    if len(same) > 1:
-        alike = _drawn_alike(same)
-        how = "the same structure" if alike else "the same compound, an NH/OH tautomer"
-        given = sum(1 for c in same if c.smiles == best.smiles)
-        others = list(dict.fromkeys(c.smiles for c in same if c.smiles != best.smiles))
-        parts = ([f"given {given} times"] if given > 1 else []) + (
-            [f"{'written' if alike else 'drawn'} as {', '.join(others)} it is {how}"] if others else [])
-        shown = f"{label} (p = {best.probability:.2f}; {'; '.join(parts)}: together p = {p_best:.2f})"
-    if p_best >= 0.9:
-        return f"clear winner: {shown}{conflict}"
-    rest = [c for c in valid if all(c is not x for x in same)]
-    second = rest[0] if rest else None
-    if second is not None and p_best + second.probability >= 0.9 and second.probability >= 0.2:
-        return (f"two candidates indistinguishable from {spectra} alone: {shown} and "
-                f"{second.name or second.smiles} (p = {second.probability:.2f}){_stereo_note(valid)}{conflict}")
-    return f"leaning to {shown}; not decisive{_stereo_note(valid)}{conflict}"
-
-
-def _stereo_note(valid: list[CandidateResult]) -> str:
-    """When the best candidate and the next structure after it (its own repeats aside) are one constitution drawn with different stereochemistry, what the ranking cannot see and what can."""
-    best = valid[0]
-    second = next((c for c in valid[1:] if _canonical_of(c.smiles) != _canonical_of(best.smiles)), None)
-    if second is None or not _same_constitution(best.smiles, second.smiles):
-        return ""
-
-    def misfits(c):
-        r = c.nuclei.get("1H")
-        return 0 if r is None else len({p.cls for p in r.assignment.pairings if not p.multiplicity_ok})
-    if misfits(second) > misfits(best):
-        return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the printed "
-                f"coupling constants do ({second.name or second.smiles}'s protons cannot show "
-                f"{'them' if misfits(second) > 1 else 'one of them'}); NOE would confirm")
-    return ("; they differ only in stereochemistry, which shifts predicted from the structure's graph do not "
-            "tell apart: compare coupling constants (axial/equatorial, cis/trans alkene J) or NOE")
-
-
-def _same_constitution(a: str, b: str) -> bool:
-    """Whether two candidate SMILES are one constitution drawn with different stereochemistry."""
-    from ..chem.isomers import structure_key
-
-    ca, cb = _canonical_of(a), _canonical_of(b)
-    return ca is not None and cb is not None and ca != cb and structure_key(_parse(a)[0]) == structure_key(_parse(b)[0])
-
-
-def _one_candidate_verdict(best: CandidateResult, label: str) -> str:
-    """The verdict on a lone candidate (the structure on a label, the one intended product): its probability
-    is 1 by construction, so the verdict says how the spectra fit it, with the flags as reservations, and
-    how to test it against the structures it could be confused with."""
-    fit = "; ".join(f"{n} MAE {r.mae:.2f} ppm, {r.observed_signals} signals for {len(r.classes)} expected"
-                    for n, r in best.nuclei.items() if r.mae is not None)
-    doubts = [f for f in best.flags if not f.startswith("standardised")]
-    how = ("rank it with its alternatives (--with-isomers) or compare it with a reference spectrum to tell it "
-           "from an isomer")
-    if doubts:
-        return f"one candidate, {label}: the spectra fit it with reservations ({'; '.join(doubts)}); {fit}; {how}"
-    return f"one candidate, {label}: the spectra fit it ({fit}; none beyond 3σ); {how}"
-
-
-@lru_cache(maxsize=16384)
-def _skeleton_of(smiles: str) -> str | None:
-    """The heavy-atom graph of a candidate with an H on N, O or S (elements and connections; no bond orders,
-    H or charges), which its prototropic tautomers share; None for a candidate with no such H."""
-    from ..chem.isomers import has_mobile_h, heavy_graph_key
-
-    mol, _, err = _parse(smiles)
-    if err or not has_mobile_h(mol):
-        return None
-    return heavy_graph_key(mol)
-
-
-@lru_cache(maxsize=16384)
-def _compound_of(smiles: str) -> str:
-    """The compound of a parsed candidate across its NH/OH tautomers (once per SMILES: an InChI)."""
-    from ..chem.isomers import compound_key
-
-    return compound_key(_parse(smiles)[0])
-
-
-def tautomer_groups(cands: list[CandidateResult]) -> list[list[CandidateResult]]:
-    """Candidates (best first) that are one compound: the same structure written twice (another SMILES of the
-    same molecule, a Kekulé form), or drawn as different NH/OH tautomers (the H on another ring N, or on O
-    instead of N).  A chemist counts them as one structure, so their probabilities add up.  Tautomers are
-    compared by InChI (:func:`shiftrank.chem.isomers.compound_key`) among candidates of one heavy-atom graph."""
-    by_graph: dict = {}
-    for c in cands:
-        if not c.error:
-            skeleton = _skeleton_of(c.smiles)
-            g = ("graph", skeleton) if skeleton is not None else ("same", _canonical_of(c.smiles))
-            if g[1] is not None:
-                by_graph.setdefault(g, []).append(c)
-    out = []
-    for key, same_graph in by_graph.items():
-        if len(same_graph) < 2:
-            continue
-        groups: dict = {}
-        for c in same_graph:
-            groups.setdefault(_compound_of(c.smiles) if key[0] != "same" else key, []).append(c)
-        out += [g for g in groups.values() if len(g) > 1]
-    return out
-
-
-def _canonical_of(smiles: str) -> str | None:
-    mol = _parse(smiles)[0]
-    return Chem.MolToSmiles(mol) if mol is not None else None
-
-
-def _drawn_alike(group: list[CandidateResult]) -> bool:
-    """Whether a group of one compound is one structure written more than once (not tautomer drawings)."""
-    return len({_canonical_of(c.smiles) for c in group}) == 1
-
-
-def _tautomer_note(group: list[CandidateResult]) -> str:
-    # (a generated one's name is its relation: too long here); one string given again is counted, not repeated
-    times = Counter(c.smiles for c in group)
-    together = f"together p = {sum(c.probability for c in group):.2f}"
-    if len(times) == 1:
-        return f"{group[0].smiles} was given {len(group)} times; {together}"
-    names = " and ".join(f"{s}" + (f" (given {n} times)" if n > 1 else "") for s, n in times.items())
-    if _drawn_alike(group):
-        how = "the same structure written twice" if len(group) == 2 else f"the same structure, given {len(group)} times"
-    else:
-        how = "one compound drawn as different NH/OH tautomers"
-    return f"{names} are {how}; {together}"
-
-
-def _proton_total_misfit(valid: list[CandidateResult]) -> str | None:
-    """A note when the 1H integrals fit no candidate's proton count (its NH/OH may be missing).  Candidates of
-    one formula all miss alike, so the order stands; the note goes beside the verdict, not into it."""
-    rs = [c.nuclei["1H"] for c in valid if "1H" in c.nuclei and c.nuclei["1H"].by_protons]
-    if not rs or len(rs) != len(valid) or any(p.doubled for p in rs[0].peaks):
-        return None
-    printed = sum(p.capacity or 0 for p in rs[0].peaks if not p.solvent)
-    totals = [(sum(c.units for c in r.classes), sum(c.units for c in r.classes if c.exchangeable)) for r in rs]
-    slack = 1 if max(n for n, _ in totals) >= 20 else 0   # (large integrals are often rounded by one)
-    if any(n - x - slack <= printed <= n + slack for n, x in totals):
-        return None
-    span = sorted({n for n, _ in totals})
-    shown = f"{span[0]}" if len(span) == 1 else f"{span[0]}–{span[-1]}"
-    why = ("an impurity, a solvent or another compound?" if printed > span[-1] else
-           "signals unlisted or integrated low, or another compound?")
-    return f"the 1H integrals sum to {printed} H, {'more' if printed > span[-1] else 'fewer'} than any candidate has ({shown} H): {why}"
-
-
-def _count_misfit(valid: list[CandidateResult]) -> str | None:
-    """A note when the number of observed 13C signals matches no candidate's symmetry-expected count: the
-    ranking then rests on which mismatch is cheaper, not on a fit.  (1H multiplet counts differ from
-    class counts too often, through overlap and diastereotopic protons, to say so.)"""
-    for n in ("13C",):
-        rs = [c.nuclei[n] for c in valid if n in c.nuclei]
-        if not rs:
-            continue
-        observed = rs[0].observed_signals
-        said = getattr(rs[0].peaks, "two_forms", None)
-        if said and _ISOMER_MIXTURE.search(said) and observed >= min(len(r.classes) for r in rs):
-            return None   # a mixture of two isomers shows more lines than either has carbons
-        pairs = doubled_pairs(rs[0].peaks, n)   # two forms: each pair of close lines may be one carbon
-        if pairs and any(observed - pairs <= len(r.classes) <= observed for r in rs):
-            return None
-        if all(not len(r.classes) - sum(c.may_go_unseen for c in r.classes) <= r.observed_signals <= len(r.classes)
-               for r in rs):   # (a carbon bound to boron, or under the solvent's line, may be missing)
-            expected = sorted({len(r.classes) for r in rs})
-            span = f"{expected[0]}" if len(expected) == 1 else f"{expected[0]}–{expected[-1]}"
-            return (f"the {observed} {n} signals observed fit no candidate's symmetry-expected count ({span}): "
-                    "check for overlapped, missing or extra lines before trusting the order")
-        return None
-    return None
 
 
 def _check_priors(priors, n: int):
@@ -889,8 +595,6 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
     return out, solvent, notes
 
 
-#: words of a two-form statement that name different compounds (not rotamers or conformers of one)
-_ISOMER_MIXTURE = re.compile(r"isomer|anomer|epimer|[EZ]\s*/\s*[EZ]", re.I)
 #: nats by which a second candidate must explain the lines the best one leaves, to be named as the second form
 SECOND_FORM_GAIN = 2.0
 
@@ -906,7 +610,7 @@ def second_form(results: list[CandidateResult], peaks: dict,
     nucleus = "13C"
     obs = peaks.get(nucleus)
     said = getattr(obs, "two_forms", None) if obs is not None else None
-    if not said or not _ISOMER_MIXTURE.search(said):
+    if not said or not ISOMER_MIXTURE.search(said):
         return None
     valid = [c for c in results if not c.error and nucleus in c.nuclei]
     if len(valid) < 2:
@@ -968,7 +672,7 @@ def _count_checks(res: CandidateResult, lines: dict[str, int]) -> None:
     reservation, not priced: a CF2 beside a stereocentre may show two lines and two environments may coincide."""
     if res.error or not lines:
         return
-    mol, ranks, _ = _parse(res.smiles)
+    mol, ranks, _ = parse_candidate(res.smiles)
     for nucleus, n in lines.items():
         z, _, word = COUNTED_NUCLEI[nucleus]
         envs = len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == z})
@@ -1061,7 +765,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         smi = c[1] if isinstance(c, tuple) else c
         if not isinstance(smi, str):
             continue
-        mol, _, err = _parse(smi)
+        mol, _, err = parse_candidate(smi)
         if err:
             continue
         seen.add(structure_key(mol))
@@ -1069,7 +773,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
             given.setdefault(compound_key(mol), smi)
     for c in cands:
         smi = c[1] if isinstance(c, tuple) else c
-        if not isinstance(smi, str) or _parse(smi)[2]:
+        if not isinstance(smi, str) or parse_candidate(smi)[2]:
             continue
         added, same, radicals = 0, 0, 0
         try:
