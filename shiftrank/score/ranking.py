@@ -46,7 +46,8 @@ from ..prediction.model_files import default_manifest, default_model
 from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from ..words import count
 from .matching import MatchCosts, ObservedPeak, assign
-from .structures import candidate_facts, candidate_pi, parse_candidate, standardised_candidate, tautomer_notes
+from .structures import (candidate_facts, candidate_pi, element_environments, parse_candidate, standardised_candidate,
+                         tautomer_notes)
 from .verdicts import (ISOMER_MIXTURE, _canonical_of, _tautomer_note, spectra_disagreement,  # noqa: F401 - re-exported
                        tautomer_groups, verdict)
 
@@ -672,10 +673,9 @@ def _count_checks(res: CandidateResult, lines: dict[str, int]) -> None:
     reservation, not priced: a CF2 beside a stereocentre may show two lines and two environments may coincide."""
     if res.error or not lines:
         return
-    mol, ranks, _ = parse_candidate(res.smiles)
     for nucleus, n in lines.items():
         z, _, word = COUNTED_NUCLEI[nucleus]
-        envs = len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == z})
+        envs = element_environments(res.smiles, z)
         if envs == 0:
             res.flags.append(f"{nucleus}: the text lists {count(n, 'signal')} but the candidate has no {word}")
         elif envs != n:

@@ -181,22 +181,13 @@ def _counted_hints(first: str, second: str, printed=()) -> list[str]:
     """A 19F or 31P spectrum's signal count where #1 and #2 have different numbers of fluorine (phosphorus)
     environments by symmetry (common practice); not for a nucleus whose section was ``printed``."""
     from ..chem.inventory import COUNTED_NUCLEI
-    from ..chem.structure import symmetry_ranks
-    from ..errors import InputError
-    from ..inputs.molecules import to_mol
+    from .structures import element_environments
 
-    try:
-        mols = [to_mol(first), to_mol(second)]
-    except InputError:
-        return []
     out = []
     for nucleus, (z, _, word) in COUNTED_NUCLEI.items():
         if nucleus in printed:
             continue
-        envs = []
-        for m in mols:
-            ranks = symmetry_ranks(m)
-            envs.append(len({ranks[a.GetIdx()] for a in m.GetAtoms() if a.GetAtomicNum() == z}))
+        envs = [element_environments(first, z), element_environments(second, z)]
         if envs[0] != envs[1]:
             out.append(f"a {nucleus} spectrum would tell #1 and #2 apart by its count: #1 has "
                        f"{envs[0]} {word} environment{'s' if envs[0] != 1 else ''}, #2 {envs[1]} (symmetry)")

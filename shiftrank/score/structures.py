@@ -70,3 +70,12 @@ def candidate_pi(smiles: str):
         return np.column_stack(pi_descriptors(mol))
     except Exception:  # noqa: BLE001 - left to mol_parts, which reports a failure with the candidate's name
         return None
+
+
+def element_environments(smiles: str, z: int) -> int:
+    """How many symmetry classes the candidate's atoms of element ``z`` fall into (its expected 19F or 31P
+    signals); 0 for a SMILES that cannot be read."""
+    mol, ranks, err = parse_candidate(smiles)
+    if err:
+        return 0
+    return len({ranks[a.GetIdx()] for a in mol.GetAtoms() if a.GetAtomicNum() == z})
