@@ -179,7 +179,8 @@ def _observed_text(pk) -> str:
     return s + (f" ({'; '.join(bits)})" if bits else "")
 
 
-def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no: int, with_plots: bool) -> str:
+def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no: int, with_plots: bool,
+                   sep=()) -> str:
     e = html.escape
     res = c.nuclei[nucleus]
     rows = []
@@ -215,7 +216,7 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
         marked = frozenset()
         if rank_no in (1, 2):   # the atoms of the lines that separate #1 from #2 most
             side = "first_classes" if rank_no == 1 else "second_classes"
-            marked = frozenset(a for sp in result.separation() if sp.nucleus == nucleus
+            marked = frozenset(a for sp in sep if sp.nucleus == nucleus
                                for row in getattr(sp, side) for a in row["atoms"])
         pics = (f"<div class='cardrow'><div>{structure_svg(c, nucleus, marked=marked)}</div>"
                 f"<div>{spectrum_svg(result, c, nucleus)}</div></div>")
@@ -225,7 +226,7 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
             f"<summary>{nucleus} assignment table</summary>{table}</details>")
 
 
-def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_plots: bool) -> str:
+def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_plots: bool, sep=()) -> str:
     e = html.escape
     title = f"#{rank_no} {e(c.name) + ' — ' if c.name else ''}<code>{e(c.smiles)}</code>"
     if c.error:
@@ -234,7 +235,7 @@ def _candidate_card(result: RankResult, c: CandidateResult, rank_no: int, with_p
     p = "the only candidate" if result.lone else f"p = {c.probability:.3f}"
     head = f"<b>{title}</b><br><span class='note'>{p} · {facts.formula} · DBE {facts.dbe:g}</span>"
     flags = "".join(f"<div class='flag'>⚑ {e(f)}</div>" for f in c.flags)
-    blocks = "".join(_nucleus_block(result, c, n, rank_no, with_plots) for n in result.nuclei if n in c.nuclei)
+    blocks = "".join(_nucleus_block(result, c, n, rank_no, with_plots, sep) for n in result.nuclei if n in c.nuclei)
     return f"<div class='card'>{head}{flags}{blocks}</div>"
 
 
@@ -303,7 +304,7 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
                  " on #1 and #2, a larger disc and * before the number: an atom of a line that separates them most"
                  " · red marks with × : peaks the candidate does not explain · 1H bars: printed range, height ∝ integral</div>")
     for i, c in enumerate(result.candidates, 1):
-        parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error))
+        parts.append(_candidate_card(result, c, i, with_plots=i <= PLOT_CANDIDATES and not c.error, sep=sep))
     return "\n".join(parts)
 
 
