@@ -221,10 +221,10 @@ GROUP_NAMES = {
 }
 
 
-def _rooted_smiles(mol: Chem.Mol, root: int, ring_atom: int) -> str:
+def _rooted_smiles(mol: Chem.Mol, root: int, ring_atom: int, atoms: list[int] | None = None) -> str:
     """The substituent on ``ring_atom`` whose first atom is ``root``, as canonical SMILES rooted there;
-    '' when the group closes back onto the ring (not a simple substituent)."""
-    atoms = _side(mol, root, ring_atom)
+    '' when the group closes back onto the ring (not a simple substituent).  ``atoms``: its side, when known."""
+    atoms = _side(mol, root, ring_atom) if atoms is None else atoms
     if ring_atom in atoms:
         return ""
     if any(mol.GetAtomWithIdx(i).GetAtomicNum() == 1 and mol.GetAtomWithIdx(i).GetIsotope() > 1 for i in atoms):
@@ -245,6 +245,13 @@ def _group_table() -> dict[str, str]:
     return table
 
 
+def _hanging(mol: Chem.Mol, ring, root: int, ring_atom: int) -> list[tuple[int, int]]:
+    """(ring atom, first atom) of each group on ``ring`` besides the bond from ``root`` to ``ring_atom``, the one it
+    hangs on."""
+    return [(i, n.GetIdx()) for i in ring for n in mol.GetAtomWithIdx(i).GetNeighbors()
+            if n.GetIdx() not in ring and not (i == root and n.GetIdx() == ring_atom)]
+
+
 def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     """'4-F-C6H4' for a benzene ring carrying one to three named groups besides the bond to the ring it hangs
     on ('3-Cl-4-CH3-C6H3', numbered from that bond for the lowest locants), or one such ring
@@ -258,8 +265,7 @@ def _aryl_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     ring = rings[0]
     if any(mol.GetRingInfo().NumAtomRings(i) > 1 for i in ring):
         return None   # fused
-    subs = [(i, b.GetOtherAtomIdx(i)) for i in ring for b in mol.GetAtomWithIdx(i).GetBonds()
-            if b.GetOtherAtomIdx(i) not in ring and not (i == root and b.GetOtherAtomIdx(i) == ring_atom)]
+    subs = _hanging(mol, ring, root, ring_atom)
     if not 1 <= len(subs) <= 3:
         return None
     named = []
@@ -318,8 +324,7 @@ def _ring_group_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     system = next((s for s in _ring_systems(mol) if root in s), None)
     if system is None or ring_atom in system:
         return None
-    subs = [(i, n.GetIdx()) for i in system for n in mol.GetAtomWithIdx(i).GetNeighbors()
-            if n.GetIdx() not in system and not (i == root and n.GetIdx() == ring_atom)]
+    subs = _hanging(mol, system, root, ring_atom)
     if len(subs) > 3:
         return None
     loc = ring_locants(mol, system)
@@ -349,7 +354,7 @@ def _fragment_name(mol: Chem.Mol, root: int, ring_atom: int) -> str:
     if ring_atom in atoms:
         return ""   # (the group closes back onto the ring: not a simple substituent)
     # (a side longer than a SMILES shown in full is never written out: most of a big group's cost)
-    smi = _rooted_smiles(mol, root, ring_atom) if len(atoms) <= MAX_SHOWN_SMILES else None
+    smi = _rooted_smiles(mol, root, ring_atom, atoms) if len(atoms) <= MAX_SHOWN_SMILES else None
     if smi in _group_table():
         return _group_table()[smi]
     aryl = _aryl_name(mol, root, ring_atom) or _linked_name(mol, root, ring_atom) or _ring_group_name(mol, root, ring_atom)
@@ -371,9 +376,10 @@ MAX_SHOWN_SMILES = 24
 def _table_name(mol: Chem.Mol, root: int, ring_atom: int) -> str | None:
     """The :data:`GROUP_NAMES` name of the group on ``ring_atom`` through ``root``, or None; a side with more
     atoms than the table's largest group is not written out to look it up."""
-    if len(_side(mol, root, ring_atom)) > _group_table_size():
+    atoms = _side(mol, root, ring_atom)
+    if len(atoms) > _group_table_size():
         return None
-    return _group_table().get(_rooted_smiles(mol, root, ring_atom))
+    return _group_table().get(_rooted_smiles(mol, root, ring_atom, atoms))
 
 
 @lru_cache(maxsize=1)
