@@ -644,11 +644,17 @@ def read_peaks(path: str | Path, nucleus: str = "13C", solvent: str | None = Non
         return read_jcamp(path, nucleus, solvent, signed=dept135 or None)
     if str(path) != "-" and bruker_pdata(path) is not None:
         return read_bruker(path, nucleus, solvent, signed=dept135 or None)
-    p, text = _read_file(path)   # ('-': standard input, a list or a printed paragraph, pasted or piped)
+    p, text, fmt = _peak_file(path)
+    return peak_text(text, p.name, nucleus, fmt, solvent)
+
+
+def _peak_file(path: str | Path) -> tuple[Path, str, str | None]:
+    """(path, text, format by suffix: 'json', 'csv' or None) of a peak file, or of standard input for '-' (a list or a
+    printed paragraph, pasted or piped), which must not be empty."""
+    p, text = _read_file(path)
     if str(path) == "-" and not text.strip():
         raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
-    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
-    return peak_text(text, p.name, nucleus, fmt, solvent)
+    return p, text, {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
 
 
 def read_peak_lists(path: str | Path, nucleus: str | None = None, solvent: str | None = None) -> list[PeakList]:
@@ -661,16 +667,13 @@ def read_peak_lists(path: str | Path, nucleus: str | None = None, solvent: str |
 
     if nucleus is not None or (str(path) != "-" and (is_jcamp(path) or bruker_pdata(path) is not None)):
         return [read_peaks(path, nucleus or instrument_nucleus(path), solvent)]
-    p, text = _read_file(path)
-    if str(path) == "-" and not text.strip():
-        raise InputError("stdin: no peaks (standard input is empty, or was read already by another option)")
-    fmt = {".json": "json", ".csv": "csv", ".tsv": "csv"}.get(p.suffix.lower())
+    p, text, fmt = _peak_file(path)
     if fmt is None and _PRINTED.search(text[:2000]):
         from .text import read_nmr_text
 
         parsed = read_nmr_text(text)
         found = [n for n in ("13C", "1H") if parsed.peaklist(n) is not None]
-        return [_printed_peaks(text, p.name, n, solvent) for n in found or ["13C"]]
+        return [_printed_peaks(text, p.name, n, solvent, parsed) for n in found or ["13C"]]
     try:
         pl = parse_peaks(text, p.name, "13C", fmt, solvent)
     except InputError as exc13:
@@ -710,12 +713,13 @@ _PRINTED = re.compile(r"(?:\b1\s*H|\b13\s*C|¹H|¹³C)\s*(?:\{\s*1\s*H\s*\}|\{¹
 _PRINTED_HSQC = re.compile(r"\b(?:HSQC|HMQC)\b.{0,60}?\d+\.\d+\s*/\s*\d+\.\d+", re.I | re.S)
 
 
-def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None) -> PeakList:
+def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None, parsed=None) -> PeakList:
     """A peak file that holds a printed paragraph instead of a list: its ``nucleus`` section, read as
-    ``--text`` reads it (a note says so), or a clear error when it has none."""
+    ``--text`` reads it (a note says so), or a clear error when it has none.  ``parsed``: the paragraph already
+    read (:func:`shiftrank.inputs.text.read_nmr_text`)."""
     from .text import read_nmr_text   # (text builds on this module)
 
-    parsed = read_nmr_text(text)
+    parsed = read_nmr_text(text) if parsed is None else parsed
     pl = parsed.peaklist(nucleus, solvent, name)
     if pl is None:
         found = sorted({s.nucleus for s in parsed.sections if s.peaks})
