@@ -338,19 +338,16 @@ def _rank_sample(args, case: dict):
     from .score.ranking import rank
 
     cands = _read_candidates(args.candidates or [])
-    if getattr(args, "reaction", None):   # the products of a named reaction or reaction SMARTS, named by where it acted
-        from .chem.isomers import isomers
-
-        if not args.reactants:
-            raise InputError("--reaction needs --reactants (the reaction's reactants as SMILES separated by '.')")
-        cands += [(a.relation, a.smiles, None) for a in isomers(None, kinds=(), reaction=args.reaction,
-                                                               reactants=args.reactants)]
-    if not cands:
+    reaction = getattr(args, "reaction", None)   # its products join the candidates, named by where it acted
+    if reaction and not args.reactants:
+        raise InputError("--reaction needs --reactants (the reaction's reactants as SMILES separated by '.')")
+    if not cands and not reaction:
         raise InputError("give --candidates (SMILES or structure files) and/or --reaction NAME --reactants A.B")
     return rank(case.get("peaks"), cands, formula=args.formula, mass=args.mass,
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
-                hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"], mixture=case["mixture"])
+                hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"], mixture=case["mixture"],
+                reaction=reaction, reactants=args.reactants if reaction else None)
 
 
 def _write_sample_report(args, case: dict, result, path: str) -> None:

@@ -707,7 +707,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          solvent: str | None = None, priors: Sequence[float] | None = None, id: str | None = None,
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
          peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
-         rotamers: bool = False, mixture: bool = False) -> RankResult:
+         rotamers: bool = False, mixture: bool = False, reaction: str | None = None,
+         reactants: str | None = None) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules, or a ``{name: SMILES}``
     dict) against peaks.
 
@@ -726,7 +727,9 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     costs little when no class explains it; a paragraph that says so (``mixture of rotamers``) is read so
     without it.  ``mixture`` says the sample is a mixture of two isomers (a paragraph saying ``3:1 mixture of
     regioisomers`` the same): the lines are read so too, and a note names the candidate that best explains, as
-    the second component, the 13C lines the best one leaves (:func:`second_form`).
+    the second component, the 13C lines the best one leaves (:func:`second_form`).  ``reaction`` (a named reaction
+    or a reaction SMARTS) with ``reactants`` (SMILES separated by '.') adds every product as a candidate, named by
+    where the reaction acted.
     A ``(name, source, error)`` triple stands for a record that could not be read; it is listed last
     with its error.
 
@@ -738,7 +741,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
                              mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz,
-                             rotamers=rotamers, mixture=mixture)],
+                             rotamers=rotamers, mixture=mixture, reaction=reaction, reactants=reactants)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result
@@ -826,7 +829,8 @@ def _stage(case: dict, nuclei_models) -> tuple:
                          "of names and SMILES)")
     cands = list(cands)
     if not cands:
-        raise InputError("candidates: no candidate structures given")
+        raise InputError(f"reaction: {case['reaction']} gives no product on {case['reactants']}"
+                         if case.get("reaction") is not None else "candidates: no candidate structures given")
     iso_notes: list[str] = []
     if len(cands) > MAX_CANDIDATES:
         raise InputError(f"candidates: {len(cands):,} given; the limit is {MAX_CANDIDATES:,} per case (split the case)")
