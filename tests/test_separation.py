@@ -108,3 +108,11 @@ def test_a_dept_135_is_suggested_when_the_two_differ_in_chn():
                  candidates=["CC(=O)C(C)C(C)=O", "COC(C)=CC(C)=O"])
     typed.candidates[0].probability = 0.6
     assert not any("DEPT" in h for h in typed.next_spectrum())
+
+
+def test_the_runner_up_is_another_compound():
+    # the 1-methylindazole list (values from memory) with N1 given twice and once as its N2 isomer: #2 in the
+    # separation is the N2 isomer, not the second copy of #1
+    r = rank(peaks=INDAZOLE_13C, candidates=[N1, "n1(C)ncc2ccccc21", N2])
+    assert r.runner_up.smiles == N2
+    assert {s.line for s in r.separation()[:2]} == {"132.7", "108.8"}

@@ -48,7 +48,7 @@ from ..words import count
 from .matching import MatchCosts, ObservedPeak, assign
 from .structures import (candidate_facts, candidate_pi, element_environments, parse_candidate, standardised_candidate,
                          tautomer_notes)
-from .verdicts import (ISOMER_MIXTURE, _canonical_of, _tautomer_note, spectra_disagreement,  # noqa: F401 - re-exported
+from .verdicts import (ISOMER_MIXTURE, _canonical_of, _compound_of, _tautomer_note, spectra_disagreement,  # noqa: F401 - re-exported
                        tautomer_groups, verdict)
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
@@ -189,9 +189,12 @@ class RankResult:
 
     @property
     def runner_up(self) -> CandidateResult | None:
-        """The second readable candidate (None when fewer than two could be read)."""
-        valid = [c for c in self.candidates if not c.error]
-        return valid[1] if len(valid) > 1 and not self.candidates[0].error else None
+        """The best readable candidate that is another compound than the best one (a structure given twice, or
+        drawn as another NH/OH tautomer, is the same compound); None when there is none."""
+        if self.candidates[0].error:
+            return None
+        best = _compound_of(self.candidates[0].smiles)
+        return next((c for c in self.candidates[1:] if not c.error and _compound_of(c.smiles) != best), None)
 
     def separation(self, limit: int = 4) -> list:
         """The observed lines that separate the best candidate from the runner-up most, in ln odds
