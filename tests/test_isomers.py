@@ -358,9 +358,21 @@ def test_reaction_outcomes_name_the_reactant_atoms_the_template_acted_on():
     assert set(map(key, by)) == {key("Clc1nccc(N2CCOCC2)n1"), key("Clc1ccnc(N2CCOCC2)n1")}
     c4 = next(r for s, r in by.items() if key(s) == key("Clc1nccc(N2CCOCC2)n1"))
     # named by the pyrimidine's numbering too (C4 against C2; common practice)
-    assert "C4 of the pyrimidine (reactant 1 atom 1)" in c4 and "reactant 2 atom 5 (N)" in c4
+    assert "C4 of the pyrimidine (reactant 1 atom 1)" in c4
     c2 = next(r for s, r in by.items() if key(s) == key("Clc1ccnc(N2CCOCC2)n1"))
     assert "C2 of the pyrimidine (reactant 1 atom 5)" in c2
+    # morpholine's N takes part in both outcomes, so it tells them apart no more than the chlorine does: not named
+    assert "reactant 2" not in c4 + c2
+
+
+def test_reaction_outcomes_name_a_second_reactants_site_where_outcomes_differ_there():
+    # the same SNAr with 3-aminopyrazole: the amino N, ring N1 and (through the NH tautomer) N2 can each attack,
+    # so the pyrazole's site is named beside the pyrimidine's (hand enumeration)
+    alts = isomers(None, kinds=(), reaction="snar", reactants="Clc1ccnc(Cl)n1.Nc1cc[nH]n1")
+    by = {key(a.smiles): a.relation for a in alts if a.same_compound_as is None}
+    ring_n1 = by[key("Nc1ccn(-c2ccnc(Cl)n2)n1")]
+    assert "C4 of the pyrimidine (reactant 1 atom 1)" in ring_n1 and "N1 of the pyrazole (reactant 2 atom 4)" in ring_n1
+    assert "reactant 2 atom 0 (N)" in by[key("Clc1nccc(Nc2cc[nH]n2)n1")]
 
 
 def test_a_swap_never_puts_a_halogen_on_a_ring_n():

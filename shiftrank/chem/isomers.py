@@ -965,28 +965,35 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     # 2-pyridone at N or O); the enumerator keeps the atom order, so the sites name the given reactants' atoms
     variants = [[(m, False)] + ([(t, True) for t, _ in _tautomers(m)][:MAX_REACTANT_TAUTOMERS]
                                 if named is not None and named.tautomers else []) for m in mols]
-    out = []
+    found = []   # (product, where the template acted, from a tautomer, outcome number, product number)
     k = 0
     for combo in itertools.islice(itertools.product(*variants), MAX_REACTANT_COMBINATIONS):
         for prods in rxn.RunReactants(tuple(m for m, _ in combo)):
             k += 1   # (outcomes counted over the reactants as given first, then their tautomers)
             for j, p in enumerate(prods):
-                # where the template acted: its mapped atoms, named by reactant and atom number ('reactant 1
-                # atom 5 (C)'), which is what tells regioisomeric outcomes apart
+                # where the template acted: its mapped atoms, by reactant and atom number, which is what tells
+                # regioisomeric outcomes apart
                 sites = sorted({(a.GetIntProp("react_idx"), a.GetIntProp("react_atom_idx"), a.GetSymbol())
                                 for a in p.GetAtoms() if a.HasProp("old_mapno") and a.HasProp("react_atom_idx")})
-                # 'C4 of the pyrimidine (reactant 1 atom 1)', 'reactant 1 atom 2 (C; ortho to CH3, meta to CO2H)',
-                # 'reactant 2 atom 5 (N)'
-                at = ", ".join(f"{_locant(mols[r], i)} (reactant {r + 1} atom {i})" if _locant(mols[r], i) else
-                               f"reactant {r + 1} atom {i} ({sym}{_ring_relation(mols[r], i)})" for r, i, sym in sites)
-                taut = "; from a reactant's NH/OH tautomer" if any(t for _, t in combo) else ""
                 m = _finish(Chem.RWMol(p))
-                if m is None:
-                    continue
-                if name:   # 'SNAr product at C4 of the pyrimidine (reactant 1 atom 1), reactant 2 atom 5 (N)'
-                    out.append((m, f"{name} product at {at or 'the template'}{taut}"))
-                else:
-                    out.append((m, f"reaction product (outcome {k}, product {j + 1}{'; at ' + at if at else ''}{taut})"))
+                if m is not None:
+                    found.append((m, sites, any(t for _, t in combo), k, j + 1))
+    # a site every outcome shares (morpholine's N in an SNAr on a dichloropyrimidine) tells none apart: the
+    # labels name the sites that differ, and all of them when that would leave an outcome without one
+    common = set.intersection(*(set(f[1]) for f in found)) if len(found) > 1 else set()
+    if any(not set(f[1]) - common for f in found):
+        common = set()
+    out = []
+    for m, sites, from_tautomer, k, j in found:
+        # 'C4 of the pyrimidine (reactant 1 atom 1)', 'reactant 1 atom 2 (C; ortho to CH3, meta to CO2H)'
+        at = ", ".join(f"{_locant(mols[r], i)} (reactant {r + 1} atom {i})" if _locant(mols[r], i) else
+                       f"reactant {r + 1} atom {i} ({sym}{_ring_relation(mols[r], i)})"
+                       for r, i, sym in sites if (r, i, sym) not in common)
+        taut = "; from a reactant's NH/OH tautomer" if from_tautomer else ""
+        if name:   # 'SNAr product at C4 of the pyrimidine (reactant 1 atom 1)'
+            out.append((m, f"{name} product at {at or 'the template'}{taut}"))
+        else:
+            out.append((m, f"reaction product (outcome {k}, product {j}{'; at ' + at if at else ''}{taut})"))
     return out
 
 
