@@ -518,3 +518,24 @@ def test_amide_and_sulfonamide_links_and_rings_with_several_groups_are_named():
     rel = [a.relation for a in isomers("Cc1ccc(S(=O)(=O)Nc2ccccn2)cc1Cl", kinds=("positional",))]
     assert any(r.startswith("NHSO2(3-Cl-4-CH3-C6H3) moved from C2 to C3 of the pyridine") for r in rel)
     assert any("(now meta to SO2NH(pyridin-2-yl), meta to Cl)" in r for r in rel)
+
+
+def test_a_reaction_outcome_drawn_as_an_imino_tautomer_is_the_same_compound():
+    # 3-aminopyrazole reacting through its imino tautomer at the ring N next to the C=NH gives the 5-imino-2H
+    # drawing of 5-amino-1-(pyrimidinyl)pyrazole, which the standard InChI's mobile H does not join to the amino
+    # form (the H moves over four bonds); one compound, named once, the amino form leading (hand enumeration)
+    alts = isomers(None, kinds=(), reaction="snar", reactants="Clc1ccnc(Cl)n1.Nc1cc[nH]n1")
+    by = {key(a.smiles): a for a in alts}
+    imino, amino = by[key("N=c1cc[nH]n1-c1ccnc(Cl)n1")], by[key("Nc1ccnn1-c1ccnc(Cl)n1")]
+    assert amino.same_compound_as is None
+    assert key(imino.same_compound_as) == key(amino.smiles) and "the same compound" in imino.relation
+    # six different compounds: C4 or C2 of the pyrimidine, each by the amino N, ring N1 or ring N2
+    assert len([a for a in alts if a.same_compound_as is None]) == 6
+
+
+def test_the_heteroatom_tautomer_check_keeps_keto_and_enol_apart():
+    # an H moved onto or off a carbon is not joined (common practice, as for compound_key): pentane-2,4-dione
+    # and its enol stay two; 2-hydroxypyridine and 2-pyridone (H between O and N) are one
+    from shiftrank.chem.isomers import _heteroatom_tautomer_key as tkey
+    assert tkey(Chem.MolFromSmiles("CC(=O)CC(C)=O")) != tkey(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
+    assert tkey(Chem.MolFromSmiles("Oc1ccccn1")) == tkey(Chem.MolFromSmiles("O=c1cccc[nH]1"))

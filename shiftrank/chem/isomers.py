@@ -997,6 +997,36 @@ def _reaction(smarts: str, reactants: str) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+def _heteroatom_tautomer_key(mol: Chem.Mol) -> str | None:
+    """RDKit's canonical tautomer with the number of H on each carbon of ``mol`` beside it: two structures
+    with the same key differ only in where H sits among N, O and S (the H on carbon are the same), so they
+    are one compound even where the standard InChI's mobile-H layer does not join them (a 5-amino-1-aryl-
+    pyrazole and its 5-imino-2H form, made by a template acting on a reactant's imino tautomer).  Keto/enol
+    pairs move an H onto or off a carbon and stay two, as in :func:`compound_key`."""
+    if not has_mobile_h(mol):
+        return None
+    try:
+        canon = _TAUTOMERS.Canonicalize(mol)
+    except Exception:  # noqa: BLE001 - no canonical tautomer: only this check is lost
+        return None
+    on_carbon = sorted(a.GetTotalNumHs() for a in mol.GetAtoms() if a.GetAtomicNum() == 6)
+    return f"taut:{Chem.MolToSmiles(canon, isomericSmiles=False)}|{on_carbon}"
+
+
+_TAUTOMERS = rdMolStandardize.TautomerEnumerator()
+
+
+def _is_canonical_tautomer(mol: Chem.Mol | None) -> bool:
+    """Whether ``mol`` is drawn as RDKit's canonical tautomer (the amino form of an aminoazole, the oxo form
+    of a pyridone: the forms chemists draw)."""
+    if mol is None:
+        return False
+    try:
+        return Chem.MolToSmiles(_TAUTOMERS.Canonicalize(mol), isomericSmiles=False) == Chem.MolToSmiles(mol, isomericSmiles=False)
+    except Exception:  # noqa: BLE001
+        return False
+
+
 #: a named template runs on at most this many NH/OH tautomers of each reactant, and this many combinations
 MAX_REACTANT_TAUTOMERS = 6
 MAX_REACTANT_COMBINATIONS = 64
@@ -1042,6 +1072,7 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
     seen = {_key(mol): None} if mol is not None else {}   # structure -> its index in ``out``
     # compound -> (SMILES, relation) it was first met as; the given structure first
     compounds = {compound_key(mol): (smiles, None)} if mol is not None else {}
+    filed: dict[str, int] = {}   # heteroatom-tautomer key of a reaction outcome -> its index in ``out``
     out: list[Alternative] = []
     for m, lab, kind in found:
         k = _key(m)
@@ -1058,12 +1089,28 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
             lab += " (leaves an unpaired electron: not a closed-shell product, listed because the rule gives it)"
         if kind != "tautomer":
             ck = compound_key(m)
+            # a reaction outcome is also filed by its heteroatom tautomer (a template acting on a reactant's
+            # imino form gives another drawing of an outcome already made)
+            tk = _heteroatom_tautomer_key(m) if kind == "reaction" else None
+            if ck not in compounds and tk in compounds:
+                i, earlier = filed[tk], compounds[tk][0]
+                if _is_canonical_tautomer(m) and not _is_canonical_tautomer(Chem.MolFromSmiles(earlier)):
+                    # the earlier outcome is the unusual drawing: this one leads, that one becomes its twin
+                    out[i] = Alternative(earlier, f"'{lab}' drawn as another NH/OH tautomer (the same compound)", kind, smi)
+                    for key in (tk, ck, compound_key(Chem.MolFromSmiles(earlier))):
+                        compounds[key] = (smi, lab)
+                    filed[tk] = len(out)
+                    ck = None
+                else:
+                    ck = tk
             if ck in compounds:
                 twin, twin_relation = compounds[ck]
                 lab = ("the given structure drawn as another NH/OH tautomer (the same compound)" if twin_relation is None
                        else f"'{twin_relation}' drawn as another NH/OH tautomer (the same compound)")
-            else:
+            elif ck is not None:
                 compounds[ck] = (smi, lab)
+                if tk is not None and tk not in compounds:
+                    compounds[tk], filed[tk] = (smi, lab), len(out)
         out.append(Alternative(smi, lab, kind, twin))
         if len(out) > limit:
             raise InputError(f"more than {limit} alternatives for '{smiles or reaction}'; narrow the kinds "
