@@ -57,7 +57,10 @@ def region_hint(shift: float, multiplicity: str | None) -> str:
     if shift >= 45:
         if m == "CH3":
             return "O- or N-methyl (OCH3 50-62, NCH3 30-45 ppm)" if shift >= 50 else "N-methyl or alkyl"
-        return "heteroatom-bound sp3 carbon (C–N 40-60, C–O 50-90 ppm)"
+        return "heteroatom-bound sp3 carbon (C–N 35-60, C–O 50-90 ppm)"
+    if shift >= 35 and m != "C":
+        # an amine's or amide's N-CH2 / N-CH3 lies here as often as an alkyl carbon (common practice)
+        return "alkyl sp3 carbon (0-45 ppm), or N-bound (C–N 35-60 ppm)"
     if shift >= 0:
         return "alkyl sp3 carbon (0-45 ppm)"
     return "shielded carbon (below 0 ppm; e.g. Si–CH3, cyclopropane)"
