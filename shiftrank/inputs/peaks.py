@@ -731,7 +731,8 @@ def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None, pars
 
 @dataclass
 class HsqcList:
-    """(δC, δH) cross peaks of an HSQC spectrum, as given."""
+    """(δC, δH) cross peaks of an HSQC (one-bond) or an HMBC (two- and three-bond) spectrum, as given;
+    ``nucleus`` names the experiment."""
 
     pairs: list[tuple[float, float]]
     source: str = "hsqc"
@@ -761,10 +762,11 @@ def _hsqc_kind(value, where: str) -> str | None:
     return kind
 
 
-def hsqc_list(records, source: str = "hsqc") -> HsqcList:
+def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcList:
     """Read cross peaks given as ``[δC, δH]`` pairs (or ``[δC, δH, phase]``) or ``{"c": δC, "h": δH,
-    "phase": …}`` objects; the phase of a multiplicity-edited spectrum is "CH2" or "CH/CH3" (also
-    "negative"/"positive").  A clear error names the entry that cannot be read.
+    "phase": …}`` objects; the phase of a multiplicity-edited HSQC is "CH2" or "CH/CH3" (also
+    "negative"/"positive").  ``experiment`` "HMBC" reads the long-range cross peaks of an HMBC, which have no
+    phase (:func:`hmbc_list`).  A clear error names the entry that cannot be read.
 
     >>> hsqc_list([[128.4, 7.31], {"c": 21.3, "h": 2.35}]).pairs
     [(128.4, 7.31), (21.3, 2.35)]
@@ -773,16 +775,22 @@ def hsqc_list(records, source: str = "hsqc") -> HsqcList:
     """
     if not isinstance(records, (list, tuple)) or not records:
         raise InputError(f"{source}: expected a non-empty list of [δC, δH] cross peaks")
+
+    def phase(value, where: str) -> str | None:
+        if experiment == "HMBC" and value is not None:
+            raise InputError(f"{where}: an HMBC cross peak has no phase; give [δC, δH]")
+        return _hsqc_kind(value, where)
+
     pairs, kinds = [], []
     for k, r in enumerate(records, 1):
         kind = None
         if isinstance(r, dict):
             c, h = r.get("c", r.get("13C")), r.get("h", r.get("1H"))
-            kind = _hsqc_kind(r.get("phase", r.get("multiplicity")), f"{source} entry {k}")
+            kind = phase(r.get("phase", r.get("multiplicity")), f"{source} entry {k}")
         elif isinstance(r, (list, tuple)) and len(r) in (2, 3):
             c, h = r[0], r[1]
             if len(r) == 3:
-                kind = _hsqc_kind(r[2], f"{source} entry {k}")
+                kind = phase(r[2], f"{source} entry {k}")
         else:
             raise InputError(f"{source} entry {k}: expected [δC, δH] or {{\"c\": δC, \"h\": δH}}, got {str(r)[:40]!r}")
         try:
@@ -799,25 +807,41 @@ def hsqc_list(records, source: str = "hsqc") -> HsqcList:
         kinds.append(kind)
     if len(pairs) > 2000:
         raise InputError(f"{source}: {len(pairs):,} cross peaks; the limit is 2,000")
-    return HsqcList(pairs, source, kinds=kinds if any(kinds) else None)
+    return HsqcList(pairs, source, kinds=kinds if any(kinds) else None, nucleus=experiment)
 
 
-def read_hsqc(path: str | Path) -> HsqcList:
+def hmbc_list(records, source: str = "hmbc") -> HsqcList:
+    """Read HMBC cross peaks (two- and three-bond H–C correlations) given as ``[δC, δH]`` pairs or
+    ``{"c": δC, "h": δH}`` objects.
+
+    >>> hmbc_list([[139.8, 4.05], [124.0, 8.0]]).nucleus
+    'HMBC'
+    """
+    return hsqc_list(records, source, "HMBC")
+
+
+def read_hmbc(path: str | Path) -> HsqcList:
+    """Read HMBC cross peaks from a file, as :func:`read_hsqc` reads HSQC ones (no phase column)."""
+    return read_hsqc(path, "HMBC")
+
+
+def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
     """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
-    (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped."""
+    (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped.  ``experiment`` "HMBC"
+    reads an HMBC's cross peaks the same way."""
     from .spectra import JCAMP_HEADER   # (spectra builds on this module)
 
     p, text = _read_file(path)
     if JCAMP_HEADER.search(text[:4000]):
-        raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the HSQC cross peaks as 'δC δH' "
-                         "pairs, one per line, or the printed HSQC paragraph")
+        raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the {experiment} cross peaks as "
+                         f"'δC δH' pairs, one per line" + (", or the printed HSQC paragraph" if experiment == "HSQC" else ""))
     if p.suffix.lower() == ".json":
         try:
-            return hsqc_list(json.loads(text), p.name)
+            return hsqc_list(json.loads(text), p.name, experiment)
         except json.JSONDecodeError as exc:
             raise InputError(f"{p.name} line {exc.lineno}: invalid JSON ({exc.msg})") from None
-    if _PRINTED_HSQC.search(text[:2000]):
+    if experiment == "HSQC" and _PRINTED_HSQC.search(text[:2000]):
         # a printed paragraph ('HSQC (DMSO-d6): δC/δH 119.0/7.28, …'): its HSQC section, read as --text reads it
         from .text import read_nmr_text   # (text builds on this module)
 
@@ -836,13 +860,13 @@ def read_hsqc(path: str | Path) -> HsqcList:
             if not pairs and not any(re.fullmatch(r"-?\d+(\.\d+)?", f) for f in fields):
                 continue   # a header line
             raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {line[:40]!r}") from None
-        if len(nums) != 2 or len(fields) > 3:
-            raise InputError(f"{p.name} line {n}: expected δC δH and optionally the edited phase (CH2, CH/CH3), "
-                             f"got {line[:40]!r}")
+        if len(nums) != 2 or len(fields) > (3 if experiment == "HSQC" else 2):
+            raise InputError(f"{p.name} line {n}: expected δC δH" + (" and optionally the edited phase (CH2, CH/CH3)"
+                                                                      if experiment == "HSQC" else "") + f", got {line[:40]!r}")
         pairs.append(nums + fields[2:])
     if not pairs:
         raise InputError(f"{p.name}: no cross peaks found")
-    return hsqc_list(pairs, p.name)
+    return hsqc_list(pairs, p.name, experiment)
 
 
 __all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "peaks_from_records",

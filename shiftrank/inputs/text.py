@@ -39,7 +39,8 @@ MAX_TEXT = 200_000  # characters; longer text is refused (a whole article, not a
 _DASHES = "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\u2043\ufe63\uff0d"
 _MOJIBAKE = ("Î´", "â€", "Â", "Ã")
 
-#: 2D correlations other than HSQC/HMQC: sections of their own, noted and not used
+#: 2D correlations other than HSQC/HMQC: sections of their own; an HMBC's δ/δ pairs are read, the others noted and
+#: not used
 OTHER_2D = ("HMBC", "COSY", "NOESY", "ROESY", "TOCSY", "HETCOR")
 # a nucleus header: 1H NMR, ¹H-NMR, 13C{1H} NMR, 13C-APT NMR, 19F NMR, "H NMR" …
 _HEADER = re.compile(
@@ -69,6 +70,16 @@ _V = r"[+-]?\d{1,3}\.\d+"
 _HSQC_BRACKETED_H = re.compile(rf"(?<![\d./])(?P<c>{_V})\s*\(\s*(?P<h>{_V}(?:\s*[,;]\s*{_V})?)\s*\)")
 _HSQC_TUPLE = re.compile(rf"\(\s*(?P<a>{_V})\s*[,;]\s*(?P<b>{_V})\s*\)")
 _HSQC_ARROW = re.compile(rf"(?P<a>{_V})\s*(?:↔|⟷|<->|<=>|→|⇔)\s*(?:δ\s*[HC]?\s*[=:]?\s*)?(?P<b>{_V})")
+
+
+#: one proton to several carbons in an HMBC section: 'δH 4.07 → δC 139.9, 132.7' or '4.07 → 139.9 and 132.7'
+_ONE_TO_MANY = re.compile(rf"(?P<a>{_V})\s*(?:→|->|⟶|⇒)\s*(?:δ\s*C?\s*[=:]?\s*)?(?P<bs>{_V}(?:\s*(?:,|and)\s*{_V})+)")
+
+
+def _hmbc_arrows(text: str) -> str:
+    """An HMBC section's one-to-many correlations written as 'a/b' pairs, one per carbon."""
+    return _ONE_TO_MANY.sub(lambda m: ", ".join(f"{m.group('a')}/{b}" for b in re.split(r"\s*(?:,|and)\s*",
+                                                                                        m.group("bs").strip())), text)
 
 
 def _hsqc_slashes(text: str) -> str:
@@ -165,16 +176,20 @@ class NmrText:
                 return s.solvent
         return None
 
-    def hsqc(self, source: str = "HSQC text") -> HsqcList | None:
-        """The cross peaks of the first HSQC/HMQC section as an :class:`~shiftrank.inputs.peaks.HsqcList`
-        (None when the text prints none)."""
-        sec = self.section("HSQC")
+    def hsqc(self, source: str = "HSQC text", experiment: str = "HSQC") -> HsqcList | None:
+        """The cross peaks of the first HSQC/HMQC section (``experiment`` "HMBC": of the first HMBC section with
+        δ/δ pairs) as an :class:`~shiftrank.inputs.peaks.HsqcList` (None when the text prints none)."""
+        sec = self.section(experiment)
         if sec is None or not sec.peaks:
             return None
-        records = [[p.shift, p.shift_h] + ([p.dept] if p.dept else []) for p in sec.peaks]
-        out = hsqc_list(records, source)
+        records = [[p.shift, p.shift_h] + ([p.dept] if p.dept and experiment == "HSQC" else []) for p in sec.peaks]
+        out = hsqc_list(records, source, experiment)
         out.notes.extend(sec.notes)
         return out
+
+    def hmbc(self, source: str = "HMBC text") -> HsqcList | None:
+        """The δC/δH cross peaks of the first HMBC section (None when the text prints none as numbers)."""
+        return self.hsqc(source, "HMBC")
 
     def peaklist(self, nucleus: str, solvent: str | None = None, source: str = "text") -> PeakList | None:
         """The section's peaks as a :class:`~shiftrank.inputs.peaks.PeakList` (None when absent)."""
@@ -721,7 +736,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             # house styles, ISO 80000-1; from memory): every digit,digit of the section is a decimal comma
             body = re.sub(r"(?<=\d),(?=\d)", ".", body)
             comma_note = "decimal commas read as decimal points throughout the section (no value has a decimal point)"
-        if nuc == "HSQC":
+        if nuc == "HMBC":
+            body = _hmbc_arrows(body)
+        if nuc in ("HSQC", "HMBC"):
             body = _hsqc_slashes(body)
         cond, peaks_text = _header_end(body)
         if nuc is None:
@@ -744,7 +761,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             if m:
                 cond, peaks_text = m.group(1), peaks_text[m.end():]
         _read_conditions(sec, cond)
-        if sec.nucleus == "HSQC":
+        if sec.nucleus == "HSQC" or (sec.nucleus == "HMBC" and _HSQC_PAIR.search(peaks_text)):
             _read_hsqc(sec, header + " " + cond, peaks_text)
             out.sections.append(sec)
             continue
@@ -790,7 +807,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
     if not any(s.peaks for s in out.sections):
         why = "; ".join(n for s in out.sections for n in s.notes[:2])
         raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))
-    for nuc in ("1H", "13C", "HSQC"):
+    for nuc in ("1H", "13C", "HSQC", "HMBC"):
         n = sum(1 for s in out.sections if s.nucleus == nuc and s.peaks)
         if n > 1:   # several compounds pasted together, or one spectrum in two solvents: say which one counts
             first = next(s for s in out.sections if s.nucleus == nuc and s.peaks)
@@ -832,7 +849,8 @@ def _real_heads(t: str, heads: list[re.Match]) -> list[re.Match]:
                 continue
             end = heads[k + 1].start() if k + 1 < len(heads) else len(t)
             span = t[h.end():end]
-            if not (_HSQC_PAIR.search(_hsqc_slashes(span)) if h.group("hsqc") else _CORRELATION.search(span)):
+            pairs = _HSQC_PAIR.search(_hsqc_slashes(_hmbc_arrows(span)))
+            if not (pairs if h.group("hsqc") else pairs or _CORRELATION.search(span)):
                 continue
         out.append(h)
     return out
@@ -891,9 +909,11 @@ def _read_prose(sec: TextSection, body: str) -> bool:
 
 
 def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
-    """Cross peaks 'δC/δH' of an HSQC or HMQC section.  The order is δC/δH unless the text says 'δH/δC' (or
-    '1H/13C'); without either, the larger value of a pair is taken as δC (a protonated carbon's shift in ppm
-    exceeds its protons' except near 0 ppm, e.g. a silyl methyl), with a note."""
+    """Cross peaks 'δC/δH' of an HSQC, HMQC or HMBC section.  The order is δC/δH unless the text says 'δH/δC' (or
+    '1H/13C'); without either, the larger value of a pair is taken as δC (a carbon's shift in ppm exceeds its
+    protons' except near 0 ppm, e.g. a silyl methyl, or, in an HMBC, a carbon below about 12 ppm seen from an
+    aromatic proton), with a note."""
+    what = sec.nucleus
     order = None
     m = re.search(r"δ\s?([HC])\s*[/,]\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
     if m:
@@ -914,19 +934,19 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
         if pm.group("kind"):
             kind = HSQC_KINDS.get(pm.group("kind").replace(" ", "")) or HSQC_KINDS.get(pm.group("kind").strip().lower())
         if not -20.0 <= c <= 250.0 or not all(-2.0 <= h <= 20.0 for h in hs):
-            sec.notes.append(f"HSQC pair '{pm.group(0).strip()}' set aside: δC must lie within -20…250 ppm and δH "
+            sec.notes.append(f"{what} pair '{pm.group(0).strip()}' set aside: δC must lie within -20…250 ppm and δH "
                              "within -2…20 ppm (a typo?)")
             continue
         for h in hs:
             sec.peaks.append(PrintedPeak(c, shift_h=h, dept=kind, fragment=pm.group(0)))
     if sec.peaks and order is None:
-        sec.notes.append("HSQC pairs read as δC/δH by size (the larger value as δC); write 'δC/δH' or 'δH/δC' "
+        sec.notes.append(f"{what} pairs read as δC/δH by size (the larger value as δC); write 'δC/δH' or 'δH/δC' "
                          "in the header to fix the order" + (f"; {guessed} pair(s) near 0 ppm are uncertain" if guessed else ""))
     rest = _HSQC_PAIR.sub(" ", text)
     rest = re.sub(r"\d+(?:\.\d+)?\s*MHz", " ", rest)
     if re.search(r"\d", rest):   # nothing dropped silently: what the pairs did not take is named
         left = ", ".join(x.strip() for x in re.findall(r"[^,;]*\d[^,;]*", rest)[:4])
-        sec.notes.append(f"in the HSQC section, not read as δC/δH pairs: '{_clip(left)}'")
+        sec.notes.append(f"in the {what} section, not read as δC/δH pairs: '{_clip(left)}'")
 
 
 #: a header cell of an assignment table naming its 13C or its 1H column
