@@ -303,12 +303,14 @@ def _read_text_arg(spec: str) -> tuple[str, str]:
 
 def _case_from_args(args) -> tuple[dict, dict]:
     """The ranking case the options describe, and the peak lists read (for the report and inventory)."""
-    from .inputs.peaks import read_hsqc, read_peaks
+    from .inputs.peaks import read_hmbc, read_hsqc, read_peaks
 
-    hsqc = getattr(args, "hsqc", None)
-    if not (args.peaks or args.peaks_1h or args.text or hsqc):
-        raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc (cross peaks) and/or --text (printed characterisation)")
-    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "dept135", "text", "hsqc") if getattr(args, n, None) == "-"]
+    hsqc, hmbc = getattr(args, "hsqc", None), getattr(args, "hmbc", None)
+    if not (args.peaks or args.peaks_1h or args.text or hsqc or hmbc):
+        raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc or --hmbc (cross peaks) and/or --text (printed "
+                         "characterisation)")
+    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "dept135", "text", "hsqc", "hmbc")
+             if getattr(args, n, None) == "-"]
     if len(piped) > 1:
         raise InputError(f"{' and '.join(piped)} both read standard input ('-'): one of them can; give the other as a file")
     lists = {}
@@ -328,7 +330,9 @@ def _case_from_args(args) -> tuple[dict, dict]:
         case["text"], _ = _read_text_arg(args.text)
     if hsqc:
         lists["HSQC"] = case["hsqc"] = read_hsqc(hsqc)
-    sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc) if s]
+    if hmbc:
+        lists["HMBC"] = case["hmbc"] = read_hmbc(hmbc)
+    sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc, hmbc) if s]
     case["id"] = _sample_name(sources[0])
     return case, lists
 
@@ -347,7 +351,7 @@ def _rank_sample(args, case: dict):
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
                 hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"], mixture=case["mixture"],
-                reaction=reaction, reactants=args.reactants if reaction else None)
+                reaction=reaction, reactants=args.reactants if reaction else None, hmbc=case.get("hmbc"))
 
 
 def _write_sample_report(args, case: dict, result, path: str) -> None:
@@ -367,7 +371,8 @@ def cmd_rank(args) -> int:
     if args.json:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
-        print_ranking(result, {"peaks": args.peaks, "peaks_1h": args.peaks_1h, "text": args.text, "hsqc": args.hsqc})
+        print_ranking(result, {"peaks": args.peaks, "peaks_1h": args.peaks_1h, "text": args.text, "hsqc": args.hsqc,
+                               "hmbc": args.hmbc})
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
@@ -507,7 +512,7 @@ def cmd_report(args) -> int:
     else:
         if not args.candidates and not args.reaction:
             raise InputError("report: give --candidates (or --reaction with --reactants) with --peaks/--peaks-1h/--hsqc/"
-                             "--text, or --batch CASES.jsonl")
+                             "--hmbc/--text, or --batch CASES.jsonl")
         case, _ = _case_from_args(args)
         _write_sample_report(args, case, _rank_sample(args, case), args.output)
     print(f"report written to {args.output}")
@@ -658,6 +663,8 @@ def _sample_options(s) -> None:
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
                    "pairs, or a printed HSQC paragraph; - reads stdin")
+    s.add_argument("--hmbc", help="HMBC cross peaks (two- and three-bond H-C correlations): one 'δC δH' (or 'δC/δH') pair "
+                   "per line (.txt, .csv) or a JSON list of pairs; read beside the 1D spectra's assignments; - reads stdin")
     s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv); or give --reaction")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")

@@ -280,3 +280,65 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
                     "candidates": cands, "solvent": m.solvent,
                     "peaks": sorted(carbons.values(), key=lambda p: p["shift"]), "truth": truth, "split": m.split})
     return out
+
+
+#: synthetic HMBC spectra (:func:`hmbc_cases`): the share of two-bond and four-bond correlations kept, chosen
+#: (common practice: three-bond cross peaks are the strong ones, two-bond ones often weak, four-bond ones rare
+#: and mostly within aromatic rings); not measured on real HMBC spectra, which the open data does not hold
+HMBC_KEEP_2J = 0.6
+HMBC_KEEP_4J = 0.1
+
+
+def _keep(key: str, share: float) -> bool:
+    """A fixed pseudo-random choice per key (the same cases on every run)."""
+    return int(hashlib.sha256(key.encode()).hexdigest()[:8], 16) / 0xFFFFFFFF < share
+
+
+def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[dict]:
+    """Positional-isomer ranking cases with HMBC cross peaks built from measured shifts.
+
+    The compounds and candidates of :func:`hsqc_cases` (NMRShiftDB2 compounds with assigned 13C and 1H
+    shifts against their one-substituent positional isomers).  Each proton-bearing heavy atom X (its protons'
+    mean shift) and each carbon C (its 13C shift) whose protons-to-carbon distance is three bonds give a cross
+    peak; two bonds in a fixed share ``HMBC_KEEP_2J`` of pairs, four bonds (both atoms aromatic) in
+    ``HMBC_KEEP_4J``; symmetry-equivalent pairs give one.  'hmbc_ideal' holds every two- and three-bond pair and
+    no other.  The measured shifts are real; which correlations a spectrum shows is a chosen model of it."""
+    hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
+    out = []
+    for m in load_assigned(data_dir, nucleus="13C"):
+        hm = hmols.get(m.id)
+        if hm is None:
+            continue
+        dist = Chem.GetDistanceMatrix(m.mol)
+        ranks = symmetry_ranks(m.mol)
+        real, ideal = set(), set()
+        for x, dh in hm.shifts.items():
+            for c, dc in m.shifts.items():
+                bonds = int(dist[x, c]) + 1
+                if c == x or bonds > 4:
+                    continue
+                pair = (round(dc, 2), round(dh, 2))
+                key = f"{m.id}:{ranks[c]}:{ranks[x]}"
+                if bonds in (2, 3):
+                    ideal.add(pair)
+                aromatic = m.mol.GetAtomWithIdx(c).GetIsAromatic() and m.mol.GetAtomWithIdx(x).GetIsAromatic()
+                if bonds == 3 or (bonds == 2 and _keep(key, HMBC_KEEP_2J)) or (bonds == 4 and aromatic and _keep(key, HMBC_KEEP_4J)):
+                    real.add(pair)
+        if len(real) < 2:
+            continue
+        truth = Chem.MolToSmiles(m.mol)
+        cands = regio_candidates(truth, max_candidates)
+        if cands is None:
+            continue
+        carbons, protons = {}, {}
+        for a, v in m.shifts.items():
+            atom = m.mol.GetAtomWithIdx(a)
+            carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
+                                          + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
+        for a, v in hm.shifts.items():
+            protons.setdefault(ranks[a], round(v, 2))
+        out.append({"id": m.id, "hmbc": sorted(map(list, real)), "hmbc_ideal": sorted(map(list, ideal)),
+                    "candidates": cands, "solvent": m.solvent,
+                    "peaks": sorted(carbons.values(), key=lambda p: p["shift"]),
+                    "peaks_1h": sorted(protons.values()), "truth": truth, "split": m.split})
+    return out

@@ -172,17 +172,39 @@ def _fmt(x, nd=2, dash="–"):
 
 def _observed_text(pk) -> str:
     s = f"{pk.lo:.2f}–{pk.hi:.2f}" if pk.lo is not None and pk.hi is not None and pk.hi > pk.lo else f"{pk.shift:.2f}"
-    if pk.h_lo is not None:   # HSQC cross peak: δC / δH
+    if pk.h_lo is not None:   # HSQC or HMBC cross peak: δC / δH
         return s + (f" / {pk.h_lo:.2f}" if pk.h_hi == pk.h_lo else f" / {pk.h_lo:.2f}–{pk.h_hi:.2f}")
     bits = [b for b in (pk.multiplicity, ", ".join(f"{j:g}" for j in pk.j) + " Hz" if pk.j else None,
                         f"{pk.capacity}H" if pk.capacity else None) if b]
     return s + (f" ({'; '.join(bits)})" if bits else "")
 
 
+def _hmbc_block(res, rank_no: int) -> str:
+    """An HMBC's cross peaks, each with the carbon and protons it most likely joins in this candidate."""
+    e = html.escape
+    rows = []
+    for row in sorted(res.assignment_table(), key=lambda x: (-x["observed"], -x["observed_h"])):
+        far = bool(row["notes"])
+        rows.append(f"<tr><td class=num>{row['observed']:.2f} / {row['observed_h']:.2f}</td>"
+                    f"<td>{','.join(map(str, row['atoms']))}</td><td>{','.join(map(str, row['h_atoms']))}</td>"
+                    f"<td class=num>{row['bonds']}</td><td class=num>{row['cost']:.2f}</td>"
+                    f"<td>{'<span class=err>not two or three bonds apart</span>' if far else ''}</td></tr>")
+    n_far = len(res.hmbc_unexplained)
+    summary = (f"HMBC: {count(res.observed_signals, 'cross peak')}, {n_far} whose ends are not two or three bonds apart · "
+               f"cost {res.cost:.1f} nats")
+    table = ("<p class='note'>each cross peak with the carbon and the protons it most likely joins, as this candidate's "
+             "1D assignments (or its predicted shifts) read them</p><table><tr><th>δC / δH</th><th>C atoms</th>"
+             "<th>H on atoms</th><th>bonds</th><th>cost (nats)</th><th>note</th></tr>" + "".join(rows) + "</table>")
+    return (f"<div class='nuc'>{e(summary)}</div><details{' open' if rank_no == 1 else ''}>"
+            f"<summary>HMBC cross peaks</summary>{table}</details>")
+
+
 def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no: int, with_plots: bool,
                    sep=()) -> str:
     e = html.escape
     res = c.nuclei[nucleus]
+    if nucleus == "HMBC":
+        return _hmbc_block(res, rank_no)
     rows = []
     for row in res.assignment_table():
         obs = "" if row["peak"] is None else e(_observed_text(res.peaks[row["peak"]]))

@@ -12,7 +12,7 @@ def _fmt(x, spec: str, width: int) -> str:
 
 
 #: the input fields that can carry each spectrum (a printed paragraph may carry any of them)
-SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text")}
+SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc",)}
 
 
 def peak_sources(given: dict) -> dict:
@@ -57,7 +57,9 @@ def print_ranking(result, inputs: dict, out=None) -> None:
             r = c.nuclei[n]
             if alone:
                 cols += f" {'–':>7}" if result.lone else f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
-            cols += f" {_fmt(r.mae, '9.2f', 9)} {len(r.classes):>3}/{r.observed_signals:<2}"
+            # (HMBC: the cross peaks whose ends are two or three bonds apart in the candidate, of those observed)
+            expected = r.observed_signals - len(r.hmbc_unexplained) if n == "HMBC" else len(r.classes)
+            cols += f" {_fmt(r.mae, '9.2f', 9)} {expected:>3}/{r.observed_signals:<2}"
         prob = f"{'–':>6}" if result.lone else f"{c.probability:6.3f}"
         print(f" {i:>2}  {prob} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
         for fl in c.flags:
@@ -93,6 +95,8 @@ def print_separation(result, out=None) -> None:
 def print_assignment(cand, nucleus: str, out=None) -> None:
     """The assignment table of one candidate for one nucleus."""
     out = out or sys.stdout
+    if nucleus == "HMBC":
+        return print_hmbc(cand, out)
     r = cand.nuclei[nucleus]
     what = {"13C": "carbon", "1H": "proton class", "HSQC": "protonated carbon"}[nucleus]
     print(f"\n{nucleus} assignment for {cand.name or cand.smiles}, {what} by {what}:", file=out)
@@ -134,3 +138,19 @@ def print_assignment(cand, nucleus: str, out=None) -> None:
         if p.h_lo is not None:
             shown += f" / {p.h_lo:.2f}"
         print(f"  {'-':<12} {(p.multiplicity or '')[:9]:<9} {'':>9} {'':>5} {shown:>13} {'':>6}  {why}", file=out)
+
+
+def print_hmbc(cand, out=None) -> None:
+    """The HMBC cross peaks of one candidate: for each, the carbon and the protons it most likely joins (as the
+    candidate's 1D assignments and shifts read them), how many bonds apart they are, and its cost."""
+    out = out or sys.stdout
+    r = cand.nuclei["HMBC"]
+    print(f"\nHMBC cross peaks for {cand.name or cand.smiles}, each with the carbon and protons it most likely joins:",
+          file=out)
+    print(f"  {'δC':>7} {'δH':>6}  {'C atoms':<10} {'H on atoms':<10} {'bonds':>5} {'cost':>6}  note", file=out)
+    for row in sorted(r.assignment_table(), key=lambda x: (-x["observed"], -x["observed_h"])):
+        c = ",".join(str(a) for a in row["atoms"])
+        h = ",".join(str(a) for a in row["h_atoms"])
+        note = "not two or three bonds apart" if row["notes"] else ""
+        print(f"  {row['observed']:7.2f} {row['observed_h']:6.2f}  {c[:10]:<10} {h[:10]:<10} {row['bonds']:>5} "
+              f"{row['cost']:6.2f}  {note}", file=out)

@@ -109,6 +109,8 @@ class SignalClass:
     shift_h: float | None = None  # HSQC: predicted mean shift of the carbon's protons, and its σ
     sigma_h: float | None = None
     twin_of: int | None = None  # 1H: classes with the same value are alike groups told apart (one multiplet is fine)
+    h_atoms: list | None = None   # HMBC: the heavy atoms carrying the protons of this C–H pair (``atoms``: the carbons)
+    bonds: int | None = None      # HMBC: bonds from those protons to the nearest of the carbons
 
     @property
     def may_go_unseen(self) -> bool:

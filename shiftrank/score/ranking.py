@@ -35,8 +35,8 @@ from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_for
 from ..chem.inventory import COUNTED_NUCLEI
 from ..chem.structure import StructureFacts
 from ..errors import InputError
-from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, flag_solvent, mark_doubled, merge_duplicates,
-                            dept135_from_signs, looks_like_1h, not_13c_message, peak_text, peaks_from_records)
+from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, flag_solvent, hmbc_list, mark_doubled,
+                            merge_duplicates, dept135_from_signs, looks_like_1h, not_13c_message, peak_text, peaks_from_records)
 from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
 from ..inputs.text import NmrText, read_nmr_text
@@ -54,8 +54,8 @@ from .verdicts import (ISOMER_MIXTURE, _canonical_of, _compound_of, _tautomer_no
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
 NUCLEI = ("13C", "1H")
-#: the kinds of observed spectra: the two nuclei and HSQC (which needs both models)
-SPECTRA = ("13C", "1H", "HSQC")
+#: the kinds of observed spectra: the two nuclei, HSQC and HMBC (which need both models)
+SPECTRA = ("13C", "1H", "HSQC", "HMBC")
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
            "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
 
@@ -422,16 +422,21 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         means[n] = getattr(parts, "class_means", None)
         if means[n] is None or means[n].mu is not preds[n][0]:
             means[n] = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
-    for n, obs in peaks.items():
-        mu = (means["13C"], means["1H"]) if n == "HSQC" else means[n]
-        r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs_for(n, len(peaks) > 1), facts=res.facts)
-        if not identity:  # tables speak of the atoms as the user drew them
-            for c in r.classes:
-                c.atoms = [std.atom_map[a] for a in c.atoms]
+    for n in sorted(peaks, key=SPECTRA.index):   # (HMBC after the 1D spectra whose assignments it reads)
+        obs = peaks[n]
+        mu = (means["13C"], means["1H"]) if len(MODELS_FOR[n]) == 2 else means[n]
+        kw = {"given": dict(res.nuclei)} if n == "HMBC" else {}
+        r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs_for(n, len(peaks) > 1), facts=res.facts, **kw)
         res.nuclei[n] = r
         res.flags.extend(r.flags)
         res.divisors[n] = settings.divisor(n, len(peaks) > 1)
         total += r.cost / res.divisors[n]
+    if not identity:  # tables speak of the atoms as the user drew them
+        for r in res.nuclei.values():
+            for c in r.classes:
+                c.atoms = [std.atom_map[a] for a in c.atoms]
+                if c.h_atoms is not None:
+                    c.h_atoms = [std.atom_map[a] for a in c.h_atoms]
     res.cost = total
     return res
 
@@ -566,12 +571,23 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
         if hs is not None:
             out["HSQC"] = hs
             notes.extend(f"text: {n}" for n in hs.notes)
+    if isinstance(case.get("hmbc"), HsqcList):   # read from a file already, with its notes
+        out["HMBC"] = case["hmbc"]
+        notes.extend(case["hmbc"].notes)
+    elif case.get("hmbc") is not None:
+        out["HMBC"] = hmbc_list(case["hmbc"], "hmbc")
+    elif parsed is not None:
+        hm = parsed.hmbc()   # an HMBC section printed with the paragraph, as δC/δH pairs
+        if hm is not None:
+            out["HMBC"] = hm
+            notes.extend(f"text: {n}" for n in hm.notes)
     if not out:
         other = sorted({sec.nucleus for sec in parsed.sections if sec.peaks}) if parsed is not None else []
         if other:
             raise InputError(f"text: only {', '.join(other)} peaks were read; shiftrank ranks on 13C, 1H and HSQC "
                              "(give one of those sections or lists)")
-        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' (cross peaks) or 'text' (printed characterisation)")
+        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' or 'hmbc' (cross peaks) or 'text' "
+                         "(printed characterisation)")
     two, mix = case.get("rotamers"), case.get("mixture")
     if two is not None and not isinstance(two, bool):
         raise InputError("rotamers: expected true or false (the spectra show two forms of the compound)")
@@ -592,7 +608,7 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
                 word = COUNTED_NUCLEI[sec.nucleus][2]
                 notes.append(f"text: {sec.nucleus} section ({count(len(sec.peaks), 'signal')}) used by its count only, "
                              f"against {word} environments ({sec.nucleus} shifts are not predicted)")
-            elif sec.nucleus not in NUCLEI and sec.nucleus != "HSQC" and sec.peaks:
+            elif sec.nucleus not in NUCLEI and sec.nucleus not in ("HSQC", "HMBC") and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
         solvent = parsed.solvent
@@ -711,7 +727,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
          peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
          rotamers: bool = False, mixture: bool = False, reaction: str | None = None,
-         reactants: str | None = None) -> RankResult:
+         reactants: str | None = None, hmbc=None) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules, or a ``{name: SMILES}``
     dict) against peaks.
 
@@ -719,7 +735,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     arrays) of shifts, lists of ``{"shift": …, "multiplicity": …}`` objects (1H: also ``"integral"``, ``"j"``
     and ``"range": [low, high]``), or a peak list as text (``"166.6, 150.1, 137.6"``, one peak per line, or a
     printed paragraph, whose section of that nucleus is read); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
-    ``[δC, δH]`` cross peaks (or an :class:`~shiftrank.inputs.peaks.HsqcList` from ``read_hsqc``).  Any one is enough.
+    ``[δC, δH]`` cross peaks (or an :class:`~shiftrank.inputs.peaks.HsqcList` from ``read_hsqc``), ``hmbc`` the same for
+    the two- and three-bond cross peaks of an HMBC (``read_hmbc``).  Any one is enough.
     ``formula``, ``mass`` (neutral, Da) and ``mz`` (a measured m/z, or ``{"found": …, "adduct": "M+H"}``)
     are sample history, as is a mass statement printed in ``text`` (``HRMS (ESI) m/z [M+H]+ calcd for …,
     found …``): a candidate they contradict is flagged and ranked last.
@@ -744,7 +761,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
                              mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz,
-                             rotamers=rotamers, mixture=mixture, reaction=reaction, reactants=reactants)],
+                             rotamers=rotamers, mixture=mixture, reaction=reaction, reactants=reactants, hmbc=hmbc)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result

@@ -23,8 +23,8 @@ import numpy as np
 
 #: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
 MIN_SHARE = 0.3
-#: spectra whose lines are split (an HSQC line is a cross peak, named δC/δH)
-NUCLEI = ("13C", "1H", "HSQC")
+#: spectra whose lines are split (an HSQC or HMBC line is a cross peak, named δC/δH)
+NUCLEI = ("13C", "1H", "HSQC", "HMBC")
 
 
 @dataclass
@@ -40,7 +40,7 @@ class Separator:
     first: list[str]
     second: list[str]
     kind: str = "line"
-    h: float | None = None     # HSQC: the cross peak's δH
+    h: float | None = None     # HSQC, HMBC: the cross peak's δH
     first_classes: list = field(default_factory=list)    # the classes as data: atoms, predicted, deviation, z
     second_classes: list = field(default_factory=list)
 
@@ -81,6 +81,8 @@ def _row(res, pairing) -> dict:
     """One class placed on (or missing from) a line, as data."""
     c = res.classes[pairing.cls]
     r = lambda x: None if x is None else round(float(x), 3)  # noqa: E731
+    if res.nucleus == "HMBC":
+        return {"atoms": list(c.atoms), "h_atoms": list(c.h_atoms), "bonds": c.bonds}
     return {"atoms": list(c.atoms), "multiplicity": c.multiplicity, "predicted": r(c.shift), "sigma": r(c.sigma),
             "deviation": r(pairing.deviation), "z": r(pairing.z)}
 
@@ -88,6 +90,10 @@ def _row(res, pairing) -> dict:
 def _describe(res, pairing) -> str:
     c = res.classes[pairing.cls]
     atoms = ",".join(str(a) for a in c.atoms)
+    if res.nucleus == "HMBC":   # which carbon and which protons the cross peak joins, and how far apart they are
+        h = ",".join(str(a) for a in c.h_atoms)
+        far = "" if pairing.multiplicity_ok else ", not 2-3"
+        return f"C atom{'s' if len(c.atoms) > 1 else ''} {atoms} – H on {h}: {c.bonds} bonds{far}"
     what = f"atom{'s' if len(c.atoms) > 1 else ''} {atoms} {c.multiplicity}"
     nd = 2 if res.nucleus == "1H" else 1
     if pairing.peak is None:
@@ -133,7 +139,7 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
             out.append(Separator(n, pk.shift, rng, share,
                                  [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
                                  [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"],
-                                 h=pk.h_lo if n == "HSQC" else None,
+                                 h=pk.h_lo if n in ("HSQC", "HMBC") else None,
                                  first_classes=[_row(a, p) for p in on_a[j]], second_classes=[_row(b, p) for p in on_b[j]]))
         gone_a = [p for p in a.assignment.pairings if p.peak is None]
         gone_b = [p for p in b.assignment.pairings if p.peak is None]
@@ -226,10 +232,15 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
     if second is None or first.probability >= NEXT_BELOW:
         return []
     out = _counted_hints(first.smiles, second.smiles, result.counted) + _dept_hint(result, first, second)
+    hmbc = [] if "HMBC" in result.peaks else _hmbc_hint(first.smiles, second.smiles, solvent)
     if all(n in result.peaks for n in ("13C", "1H")):
+        if hmbc:
+            return out + hmbc
         return out + ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they "
                       "differ (HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common "
-                      "practice)"]
+                      "practice)" if "HMBC" not in result.peaks else
+                      "the spectra given leave #1 and #2 close: NOE (neighbours in space) or an authentic sample would "
+                      "decide (common practice)"]
     for n in ("13C", "1H"):
         if n in result.peaks or (n == "13C" and "HSQC" in result.peaks):
             continue
@@ -252,4 +263,70 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
         else:
             out.append(f"a {n} spectrum would hardly tell #1 and #2 apart by shifts (their predicted classes differ by at "
                        f"most {z[i, j]:.1f}σ){counts} (predictions)")
+    return out + hmbc
+
+
+def _linked_pairs(smiles: str, solvent: str | None) -> list[tuple[str, float, float, float, float]]:
+    """(label, δC, σC, δH, σH) predicted for every carbon class and proton class (not on O/N/S) two or three bonds
+    apart: the cross peaks an HMBC of ``smiles`` may show."""
+    from ..chem.structure import symmetry_ranks
+    from ..inputs.molecules import to_mol
+    from ..prediction.api import predict
+    from .evidence import HMBC_BONDS, hmbc_bonds
+
+    mol = to_mol(smiles)
+    pc, ph = predict(smiles, solvent, "13C"), predict(smiles, solvent, "1H")
+    ranks = symmetry_ranks(mol)
+
+    def classes(pred, keep):
+        groups: dict[int, list] = {}
+        for a in pred.atoms:
+            if keep(mol.GetAtomWithIdx(a.atom)):
+                groups.setdefault(ranks[a.atom], []).append(a)
+        return [([m.atom for m in g], float(np.mean([m.shift for m in g])), float(np.mean([m.sigma for m in g])))
+                for g in groups.values()]
+
+    cs = classes(pc, lambda at: True)
+    hs = classes(ph, lambda at: at.GetAtomicNum() == 6)
+    nb = hmbc_bonds(mol, [c[0] for c in cs], [h[0] for h in hs])
+    out = []
+    for i, (ca, c, sc) in enumerate(cs):
+        for k, (ha, h, sh) in enumerate(hs):
+            bonds = int(nb[i, k])
+            if bonds in HMBC_BONDS:
+                label = (f"the H on atom{'s' if len(ha) > 1 else ''} {','.join(map(str, ha))} to C atom"
+                         f"{'s' if len(ca) > 1 else ''} {','.join(map(str, ca))}, {bonds} bonds")
+                out.append((label, c, sc, h, sh))
     return out
+
+
+def _hmbc_hint(first: str, second: str, solvent: str | None) -> list[str]:
+    """The cross peak an HMBC would most likely show for one of #1 and #2 and not for the other: of each one's
+    predicted two- and three-bond pairs, the one farthest (in combined σ of both dimensions) from every pair of
+    the other (common practice: a three-bond correlation across the bond that differs decides a regiochemistry)."""
+    from ..errors import InputError
+
+    try:
+        a, b = _linked_pairs(first, solvent), _linked_pairs(second, solvent)
+    except InputError:
+        return []
+    if not a or not b:
+        return []
+
+    def farthest(x, y):
+        best = None
+        for lab, c, sc, h, sh in x:
+            z = min(math.hypot((c - c2) / math.hypot(sc, sc2), (h - h2) / math.hypot(sh, sh2)) for _, c2, sc2, h2, sh2 in y)
+            if best is None or z > best[0]:
+                best = (z, lab, c, h)
+        return best
+
+    fa, fb = farthest(a, b), farthest(b, a)
+    which, (z, lab, c, h) = ("#1", fa) if fa[0] >= fb[0] else ("#2", fb)
+    if z < NEXT_Z:
+        return []
+    other = "#2" if which == "#1" else "#1"
+    return [f"an HMBC would likely tell #1 and #2 apart: {which} predicts a cross peak near δC {c:.1f} / δH {h:.2f} "
+            f"({lab}) that no two- or three-bond pair of {other} gives within {min(z, 5.0):.1f}σ{'+' if z > 5 else ''} "
+            "(predictions)"]
+
