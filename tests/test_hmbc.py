@@ -93,7 +93,7 @@ def test_rank_cli_batch_and_json_take_hmbc(tmp_path, capsys):
     f.write_text("\n".join(f"{c} {h}" for c, h in HMBC_N1) + "\n")
     assert main(["rank", "--hmbc", str(f), "--peaks-1h", str(_h1(tmp_path)), "--candidates", N1, N2]) == 0
     out = capsys.readouterr().out
-    assert f"HMBC peaks: {f}: 5 signals" in out and "HMBC cross peaks for Cn1ncc2ccccc21" in out
+    assert f"HMBC peaks: {f}: 5 cross peaks" in out and "HMBC cross peaks for Cn1ncc2ccccc21" in out
     assert main(["rank", "--hmbc", str(f), "--candidates", N1, N2, "--json"]) == 0
     d = json.loads(capsys.readouterr().out)
     assert "connectivity" in d["ranking"][0]["nuclei"]["HMBC"]["cost_parts"]
@@ -141,3 +141,14 @@ def test_an_hmbc_section_printed_with_the_paragraph_is_read_and_used():
     labels = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.98 (s, 1H), 4.07 (s, 3H). HMBC: H-3/C-7a, NCH3/C-7a.")
     assert labels.hmbc() is None
     assert any("HMBC correlations read as a section of their own and not used" in n for s in labels.sections for n in s.notes)
+
+
+def test_a_file_written_proton_first_is_read_so_with_a_note(tmp_path):
+    # 'δH δC' columns (a natural order for HMBC, read from the proton): every second value larger and some beyond
+    # 20 ppm, so the columns are swapped and a note says so; a Python list in the wrong order gets a hint instead
+    f = tmp_path / "hmbc.txt"
+    f.write_text("4.07 139.9\n7.98 124.0\n")
+    hm = read_hmbc(f)
+    assert hm.pairs == [(139.9, 4.07), (124.0, 7.98)] and "read as δH δC" in hm.notes[-1]
+    with pytest.raises(InputError, match=r"the carbon first"):
+        hmbc_list([[4.07, 139.9]])

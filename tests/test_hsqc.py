@@ -65,7 +65,7 @@ def test_rank_cli_and_batch_take_cross_peaks(tmp_path, capsys):
     assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC, MEPROP]) == 0
     out = capsys.readouterr().out
     assert "HSQC assignment for CCOC(C)=O" in out and "δH obs" in out
-    assert f"HSQC peaks: {f}: 3 signals" in out      # the line names the file that gave these peaks
+    assert f"HSQC peaks: {f}: 3 cross peaks" in out      # the line names the file that gave these peaks
     f.write_text("21.0 2.05\nnot numbers here\n")
     assert main(["rank", "--hsqc", str(f), "--candidates", ETOAC]) == 2
     assert "line 2" in capsys.readouterr().err

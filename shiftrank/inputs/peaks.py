@@ -802,7 +802,8 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
         if not (math.isfinite(c) and -20.0 <= c <= 250.0):
             raise InputError(f"{source} entry {k}: δC {c:g} ppm is outside -20…250 ppm")
         if not (math.isfinite(h) and -2.0 <= h <= 20.0):
-            raise InputError(f"{source} entry {k}: δH {h:g} ppm is outside -2…20 ppm")
+            raise InputError(f"{source} entry {k}: δH {h:g} ppm is outside -2…20 ppm"
+                             + (" (give each cross peak as [δC, δH], the carbon first)" if -2.0 <= c <= 20.0 else ""))
         pairs.append((c, h))
         kinds.append(kind)
     if len(pairs) > 2000:
@@ -866,8 +867,15 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
         pairs.append(nums + fields[2:])
     if not pairs:
         raise InputError(f"{p.name}: no cross peaks found")
+    if all(a < b and a <= 20.0 for a, b, *_ in pairs) and any(b > 20.0 for _, b, *_ in pairs):
+        # every pair has the smaller value first and some second value is no proton shift: the columns are δH δC
+        out = hsqc_list([[b, a, *rest] for a, b, *rest in pairs], p.name, experiment)
+        out.notes.append(f"{p.name}: read as δH δC (in every line the second value is the larger, and some lie "
+                         "beyond 20 ppm)")
+        return out
     return hsqc_list(pairs, p.name, experiment)
 
 
-__all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "peaks_from_records",
+__all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "read_hmbc", "hmbc_list",
+           "peaks_from_records",
            "flag_solvent", "SOLVENTS"]

@@ -270,7 +270,8 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     for n in result.nuclei:
         ps = result.peaks[n]
         n_obs = sum(1 for p in ps if not p.solvent)
-        bits.append(f"{count(n_obs, n + ' signal')}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
+        unit = " cross peak" if n in ("HSQC", "HMBC") else " signal"
+        bits.append(f"{count(n_obs, n + unit)}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")
     if lists is not None and not isinstance(lists, dict):   # one peak list given for the sample

@@ -37,7 +37,8 @@ def print_ranking(result, inputs: dict, out=None) -> None:
         peaks = result.peaks[n]
         n_obs = sum(1 for p in peaks if not p.solvent)
         n_solv = len(peaks) - n_obs
-        print(f"{n} peaks: {sources.get(n) or 'input'}: {count(n_obs, 'signal')}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
+        unit = "cross peak" if n in ("HSQC", "HMBC") else "signal"
+        print(f"{n} peaks: {sources.get(n) or 'input'}: {count(n_obs, unit)}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
     for note in result.notes:
         print(f"  note: {note}", file=out)
     print(file=out)
