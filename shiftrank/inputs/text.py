@@ -916,9 +916,13 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
     what = sec.nucleus
     order = None
     m = re.search(r"δ\s?([HC])\s*[/,]\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
+    # ('δH 4.07 → δC 139.9', rewritten as 'δH 4.07/139.9': the pair's first value is named)
+    named = re.search(r"δ\s?([HC])\s*[=:]?\s*[+-]?\d{1,3}(?:\.\d+)?\s*/", text)
     if m:
         first = (m.group(1) or m.group(3) or "").upper()
         order = "HC" if first in ("H", "1H") else "CH"
+    elif named:
+        order = "HC" if named.group(1).upper() == "H" else "CH"
     guessed = 0
     for pm in _HSQC_PAIR.finditer(text):   # (other ways of printing a pair were rewritten as 'a/b' by the caller)
         a, b = float(pm.group("a")), float(pm.group("b"))

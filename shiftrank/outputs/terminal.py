@@ -12,7 +12,7 @@ def _fmt(x, spec: str, width: int) -> str:
 
 
 #: the input fields that can carry each spectrum (a printed paragraph may carry any of them)
-SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc",)}
+SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc", "text")}
 
 
 def peak_sources(given: dict) -> dict:
