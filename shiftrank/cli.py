@@ -303,13 +303,14 @@ def _read_text_arg(spec: str) -> tuple[str, str]:
 
 def _case_from_args(args) -> tuple[dict, dict]:
     """The ranking case the options describe, and the peak lists read (for the report and inventory)."""
-    from .inputs.peaks import read_hmbc, read_hsqc, read_peaks
+    from .inputs.peaks import read_cosy, read_hmbc, read_hsqc, read_noesy, read_peaks
 
     hsqc, hmbc = getattr(args, "hsqc", None), getattr(args, "hmbc", None)
-    if not (args.peaks or args.peaks_1h or args.text or hsqc or hmbc):
-        raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc or --hmbc (cross peaks) and/or --text (printed "
-                         "characterisation)")
-    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "dept135", "text", "hsqc", "hmbc")
+    cosy, noesy = getattr(args, "cosy", None), getattr(args, "noesy", None)
+    if not (args.peaks or args.peaks_1h or args.text or hsqc or hmbc or cosy or noesy):
+        raise InputError("give --peaks (13C), --peaks-1h (1H), --hsqc, --hmbc, --cosy or --noesy (cross peaks) and/or "
+                         "--text (printed characterisation)")
+    piped = [f"--{n.replace('_', '-')}" for n in ("peaks", "peaks_1h", "dept135", "text", "hsqc", "hmbc", "cosy", "noesy")
              if getattr(args, n, None) == "-"]
     if len(piped) > 1:
         raise InputError(f"{' and '.join(piped)} both read standard input ('-'): one of them can; give the other as a file")
@@ -332,7 +333,11 @@ def _case_from_args(args) -> tuple[dict, dict]:
         lists["HSQC"] = case["hsqc"] = read_hsqc(hsqc)
     if hmbc:
         lists["HMBC"] = case["hmbc"] = read_hmbc(hmbc)
-    sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc, hmbc) if s]
+    if cosy:
+        lists["COSY"] = case["cosy"] = read_cosy(cosy)
+    if noesy:
+        lists["NOESY"] = case["noesy"] = read_noesy(noesy)
+    sources = [s for s in (args.peaks, args.peaks_1h, args.text, hsqc, hmbc, cosy, noesy) if s]
     case["id"] = _sample_name(sources[0])
     return case, lists
 
@@ -351,7 +356,8 @@ def _rank_sample(args, case: dict):
                 solvent=args.solvent, id=case["id"], demote_history_mismatch=not args.keep_mismatches,
                 peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=args.with_isomers or False,
                 hsqc=case.get("hsqc"), mz=_mz_arg(args), rotamers=case["rotamers"], mixture=case["mixture"],
-                reaction=reaction, reactants=args.reactants if reaction else None, hmbc=case.get("hmbc"))
+                reaction=reaction, reactants=args.reactants if reaction else None, hmbc=case.get("hmbc"),
+                cosy=case.get("cosy"), noesy=case.get("noesy"))
 
 
 def _write_sample_report(args, case: dict, result, path: str) -> None:
@@ -372,7 +378,7 @@ def cmd_rank(args) -> int:
         print(json.dumps(result.to_dict(detail=True), indent=1))
     else:
         print_ranking(result, {"peaks": args.peaks, "peaks_1h": args.peaks_1h, "text": args.text, "hsqc": args.hsqc,
-                               "hmbc": args.hmbc})
+                               "hmbc": args.hmbc, "cosy": args.cosy, "noesy": args.noesy})
     if all(c.error for c in result.candidates):
         print("shiftrank rank: error: no candidate could be evaluated", file=sys.stderr)
         return 2
@@ -512,7 +518,7 @@ def cmd_report(args) -> int:
     else:
         if not args.candidates and not args.reaction:
             raise InputError("report: give --candidates (or --reaction with --reactants) with --peaks/--peaks-1h/--hsqc/"
-                             "--hmbc/--text, or --batch CASES.jsonl")
+                             "--hmbc/--cosy/--noesy/--text, or --batch CASES.jsonl")
         case, _ = _case_from_args(args)
         _write_sample_report(args, case, _rank_sample(args, case), args.output)
     print(f"report written to {args.output}")
@@ -665,6 +671,9 @@ def _sample_options(s) -> None:
                    "pairs, or a printed HSQC paragraph; - reads stdin")
     s.add_argument("--hmbc", help="HMBC cross peaks (two- and three-bond H-C correlations): one 'δC δH' (or 'δC/δH') pair "
                    "per line (.txt, .csv) or a JSON list of pairs; read beside the 1D spectra's assignments; - reads stdin")
+    s.add_argument("--cosy", help="COSY cross peaks (coupled protons): one 'δH δH' pair per line or a JSON list; - reads stdin")
+    s.add_argument("--noesy", help="NOESY or ROESY cross peaks (protons close in space): one 'δH δH' pair per line or a JSON "
+                   "list; judged on RDKit conformers of each candidate; - reads stdin")
     s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv); or give --reaction")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")

@@ -15,7 +15,7 @@ from rdkit import Chem
 from shiftrank.cli import main
 from shiftrank.errors import InputError
 from shiftrank.inputs.peaks import hmbc_list, read_hmbc
-from shiftrank.score.evidence import hmbc_bonds
+from shiftrank.score.correlations import hmbc_bonds
 from shiftrank.score.ranking import rank, rank_many
 
 N1, N2 = "Cn1ncc2ccccc21", "Cn1cc2ccccc2n1"

@@ -69,12 +69,14 @@ def test_next_measurement_is_suggested_only_when_the_first_two_stay_close():
     r.candidates[0].probability, r.candidates[1].probability = 0.6, 0.4   # as if the 1H lines left them close
     hints = r.next_spectrum()
     # the two differ most at C3 (about 133 against 123 ppm) or C7 (about 109 against 117) (common practice)
-    assert len(hints) == 2 and hints[0].startswith("a 13C spectrum would likely tell #1 and #2 apart")
+    assert len(hints) == 3 and hints[0].startswith("a 13C spectrum would likely tell #1 and #2 apart")
     assert "(predictions)" in hints[0]
     # and an HMBC by the N-methyl's correlations: in the N2 isomer H3 is three bonds from the N-CH3 carbon (H3-C3-N2-C),
     # in the N1 isomer four (common practice: the N-alkyl's HMBC to C3 or to C7a tells N1 from N2)
     assert hints[1].startswith("an HMBC would likely tell #1 and #2 apart: #2 predicts a cross peak")
     assert "(the H on atom 2 to C atom 0, 3 bonds)" in hints[1]
+    # and a NOESY by the N-CH3's neighbour in space: H7, a doublet, in the N1 isomer (common practice)
+    assert hints[2].startswith("a NOESY or ROESY would likely tell #1 and #2 apart: #1 places the H on atom 0")
     assert "next measurement: a 13C spectrum" in str(r)
     r.candidates[0].probability = 0.95
     assert r.next_spectrum() == []

@@ -448,12 +448,14 @@ def test_prose_with_a_short_word_between_is_still_read_as_sentences():
 
 
 def test_other_2d_correlations_never_join_a_1h_or_13c_list():
-    # own example of how SI paragraphs print them: HMBC/NOESY/COSY pairs are a section of their own, noted
+    # own example of how SI paragraphs print them: HMBC/NOESY/COSY pairs are a section of their own (read as δ/δ
+    # pairs of that experiment); label-only correlations are noted
     t = read_nmr_text("1H NMR (400 MHz, CDCl3) δ 7.26 (s, 1H). 13C NMR (101 MHz, CDCl3) δ 128.4, 55.3; "
-                      "HMBC correlations: 7.26/128.4, 3.80/159.1. NOESY: 7.26/3.80")
+                      "HMBC correlations: 7.26/128.4, 3.80/159.1. NOESY: 7.26/3.80. COSY: H-2/H-3")
     assert [p.shift for p in t.section("13C").peaks] == [128.4, 55.3]
     assert [p.shift for p in t.section("1H").peaks] == [7.26]
-    assert t.section("HMBC").notes and t.section("NOESY").notes and t.hsqc() is None
+    assert t.hmbc().pairs == [(128.4, 7.26), (159.1, 3.80)] and t.hsqc("x", "NOESY").pairs == [(7.26, 3.80)]
+    assert t.hsqc() is None and t.section("COSY").notes and not t.section("COSY").peaks
     # the word in an assignment or in prose opens nothing (PMC7672604's sentence, see above)
     assert [p.shift for p in read_nmr_text("13C NMR δ 128.4 (C-4, HMBC to H-2), 55.3").section("13C").peaks] == [128.4, 55.3]
 

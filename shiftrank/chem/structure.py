@@ -46,6 +46,7 @@ class StructureFacts:
     carbon_classes: list[CarbonClass]
     hydrogen_classes: list[list[int]] = field(default_factory=list)  # heavy-atom indices carrying each H class
     proton_multiplets: list | None = None   # expected 1H multiplets, filled in by the scoring when needed
+    proton_distances: object = None         # NOESY: H–H distances in 3D (score.correlations), filled in when needed
 
     @property
     def n_carbons(self) -> int:

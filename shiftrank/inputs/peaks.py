@@ -18,6 +18,7 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from ..errors import InputError
+from ..words import count
 from .files import read_user_text
 from .solvents import SOLVENTS, match_solvent, normalise_solvent
 
@@ -776,12 +777,15 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
     if not isinstance(records, (list, tuple)) or not records:
         raise InputError(f"{source}: expected a non-empty list of [δC, δH] cross peaks")
 
+    protons = experiment in ("COSY", "NOESY")   # two proton dimensions
+
     def phase(value, where: str) -> str | None:
-        if experiment == "HMBC" and value is not None:
-            raise InputError(f"{where}: an HMBC cross peak has no phase; give [δC, δH]")
+        if experiment != "HSQC" and value is not None:
+            raise InputError(f"{where}: an {experiment} cross peak has no phase; give "
+                             + ("[δH, δH]" if protons else "[δC, δH]"))
         return _hsqc_kind(value, where)
 
-    pairs, kinds = [], []
+    pairs, kinds, diagonal = [], [], 0
     for k, r in enumerate(records, 1):
         kind = None
         if isinstance(r, dict):
@@ -799,6 +803,17 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
             c, h = float(c), float(h)
         except (TypeError, ValueError):
             raise InputError(f"{source} entry {k}: δC and δH must be numbers, got {str(r)[:40]!r}") from None
+        if protons:
+            for v in (c, h):
+                if not (math.isfinite(v) and -2.0 <= v <= 20.0):
+                    raise InputError(f"{source} entry {k}: δH {v:g} ppm is outside -2…20 ppm (an {experiment} cross "
+                                     "peak joins two protons)")
+            if abs(c - h) < DIAGONAL:   # a diagonal peak says nothing about two protons
+                diagonal += 1
+                continue
+            pairs.append((max(c, h), min(c, h)))
+            kinds.append(None)
+            continue
         if not (math.isfinite(c) and -20.0 <= c <= 250.0):
             raise InputError(f"{source} entry {k}: δC {c:g} ppm is outside -20…250 ppm")
         if not (math.isfinite(h) and -2.0 <= h <= 20.0):
@@ -808,7 +823,47 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
         kinds.append(kind)
     if len(pairs) > 2000:
         raise InputError(f"{source}: {len(pairs):,} cross peaks; the limit is 2,000")
-    return HsqcList(pairs, source, kinds=kinds if any(kinds) else None, nucleus=experiment)
+    notes = []
+    if protons:
+        twice = len(pairs) - len(set(pairs))
+        if twice:   # a symmetric spectrum shows each cross peak on both sides of the diagonal
+            notes.append(f"{source}: {count(twice, 'cross peak')} given on both sides of the diagonal, read once")
+            keep = dict.fromkeys(pairs)
+            pairs, kinds = list(keep), [None] * len(keep)
+        if diagonal:
+            notes.append(f"{source}: {count(diagonal, 'diagonal peak')} (both δH within {DIAGONAL} ppm) set aside")
+        if not pairs:
+            raise InputError(f"{source}: no cross peak off the diagonal")
+    return HsqcList(pairs, source, notes, kinds=kinds if any(kinds) else None, nucleus=experiment)
+
+
+#: COSY / NOESY: a cross peak whose two δH lie closer than this (ppm) is on the diagonal
+DIAGONAL = 0.02
+
+
+def cosy_list(records, source: str = "cosy") -> HsqcList:
+    """COSY cross peaks (two coupled protons) as ``[δH, δH]`` pairs; symmetric duplicates are read once, diagonal
+    peaks set aside.
+
+    >>> cosy_list([[7.72, 7.15], [7.15, 7.72], [7.4, 7.4]]).pairs
+    [(7.72, 7.15)]
+    """
+    return hsqc_list(records, source, "COSY")
+
+
+def noesy_list(records, source: str = "noesy") -> HsqcList:
+    """NOESY or ROESY cross peaks (two protons close in space) as ``[δH, δH]`` pairs, read as :func:`cosy_list`."""
+    return hsqc_list(records, source, "NOESY")
+
+
+def read_cosy(path: str | Path) -> HsqcList:
+    """COSY cross peaks from a file: one 'δH δH' pair per line, or a JSON list."""
+    return read_hsqc(path, "COSY")
+
+
+def read_noesy(path: str | Path) -> HsqcList:
+    """NOESY or ROESY cross peaks from a file: one 'δH δH' pair per line, or a JSON list."""
+    return read_hsqc(path, "NOESY")
 
 
 def hmbc_list(records, source: str = "hmbc") -> HsqcList:
@@ -862,12 +917,13 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
                 continue   # a header line
             raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {line[:40]!r}") from None
         if len(nums) != 2 or len(fields) > (3 if experiment == "HSQC" else 2):
-            raise InputError(f"{p.name} line {n}: expected δC δH" + (" and optionally the edited phase (CH2, CH/CH3)"
-                                                                      if experiment == "HSQC" else "") + f", got {line[:40]!r}")
+            dims = "δH δH" if experiment in ("COSY", "NOESY") else "δC δH"
+            raise InputError(f"{p.name} line {n}: expected {dims}" + (" and optionally the edited phase (CH2, CH/CH3)"
+                                                                       if experiment == "HSQC" else "") + f", got {line[:40]!r}")
         pairs.append(nums + fields[2:])
     if not pairs:
         raise InputError(f"{p.name}: no cross peaks found")
-    if all(a < b and a <= 20.0 for a, b, *_ in pairs) and any(b > 20.0 for _, b, *_ in pairs):
+    if experiment in ("HSQC", "HMBC") and all(a < b and a <= 20.0 for a, b, *_ in pairs) and any(b > 20.0 for _, b, *_ in pairs):
         # every pair has the smaller value first and some second value is no proton shift: the columns are δH δC
         out = hsqc_list([[b, a, *rest] for a, b, *rest in pairs], p.name, experiment)
         out.notes.append(f"{p.name}: read as δH δC (in every line the second value is the larger, and some lie "
@@ -877,5 +933,6 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
 
 
 __all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "read_hmbc", "hmbc_list",
+           "read_cosy", "cosy_list", "read_noesy", "noesy_list",
            "peaks_from_records",
            "flag_solvent", "SOLVENTS"]

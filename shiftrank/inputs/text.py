@@ -177,9 +177,12 @@ class NmrText:
         return None
 
     def hsqc(self, source: str = "HSQC text", experiment: str = "HSQC") -> HsqcList | None:
-        """The cross peaks of the first HSQC/HMQC section (``experiment`` "HMBC": of the first HMBC section with
-        δ/δ pairs) as an :class:`~shiftrank.inputs.peaks.HsqcList` (None when the text prints none)."""
+        """The cross peaks of the first HSQC/HMQC section (``experiment`` "HMBC", "COSY" or "NOESY": of the first such
+        section with δ/δ pairs; a ROESY section counts as NOESY) as an :class:`~shiftrank.inputs.peaks.HsqcList`
+        (None when the text prints none)."""
         sec = self.section(experiment)
+        if (sec is None or not sec.peaks) and experiment == "NOESY":
+            sec = self.section("ROESY")
         if sec is None or not sec.peaks:
             return None
         records = [[p.shift, p.shift_h] + ([p.dept] if p.dept and experiment == "HSQC" else []) for p in sec.peaks]
@@ -736,9 +739,9 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             # house styles, ISO 80000-1; from memory): every digit,digit of the section is a decimal comma
             body = re.sub(r"(?<=\d),(?=\d)", ".", body)
             comma_note = "decimal commas read as decimal points throughout the section (no value has a decimal point)"
-        if nuc == "HMBC":
+        if nuc in _PAIRED_2D:
             body = _hmbc_arrows(body)
-        if nuc in ("HSQC", "HMBC"):
+        if nuc in ("HSQC",) + _PAIRED_2D:
             body = _hsqc_slashes(body)
         cond, peaks_text = _header_end(body)
         if nuc is None:
@@ -761,7 +764,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             if m:
                 cond, peaks_text = m.group(1), peaks_text[m.end():]
         _read_conditions(sec, cond)
-        if sec.nucleus == "HSQC" or (sec.nucleus == "HMBC" and _HSQC_PAIR.search(peaks_text)):
+        if sec.nucleus == "HSQC" or (sec.nucleus in _PAIRED_2D and _HSQC_PAIR.search(peaks_text)):
             _read_hsqc(sec, header + " " + cond, peaks_text)
             out.sections.append(sec)
             continue
@@ -807,7 +810,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
     if not any(s.peaks for s in out.sections):
         why = "; ".join(n for s in out.sections for n in s.notes[:2])
         raise InputError(f"{source}: no NMR peaks could be read from '{_clip(text)}'" + (f" ({why})" if why else ""))
-    for nuc in ("1H", "13C", "HSQC", "HMBC"):
+    for nuc in ("1H", "13C", "HSQC") + _PAIRED_2D:
         n = sum(1 for s in out.sections if s.nucleus == nuc and s.peaks)
         if n > 1:   # several compounds pasted together, or one spectrum in two solvents: say which one counts
             first = next(s for s in out.sections if s.nucleus == nuc and s.peaks)
@@ -908,12 +911,17 @@ def _read_prose(sec: TextSection, body: str) -> bool:
     return True
 
 
+#: 2D sections whose numeric correlations are read as δ/δ pairs beside HSQC (COSY, NOESY, ROESY: two protons)
+_PAIRED_2D = ("HMBC", "COSY", "NOESY", "ROESY")
+
+
 def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
-    """Cross peaks 'δC/δH' of an HSQC, HMQC or HMBC section.  The order is δC/δH unless the text says 'δH/δC' (or
+    """Cross peaks 'δC/δH' of an HSQC, HMQC or HMBC section (δH/δH of a COSY, NOESY or ROESY section, in either order).  The order is δC/δH unless the text says 'δH/δC' (or
     '1H/13C'); without either, the larger value of a pair is taken as δC (a carbon's shift in ppm exceeds its
     protons' except near 0 ppm, e.g. a silyl methyl, or, in an HMBC, a carbon below about 12 ppm seen from an
     aromatic proton), with a note."""
     what = sec.nucleus
+    protons = what in ("COSY", "NOESY", "ROESY")
     order = None
     m = re.search(r"δ\s?([HC])\s*[/,]\s*δ?\s?([HC])|\b(1H|13C)\s*/\s*(1H|13C)\b", conditions + " " + text[:40], re.I)
     # ('δH 4.07 → δC 139.9', rewritten as 'δH 4.07/139.9': the pair's first value is named)
@@ -937,13 +945,13 @@ def _read_hsqc(sec: TextSection, conditions: str, text: str) -> None:
         kind = None
         if pm.group("kind"):
             kind = HSQC_KINDS.get(pm.group("kind").replace(" ", "")) or HSQC_KINDS.get(pm.group("kind").strip().lower())
-        if not -20.0 <= c <= 250.0 or not all(-2.0 <= h <= 20.0 for h in hs):
-            sec.notes.append(f"{what} pair '{pm.group(0).strip()}' set aside: δC must lie within -20…250 ppm and δH "
-                             "within -2…20 ppm (a typo?)")
+        if not (-2.0 if protons else -20.0) <= c <= (20.0 if protons else 250.0) or not all(-2.0 <= h <= 20.0 for h in hs):
+            sec.notes.append(f"{what} pair '{pm.group(0).strip()}' set aside: " + ("both δH must lie within -2…20 ppm"
+                             if protons else "δC must lie within -20…250 ppm and δH within -2…20 ppm") + " (a typo?)")
             continue
         for h in hs:
             sec.peaks.append(PrintedPeak(c, shift_h=h, dept=kind, fragment=pm.group(0)))
-    if sec.peaks and order is None:
+    if sec.peaks and order is None and not protons:
         sec.notes.append(f"{what} pairs read as δC/δH by size (the larger value as δC); write 'δC/δH' or 'δH/δC' "
                          "in the header to fix the order" + (f"; {guessed} pair(s) near 0 ppm are uncertain" if guessed else ""))
     rest = _HSQC_PAIR.sub(" ", text)

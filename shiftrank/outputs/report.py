@@ -179,32 +179,38 @@ def _observed_text(pk) -> str:
     return s + (f" ({'; '.join(bits)})" if bits else "")
 
 
-def _hmbc_block(res, rank_no: int) -> str:
-    """An HMBC's cross peaks, each with the carbon and protons it most likely joins in this candidate."""
+def _correlation_block(res, rank_no: int) -> str:
+    """An HMBC's, COSY's or NOESY's cross peaks, each with the atoms it most likely joins in this candidate."""
     e = html.escape
+    n = res.nucleus
+    hmbc, noe = n == "HMBC", n == "NOESY"
     rows = []
     for row in sorted(res.assignment_table(), key=lambda x: (-x["observed"], -x["observed_h"])):
-        far = bool(row["notes"])
+        far = row.get("distance") if noe else row["bonds"]
+        far = "–" if far is None else (f"{far:.1f}" if noe else str(far))
+        note = f"<span class=err>{e(', '.join(row['notes']))}</span>" if row["notes"] else ""
         rows.append(f"<tr><td class=num>{row['observed']:.2f} / {row['observed_h']:.2f}</td>"
                     f"<td>{','.join(map(str, row['atoms']))}</td><td>{','.join(map(str, row['h_atoms']))}</td>"
-                    f"<td class=num>{row['bonds']}</td><td class=num>{row['cost']:.2f}</td>"
-                    f"<td>{'<span class=err>not two or three bonds apart</span>' if far else ''}</td></tr>")
+                    f"<td class=num>{far}</td><td class=num>{row['cost']:.2f}</td><td>{note}</td></tr>")
+    relation = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
+                "NOESY": "close in space (within about 4 Å)"}[n]
     n_far = len(res.hmbc_unexplained)
-    summary = (f"HMBC: {count(res.observed_signals, 'cross peak')}, {n_far} whose ends are not two or three bonds apart · "
-               f"cost {res.cost:.1f} nats")
-    table = ("<p class='note'>each cross peak with the carbon and the protons it most likely joins, as this candidate's "
-             "1D assignments (or its predicted shifts) read them</p><table><tr><th>δC / δH</th><th>C atoms</th>"
-             "<th>H on atoms</th><th>bonds</th><th>cost (nats)</th><th>note</th></tr>" + "".join(rows) + "</table>")
+    summary = f"{n}: {count(res.observed_signals, 'cross peak')}, {n_far} whose ends are not {relation} · cost {res.cost:.1f} nats"
+    heads = ("δC / δH", "C atoms", "H on atoms") if hmbc else ("δH / δH", "H on atoms", "H on atoms")
+    table = ("<p class='note'>each cross peak with the atoms it most likely joins, as this candidate's 1D assignments "
+             "(or its predicted shifts) read them" + (" (distances: an ensemble of RDKit conformers)" if noe else "")
+             + f"</p><table><tr><th>{heads[0]}</th><th>{heads[1]}</th><th>{heads[2]}</th>"
+             f"<th>{'Å' if noe else 'bonds'}</th><th>cost (nats)</th><th>note</th></tr>" + "".join(rows) + "</table>")
     return (f"<div class='nuc'>{e(summary)}</div><details{' open' if rank_no == 1 else ''}>"
-            f"<summary>HMBC cross peaks</summary>{table}</details>")
+            f"<summary>{n} cross peaks</summary>{table}</details>")
 
 
 def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no: int, with_plots: bool,
                    sep=()) -> str:
     e = html.escape
     res = c.nuclei[nucleus]
-    if nucleus == "HMBC":
-        return _hmbc_block(res, rank_no)
+    if nucleus in ("HMBC", "COSY", "NOESY"):
+        return _correlation_block(res, rank_no)
     rows = []
     for row in res.assignment_table():
         obs = "" if row["peak"] is None else e(_observed_text(res.peaks[row["peak"]]))
@@ -270,7 +276,7 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     for n in result.nuclei:
         ps = result.peaks[n]
         n_obs = sum(1 for p in ps if not p.solvent)
-        unit = " cross peak" if n in ("HSQC", "HMBC") else " signal"
+        unit = " cross peak" if n in ("HSQC", "HMBC", "COSY", "NOESY") else " signal"
         bits.append(f"{count(n_obs, n + unit)}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")

@@ -12,7 +12,10 @@ def _fmt(x, spec: str, width: int) -> str:
 
 
 #: the input fields that can carry each spectrum (a printed paragraph may carry any of them)
-SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc", "text")}
+SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc", "text"),
+           "COSY": ("cosy", "text"), "NOESY": ("noesy", "text")}
+#: the 2D experiments whose cross peaks are read as correlations between atoms
+CORRELATED = ("HMBC", "COSY", "NOESY")
 
 
 def peak_sources(given: dict) -> dict:
@@ -37,7 +40,7 @@ def print_ranking(result, inputs: dict, out=None) -> None:
         peaks = result.peaks[n]
         n_obs = sum(1 for p in peaks if not p.solvent)
         n_solv = len(peaks) - n_obs
-        unit = "cross peak" if n in ("HSQC", "HMBC") else "signal"
+        unit = "cross peak" if n in ("HSQC",) + CORRELATED else "signal"
         print(f"{n} peaks: {sources.get(n) or 'input'}: {count(n_obs, unit)}" + (f" (+{n_solv} set aside as solvent)" if n_solv else ""), file=out)
     for note in result.notes:
         print(f"  note: {note}", file=out)
@@ -58,8 +61,8 @@ def print_ranking(result, inputs: dict, out=None) -> None:
             r = c.nuclei[n]
             if alone:
                 cols += f" {'–':>7}" if result.lone else f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
-            # (HMBC: the cross peaks whose ends are two or three bonds apart in the candidate, of those observed)
-            expected = r.observed_signals - len(r.hmbc_unexplained) if n == "HMBC" else len(r.classes)
+            # (HMBC, COSY, NOESY: the cross peaks whose ends the candidate relates so, of those observed)
+            expected = r.observed_signals - len(r.hmbc_unexplained) if n in CORRELATED else len(r.classes)
             cols += f" {_fmt(r.mae, '9.2f', 9)} {expected:>3}/{r.observed_signals:<2}"
         prob = f"{'–':>6}" if result.lone else f"{c.probability:6.3f}"
         print(f" {i:>2}  {prob} {cols} {c.beyond_3sigma:>4}  {label}", file=out)
@@ -96,8 +99,8 @@ def print_separation(result, out=None) -> None:
 def print_assignment(cand, nucleus: str, out=None) -> None:
     """The assignment table of one candidate for one nucleus."""
     out = out or sys.stdout
-    if nucleus == "HMBC":
-        return print_hmbc(cand, out)
+    if nucleus in CORRELATED:
+        return print_correlations(cand, nucleus, out)
     r = cand.nuclei[nucleus]
     what = {"13C": "carbon", "1H": "proton class", "HSQC": "protonated carbon"}[nucleus]
     print(f"\n{nucleus} assignment for {cand.name or cand.smiles}, {what} by {what}:", file=out)
@@ -141,17 +144,21 @@ def print_assignment(cand, nucleus: str, out=None) -> None:
         print(f"  {'-':<12} {(p.multiplicity or '')[:9]:<9} {'':>9} {'':>5} {shown:>13} {'':>6}  {why}", file=out)
 
 
-def print_hmbc(cand, out=None) -> None:
-    """The HMBC cross peaks of one candidate: for each, the carbon and the protons it most likely joins (as the
-    candidate's 1D assignments and shifts read them), how many bonds apart they are, and its cost."""
+def print_correlations(cand, nucleus: str = "HMBC", out=None) -> None:
+    """The cross peaks of an HMBC, COSY or NOESY for one candidate: for each, the atoms it most likely joins (as the
+    candidate's 1D assignments and shifts read them), how far apart they are (bonds, or Å in space) and its cost."""
     out = out or sys.stdout
-    r = cand.nuclei["HMBC"]
-    print(f"\nHMBC cross peaks for {cand.name or cand.smiles}, each with the carbon and protons it most likely joins:",
-          file=out)
-    print(f"  {'δC':>7} {'δH':>6}  {'C atoms':<10} {'H on atoms':<10} {'bonds':>5} {'cost':>6}  note", file=out)
+    r = cand.nuclei[nucleus]
+    hmbc = nucleus == "HMBC"
+    print(f"\n{nucleus} cross peaks for {cand.name or cand.smiles}, each with the atoms it most likely joins:", file=out)
+    first, second = ("δC", "δH") if hmbc else ("δH", "δH")
+    ends = ("C atoms", "H on atoms") if hmbc else ("H on atoms", "H on atoms")
+    apart = "Å" if nucleus == "NOESY" else "bonds"
+    print(f"  {first:>7} {second:>6}  {ends[0]:<10} {ends[1]:<10} {apart:>5} {'cost':>6}  note", file=out)
     for row in sorted(r.assignment_table(), key=lambda x: (-x["observed"], -x["observed_h"])):
-        c = ",".join(str(a) for a in row["atoms"])
-        h = ",".join(str(a) for a in row["h_atoms"])
-        note = "not two or three bonds apart" if row["notes"] else ""
-        print(f"  {row['observed']:7.2f} {row['observed_h']:6.2f}  {c[:10]:<10} {h[:10]:<10} {row['bonds']:>5} "
-              f"{row['cost']:6.2f}  {note}", file=out)
+        a = ",".join(str(x) for x in row["atoms"])
+        b = ",".join(str(x) for x in row["h_atoms"])
+        far = row.get("distance") if nucleus == "NOESY" else row["bonds"]
+        far = "-" if far is None else (f"{far:.1f}" if nucleus == "NOESY" else str(far))
+        print(f"  {row['observed']:7.2f} {row['observed_h']:6.2f}  {a[:10]:<10} {b[:10]:<10} {far:>5} "
+              f"{row['cost']:6.2f}  {', '.join(row['notes'])}", file=out)

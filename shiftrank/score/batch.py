@@ -24,7 +24,7 @@ from .ranking import rank_many
 
 CHUNK = 64
 MAX_LINE = 5_000_000   # characters in one JSON line (one case)
-FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "hmbc", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers",
+FIELDS = ("id", "peaks", "peaks_1h", "hsqc", "hmbc", "cosy", "noesy", "text", "candidates", "formula", "mass", "mz", "solvent", "priors", "with_isomers",
           "rotamers", "mixture", "reaction", "reactants")
 
 

@@ -34,12 +34,14 @@ from ..errors import InputError
 from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
 from ..inputs.solvents import SOLVENTS, exchanges_deuterium
 from ..words import count
-from .matching import (Assignment, MatchCosts, ObservedPeak, Pairing, PeakSet, SignalClass, assign, proton_deviations,
-                       t_cost)
+from .matching import Assignment, MatchCosts, ObservedPeak, PeakSet, SignalClass, assign, proton_deviations
+
+#: the 2D experiments read as correlations between atoms (:mod:`.correlations`), not as classes with shifts
+CORRELATIONS = ("HMBC", "COSY", "NOESY")
 
 #: ppm over which the slope of a scaling line is judged (a slope 1 % off moves a 13C line 0.5 ppm at 50 ppm from
 #: the centre) and the fewest assigned pairs a line is fitted to
-SCALE_SPAN = {"13C": 50.0, "1H": 3.0, "HSQC": 50.0, "HMBC": 50.0}
+SCALE_SPAN = {"13C": 50.0, "1H": 3.0, "HSQC": 50.0}
 MIN_SCALE_PAIRS = 4
 
 #: 1H: the share of sample multiplets that must carry an integral for the assignment to run over protons.
@@ -107,7 +109,8 @@ class NucleusResult:
     flags: list[str] = field(default_factory=list)
     by_protons: bool = False          # 1H: assignment over protons (integrals given)
     scaling: tuple | None = None      # (offset, slope, centre) when the predictions were scaled to the spectrum
-    hmbc_unexplained: list = field(default_factory=list)   # HMBC: cross peaks whose ends are likely not 2-3 bonds apart
+    hmbc_unexplained: list = field(default_factory=list)   # 2D correlations: cross peaks the candidate likely cannot make
+    mismatch: np.ndarray | None = field(default=None, repr=False)   # 1D: classes × peaks misfit costs (DEPT, letters, J)
     _n_obs: int | None = field(default=None, repr=False)
 
     @property
@@ -151,10 +154,12 @@ class NucleusResult:
                    "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
                    "deviation": _r(p.deviation, 2), "z": _r(p.z, 2), "shared_peak": p.shared,
                    "multiplicity_ok": p.multiplicity_ok, "notes": notes}
-            if self.nucleus == "HMBC":
+            if self.nucleus in CORRELATIONS:
                 pk = self.peaks[p.peak]
                 row.update(predicted_h=_r(c.shift_h, 2), observed_h=_r(pk.h_lo, 3), h_atoms=list(c.h_atoms), bonds=c.bonds,
-                           cost=_r(p.cost, 3), notes=[] if p.multiplicity_ok else [f"{c.bonds} bonds apart"])
+                           cost=_r(p.cost, 3), notes=[] if p.multiplicity_ok else [c.multiplicity])
+                if c.distance is not None:
+                    row["distance"] = _r(c.distance, 2)
                 rows.append(row)
                 continue
             if self.nucleus == "HSQC":
@@ -247,6 +252,7 @@ class _Evidence:
         res = NucleusResult(self.nucleus, pr.classes, pr.peaks, a,
                             by_protons=any(p.capacity is not None for p in pr.peaks), scaling=pr.scaling)
         res.flags = list(pr.notes) + self.flags(res)
+        res.mismatch = self.mismatch(pr, costs)   # (a 2D spectrum read beside this one weighs the same misfits)
         return res
 
 
@@ -630,162 +636,9 @@ class HsqcEvidence(_Evidence):
         return _count_flags(res, "HSQC cross peaks (protonated carbons)") + _quality_flags(res, ("protonated carbon", "protonated carbons"))
 
 
-#: HMBC: bonds between a proton and a carbon that give a cross peak (2J and 3J; common practice: four-bond cross
-#: peaks are weaker and rarer, as in a W arrangement or across an aromatic ring)
-HMBC_BONDS = (2, 3)
-#: HMBC: the chance that a cross peak shows no two- or three-bond pair (a four-bond correlation, an artefact);
-#: common practice puts 4J cross peaks at a few in ten in aromatic compounds; chosen with ``HMBC_HARD_SHARE`` and the
-#: HMBC temperature from a small grid (0.1/0.2; 0/0.25/0.5; 1/2) on the 39 validation-split compounds of
-#: ``benchmarks/bench_hmbc.py``, whose cross peaks are built from measured shifts
-HMBC_OTHER = 0.2
-#: HMBC: how far (ppm) a cross peak's δC or δH may lie from a 1D line to be read as that line (the indirect
-#: dimension is digitised coarsely); chosen
-HMBC_ON_LINE = {"13C": 0.6, "1H": 0.04}
-#: HMBC: the weight of the 1D assignment itself beside what the shifts alone allow in the posterior of which
-#: class sits on a line (two classes predicted close together may have been assigned either way)
-HMBC_HARD_SHARE = 0.25
-#: HMBC: nats of a class taking a δ that no 1D line gives, against 'none of the candidate's atoms' (the 13C and
-#: 1H ``extra`` costs' size); chosen
-HMBC_NONE = 6.0
-
-
-def hmbc_bonds(mol: Chem.Mol, carbons: list, protons: list) -> np.ndarray:
-    """(carbon classes × proton classes) bonds from the protons to the carbon: two or three when any member pair is
-    that far (a morpholine's N-CH2 protons reach the other, equivalent N-CH2 carbon over three bonds), else the
-    nearest member pair's count (one for a carbon's own protons)."""
-    dist = Chem.GetDistanceMatrix(mol)
-    out = np.zeros((len(carbons), len(protons)), dtype=int)
-    for i, ca in enumerate(carbons):
-        for k, hx in enumerate(protons):
-            counts = {int(dist[a, x]) + 1 for a in ca for x in hx}
-            near = [b for b in HMBC_BONDS if b in counts]
-            out[i, k] = near[-1] if near else min(counts)
-    return out
-
-
-@dataclass
-class _Side:
-    """One dimension of the HMBC (13C or 1H) as the candidate reads it: its classes (atoms, predicted shift and
-    σ, after the 1D spectrum's scaling when it was given) and, when that 1D spectrum was given, its observed
-    lines and which classes its assignment put on each."""
-
-    atoms: list                 # per class: heavy atoms (carbons; or the atoms carrying the protons)
-    mu: np.ndarray
-    sigma: np.ndarray
-    costs: MatchCosts
-    lines: list | None = None   # ObservedPeak of the 1D spectrum
-    on_line: dict | None = None  # line index -> classes its assignment put there
-    nucleus: str = "13C"
-
-    def posterior(self, delta: float) -> tuple[np.ndarray, int | None]:
-        """Probability of each class (and, last, of none of them) being the atom behind a cross peak's δ in this
-        dimension, and the 1D line it was read as (None: off every line).  On a line: the 1D assignment's
-        classes there (half) and what the shifts allow (half); off the lines or without a 1D spectrum: the
-        shifts alone, against 'none' at ``HMBC_NONE`` nats."""
-        line = None
-        if self.lines:
-            best = None
-            for j, p in enumerate(self.lines):
-                if p.solvent:
-                    continue
-                lo, hi = (p.lo, p.hi) if p.lo is not None else (p.shift, p.shift)
-                d = 0.0 if lo <= delta <= hi else min(abs(delta - lo), abs(delta - hi))
-                if d <= HMBC_ON_LINE[self.nucleus] and (best is None or d < best[0]):
-                    best = (d, j)
-            line = None if best is None else best[1]
-        if line is not None:
-            p = self.lines[line]
-            lo, hi = (p.lo, p.hi) if p.lo is not None else (p.shift, p.shift)
-            dev = np.where(self.mu < lo, lo - self.mu, np.where(self.mu > hi, hi - self.mu, 0.0))
-        else:
-            dev = delta - self.mu
-        c = t_cost(dev, self.sigma, self.costs)
-        c = np.append(c, HMBC_NONE if line is None else np.inf)
-        soft = np.exp(-(c - c.min()))
-        soft /= soft.sum()
-        held = (self.on_line or {}).get(line, []) if line is not None else []
-        if not held:
-            return soft, line
-        hard = np.zeros_like(soft)
-        hard[held] = 1.0 / len(held)
-        return HMBC_HARD_SHARE * hard + (1 - HMBC_HARD_SHARE) * soft, line
-
-
-def _side(nucleus: str, result: "NucleusResult | None", atoms: list, means: ClassMeans, costs: MatchCosts) -> _Side:
-    """A dimension from the 1D result when given (its classes with their scaled predictions, its lines, its
-    assignment), else from the predictions of ``atoms`` (the classes)."""
-    if result is not None:
-        on: dict = {}
-        for p in result.assignment.pairings:
-            if p.peak is not None:
-                on.setdefault(p.peak, []).append(p.cls)
-        cl = result.classes
-        return _Side([list(c.atoms) for c in cl], np.array([c.shift for c in cl], float),
-                     np.array([c.sigma for c in cl], float), costs, list(result.peaks), on, nucleus)
-    m, s = means.of(atoms)
-    return _Side([list(a) for a in atoms], np.asarray(m, float), np.asarray(s, float), costs, nucleus=nucleus)
-
-
-class HmbcEvidence(_Evidence):
-    """HMBC: each cross peak (δC, δH) says that a carbon and a proton are two or three bonds apart.  Which
-    carbon and which proton class it joins is read from the candidate's own 1D assignments where the 13C and
-    1H spectra were given (a cross peak on a 13C line joins the classes assigned there, or, in part, those the
-    shifts would also allow), else from the predicted shifts.  A cross peak costs −log(ε + (1 − ε)·P), P the
-    probability that the two ends are two or three bonds apart in the candidate and ε = ``HMBC_OTHER``: the
-    cross peaks test the candidate's connectivity, not its shifts a second time."""
-
-    nucleus = "HMBC"
-
-    def observed(self, pl: HsqcList) -> list[ObservedPeak]:
-        # each cross peak stands alone: one carbon correlates with many protons and one proton with many carbons
-        return PeakSet(ObservedPeak(c, None, h_lo=h, h_hi=h) for c, h in sorted(set(pl.pairs)))
-
-    def evaluate(self, mol: Chem.Mol, ranks, mu, sg, peaks, costs: MatchCosts, prepared=None, facts=None,
-                 given: dict | None = None) -> NucleusResult:
-        """``given``: the candidate's 13C and 1H results of this case (before their atoms are renumbered)."""
-        given = given or {}
-        means_c, means_h = mu
-        c_atoms = [c.atoms for c in _carbon_classes(mol, ranks, facts)]
-        h_atoms = facts.hydrogen_classes if facts is not None and facts.hydrogen_classes else \
-            [e.atoms for e in expected_multiplets(mol, ranks)]
-        h_atoms = [list(h) for h in h_atoms if all(a in means_h.pos for a in h)]
-        side_c = _side("13C", given.get("13C"), c_atoms, means_c, replace(costs, h_t_df=None))
-        side_h = _side("1H", given.get("1H"), h_atoms, means_h,
-                       replace(costs, t_df=costs.h_t_df or costs.t_df, t_scale=costs.h_t_scale, t_widen=1.0))
-        bonds = hmbc_bonds(mol, side_c.atoms, side_h.atoms)
-        linked = np.isin(bonds, HMBC_BONDS).astype(float)
-        classes, pairings, unmatched, total = [], [], [], 0.0
-        costs_of = []
-        for k, pk in enumerate(peaks):
-            wc, _ = side_c.posterior(pk.shift)
-            wh, _ = side_h.posterior(pk.h_lo)
-            p = float(wc[:-1] @ linked @ wh[:-1])
-            cost = float(-np.log(HMBC_OTHER + (1 - HMBC_OTHER) * p))
-            costs_of.append(cost)
-            total += cost
-            # the pair shown: the likeliest joined pair, else the likeliest ends whatever their distance
-            joint = np.outer(wc[:-1], wh[:-1])
-            i, j = np.unravel_index(np.argmax(joint * linked if p > 0.05 else joint), joint.shape)
-            cls = SignalClass(list(side_c.atoms[i]), "", float(side_c.mu[i]), float(side_c.sigma[i]),
-                              shift_h=float(side_h.mu[j]), sigma_h=float(side_h.sigma[j]), h_atoms=list(side_h.atoms[j]),
-                              bonds=int(bonds[i, j]))
-            classes.append(cls)
-            pairings.append(Pairing(k, k, None, None, cost, multiplicity_ok=bool(linked[i, j])))
-            if p < 0.5:
-                unmatched.append(k)
-        a = Assignment(pairings, [], total, {"connectivity": total}, extra_costs=tuple(costs_of))
-        res = NucleusResult(self.nucleus, classes, list(peaks), a)
-        res.hmbc_unexplained = unmatched
-        res.flags = self.flags(res)
-        return res
-
-    def flags(self, res: NucleusResult) -> list[str]:
-        n = len(getattr(res, "hmbc_unexplained", []))
-        return [f"{count(n, 'HMBC cross peak', 'HMBC cross peaks')} whose carbon and proton are not two or three bonds "
-                "apart in this candidate (as its 1D assignments and shifts read them)"] if n else []
-
-
-EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence(), "HSQC": HsqcEvidence(), "HMBC": HmbcEvidence()}
+#: the strategy of each kind of spectrum (:mod:`.correlations` adds HMBC, COSY and NOESY when imported, as the
+#: ranking does)
+EVIDENCE = {"13C": CarbonEvidence(), "1H": ProtonEvidence(), "HSQC": HsqcEvidence()}
 #: the shift models each kind of spectrum needs
-MODELS_FOR = {"13C": ("13C",), "1H": ("1H",), "HSQC": ("13C", "1H"), "HMBC": ("13C", "1H")}
+MODELS_FOR = {"13C": ("13C",), "1H": ("1H",), "HSQC": ("13C", "1H")}
 

@@ -110,7 +110,8 @@ class SignalClass:
     sigma_h: float | None = None
     twin_of: int | None = None  # 1H: classes with the same value are alike groups told apart (one multiplet is fine)
     h_atoms: list | None = None   # HMBC: the heavy atoms carrying the protons of this C–H pair (``atoms``: the carbons)
-    bonds: int | None = None      # HMBC: bonds from those protons to the nearest of the carbons
+    bonds: int | None = None      # HMBC: bonds from those protons to the carbons (COSY: between the two protons)
+    distance: float | None = None  # NOESY: the two protons' effective distance in space (Å)
 
     @property
     def may_go_unseen(self) -> bool:

@@ -35,7 +35,7 @@ from ..chem.formula import ADDUCTS, formula_matches, hill, ion_label, sample_for
 from ..chem.inventory import COUNTED_NUCLEI
 from ..chem.structure import StructureFacts
 from ..errors import InputError
-from ..inputs.peaks import (HsqcList, Peak, PeakList, doubled_note, flag_solvent, hmbc_list, mark_doubled,
+from ..inputs.peaks import (HsqcList, Peak, PeakList, cosy_list, doubled_note, flag_solvent, hmbc_list, mark_doubled, noesy_list,
                             merge_duplicates, dept135_from_signs, looks_like_1h, not_13c_message, peak_text, peaks_from_records)
 from ..inputs.solvents import SOLVENTS, normalise_solvent
 from ..inputs.mass import MassStatement, ion_fits, nearest_ion, read_analysis_formula, read_mass_statements
@@ -43,7 +43,8 @@ from ..inputs.text import NmrText, read_nmr_text
 from ..prediction.api import checked_parts, environments_isolated
 from ..prediction.environment import MolParts
 from ..prediction.model_files import default_manifest, default_model
-from .evidence import EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
+from . import correlations  # noqa: F401 - registers the HMBC, COSY and NOESY strategies in EVIDENCE
+from .evidence import CORRELATIONS, EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, hsqc_list
 from ..words import count
 from .matching import MatchCosts, ObservedPeak, assign
 from .structures import (candidate_facts, candidate_pi, element_environments, parse_candidate, standardised_candidate,
@@ -54,8 +55,9 @@ from .verdicts import (ISOMER_MIXTURE, _canonical_of, _compound_of, _tautomer_no
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
 NUCLEI = ("13C", "1H")
-#: the kinds of observed spectra: the two nuclei, HSQC and HMBC (which need both models)
-SPECTRA = ("13C", "1H", "HSQC", "HMBC")
+#: the kinds of observed spectra: the two nuclei, HSQC and HMBC (which need both models), COSY and NOESY
+#: (also ROESY); the 2D correlations come after the 1D spectra, whose assignments they read
+SPECTRA = ("13C", "1H", "HSQC", "HMBC", "COSY", "NOESY")
 CAUTION = ("A ranking is evidence, not a certificate of identity. Confirm the structure by orthogonal methods "
            "(2D NMR, MS, an authentic reference) and follow local regulations and validated procedures.")
 
@@ -424,8 +426,8 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
             means[n] = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
     for n in sorted(peaks, key=SPECTRA.index):   # (HMBC after the 1D spectra whose assignments it reads)
         obs = peaks[n]
-        mu = (means["13C"], means["1H"]) if len(MODELS_FOR[n]) == 2 else means[n]
-        kw = {"given": dict(res.nuclei)} if n == "HMBC" else {}
+        mu = (means["13C"], means["1H"]) if len(MODELS_FOR[n]) == 2 else means[MODELS_FOR[n][0]]
+        kw = {"given": dict(res.nuclei)} if n in CORRELATIONS else {}
         r = EVIDENCE[n].evaluate(prep.mol, ranks, mu, None, obs, settings.costs_for(n, len(peaks) > 1), facts=res.facts, **kw)
         res.nuclei[n] = r
         res.flags.extend(r.flags)
@@ -571,23 +573,25 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
         if hs is not None:
             out["HSQC"] = hs
             notes.extend(f"text: {n}" for n in hs.notes)
-    if isinstance(case.get("hmbc"), HsqcList):   # read from a file already, with its notes
-        out["HMBC"] = case["hmbc"]
-        notes.extend(case["hmbc"].notes)
-    elif case.get("hmbc") is not None:
-        out["HMBC"] = hmbc_list(case["hmbc"], "hmbc")
-    elif parsed is not None:
-        hm = parsed.hmbc()   # an HMBC section printed with the paragraph, as δC/δH pairs
-        if hm is not None:
-            out["HMBC"] = hm
-            notes.extend(f"text: {n}" for n in hm.notes)
+    for kind, key, reader in (("HMBC", "hmbc", hmbc_list), ("COSY", "cosy", cosy_list), ("NOESY", "noesy", noesy_list)):
+        if isinstance(case.get(key), HsqcList):   # read from a file already, with its notes
+            out[kind] = case[key]
+            notes.extend(case[key].notes)
+        elif case.get(key) is not None:
+            out[kind] = reader(case[key], key)
+            notes.extend(out[kind].notes)
+        elif parsed is not None:
+            found = parsed.hsqc(f"{kind} text", kind)   # a section printed with the paragraph, as δ/δ pairs
+            if found is not None:
+                out[kind] = found
+                notes.extend(f"text: {n}" for n in found.notes)
     if not out:
         other = sorted({sec.nucleus for sec in parsed.sections if sec.peaks}) if parsed is not None else []
         if other:
             raise InputError(f"text: only {', '.join(other)} peaks were read; shiftrank ranks on 13C, 1H and HSQC "
                              "(give one of those sections or lists)")
-        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc' or 'hmbc' (cross peaks) or 'text' "
-                         "(printed characterisation)")
+        raise InputError("no peaks: give 'peaks' (13C), 'peaks_1h' (1H), 'hsqc', 'hmbc', 'cosy' or 'noesy' (cross peaks) "
+                         "or 'text' (printed characterisation)")
     two, mix = case.get("rotamers"), case.get("mixture")
     if two is not None and not isinstance(two, bool):
         raise InputError("rotamers: expected true or false (the spectra show two forms of the compound)")
@@ -608,7 +612,7 @@ def case_peaklists(case: dict) -> tuple[dict, str | None, list[str]]:
                 word = COUNTED_NUCLEI[sec.nucleus][2]
                 notes.append(f"text: {sec.nucleus} section ({count(len(sec.peaks), 'signal')}) used by its count only, "
                              f"against {word} environments ({sec.nucleus} shifts are not predicted)")
-            elif sec.nucleus not in NUCLEI and sec.nucleus not in ("HSQC", "HMBC") and sec.peaks:
+            elif sec.nucleus not in NUCLEI and sec.nucleus not in ("HSQC",) + CORRELATIONS + ("ROESY",) and sec.peaks:
                 notes.append(f"text: {sec.nucleus} peaks read but not used")
     if solvent is None and parsed is not None and parsed.solvent:
         solvent = parsed.solvent
@@ -727,7 +731,7 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
          demote_history_mismatch: bool = True, mass_tolerance: float = MASS_TOLERANCE,
          peaks_1h=None, text: str | None = None, with_isomers: bool | str = False, hsqc=None, mz=None,
          rotamers: bool = False, mixture: bool = False, reaction: str | None = None,
-         reactants: str | None = None, hmbc=None) -> RankResult:
+         reactants: str | None = None, hmbc=None, cosy=None, noesy=None) -> RankResult:
     """Rank candidate structures (SMILES, ``(name, SMILES)`` pairs or RDKit molecules, or a ``{name: SMILES}``
     dict) against peaks.
 
@@ -736,7 +740,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     and ``"range": [low, high]``), or a peak list as text (``"166.6, 150.1, 137.6"``, one peak per line, or a
     printed paragraph, whose section of that nucleus is read); ``text`` is a printed characterisation paragraph; ``hsqc`` a list of
     ``[δC, δH]`` cross peaks (or an :class:`~shiftrank.inputs.peaks.HsqcList` from ``read_hsqc``), ``hmbc`` the same for
-    the two- and three-bond cross peaks of an HMBC (``read_hmbc``).  Any one is enough.
+    the two- and three-bond cross peaks of an HMBC (``read_hmbc``), ``cosy`` and ``noesy`` ``[δH, δH]`` cross peaks of a
+    COSY and of a NOESY or ROESY (:mod:`shiftrank.score.correlations`).  Any one is enough.
     ``formula``, ``mass`` (neutral, Da) and ``mz`` (a measured m/z, or ``{"found": …, "adduct": "M+H"}``)
     are sample history, as is a mass statement printed in ``text`` (``HRMS (ESI) m/z [M+H]+ calcd for …,
     found …``): a candidate they contradict is flagged and ranked last.
@@ -761,7 +766,8 @@ def rank(peaks=None, candidates: Sequence = (), formula: str | None = None, mass
     """
     result = rank_many([dict(id=id, peaks=peaks, peaks_1h=peaks_1h, text=text, candidates=candidates, formula=formula,
                              mass=mass, solvent=solvent, priors=priors, with_isomers=with_isomers, hsqc=hsqc, mz=mz,
-                             rotamers=rotamers, mixture=mixture, reaction=reaction, reactants=reactants, hmbc=hmbc)],
+                             rotamers=rotamers, mixture=mixture, reaction=reaction, reactants=reactants, hmbc=hmbc,
+                             cosy=cosy, noesy=noesy)],
                        demote_history_mismatch, mass_tolerance)[0]
     if isinstance(result, Exception):
         raise result

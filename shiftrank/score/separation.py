@@ -24,7 +24,7 @@ import numpy as np
 #: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
 MIN_SHARE = 0.3
 #: spectra whose lines are split (an HSQC or HMBC line is a cross peak, named δC/δH)
-NUCLEI = ("13C", "1H", "HSQC", "HMBC")
+NUCLEI = ("13C", "1H", "HSQC", "HMBC", "COSY", "NOESY")
 
 
 @dataclass
@@ -81,8 +81,8 @@ def _row(res, pairing) -> dict:
     """One class placed on (or missing from) a line, as data."""
     c = res.classes[pairing.cls]
     r = lambda x: None if x is None else round(float(x), 3)  # noqa: E731
-    if res.nucleus == "HMBC":
-        return {"atoms": list(c.atoms), "h_atoms": list(c.h_atoms), "bonds": c.bonds}
+    if res.nucleus in ("HMBC", "COSY", "NOESY"):
+        return {"atoms": list(c.atoms), "h_atoms": list(c.h_atoms), "bonds": c.bonds, "distance": r(c.distance)}
     return {"atoms": list(c.atoms), "multiplicity": c.multiplicity, "predicted": r(c.shift), "sigma": r(c.sigma),
             "deviation": r(pairing.deviation), "z": r(pairing.z)}
 
@@ -90,10 +90,15 @@ def _row(res, pairing) -> dict:
 def _describe(res, pairing) -> str:
     c = res.classes[pairing.cls]
     atoms = ",".join(str(a) for a in c.atoms)
-    if res.nucleus == "HMBC":   # which carbon and which protons the cross peak joins, and how far apart they are
+    if res.nucleus in ("HMBC", "COSY", "NOESY"):   # which atoms the cross peak joins, and how far apart they are
         h = ",".join(str(a) for a in c.h_atoms)
-        far = "" if pairing.multiplicity_ok else ", not 2-3"
-        return f"C atom{'s' if len(c.atoms) > 1 else ''} {atoms} – H on {h}: {c.bonds} bonds{far}"
+        if res.nucleus == "HMBC":
+            return f"C atom{'s' if len(c.atoms) > 1 else ''} {atoms} – H on {h}: {c.bonds} bonds" + (
+                "" if pairing.multiplicity_ok else ", not 2-3")
+        if res.nucleus == "COSY":
+            return f"H on {atoms} – H on {h}: {c.bonds} bonds" + ("" if pairing.multiplicity_ok else ", not coupled")
+        far = "no 3D conformer" if c.distance is None else f"{c.distance:.1f} Å"
+        return f"H on {atoms} – H on {h}: {far}" + ("" if pairing.multiplicity_ok else ", too far for an NOE")
     what = f"atom{'s' if len(c.atoms) > 1 else ''} {atoms} {c.multiplicity}"
     nd = 2 if res.nucleus == "1H" else 1
     if pairing.peak is None:
@@ -139,7 +144,7 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
             out.append(Separator(n, pk.shift, rng, share,
                                  [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
                                  [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"],
-                                 h=pk.h_lo if n in ("HSQC", "HMBC") else None,
+                                 h=pk.h_lo if n in ("HSQC", "HMBC", "COSY", "NOESY") else None,
                                  first_classes=[_row(a, p) for p in on_a[j]], second_classes=[_row(b, p) for p in on_b[j]]))
         gone_a = [p for p in a.assignment.pairings if p.peak is None]
         gone_b = [p for p in b.assignment.pairings if p.peak is None]
@@ -232,15 +237,17 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
     if second is None or first.probability >= NEXT_BELOW:
         return []
     out = _counted_hints(first.smiles, second.smiles, result.counted) + _dept_hint(result, first, second)
-    hmbc = [] if "HMBC" in result.peaks else _hmbc_hint(first.smiles, second.smiles, solvent)
+    hmbc = ([] if "HMBC" in result.peaks else _hmbc_hint(first.smiles, second.smiles, solvent)) + \
+        ([] if "NOESY" in result.peaks else _noe_hint(first.smiles, second.smiles, solvent))
     if all(n in result.peaks for n in ("13C", "1H")):
         if hmbc:
             return out + hmbc
+        given_2d = [n for n in ("HMBC", "NOESY") if n in result.peaks]
         return out + ["the 13C and 1H spectra given leave #1 and #2 close: 2D correlations across the bonds where they "
                       "differ (HMBC from the nearest CH or CH3 protons, NOE for neighbours in space) would decide (common "
-                      "practice)" if "HMBC" not in result.peaks else
-                      "the spectra given leave #1 and #2 close: NOE (neighbours in space) or an authentic sample would "
-                      "decide (common practice)"]
+                      "practice)" if not given_2d else
+                      f"the spectra given ({', '.join(given_2d)} among them) leave #1 and #2 close: an authentic sample "
+                      "or an orthogonal method would decide (common practice)"]
     for n in ("13C", "1H"):
         if n in result.peaks or (n == "13C" and "HSQC" in result.peaks):
             continue
@@ -272,7 +279,7 @@ def _linked_pairs(smiles: str, solvent: str | None) -> list[tuple[str, float, fl
     from ..chem.structure import symmetry_ranks
     from ..inputs.molecules import to_mol
     from ..prediction.api import predict
-    from .evidence import HMBC_BONDS, hmbc_bonds
+    from .correlations import HMBC_BONDS, hmbc_bonds
 
     mol = to_mol(smiles)
     pc, ph = predict(smiles, solvent, "13C"), predict(smiles, solvent, "1H")
@@ -329,4 +336,71 @@ def _hmbc_hint(first: str, second: str, solvent: str | None) -> list[str]:
     return [f"an HMBC would likely tell #1 and #2 apart: {which} predicts a cross peak near δC {c:.1f} / δH {h:.2f} "
             f"({lab}) that no two- or three-bond pair of {other} gives within {min(z, 5.0):.1f}σ{'+' if z > 5 else ''} "
             "(predictions)"]
+
+
+def _predicted_protons(smiles: str, solvent: str | None):
+    """(molecule, proton classes (heavy atoms), their predicted mean shifts, σ and expected first-order pattern
+    ('s', 'd', 't' …, the optional small couplings left out)) of ``smiles``."""
+    from ..chem.couplings import expected_multiplets
+    from ..chem.structure import symmetry_ranks
+    from ..inputs.molecules import to_mol
+    from ..prediction.api import predict
+
+    mol = to_mol(smiles)
+    pred = predict(smiles, solvent, "1H")
+    shift = {a.atom: (a.shift, a.sigma) for a in pred.atoms}
+    ems = [e for e in expected_multiplets(mol, symmetry_ranks(mol)) if all(x in shift for x in e.atoms)]
+    groups = [list(e.atoms) for e in ems]
+    mu = [float(np.mean([shift[x][0] for x in g])) for g in groups]
+    sg = [float(np.mean([shift[x][1] for x in g])) for g in groups]
+    letters = [e.letters().split("(")[0] or "s" for e in ems]
+    return mol, groups, mu, sg, letters
+
+
+def _noe_hint(first: str, second: str, solvent: str | None) -> list[str]:
+    """The NOE a NOESY or ROESY would most likely show for one of #1 and #2 and not for the other: of each one's
+    proton pairs close in space (RDKit conformers, :func:`.correlations.proton_distances`) whose predicted shifts
+    lie apart (a cross peak off the diagonal), the one whose nearest close pair in the other is farthest in
+    combined σ (common practice: an N-alkyl's NOE to the ring proton beside it tells N1 from N2)."""
+    from ..errors import InputError
+    from .correlations import NOE_CLOSE, proton_distances
+
+    try:
+        sides = []
+        for smi in (first, second):
+            mol, groups, mu, sg, letters = _predicted_protons(smi, solvent)
+            r = proton_distances(mol)
+            if r is None:
+                return []
+            close = []
+            for i in range(len(groups)):
+                for k in range(i + 1, len(groups)):
+                    d = min(r[x, y] for x in groups[i] for y in groups[k])
+                    if d <= NOE_CLOSE:
+                        close.append((d, (groups[i], mu[i], sg[i], letters[i]), (groups[k], mu[k], sg[k], letters[k])))
+            sides.append(close)
+    except InputError:
+        return []
+
+    def apart(x, y) -> float:
+        # one end against another: the shifts in combined σ, and 3σ more where the expected patterns differ (the
+        # singlet H3 of an indazole against its doublet H7)
+        return abs(x[1] - y[1]) / math.hypot(x[2], y[2]) + (3.0 if x[3] != y[3] else 0.0)
+
+    best = None
+    for which, (mine, theirs) in (("#1", sides), ("#2", sides[::-1])):
+        for d, a, b in mine:
+            if abs(a[1] - b[1]) <= 0.1:   # (a cross peak so near the diagonal would hardly be read)
+                continue
+            z = min((min(math.hypot(apart(a, c), apart(b, e)), math.hypot(apart(a, e), apart(b, c)))
+                     for _, c, e in theirs), default=np.inf)
+            if best is None or z > best[0]:
+                best = (z, which, d, a, b)
+    if best is None or best[0] < NEXT_Z:
+        return []
+    z, which, d, a, b = best
+    other = "#2" if which == "#1" else "#1"
+    name = lambda e: f"the H on atom{'s' if len(e[0]) > 1 else ''} {','.join(map(str, e[0]))} (δ ≈ {e[1]:.2f}, {e[3]})"  # noqa: E731
+    return [f"a NOESY or ROESY would likely tell #1 and #2 apart: {which} places {name(a)} and {name(b)} {d:.1f} Å "
+            f"apart in space, and {other} has no such close pair of protons (predictions; RDKit conformers)"]
 
