@@ -99,6 +99,7 @@ def proton_distances(mol: Chem.Mol) -> np.ndarray | None:
     mh = Chem.AddHs(mol)
     params = AllChem.ETKDGv3()
     params.randomSeed = NOE_SEED
+    params.numThreads = 0   # (all cores; the conformers and so the distances do not depend on it)
     try:
         ids = list(AllChem.EmbedMultipleConfs(mh, NOE_CONFORMERS, params))
     except Exception:  # noqa: BLE001 - RDKit refusing a geometry: no 3D reading for this candidate

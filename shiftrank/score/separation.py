@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -338,6 +339,16 @@ def _hmbc_hint(first: str, second: str, solvent: str | None) -> list[str]:
             "(predictions)"]
 
 
+@lru_cache(maxsize=256)
+def _geometry(smiles: str):
+    """:func:`.correlations.proton_distances` of ``smiles`` as :func:`~shiftrank.inputs.molecules.to_mol` numbers it
+    (kept: a report asks again for each case a candidate appears in)."""
+    from ..inputs.molecules import to_mol
+    from .correlations import proton_distances
+
+    return proton_distances(to_mol(smiles))
+
+
 def _predicted_protons(smiles: str, solvent: str | None):
     """(molecule, proton classes (heavy atoms), their predicted mean shifts, σ and expected first-order pattern
     ('s', 'd', 't' …, the optional small couplings left out)) of ``smiles``."""
@@ -363,13 +374,13 @@ def _noe_hint(first: str, second: str, solvent: str | None) -> list[str]:
     lie apart (a cross peak off the diagonal), the one whose nearest close pair in the other is farthest in
     combined σ (common practice: an N-alkyl's NOE to the ring proton beside it tells N1 from N2)."""
     from ..errors import InputError
-    from .correlations import NOE_CLOSE, proton_distances
+    from .correlations import NOE_CLOSE
 
     try:
         sides = []
         for smi in (first, second):
             mol, groups, mu, sg, letters = _predicted_protons(smi, solvent)
-            r = proton_distances(mol)
+            r = _geometry(smi)
             if r is None:
                 return []
             close = []
