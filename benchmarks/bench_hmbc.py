@@ -1,11 +1,14 @@
-"""HMBC benchmark: ranking a compound against its positional isomers with and without HMBC cross peaks.
+"""2D benchmark: ranking a compound against its positional isomers with and without HMBC, COSY and NOESY cross peaks.
 
     python benchmarks/bench_hmbc.py [--data DIR]
 
 Cases (:func:`training.data.hmbc_cases`): every NMRShiftDB2 compound with assigned 13C and 1H shifts, against
 its positional isomers (one ring substituent moved), as in ``bench_hsqc.py``.  Its HMBC cross peaks are
 built from the measured shifts: every three-bond proton-carbon pair, a fixed share of the two-bond ones and a
-few four-bond ones within aromatic rings (the 'ideal' variant: every two- and three-bond pair, no other).
+few four-bond ones within aromatic rings (the 'ideal' variant: every two- and three-bond pair, no other); its COSY
+from every pair of protons on neighbouring atoms and 30 % of the aromatic four-bond ones, its NOESY from every pair
+of protons within 3.5 Å on the ranking's own RDKit conformers (so the NOESY rows measure what such a spectrum adds
+given that geometry model, not how well the model matches real molecules).
 The shifts are measured; which correlations a spectrum shows is a chosen model of it (the open data holds no
 HMBC spectra), so these figures say how much such a spectrum can add, not how real spectra will fare.  Only
 compounds whose skeleton lies in the predictor's validation or test split are measured.  The 13C list is given
@@ -42,6 +45,12 @@ MODES = {
     "1H list + HMBC": lambda c: {"peaks_1h": c["peaks_1h"], "hmbc": c["hmbc"]},
     "13C + 1H lists": lambda c: {"peaks": _c13(c), "peaks_1h": c["peaks_1h"]},
     "13C + 1H lists + HMBC": lambda c: {"peaks": _c13(c), "peaks_1h": c["peaks_1h"], "hmbc": c["hmbc"]},
+    "1H list + COSY": lambda c: {"peaks_1h": c["peaks_1h"], "cosy": c["cosy"]},
+    "1H list + NOESY": lambda c: {"peaks_1h": c["peaks_1h"], "noesy": c["noesy"]},
+    "1H list + HMBC + COSY + NOESY": lambda c: {"peaks_1h": c["peaks_1h"], "hmbc": c["hmbc"], "cosy": c["cosy"],
+                                                "noesy": c["noesy"]},
+    "13C + 1H lists + HMBC + COSY + NOESY": lambda c: {"peaks": _c13(c), "peaks_1h": c["peaks_1h"], "hmbc": c["hmbc"],
+                                                       "cosy": c["cosy"], "noesy": c["noesy"]},
 }
 
 
@@ -58,9 +67,11 @@ def main() -> int:
     n_cand = np.mean([len(c["candidates"]) for c in cases])
     print(f"{len(cases)} held-out compounds (validation {int((~test).sum())}, test {int(test.sum())}), "
           f"{n_cand:.1f} candidates per case on average (chance top-1 {100 * np.mean([1 / len(c['candidates']) for c in cases]):.0f} %); "
-          f"{np.mean([len(c['hmbc']) for c in cases]):.1f} HMBC cross peaks per compound")
+          f"{np.mean([len(c['hmbc']) for c in cases]):.1f} HMBC, {np.mean([len(c['cosy']) for c in cases]):.1f} COSY and "
+          f"{np.mean([len(c['noesy']) for c in cases]):.1f} NOESY cross peaks per compound")
     for label, make in MODES.items():
         built = [{"id": c["id"], "candidates": c["candidates"], "solvent": c["solvent"], **make(c)} for c in cases]
+        built = [{k: v for k, v in b.items() if v != []} for b in built]   # (a compound without such pairs: not given)
         t0 = time.perf_counter()
         ranks = []
         for c, r in zip(cases, rank_many(built)):

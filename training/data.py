@@ -289,20 +289,33 @@ HMBC_KEEP_2J = 0.6
 HMBC_KEEP_4J = 0.1
 
 
+#: synthetic COSY: the share of four-bond (aromatic meta) couplings shown; synthetic NOESY: the protons' effective
+#: distance (Å, RDKit conformers as :func:`shiftrank.score.correlations.proton_distances` makes them) within which
+#: a cross peak is shown.  Chosen; the NOESY cases share the ranking's own geometry model, so they measure what a
+#: NOESY adds given that model, not how well it matches real molecules
+COSY_KEEP_4J = 0.3
+NOESY_WITHIN = 3.5
+
+
 def _keep(key: str, share: float) -> bool:
     """A fixed pseudo-random choice per key (the same cases on every run)."""
     return int(hashlib.sha256(key.encode()).hexdigest()[:8], 16) / 0xFFFFFFFF < share
 
 
 def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[dict]:
-    """Positional-isomer ranking cases with HMBC cross peaks built from measured shifts.
+    """Positional-isomer ranking cases with HMBC (and COSY, NOESY) cross peaks built from measured shifts.
 
     The compounds and candidates of :func:`hsqc_cases` (NMRShiftDB2 compounds with assigned 13C and 1H
     shifts against their one-substituent positional isomers).  Each proton-bearing heavy atom X (its protons'
     mean shift) and each carbon C (its 13C shift) whose protons-to-carbon distance is three bonds give a cross
     peak; two bonds in a fixed share ``HMBC_KEEP_2J`` of pairs, four bonds (both atoms aromatic) in
     ``HMBC_KEEP_4J``; symmetry-equivalent pairs give one.  'hmbc_ideal' holds every two- and three-bond pair and
-    no other.  The measured shifts are real; which correlations a spectrum shows is a chosen model of it."""
+    no other.  'cosy': proton classes on neighbouring heavy atoms (3J), and a fixed share ``COSY_KEEP_4J`` of aromatic
+    4J pairs; 'noesy': proton classes whose effective distance on RDKit conformers is within ``NOESY_WITHIN`` Å.  Pairs
+    of protons within 0.02 ppm are left out (on the diagonal).  The measured shifts are real; which correlations a
+    spectrum shows is a chosen model of it."""
+    from shiftrank.score.correlations import proton_distances
+
     hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
     out = []
     for m in load_assigned(data_dir, nucleus="13C"):
@@ -337,7 +350,20 @@ def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
                                           + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
         for a, v in hm.shifts.items():
             protons.setdefault(ranks[a], round(v, 2))
+        cosy, noesy = set(), set()
+        r3d = proton_distances(m.mol)
+        for x, dx in hm.shifts.items():
+            for y, dy in hm.shifts.items():
+                if x >= y or abs(dx - dy) < 0.02:
+                    continue
+                pair = (round(max(dx, dy), 2), round(min(dx, dy), 2))
+                aromatic = m.mol.GetAtomWithIdx(x).GetIsAromatic() and m.mol.GetAtomWithIdx(y).GetIsAromatic()
+                if dist[x, y] == 1 or (dist[x, y] == 2 and aromatic and _keep(f"{m.id}:{ranks[x]}:{ranks[y]}:4J", COSY_KEEP_4J)):
+                    cosy.add(pair)
+                if r3d is not None and r3d[x, y] <= NOESY_WITHIN:
+                    noesy.add(pair)
         out.append({"id": m.id, "hmbc": sorted(map(list, real)), "hmbc_ideal": sorted(map(list, ideal)),
+                    "cosy": sorted(map(list, cosy)), "noesy": sorted(map(list, noesy)),
                     "candidates": cands, "solvent": m.solvent,
                     "peaks": sorted(carbons.values(), key=lambda p: p["shift"]),
                     "peaks_1h": sorted(protons.values()), "truth": truth, "split": m.split})
