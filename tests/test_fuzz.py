@@ -116,3 +116,29 @@ def test_random_bytes_in_any_user_file_read_or_refuse(tmp_path_factory, raw, nam
         reader(f)
     except InputError:
         pass
+
+
+_pair = st.one_of(st.lists(st.one_of(st.floats(), st.integers(), st.text(max_size=3), st.none()), max_size=4),
+                  st.dictionaries(st.sampled_from(["c", "h", "phase", "13C"]), st.one_of(st.floats(), st.text(max_size=3))),
+                  st.text(max_size=4), st.integers())
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.sampled_from(["hsqc", "hmbc", "cosy", "noesy"]), st.lists(_pair, max_size=6))
+def test_random_cross_peaks_rank_or_refuse(kind, pairs):
+    # any cross-peak list of any 2D kind: a ranking of both candidates or InputError, never a traceback
+    from shiftrank.score.ranking import rank_many
+    out = rank_many([{"id": "x", kind: pairs, "peaks_1h": [7.26, 2.35], "candidates": [PARA, META]}])
+    assert len(out) == 1 and (isinstance(out[0], InputError) or len(out[0].candidates) == 2)
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.binary(max_size=200), st.sampled_from(["read_hmbc", "read_cosy", "read_noesy"]))
+def test_random_bytes_in_cross_peak_files_read_or_refuse(tmp_path_factory, raw, reader):
+    from shiftrank.inputs import peaks
+    f = tmp_path_factory.mktemp("fz") / "x.txt"
+    f.write_bytes(raw)
+    try:
+        getattr(peaks, reader)(f)
+    except InputError:
+        pass
