@@ -60,7 +60,7 @@ def test_the_noe_of_the_n_methyl_to_the_singlet_tells_n2():
     assert row["h_atoms"] == [0] or row["atoms"] == [0]
     assert row["distance"] < 3.0 and not row["notes"]
     other = next(c for c in both.candidates if c.smiles == N1).nuclei["NOESY"]
-    assert other.hmbc_unexplained == [0]
+    assert other.far_cross_peaks == [0]
 
 
 def test_cosy_reads_the_1h_assignment():
@@ -69,7 +69,7 @@ def test_cosy_reads_the_1h_assignment():
     assert all(row["bonds"] in (3, 4) and not row["notes"] for row in rows)
     # a cross peak between the N-CH3 and an aromatic proton is no coupling in this structure
     far = rank(peaks_1h=[7.98, 7.72, 7.40, 7.15, 4.07], cosy=[[7.98, 4.07]], candidates=[N1])
-    assert far.best.nuclei["COSY"].hmbc_unexplained == [0]
+    assert far.best.nuclei["COSY"].far_cross_peaks == [0]
 
 
 def test_printed_sections_batch_and_cli(tmp_path, capsys):

@@ -732,8 +732,8 @@ def _printed_peaks(text: str, name: str, nucleus: str, solvent: str | None, pars
 
 @dataclass
 class HsqcList:
-    """(δC, δH) cross peaks of an HSQC (one-bond) or an HMBC (two- and three-bond) spectrum, as given;
-    ``nucleus`` names the experiment."""
+    """Cross peaks of a 2D spectrum, as given: (δC, δH) of an HSQC (one bond) or an HMBC (two and three bonds), or
+    (δH, δH) of a COSY or a NOESY/ROESY (the larger first); ``nucleus`` names the experiment."""
 
     pairs: list[tuple[float, float]]
     source: str = "hsqc"

@@ -194,7 +194,7 @@ def _correlation_block(res, rank_no: int) -> str:
                     f"<td class=num>{far}</td><td class=num>{row['cost']:.2f}</td><td>{note}</td></tr>")
     relation = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
                 "NOESY": "close in space (within about 4 Å)"}[n]
-    n_far = len(res.hmbc_unexplained)
+    n_far = len(res.far_cross_peaks)
     summary = f"{n}: {count(res.observed_signals, 'cross peak')}, {n_far} whose ends are not {relation} · cost {res.cost:.1f} nats"
     heads = ("δC / δH", "C atoms", "H on atoms") if hmbc else ("δH / δH", "H on atoms", "H on atoms")
     table = ("<p class='note'>each cross peak with the atoms it most likely joins, as this candidate's 1D assignments "

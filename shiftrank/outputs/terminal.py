@@ -62,7 +62,7 @@ def print_ranking(result, inputs: dict, out=None) -> None:
             if alone:
                 cols += f" {'–':>7}" if result.lone else f" {_fmt(c.by_spectrum.get(n), '7.3f', 7)}"
             # (HMBC, COSY, NOESY: the cross peaks whose ends the candidate relates so, of those observed)
-            expected = r.observed_signals - len(r.hmbc_unexplained) if n in CORRELATED else len(r.classes)
+            expected = r.observed_signals - len(r.far_cross_peaks) if n in CORRELATED else len(r.classes)
             cols += f" {_fmt(r.mae, '9.2f', 9)} {expected:>3}/{r.observed_signals:<2}"
         prob = f"{'–':>6}" if result.lone else f"{c.probability:6.3f}"
         print(f" {i:>2}  {prob} {cols} {c.beyond_3sigma:>4}  {label}", file=out)

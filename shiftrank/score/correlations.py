@@ -273,12 +273,12 @@ class CorrelationEvidence(_Evidence):
         a = Assignment(pairings, [], total, {"connectivity" if self.nucleus != "NOESY" else "geometry": total},
                        extra_costs=tuple(costs_of))
         res = NucleusResult(self.nucleus, classes, list(peaks), a)
-        res.hmbc_unexplained = unexplained
+        res.far_cross_peaks = unexplained
         res.flags = notes + self.flags(res)
         return res
 
     def flags(self, res: NucleusResult) -> list[str]:
-        n = len(res.hmbc_unexplained)
+        n = len(res.far_cross_peaks)
         what = "carbon and proton are" if self.nucleus == "HMBC" else "two protons are"
         return [f"{count(n, self.nucleus + ' cross peak', self.nucleus + ' cross peaks')} whose {what} not "
                 f"{_RELATION[self.nucleus]} in this candidate (as its 1D assignments and shifts read them)"] if n else []

@@ -109,7 +109,7 @@ class NucleusResult:
     flags: list[str] = field(default_factory=list)
     by_protons: bool = False          # 1H: assignment over protons (integrals given)
     scaling: tuple | None = None      # (offset, slope, centre) when the predictions were scaled to the spectrum
-    hmbc_unexplained: list = field(default_factory=list)   # 2D correlations: cross peaks the candidate likely cannot make
+    far_cross_peaks: list = field(default_factory=list)   # 2D correlations: cross peaks the candidate likely cannot make
     mismatch: np.ndarray | None = field(default=None, repr=False)   # 1D: classes × peaks misfit costs (DEPT, letters, J)
     _n_obs: int | None = field(default=None, repr=False)
 
