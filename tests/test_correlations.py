@@ -27,7 +27,7 @@ def test_proton_pairs_are_read_once_and_the_diagonal_set_aside(tmp_path):
     c = cosy_list([[7.72, 7.15], [7.15, 7.72], [7.40, 7.40]])
     assert c.pairs == [(7.72, 7.15)] and c.nucleus == "COSY"
     assert any("both sides of the diagonal" in n for n in c.notes) and any("diagonal peak" in n for n in c.notes)
-    with pytest.raises(InputError, match=r"entry 1: δH 139.9 ppm is outside .* joins two protons"):
+    with pytest.raises(InputError, match=r"entry 1: δH 139.9 ppm is outside .* join two protons"):
         noesy_list([[139.9, 4.07]])
     with pytest.raises(InputError, match="no cross peak off the diagonal"):
         noesy_list([[4.07, 4.07]])
@@ -101,3 +101,49 @@ def test_the_next_measurement_names_the_diagnostic_noe():
     r.candidates[0].probability = 0.6   # as if the 1D spectra left them close
     hints = [h for h in r.next_spectrum() if h.startswith("a NOESY or ROESY")]
     assert hints and "the H on atom 0" in hints[0] and "the H on atom 8" in hints[0] and "(δ ≈" in hints[0]
+
+
+def _bruker_2d(root, peaks, f1, f2, pulprog, noise=2000.0, seed=1):
+    """A Bruker processed 2D data set as the processed-data layout has it: pdata/1/2rr (little-endian int32, one
+    submatrix: XDIM = SI in each dimension) with procs (F2) and proc2s (F1): OFFSET, SW_p, SF, SI; acqus NUC1/NUC2.
+    ``peaks``: (δ1, δ2, height) Gaussian cross peaks; ``f1``/``f2``: (nucleus, offset ppm, width ppm, MHz, points)."""
+    exp = root / "20"
+    pdir = exp / "pdata" / "1"
+    pdir.mkdir(parents=True)
+    (n1, o1, w1, m1, s1), (n2, o2, w2, m2, s2) = f1, f2
+    x1 = o1 - np.arange(s1) * w1 / s1
+    x2 = o2 - np.arange(s2) * w2 / s2
+    data = np.random.default_rng(seed).normal(0, noise, (s1, s2))
+    for d1, d2, h in peaks:
+        # (Gaussian lines, as apodised 2D spectra show them)
+        data += h * np.exp(-0.5 * ((x1[:, None] - d1) / (1.5 * w1 / s1)) ** 2 - 0.5 * ((x2[None, :] - d2) / (1.5 * w2 / s2)) ** 2)
+    (pdir / "2rr").write_bytes(np.round(data).astype("<i4").tobytes())
+
+    def par(d):
+        return "\n".join(["##TITLE= Parameter file", "##JCAMPDX= 5.0"] + [f"##${k}= {v}" for k, v in d.items()] + ["##END="]) + "\n"
+
+    common = {"BYTORDP": 0, "DTYPP": 0, "NC_proc": 0}
+    (pdir / "procs").write_text(par({**common, "OFFSET": o2, "SF": m2, "SI": s2, "SW_p": w2 * m2, "XDIM": s2, "AXNUC": f"<{n2}>"}))
+    (pdir / "proc2s").write_text(par({**common, "OFFSET": o1, "SF": m1, "SI": s1, "SW_p": w1 * m1, "XDIM": s1, "AXNUC": f"<{n1}>"}))
+    (exp / "acqus").write_text(par({"NUC1": f"<{n2}>", "NUC2": f"<{n1}>", "PULPROG": f"<{pulprog}>", "SOLVENT": "<CDCl3>"}))
+    return exp
+
+
+def test_cross_peaks_are_picked_from_a_bruker_2d_data_set(tmp_path):
+    from shiftrank.inputs.peaks import read_hmbc, read_hsqc
+    # an HMBC of 1-methylindazole (values from memory, as above): the N-CH3 and H3 to C7a, H3 to C3a
+    c13 = ("13C", 170.0, 160.0, 100.6, 256)
+    h1 = ("1H", 10.0, 10.0, 400.1, 1024)
+    exp = _bruker_2d(tmp_path / "a", [(139.9, 4.07, 1e6), (139.9, 7.98, 6e5), (124.0, 7.98, 8e5)], c13, h1, "hmbcgp")
+    hm = read_hmbc(exp)
+    assert len(hm.pairs) == 3 and "3 cross peaks picked" in hm.notes[0]
+    got = sorted(hm.pairs)
+    assert all(abs(a - b) <= 0.35 and abs(c - d) <= 0.01 for (a, c), (b, d) in zip(got, [(124.0, 7.98), (139.9, 4.07), (139.9, 7.98)]))
+    assert rank(peaks_1h=[7.98, 7.72, 7.40, 7.15, 4.07], hmbc=hm, candidates=[N2, N1]).best.smiles == N1
+    # an edited HSQC: peaks of both signs carry their phases (negative CH2, positive CH/CH3; common practice)
+    ed = _bruker_2d(tmp_path / "b", [(60.5, 4.12, -9e5), (21.0, 2.05, 9e5), (14.2, 1.26, 9e5)], c13, h1, "hsqcedetgp")
+    hs = read_hsqc(ed)
+    assert dict(zip(hs.pairs, hs.kinds))[min(hs.pairs, key=lambda p: abs(p[0] - 60.5))] == "CH2"
+    # a COSY's dimensions are both 1H: an HMBC data set given as one is refused
+    with pytest.raises(InputError, match="correlates 13C .F1. with 1H .F2.; COSY spectra have 1H in F1"):
+        read_hsqc(exp, "COSY")

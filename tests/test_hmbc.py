@@ -28,7 +28,7 @@ HMBC_N1 = [[139.9, 4.07], [139.9, 7.98], [124.0, 7.98], [120.4, 7.40], [124.0, 7
 def test_cross_peaks_are_read_from_pairs_objects_and_files(tmp_path):
     assert hmbc_list([[139.9, 4.07], {"c": 124.0, "h": 7.98}]).pairs == [(139.9, 4.07), (124.0, 7.98)]
     assert hmbc_list([[139.9, 4.07]]).nucleus == "HMBC"
-    with pytest.raises(InputError, match="entry 1: an HMBC cross peak has no phase"):
+    with pytest.raises(InputError, match="entry 1: HMBC cross peaks have no phase"):
         hmbc_list([[139.9, 4.07, "CH2"]])
     with pytest.raises(InputError, match="entry 2: δH 40.7 ppm is outside"):
         hmbc_list([[139.9, 4.07], [35.5, 40.7]])

@@ -781,7 +781,7 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
 
     def phase(value, where: str) -> str | None:
         if experiment != "HSQC" and value is not None:
-            raise InputError(f"{where}: an {experiment} cross peak has no phase; give "
+            raise InputError(f"{where}: {experiment} cross peaks have no phase; give "
                              + ("[δH, δH]" if protons else "[δC, δH]"))
         return _hsqc_kind(value, where)
 
@@ -806,8 +806,8 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
         if protons:
             for v in (c, h):
                 if not (math.isfinite(v) and -2.0 <= v <= 20.0):
-                    raise InputError(f"{source} entry {k}: δH {v:g} ppm is outside -2…20 ppm (an {experiment} cross "
-                                     "peak joins two protons)")
+                    raise InputError(f"{source} entry {k}: δH {v:g} ppm is outside -2…20 ppm ({experiment} cross "
+                                     "peaks join two protons)")
             if abs(c - h) < DIAGONAL:   # a diagonal peak says nothing about two protons
                 diagonal += 1
                 continue
@@ -886,8 +886,10 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
     (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped.  ``experiment`` "HMBC"
     reads an HMBC's cross peaks the same way."""
-    from .spectra import JCAMP_HEADER   # (spectra builds on this module)
+    from .spectra import JCAMP_HEADER, bruker_pdata, read_bruker_2d   # (spectra builds on this module)
 
+    if str(path) != "-" and (pdir := bruker_pdata(path)) is not None and (pdir / "2rr").is_file():
+        return read_bruker_2d(path, experiment)   # a Bruker 2D data set: its cross peaks are picked
     p, text = _read_file(path)
     if JCAMP_HEADER.search(text[:4000]):
         raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the {experiment} cross peaks as "

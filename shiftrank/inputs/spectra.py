@@ -112,8 +112,8 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
     if pdir is None:
         raise InputError(f"{path}: not a Bruker processed data set (no pdata/N/1r)")
     if (pdir / "2rr").is_file() and not (pdir / "1r").is_file():
-        raise InputError(f"{where}: a 2D spectrum (2rr); give the 1D 13C or 1H data set, or its peak list "
-                         "(HSQC: its cross peaks as 'δC δH' pairs)")
+        raise InputError(f"{where}: a 2D spectrum (2rr); give the 1D 13C or 1H data set, or its peak list (a 2D data "
+                         "set goes to --hsqc, --hmbc, --cosy or --noesy)")
     dic, data = _nmrglue(lambda ng: ng.bruker.read_pdata(str(pdir), scale_data=True), "Bruker data",
                          f"{where}: the processed data cannot be read")
     procs, acqus = dic.get("procs") or {}, dic.get("acqus") or {}
@@ -137,6 +137,95 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
             f"lines picked above {min_snr or MIN_SNR[nucleus]:g}× the noise")
     return _lines_to_peaklist(picked, height, width, [None] * len(picked), trace, nucleus, sf,
                               _bruker_text(acqus.get("SOLVENT")), solvent, where, what, [])
+
+
+#: 2D cross peaks picked from a Bruker 2rr: standing this many times above the noise (σ from the median absolute
+#: deviation of the whole matrix) and at least this share of the tallest (t1 noise and artefacts stay below it);
+#: chosen; more than ``MAX_2D_PEAKS`` picked is refused (give the cross peaks as a list instead)
+MIN_SNR_2D = 8.0
+MIN_SHARE_2D = 0.02
+MAX_2D_PEAKS = 400
+#: the nuclei of each 2D experiment's indirect (F1) and direct (F2) dimensions
+DIMS_2D = {"HSQC": ("13C", "1H"), "HMBC": ("13C", "1H"), "COSY": ("1H", "1H"), "NOESY": ("1H", "1H")}
+
+
+def _axis(par: dict, n: int, where: str, name: str) -> np.ndarray:
+    """The ppm of each point of one dimension from its processing parameters (``OFFSET`` of the first point,
+    ``SW_p`` Hz over the points at ``SF`` MHz)."""
+    try:
+        offset, sw_p, sf = float(par["OFFSET"]), float(par["SW_p"]), float(par["SF"])
+    except (KeyError, TypeError, ValueError):
+        raise InputError(f"{where}: {name} lacks OFFSET, SW_p or SF, which place the spectrum on the ppm scale") from None
+    if sf <= 0 or sw_p <= 0:
+        raise InputError(f"{where}: {name} has SF = {sf:g} MHz and SW_p = {sw_p:g} Hz; both must be positive")
+    return offset - np.arange(n) * (sw_p / sf) / n
+
+
+def _refine(a: np.ndarray, i: int, j: int) -> tuple[float, float]:
+    """Sub-point position of a 2D maximum: a parabola through it and its two neighbours in each dimension."""
+    out = []
+    for k, (lo, mid, hi) in enumerate(((a[i - 1, j], a[i, j], a[i + 1, j]) if 0 < i < a.shape[0] - 1 else (0, 1, 0),
+                                       (a[i, j - 1], a[i, j], a[i, j + 1]) if 0 < j < a.shape[1] - 1 else (0, 1, 0))):
+        den = lo - 2 * mid + hi
+        out.append(0.5 * (lo - hi) / den if den < 0 else 0.0)
+    return i + out[0], j + out[1]
+
+
+def read_bruker_2d(path: str | Path, experiment: str = "HSQC", min_snr: float | None = None):
+    """Cross peaks picked from a Bruker processed 2D data set (``2rr`` with its ``procs`` for F2 and ``proc2s`` for
+    F1; the experiment's ``acqus``), read with nmrglue, as the :class:`~shiftrank.inputs.peaks.HsqcList` of
+    ``experiment`` (HSQC, HMBC: F1 13C, F2 1H; COSY, NOESY: 1H in both).  A cross peak is a local maximum of the
+    absolute intensity over its 5 × 5 neighbourhood standing ``MIN_SNR_2D`` times above the noise and at least
+    ``MIN_SHARE_2D`` of the tallest; its position is refined by a parabola in each dimension.  An HSQC with peaks of
+    both signs is taken as multiplicity-edited (negative CH2, positive CH/CH3; common practice)."""
+    from scipy.ndimage import maximum_filter
+
+    from .peaks import hsqc_list
+
+    pdir = bruker_pdata(path)
+    where = str(path)
+    if pdir is None or not (pdir / "2rr").is_file():
+        raise InputError(f"{where}: not a Bruker processed 2D data set (no pdata/N/2rr)")
+    dic, data = _nmrglue(lambda ng: ng.bruker.read_pdata(str(pdir), scale_data=True), "Bruker data",
+                         f"{where}: the processed data cannot be read")
+    data = np.asarray(data, dtype=float)
+    if data.ndim != 2 or min(data.shape) < 3:
+        raise InputError(f"{where}: the processed data are not a 2D matrix")
+    procs, proc2s, acqus = dic.get("procs") or {}, dic.get("proc2s") or {}, dic.get("acqus") or {}
+    f2 = _axis(procs, data.shape[1], where, "procs")
+    f1 = _axis(proc2s, data.shape[0], where, "proc2s")
+    want = DIMS_2D[experiment]
+    got = (_bruker_text(proc2s.get("AXNUC")) or _bruker_text(acqus.get("NUC2")), _bruker_text(procs.get("AXNUC")) or
+           _bruker_text(acqus.get("NUC1")))
+    if experiment in ("COSY", "NOESY") and got[0] in (None, "off"):
+        got = (got[1], got[1])   # a homonuclear experiment names one nucleus
+    if any(g not in (None, "off") and g != w for g, w in zip(got, want)):
+        raise InputError(f"{where}: the data set correlates {got[0]} (F1) with {got[1]} (F2); {experiment} spectra have "
+                         f"{want[0]} in F1 and {want[1]} in F2")
+    a = np.abs(data)
+    centre = np.median(data)
+    noise = 1.4826 * float(np.median(np.abs(data - centre))) or float(np.std(data)) or 1.0
+    floor = max((min_snr or MIN_SNR_2D) * noise, MIN_SHARE_2D * float(a.max()))
+    peaks = np.argwhere((a == maximum_filter(a, size=5, mode="nearest")) & (a > floor))
+    if len(peaks) > MAX_2D_PEAKS:
+        raise InputError(f"{where}: {len(peaks):,} cross peaks stand above {floor / noise:.0f}× the noise; give the "
+                         f"{experiment} cross peaks as a list of pairs (or raise the threshold)")
+    if not len(peaks):
+        raise InputError(f"{where}: no cross peak stands above {floor / noise:.0f}× the noise")
+    records, signs = [], []
+    for i, j in peaks:
+        x, y = _refine(a, int(i), int(j))
+        d1 = float(np.interp(x, np.arange(len(f1)), f1))
+        d2 = float(np.interp(y, np.arange(len(f2)), f2))
+        records.append([round(d1, 2 if want[0] == "13C" else 3), round(d2, 3)])
+        signs.append(data[i, j] < 0)
+    if experiment == "HSQC" and any(signs) and not all(signs):   # both phases: a multiplicity-edited spectrum
+        records = [r + ["CH2" if neg else "CH/CH3"] for r, neg in zip(records, signs)]
+    out = hsqc_list(records, f"{Path(where).name} ({experiment})", experiment)
+    out.notes.insert(0, f"{where}: Bruker 2D data set ({data.shape[0]} × {data.shape[1]} points): {len(records)} cross "
+                        f"peaks picked above {floor / noise:.0f}× the noise" + (", with the phases of an edited HSQC"
+                        if experiment == "HSQC" and out.kinds else ""))
+    return out
 
 
 #: the line every JCAMP-DX file carries
