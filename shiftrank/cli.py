@@ -459,7 +459,8 @@ def _inventory_for(args, lists: dict, case: dict | None = None, notes: list | No
     from .score.ranking import printed_counted_lines
 
     return take_inventory(lists.get("13C"), lists.get("1H"), formula, mz, getattr(args, "ppm", 5.0), hsqc=lists.get("HSQC"),
-                          counted_lines=printed_counted_lines(case) if case is not None else None)
+                          counted_lines=printed_counted_lines(case) if case is not None else None,
+                          cosy=lists.get("COSY"), hmbc=lists.get("HMBC"))
 
 
 def cmd_inventory(args) -> int:
@@ -762,7 +763,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--peaks-1h", help="1H peak list with integrals (shift or range, integral, multiplicity per line), "
                    "or a JCAMP-DX file or Bruker data set; - reads stdin")
-    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs); - reads stdin")
+    s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and 2D paragraphs); - reads stdin")
+    s.add_argument("--cosy", help="COSY cross peaks ('δH δH' per line): the spin systems are listed")
+    s.add_argument("--hmbc", help="HMBC cross peaks ('δC δH' per line): carbons the 13C list lacks are named")
     s.add_argument("--formula", help="molecular formula of the sample")
     s.add_argument("--mz", type=float, help="measured m/z, checked as [M]+, [M+H]+ and [M+Na]+")
     s.add_argument("--ppm", type=float, default=5.0, help="m/z tolerance in ppm (default 5)")

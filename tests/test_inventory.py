@@ -264,3 +264,18 @@ def test_inventory_of_a_paragraph_with_a_19f_section_reads_its_count():
                         "125.5, 124.2, 124.1, 124.1, 119.4, 112.2, 111.3, 109.9, 104.5, 56.0, 55.9, 45.9").peaklist("13C")
     inv = take_inventory(c13, formula="C21H19F3N2O2", counted_lines={"19F": 1})
     assert any(f.startswith("19F: 1 signal for 3 F") for f in inv.findings)
+
+
+def test_cosy_spin_systems_and_carbons_only_the_hmbc_shows():
+    # the N-ethyl indazole paragraph of the demo scenario's kind (own example): the ethyl's CH2/CH3 and the ring's
+    # H6/H7 are two spin systems (common practice); C7a at 141.2 is missing from a 13C list that left it out and
+    # is named from the HMBC (quaternary carbons are weak in 1D; common practice)
+    from shiftrank.chem.inventory import take_inventory
+    from shiftrank.inputs.peaks import cosy_list, hmbc_list, peak_text
+    h1 = peak_text("1H NMR (400 MHz, CDCl3) δ 8.06 (dd, J = 8.9, 1.5 Hz, 1H), 7.43 (d, J = 8.9 Hz, 1H), "
+                   "4.46 (q, J = 7.3 Hz, 2H), 1.54 (t, J = 7.3 Hz, 3H).", nucleus="1H")
+    c13 = peak_text("167.5, 134.9, 127.1, 124.3, 123.6, 122.5, 108.7, 52.1, 44.1, 15.0")
+    inv = take_inventory(c13, h1, cosy=cosy_list([[8.06, 7.43], [4.46, 1.54], [1.54, 4.46]]),
+                         hmbc=hmbc_list([[141.2, 4.46], [141.3, 8.06], [15.0, 4.46]]))
+    assert "COSY spin systems (coupled 1H signals): 8.06, 7.43 (2H); 4.46, 1.54 (5H)" in inv.findings
+    assert any(f.startswith("HMBC: a carbon at δC 141.2 that the 13C list does not have (2 cross peaks") for f in inv.findings)

@@ -21,6 +21,8 @@ from collections import Counter
 from dataclasses import dataclass, field
 from fractions import Fraction
 
+import numpy as np
+
 from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_label, ion_mz, neutral_parent, sample_formula
 from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
@@ -310,11 +312,12 @@ def chn_from_hsqc(peaks: list, hsqc, h1: PeakList | None = None) -> list[tuple[s
 
 def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: str | None = None,
                    mz: float | None = None, mz_tolerance_ppm: float = 5.0, hsqc=None,
-                   counted_lines: dict[str, int] | None = None) -> Inventory:
+                   counted_lines: dict[str, int] | None = None, cosy=None, hmbc=None) -> Inventory:
     """Inventory of a 13C list and/or a 1H list with integrals against the sample history; ``hsqc``
     (cross peaks) gives the CHn of 13C peaks printed without DEPT (:func:`chn_from_hsqc`);
     ``counted_lines``, the number of printed 19F and 31P signals ({nucleus: signals}), is read against the
-    formula's F and P."""
+    formula's F and P; ``cosy`` cross peaks give the spin systems (:func:`spin_systems`), ``hmbc`` ones the carbons
+    the 13C list lacks (:func:`carbons_seen_in_hmbc`)."""
     if c13 is None and h1 is None:
         raise InputError("inventory: give a 13C peak list, a 1H peak list or both")
     inv = (_proton_only(h1, formula, mz, mz_tolerance_ppm) if c13 is None
@@ -322,7 +325,94 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     for nucleus, lines in (counted_lines or {}).items():
         el = COUNTED_NUCLEI[nucleus][1]
         inv.findings.append(counted_finding(nucleus, lines, sample_formula(formula)[0].get(el, 0) if formula else None))
+    if cosy is not None:
+        inv.findings.extend(spin_systems(cosy.pairs, h1))
+    if hmbc is not None and c13 is not None:
+        inv.findings.extend(carbons_seen_in_hmbc(hmbc.pairs, c13))
     return inv
+
+
+#: ppm within which a cross peak's δ is read as a 1D line (the HMBC's indirect 13C dimension is coarse)
+ON_LINE_1H, ON_LINE_13C = 0.04, 0.6
+
+
+def _line_of(delta: float, peaks, tol: float):
+    """The 1D line (not solvent) that ``delta`` lies on or nearest within ``tol`` ppm, or None."""
+    best = None
+    for p in peaks or ():
+        if p.solvent is not None:
+            continue
+        lo, hi = (p.lo, p.hi) if getattr(p, "lo", None) is not None else (p.shift, p.shift)
+        d = 0.0 if lo <= delta <= hi else min(abs(delta - lo), abs(delta - hi))
+        if d <= tol and (best is None or d < best[0]):
+            best = (d, p)
+    return None if best is None else best[1]
+
+
+def spin_systems(pairs, h1: PeakList | None = None) -> list[str]:
+    """The spin systems a COSY shows: groups of 1H signals joined by cross peaks (each cross peak's two δH read
+    as the 1H lines they lie on, within 0.04 ppm, when a 1H list is given), largest first, with the protons their
+    integrals count (common practice: the coupled chains a chemist draws before placing the pieces).
+
+    >>> spin_systems([(7.72, 7.15), (7.40, 7.15), (4.46, 1.54)])
+    ['COSY spin systems (coupled 1H signals): 7.72, 7.40, 7.15; 4.46, 1.54']
+    """
+    def node(d):
+        line = _line_of(d, h1.peaks if h1 is not None else (), ON_LINE_1H)
+        return (round(line.shift, 3), line) if line is not None else (round(d, 3), None)
+
+    parent: dict = {}
+
+    def find(x):
+        while parent.setdefault(x, x) != x:
+            parent[x] = parent[parent[x]]
+            x = parent[x]
+        return x
+
+    lines = {}
+    for a, b in pairs:
+        (ka, la), (kb, lb) = node(a), node(b)
+        lines.setdefault(ka, la)
+        lines.setdefault(kb, lb)
+        if ka != kb:
+            parent[find(ka)] = find(kb)
+    groups: dict = {}
+    for k in lines:
+        groups.setdefault(find(k), []).append(k)
+    chains = sorted((sorted(g, reverse=True) for g in groups.values() if len(g) > 1), key=lambda g: (-len(g), -g[0]))
+    if not chains:
+        return []
+    shown = []
+    for g in chains:
+        ints = [lines[k].intensity for k in g if lines[k] is not None and lines[k].intensity]
+        protons = f" ({round(sum(ints))}H)" if len(ints) == len(g) and all(abs(i - round(i)) < 0.2 for i in ints) else ""
+        shown.append(", ".join(f"{k:.2f}" for k in g) + protons)
+    return ["COSY spin systems (coupled 1H signals): " + "; ".join(shown)]
+
+
+def carbons_seen_in_hmbc(pairs, c13: PeakList) -> list[str]:
+    """Carbons an HMBC shows that the 13C list does not have: cross-peak δC on no 13C line (within 0.6 ppm),
+    grouped within 0.6 ppm (common practice: quaternary carbons are weak in a 1D 13C spectrum and often found in
+    the HMBC; each is a carbon the formula count and the candidates must hold).
+
+    >>> from shiftrank.inputs.peaks import peak_text
+    >>> carbons_seen_in_hmbc([(149.0, 4.2), (149.2, 7.9), (123.6, 7.9)], peak_text("123.6, 40.3"))
+    ['HMBC: a carbon at δC 149.1 that the 13C list does not have (2 cross peaks; a quaternary carbon too weak in 1D?)']
+    """
+    off = sorted(c for c, _ in pairs if _line_of(c, c13.peaks, ON_LINE_13C) is None)
+    groups: list[list[float]] = []
+    for c in off:
+        if groups and c - groups[-1][-1] <= ON_LINE_13C:
+            groups[-1].append(c)
+        else:
+            groups.append([c])
+    if not groups:
+        return []
+    said = ", ".join(f"δC {np.mean(g):.1f}" for g in groups)
+    n = sum(len(g) for g in groups)
+    return [f"HMBC: {'a carbon' if len(groups) == 1 else f'{len(groups)} carbons'} at {said} that the 13C list does not "
+            f"have ({count(n, 'cross peak')}; {'a quaternary carbon' if len(groups) == 1 else 'quaternary carbons'} too "
+            "weak in 1D?)"]
 
 
 #: printed nuclei whose signals are counted, not predicted (against the formula's atoms of their element here, against
