@@ -61,7 +61,8 @@ def run_demo(output: str) -> int:
                       peaks_1h=case.get("peaks_1h"), text=case.get("text"), with_isomers=not s.get("candidates"),
                       hsqc=case.get("hsqc"))
         pls, _, _ = case_peaklists(case)
-        inv = take_inventory(pls.get("13C"), pls.get("1H"), s["formula"], s.get("mz"))
+        inv = take_inventory(pls.get("13C"), pls.get("1H"), s["formula"], s.get("mz"), hsqc=pls.get("HSQC"),
+                             cosy=pls.get("COSY"), hmbc=pls.get("HMBC"))
         print(f"=== {s['id']}: {s['title']}")
         print(f"    sample history: formula {s['formula']}" + (f", solvent {s['solvent']}" if s.get("solvent") else "")
               + (f", m/z {s['mz']}" if s.get("mz") else ""))
