@@ -147,3 +147,11 @@ def test_cross_peaks_are_picked_from_a_bruker_2d_data_set(tmp_path):
     # a COSY's dimensions are both 1H: an HMBC data set given as one is refused
     with pytest.raises(InputError, match="correlates 13C .F1. with 1H .F2.; COSY spectra have 1H in F1"):
         read_hsqc(exp, "COSY")
+
+
+def test_a_candidate_without_protons_cannot_make_cross_peaks():
+    # tetrachloromethane has no proton: every cross peak is one it cannot make, said in a flag, not an internal error
+    for kw in (dict(hmbc=[[96.0, 7.2]]), dict(cosy=[[7.2, 3.1]]), dict(noesy=[[7.2, 3.1]])):
+        r = rank(candidates=["ClC(Cl)(Cl)Cl", "CC(Cl)(Cl)Cl"], **kw)
+        ccl4 = next(c for c in r.candidates if c.smiles == "ClC(Cl)(Cl)Cl")
+        assert ccl4.error is None and any("has no protons" in f for f in ccl4.flags)

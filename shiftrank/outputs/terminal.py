@@ -162,3 +162,7 @@ def print_correlations(cand, nucleus: str = "HMBC", out=None) -> None:
         far = "-" if far is None else (f"{far:.1f}" if nucleus == "NOESY" else str(far))
         print(f"  {row['observed']:7.2f} {row['observed_h']:6.2f}  {a[:10]:<10} {b[:10]:<10} {far:>5} "
               f"{row['cost']:6.2f}  {', '.join(row['notes'])}", file=out)
+    for j in r.assignment.unmatched_peaks:   # (a candidate without protons: no pair to show)
+        p = r.peaks[j]
+        print(f"  {p.shift:7.2f} {p.h_lo:6.2f}  {'-':<10} {'-':<10} {'-':>5} {r.assignment.extra_costs[j]:6.2f}  "
+              "no atoms of this candidate can make it", file=out)

@@ -244,9 +244,19 @@ class CorrelationEvidence(_Evidence):
             side_a = _side("13C", given.get("13C"), c_atoms, means_c, replace(costs, h_t_df=None))
         else:
             side_a = side_h
+        other = OTHER[self.nucleus]
+        if not side_a.atoms or not side_h.atoms:   # no protons (or no carbons): no cross peak is this candidate's
+            cost = float(-np.log(other))
+            a = Assignment([], list(range(len(peaks))), cost * len(peaks),
+                           {"connectivity" if self.nucleus != "NOESY" else "geometry": cost * len(peaks)},
+                           extra_costs=(cost,) * len(peaks))
+            res = NucleusResult(self.nucleus, [], list(peaks), a)
+            res.far_cross_peaks = list(range(len(peaks)))
+            res.flags = [f"{self.nucleus}: the candidate has no {'protons' if not side_h.atoms else 'carbons'} to make "
+                         "these cross peaks"]
+            return res
         strength, apart, notes = self.relation(mol, side_a.atoms, side_h.atoms, facts)
         classes, pairings, unexplained, costs_of = [], [], [], []
-        other = OTHER[self.nucleus]
         for k, pk in enumerate(peaks):
             wa, wb = side_a.posterior(pk.shift)[:-1], side_h.posterior(pk.h_lo)[:-1]
             p = float(wa @ strength @ wb)

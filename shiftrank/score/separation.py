@@ -22,6 +22,8 @@ from functools import lru_cache
 
 import numpy as np
 
+from ..words import count
+
 #: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
 MIN_SHARE = 0.3
 #: spectra whose lines are split (an HSQC or HMBC line is a cross peak, named δC/δH)
@@ -264,13 +266,13 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
         k = int(np.argmax(z[rows, cols]))
         i, j = rows[k], cols[k]
         nd = 1 if n == "13C" else 2
-        counts = (f"; #1 expects {len(a)} signals, #2 {len(b)} (symmetry)" if len(a) != len(b) else "")
+        counts = (f"; #1 expects {count(len(a), 'signal')}, #2 {len(b)} (symmetry)" if len(a) != len(b) else "")
         if z[i, j] >= NEXT_Z:
             out.append(f"a {n} spectrum would likely tell #1 and #2 apart: #1 predicts {a[i][1]:.{nd}f} ({a[i][0]}) where "
                        f"#2's matching class is at {b[j][1]:.{nd}f} ({b[j][0]}), {z[i, j]:.1f}σ apart{counts} (predictions)")
         else:
             out.append(f"a {n} spectrum would hardly tell #1 and #2 apart by shifts (their predicted classes differ by at "
-                       f"most {z[i, j]:.1f}σ){counts} (predictions)")
+                       f"most {z[i, j]:.1f}σ){counts + ': its signal count may' if counts else ''} (predictions)")
     return out + hmbc
 
 
