@@ -155,3 +155,15 @@ def test_a_candidate_without_protons_cannot_make_cross_peaks():
         r = rank(candidates=["ClC(Cl)(Cl)Cl", "CC(Cl)(Cl)Cl"], **kw)
         ccl4 = next(c for c in r.candidates if c.smiles == "ClC(Cl)(Cl)Cl")
         assert ccl4.error is None and any("has no protons" in f for f in ccl4.flags)
+
+
+def test_the_two_protons_of_a_diastereotopic_ch2_make_their_own_cross_peak():
+    # 1-phenylpropan-1-ol (own example; shifts from memory): the CH2 beside the stereocentre shows two lines, 1.82 and
+    # 1.73, whose geminal coupling gives a COSY cross peak (common practice): the candidate's own, not a misfit
+    h1 = [{"shift": 7.33, "integral": 5, "multiplicity": "m"}, {"shift": 4.58, "integral": 1, "multiplicity": "t"},
+          {"shift": 1.82, "integral": 1, "multiplicity": "m"}, {"shift": 1.73, "integral": 1, "multiplicity": "m"},
+          {"shift": 0.91, "integral": 3, "multiplicity": "t"}]
+    r = rank(peaks_1h=h1, cosy=[[1.82, 1.73], [4.58, 1.82], [1.73, 0.91]], candidates=["CCC(O)c1ccccc1"])
+    rows = r.best.nuclei["COSY"].assignment_table()
+    gem = next(row for row in rows if {row["observed"], row["observed_h"]} == {1.82, 1.73})
+    assert gem["bonds"] == 2 and gem["atoms"] == gem["h_atoms"] and not r.best.nuclei["COSY"].far_cross_peaks

@@ -57,6 +57,8 @@ NOE_CLOSE, NOE_FAR = 3.0, 4.5
 NOE_CONFORMERS = 10
 NOE_MAX_HEAVY = 80
 NOE_SEED = 20261205
+#: Å between the two protons of a CH2 (sp3 geometry; from memory)
+GEMINAL_HH = 1.8
 
 # the words each experiment's relation is said in
 _RELATION = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
@@ -144,6 +146,7 @@ class _Side:
     on_line: dict | None = None  # line index -> classes its assignment put there
     nucleus: str = "13C"
     mismatch: np.ndarray | None = None   # classes × lines: the 1D spectrum's own misfit costs (DEPT, letters, J)
+    splittable: np.ndarray | None = None  # 1H: classes whose two protons may show apart (a diastereotopic CH2)
 
     def posterior(self, delta: float) -> np.ndarray:
         """Probability of each class (and, last, of none of them) being the atom behind a cross peak's δ in this
@@ -180,7 +183,8 @@ class _Side:
         return HARD_SHARE * hard + (1 - HARD_SHARE) * soft
 
 
-def _side(nucleus: str, result: NucleusResult | None, atoms: list, means: ClassMeans, costs: MatchCosts) -> _Side:
+def _side(nucleus: str, result: NucleusResult | None, atoms: list, means: ClassMeans, costs: MatchCosts,
+          split: np.ndarray | None = None) -> _Side:
     """A dimension from the 1D result when given (its classes with their scaled predictions, its lines, its
     assignment), else from the predictions of ``atoms`` (the classes)."""
     if result is not None:
@@ -190,9 +194,11 @@ def _side(nucleus: str, result: NucleusResult | None, atoms: list, means: ClassM
                 on.setdefault(p.peak, []).append(p.cls)
         cl = result.classes
         return _Side([list(c.atoms) for c in cl], np.array([c.shift for c in cl], float),
-                     np.array([c.sigma for c in cl], float), costs, list(result.peaks), on, nucleus, result.mismatch)
+                     np.array([c.sigma for c in cl], float), costs, list(result.peaks), on, nucleus, result.mismatch,
+                     np.array([bool(c.splittable) for c in cl]))
     m, s = means.of(atoms)
-    return _Side([list(a) for a in atoms], np.asarray(m, float), np.asarray(s, float), costs, nucleus=nucleus)
+    return _Side([list(a) for a in atoms], np.asarray(m, float), np.asarray(s, float), costs, nucleus=nucleus,
+                 splittable=split)
 
 
 class CorrelationEvidence(_Evidence):
@@ -234,11 +240,11 @@ class CorrelationEvidence(_Evidence):
         """``given``: the candidate's 13C and 1H results of this case (before their atoms are renumbered)."""
         given = given or {}
         means_c, means_h = mu if isinstance(mu, tuple) else (None, mu)
-        h_atoms = facts.hydrogen_classes if facts is not None and facts.hydrogen_classes else \
-            [e.atoms for e in expected_multiplets(mol, ranks)]
-        h_atoms = [list(h) for h in h_atoms if all(x in means_h.pos for x in h)]
+        ems = getattr(facts, "proton_multiplets", None) if facts is not None else None
+        ems = [e for e in (ems if ems is not None else expected_multiplets(mol, ranks)) if all(x in means_h.pos for x in e.atoms)]
         h_costs = replace(costs, t_df=costs.h_t_df or costs.t_df, t_scale=costs.h_t_scale, t_widen=1.0)
-        side_h = _side("1H", given.get("1H"), h_atoms, means_h, h_costs)
+        side_h = _side("1H", given.get("1H"), [list(e.atoms) for e in ems], means_h, h_costs,
+                       np.array([bool(e.may_split) for e in ems]))
         if self.nucleus == "HMBC":
             c_atoms = [c.atoms for c in _carbon_classes(mol, ranks, facts)]
             side_a = _side("13C", given.get("13C"), c_atoms, means_c, replace(costs, h_t_df=None))
@@ -256,6 +262,11 @@ class CorrelationEvidence(_Evidence):
                          "these cross peaks"]
             return res
         strength, apart, notes = self.relation(mol, side_a.atoms, side_h.atoms, facts)
+        if self.nucleus != "HMBC" and side_h.splittable is not None:
+            # the two protons of a diastereotopic CH2 shown apart couple (2J) and lie 1.8 Å apart: a cross peak between
+            # its two lines is its own (common practice)
+            for i in np.flatnonzero(side_h.splittable):
+                strength[i, i], apart[i, i] = 1.0, (2 if self.nucleus == "COSY" else GEMINAL_HH)
         classes, pairings, unexplained, costs_of = [], [], [], []
         for k, pk in enumerate(peaks):
             wa, wb = side_a.posterior(pk.shift)[:-1], side_h.posterior(pk.h_lo)[:-1]
