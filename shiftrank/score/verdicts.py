@@ -123,6 +123,16 @@ def _stereo_note(valid: list[CandidateResult]) -> str:
     def misfits(c):
         r = c.nuclei.get("1H")
         return 0 if r is None else len({p.cls for p in r.assignment.pairings if not p.multiplicity_ok})
+    noe = best.nuclei.get("NOESY"), second.nuclei.get("NOESY")
+    if all(r is not None for r in noe):
+        gap = noe[1].cost / second.divisors.get("NOESY", 1.0) - noe[0].cost / best.divisors.get("NOESY", 1.0)
+        if gap >= 0.3:
+            return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the NOESY "
+                    f"given leans to {best.name or best.smiles} ({count(len(noe[1].far_cross_peaks), 'cross peak')} that "
+                    f"{second.name or second.smiles} places too far apart; RDKit conformers)")
+        return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart, and the NOESY given "
+                "hardly does either: compare coupling constants (axial/equatorial, cis/trans alkene J) or measure NOE "
+                "between the protons that would differ")
     if misfits(second) > misfits(best):
         return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the printed "
                 f"coupling constants do ({second.name or second.smiles}'s protons cannot show "
