@@ -57,7 +57,6 @@ def stages(cases: list[dict]) -> dict:
     """Seconds per stage of ranking ``cases`` in this process (caches cleared first)."""
     from shiftrank.score import ranking as R
     from shiftrank.score import structures as S
-    from shiftrank.score.evidence import EVIDENCE
     from shiftrank.prediction.api import environments_isolated
     from shiftrank.prediction.model_files import default_model
 

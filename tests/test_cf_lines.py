@@ -7,7 +7,6 @@ list printed without the coupling would show (centre ± 0.5 J and ± 1.5 J, in p
 other values are as printed.  C–F coupling constants: see shiftrank.chem.couplings (common practice,
 from memory).
 """
-import pytest
 
 from shiftrank.chem.isomers import isomers
 from shiftrank.score.ranking import rank

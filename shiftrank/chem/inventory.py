@@ -739,7 +739,6 @@ def _proton_only(h1: PeakList, formula: str | None, mz: float | None, mz_toleran
     _read_protons(inv, h1)
     if formula:
         fc = _formula_findings(inv, formula)
-        nH = fc.get("H", 0)
         if inv.dbe >= 4:
             inv.findings.append(f"DBE {inv.dbe:g} ≥ 4: often an aromatic ring (common practice); "
                                 f"{count(sum(1 for p in h1.sample_peaks() if p.shift > 6.5), '1H signal')} above 6.5 ppm")

@@ -96,7 +96,7 @@ _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹₀₁₂₃₄₅₆₇₈�
 _NUM = r"[+-]?\d+(?:\.\d+)?"
 _SHIFT_ITEM = re.compile(
     rf"^\s*(?:and\s+|&\s*)?(?P<a>{_NUM})\s*(?:(?:-|to|–|~|\.\.)\s*(?P<b>{_NUM}))?\s*(?:ppm)?\s*(?P<rest>.*)$", re.S | re.I)
-_INTEGRAL = re.compile(rf"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
+_INTEGRAL = re.compile(r"^(?P<n>\d+(?:\.\d+)?)\s*H(?:s)?$|^(?P<n2>\d+(?:\.\d+)?)\s*x\s*H$", re.I)
 #: a proton count that leads a part without its comma or with a word around it ('1H Ar-H', '1H d', 'each 1H',
 #: '2 x 1H', 'IH'); not '1H-pyrazole' or '2H,' (the plain count is `_INTEGRAL`)
 _INTEGRAL_LEAD = re.compile(r"^(?:each\s+)?(?:(?P<times>[1-9])\s*[x×]\s*)?(?P<n>[1-9]\d?|I)\s*H(?=\s|$)"
@@ -465,7 +465,6 @@ def _parse_detail(detail: str, peak: PrintedPeak, nucleus: str, notes: list[str]
                 continue
         if not w:
             continue
-        low = re.sub(r"\s+", " ", w.lower())
         compact = _compact(w)
         m = _INTEGRAL.match(w.replace(" ", "")) or _INTEGRAL.match(w)
         if m and peak.integral is None:
@@ -792,7 +791,7 @@ def read_nmr_text(text: str, source: str = "text", nucleus: str | None = None) -
             _dept135(sec, header + " " + cond)
         if _read_prose(sec, body):
             pass
-        elif (prose := re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond)) and len(sec.peaks) == 1 \
+        elif re.search(r"[^()δ]{0,40}δ\s*[HC]?\s*[=:]?\s*$", cond) and len(sec.peaks) == 1 \
                 and re.search(r"[a-z]{4,}\s+[a-z]{3,}", cond):
             word = re.search(r"(singlet|doublet|triplet|quartet|multiplet)\b[^()δ]{0,25}δ\s*[HC]?\s*[=:]?\s*$", cond, re.I)
             if word and sec.nucleus == "1H" and sec.peaks[0].multiplicity is None:

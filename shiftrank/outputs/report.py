@@ -17,7 +17,6 @@ import numpy as np
 
 matplotlib.use("Agg")
 import matplotlib.pyplot as plt  # noqa: E402
-from rdkit import Chem  # noqa: E402
 from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 
 from .. import __version__  # noqa: E402

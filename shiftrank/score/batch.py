@@ -16,7 +16,6 @@ from __future__ import annotations
 import json
 import sys
 from pathlib import Path
-from typing import Iterator
 
 from ..errors import InputError
 from ..inputs.files import read_user_text

@@ -424,7 +424,7 @@ def collapse_split_lines(classes: list[SignalClass], peaks: list[ObservedPeak]) 
         merged.append(ObservedPeak(round(centre, 3), None, False, coupling=letter, j=j_hz, field=field))
         shown = "/".join(f"{peaks[j].shift:g}" for j in sorted(chosen, key=lambda j: peaks[j].shift))
         notes.append(f"{lines} lines {shown} read as one carbon split by {g.partner} ({letter}, "
-                     + (f"J ≈ {s * field:.0f} Hz at {field:g} MHz" if field else f"spacing {s:.2f} ppm") + f") for atoms "
+                     + (f"J ≈ {s * field:.0f} Hz at {field:g} MHz" if field else f"spacing {s:.2f} ppm") + ") for atoms "
                      + ",".join(str(a) for a in c.atoms))
     if not used:
         return peaks, []
