@@ -119,6 +119,10 @@ def test_the_report_shows_the_cross_peaks(tmp_path):
     write_report([r], path)
     text = path.read_text()
     assert "HMBC cross peaks" in text and "not two or three bonds apart" in text
+    # the cross peaks #1 explains are drawn on its structure as arrows from the protons' atom to the carbon
+    from shiftrank.outputs.report import correlation_svg
+    svg = correlation_svg(r.best, "HMBC")
+    assert svg.startswith("<svg") and "arrows: from the atom carrying the protons" in text
 
 
 def _h1(tmp_path):

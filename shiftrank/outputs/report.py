@@ -17,6 +17,8 @@ import numpy as np
 
 matplotlib.use("Agg")
 import matplotlib.pyplot as plt  # noqa: E402
+from rdkit import Chem  # noqa: E402
+from rdkit.Geometry import Point2D  # noqa: E402
 from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 
 from .. import __version__  # noqa: E402
@@ -93,6 +95,59 @@ def structure_svg(cand: CandidateResult, nucleus: str = "13C", size=(340, 260), 
     radii = {a: (0.55 if a in marked else 0.3) for a in colours}
     rdMolDraw2D.PrepareAndDrawMolecule(d, mol, highlightAtoms=list(colours), highlightAtomColors=colours,
                                        highlightBonds=[], highlightAtomRadii=radii)
+    d.FinishDrawing()
+    svg = d.GetDrawingText()
+    return svg[svg.find("<svg"):]
+
+
+#: colours of the correlations drawn on a structure (RGB 0-1): HMBC proton-to-carbon arrows, COSY and NOESY lines
+CORRELATION_COLOURS = {"HMBC": (0.12, 0.40, 0.70), "COSY": (0.20, 0.55, 0.25), "NOESY": (0.75, 0.25, 0.20)}
+
+
+def correlation_svg(cand: CandidateResult, nucleus: str, size=(340, 260)) -> str:
+    """RDKit drawing of the candidate with each cross peak it explains drawn on it: an HMBC as an arrow from the atom
+    carrying the protons to the carbon (two or three bonds on), a COSY or NOESY as a line between the two atoms
+    carrying the protons; the atoms are numbered as the tables number them."""
+    res = cand.nuclei.get(nucleus)
+    try:
+        mol = to_mol(cand.smiles)
+    except InputError:
+        mol = None
+    if mol is None or res is None or not res.classes:
+        return ""
+    dist = Chem.GetDistanceMatrix(mol)
+    links = set()
+    for p in res.assignment.pairings:
+        c = res.classes[p.cls]
+        if not p.multiplicity_ok or not c.atoms or not c.h_atoms:
+            continue
+        pairs = [(x, a) for x in c.h_atoms for a in c.atoms if x != a and x < mol.GetNumAtoms() and a < mol.GetNumAtoms()]
+        if c.bonds is not None and nucleus != "NOESY":   # the member pair at the counted distance
+            want = c.bonds - (1 if nucleus == "HMBC" else 2)
+            pairs = [q for q in pairs if int(dist[q]) == want] or pairs
+        if pairs:
+            links.add(min(pairs, key=lambda q: dist[q]))
+    if not links:
+        return ""
+    for atom in mol.GetAtoms():
+        atom.SetProp("atomNote", str(atom.GetIdx()))
+    d = rdMolDraw2D.MolDraw2DSVG(*size)
+    opts = d.drawOptions()
+    opts.annotationFontScale = 0.6
+    opts.clearBackground = False
+    rdMolDraw2D.PrepareAndDrawMolecule(d, mol)
+    colour = CORRELATION_COLOURS[nucleus]
+    d.SetLineWidth(2)
+    for x, a in sorted(links):
+        # (in the drawing's own pixels: where the atoms were drawn), shortened a little at both ends
+        p1, p2 = d.GetDrawCoords(int(x)), d.GetDrawCoords(int(a))
+        dx, dy = p2.x - p1.x, p2.y - p1.y
+        p1, p2 = Point2D(p1.x + 0.15 * dx, p1.y + 0.15 * dy), Point2D(p2.x - 0.15 * dx, p2.y - 0.15 * dy)
+        if nucleus == "HMBC":
+            d.DrawArrow(p1, p2, False, 0.15, 0.45, colour, True)
+        else:
+            d.SetColour(colour)
+            d.DrawLine(p1, p2, True)
     d.FinishDrawing()
     svg = d.GetDrawingText()
     return svg[svg.find("<svg"):]
@@ -178,7 +233,7 @@ def _observed_text(pk) -> str:
     return s + (f" ({'; '.join(bits)})" if bits else "")
 
 
-def _correlation_block(res, rank_no: int) -> str:
+def _correlation_block(res, rank_no: int, c: CandidateResult | None = None) -> str:
     """An HMBC's, COSY's or NOESY's cross peaks, each with the atoms it most likely joins in this candidate."""
     e = html.escape
     n = res.nucleus
@@ -200,7 +255,12 @@ def _correlation_block(res, rank_no: int) -> str:
              "(or its predicted shifts) read them" + (" (distances: an ensemble of RDKit conformers)" if noe else "")
              + f"</p><table><tr><th>{heads[0]}</th><th>{heads[1]}</th><th>{heads[2]}</th>"
              f"<th>{'Å' if noe else 'bonds'}</th><th>cost (nats)</th><th>note</th></tr>" + "".join(rows) + "</table>")
-    return (f"<div class='nuc'>{e(summary)}</div><details{' open' if rank_no == 1 else ''}>"
+    pic = correlation_svg(c, n) if c is not None else ""
+    legend = {"HMBC": "arrows: from the atom carrying the protons to the carbon of each cross peak it explains",
+              "COSY": "lines: the two atoms whose protons each cross peak couples",
+              "NOESY": "lines: the two atoms whose protons each cross peak places close in space"}[n]
+    pic = f"<div class='cardrow'><div>{pic}<p class='note'>{legend}</p></div></div>" if pic else ""
+    return (f"<div class='nuc'>{e(summary)}</div>{pic}<details{' open' if rank_no == 1 else ''}>"
             f"<summary>{n} cross peaks</summary>{table}</details>")
 
 
@@ -209,7 +269,7 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
     e = html.escape
     res = c.nuclei[nucleus]
     if nucleus in ("HMBC", "COSY", "NOESY"):
-        return _correlation_block(res, rank_no)
+        return _correlation_block(res, rank_no, c if with_plots else None)
     rows = []
     for row in res.assignment_table():
         obs = "" if row["peak"] is None else e(_observed_text(res.peaks[row["peak"]]))
