@@ -152,7 +152,7 @@ def _rank_chunk(items, detail: bool) -> list[str]:
     out = []
     for n, c in items:
         r = next(results) if isinstance(c, dict) else c
-        out.append(json.dumps(error_line(n, c, r) if isinstance(r, Exception) else r.to_dict(detail)))
+        out.append(json.dumps(error_line(n, c, r) if isinstance(r, Exception) else r.to_dict(detail, geometry=False)))
     return out
 
 

@@ -124,7 +124,7 @@ class CandidateResult:
         res = self.nuclei.get(nucleus) if nucleus else self.main
         return res.assignment_table() if res else []
 
-    def to_dict(self, detail: bool = False) -> dict:
+    def to_dict(self, detail: bool = False, geometry: bool = True) -> dict:
         d = {"smiles": self.smiles, "score": _r(self.score, 4), "probability": _r(self.probability, 6)}
         if self.name:
             d["name"] = self.name
@@ -206,14 +206,15 @@ class RankResult:
         second = self.runner_up
         return separating_signals(self.best, second, limit) if second is not None else []
 
-    def next_spectrum(self) -> list[str]:
+    def next_spectrum(self, geometry: bool = True) -> list[str]:
         """With #1 not clearly ahead, what a 13C or 1H spectrum not given would add (predictions of the two,
-        :func:`shiftrank.score.separation.next_spectrum`)."""
+        :func:`shiftrank.score.separation.next_spectrum`); ``geometry`` False leaves out the NOE hint, which embeds
+        both candidates' conformers (batch lines)."""
         from .separation import next_spectrum
 
-        return next_spectrum(self, self.solvent)
+        return next_spectrum(self, self.solvent, geometry)
 
-    def to_dict(self, detail: bool = False) -> dict:
+    def to_dict(self, detail: bool = False, geometry: bool = True) -> dict:
         d = {"id": self.id, "ranking": [c.to_dict(detail) for c in self.candidates], "verdict": self.verdict,
              "nuclei": self.nuclei}
         sep = self.separation()
@@ -224,7 +225,7 @@ class RankResult:
             d["notes"] = self.notes
         if detail:
             d["peaks"] = {n: [_peak_dict(p) for p in ps] for n, ps in self.peaks.items()}
-            nxt = self.next_spectrum()
+            nxt = self.next_spectrum(geometry)
             if nxt:
                 d["next_spectrum"] = nxt
         d["model"] = self.model_version

@@ -224,7 +224,7 @@ def _dept_hint(result, first, second) -> list[str]:
     return [f"a DEPT-135 (or an edited HSQC) would tell #1 and #2 apart: #1 has {say(ca)} signals, #2 {say(cb)}"]
 
 
-def next_spectrum(result, solvent: str | None = None) -> list[str]:
+def next_spectrum(result, solvent: str | None = None, geometry: bool = True) -> list[str]:
     """When #1 is not clearly ahead (p below :data:`NEXT_BELOW`), what a 13C or 1H spectrum not given would add:
     the two candidates' predicted spectra are matched class to class (Hungarian matching on the shift
     difference over the combined σ) and the most separated pair, or a difference in the number of expected
@@ -241,7 +241,7 @@ def next_spectrum(result, solvent: str | None = None) -> list[str]:
         return []
     out = _counted_hints(first.smiles, second.smiles, result.counted) + _dept_hint(result, first, second)
     hmbc = ([] if "HMBC" in result.peaks else _hmbc_hint(first.smiles, second.smiles, solvent)) + \
-        ([] if "NOESY" in result.peaks else _noe_hint(first.smiles, second.smiles, solvent))
+        ([] if "NOESY" in result.peaks or not geometry else _noe_hint(first.smiles, second.smiles, solvent))
     if all(n in result.peaks for n in ("13C", "1H")):
         if hmbc:
             return out + hmbc
