@@ -766,8 +766,9 @@ def _hsqc_kind(value, where: str) -> str | None:
 def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcList:
     """Read cross peaks given as ``[δC, δH]`` pairs (or ``[δC, δH, phase]``) or ``{"c": δC, "h": δH,
     "phase": …}`` objects; the phase of a multiplicity-edited HSQC is "CH2" or "CH/CH3" (also
-    "negative"/"positive").  ``experiment`` "HMBC" reads the long-range cross peaks of an HMBC, which have no
-    phase (:func:`hmbc_list`).  A clear error names the entry that cannot be read.
+    "negative"/"positive").  ``experiment`` "HMBC" reads the long-range cross peaks of an HMBC, "COSY" and "NOESY"
+    the ``[δH, δH]`` cross peaks of those spectra (in either order; diagonal peaks set aside, a pair given on both
+    sides of the diagonal read once); none of them has a phase.  A clear error names the entry that cannot be read.
 
     >>> hsqc_list([[128.4, 7.31], {"c": 21.3, "h": 2.35}]).pairs
     [(128.4, 7.31), (21.3, 2.35)]
@@ -884,16 +885,18 @@ def read_hmbc(path: str | Path) -> HsqcList:
 def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
     """Read HSQC cross peaks from a file: a JSON list, or text with one "δC δH" pair per line (separated
     by spaces, a comma, a semicolon or a tab), optionally followed by the phase of an edited spectrum
-    (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped.  ``experiment`` "HMBC"
-    reads an HMBC's cross peaks the same way."""
+    (CH2 or CH/CH3); '#' starts a comment; a header line without numbers is skipped.  ``experiment`` "HMBC",
+    "COSY" or "NOESY" reads those spectra's cross peaks the same way ('δH δH' for the last two).  A Bruker processed
+    2D data set (its folder, with ``pdata/N/2rr``) has its cross peaks picked (:func:`.spectra.read_bruker_2d`)."""
     from .spectra import JCAMP_HEADER, bruker_pdata, read_bruker_2d   # (spectra builds on this module)
 
     if str(path) != "-" and (pdir := bruker_pdata(path)) is not None and (pdir / "2rr").is_file():
         return read_bruker_2d(path, experiment)   # a Bruker 2D data set: its cross peaks are picked
     p, text = _read_file(path)
     if JCAMP_HEADER.search(text[:4000]):
+        dims = "δH δH" if experiment in ("COSY", "NOESY") else "δC δH"
         raise InputError(f"{p.name}: a JCAMP-DX file; 2D spectra are not read: give the {experiment} cross peaks as "
-                         f"'δC δH' pairs, one per line" + (", or the printed HSQC paragraph" if experiment == "HSQC" else ""))
+                         f"'{dims}' pairs, one per line" + (", or the printed HSQC paragraph" if experiment == "HSQC" else ""))
     if p.suffix.lower() == ".json":
         try:
             return hsqc_list(json.loads(text), p.name, experiment)
@@ -917,7 +920,8 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
         except ValueError:
             if not pairs and not any(re.fullmatch(r"-?\d+(\.\d+)?", f) for f in fields):
                 continue   # a header line
-            raise InputError(f"{p.name} line {n}: expected two numbers (δC δH), got {line[:40]!r}") from None
+            raise InputError(f"{p.name} line {n}: expected two numbers "
+                             f"({'δH δH' if experiment in ('COSY', 'NOESY') else 'δC δH'}), got {line[:40]!r}") from None
         if len(nums) != 2 or len(fields) > (3 if experiment == "HSQC" else 2):
             dims = "δH δH" if experiment in ("COSY", "NOESY") else "δC δH"
             raise InputError(f"{p.name} line {n}: expected {dims}" + (" and optionally the edited phase (CH2, CH/CH3)"
