@@ -39,8 +39,8 @@ MAX_TEXT = 200_000  # characters; longer text is refused (a whole article, not a
 _DASHES = "\u2010\u2011\u2012\u2013\u2014\u2015\u2212\u2043\ufe63\uff0d"
 _MOJIBAKE = ("Î´", "â€", "Â", "Ã")
 
-#: 2D correlations other than HSQC/HMQC: sections of their own; an HMBC's δ/δ pairs are read, the others noted and
-#: not used
+#: 2D correlations other than HSQC/HMQC: sections of their own; the δ/δ pairs of an HMBC, COSY, NOESY or ROESY are
+#: read (``_PAIRED_2D``), the rest (and correlations printed only as labels) noted and not used
 OTHER_2D = ("HMBC", "COSY", "NOESY", "ROESY", "TOCSY", "HETCOR")
 # a nucleus header: 1H NMR, ¹H-NMR, 13C{1H} NMR, 13C-APT NMR, 19F NMR, "H NMR" …
 _HEADER = re.compile(
