@@ -124,7 +124,7 @@ class CandidateResult:
         res = self.nuclei.get(nucleus) if nucleus else self.main
         return res.assignment_table() if res else []
 
-    def to_dict(self, detail: bool = False, geometry: bool = True) -> dict:
+    def to_dict(self, detail: bool = False) -> dict:
         d = {"smiles": self.smiles, "score": _r(self.score, 4), "probability": _r(self.probability, 6)}
         if self.name:
             d["name"] = self.name
