@@ -43,7 +43,7 @@ class Separator:
     first: list[str]
     second: list[str]
     kind: str = "line"
-    h: float | None = None     # HSQC, HMBC: the cross peak's δH
+    h: float | None = None     # 2D: the cross peak's second dimension (δH; COSY, NOESY: the smaller δH)
     first_classes: list = field(default_factory=list)    # the classes as data: atoms, predicted, deviation, z
     second_classes: list = field(default_factory=list)
 
@@ -230,8 +230,9 @@ def next_spectrum(result, solvent: str | None = None, geometry: bool = True) -> 
     difference over the combined σ) and the most separated pair, or a difference in the number of expected
     signals, is named; or it is said that the predictions hardly differ; a 19F or 31P count is named where
     the two have different numbers of F or P environments, a DEPT-135 where a 13C list without multiplicities
-    leaves two candidates with different numbers of C, CH, CH2 and CH3 signals.  Predictions, not measurements: a suggestion for
-    the next experiment, not evidence."""
+    leaves two candidates with different numbers of C, CH, CH2 and CH3 signals; the HMBC cross peak and (with
+    ``geometry``: it embeds conformers) the NOE that one candidate predicts and the other cannot, where no such
+    spectrum was given.  Predictions, not measurements: a suggestion for the next experiment, not evidence."""
     from scipy.optimize import linear_sum_assignment
 
     from ..errors import InputError
