@@ -669,12 +669,14 @@ def _sample_options(s) -> None:
     s.add_argument("--dept135", metavar="FILE", help=DEPT135_HELP)
     s.add_argument("--text", metavar="FILE_OR_-", help="printed characterisation text (1H, 13C and HSQC paragraphs, also prose or a pasted assignment table); - reads stdin")
     s.add_argument("--hsqc", help="HSQC cross peaks: one 'δC δH' (or 'δC/δH') pair per line (.txt, .csv), a JSON list of "
-                   "pairs, or a printed HSQC paragraph; - reads stdin")
+                   "pairs, a printed HSQC paragraph, or a Bruker 2D data set (its cross peaks picked); - reads stdin")
     s.add_argument("--hmbc", help="HMBC cross peaks (two- and three-bond H-C correlations): one 'δC δH' (or 'δC/δH') pair "
-                   "per line (.txt, .csv) or a JSON list of pairs; read beside the 1D spectra's assignments; - reads stdin")
-    s.add_argument("--cosy", help="COSY cross peaks (coupled protons): one 'δH δH' pair per line or a JSON list; - reads stdin")
-    s.add_argument("--noesy", help="NOESY or ROESY cross peaks (protons close in space): one 'δH δH' pair per line or a JSON "
-                   "list; judged on RDKit conformers of each candidate; - reads stdin")
+                   "per line (.txt, .csv), a JSON list of pairs, or a Bruker 2D data set; read beside the 1D spectra's "
+                   "assignments; - reads stdin")
+    s.add_argument("--cosy", help="COSY cross peaks (coupled protons): one 'δH δH' pair per line, a JSON list, or a Bruker "
+                   "2D data set; - reads stdin")
+    s.add_argument("--noesy", help="NOESY or ROESY cross peaks (protons close in space): one 'δH δH' pair per line, a JSON "
+                   "list, or a Bruker 2D data set; judged on RDKit conformers of each candidate; - reads stdin")
     s.add_argument("--candidates", nargs="+", metavar="FILE_OR_SMILES",
                    help="SMILES (or InChI) strings and/or structure files (.sdf, .mol, .smi, .csv); or give --reaction")
     s.add_argument("--formula", help="molecular formula of the sample, e.g. C9H9N3O2")
