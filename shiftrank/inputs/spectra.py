@@ -118,13 +118,8 @@ def read_bruker(path: str | Path, nucleus: str = "13C", solvent: str | None = No
                          f"{where}: the processed data cannot be read")
     procs, acqus = dic.get("procs") or {}, dic.get("acqus") or {}
     y = _one_d(data, f"{where}: the processed data")
-    try:
-        offset, sw_p, sf = float(procs["OFFSET"]), float(procs["SW_p"]), float(procs["SF"])
-    except (KeyError, TypeError, ValueError):
-        raise InputError(f"{where}: procs lacks OFFSET, SW_p or SF, which place the spectrum on the ppm scale") from None
-    if sf <= 0 or sw_p <= 0:
-        raise InputError(f"{where}: procs has SF = {sf:g} MHz and SW_p = {sw_p:g} Hz; both must be positive")
-    ppm = offset - np.arange(len(y)) * (sw_p / sf) / len(y)
+    ppm = _axis(procs, len(y), where, "procs")
+    sf = float(procs["SF"])
     found = _bruker_text(acqus.get("NUC1")) or _bruker_text(procs.get("AXNUC"))
     found = found if found in ("1H", "13C") else (None if found in (None, "off") else found)
     if found is not None and found != nucleus:
