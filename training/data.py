@@ -246,6 +246,25 @@ def peaklist_regio_cases(data_dir: Path = DEFAULT_DATA, splits=("val", "test"), 
     return out
 
 
+def _with_both_nuclei(data_dir: Path):
+    """(13C record, 1H record) of every compound with assigned 13C and assigned 1H shifts."""
+    hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
+    for m in load_assigned(data_dir, nucleus="13C"):
+        hm = hmols.get(m.id)
+        if hm is not None:
+            yield m, hm
+
+
+def _database_13c(m: AssignedMol, ranks) -> list[dict]:
+    """The 13C list as a database gives it: one line per class of equivalent carbons, with its CHn."""
+    carbons: dict = {}
+    for a, v in m.shifts.items():
+        atom = m.mol.GetAtomWithIdx(a)
+        carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
+                                      + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
+    return sorted(carbons.values(), key=lambda p: p["shift"])
+
+
 def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[dict]:
     """Positional-isomer ranking cases with HSQC cross peaks built from measured data.
 
@@ -255,12 +274,8 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
     (:func:`shiftrank.chem.isomers.isomers`, the rule the development regio cases were built by), at most
     ``max_candidates``, sorted by SMILES so the truth has no fixed place.  Compounds without such isomers
     are skipped.  'truth' and 'split' (of the skeleton) are for scoring only."""
-    hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
     out = []
-    for m in load_assigned(data_dir, nucleus="13C"):
-        hm = hmols.get(m.id)
-        if hm is None:
-            continue
+    for m, hm in _with_both_nuclei(data_dir):
         phase = {a: "CH2" if m.mol.GetAtomWithIdx(a).GetTotalNumHs() == 2 else "CH/CH3" for a in m.shifts}
         pairs = sorted({(round(m.shifts[a], 2), round(hm.shifts[a], 2), phase[a]) for a in m.shifts
                         if a in hm.shifts and m.mol.GetAtomWithIdx(a).GetTotalNumHs() > 0})
@@ -270,15 +285,9 @@ def hsqc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         cands = regio_candidates(truth, max_candidates)
         if cands is None:
             continue
-        ranks = symmetry_ranks(m.mol)
-        carbons = {}
-        for a, v in m.shifts.items():   # the 13C list as a database gives it: one line per class of equivalent carbons
-            atom = m.mol.GetAtomWithIdx(a)
-            carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
-                                          + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
         out.append({"id": m.id, "hsqc": [list(p[:2]) for p in pairs], "hsqc_edited": [list(p) for p in pairs],
                     "candidates": cands, "solvent": m.solvent,
-                    "peaks": sorted(carbons.values(), key=lambda p: p["shift"]), "truth": truth, "split": m.split})
+                    "peaks": _database_13c(m, symmetry_ranks(m.mol)), "truth": truth, "split": m.split})
     return out
 
 
@@ -316,12 +325,8 @@ def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
     spectrum shows is a chosen model of it."""
     from shiftrank.score.correlations import proton_distances
 
-    hmols = {m.id: m for m in load_assigned(data_dir, nucleus="1H")}
     out = []
-    for m in load_assigned(data_dir, nucleus="13C"):
-        hm = hmols.get(m.id)
-        if hm is None:
-            continue
+    for m, hm in _with_both_nuclei(data_dir):
         dist = Chem.GetDistanceMatrix(m.mol)
         ranks = symmetry_ranks(m.mol)
         real, ideal = set(), set()
@@ -343,11 +348,7 @@ def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         cands = regio_candidates(truth, max_candidates)
         if cands is None:
             continue
-        carbons, protons = {}, {}
-        for a, v in m.shifts.items():
-            atom = m.mol.GetAtomWithIdx(a)
-            carbons.setdefault(ranks[a], {"shift": round(v, 2), "multiplicity": "C" + ("H" * (atom.GetTotalNumHs() > 0))
-                                          + (str(atom.GetTotalNumHs()) if atom.GetTotalNumHs() > 1 else "")})
+        protons = {}
         for a, v in hm.shifts.items():
             protons.setdefault(ranks[a], round(v, 2))
         cosy, noesy = set(), set()
@@ -365,6 +366,6 @@ def hmbc_cases(data_dir: Path = DEFAULT_DATA, max_candidates: int = 12) -> list[
         out.append({"id": m.id, "hmbc": sorted(map(list, real)), "hmbc_ideal": sorted(map(list, ideal)),
                     "cosy": sorted(map(list, cosy)), "noesy": sorted(map(list, noesy)),
                     "candidates": cands, "solvent": m.solvent,
-                    "peaks": sorted(carbons.values(), key=lambda p: p["shift"]),
+                    "peaks": _database_13c(m, ranks),
                     "peaks_1h": sorted(protons.values()), "truth": truth, "split": m.split})
     return out
