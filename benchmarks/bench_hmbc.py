@@ -29,6 +29,7 @@ import numpy as np  # noqa: E402
 REPO = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(REPO))
 
+from bench_hsqc import truth_ranks  # noqa: E402 - (this folder is on the path when a benchmark is run)
 from training.data import DEFAULT_DATA, hmbc_cases  # noqa: E402
 
 
@@ -73,14 +74,9 @@ def main() -> int:
         built = [{"id": c["id"], "candidates": c["candidates"], "solvent": c["solvent"], **make(c)} for c in cases]
         built = [{k: v for k, v in b.items() if v != []} for b in built]   # (a compound without such pairs: not given)
         t0 = time.perf_counter()
-        ranks = []
-        for c, r in zip(cases, rank_many(built)):
-            if isinstance(r, Exception):
-                ranks.append(len(c["candidates"]))
-                continue
-            ranks.append([x.smiles for x in r.candidates].index(c["truth"]) + 1)
+        results = rank_many(built)
         dt = time.perf_counter() - t0
-        ranks = np.array(ranks)
+        ranks = truth_ranks(cases, results)
         print(f"  {label:<40} top-1 {100 * np.mean(ranks == 1):5.1f} %  (validation {100 * np.mean(ranks[~test] == 1):5.1f} %, "
               f"test {100 * np.mean(ranks[test] == 1):5.1f} %)  MRR {np.mean(1 / ranks):.3f}  "
               f"{sum(len(c['candidates']) for c in cases) / dt:,.0f} candidates/s")

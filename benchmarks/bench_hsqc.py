@@ -37,6 +37,17 @@ MODES = {
 }
 
 
+def truth_ranks(cases: list[dict], results: list) -> np.ndarray:
+    """The rank of each case's truth among its ranked candidates (a case that could not be ranked: last)."""
+    ranks = []
+    for c, r in zip(cases, results):
+        if isinstance(r, Exception):
+            ranks.append(len(c["candidates"]))
+            continue
+        ranks.append([x.smiles for x in r.candidates].index(c["truth"]) + 1)
+    return np.array(ranks)
+
+
 def main() -> int:
     ap = argparse.ArgumentParser()
     ap.add_argument("--data", type=Path, default=DEFAULT_DATA)
@@ -50,13 +61,7 @@ def main() -> int:
           f"{n_cand:.1f} candidates per case on average (chance top-1 {100 * np.mean([1 / len(c['candidates']) for c in cases]):.0f} %)")
     for label, make in MODES.items():
         built = [{"id": c["id"], "candidates": c["candidates"], "solvent": c["solvent"], **make(c)} for c in cases]
-        ranks = []
-        for c, r in zip(cases, rank_many(built)):
-            if isinstance(r, Exception):
-                ranks.append(len(c["candidates"]))
-                continue
-            ranks.append([x.smiles for x in r.candidates].index(c["truth"]) + 1)
-        ranks = np.array(ranks)
+        ranks = truth_ranks(cases, rank_many(built))
         print(f"  {label:<42} top-1 {100 * np.mean(ranks == 1):5.1f} %  (test split alone {100 * np.mean(ranks[test] == 1):5.1f} %)"
               f"  top-2 {100 * np.mean(ranks <= 2):5.1f} %  MRR {np.mean(1 / ranks):.3f}")
     return 0
