@@ -25,7 +25,7 @@ import numpy as np
 
 from ..errors import InputError
 from .formula import dbe, dbe_note, hill, ion_label, ion_mz, neutral_parent, sample_formula
-from ..inputs.peaks import DOUBLED_GAP, PeakList, doubled_pairs
+from ..inputs.peaks import DOUBLED_GAP, ON_LINE, PeakList, doubled_pairs, nearest_line
 from ..inputs.solvents import exchanges_deuterium
 from ..words import count
 
@@ -332,23 +332,6 @@ def take_inventory(c13: PeakList | None, h1: PeakList | None = None, formula: st
     return inv
 
 
-#: ppm within which a cross peak's δ is read as a 1D line (the HMBC's indirect 13C dimension is coarse)
-ON_LINE_1H, ON_LINE_13C = 0.04, 0.6
-
-
-def _line_of(delta: float, peaks, tol: float):
-    """The 1D line (not solvent) that ``delta`` lies on or nearest within ``tol`` ppm, or None."""
-    best = None
-    for p in peaks or ():
-        if p.solvent is not None:
-            continue
-        lo, hi = (p.lo, p.hi) if getattr(p, "lo", None) is not None else (p.shift, p.shift)
-        d = 0.0 if lo <= delta <= hi else min(abs(delta - lo), abs(delta - hi))
-        if d <= tol and (best is None or d < best[0]):
-            best = (d, p)
-    return None if best is None else best[1]
-
-
 def spin_systems(pairs, h1: PeakList | None = None) -> list[str]:
     """The spin systems a COSY shows: groups of 1H signals joined by cross peaks (each cross peak's two δH read
     as the 1H lines they lie on, within 0.04 ppm, when a 1H list is given), largest first, with the protons their
@@ -358,8 +341,8 @@ def spin_systems(pairs, h1: PeakList | None = None) -> list[str]:
     ['COSY spin systems (coupled 1H signals): 7.72, 7.40, 7.15; 4.46, 1.54']
     """
     def node(d):
-        line = _line_of(d, h1.peaks if h1 is not None else (), ON_LINE_1H)
-        return (round(line.shift, 3), line) if line is not None else (round(d, 3), None)
+        j = nearest_line(d, h1.peaks, ON_LINE["1H"]) if h1 is not None else None
+        return (round(h1.peaks[j].shift, 3), h1.peaks[j]) if j is not None else (round(d, 3), None)
 
     parent: dict = {}
 
@@ -399,10 +382,10 @@ def carbons_seen_in_hmbc(pairs, c13: PeakList) -> list[str]:
     >>> carbons_seen_in_hmbc([(149.0, 4.2), (149.2, 7.9), (123.6, 7.9)], peak_text("123.6, 40.3"))
     ['HMBC: a carbon at δC 149.1 that the 13C list does not have (2 cross peaks; a quaternary carbon too weak in 1D?)']
     """
-    off = sorted(c for c, _ in pairs if _line_of(c, c13.peaks, ON_LINE_13C) is None)
+    off = sorted(c for c, _ in pairs if nearest_line(c, c13.peaks, ON_LINE["13C"]) is None)
     groups: list[list[float]] = []
     for c in off:
-        if groups and c - groups[-1][-1] <= ON_LINE_13C:
+        if groups and c - groups[-1][-1] <= ON_LINE["13C"]:
             groups[-1].append(c)
         else:
             groups.append([c])

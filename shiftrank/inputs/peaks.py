@@ -840,6 +840,27 @@ def hsqc_list(records, source: str = "hsqc", experiment: str = "HSQC") -> HsqcLi
 
 #: COSY / NOESY: a cross peak whose two δH lie closer than this (ppm) is on the diagonal
 DIAGONAL = 0.02
+#: how far (ppm) a cross peak's δ may lie from a line of the 1D list of its nucleus to be read as that line (the
+#: indirect dimension is digitised coarsely); chosen
+ON_LINE = {"13C": 0.6, "1H": 0.04}
+
+
+def nearest_line(delta: float, peaks, tol: float) -> int | None:
+    """Index of the 1D line (not a solvent line) that a cross peak's ``delta`` lies on (inside its printed range) or
+    nearest to within ``tol`` ppm; None when it lies on none.
+
+    >>> nearest_line(7.41, [Peak(7.26, solvent="CDCl3"), Peak(7.40), Peak(2.35)], 0.04)
+    1
+    """
+    best = None
+    for j, p in enumerate(peaks or ()):
+        if p.solvent:
+            continue
+        lo, hi = (p.lo, p.hi) if getattr(p, "lo", None) is not None else (p.shift, p.shift)
+        d = 0.0 if lo <= delta <= hi else min(abs(delta - lo), abs(delta - hi))
+        if d <= tol and (best is None or d < best[0]):
+            best = (d, j)
+    return None if best is None else best[1]
 
 
 def cosy_list(records, source: str = "cosy") -> HsqcList:
@@ -939,6 +960,6 @@ def read_hsqc(path: str | Path, experiment: str = "HSQC") -> HsqcList:
 
 
 __all__ = ["Peak", "PeakList", "HsqcList", "parse_peaks", "read_peaks", "read_hsqc", "hsqc_list", "read_hmbc", "hmbc_list",
-           "read_cosy", "cosy_list", "read_noesy", "noesy_list",
+           "read_cosy", "cosy_list", "read_noesy", "noesy_list", "nearest_line",
            "peaks_from_records",
            "flag_solvent", "SOLVENTS"]

@@ -24,7 +24,7 @@ from rdkit import Chem
 from rdkit.Chem import AllChem
 
 from ..chem.couplings import expected_multiplets
-from ..inputs.peaks import HsqcList
+from ..inputs.peaks import ON_LINE, HsqcList, nearest_line
 from ..words import count
 from .evidence import CORRELATIONS, EVIDENCE, MODELS_FOR, ClassMeans, NucleusResult, _carbon_classes, _Evidence
 from .matching import Assignment, MatchCosts, ObservedPeak, Pairing, PeakSet, SignalClass, t_cost
@@ -37,9 +37,6 @@ HMBC_BONDS = (2, 3)
 #: validation-split compounds of ``benchmarks/bench_hmbc.py``, whose cross peaks are built from measured shifts;
 #: COSY and NOESY: the same, chosen by analogy (the open data holds no such spectra)
 OTHER = {"HMBC": 0.2, "COSY": 0.2, "NOESY": 0.2}
-#: how far (ppm) a cross peak's δ may lie from a 1D line to be read as that line (the indirect dimension is
-#: digitised coarsely); chosen
-ON_LINE = {"13C": 0.6, "1H": 0.04}
 #: the weight of the 1D assignment itself beside what the shifts allow, in the posterior of which class sits on a
 #: line (two classes predicted close together may have been assigned either way)
 HARD_SHARE = 0.25
@@ -152,17 +149,7 @@ class _Side:
         """Probability of each class (and, last, of none of them) being the atom behind a cross peak's δ in this
         dimension.  On a 1D line: the assignment's classes there (``HARD_SHARE``) and what the shifts allow; off the
         lines or without a 1D spectrum: the shifts alone, against 'none' at ``NONE_COST`` nats."""
-        line = None
-        if self.lines:
-            best = None
-            for j, p in enumerate(self.lines):
-                if p.solvent:
-                    continue
-                lo, hi = (p.lo, p.hi) if p.lo is not None else (p.shift, p.shift)
-                d = 0.0 if lo <= delta <= hi else min(abs(delta - lo), abs(delta - hi))
-                if d <= ON_LINE[self.nucleus] and (best is None or d < best[0]):
-                    best = (d, j)
-            line = None if best is None else best[1]
+        line = nearest_line(delta, self.lines, ON_LINE[self.nucleus])
         if line is not None:
             p = self.lines[line]
             lo, hi = (p.lo, p.hi) if p.lo is not None else (p.shift, p.shift)
