@@ -24,6 +24,8 @@ from rdkit.Chem.Draw import rdMolDraw2D  # noqa: E402
 from .. import __version__  # noqa: E402
 from ..errors import InputError  # noqa: E402
 from ..inputs.molecules import to_mol  # noqa: E402
+from ..score.correlations import RELATION  # noqa: E402
+from ..score.evidence import CORRELATIONS  # noqa: E402
 from ..score.ranking import CAUTION, CandidateResult, RankResult  # noqa: E402
 from ..words import count  # noqa: E402
 
@@ -246,8 +248,7 @@ def _correlation_block(res, rank_no: int, c: CandidateResult | None = None) -> s
         rows.append(f"<tr><td class=num>{row['observed']:.2f} / {row['observed_h']:.2f}</td>"
                     f"<td>{','.join(map(str, row['atoms']))}</td><td>{','.join(map(str, row['h_atoms']))}</td>"
                     f"<td class=num>{far}</td><td class=num>{row['cost']:.2f}</td><td>{note}</td></tr>")
-    relation = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
-                "NOESY": "close in space (within about 4 Å)"}[n]
+    relation = RELATION[n]
     n_far = len(res.far_cross_peaks)
     summary = f"{n}: {count(res.observed_signals, 'cross peak')}, {n_far} whose ends are not {relation} · cost {res.cost:.1f} nats"
     heads = ("δC / δH", "C atoms", "H on atoms") if hmbc else ("δH / δH", "H on atoms", "H on atoms")
@@ -268,7 +269,7 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
                    sep=()) -> str:
     e = html.escape
     res = c.nuclei[nucleus]
-    if nucleus in ("HMBC", "COSY", "NOESY"):
+    if nucleus in CORRELATIONS:
         return _correlation_block(res, rank_no, c if with_plots else None)
     rows = []
     for row in res.assignment_table():
@@ -335,7 +336,7 @@ def _sample_section(k: int, result: RankResult, lists=None, history=None, invent
     for n in result.nuclei:
         ps = result.peaks[n]
         n_obs = sum(1 for p in ps if not p.solvent)
-        unit = " cross peak" if n in ("HSQC", "HMBC", "COSY", "NOESY") else " signal"
+        unit = " cross peak" if n in ("HSQC",) + CORRELATIONS else " signal"
         bits.append(f"{count(n_obs, n + unit)}" + (f" (+{len(ps) - n_obs} solvent)" if len(ps) > n_obs else ""))
     parts.append(f"<p class='sub'>{' · '.join(bits)}</p>")
     parts.append(f"<div class='verdict'>{e(result.verdict)}</div>")

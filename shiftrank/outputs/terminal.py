@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import sys
 
+from ..score.evidence import CORRELATIONS as CORRELATED   # (the 2D experiments read as correlations between atoms)
 from ..score.ranking import CAUTION
 from ..words import count
 
@@ -14,8 +15,6 @@ def _fmt(x, spec: str, width: int) -> str:
 #: the input fields that can carry each spectrum (a printed paragraph may carry any of them)
 SOURCES = {"13C": ("peaks", "text"), "1H": ("peaks_1h", "text"), "HSQC": ("hsqc", "text"), "HMBC": ("hmbc", "text"),
            "COSY": ("cosy", "text"), "NOESY": ("noesy", "text")}
-#: the 2D experiments whose cross peaks are read as correlations between atoms
-CORRELATED = ("HMBC", "COSY", "NOESY")
 
 
 def peak_sources(given: dict) -> dict:

@@ -57,8 +57,8 @@ NOE_SEED = 20261205
 #: Å between the two protons of a CH2 (sp3 geometry; from memory)
 GEMINAL_HH = 1.8
 
-# the words each experiment's relation is said in
-_RELATION = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
+#: the words each experiment's relation is said in
+RELATION = {"HMBC": "two or three bonds apart", "COSY": "coupled (three or four bonds apart)",
              "NOESY": "close in space (within about 4 Å)"}
 
 
@@ -289,7 +289,7 @@ class CorrelationEvidence(_Evidence):
         n = len(res.far_cross_peaks)
         what = "carbon and proton are" if self.nucleus == "HMBC" else "two protons are"
         return [f"{count(n, self.nucleus + ' cross peak', self.nucleus + ' cross peaks')} whose {what} not "
-                f"{_RELATION[self.nucleus]} in this candidate (as its 1D assignments and shifts read them)"] if n else []
+                f"{RELATION[self.nucleus]} in this candidate (as its 1D assignments and shifts read them)"] if n else []
 
 
 for _n in CORRELATIONS:

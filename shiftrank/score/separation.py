@@ -23,11 +23,12 @@ from functools import lru_cache
 import numpy as np
 
 from ..words import count
+from .evidence import CORRELATIONS
 
 #: shares smaller than this (ln odds) are not shown: a factor of about 1.35 either way
 MIN_SHARE = 0.3
 #: spectra whose lines are split (an HSQC or HMBC line is a cross peak, named δC/δH)
-NUCLEI = ("13C", "1H", "HSQC", "HMBC", "COSY", "NOESY")
+NUCLEI = ("13C", "1H", "HSQC") + CORRELATIONS
 
 
 @dataclass
@@ -84,7 +85,7 @@ def _row(res, pairing) -> dict:
     """One class placed on (or missing from) a line, as data."""
     c = res.classes[pairing.cls]
     r = lambda x: None if x is None else round(float(x), 3)  # noqa: E731
-    if res.nucleus in ("HMBC", "COSY", "NOESY"):
+    if res.nucleus in CORRELATIONS:
         return {"atoms": list(c.atoms), "h_atoms": list(c.h_atoms), "bonds": c.bonds, "distance": r(c.distance)}
     return {"atoms": list(c.atoms), "multiplicity": c.multiplicity, "predicted": r(c.shift), "sigma": r(c.sigma),
             "deviation": r(pairing.deviation), "z": r(pairing.z)}
@@ -93,7 +94,7 @@ def _row(res, pairing) -> dict:
 def _describe(res, pairing) -> str:
     c = res.classes[pairing.cls]
     atoms = ",".join(str(a) for a in c.atoms)
-    if res.nucleus in ("HMBC", "COSY", "NOESY"):   # which atoms the cross peak joins, and how far apart they are
+    if res.nucleus in CORRELATIONS:   # which atoms the cross peak joins, and how far apart they are
         h = ",".join(str(a) for a in c.h_atoms)
         if res.nucleus == "HMBC":
             return f"C atom{'s' if len(c.atoms) > 1 else ''} {atoms} – H on {h}: {c.bonds} bonds" + (
@@ -147,7 +148,7 @@ def separating_signals(first, second, limit: int | None = 4, min_share: float = 
             out.append(Separator(n, pk.shift, rng, share,
                                  [_describe(a, p) for p in on_a[j]] or ["no class (an unexplained line)"],
                                  [_describe(b, p) for p in on_b[j]] or ["no class (an unexplained line)"],
-                                 h=pk.h_lo if n in ("HSQC", "HMBC", "COSY", "NOESY") else None,
+                                 h=pk.h_lo if n in ("HSQC",) + CORRELATIONS else None,
                                  first_classes=[_row(a, p) for p in on_a[j]], second_classes=[_row(b, p) for p in on_b[j]]))
         gone_a = [p for p in a.assignment.pairings if p.peak is None]
         gone_b = [p for p in b.assignment.pairings if p.peak is None]
