@@ -194,7 +194,7 @@ class CorrelationEvidence(_Evidence):
 
     def __init__(self, nucleus: str):
         self.nucleus = nucleus
-        self.dims = ("13C", "1H") if nucleus == "HMBC" else ("1H", "1H")
+        self.part = "geometry" if nucleus == "NOESY" else "connectivity"   # the name of its cost part
 
     def observed(self, pl: HsqcList) -> list[ObservedPeak]:
         # each cross peak stands alone (one carbon correlates with many protons, one proton with many others);
@@ -241,7 +241,7 @@ class CorrelationEvidence(_Evidence):
         if not side_a.atoms or not side_h.atoms:   # no protons (or no carbons): no cross peak is this candidate's
             cost = float(-np.log(other))
             a = Assignment([], list(range(len(peaks))), cost * len(peaks),
-                           {"connectivity" if self.nucleus != "NOESY" else "geometry": cost * len(peaks)},
+                           {self.part: cost * len(peaks)},
                            extra_costs=(cost,) * len(peaks))
             res = NucleusResult(self.nucleus, [], list(peaks), a)
             res.far_cross_peaks = list(range(len(peaks)))
@@ -278,7 +278,7 @@ class CorrelationEvidence(_Evidence):
             if p < 0.5:
                 unexplained.append(k)
         total = float(sum(costs_of))
-        a = Assignment(pairings, [], total, {"connectivity" if self.nucleus != "NOESY" else "geometry": total},
+        a = Assignment(pairings, [], total, {self.part: total},
                        extra_costs=tuple(costs_of))
         res = NucleusResult(self.nucleus, classes, list(peaks), a)
         res.far_cross_peaks = unexplained
