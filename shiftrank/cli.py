@@ -547,7 +547,7 @@ def cmd_isomers(args) -> int:
         if not alts:
             others = [k for k in ("positional", "ambident", "tautomer") if k not in args.kind.split(",")]
             print("  none: no ring substituent can move to a position that is not equivalent by symmetry"
-                  + (", and no group sits on an ambident site (N against O, N1 against N2, N against S)" if "ambident" in args.kind else "")
+                  + (", and no group sits on an ambident site (N against O, N1 against N2, N against S, N against C of a pyrrole or indole)" if "ambident" in args.kind else "")
                   + (f"; other kinds: --kind {','.join(others)}" if others else "")
                   + "; the products of a named reaction: --reaction NAME --reactants A.B")
     else:

@@ -539,3 +539,22 @@ def test_the_heteroatom_tautomer_check_keeps_keto_and_enol_apart():
     from shiftrank.chem.isomers import _heteroatom_tautomer_key as tkey
     assert tkey(Chem.MolFromSmiles("CC(=O)CC(C)=O")) != tkey(Chem.MolFromSmiles("CC(O)=CC(C)=O"))
     assert tkey(Chem.MolFromSmiles("Oc1ccccn1")) == tkey(Chem.MolFromSmiles("O=c1cccc[nH]1"))
+
+
+def test_c_against_n_alkylation_and_acylation_of_pyrrole_type_rings():
+    # an indole anion or a pyrrole alkylates or acylates at N1 or at a ring carbon, C3 first for an indole
+    # (common practice): 1-benzylindole -> 3- and 2-benzyl-1H-indole; 1-acetylindole -> 3- and 2-acetylindole;
+    # 1-methylpyrrole -> 2- and 3-methylpyrrole (hand count: the free CH of the five-membered ring)
+    alts = isomers("c1ccc2c(c1)ccn2Cc1ccccc1", kinds=("ambident",))
+    assert keys(alts) == {key("c1ccc(Cc2c[nH]c3ccccc23)cc1"), key("c1ccc(Cc2cc3ccccc3[nH]2)cc1")}
+    c3 = next(a for a in alts if "C3 of the indole" in a.relation)
+    assert c3.relation == "CH2C6H5 on C3 of the indole (atom 6) instead of N1 (atom 8): C- rather than N-alkylation"
+    acyl = isomers("CC(=O)n1ccc2ccccc21", kinds=("ambident",))
+    assert keys(acyl) == {key("CC(=O)c1c[nH]c2ccccc12"), key("CC(=O)c1cc2ccccc2[nH]1")}
+    assert all(a.relation.endswith("C- rather than N-acylation") for a in acyl)
+    assert keys(isomers("Cn1cccc1", kinds=("ambident",))) == {key("Cc1ccc[nH]1"), key("Cc1cc[nH]c1")}
+    # a substituted C3 leaves C2 only; an N-aryl group does not go onto a ring carbon; an azole with a second
+    # ring N keeps its N1/N2 alternatives instead (1-ethylindazole: N2 only)
+    assert keys(isomers("Cc1ccc2c(c1)c(C)cn2C", kinds=("ambident",))) == {key("Cc1ccc2[nH]c(C)c(C)c2c1")}
+    assert isomers("c1ccc(cc1)-n1ccc2ccccc21", kinds=("ambident",)) == []
+    assert keys(isomers("CCn1ncc2ccccc21", kinds=("ambident",))) == {key("CCn1cc2ccccc2n1")}

@@ -13,7 +13,8 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
   O-acylation where a molecule has a free amine or hydroxy group besides its acyl group (aminophenols,
   amino alcohols, diols: which nucleophile took the acyl group);
   N1 against N2 (against N3 …) of azoles (pyrazole, imidazole, triazoles, tetrazole, indazole,
-  benzimidazole); C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
+  benzimidazole); C- against N-alkylation or acylation of pyrroles, indoles and azaindoles (C2, C3 for N1);
+  C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
 * **tautomer**: RDKit's tautomer enumerator, without forms that give up an aromatic ring;
 * a **reaction SMARTS** with its reactants: every product RDKit's reaction engine gives.
 
@@ -593,6 +594,38 @@ def _azole_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+def _pyrrole_c_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """C- against N-alkylation or acylation of a pyrrole-type ring (pyrrole, indole, azaindoles: a five-membered
+    aromatic ring whose only heteroatom is that N): the alkyl or acyl group on the ring N moved to each ring CH of
+    the same five-membered ring, the N taking the H back (an indole alkylated or acylated at C3, or C2, instead of
+    N1; common practice).  Azoles with a second ring N have their N1/N2 alternatives (:func:`_azole_moves`) instead,
+    and aryl and sulfonyl groups, which do not go onto ring carbons under those conditions, are not moved."""
+    out = []
+    for system in _ring_systems(mol):
+        for r, x, name in _substituents(mol, system):
+            a = mol.GetAtomWithIdx(r)
+            if a.GetAtomicNum() != 7 or not a.GetIsAromatic() or a.GetFormalCharge():
+                continue
+            kind = _group_kind(mol, x)
+            if kind not in ("alkyl", "acyl"):
+                continue
+            for ring in mol.GetRingInfo().AtomRings():
+                if len(ring) != 5 or r not in ring or not set(ring) <= system:
+                    continue
+                if any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in ring if i != r):
+                    continue
+                for t in ring:
+                    if t == r or not _free(mol, t):
+                        continue
+                    m = _reattach(mol, [(r, x, t)])
+                    if _neutral_closed_shell(m) and m.GetAtomWithIdx(r).GetTotalNumHs() == 1:
+                        site = _locant(mol, t) or f"ring atom {t}"
+                        frm = (_locant(mol, r) or "ring N").split(" of the ")[0]
+                        out.append((m, f"{name} on {site} (atom {t}) instead of {frm} (atom {r}): C- rather than "
+                                       f"N-{'alkylation' if kind == 'alkyl' else 'acylation'}"))
+    return out
+
+
 def _lactam_n_moves(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """N1 against N3 of a ring lactam (a pyrimidinone, uracil, quinazolinone, xanthine-type ring): the group
     on one ring N moved to another ring N of the same aromatic system that carries a ring C=O; to an N-H the
@@ -860,7 +893,7 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     global _DICARBONYL_RXNS
     if _DICARBONYL_RXNS is None:
         _DICARBONYL_RXNS = [(AllChem.ReactionFromSmarts(s), lab) for s, lab in _DICARBONYL]
-    out = _azole_moves(mol) + _lactam_n_moves(mol) + _n_o_moves(mol) + _alkoxy_azine_moves(mol) + _acyl_moves(mol)
+    out = _azole_moves(mol) + _pyrrole_c_moves(mol) + _lactam_n_moves(mol) + _n_o_moves(mol) + _alkoxy_azine_moves(mol) + _acyl_moves(mol)
     kek = Chem.Mol(mol)
     try:
         Chem.Kekulize(kek, clearAromaticFlags=True)
