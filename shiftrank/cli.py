@@ -806,13 +806,28 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
+#: Where the files of a command go, for the message when one is given without its option.
+_FILE_OPTIONS = {
+    "rank": "--peaks FILE (13C), --peaks-1h FILE (1H), --text FILE (a printed paragraph), --candidates FILE_OR_SMILES …",
+    "report": "--peaks FILE (13C), --peaks-1h FILE (1H), --text FILE (a printed paragraph), --candidates FILE_OR_SMILES …",
+    "inventory": "--peaks FILE (13C), --peaks-1h FILE (1H), --text FILE (a printed paragraph)",
+}
+
 #: Exit status of an unexpected failure inside shiftrank (bad input is 2).
 INTERNAL_ERROR = 3
 
 
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
-    args = parser.parse_args(argv)
+    args, extra = parser.parse_known_args(argv)
+    if extra:
+        # argparse would print the whole usage; name what was not understood and where such a value goes
+        where = f"shiftrank {args.command}" if getattr(args, "command", None) else "shiftrank"
+        hint = f"see {where} --help"
+        if getattr(args, "command", None) in _FILE_OPTIONS and not extra[0].startswith("-"):
+            hint = f"files and structures are given with an option: {_FILE_OPTIONS[args.command]}"
+        print(f"{where}: error: unrecognized arguments: {' '.join(extra)} ({hint})", file=sys.stderr)
+        return 2
     if not getattr(args, "func", None):
         parser.print_help()
         return 0

@@ -30,6 +30,15 @@ def test_missing_file_exit_2():
     assert r.returncode == 2 and "no such file" in r.stderr
 
 
+def test_a_file_given_without_its_option_is_named_with_where_it_goes(tmp_path):
+    p = tmp_path / "c13.txt"
+    p.write_text("50.1\n128.8\n")
+    r = run("rank", str(p), "--candidates", "CCO")
+    assert r.returncode == 2 and r.stderr.strip().count("\n") == 0
+    assert "unrecognized arguments" in r.stderr and "--peaks FILE (13C)" in r.stderr
+    r = run("rank", "--peaks", str(p), "--candidates", "CCO", "--no-such-option")
+    assert r.returncode == 2 and "see shiftrank rank --help" in r.stderr and "usage:" not in r.stderr
+
 def test_formula_command():
     r = run("formula", "C6H5Br")
     assert r.returncode == 0 and "DBE 4" in r.stdout
