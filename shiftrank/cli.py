@@ -527,7 +527,7 @@ def cmd_report(args) -> int:
 
 
 def cmd_isomers(args) -> int:
-    from .chem.isomers import isomers
+    from .chem.isomers import KINDS, isomers
 
     if not args.smiles and not args.reaction:
         raise InputError("isomers: give a SMILES, or --reaction SMARTS with --reactants")
@@ -545,9 +545,14 @@ def cmd_isomers(args) -> int:
     if args.smiles:
         print(f"{count(len(alts), 'alternative')} to {args.smiles} ({args.kind}):")
         if not alts:
-            others = [k for k in ("positional", "ambident", "tautomer") if k not in args.kind.split(",")]
-            print("  none: no ring substituent can move to a position that is not equivalent by symmetry"
-                  + (", and no group sits on an ambident site (N against O, N1 against N2, N against S, N against C of a pyrrole or indole)" if "ambident" in args.kind else "")
+            others = [k for k in KINDS if k not in args.kind.split(",")]
+            asked = args.kind.split(",")
+            why = {"positional": "no ring substituent can move to a position that is not equivalent by symmetry",
+                   "ambident": "no group sits on an ambident site (N against O, N1 against N2, N against S, N against C "
+                               "of a pyrrole or indole)",
+                   "tautomer": "no tautomer keeps the aromatic rings and moves H between heteroatoms",
+                   "stereo": "no double bond has its E/Z configuration drawn"}
+            print("  none: " + ", and ".join(why[k] for k in KINDS if k in asked)
                   + (f"; other kinds: --kind {','.join(others)}" if others else "")
                   + "; the products of a named reaction: --reaction NAME --reactants A.B")
     else:
@@ -790,7 +795,7 @@ def build_parser() -> argparse.ArgumentParser:
                        epilog="named reactions (--reaction NAME; also for rank):\n"
                               + "\n".join(f"  {k:<14} {r.what}" for k, r in REACTIONS.items()))
     s.add_argument("smiles", nargs="?", help="the intended product (SMILES)")
-    s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer")
+    s.add_argument("--kind", default="positional,ambident", help="comma list of positional, ambident, tautomer, stereo (E/Z of each double bond the SMILES states)")
     s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="a named reaction (listed below; run on the reactants' "
                    "NH/OH tautomers too) or a reaction SMARTS; every product is listed")
     s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")

@@ -142,4 +142,4 @@ def test_isomers_says_why_there_is_no_alternative():
     # toluene: every ring position of a lone methyl is equivalent (symmetry; common practice)
     r = run("isomers", "Cc1ccccc1", "--kind", "positional")
     assert r.returncode == 0 and "0 alternatives" in r.stdout
-    assert "equivalent by symmetry" in r.stdout and "--kind ambident,tautomer" in r.stdout
+    assert "equivalent by symmetry" in r.stdout and "--kind ambident,tautomer,stereo" in r.stdout

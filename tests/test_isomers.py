@@ -558,3 +558,34 @@ def test_c_against_n_alkylation_and_acylation_of_pyrrole_type_rings():
     assert keys(isomers("Cc1ccc2c(c1)c(C)cn2C", kinds=("ambident",))) == {key("Cc1ccc2[nH]c(C)c(C)c2c1")}
     assert isomers("c1ccc(cc1)-n1ccc2ccccc21", kinds=("ambident",)) == []
     assert keys(isomers("CCn1ncc2ccccc21", kinds=("ambident",))) == {key("CCn1cc2ccccc2n1")}
+
+
+def test_e_against_z_of_each_double_bond_the_drawing_states():
+    # methyl (E)-cinnamate -> its Z isomer; a Wittig or Horner-Wadsworth-Emmons product is one or the other
+    # (common practice); the kind keeps stereochemistry, unlike the others, which remove duplicates without it
+    def canon(s):
+        return Chem.MolToSmiles(Chem.MolFromSmiles(s))
+    (alt,) = isomers("COC(=O)/C=C/c1ccccc1", kinds=("stereo",))
+    assert alt.smiles == canon("COC(=O)/C=C\\c1ccccc1") and alt.kind == "stereo"
+    assert alt.relation == "C=C (atoms 4=5) Z instead of E"
+    # a drawing that leaves the bond open claims nothing to test; a ring double bond has no E/Z
+    assert isomers("COC(=O)C=Cc1ccccc1", kinds=("stereo",)) == []
+    assert isomers("CC1=CCCCC1", kinds=("stereo",)) == []
+    # an (E)-alkenyl (Z)-oxime: each bond flipped on its own (hand count: two alternatives)
+    alts = isomers("CC(/C=C/C)=N/O", kinds=("stereo",))
+    assert {a.smiles for a in alts} == {canon("C/C=C\\C(C)=N/O"), canon("C/C=C/C(C)=N/O")}
+    assert {a.relation for a in alts} == {"C=C (atoms 2=3) Z instead of E", "C=N (atoms 1=5) E instead of Z"}
+    # (E,E)-1,4-difluorobutadiene: flipping either bond gives the one (E,Z) compound
+    assert len(isomers("F/C=C/C=C/F", kinds=("stereo",))) == 1
+
+
+def test_ranking_with_e_z_alternatives_reads_the_vinyl_coupling():
+    # a trans-vinyl 3J of 16 Hz (common practice: trans 12-18 Hz, cis 6-12 Hz); invented list in the usual form
+    from shiftrank.score.ranking import rank
+
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.69 (d, J = 16.0 Hz, 1H), 7.55–7.50 (m, 2H), 7.41–7.36 (m, 3H), "
+            "6.45 (d, J = 16.0 Hz, 1H), 3.81 (s, 3H).")
+    r = rank(text=text, candidates=["COC(=O)/C=C\\c1ccccc1"], with_isomers="stereo")
+    assert len(r.candidates) == 2
+    top = r.candidates[0]
+    assert top.generated and top.name == "C=C (atoms 4=5) E instead of Z" and top.probability > 0.7

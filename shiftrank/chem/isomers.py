@@ -16,6 +16,8 @@ spectrum supports.  :func:`isomers` generates them with a short relation label e
   benzimidazole); C- against N-alkylation or acylation of pyrroles, indoles and azaindoles (C2, C3 for N1);
   C- against O-alkylation of enolisable 1,3-dicarbonyls (both ways);
 * **tautomer**: RDKit's tautomer enumerator, without forms that give up an aromatic ring;
+* **stereo**: each double bond whose E/Z configuration the given structure states, drawn the other way (on
+  request; kept apart from the given structure by its stereochemistry, unlike every other kind);
 * a **reaction SMARTS** with its reactants: every product RDKit's reaction engine gives.
 
 Valences and charges are checked by RDKit sanitisation; duplicates (:func:`structure_key`: the same
@@ -46,7 +48,7 @@ from ..errors import InputError
 from ..inputs.molecules import to_mol
 from .locants import ring_locants
 
-KINDS = ("positional", "ambident", "tautomer")
+KINDS = ("positional", "ambident", "tautomer", "stereo")
 DEFAULT_KINDS = ("positional", "ambident")
 LIMIT = 500
 
@@ -99,6 +101,17 @@ def structure_key(mol: Chem.Mol) -> str:
 
 
 _key = structure_key
+
+
+def stereo_key(mol: Chem.Mol) -> str:
+    """Canonical SMILES with stereochemistry: tells an E/Z alternative from the given structure."""
+    return "stereo:" + Chem.MolToSmiles(mol)
+
+
+def alternative_key(mol: Chem.Mol, kind: str) -> str:
+    """The key duplicates are removed by: the constitution (:func:`structure_key`), or for an E/Z alternative
+    (kind 'stereo') the structure with its configuration."""
+    return stereo_key(mol) if kind == "stereo" else structure_key(mol)
 
 
 def heavy_graph_key(mol: Chem.Mol) -> str:
@@ -907,6 +920,48 @@ def _ambident(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     return out
 
 
+_FLIP = {Chem.BondStereo.STEREOE: Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOZ: Chem.BondStereo.STEREOE,
+         Chem.BondStereo.STEREOCIS: Chem.BondStereo.STEREOTRANS, Chem.BondStereo.STEREOTRANS: Chem.BondStereo.STEREOCIS}
+
+
+def _stereo_flips(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
+    """E against Z: each double bond whose configuration the given structure states (C=C, C=N of an oxime,
+    hydrazone or imine), drawn the other way, one bond at a time (a Wittig, Horner–Wadsworth–Emmons, Heck or
+    condensation product; common practice).  Labelled by the CIP descriptors (RDKit's new CIP labeller).  A
+    bond the drawing leaves open is not enumerated: the given structure then makes no claim to test."""
+    from rdkit.Chem import rdCIPLabeler
+
+    given = Chem.Mol(mol)
+    rdCIPLabeler.AssignCIPLabels(given)
+    # cis/trans against each bond's stereo atoms (not CIP E/Z), so that flipping the flag flips the geometry; the
+    # single bonds' '/' '\\' directions are cleared, or they would restore the given configuration
+    rel = Chem.Mol(mol)
+    Chem.SetBondStereoFromDirections(rel)
+    out = []
+    for b in given.GetBonds():
+        if b.GetBondType() != Chem.BondType.DOUBLE or rel.GetBondWithIdx(b.GetIdx()).GetStereo() not in _FLIP:
+            continue
+        rw = Chem.RWMol(rel)
+        for other in rw.GetBonds():
+            other.SetBondDir(Chem.BondDir.NONE)
+        nb = rw.GetBondWithIdx(b.GetIdx())
+        nb.SetStereo(_FLIP[nb.GetStereo()])
+        m = Chem.MolFromSmiles(Chem.MolToSmiles(rw.GetMol()))   # only the configuration changed: no sanitising edit
+        if m is None:
+            continue
+        was = b.GetProp("_CIPCode") if b.HasProp("_CIPCode") else None
+        flipped = Chem.Mol(rw.GetMol())
+        rdCIPLabeler.AssignCIPLabels(flipped)
+        # the edited molecule keeps the given atom order, so the same bond index is the same bond
+        fb = flipped.GetBondWithIdx(b.GetIdx())
+        now = fb.GetProp("_CIPCode") if fb.HasProp("_CIPCode") else None
+        i, j = b.GetBeginAtomIdx(), b.GetEndAtomIdx()
+        what = f"{given.GetAtomWithIdx(i).GetSymbol()}={given.GetAtomWithIdx(j).GetSymbol()} (atoms {i}={j})"
+        out.append((m, f"{what} {now} instead of {was}" if now and was and now != was
+                    else f"{what} drawn the other way round"))
+    return out
+
+
 def _tautomers(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
     """RDKit's tautomers of ``mol`` that keep at least its aromatic atoms (one that gives up an aromatic ring,
     a cyclohexadienone for a phenol or a 3H-indole for an indole, is not what a chemist proposes; common
@@ -1098,17 +1153,21 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
             found += [(m, lab, "ambident") for m, lab in _ambident(mol)]
         if "tautomer" in kinds:
             found += [(m, lab, "tautomer") for m, lab in _tautomers(mol)]
+        if "stereo" in kinds:
+            found += [(m, lab, "stereo") for m, lab in _stereo_flips(mol)]
     if numbering is not None:   # labels in the given SMILES's atom numbers, counter-ions put back
         found = [(m, _renumber(lab, numbering), kind) for m, lab, kind in found]
     if reaction:
         found += [(m, lab, "reaction") for m, lab in _reaction(reaction, reactants or "")]
-    seen = {_key(mol): None} if mol is not None else {}   # structure -> its index in ``out``
+    # structure -> its index in ``out``; an E/Z alternative is the same structure but for its configuration,
+    # so it is keyed with its stereochemistry
+    seen = {_key(mol): None, stereo_key(mol): None} if mol is not None else {}
     # compound -> (SMILES, relation) it was first met as; the given structure first
     compounds = {compound_key(mol): (smiles, None)} if mol is not None else {}
     filed: dict[str, int] = {}   # heteroatom-tautomer key of a reaction outcome -> its index in ``out``
     out: list[Alternative] = []
     for m, lab, kind in found:
-        k = _key(m)
+        k = alternative_key(m, kind)
         if k in seen:
             i = seen[k]
             if i is not None and kind == "ambident" and out[i].kind == "positional" and out[i].same_compound_as is None:
@@ -1120,7 +1179,7 @@ def isomers(smiles: str | None, kinds=DEFAULT_KINDS, reaction: str | None = None
         smi, twin = Chem.MolToSmiles(m) + (rest if kind != "reaction" else ""), None
         if open_shell(m):
             lab += " (leaves an unpaired electron: not a closed-shell product, listed because the rule gives it)"
-        if kind != "tautomer":
+        if kind not in ("tautomer", "stereo"):
             ck = compound_key(m)
             # a reaction outcome is also filed by its heteroatom tautomer (a template acting on a reactant's
             # imino form gives another drawing of an outcome already made)

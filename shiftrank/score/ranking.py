@@ -785,7 +785,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
     that is only a prototropic tautomer of a given candidate (an NH-azole's other NH form) is the same
     compound: it is ranked (its drawing is predicted differently) under a relation that says so, and the
     ranking's note and verdict add the probabilities of one compound's drawings."""
-    from ..chem.isomers import compound_key, isomers, open_shell, structure_key
+    from ..chem.isomers import alternative_key, compound_key, isomers, open_shell, stereo_key, structure_key
 
     if kinds is True:
         kinds = "positional,ambident"
@@ -798,7 +798,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
         mol, _, err = parse_candidate(smi)
         if err:
             continue
-        seen.add(structure_key(mol))
+        seen.update((structure_key(mol), stereo_key(mol)))
         if len(cands) > 1:   # (one candidate: isomers() itself labels its tautomers)
             given.setdefault(compound_key(mol), smi)
     for c in cands:
@@ -815,7 +815,7 @@ def expand_with_isomers(cands: list, kinds="positional,ambident") -> tuple[list,
             continue
         for alt in alts:
             m = Chem.MolFromSmiles(alt.smiles)
-            k = structure_key(m)
+            k = alternative_key(m, alt.kind)
             if k in seen:
                 continue
             seen.add(k)
