@@ -50,7 +50,7 @@ from .matching import MatchCosts, ObservedPeak, assign
 from .structures import (candidate_facts, candidate_pi, element_environments, parse_candidate, standardised_candidate,
                          tautomer_notes)
 from .verdicts import (ISOMER_MIXTURE, _canonical_of, _compound_of, _tautomer_note, spectra_disagreement,  # noqa: F401 - re-exported
-                       tautomer_groups, verdict)
+                       impurity_notes, tautomer_groups, verdict)
 
 MASS_TOLERANCE = 0.5  # Da, default window for a neutral molecular mass
 MAX_CANDIDATES = 1000  # per case, generated alternatives included
@@ -1013,6 +1013,7 @@ def rank_many(cases: list[dict], demote_history_mismatch: bool = True, mass_tole
         _probabilities(results, priors, demote_history_mismatch, case_settings, tuple(peaks))
         results.sort(key=lambda c: _order_key(c, demote_history_mismatch))
         notes = notes + [_tautomer_note(g) for g in tautomer_groups(results)]
+        notes += impurity_notes(results, case.get("_solvent"))
         second = second_form(results, peaks, case_settings)
         said = verdict(results, tuple(peaks))
         if second:

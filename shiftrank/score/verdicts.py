@@ -271,3 +271,32 @@ def _count_misfit(valid: list[CandidateResult]) -> str | None:
                     "check for overlapped, missing or extra lines before trusting the order")
         return None
     return None
+
+
+def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[str]:
+    """Lines the top candidate leaves unexplained that are all the lines of a common laboratory solvent or grease
+    in the case's solvent (:data:`shiftrank.inputs.solvents.IMPURITIES`), one note per nucleus: a chemist checks
+    those first (common practice).  The ranking is unchanged: every candidate meets such lines alike."""
+    from ..inputs.solvents import IMPURITIES, impurity_lines
+
+    best = next((c for c in cands if not c.error and c.nuclei), None)
+    if best is None or not solvent:
+        return []
+    out = []
+    for nucleus in ("13C", "1H"):
+        res = best.nuclei.get(nucleus)
+        if res is None:
+            continue
+        free = [res.peaks[j] for j in res.assignment.unmatched_peaks if not res.peaks[j].solvent]
+        lines = [(p.shift, p.lo if p.lo is not None else p.shift, p.hi if p.hi is not None else p.shift) for p in free]
+        hits = impurity_lines(lines, solvent, nucleus)
+        if not hits:
+            continue
+        by_lines: dict = {}
+        for name, shifts in hits:   # n-hexane and grease show at the same 1H lines: named together
+            by_lines.setdefault(tuple(sorted(shifts, reverse=True)), []).append(name)
+        said = "; ".join(f"{', '.join(f'{v:g}' for v in shifts)} {'are' if len(shifts) > 1 else 'is'} where "
+                         f"{' or '.join(names)} {'show' if len(names) > 1 else 'shows'}" for shifts, names in by_lines.items())
+        out.append(f"{nucleus} lines the top candidate leaves unexplained: {said} in {solvent} (Fulmer et al. 2010, "
+                   f"Tables 1 and 2, values recalled): solvent or grease residue? (their lines are not set aside)")
+    return out
