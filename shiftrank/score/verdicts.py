@@ -277,7 +277,7 @@ def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[st
     """Lines the top candidate leaves unexplained that are all the lines of a common laboratory solvent or grease
     in the case's solvent (:data:`shiftrank.inputs.solvents.IMPURITIES`), one note per nucleus: a chemist checks
     those first (common practice).  The ranking is unchanged: every candidate meets such lines alike."""
-    from ..inputs.solvents import IMPURITIES, impurity_lines
+    from ..inputs.solvents import impurity_lines
 
     best = next((c for c in cands if not c.error and c.nuclei), None)
     if best is None or not solvent:
