@@ -122,3 +122,13 @@ def test_cli_two_1h_peak_files_without_a_nucleus_are_compared_as_1h(tmp_path):
     assert "compared as 1H" in out.stderr
     mixed = run("--sample", str(s), "--reference", str(c))
     assert mixed.returncode == 2 and "is this a 1H list" in mixed.stderr and "Traceback" not in mixed.stderr
+
+
+def test_further_sample_lines_of_a_solvent_residue_are_named():
+    # acetone in DMSO-d6: 206.31 and 30.56 ppm (Fulmer et al. 2010, Table 2; values recalled from memory)
+    sample = parse_peaks(PARA + "206.3\n30.6\n", solvent="DMSO-d6")
+    c = compare_spectra(sample, parse_peaks(PARA, solvent="DMSO-d6"))
+    assert c.consistent and c.extra == [30.6, 206.3]
+    assert any("206.3, 30.6 are where acetone shows in DMSO-d6" in n for n in c.notes)
+    # without a solvent the residue cannot be named
+    assert not any("acetone" in n for n in compare_spectra(parse_peaks(PARA + "206.3\n30.6\n"), parse_peaks(PARA)).notes)

@@ -170,4 +170,14 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
     paired_s = {j for _, j in kept}
     out.missing = sorted(float(r[i]) for i in range(len(r)) if i not in paired_r)
     out.extra = sorted(float(s[j]) for j in range(len(s)) if j not in paired_s)
+    if out.extra and sample.solvent:
+        # further sample lines that are all the lines of a common solvent residue (common practice: checked first)
+        from ..inputs.solvents import impurity_lines
+
+        extra = [s_lines[j] for j in range(len(s)) if j not in paired_s]
+        for name, shifts in impurity_lines([(p.shift, p.lo if p.lo is not None else p.shift,
+                                              p.hi if p.hi is not None else p.shift) for p in extra], sample.solvent, nuc):
+            out.notes.append(f"further sample line{'s' if len(shifts) > 1 else ''} {', '.join(f'{v:g}' for v in shifts)} "
+                             f"{'are' if len(shifts) > 1 else 'is'} where {name} shows in {sample.solvent} (Fulmer et al. "
+                             "2010, Tables 1 and 2, values recalled): a solvent or grease residue?")
     return out
