@@ -652,3 +652,13 @@ def test_a_paragraph_saying_it_shows_a_mixture_of_isomers_marks_two_forms(said):
     t = read_nmr_text(f"Obtained as {said}. 1H NMR (400 MHz, CDCl3) δ 7.95 (s, 1H), 7.90 (s, 1H), 4.10 (s, 3H), "
                       "4.05 (s, 3H).")
     assert t.section("1H").doubled
+
+
+def test_a_solvent_whose_subscripts_a_pdf_set_apart_is_recognised():
+    # text copied from a PDF: 'CDCl 3', 'CD 2 Cl 2' (the residual lines are those of Fulmer et al. 2010, Table 2:
+    # CDCl3 77.16, so the line at 77.2 is set aside)
+    t = read_nmr_text("13 C NMR (101 MHz, CDCl 3 ) δ 165.2, 140.1, 77.2, 52.0")
+    assert t.sections[0].solvent == "CDCl3" and not t.sections[0].notes
+    pl = t.peaklist("13C")
+    assert [p.shift for p in pl.sample_peaks()] == [52.0, 140.1, 165.2]
+    assert read_nmr_text("1H NMR (400 MHz, CD 2 Cl 2 ) δ 7.26 (s, 1H)").sections[0].solvent == "CD2Cl2"

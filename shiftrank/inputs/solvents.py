@@ -69,10 +69,22 @@ def normalise_solvent(name: str | None) -> str | None:
     'DMSO-d6'
     >>> normalise_solvent("Unreported") is None
     True
+
+    Text taken from a PDF often has its subscripts set apart ('CDCl 3', 'CD 2 Cl 2'): read as written first, then
+    with the spaces beside digits removed.
+
+    >>> normalise_solvent("CDCl 3"), normalise_solvent("CD 2 Cl 2"), normalise_solvent("D 2 O")
+    ('CDCl3', 'CD2Cl2', 'D2O')
     """
     if not name:
         return None
-    s = name.strip().lower()
+    key = _lookup(name.strip().lower())
+    if key is None and re.search(r"[a-z]\s+\d|\d\s+[a-z]", name.lower()):
+        key = _lookup(re.sub(r"(?<=[a-z])\s+(?=\d)|(?<=\d)\s+(?=[a-z])", "", name.strip().lower()))
+    return key
+
+
+def _lookup(s: str) -> str | None:
     for key in SOLVENTS:
         if s == key.lower():
             return key
