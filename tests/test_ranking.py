@@ -386,7 +386,11 @@ def test_unexplained_lines_of_a_solvent_residue_are_named():
     c13 = next(n for n in r.notes if n.startswith("13C lines the top candidate leaves unexplained"))
     assert "171.2, 60.4, 21.1, 14.2 are where ethyl acetate shows" in c13
     assert "53.5 is where dichloromethane shows in CDCl3" in c13
-    assert any(n.startswith("1H lines") and "4.12, 2.05, 1.26 are where ethyl acetate shows" in n for n in r.notes)
+    # how much: 0.4H over the residue's 2 protons at 4.12, 0.6H over 3 at 2.05 and at 1.26 give 0.2 mol per mol;
+    # 0.2 × 88.11 g/mol against the compound's 207.27 is 7.8 % by weight (arithmetic on the printed integrals)
+    h1 = next(n for n in r.notes if n.startswith("1H lines"))
+    assert ("4.12, 2.05, 1.26 are where ethyl acetate (≈ 0.2 mol per mol of the top candidate, ≈ 7.8 % by weight) "
+            "shows") in h1
     # printed integrals are protons: the 0.4H and 0.6H lines of the residue do not turn the list into relative areas
     # (which would make it 73 H), each counts as at least one proton
     assert any("integrals sum to 16 H" in f for f in r.candidates[0].flags)

@@ -152,63 +152,84 @@ def exchanges_deuterium(key: str | None) -> str | None:
     return None
 
 
-#: Common laboratory solvents and grease as trace impurities in CDCl3 and DMSO-d6: name -> solvent -> nucleus -> lines
-#: (ppm).  The values are those tabulated by Fulmer et al. 2010 (Organometallics 29, 2176, Tables 1 and 2),
-#: recalled from memory: close enough to point at a residue, not a substitute for the table.
+#: Common laboratory solvents and grease as trace impurities in CDCl3 and DMSO-d6: name -> formula (None: grease)
+#: and, per solvent, the 13C lines and the 1H lines with their protons (ppm, H).  The shifts are those tabulated by
+#: Fulmer et al. 2010 (Organometallics 29, 2176, Tables 1 and 2), recalled from memory: close enough to point at a
+#: residue, not a substitute for the table.
 IMPURITIES = {
-    "acetic acid": {"CDCl3": {"13C": (175.99, 20.81), "1H": (2.10,)},
-                    "DMSO-d6": {"13C": (171.93, 20.95), "1H": (1.91,)}},
-    "acetone": {"CDCl3": {"13C": (207.07, 30.92), "1H": (2.17,)}, "DMSO-d6": {"13C": (206.31, 30.56), "1H": (2.09,)}},
-    "acetonitrile": {"CDCl3": {"13C": (116.43, 1.89), "1H": (2.10,)}, "DMSO-d6": {"13C": (117.91, 1.03), "1H": (2.07,)}},
-    "dichloromethane": {"CDCl3": {"13C": (53.52,), "1H": (5.30,)}, "DMSO-d6": {"13C": (54.84,), "1H": (5.76,)}},
-    "diethyl ether": {"CDCl3": {"13C": (65.91, 15.20), "1H": (3.48, 1.21)},
-                      "DMSO-d6": {"13C": (62.05, 15.12), "1H": (3.38, 1.09)}},
-    "DMF": {"CDCl3": {"13C": (162.62, 36.50, 31.39), "1H": (8.02, 2.96, 2.88)},
-            "DMSO-d6": {"13C": (162.29, 35.73, 30.73), "1H": (7.95, 2.89, 2.73)}},
-    "DMSO": {"CDCl3": {"13C": (40.76,), "1H": (2.62,)}},
-    "1,4-dioxane": {"CDCl3": {"13C": (67.14,), "1H": (3.71,)}, "DMSO-d6": {"13C": (66.36,), "1H": (3.57,)}},
-    "ethanol": {"CDCl3": {"13C": (58.28, 18.41), "1H": (3.72, 1.25)}, "DMSO-d6": {"13C": (56.07, 18.51), "1H": (3.44, 1.06)}},
-    "ethyl acetate": {"CDCl3": {"13C": (171.36, 60.49, 21.04, 14.19), "1H": (4.12, 2.05, 1.26)},
-                      "DMSO-d6": {"13C": (170.31, 59.74, 20.68, 14.40), "1H": (4.03, 1.99, 1.17)}},
-    "n-hexane": {"CDCl3": {"13C": (31.64, 22.70, 14.14), "1H": (1.26, 0.88)},
-                 "DMSO-d6": {"13C": (30.95, 22.05, 13.88), "1H": (1.25, 0.86)}},
-    "methanol": {"CDCl3": {"13C": (50.41,), "1H": (3.49,)}, "DMSO-d6": {"13C": (48.59,), "1H": (3.16,)}},
-    "2-propanol": {"CDCl3": {"13C": (64.50, 25.14), "1H": (4.04, 1.22)}, "DMSO-d6": {"13C": (64.92, 25.43), "1H": (3.78, 1.04)}},
-    "tetrahydrofuran": {"CDCl3": {"13C": (67.97, 25.62), "1H": (3.76, 1.85)},
-                        "DMSO-d6": {"13C": (67.03, 25.14), "1H": (3.60, 1.76)}},
-    "toluene": {"CDCl3": {"13C": (137.89, 129.07, 128.26, 125.33, 21.46), "1H": (2.36,)},
-                "DMSO-d6": {"13C": (137.35, 128.88, 128.18, 125.29, 20.99), "1H": (2.30,)}},
-    "triethylamine": {"CDCl3": {"13C": (46.25, 11.61), "1H": (2.53, 1.03)},
-                      "DMSO-d6": {"13C": (45.74, 10.75), "1H": (2.43, 0.93)}},
-    "grease": {"CDCl3": {"13C": (29.76,), "1H": (1.26, 0.86)}},
+    "acetic acid": ("C2H4O2", {"CDCl3": {"13C": (175.99, 20.81), "1H": ((2.10, 3),)},
+                               "DMSO-d6": {"13C": (171.93, 20.95), "1H": ((1.91, 3),)}}),
+    "acetone": ("C3H6O", {"CDCl3": {"13C": (207.07, 30.92), "1H": ((2.17, 6),)},
+                          "DMSO-d6": {"13C": (206.31, 30.56), "1H": ((2.09, 6),)}}),
+    "acetonitrile": ("C2H3N", {"CDCl3": {"13C": (116.43, 1.89), "1H": ((2.10, 3),)},
+                               "DMSO-d6": {"13C": (117.91, 1.03), "1H": ((2.07, 3),)}}),
+    "dichloromethane": ("CH2Cl2", {"CDCl3": {"13C": (53.52,), "1H": ((5.30, 2),)},
+                                   "DMSO-d6": {"13C": (54.84,), "1H": ((5.76, 2),)}}),
+    "diethyl ether": ("C4H10O", {"CDCl3": {"13C": (65.91, 15.20), "1H": ((3.48, 4), (1.21, 6))},
+                                 "DMSO-d6": {"13C": (62.05, 15.12), "1H": ((3.38, 4), (1.09, 6))}}),
+    "DMF": ("C3H7NO", {"CDCl3": {"13C": (162.62, 36.50, 31.39), "1H": ((8.02, 1), (2.96, 3), (2.88, 3))},
+                       "DMSO-d6": {"13C": (162.29, 35.73, 30.73), "1H": ((7.95, 1), (2.89, 3), (2.73, 3))}}),
+    "DMSO": ("C2H6OS", {"CDCl3": {"13C": (40.76,), "1H": ((2.62, 6),)}}),
+    "1,4-dioxane": ("C4H8O2", {"CDCl3": {"13C": (67.14,), "1H": ((3.71, 8),)},
+                               "DMSO-d6": {"13C": (66.36,), "1H": ((3.57, 8),)}}),
+    "ethanol": ("C2H6O", {"CDCl3": {"13C": (58.28, 18.41), "1H": ((3.72, 2), (1.25, 3))},
+                          "DMSO-d6": {"13C": (56.07, 18.51), "1H": ((3.44, 2), (1.06, 3))}}),
+    "ethyl acetate": ("C4H8O2", {"CDCl3": {"13C": (171.36, 60.49, 21.04, 14.19), "1H": ((4.12, 2), (2.05, 3), (1.26, 3))},
+                                 "DMSO-d6": {"13C": (170.31, 59.74, 20.68, 14.40), "1H": ((4.03, 2), (1.99, 3), (1.17, 3))}}),
+    "n-hexane": ("C6H14", {"CDCl3": {"13C": (31.64, 22.70, 14.14), "1H": ((1.26, 8), (0.88, 6))},
+                           "DMSO-d6": {"13C": (30.95, 22.05, 13.88), "1H": ((1.25, 8), (0.86, 6))}}),
+    "methanol": ("CH4O", {"CDCl3": {"13C": (50.41,), "1H": ((3.49, 3),)},
+                          "DMSO-d6": {"13C": (48.59,), "1H": ((3.16, 3),)}}),
+    "2-propanol": ("C3H8O", {"CDCl3": {"13C": (64.50, 25.14), "1H": ((4.04, 1), (1.22, 6))},
+                             "DMSO-d6": {"13C": (64.92, 25.43), "1H": ((3.78, 1), (1.04, 6))}}),
+    "tetrahydrofuran": ("C4H8O", {"CDCl3": {"13C": (67.97, 25.62), "1H": ((3.76, 4), (1.85, 4))},
+                                  "DMSO-d6": {"13C": (67.03, 25.14), "1H": ((3.60, 4), (1.76, 4))}}),
+    "toluene": ("C7H8", {"CDCl3": {"13C": (137.89, 129.07, 128.26, 125.33, 21.46), "1H": ((2.36, 3),)},
+                         "DMSO-d6": {"13C": (137.35, 128.88, 128.18, 125.29, 20.99), "1H": ((2.30, 3),)}}),
+    "triethylamine": ("C6H15N", {"CDCl3": {"13C": (46.25, 11.61), "1H": ((2.53, 6), (1.03, 9))},
+                                 "DMSO-d6": {"13C": (45.74, 10.75), "1H": ((2.43, 6), (0.93, 9))}}),
+    "grease": (None, {"CDCl3": {"13C": (29.76,), "1H": ((1.26, None), (0.86, None))}}),
 }
 #: Half-width of the window in which a line counts as an impurity's (printed values move with concentration).
 IMPURITY_TOLERANCE = {"13C": 0.3, "1H": 0.03}
 
 
-def impurity_lines(lines: list[tuple[float, float, float]], key: str | None, nucleus: str = "13C") -> list[tuple[str, tuple]]:
-    """Impurities of :data:`IMPURITIES` whose every line in solvent ``key`` is among ``lines`` ((shift, low, high):
-    a printed range counts where it covers the value): [(name, the matched shifts)], most lines first.  A
-    solvent outside the table gives none.
+@dataclass(frozen=True)
+class ImpurityMatch:
+    name: str
+    shifts: tuple          # the observed lines that match, in the table's order
+    index: tuple           # their positions in the lines given
+    protons: tuple         # 1H: protons of the impurity at each line (None: unknown, grease)
+    formula: str | None
 
-    >>> impurity_lines([(171.3, 171.3, 171.3), (60.5, 60.5, 60.5), (21.0, 21.0, 21.0), (14.2, 14.2, 14.2)], "CDCl3")
+
+def impurity_lines(lines: list[tuple[float, float, float]], key: str | None, nucleus: str = "13C") -> list[ImpurityMatch]:
+    """Impurities of :data:`IMPURITIES` whose every line in solvent ``key`` is among ``lines`` ((shift, low, high):
+    a printed range counts where it covers the value), most lines first.  A solvent outside the table gives none.
+
+    >>> [(m.name, m.shifts) for m in impurity_lines([(171.3, 171.3, 171.3), (60.5, 60.5, 60.5), (21.0, 21.0, 21.0),
+    ...                                               (14.2, 14.2, 14.2)], "CDCl3")]
     [('ethyl acetate', (171.3, 60.5, 21.0, 14.2))]
     """
     tol = IMPURITY_TOLERANCE[nucleus]
     out = []
-    for name, by_solvent in IMPURITIES.items():
+    for name, (formula, by_solvent) in IMPURITIES.items():
         ref = by_solvent.get(key or "", {}).get(nucleus)
         if not ref:
             continue
-        hit = []
+        hit, where, protons = [], [], []
         for v in ref:
-            near = [x for x, lo, hi in lines if lo - tol <= v <= hi + tol]
+            v, n_h = (v, None) if isinstance(v, float) else v
+            near = [k for k, (_, lo, hi) in enumerate(lines) if lo - tol <= v <= hi + tol]
             if not near:
                 break
-            hit.append(min(near, key=lambda x: abs(x - v)))
+            k = min(near, key=lambda k: abs(lines[k][0] - v))
+            hit.append(lines[k][0])
+            where.append(k)
+            protons.append(n_h)
         else:
-            out.append((name, tuple(hit)))
-    return sorted(out, key=lambda t: -len(t[1]))
+            out.append(ImpurityMatch(name, tuple(hit), tuple(where), tuple(protons), formula))
+    return sorted(out, key=lambda m: -len(m.shifts))
 
 
 def match_solvent(shift: float, key: str, nucleus: str = "13C") -> float | None:

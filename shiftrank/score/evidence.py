@@ -471,7 +471,8 @@ class ProtonEvidence(_Evidence):
         out = PeakSet()
         for k, p in enumerate(pl.peaks):
             out.append(ObservedPeak(p.shift, p.multiplicity, p.solvent is not None, p.lo, p.hi, tuple(p.j),
-                                    caps.get(k) if caps else None, doubled=p.doubled))
+                                    caps.get(k) if caps else None, doubled=p.doubled,
+                                    intensity=p.intensity if p.intensity is not None and p.intensity > 0 else None))
         if pl.solvent in SOLVENTS:
             sv = SOLVENTS[pl.solvent]
             out.solvent_lines = tuple((x, pl.solvent) for x in sv.residual_1h) + (

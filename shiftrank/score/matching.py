@@ -133,6 +133,7 @@ class ObservedPeak:
     h_lo: float | None = None         # HSQC: proton shift of the cross peak (a range: the two protons of one CH2)
     h_hi: float | None = None
     doubled: bool = False             # a line beside another of a spectrum showing two forms (rotamers): may be the other form's
+    intensity: float | None = None    # 1H: the integral as given (protons or a relative area), before rounding to ``capacity``
 
 
 @dataclass(slots=True)

@@ -9,6 +9,7 @@ from collections import Counter
 from functools import lru_cache
 from typing import TYPE_CHECKING, Sequence
 
+import numpy as np
 from rdkit import Chem
 
 from ..inputs.peaks import doubled_pairs
@@ -276,7 +277,9 @@ def _count_misfit(valid: list[CandidateResult]) -> str | None:
 def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[str]:
     """Lines the top candidate leaves unexplained that are all the lines of a common laboratory solvent or grease
     in the case's solvent (:data:`shiftrank.inputs.solvents.IMPURITIES`), one note per nucleus: a chemist checks
-    those first (common practice).  The ranking is unchanged: every candidate meets such lines alike."""
+    those first (common practice).  With 1H integrals, how much of it there is: mol per mol of the top candidate
+    (each line's integral over the impurity's protons there, on the scale of the lines the candidate explains)
+    and the weight share that makes.  The ranking is unchanged: every candidate meets such lines alike."""
     from ..inputs.solvents import impurity_lines
 
     best = next((c for c in cands if not c.error and c.nuclei), None)
@@ -289,14 +292,47 @@ def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[st
             continue
         free = [res.peaks[j] for j in res.assignment.unmatched_peaks if not res.peaks[j].solvent]
         lines = [(p.shift, p.lo if p.lo is not None else p.shift, p.hi if p.hi is not None else p.shift) for p in free]
-        hits = impurity_lines(lines, solvent, nucleus)
-        if not hits:
+        matches = impurity_lines(lines, solvent, nucleus)
+        if not matches:
             continue
+        scale = _proton_scale(res) if nucleus == "1H" else None
         by_lines: dict = {}
-        for name, shifts in hits:   # n-hexane and grease show at the same 1H lines: named together
-            by_lines.setdefault(tuple(sorted(shifts, reverse=True)), []).append(name)
+        for m in matches:   # n-hexane and grease show at the same 1H lines: named together
+            amount = _amount(m, [free[k] for k in m.index], scale, best.smiles) if scale else ""
+            by_lines.setdefault(tuple(sorted(m.shifts, reverse=True)), []).append(m.name + amount)
         said = "; ".join(f"{', '.join(f'{v:g}' for v in shifts)} {'are' if len(shifts) > 1 else 'is'} where "
                          f"{' or '.join(names)} {'show' if len(names) > 1 else 'shows'}" for shifts, names in by_lines.items())
         out.append(f"{nucleus} lines the top candidate leaves unexplained: {said} in {solvent} (Fulmer et al. 2010, "
                    f"Tables 1 and 2, values recalled): solvent or grease residue? (their lines are not set aside)")
     return out
+
+
+def _proton_scale(res) -> float | None:
+    """Integral per proton of the compound: the given integrals of the lines the candidate's classes take over the
+    protons it places there (None without integrals)."""
+    units: dict[int, int] = {}
+    for q in res.assignment.pairings:
+        if q.peak is not None:
+            units[q.peak] = units.get(q.peak, 0) + q.units
+    area = [(res.peaks[j].intensity, n) for j, n in units.items() if res.peaks[j].intensity]
+    if not area or len(area) < len(units):
+        return None
+    return sum(a for a, _ in area) / sum(n for _, n in area)
+
+
+def _amount(m, peaks, scale: float, smiles: str) -> str:
+    """' (≈ 0.13 mol per mol of the top candidate, ≈ 5 % by weight)' of an impurity from its lines' integrals."""
+    from rdkit.Chem import Descriptors
+
+    from ..chem.formula import average_weight, parse_formula
+
+    per = [p.intensity / scale / n for p, n in zip(peaks, m.protons) if n and p.intensity]
+    if not per or len(per) < len(peaks):
+        return ""
+    eq = float(np.mean(per))
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None or m.formula is None:
+        return f" (≈ {eq:.2g} mol per mol of the top candidate)"
+    w_imp = eq * average_weight(parse_formula(m.formula))
+    share = 100 * w_imp / (Descriptors.MolWt(mol) + w_imp)
+    return f" (≈ {eq:.2g} mol per mol of the top candidate, ≈ {share:.2g} % by weight)"
