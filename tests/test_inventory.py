@@ -279,3 +279,18 @@ def test_cosy_spin_systems_and_carbons_only_the_hmbc_shows():
                          hmbc=hmbc_list([[141.2, 4.46], [141.3, 8.06], [15.0, 4.46]]))
     assert "COSY spin systems (coupled 1H signals): 8.06, 7.43 (2H); 4.46, 1.54 (5H)" in inv.findings
     assert any(f.startswith("HMBC: a carbon at δC 141.2 that the 13C list does not have (2 cross peaks") for f in inv.findings)
+
+
+# Methyl 4-hydroxybenzoate 1H in DMSO-d6 (from memory): 10.31 (br, OH), 7.82 (d, 2H), 6.85 (d, 2H), 3.78 (s, 3H),
+# integrated as an instrument gives relative areas; the residual DMSO-d6 line 2.50 (Fulmer et al. 2010, Table 1) taken
+# into the integration; a trace of acetone at 2.09 (Fulmer et al. 2010, Table 1, recalled from memory).
+_TRACE_LIST = "2.09 0.12 s\n2.50 0.4 m\n3.78 3.1 s\n6.85 2.0 d\n7.82 2.05 d\n10.31 0.96 br\n"
+
+
+def test_a_residue_trace_does_not_set_the_scale_of_the_integrals():
+    pl = parse_peaks(_TRACE_LIST, nucleus="1H", solvent="DMSO-d6")
+    # the residual DMSO line is still set aside: the trace (0.12) is not taken as the list's proton
+    assert [p.shift for p in pl.peaks if p.solvent] == [2.5]
+    inv = take_inventory(None, pl, formula="C8H8O3")
+    assert inv.h_ratio == [3, 2, 2, 1] and inv.h_total_from_integrals == 8
+    assert any("2.09 (integral 0.12) set apart: a trace where acetone" in f for f in inv.findings)

@@ -560,6 +560,24 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
     """Integer integrals, protons per region and the first-order patterns of a 1H list."""
     sample = h1.sample_peaks()
     ints = [p.intensity for p in sample if p.intensity is not None and p.intensity > 0]
+    if ints and len(ints) == len(sample) and h1.solvent:
+        # a trace line where a common solvent residue shows (below half the smallest other integral) is no proton
+        # of the compound: set apart before the integrals are read as a ratio, and said
+        from ..inputs.solvents import impurity_lines
+
+        spans = [(p.shift, p.lo if p.lo is not None else p.shift, p.hi if p.hi is not None else p.shift) for p in sample]
+        trace = {}
+        for m in impurity_lines(spans, h1.solvent, "1H"):
+            rest = [x for k, x in enumerate(ints) if k not in m.index]
+            if rest and all(ints[k] < 0.5 * min(rest) for k in m.index):
+                for k in m.index:
+                    trace.setdefault(k, []).append(m.name)
+        if trace and len(trace) < len(sample):
+            inv.findings.append("1H: " + ", ".join(f"{sample[k].shift:g} (integral {ints[k]:g})" for k in sorted(trace))
+                                + f" set apart: a trace where {' or '.join(dict.fromkeys(n for k in sorted(trace) for n in trace[k]))} shows in "
+                                f"{h1.solvent} (Fulmer et al. 2010, values recalled)")
+            sample = [p for k, p in enumerate(sample) if k not in trace]
+            ints = [x for k, x in enumerate(ints) if k not in trace]
     if not ints or len(ints) != len(sample):
         if sample:
             inv.findings.append(f"1H: {count(len(sample), 'signal')}; integrals missing for {len(sample) - len(ints)}, so no proton count")

@@ -576,7 +576,14 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
     if key is None:
         return peaks
     peaks.solvent = key
-    ints = sorted(q.intensity for q in peaks.peaks if q.intensity)   # once, not per peak: lists may be long
+    # (once, not per peak: lists may be long; a line where a common solvent residue shows, a trace of acetone at
+    # 0.12 beside 0.96 for one H, is no measure of the list's proton)
+    residue = set()
+    if peaks.nucleus == "1H":
+        from .solvents import impurity_lines
+        spans = [(q.shift, q.lo if q.lo is not None else q.shift, q.hi if q.hi is not None else q.shift) for q in peaks.peaks]
+        residue = {k for m in impurity_lines(spans, key, "1H") for k in m.index}
+    ints = sorted(q.intensity for k, q in enumerate(peaks.peaks) if q.intensity and k not in residue)
     for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):
             continue
