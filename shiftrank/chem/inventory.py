@@ -565,9 +565,8 @@ def _read_protons(inv: Inventory, h1: PeakList) -> None:
         # of the compound: set apart before the integrals are read as a ratio, and said
         from ..inputs.solvents import impurity_lines
 
-        spans = [(p.shift, p.lo if p.lo is not None else p.shift, p.hi if p.hi is not None else p.shift) for p in sample]
         trace = {}
-        for m in impurity_lines(spans, h1.solvent, "1H"):
+        for m in impurity_lines(sample, h1.solvent, "1H"):
             rest = [x for k, x in enumerate(ints) if k not in m.index]
             if rest and all(ints[k] < 0.5 * min(rest) for k in m.index):
                 for k in m.index:

@@ -581,8 +581,8 @@ def flag_solvent(peaks: PeakList, solvent: str | None, keep_integrated: bool = F
     residue = set()
     if peaks.nucleus == "1H":
         from .solvents import impurity_lines
-        spans = [(q.shift, q.lo if q.lo is not None else q.shift, q.hi if q.hi is not None else q.shift) for q in peaks.peaks]
-        residue = {k for m in impurity_lines(spans, key, "1H") for k in m.index}
+
+        residue = {k for m in impurity_lines(peaks.peaks, key, "1H") for k in m.index}
     ints = sorted(q.intensity for k, q in enumerate(peaks.peaks) if q.intensity and k not in residue)
     for p in peaks.peaks:
         if p.solvent is not None or peaks.nucleus == "13C" and p.multiplicity not in (None, "C"):

@@ -203,15 +203,18 @@ class ImpurityMatch:
     formula: str | None
 
 
-def impurity_lines(lines: list[tuple[float, float, float]], key: str | None, nucleus: str = "13C") -> list[ImpurityMatch]:
-    """Impurities of :data:`IMPURITIES` whose every line in solvent ``key`` is among ``lines`` ((shift, low, high):
-    a printed range counts where it covers the value), most lines first.  A solvent outside the table gives none.
+def impurity_lines(peaks, key: str | None, nucleus: str = "13C") -> list[ImpurityMatch]:
+    """Impurities of :data:`IMPURITIES` whose every line in solvent ``key`` is among ``peaks`` (anything with a
+    ``shift`` and, for a printed range, ``lo`` and ``hi``: the range counts where it covers the value), most lines
+    first.  A solvent outside the table gives none.
 
-    >>> [(m.name, m.shifts) for m in impurity_lines([(171.3, 171.3, 171.3), (60.5, 60.5, 60.5), (21.0, 21.0, 21.0),
-    ...                                               (14.2, 14.2, 14.2)], "CDCl3")]
+    >>> from shiftrank.inputs.peaks import parse_peaks
+    >>> [(m.name, m.shifts) for m in impurity_lines(parse_peaks("171.3\\n60.5\\n21.0\\n14.2\\n").peaks, "CDCl3")]
     [('ethyl acetate', (171.3, 60.5, 21.0, 14.2))]
     """
     tol = IMPURITY_TOLERANCE[nucleus]
+    lines = [(p.shift, p.shift if getattr(p, "lo", None) is None else p.lo,
+              p.shift if getattr(p, "hi", None) is None else p.hi) for p in peaks]
     out = []
     for name, (formula, by_solvent) in IMPURITIES.items():
         ref = by_solvent.get(key or "", {}).get(nucleus)

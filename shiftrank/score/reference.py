@@ -175,8 +175,7 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
         from ..inputs.solvents import impurity_lines
 
         extra = [s_lines[j] for j in range(len(s)) if j not in paired_s]
-        for m in impurity_lines([(p.shift, p.lo if p.lo is not None else p.shift,
-                                  p.hi if p.hi is not None else p.shift) for p in extra], sample.solvent, nuc):
+        for m in impurity_lines(extra, sample.solvent, nuc):
             name, shifts = m.name, m.shifts
             out.notes.append(f"further sample line{'s' if len(shifts) > 1 else ''} {', '.join(f'{v:g}' for v in shifts)} "
                              f"{'are' if len(shifts) > 1 else 'is'} where {name} shows in {sample.solvent} (Fulmer et al. "

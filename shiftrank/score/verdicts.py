@@ -291,8 +291,7 @@ def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[st
         if res is None:
             continue
         free = [res.peaks[j] for j in res.assignment.unmatched_peaks if not res.peaks[j].solvent]
-        lines = [(p.shift, p.lo if p.lo is not None else p.shift, p.hi if p.hi is not None else p.shift) for p in free]
-        matches = impurity_lines(lines, solvent, nucleus)
+        matches = impurity_lines(free, solvent, nucleus)
         if not matches:
             continue
         scale = _proton_scale(res) if nucleus == "1H" else None
