@@ -696,7 +696,7 @@ def _sample_options(s) -> None:
     s.add_argument("--keep-mismatches", action="store_true",
                    help="do not demote candidates contradicting formula, mass or m/z")
     s.add_argument("--with-isomers", nargs="?", const="positional,ambident", metavar="KINDS",
-                   help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident)")
+                   help="add the alternatives each candidate's reaction could have given (default kinds: positional,ambident; also tautomer, stereo)")
     s.add_argument("--reaction", metavar="NAME_OR_SMARTS", help="add every product of this reaction on --reactants as a "
                    f"candidate: a named reaction ({reaction_names()}; see isomers --help) or a reaction SMARTS")
     s.add_argument("--reactants", metavar="A.B", help="the reaction's reactants as SMILES separated by '.'")
