@@ -189,3 +189,23 @@ def test_a_batch_case_may_name_a_reaction_whose_products_are_its_candidates(tmp_
     assert sorted(c["name"].split(" (")[0] for c in first["ranking"]) == [
         "N-alkylation product at N1 of the indazole", "N-alkylation product at N2 of the indazole"]
     assert "reaction: give a reaction name or SMARTS with 'reactants'" in second["error"]
+
+
+def test_a_batch_case_asks_for_e_z_alternatives_and_gets_residue_notes(tmp_path):
+    # methyl (E)-cinnamate in CDCl3 (values from memory; trans vinyl J 16 Hz, common practice) with the lines of an
+    # ethyl acetate residue (Fulmer et al. 2010, Table 1, recalled): the case names the Z form as its candidate
+    import json as _json
+    from shiftrank.score.batch import run_batch
+    text = ("1H NMR (400 MHz, CDCl3) δ 7.69 (d, J = 16.0 Hz, 1H), 7.55–7.50 (m, 2H), 7.41–7.36 (m, 3H), "
+            "6.45 (d, J = 16.0 Hz, 1H), 4.12 (q, J = 7.1 Hz, 0.2H), 3.81 (s, 3H), 2.05 (s, 0.3H), 1.26 (t, J = 7.1 Hz, 0.3H).")
+    cases = tmp_path / "c.jsonl"
+    cases.write_text(_json.dumps({"id": "ez", "text": text, "candidates": ["COC(=O)/C=C\\c1ccccc1"],
+                                  "with_isomers": "stereo"}) + "\n")
+    out = tmp_path / "o.jsonl"
+    with out.open("w") as f:
+        run_batch(cases, f)
+    (res,) = [_json.loads(x) for x in out.read_text().splitlines()]
+    top = res["ranking"][0]
+    assert top["smiles"] == Chem.MolToSmiles(Chem.MolFromSmiles("COC(=O)/C=C/c1ccccc1"))
+    assert top["generated"] is True and top["relation"] == "C=C (atoms 4=5) E instead of Z"
+    assert any("4.12, 2.05, 1.26 are where ethyl acetate" in n for n in res["notes"])

@@ -580,7 +580,8 @@ def test_e_against_z_of_each_double_bond_the_drawing_states():
 
 
 def test_ranking_with_e_z_alternatives_reads_the_vinyl_coupling():
-    # a trans-vinyl 3J of 16 Hz (common practice: trans 12-18 Hz, cis 6-12 Hz); invented list in the usual form
+    # a trans-vinyl 3J of 16 Hz (common practice: trans 12-18 Hz, cis 6-12 Hz); methyl (E)-cinnamate in CDCl3,
+    # values from memory
     from shiftrank.score.ranking import rank
 
     text = ("1H NMR (400 MHz, CDCl3) δ 7.69 (d, J = 16.0 Hz, 1H), 7.55–7.50 (m, 2H), 7.41–7.36 (m, 3H), "

@@ -374,7 +374,7 @@ def test_the_verdict_of_a_mixture_names_the_second_form_and_raises_no_count_rese
 
 # Ethyl acetate and dichloromethane as residues in CDCl3: Fulmer et al. 2010 (Organometallics 29, 2176), Tables 1
 # and 2 (13C 171.36, 60.49, 21.04, 14.19 and 53.52; 1H 4.12 q, 2.05 s, 1.26 t), values recalled from memory.
-# The compound and its other lines are invented (1-benzylindole drawn with made-up but typical values).
+# The compound's own lines: 1-benzylindole in CDCl3, values from memory.
 _RESIDUE_TEXT = ("1H NMR (400 MHz, CDCl3) δ 7.66 (d, J = 7.8 Hz, 1H), 7.32–7.24 (m, 4H), 7.18–7.08 (m, 5H), "
                  "6.56 (d, J = 3.1 Hz, 1H), 5.33 (s, 2H), 4.12 (q, J = 7.1 Hz, 0.4H), 2.05 (s, 0.6H), "
                  "1.26 (t, J = 7.1 Hz, 0.6H). 13C NMR (101 MHz, CDCl3) δ 171.2, 137.6, 136.4, 128.8, 128.7, 128.3, "
@@ -397,7 +397,7 @@ def test_unexplained_lines_of_a_solvent_residue_are_named():
 
 
 def test_an_ethyl_ester_explains_the_lines_an_ethyl_acetate_residue_would_have():
-    # ethyl 1-benzylindole-3-carboxylate (invented list): its own OCH2CH3 and C=O take 60.x, 14.x and 165.x, so no
+    # ethyl 1-benzylindole-3-carboxylate (approximate values from memory): its own OCH2CH3 and C=O take 60.x, 14.x and 165.x, so no
     # residue is named; the lone 53.5 is still pointed at
     text = ("13C NMR (101 MHz, CDCl3) δ 165.0, 137.0, 136.2, 134.9, 129.0, 128.1, 127.1, 126.9, 123.0, 122.0, 121.8, "
             "110.3, 107.9, 59.7, 53.5, 50.8, 14.6.")
