@@ -447,6 +447,11 @@ def test_sulfonyl_groups_move_between_n_and_o_like_acyl_groups():
     ("alkylation", "O=c1cccc[nH]1.CCBr", {"CCn1ccccc1=O", "CCOc1ccccn1"}, "NH/OH tautomer"),
     # acetylation of 4-aminophenol at N or O
     ("acylation", "Nc1ccc(O)cc1.CC(=O)Cl", {"CC(=O)Nc1ccc(O)cc1", "CC(=O)Oc1ccc(N)cc1"}, "acylation product at"),
+    # benzylation of indole at N1, C3 or C2; acetylation of pyrrole at N1, C2 or C3 (the ring C-H of an NH-pyrrole or
+    # -indole takes such agents too)
+    ("alkylation", "c1ccc2[nH]ccc2c1.BrCc1ccccc1",
+     {"c1ccc(Cn2ccc3ccccc32)cc1", "c1ccc(Cc2c[nH]c3ccccc23)cc1", "c1ccc(Cc2cc3ccccc3[nH]2)cc1"}, "at C3 of the indole"),
+    ("acylation", "c1cc[nH]c1.CC(=O)Cl", {"CC(=O)n1cccc1", "CC(=O)c1ccc[nH]1", "CC(=O)c1cc[nH]c1"}, "at C2 of the pyrrole"),
     # Mitsunobu benzylation of 2-pyridone at N or O; Chan-Lam phenylation of 3-methylpyrazole at either N;
     # Sonogashira coupling of 1-bromo-4-iodobenzene at C-I or C-Br
     ("mitsunobu", "O=c1cccc[nH]1.OCc1ccccc1", {"O=c1ccccn1Cc1ccccc1", "c1ccc(COc2ccccn2)cc1"}, "NH/OH tautomer"),

@@ -3,7 +3,8 @@ without writing reaction SMARTS.
 
 Each template is a reaction SMARTS (RDKit's reaction engine runs it on the reactants and every way it can
 apply is an outcome), written here from the textbook reaction types (common practice): the leaving groups are
-those the reactions usually use, and the nucleophile is any heteroatom that carries an H.  A template applies
+those the reactions usually use, and the nucleophile is any heteroatom that carries an H (for alkylation and
+acylation also the ring C-H of an NH-pyrrole or -indole, which such agents take as well).  A template applies
 at every matching site; which site a real reaction prefers is the question the spectra answer.  Where the
 reacting heteroatom can carry its H on another atom (an NH-azole's N1 or N2, a 2-pyridone's N or O), the
 reactants' NH/OH tautomers are run too, so both sites are offered.
@@ -16,6 +17,9 @@ from dataclasses import dataclass
 _LG = "[Cl,Br,I,$(O-S(=O)(=O)[#6])]"
 #: an aryl (pseudo)halide's leaving group for cross-couplings
 _ARYL_LG = "[Cl,Br,I,$(O-S(=O)(=O)C(F)(F)F)]"
+#: a ring C-H of an NH-pyrrole or -indole (a five-membered aromatic ring whose only heteroatom is its NH): the
+#: carbon an alkylating or acylating agent can take instead of the N (C3 of an indole first; common practice)
+_PYRROLE_CH = "$([cH;r5]1:c:[nH]:c:c:1),$([cH;r5]1:[nH]:c:c:c:1)"
 
 
 @dataclass(frozen=True)
@@ -46,8 +50,8 @@ REACTIONS = {
         "[#7,#8,#16;!H0:1].[CX4:2]-[OH]>>[*:1]-[*:2]",
         "an alcohol's carbon on an acidic N-, O- or S-H (a 2-pyridone at N or O)", label="Mitsunobu"),
     "alkylation": NamedReaction(
-        f"[#7,#8,#16;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
-        "alkylation of an N-, O- or S-H by an alkyl halide or sulfonate"),
+        f"[#7,#8,#16,{_PYRROLE_CH};!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
+        "alkylation of an N-, O- or S-H (or of an NH-pyrrole's or -indole's ring C-H) by an alkyl halide or sulfonate"),
     "n-alkylation": NamedReaction(
         f"[#7;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
         "alkylation of an N-H by an alkyl halide or sulfonate", label="N-alkylation"),
@@ -55,8 +59,8 @@ REACTIONS = {
         f"[#8;!H0:1].[CX4:2]-{_LG}>>[*:1]-[*:2]",
         "alkylation of an O-H by an alkyl halide or sulfonate", label="O-alkylation"),
     "acylation": NamedReaction(
-        "[#7,#8;!H0;!$(*-C=O):1].[C:2](=[O:3])-[Cl,Br,$(O-C=O),$(O-c),OH]>>[*:1]-[C:2]=[O:3]",
-        "acylation of an N- or O-H by an acid chloride, anhydride, aryl ester or acid"),
+        f"[#7,#8,{_PYRROLE_CH};!H0;!$(*-C=O):1].[C:2](=[O:3])-[Cl,Br,$(O-C=O),$(O-c),OH]>>[*:1]-[C:2]=[O:3]",
+        "acylation of an N- or O-H (or of an NH-pyrrole's or -indole's ring C-H) by an acid chloride, anhydride, aryl ester or acid"),
     # electrophilic substitution of an aromatic C-H (one reactant, the substrate): every ring CH a reagent could
     # have taken
     "bromination": NamedReaction("[cH:1]>>[c:1]-Br", "an aromatic C-H brominated (Br2, NBS)", tautomers=False),
