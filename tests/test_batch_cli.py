@@ -207,5 +207,5 @@ def test_a_batch_case_asks_for_e_z_alternatives_and_gets_residue_notes(tmp_path)
     (res,) = [_json.loads(x) for x in out.read_text().splitlines()]
     top = res["ranking"][0]
     assert top["smiles"] == Chem.MolToSmiles(Chem.MolFromSmiles("COC(=O)/C=C/c1ccccc1"))
-    assert top["generated"] is True and top["relation"] == "C=C (atoms 4=5) E instead of Z"
+    assert top["generated"] is True and top["relation"] == "C=C (atoms 4 and 5) E instead of Z"
     assert any("4.12, 2.05, 1.26 are where ethyl acetate" in n for n in res["notes"])

@@ -572,14 +572,14 @@ def test_e_against_z_of_each_double_bond_the_drawing_states():
         return Chem.MolToSmiles(Chem.MolFromSmiles(s))
     (alt,) = isomers("COC(=O)/C=C/c1ccccc1", kinds=("stereo",))
     assert alt.smiles == canon("COC(=O)/C=C\\c1ccccc1") and alt.kind == "stereo"
-    assert alt.relation == "C=C (atoms 4=5) Z instead of E"
+    assert alt.relation == "C=C (atoms 4 and 5) Z instead of E"
     # a drawing that leaves the bond open claims nothing to test; a ring double bond has no E/Z
     assert isomers("COC(=O)C=Cc1ccccc1", kinds=("stereo",)) == []
     assert isomers("CC1=CCCCC1", kinds=("stereo",)) == []
     # an (E)-alkenyl (Z)-oxime: each bond flipped on its own (hand count: two alternatives)
     alts = isomers("CC(/C=C/C)=N/O", kinds=("stereo",))
     assert {a.smiles for a in alts} == {canon("C/C=C\\C(C)=N/O"), canon("C/C=C/C(C)=N/O")}
-    assert {a.relation for a in alts} == {"C=C (atoms 2=3) Z instead of E", "C=N (atoms 1=5) E instead of Z"}
+    assert {a.relation for a in alts} == {"C=C (atoms 2 and 3) Z instead of E", "C=N (atoms 1 and 5) E instead of Z"}
     # (E,E)-1,4-difluorobutadiene: flipping either bond gives the one (E,Z) compound
     assert len(isomers("F/C=C/C=C/F", kinds=("stereo",))) == 1
 
@@ -594,4 +594,11 @@ def test_ranking_with_e_z_alternatives_reads_the_vinyl_coupling():
     r = rank(text=text, candidates=["COC(=O)/C=C\\c1ccccc1"], with_isomers="stereo")
     assert len(r.candidates) == 2
     top = r.candidates[0]
-    assert top.generated and top.name == "C=C (atoms 4=5) E instead of Z" and top.probability > 0.7
+    assert top.generated and top.name == "C=C (atoms 4 and 5) E instead of Z" and top.probability > 0.7
+
+
+def test_e_z_alternative_of_a_salt_keeps_its_configuration_and_the_given_atom_numbers():
+    # sodium (E)-cinnamate: the organic part flipped to Z, the counter-ion put back, atoms numbered as given
+    (alt,) = isomers("[Na+].[O-]C(=O)/C=C/c1ccccc1", kinds=("stereo",))
+    assert alt.smiles == Chem.MolToSmiles(Chem.MolFromSmiles("[O-]C(=O)/C=C\\c1ccccc1")) + ".[Na+]"
+    assert alt.relation == "C=C (atoms 4 and 5) Z instead of E"

@@ -946,7 +946,11 @@ def _stereo_flips(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
             other.SetBondDir(Chem.BondDir.NONE)
         nb = rw.GetBondWithIdx(b.GetIdx())
         nb.SetStereo(_FLIP[nb.GetStereo()])
-        m = Chem.MolFromSmiles(Chem.MolToSmiles(rw.GetMol()))   # only the configuration changed: no sanitising edit
+        edited = rw.GetMol()
+        # the directions written back from the flags, so that the SMILES keeps every configuration (a salt's
+        # organic fragment carries no perception flag, and its SMILES would otherwise lose them)
+        Chem.SetDoubleBondNeighborDirections(edited)
+        m = Chem.MolFromSmiles(Chem.MolToSmiles(edited))   # only the configuration changed: no sanitising edit
         if m is None:
             continue
         was = b.GetProp("_CIPCode") if b.HasProp("_CIPCode") else None
@@ -956,7 +960,7 @@ def _stereo_flips(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         fb = flipped.GetBondWithIdx(b.GetIdx())
         now = fb.GetProp("_CIPCode") if fb.HasProp("_CIPCode") else None
         i, j = b.GetBeginAtomIdx(), b.GetEndAtomIdx()
-        what = f"{given.GetAtomWithIdx(i).GetSymbol()}={given.GetAtomWithIdx(j).GetSymbol()} (atoms {i}={j})"
+        what = f"{given.GetAtomWithIdx(i).GetSymbol()}={given.GetAtomWithIdx(j).GetSymbol()} (atoms {i} and {j})"
         out.append((m, f"{what} {now} instead of {was}" if now and was and now != was
                     else f"{what} drawn the other way round"))
     return out
