@@ -954,7 +954,7 @@ def _stereo_flips(mol: Chem.Mol) -> list[tuple[Chem.Mol, str]]:
         if m is None:
             continue
         was = b.GetProp("_CIPCode") if b.HasProp("_CIPCode") else None
-        flipped = Chem.Mol(rw.GetMol())
+        flipped = Chem.Mol(edited)
         rdCIPLabeler.AssignCIPLabels(flipped)
         # the edited molecule keeps the given atom order, so the same bond index is the same bond
         fb = flipped.GetBondWithIdx(b.GetIdx())

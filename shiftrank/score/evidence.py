@@ -455,9 +455,9 @@ class ProtonEvidence(_Evidence):
                 # two forms: printed in protons, a form's share ('0.5H', '1.5H') rounded up to whole protons
                 scaled = np.maximum(1, np.ceil(vals - 0.25)).astype(int)
             elif near.mean() >= 0.75 or (pl.printed and np.any(np.abs(2 * vals - np.round(2 * vals)) > 0.1)):
+                # printed in protons; a few odd values (0.1H/0.9H of a tautomer mix) are rounded, at least 1
                 # (printed text gives protons: odd shares such as '0.4H' are a trace or an impurity, not a sign
                 # that the values are relative areas; halves ('0.5H' each) are two forms' lines, read as a ratio)
-                # printed in protons; a few odd values (0.1H/0.9H of a tautomer mix) are rounded, at least 1
                 scaled = np.maximum(1, np.round(vals)).astype(int)
             else:  # relative areas: the best small-integer ratio (inventory's rule)
                 try:

@@ -176,8 +176,7 @@ def compare_spectra(sample: PeakList, reference: PeakList, tolerance: float | No
 
         extra = [s_lines[j] for j in range(len(s)) if j not in paired_s]
         for m in impurity_lines(extra, sample.solvent, nuc):
-            name, shifts = m.name, m.shifts
-            out.notes.append(f"further sample line{'s' if len(shifts) > 1 else ''} {', '.join(f'{v:g}' for v in shifts)} "
-                             f"{'are' if len(shifts) > 1 else 'is'} where {name} shows in {sample.solvent} (Fulmer et al. "
+            out.notes.append(f"further sample line{'s' if len(m.shifts) > 1 else ''} {', '.join(f'{v:g}' for v in m.shifts)} "
+                             f"{'are' if len(m.shifts) > 1 else 'is'} where {m.name} shows in {sample.solvent} (Fulmer et al. "
                              "2010, Tables 1 and 2, values recalled): a solvent or grease residue?")
     return out

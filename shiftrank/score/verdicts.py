@@ -297,7 +297,7 @@ def impurity_notes(cands: list[CandidateResult], solvent: str | None) -> list[st
         scale = _proton_scale(res) if nucleus == "1H" else None
         by_lines: dict = {}
         for m in matches:   # n-hexane and grease show at the same 1H lines: named together
-            amount = _amount(m, [free[k] for k in m.index], scale, best.smiles) if scale else ""
+            amount = _amount(m, [free[k] for k in m.index], scale, best.facts) if scale else ""
             by_lines.setdefault(tuple(sorted(m.shifts, reverse=True)), []).append(m.name + amount)
         said = "; ".join(f"{', '.join(f'{v:g}' for v in shifts)} {'are' if len(shifts) > 1 else 'is'} where "
                          f"{' or '.join(names)} {'show' if len(names) > 1 else 'shows'}" for shifts, names in by_lines.items())
@@ -319,19 +319,17 @@ def _proton_scale(res) -> float | None:
     return sum(a for a, _ in area) / sum(n for _, n in area)
 
 
-def _amount(m, peaks, scale: float, smiles: str) -> str:
-    """' (≈ 0.13 mol per mol of the top candidate, ≈ 5 % by weight)' of an impurity from its lines' integrals."""
-    from rdkit.Chem import Descriptors
-
+def _amount(m, peaks, scale: float, facts) -> str:
+    """' (≈ 0.13 mol per mol of the top candidate, ≈ 5 % by weight)' of an impurity from its lines' integrals (the
+    candidate's molar mass from its structure facts)."""
     from ..chem.formula import average_weight, parse_formula
 
     per = [p.intensity / scale / n for p, n in zip(peaks, m.protons) if n and p.intensity]
     if not per or len(per) < len(peaks):
         return ""
     eq = float(np.mean(per))
-    mol = Chem.MolFromSmiles(smiles)
-    if mol is None or m.formula is None:
+    if facts is None or m.formula is None:
         return f" (≈ {eq:.2g} mol per mol of the top candidate)"
     w_imp = eq * average_weight(parse_formula(m.formula))
-    share = 100 * w_imp / (Descriptors.MolWt(mol) + w_imp)
+    share = 100 * w_imp / (facts.average_mass + w_imp)
     return f" (≈ {eq:.2g} mol per mol of the top candidate, ≈ {share:.2g} % by weight)"
