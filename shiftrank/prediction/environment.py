@@ -30,6 +30,7 @@ from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
 from ..chem.labels import labelled_hydrogens
+from .configuration import configuration_roles
 from .pi_system import pi_from_tables
 from .ring_systems import KEY_NAMES, ring_keys
 
@@ -121,6 +122,7 @@ class MolEnvironments:
     nucleus: str = "13C"
     ring_keys: np.ndarray | None = None  # (n_centres, 3) uint32 ring-system keys (:mod:`.ring_systems`; 13C)
     offsets: np.ndarray | None = None    # (n_centres,) ppm added to the prediction (isotope shift; see mol_parts)
+    config: np.ndarray | None = None     # (n_centres, len(ROLES)) E/Z roles (:mod:`.configuration`), None: none
 
 
 
@@ -144,6 +146,7 @@ class MolParts:
     pi: np.ndarray | None = None       # (n, 3) Hückel π charge, π membership, π bond-order sum per atom
     ring_keys: np.ndarray | None = None  # (n_centres, 3) ring-system keys of the centres (13C only)
     offsets: np.ndarray | None = None    # (n_centres,) ppm added to the prediction: the 13C isotope shift of 2H/3H
+    config: np.ndarray | None = None     # (n_centres, len(ROLES)) roles at configured double bonds, or None
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", pi: np.ndarray | None = None) -> MolParts:
@@ -212,7 +215,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
         # the models know unlabelled molecules: a carbon carrying n 2H/3H is predicted ISOTOPE_SHIFT_13C × n lower
         offsets = np.array([ISOTOPE_SHIFT_13C * labels.get(int(c), 0) for c in centres], dtype=np.float64)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
-                    pi=pi, ring_keys=keys, offsets=offsets)
+                    pi=pi, ring_keys=keys, offsets=offsets, config=configuration_roles(mol, centres))
 
 
 def pi_columns(info, bonds: np.ndarray) -> np.ndarray:
@@ -485,7 +488,7 @@ def environments_of(parts: list[MolParts]) -> list[MolEnvironments]:
                       for p in parts]) if NC else np.zeros((0, len(KEY_NAMES)), np.uint32)
     return [MolEnvironments(p.centres, codes[c_off[i]:c_off[i + 1]], features[c_off[i]:c_off[i + 1]],
                             p.dist.max(axis=1) if p.dist.size else np.zeros(len(p.centres)), nucleus,
-                            keys[c_off[i]:c_off[i + 1]], p.offsets)
+                            keys[c_off[i]:c_off[i + 1]], p.offsets, p.config)
             for i, p in enumerate(parts)]
 
 

@@ -83,6 +83,8 @@ class ShiftModel:
         self.sigma_regressor = sigma_regressor
         self.sigma_scale = sigma_scale
         self.sigma_floor = sigma_floor
+        #: ppm per E/Z role (:mod:`.configuration`), from the manifest; None: the stereo-blind estimate alone
+        self.config_increments: np.ndarray | None = None
 
     @property
     def regressors(self) -> list:
@@ -168,6 +170,12 @@ class ShiftModel:
                                                        np.concatenate([e.eccentricity for e in envs]), keys)
         if any(e.offsets is not None for e in envs):   # isotope shifts of labelled carbons
             mu = mu + np.concatenate([e.offsets if e.offsets is not None else np.zeros(len(e.centres)) for e in envs])
+        inc = self.config_increments
+        if inc is not None and any(e.config is not None for e in envs):
+            # E/Z increments; not where the whole compound was matched (its measured value is of whichever
+            # configuration the data hold, and the sphere codes cannot tell which)
+            roles = np.vstack([e.config if e.config is not None else np.zeros((len(e.centres), len(inc))) for e in envs])
+            mu = mu + np.where(radius > envs[0].codes.shape[1], 0.0, roles @ inc)
         return mu, sigma, radius, count
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:

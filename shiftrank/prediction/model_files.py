@@ -15,6 +15,7 @@ from pathlib import Path
 
 import numpy as np
 
+from .configuration import increments_from_entry
 from .environment import feature_names
 from .model import ShiftModel
 from .ring_systems import RingTables
@@ -131,6 +132,10 @@ def load_shift_model(directory: Path | None = None, nucleus: str = "13C") -> Shi
         raise ModelFileError(f"{boost_path}: a boosted member expects {sorted({m.n_features_in_ for m in members} - views)} "
                              f"input columns; this version of shiftrank gives {', '.join(map(str, sorted(views)))}")
     model.drop_unread_ring_tables()
+    try:
+        model.config_increments = increments_from_entry(entry)
+    except (ValueError, TypeError, AttributeError) as exc:
+        raise ModelFileError(f"{d}: the {nucleus} entry's configuration increments are unreadable ({exc})") from None
     return model
 
 

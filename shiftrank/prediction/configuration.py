@@ -1,0 +1,114 @@
+"""E/Z configuration increments: what the stereo-blind models cannot see across a double bond.
+
+The sphere codes and descriptors describe constitution only, so an E and a Z alkene (or oxime) get the
+same prediction: a blend of both configurations, weighted as the training data happen to hold them.
+The best-known configuration effect is on an sp3 carbon beside the double bond: a heavy group cis to it
+across the bond shields it by several ppm (the steric γ effect; common practice, e.g. the α-methyl of
+an angelate against a tiglate ester).  A vinyl proton cis to a conjugating group is deshielded
+against one cis to H (common practice).
+
+Each centre gets counts of the *roles* it plays at double bonds whose configuration the structure
+states (:func:`configuration_roles`); the model adds one increment per role and nucleus
+(``configuration_increments`` of the nucleus's manifest entry, fitted by
+``training/configuration_increments.py`` on the validation split's residuals, where the sphere
+tables have not seen the molecules).  A structure drawn without configuration gets no increment.
+"""
+from __future__ import annotations
+
+import numpy as np
+from rdkit import Chem
+
+#: role names, in column order.  "cis"/"trans" say where heavy groups of the double bond's other atom
+#: lie relative to the centre (sp3 or sp2 neighbour of the bond) or to the H of a vinyl CH.
+ROLES = (
+    "sp3 beside the bond, heavy group cis only",
+    "sp3 beside the bond, heavy group trans only",
+    "sp3 beside the bond, heavy groups cis and trans",
+    "sp2 beside the bond, heavy group cis only",
+    "sp2 beside the bond, heavy group trans only",
+    "sp2 beside the bond, heavy groups cis and trans",
+    "vinyl CH, its H cis to a heavy group only",
+    "vinyl CH, its H trans to a heavy group only",
+    "vinyl CH, its H between heavy groups cis and trans",
+)
+_CIS = (Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS)
+_TRANS = (Chem.BondStereo.STEREOE, Chem.BondStereo.STEREOTRANS)
+#: double bonds in rings smaller than this have a fixed geometry that the sphere codes already see
+MIN_RING = 8
+
+
+def _pattern(cis: int, trans: int) -> int | None:
+    """0: heavy cis only, 1: trans only, 2: both; None when the other atom carries no heavy group."""
+    if cis and trans:
+        return 2
+    return 0 if cis else 1 if trans else None
+
+
+def configuration_roles(mol: Chem.Mol, centres) -> np.ndarray | None:
+    r"""(len(centres), len(ROLES)) counts of each centre's roles at the configured double bonds of ``mol``
+    (hydrogens implicit; the configuration as RDKit perceives it from the SMILES or the 2D drawing), or
+    None when no double bond has a stated configuration.
+
+    >>> from rdkit import Chem
+    >>> m = Chem.MolFromSmiles("C/C=C(\\C)C(=O)OC")   # the α-methyl (atom 3) cis to the β-methyl
+    >>> r = configuration_roles(m, range(m.GetNumAtoms()))
+    >>> [ROLES[k] for k in np.flatnonzero(r[3])]
+    ['sp3 beside the bond, heavy group cis only']
+    >>> configuration_roles(Chem.MolFromSmiles("CC=C(C)C(=O)OC"), range(8)) is None
+    True
+    """
+    found: dict[int, list[int]] = {}
+    ring = mol.GetRingInfo()
+    for b in mol.GetBonds():
+        st = b.GetStereo()
+        if b.GetBondType() != Chem.BondType.DOUBLE or st not in _CIS + _TRANS:
+            continue
+        if b.IsInRing() and ring.MinBondRingSize(b.GetIdx()) < MIN_RING:
+            continue
+        s1, s2 = list(b.GetStereoAtoms())
+        same = st in _CIS              # are the two stereo atoms on one side?
+        a, c = b.GetBeginAtom(), b.GetEndAtom()
+        if s1 not in [n.GetIdx() for n in a.GetNeighbors()]:
+            s1, s2 = s2, s1
+        # each neighbour's side: True for the stereo atom's side of its own end
+        side_a = {n.GetIdx(): n.GetIdx() == s1 for n in a.GetNeighbors() if n.GetIdx() != c.GetIdx()}
+        side_c = {n.GetIdx(): n.GetIdx() == s2 for n in c.GetNeighbors() if n.GetIdx() != a.GetIdx()}
+        for mine, other, atom in ((side_a, side_c, a), (side_c, side_a, c)):
+            for x, xs in mine.items():
+                cis = sum((xs == ys) == same for ys in other.values())
+                k = _pattern(cis, len(other) - cis)
+                if k is None:
+                    continue
+                hyb = mol.GetAtomWithIdx(x).GetHybridization()
+                if hyb == Chem.HybridizationType.SP3:
+                    found.setdefault(x, []).append(k)
+                elif hyb == Chem.HybridizationType.SP2:
+                    found.setdefault(x, []).append(3 + k)
+            # a vinyl CH: its H sits opposite its one heavy neighbour
+            if atom.GetTotalNumHs() == 1 and len(mine) == 1:
+                (x, xs), = mine.items()
+                cis = sum(((not xs) == ys) == same for ys in other.values())
+                k = _pattern(cis, len(other) - cis)
+                if k is not None:
+                    found.setdefault(atom.GetIdx(), []).append(6 + k)
+    if not found:
+        return None
+    row = {int(c): i for i, c in enumerate(centres)}
+    out = np.zeros((len(row), len(ROLES)), dtype=np.float64)
+    for atom, roles in found.items():
+        if atom in row:
+            for k in roles:
+                out[row[atom], k] += 1
+    return out if out.any() else None
+
+
+def increments_from_entry(entry: dict) -> np.ndarray | None:
+    """The per-role increments (ppm) of a nucleus's manifest entry, in :data:`ROLES` order (0 for a role
+    the fit left out), or None when the entry has none."""
+    values = (entry.get("configuration_increments") or {}).get("ppm") or {}
+    if not values:
+        return None
+    unknown = set(values) - set(ROLES)
+    if unknown:
+        raise ValueError(f"unknown configuration roles in the manifest: {sorted(unknown)}")
+    return np.array([float(values.get(r, 0.0)) for r in ROLES])
