@@ -125,21 +125,35 @@ def _stereo_note(valid: list[CandidateResult]) -> str:
         r = c.nuclei.get("1H")
         return 0 if r is None else len({p.cls for p in r.assignment.pairings if not p.multiplicity_ok})
     noe = best.nuclei.get("NOESY"), second.nuclei.get("NOESY")
+    blind = ("which the predicted shifts tell apart only by a few carbons beside a double bond (a group cis across it "
+             "shields an sp3 carbon)" if _predictions_differ(best, second)
+             else "which the predicted shifts do not tell apart")
     if all(r is not None for r in noe):
         gap = noe[1].cost / second.divisors.get("NOESY", 1.0) - noe[0].cost / best.divisors.get("NOESY", 1.0)
         if gap >= 0.3:
-            return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the NOESY "
+            return (f"; they differ only in stereochemistry, {blind}: the NOESY "
                     f"given leans to {best.name or best.smiles} ({count(len(noe[1].far_cross_peaks), 'cross peak')} that "
                     f"{second.name or second.smiles} places too far apart; RDKit conformers)")
-        return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart, and the NOESY given "
+        return (f"; they differ only in stereochemistry, {blind}, and the NOESY given "
                 "hardly does either: compare coupling constants (axial/equatorial, cis/trans alkene J) or measure NOE "
                 "between the protons that would differ")
     if misfits(second) > misfits(best):
-        return ("; they differ only in stereochemistry, which the predicted shifts do not tell apart: the printed "
+        return (f"; they differ only in stereochemistry, {blind}: the printed "
                 f"coupling constants do ({second.name or second.smiles}'s protons cannot show "
                 f"{'them' if misfits(second) > 1 else 'one of them'}); NOE would confirm")
-    return ("; they differ only in stereochemistry, which shifts predicted from the structure's graph do not "
-            "tell apart: compare coupling constants (axial/equatorial, cis/trans alkene J) or NOE")
+    return (f"; they differ only in stereochemistry, {blind}: compare coupling constants (axial/equatorial, "
+            "cis/trans alkene J) or NOE")
+
+
+def _predictions_differ(a: CandidateResult, b: CandidateResult) -> bool:
+    """Whether two candidates' predicted shifts differ anywhere (E/Z increments, :mod:`shiftrank.prediction.configuration`)."""
+    for n in ("13C", "1H"):
+        ra, rb = a.nuclei.get(n), b.nuclei.get(n)
+        if ra is not None and rb is not None:
+            sa, sb = sorted(c.shift for c in ra.classes), sorted(c.shift for c in rb.classes)
+            if len(sa) != len(sb) or any(abs(x - y) > 0.05 for x, y in zip(sa, sb)):
+                return True
+    return False
 
 
 def _same_constitution(a: str, b: str) -> bool:
