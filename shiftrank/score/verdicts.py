@@ -146,12 +146,14 @@ def _stereo_note(valid: list[CandidateResult]) -> str:
 
 
 def _predictions_differ(a: CandidateResult, b: CandidateResult) -> bool:
-    """Whether two candidates' predicted shifts differ anywhere (E/Z increments, :mod:`shiftrank.prediction.configuration`)."""
+    """Whether two candidates' predicted shifts differ by 1 ppm or more anywhere (an E/Z increment,
+    :mod:`shiftrank.prediction.configuration`; ring-table lookups of two ring diastereomers may differ by
+    hundredths, which tells nothing apart)."""
     for n in ("13C", "1H"):
         ra, rb = a.nuclei.get(n), b.nuclei.get(n)
         if ra is not None and rb is not None:
             sa, sb = sorted(c.shift for c in ra.classes), sorted(c.shift for c in rb.classes)
-            if len(sa) != len(sb) or any(abs(x - y) > 0.05 for x, y in zip(sa, sb)):
+            if len(sa) == len(sb) and any(abs(x - y) >= 1.0 for x, y in zip(sa, sb)):
                 return True
     return False
 
