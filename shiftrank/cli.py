@@ -234,6 +234,9 @@ def cmd_predict(args) -> int:
                 measured = [str(c.atom) for c in pred.atoms if c.whole_molecule]
                 if measured:  # the compound is in the training data: these values are its measured shifts
                     obj[f"measured_in_data{tag}"] = measured
+                ez = {str(c.atom): c.configuration for c in pred.atoms if c.configuration}
+                if ez:   # ppm of the shift that comes from the E/Z increment (a group cis across a double bond)
+                    obj[f"ez_increment{tag}"] = ez
             obj["model"] = version
             notes = next(iter(preds.values())).notes
             if notes:
@@ -254,6 +257,8 @@ def cmd_predict(args) -> int:
                         else f"{nh}H@{a.GetSymbol()}")
                 match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
                          f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
+                if c.configuration:
+                    match += f"; E/Z {c.configuration:+.{nd}f} (a group cis across the double bond)"
                 print(f"       {c.atom:>4}  {what:<6}{c.shift:7.{nd}f}  {Z90 * c.sigma:6.{nd}f}  {match}")
     if written:
         print(f"{count(len(written), 'predicted peak table')} written to {args.jcamp} (JCAMP-DX)", file=sys.stderr)

@@ -6,6 +6,7 @@ steric γ effect) is common practice; the ranking check uses the open NMRShiftDB
 (benchmarks/bench_configuration.py builds the same cases).
 """
 import json
+import re
 import shutil
 import sys
 from pathlib import Path
@@ -103,3 +104,21 @@ def test_ez_alternatives_on_open_peak_lists(shared_data):
     assert len(cases) >= 60
     assert outcomes.count("right") >= 2 * outcomes.count("wrong")
     assert outcomes.count("tie") < len(cases) / 3
+
+
+def test_the_increment_is_shown_where_it_applies():
+    # the Python result names it per atom; the CLI prints it in the table and as "ez_increment" in JSON Lines
+    import subprocess
+
+    z = "CCCC/C=C\\C(=O)N1CCOCC1"
+    atoms = {a.atom: a for a in predict(z).atoms}
+    assert atoms[3].configuration == pytest.approx(default_model("13C").config_increments[CIS_SP3])
+    assert all(a.configuration == 0.0 for i, a in atoms.items() if i != 3)
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", z, "--jsonl"], capture_output=True, text=True)
+    obj = json.loads(out.stdout)
+    assert list(obj["ez_increment"]) == ["3"] and out.returncode == 0
+    out = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", "CCCCC=CC(=O)N1CCOCC1", "--jsonl"],
+                         capture_output=True, text=True)
+    assert "ez_increment" not in json.loads(out.stdout)
+    table = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", z], capture_output=True, text=True).stdout
+    assert re.search(r"E/Z -\d+\.\d \(a group cis across the double bond\)", table)

@@ -33,6 +33,8 @@ ROLES = (
 )
 _CIS = (Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS)
 _TRANS = (Chem.BondStereo.STEREOE, Chem.BondStereo.STEREOTRANS)
+#: the bond stereo values that state a configuration
+CONFIGURED = _CIS + _TRANS
 #: double bonds in rings smaller than this have a fixed geometry that the sphere codes already see
 MIN_RING = 8
 
@@ -44,10 +46,11 @@ def _pattern(cis: int, trans: int) -> int | None:
     return 0 if cis else 1 if trans else None
 
 
-def configuration_roles(mol: Chem.Mol, centres) -> np.ndarray | None:
+def configuration_roles(mol: Chem.Mol, centres, bonds=None) -> np.ndarray | None:
     r"""(len(centres), len(ROLES)) counts of each centre's roles at the configured double bonds of ``mol``
     (hydrogens implicit; the configuration as RDKit perceives it from the SMILES or the 2D drawing), or
-    None when no double bond has a stated configuration.
+    None when no double bond has a stated configuration.  ``bonds``: the double bonds to look at, when the
+    caller has already picked those with a stated configuration (default: every bond of ``mol``).
 
     >>> from rdkit import Chem
     >>> m = Chem.MolFromSmiles("C/C=C(\\C)C(=O)OC")   # the α-methyl (atom 3) cis to the β-methyl
@@ -59,9 +62,9 @@ def configuration_roles(mol: Chem.Mol, centres) -> np.ndarray | None:
     """
     found: dict[int, list[int]] = {}
     ring = mol.GetRingInfo()
-    for b in mol.GetBonds():
+    for b in (mol.GetBonds() if bonds is None else bonds):
         st = b.GetStereo()
-        if b.GetBondType() != Chem.BondType.DOUBLE or st not in _CIS + _TRANS:
+        if b.GetBondType() != Chem.BondType.DOUBLE or st not in CONFIGURED:
             continue
         if b.IsInRing() and ring.MinBondRingSize(b.GetIdx()) < MIN_RING:
             continue

@@ -30,7 +30,7 @@ from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
 from ..chem.labels import labelled_hydrogens
-from .configuration import configuration_roles
+from .configuration import CONFIGURED, configuration_roles
 from .pi_system import pi_from_tables
 from .ring_systems import KEY_NAMES, ring_keys
 
@@ -179,8 +179,12 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     if rows is None:
         rows = [row + (0.0, 0.0) for row in info]
     table = np.array(rows, dtype=np.float64).reshape(n, 9)
+    bond_objs = list(map(mol.GetBondWithIdx, range(mol.GetNumBonds())))
     bond_list = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), b.GetBondType(), b.GetIsConjugated() or b.GetIsAromatic())
-                 for b in map(mol.GetBondWithIdx, range(mol.GetNumBonds()))]
+                 for b in bond_objs]
+    # double bonds with a stated configuration, found in the same pass (most molecules have none)
+    configured = [b for b, (_, _, t, _) in zip(bond_objs, bond_list)
+                  if t == Chem.BondType.DOUBLE and b.GetStereo() in CONFIGURED]
     bonds = np.array([(i, j, _BOND_KINDS.get(t, 0), c) for i, j, t, c in bond_list], dtype=np.int64).reshape(-1, 4)
     labels = labelled_hydrogens(mol)   # 2H/3H (chem/labels.py): no 1H shift, a 13C isotope shift
     if nucleus == "13C":
@@ -215,7 +219,8 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
         # the models know unlabelled molecules: a carbon carrying n 2H/3H is predicted ISOTOPE_SHIFT_13C × n lower
         offsets = np.array([ISOTOPE_SHIFT_13C * labels.get(int(c), 0) for c in centres], dtype=np.float64)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
-                    pi=pi, ring_keys=keys, offsets=offsets, config=configuration_roles(mol, centres))
+                    pi=pi, ring_keys=keys, offsets=offsets,
+                    config=configuration_roles(mol, centres, configured) if configured else None)
 
 
 def pi_columns(info, bonds: np.ndarray) -> np.ndarray:

@@ -40,6 +40,7 @@ class AtomPrediction:
     sphere_radius: int        # widest sphere with a table match (0 = none)
     sphere_count: int         # training atoms behind that match
     whole_molecule: bool = False  # the match covers the whole molecule: the shift is the measured one
+    configuration: float = 0.0    # ppm of E/Z increments in ``shift`` (:mod:`.configuration`)
 
     @property
     def interval90(self) -> tuple[float, float]:
@@ -170,13 +171,20 @@ class ShiftModel:
                                                        np.concatenate([e.eccentricity for e in envs]), keys)
         if any(e.offsets is not None for e in envs):   # isotope shifts of labelled carbons
             mu = mu + np.concatenate([e.offsets if e.offsets is not None else np.zeros(len(e.centres)) for e in envs])
-        inc = self.config_increments
-        if inc is not None and any(e.config is not None for e in envs):
-            # E/Z increments; not where the whole compound was matched (its measured value is of whichever
-            # configuration the data hold, and the sphere codes cannot tell which)
-            roles = np.vstack([e.config if e.config is not None else np.zeros((len(e.centres), len(inc))) for e in envs])
-            mu = mu + np.where(radius > envs[0].codes.shape[1], 0.0, roles @ inc)
+        ez = self.configuration_shifts(envs, radius)
+        if ez is not None:
+            mu = mu + ez
         return mu, sigma, radius, count
+
+    def configuration_shifts(self, envs: list[MolEnvironments], radius: np.ndarray) -> np.ndarray | None:
+        """ppm of E/Z increments for the centres of ``envs`` in order (None when none applies); not where the
+        whole compound was matched (``radius`` beyond the widest sphere): its measured value is of whichever
+        configuration the data hold, and the sphere codes cannot tell which."""
+        inc = self.config_increments
+        if inc is None or all(e.config is None for e in envs):
+            return None
+        roles = np.vstack([e.config if e.config is not None else np.zeros((len(e.centres), len(inc))) for e in envs])
+        return np.where(radius > envs[0].codes.shape[1], 0.0, roles @ inc)
 
     def predict_envs(self, envs: list[MolEnvironments]) -> list[MolPrediction]:
         """Predict many molecules in one model call (fast path for batches)."""
@@ -189,6 +197,10 @@ class ShiftModel:
                    np.round(np.asarray(sigma, dtype=np.float64), 4).tolist(),
                    np.minimum(radius, R).tolist(), count.tolist(), (radius > R).tolist())
         atoms = [AtomPrediction(*row) for row in rows]
+        ez = self.configuration_shifts(envs, radius)
+        if ez is not None:
+            for i in np.flatnonzero(ez):
+                atoms[i].configuration = round(float(ez[i]), 4)
         out, k = [], 0
         for e in envs:
             n = len(e.centres)
