@@ -75,9 +75,8 @@ def fit(residuals: dict[int, list[float]], seed: int = 0) -> dict:
     return {"ppm": ppm, "n_validation": n, "ci90_validation": ci}
 
 
-def mae_report(mols, nucleus: str, increments: dict) -> dict:
-    """MAE of the role centres without and with ``increments`` (one split)."""
-    before = role_residuals(mols, nucleus)
+def mae_report(before: dict[int, list[float]], increments: dict) -> dict:
+    """MAE of the role centres of one split (``before``: its :func:`role_residuals`) without and with ``increments``."""
     out = {}
     for k, vals in before.items():
         if not vals:
@@ -110,8 +109,8 @@ def main(argv=None) -> int:
         fitted = {"ppm": {r: v for r, v in pooled["ppm"].items() if r in keep},
                   "validation fold": fv["ppm"], "test fold": ft["ppm"],
                   "n": pooled["n_validation"], "ci90 pooled": pooled["ci90_validation"],
-                  "test with the validation fit": mae_report(test, nucleus, {r: fv["ppm"][r] for r in keep}),
-                  "validation with the test fit": mae_report(val, nucleus, {r: ft["ppm"][r] for r in keep})}
+                  "test with the validation fit": mae_report(rt, {r: fv["ppm"][r] for r in keep}),
+                  "validation with the test fit": mae_report(rv, {r: ft["ppm"][r] for r in keep})}
         result[nucleus] = fitted
         print(f"{nucleus}: validation fold {fv['ppm']}\n     test fold {ft['ppm']}\n     kept {fitted['ppm']}", flush=True)
         for fold in ("test with the validation fit", "validation with the test fit"):
