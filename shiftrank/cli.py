@@ -197,6 +197,7 @@ def cmd_predict(args) -> int:
     from .prediction.api import predict_records
     from .prediction.model import Z90
     from .prediction.model_files import default_manifest
+    from .prediction.configuration import increment_note
 
     nuclei = ["13C", "1H"] if args.nucleus == "both" else [args.nucleus]
     if _structure_token(args.file) == "smiles":   # a structure typed on the command line, as rank and facts take it
@@ -258,7 +259,7 @@ def cmd_predict(args) -> int:
                 match = (f"whole molecule in data (n={c.sphere_count})" if c.whole_molecule else
                          f"r={c.sphere_radius} (n={c.sphere_count})" if c.sphere_radius else "none (descriptors only)")
                 if c.configuration:
-                    match += f"; E/Z {c.configuration:+.{nd}f} (a group cis across the double bond)"
+                    match += f"; {increment_note(c.configuration, nd)}"
                 print(f"       {c.atom:>4}  {what:<6}{c.shift:7.{nd}f}  {Z90 * c.sigma:6.{nd}f}  {match}")
     if written:
         print(f"{count(len(written), 'predicted peak table')} written to {args.jcamp} (JCAMP-DX)", file=sys.stderr)

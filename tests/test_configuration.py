@@ -122,3 +122,18 @@ def test_the_increment_is_shown_where_it_applies():
     assert "ez_increment" not in json.loads(out.stdout)
     table = subprocess.run([sys.executable, "-m", "shiftrank.cli", "predict", z], capture_output=True, text=True).stdout
     assert re.search(r"E/Z -\d+\.\d \(a group cis across the double bond\)", table)
+
+
+def test_the_assignment_table_marks_the_carbon_with_the_increment():
+    # the ranking's 13C table (terminal, report and JSON share its rows) says which carbon the increment moved;
+    # the E drawing, whose CH2 has no group cis to it, carries no such note
+    from shiftrank.score.ranking import rank
+
+    z, e = "CCCC/C=C\\C(=O)N1CCOCC1", "CCCC/C=C/C(=O)N1CCOCC1"
+    peaks = sorted({round(v, 1) for v in predict(z).shifts.values()})
+    res = {c.smiles: c for c in rank(peaks, [z, e]).candidates}
+    marked = {tuple(row["atoms"]): row["notes"] for row in res[z].nuclei["13C"].assignment_table()
+              if any(n.startswith("E/Z") for n in row["notes"])}
+    assert list(marked) == [(3,)]
+    assert any(re.fullmatch(r"E/Z -\d+\.\d \(a group cis across the double bond\)", n) for n in marked[(3,)])
+    assert not any(n.startswith("E/Z") for row in res[e].nuclei["13C"].assignment_table() for n in row["notes"])

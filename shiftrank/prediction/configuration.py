@@ -116,3 +116,13 @@ def increments_from_entry(entry: dict) -> np.ndarray | None:
     if unknown:
         raise ValueError(f"unknown configuration roles in the manifest: {sorted(unknown)}")
     return np.array([float(values.get(r, 0.0)) for r in ROLES])
+
+
+def increment_note(ppm: float, digits: int = 1) -> str:
+    """How the tables say an atom's E/Z increment: ``'E/Z -2.2 (a group cis across the double bond)'``.
+
+    >>> increment_note(-2.24)
+    'E/Z -2.2 (a group cis across the double bond)'
+    """
+    why = "a group cis across the double bond" if ppm < 0 else "the configuration of a double bond beside it"
+    return f"E/Z {ppm:+.{digits}f} ({why})"

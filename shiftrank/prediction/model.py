@@ -166,10 +166,11 @@ class ShiftModel:
 
     def predict_env_arrays(self, envs: list[MolEnvironments]):
         """:meth:`predict_arrays` for the carbons of many molecules, in order, in one model call."""
-        return self._env_arrays(envs)[:4]
+        return self.env_arrays(envs)[:4]
 
-    def _env_arrays(self, envs: list[MolEnvironments]):
-        """:meth:`predict_env_arrays` and the E/Z part of the shifts in it (None when none applies)."""
+    def env_arrays(self, envs: list[MolEnvironments]):
+        """:meth:`predict_env_arrays` and the E/Z part of the shifts in it (None when none applies), so that a
+        caller can say which atoms carry it."""
         keys = np.vstack([e.ring_keys for e in envs]) if self.ring_tables is not None else None
         mu, sigma, radius, count = self.predict_arrays(np.vstack([e.features for e in envs]), np.vstack([e.codes for e in envs]),
                                                        np.concatenate([e.eccentricity for e in envs]), keys)
@@ -194,7 +195,7 @@ class ShiftModel:
         """Predict many molecules in one model call (fast path for batches)."""
         if not envs:
             return []
-        mu, sigma, radius, count, ez = self._env_arrays(envs)
+        mu, sigma, radius, count, ez = self.env_arrays(envs)
         R = envs[0].codes.shape[1]
         # (float32 arithmetic: 120.69999694824219 is 120.7 to the model's precision; four decimals are shown)
         rows = zip(np.concatenate([e.centres for e in envs]).tolist(), np.round(mu.astype(np.float64), 4).tolist(),

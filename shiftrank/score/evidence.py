@@ -30,6 +30,7 @@ from ..chem.labels import labelled_hydrogens
 from ..chem.couplings import ExpectedMultiplet, carbon_multiplets, expected_multiplets, fit_cost
 from ..chem.inventory import integer_ratio
 from ..chem.structure import carbon_classes
+from ..prediction.configuration import increment_note
 from ..errors import InputError
 from ..inputs.peaks import HSQC_ALLOWS, HsqcList, PeakList, hsqc_list  # noqa: F401 - hsqc_list re-exported
 from ..inputs.solvents import SOLVENTS, exchanges_deuterium
@@ -54,11 +55,13 @@ _MCODE = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3, "CH4": 4}
 class ClassMeans:
     """Predicted shifts and sigmas of a molecule's centres, averaged per class with array arithmetic.
 
-    ``centres`` are heavy-atom indices in the order of ``mu``/``sg``; a class is a list of atoms."""
+    ``centres`` are heavy-atom indices in the order of ``mu``/``sg``; a class is a list of atoms.  ``ez``: the
+    E/Z increments included in ``mu`` (:mod:`shiftrank.prediction.configuration`), None when none applies."""
 
-    def __init__(self, centres, mu, sg):
+    def __init__(self, centres, mu, sg, ez=None):
         self.pos = {int(a): k for k, a in enumerate(centres)}
         self.mu, self.sg = np.asarray(mu, dtype=float), np.asarray(sg, dtype=float)
+        self.ez = None if ez is None else np.asarray(ez, dtype=float)
         self._member: dict = {}
 
     def of(self, classes: list[list[int]]):
@@ -76,6 +79,12 @@ class ClassMeans:
         m = np.bincount(idx[ok], weights=self.mu[ok], minlength=len(size)) / size
         s = np.bincount(idx[ok], weights=self.sg[ok], minlength=len(size)) / size
         return m, s
+
+    def configuration_of(self, classes: list[list[int]]) -> list[float]:
+        """Mean E/Z increment (ppm) inside each class's predicted shift; zeros when none applies."""
+        if self.ez is None:
+            return [0.0] * len(classes)
+        return [float(np.mean([self.ez[self.pos[a]] for a in atoms])) for atoms in classes]
 
 
 def _carbon_classes(mol: Chem.Mol, ranks, facts=None):
@@ -148,7 +157,8 @@ class NucleusResult:
             c = self.classes[p.cls]
             notes = (["unobserved" + (f" ({c.unseen_why})" if c.may_go_unseen else "")] if p.peak is None else []) \
                 + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
-                + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"])
+                + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"]) \
+                + ([increment_note(c.configuration)] if abs(c.configuration) >= 0.05 else [])
             row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
                    "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2), "peak": p.peak,
                    "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
@@ -303,7 +313,8 @@ class CarbonEvidence(_Evidence):
         cc = _carbon_classes(mol, ranks, facts)
         if isinstance(mu, ClassMeans):
             m, s = mu.of([c.atoms for c in cc])
-            out = [SignalClass(c.atoms, c.multiplicity, a, b) for c, a, b in zip(cc, m.tolist(), s.tolist())]
+            out = [SignalClass(c.atoms, c.multiplicity, a, b, configuration=z)
+                   for c, a, b, z in zip(cc, m.tolist(), s.tolist(), mu.configuration_of([c.atoms for c in cc]))]
         else:
             out = [SignalClass(c.atoms, c.multiplicity, _mean(mu, c.atoms), _mean(sg, c.atoms)) for c in cc]
         for c in out:
@@ -624,8 +635,8 @@ class HsqcEvidence(_Evidence):
         atoms = [c.atoms for c in cc]
         mc, sc = means_c.of(atoms)
         mh, sh = means_h.of(atoms)
-        return [SignalClass(c.atoms, c.multiplicity, a, b, shift_h=x, sigma_h=y)
-                for c, a, b, x, y in zip(cc, mc.tolist(), sc.tolist(), mh.tolist(), sh.tolist())]
+        return [SignalClass(c.atoms, c.multiplicity, a, b, shift_h=x, sigma_h=y, configuration=z)
+                for c, a, b, x, y, z in zip(cc, mc.tolist(), sc.tolist(), mh.tolist(), sh.tolist(), means_c.configuration_of(atoms))]
 
     def prepare(self, mol: Chem.Mol, ranks, mu, sg, peaks: list[ObservedPeak], facts=None) -> Prepared:
         classes = self.classes(mol, ranks, mu, sg, peaks, facts)

@@ -112,6 +112,7 @@ class SignalClass:
     h_atoms: list | None = None   # HMBC: the heavy atoms carrying the protons of this C–H pair (``atoms``: the carbons)
     bonds: int | None = None      # HMBC: bonds from those protons to the carbons (COSY: between the two protons)
     distance: float | None = None  # NOESY: the two protons' effective distance in space (Å)
+    configuration: float = 0.0    # 13C, HSQC: ppm of E/Z increments inside ``shift`` (said in the tables)
 
     @property
     def may_go_unseen(self) -> bool:

@@ -424,7 +424,7 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
         parts = prep.parts[n]
         means[n] = getattr(parts, "class_means", None)
         if means[n] is None or means[n].mu is not preds[n][0]:
-            means[n] = parts.class_means = ClassMeans(parts.centres, preds[n][0], preds[n][1])
+            means[n] = parts.class_means = ClassMeans(parts.centres, *preds[n])
     for n in sorted(peaks, key=SPECTRA.index):   # (HMBC after the 1D spectra whose assignments it reads)
         obs = peaks[n]
         mu = (means["13C"], means["1H"]) if len(MODELS_FOR[n]) == 2 else means[MODELS_FOR[n][0]]
@@ -958,11 +958,12 @@ def stage_cases(cases: list[dict]) -> list:
             else:
                 kept.append((g, env))
         if kept:
-            mu, sg, _, _ = default_model(n).predict_env_arrays([env for _, env in kept])
+            mu, sg, _, _, ez = default_model(n).env_arrays([env for _, env in kept])
             k = 0
             for g, env in kept:
                 m = len(env.centres)
-                pred = (mu[k:k + m], sg[k:k + m])
+                # (shifts, sigmas, the E/Z increments in the shifts or None): the tables say which atoms carry one
+                pred = (mu[k:k + m], sg[k:k + m], None if ez is None or not ez[k:k + m].any() else ez[k:k + m])
                 _keep_prediction(g[0].parts[n], pred)   # the parts are cached per SMILES, solvent and nucleus
                 for p in g:
                     p.preds[n] = pred
