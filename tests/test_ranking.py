@@ -419,3 +419,21 @@ def test_an_ethyl_ester_explains_the_lines_an_ethyl_acetate_residue_would_have()
     r = rank(text=text, candidates=["CCOC(=O)c1cn(Cc2ccccc2)c2ccccc12", "CCOC(=O)c1cc2ccccc2n1Cc1ccccc1"])
     notes = [n for n in r.notes if "leaves unexplained" in n]
     assert notes and "ethyl acetate" not in notes[0] and "53.5 is where dichloromethane shows" in notes[0]
+
+
+def test_a_value_printed_twice_may_be_two_carbons():
+    """A printed 13C list (PMC7794720, open-access article via the NMRExtractor data set: N-methoxy-N-methyl-
+    3-phenylpropanamide) gives 128.5 twice: the phenyl's ortho and meta pairs coincide.  Nine values for nine
+    symmetry classes is a fit, not the 'fits no candidate's count' caveat; dropping two values still raises it."""
+    text = "13C-NMR (100.6 MHz, CDCl3) δ = 173.8, 141.3, 128.5, 128.5, 126.1, 61.2, 33.8, 32.2, 30.7"
+    cands = ["CON(C)C(=O)CCc1ccccc1", "CON(C)C(=O)C(C)c1ccccc1"]
+    r = rank(candidates=cands, text=text)
+    assert "symmetry-expected count" not in r.verdict
+    assert any("128.5 ppm listed 2 times: read as one line of 2 nuclei" in n for n in r.notes)
+    truth = next(c for c in r.candidates if c.smiles == cands[0])
+    assert not any(f.startswith("expects") for f in truth.flags)
+    d = truth.nuclei["13C"].to_dict()
+    assert (d["expected_signals"], d["observed_signals"], d["listed_values"]) == (9, 8, 9)
+    short = rank(candidates=cands, text="13C-NMR (100.6 MHz, CDCl3) δ = 173.8, 141.3, 128.5, 61.2, 33.8, 32.2, 30.7")
+    assert "symmetry-expected count (9)" in short.verdict
+    assert "listed_values" not in short.candidates[0].nuclei["13C"].to_dict()

@@ -522,7 +522,8 @@ def merge_duplicates(peaks: list[Peak], notes: list[str], nucleus: str) -> list[
         out.append(p)
     for p in out:
         if p.count > 1:
-            notes.append(f"{p.shift:g} ppm listed {p.count} times: read as one signal of {p.count} equivalent nuclei")
+            notes.append(f"{p.shift:g} ppm listed {p.count} times: read as one line of {p.count} nuclei "
+                         "(equivalent, or distinct ones that coincide)")
     return out
 
 

@@ -308,7 +308,9 @@ def _nucleus_block(result: RankResult, c: CandidateResult, nucleus: str, rank_no
                                for row in getattr(sp, side) for a in row["atoms"])
         pics = (f"<div class='cardrow'><div>{structure_svg(c, nucleus, marked=marked)}</div>"
                 f"<div>{spectrum_svg(result, c, nucleus)}</div></div>")
-    summary = (f"{nucleus}: {count(len(res.classes), 'expected signal')}, {res.observed_signals} observed · MAE {_fmt(res.mae)} ppm · "
+    listed = res.listed_signals   # (13C: a value printed twice or with '(2C)' counts for that many)
+    seen = f"{res.observed_signals} observed" + (f" ({listed} values listed)" if listed != res.observed_signals else "")
+    summary = (f"{nucleus}: {count(len(res.classes), 'expected signal')}, {seen} · MAE {_fmt(res.mae)} ppm · "
                f"{res.beyond_3sigma} beyond 3σ · cost {res.cost:.1f} nats")
     return (f"<div class='nuc'>{e(summary)}</div>{pics}<details{' open' if rank_no == 1 else ''}>"
             f"<summary>{nucleus} assignment table</summary>{table}</details>")

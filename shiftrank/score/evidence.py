@@ -150,6 +150,18 @@ class NucleusResult:
             self._n_obs = sum(1 for p in self.peaks if not p.solvent)
         return self._n_obs
 
+    @property
+    def listed_signals(self) -> int:
+        """Signals the list allows at most: a value printed twice, or with '(2C)', may be one class of equivalent
+        nuclei or two classes that coincide, so it counts for up to that many."""
+        return sum(max(1, p.count) for p in self.peaks if not p.solvent)
+
+    def shared_beyond_listed(self) -> int:
+        """Classes that share a line beyond the number of nuclei the list gives it (a line printed once holding two
+        classes counts one; a '(2C)' line holding two counts none)."""
+        on = Counter(j for j, _ in {(p.peak, p.cls) for p in self.assignment.pairings if p.peak is not None})
+        return sum(max(0, n - max(1, self.peaks[j].count)) for j, n in on.items())
+
     def assignment_table(self) -> list[dict]:
         """One row per class and peak it takes (unobserved classes too), with the notes a reader needs."""
         rows = []
@@ -191,6 +203,7 @@ class NucleusResult:
 
     def to_dict(self, detail: bool = False) -> dict:
         d = {"expected_signals": len(self.classes), "observed_signals": self.observed_signals,
+             **({"listed_values": self.listed_signals} if self.listed_signals != self.observed_signals else {}),
              "mae": _r(self.mae, 3), "max_deviation": _r(self.max_abs_deviation, 2),
              "beyond_3sigma": self.beyond_3sigma, "cost": _r(self.cost, 3),
              "cost_parts": {k: _r(v, 3) for k, v in self.assignment.parts.items()}, "flags": self.flags}
@@ -583,10 +596,11 @@ def _count_flags(res: NucleusResult, what: str) -> list[str]:
     unseen = sorted({p.cls for p in missing if res.classes[p.cls].may_go_unseen})
     why = Counter(res.classes[i].unseen_why for i in unseen)
     n_shared = len({p.cls for p in a.pairings if p.shared})
-    if n_missing == len(unseen) and not n_shared and n_unexplained == n_second:
+    if n_missing == len(unseen) and not res.shared_beyond_listed() and n_unexplained == n_second:
         # only classes that often go unseen are missing (NH/OH, a carbon on boron, one under the solvent's
-        # line), and the only lines left over are a second form's beside their partners (the text says the
-        # spectrum shows two forms): how such spectra are printed
+        # line), classes share only lines printed for that many nuclei ('53.0, 53.0', '128.4 (2C)'), and the
+        # only lines left over are a second form's beside their partners (the text says the spectrum shows
+        # two forms): how such spectra are printed
         return []
     if len(res.classes) != n_obs:
         return [f"expects {len(res.classes)} {what} by symmetry, {n_obs} observed"

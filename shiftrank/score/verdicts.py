@@ -280,8 +280,10 @@ def _count_misfit(valid: list[CandidateResult]) -> str | None:
         pairs = doubled_pairs(rs[0].peaks, n)   # two forms: each pair of close lines may be one carbon
         if pairs and any(observed - pairs <= len(r.classes) <= observed for r in rs):
             return None
-        if all(not len(r.classes) - sum(c.may_go_unseen for c in r.classes) <= r.observed_signals <= len(r.classes)
-               for r in rs):   # (a carbon bound to boron, or under the solvent's line, may be missing)
+        # (a carbon bound to boron, or under the solvent's line, may be missing; a value printed twice or with
+        # '(2C)' may be two classes)
+        if all(not (len(r.classes) - sum(c.may_go_unseen for c in r.classes) <= r.listed_signals
+                    and r.observed_signals <= len(r.classes)) for r in rs):
             expected = sorted({len(r.classes) for r in rs})
             span = f"{expected[0]}" if len(expected) == 1 else f"{expected[0]}–{expected[-1]}"
             return (f"the {observed} {n} signals observed fit no candidate's symmetry-expected count ({span}): "
