@@ -153,8 +153,10 @@ class NucleusResult:
     @property
     def listed_signals(self) -> int:
         """Signals the list allows at most: a value printed twice, or with '(2C)', may be one class of equivalent
-        nuclei or two classes that coincide, so it counts for up to that many."""
-        return sum(max(1, p.count) for p in self.peaks if not p.solvent)
+        nuclei or two classes that coincide, so it counts for up to that many; a line by the solvent's that
+        this candidate's assignment takes counts too (a CH at 76.7 beside the CDCl3 triplet)."""
+        taken = {p.peak for p in self.assignment.pairings if p.peak is not None}
+        return sum(max(1, p.count) for j, p in enumerate(self.peaks) if not p.solvent or j in taken)
 
     def shared_beyond_listed(self) -> int:
         """Classes that share a line beyond the number of nuclei the list gives it (a line printed once holding two
