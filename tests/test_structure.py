@@ -91,6 +91,48 @@ def test_stereo_splits_constitutional_halves_seen_in_the_open_data(shared_data):
     assert len(case["peaks"]) == 22 == facts.n_carbons == facts.expected_13c_signals
 
 
+# Alike groups on one atom of a double bond whose other atom carries two different groups are cis and trans
+# to them: two signals (common practice).
+@pytest.mark.parametrize("smiles,signals,protons,why", [
+    ("CC(C)=CCc1ccccc1", 9, [3, 3], "a prenyl group: methyls about 17.9 and 25.8 ppm, 1H 1.68 and 1.75 (from memory)"),
+    ("CC(C)=NO", 3, [3, 3], "acetone oxime: methyls about 15 and 22 ppm (from memory)"),
+    ("CC(=O)C=C(C)C", 6, [3, 3, 3], "mesityl oxide: its two C=C methyls differ (from memory: about 20.7 and 27.7 ppm)"),
+    ("CCOC(=O)C=C1CCCCC1", 10, None, "ethyl cyclohexylideneacetate: C2/C6 and C3/C5 split (common practice)"),
+    ("CC(C)=C(C)C", 2, [12], "2,3-dimethylbut-2-ene: both ends alike, one methyl signal"),
+    ("C=C(C)C", 3, [6], "isobutene: the =CH2 end has two H, one methyl signal"),
+    ("CC(C)=C(C#N)C#N", 4, [6], "isopropylidenemalononitrile: the other end carries two alike CN groups"),
+])
+def test_alike_groups_across_a_double_bond(smiles, signals, protons, why):
+    facts = structure_facts(smiles)
+    assert facts.expected_13c_signals == signals, why
+    if protons is not None:   # the 1H classes of the methyls: two 3H singlets where they differ
+        mol = Chem.MolFromSmiles(smiles)
+        methyls = [g for g in facts.hydrogen_classes if all(mol.GetAtomWithIdx(a).GetTotalNumHs() == 3 for a in g)]
+        assert sorted(3 * len(g) for g in methyls) == sorted(protons), why
+
+
+def test_alike_groups_across_a_double_bond_differ_in_the_open_data(shared_data):
+    """NMRShiftDB2 assigned 13C shifts: the twin carbons this rule separates (prenyl methyls and the like) differ
+    by 1 ppm or more in most molecules that have them, by several ppm at the median."""
+    import statistics
+
+    from shiftrank.chem.structure import symmetry_ranks, twin_sides
+    from training.data import load_assigned
+
+    gaps = []
+    for m in load_assigned(shared_data):
+        twins = twin_sides(m.mol, symmetry_ranks(m.mol))
+        sides: dict = {}
+        for atom, (side, why) in twins.items():
+            if why == "alkene" and atom in m.shifts and m.mol.GetAtomWithIdx(atom).GetAtomicNum() == 6:
+                sides.setdefault(side, []).append(m.shifts[atom])
+        if len(sides) == 2 and len(sides[0]) == len(sides[1]) == 1:
+            gaps.append(abs(sides[0][0] - sides[1][0]))
+    assert len(gaps) >= 50
+    assert sum(g >= 1.0 for g in gaps) >= 0.75 * len(gaps)
+    assert statistics.median(gaps) >= 4.0
+
+
 # Lactam–lactim and thione–thiol tautomerism: 2- and 4-hydroxypyridines, hydroxypyrimidines and
 # 2-quinolinols are mostly the pyridone (lactam) form in solution, azole-2-thiols and
 # 1,2,4-triazole-3-thiols the thione form (common practice; reviewed by Katritzky, Karelson & Harris,

@@ -160,7 +160,8 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
 
 #: why two carbons alike in constitution give two 13C signals (see :func:`twin_sides`)
 TWIN_WHY = {"stereo": "diastereotopic: alike groups beside a stereocentre",
-            "amide": "cis and trans to an amide C=O or C=S, slow C–N rotation"}
+            "amide": "cis and trans to an amide C=O or C=S, slow C–N rotation",
+            "alkene": "cis and trans across a double bond whose other atom carries two different groups"}
 #: a tertiary carboxamide or thioamide N: its two other substituents sit cis and trans to the C=O (C=S)
 _AMIDE_N = Chem.MolFromSmarts("[NX3;H0;!a](-[#6])(-[#6])-[CX3;$(C(=[O,S])-[#6]),$([CH1]=[O,S])]")
 
@@ -178,6 +179,11 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
       the C=O, and rotation about the C–N bond is slow at room temperature (N,N-dimethylformamide
       36.5 and 31.4 ppm; an N-acylpiperidine's C2/C6 about 47 and 42 ppm; common practice, values from
       memory).  Ureas, carbamates and thioureas rotate faster and are left together.
+    * ``'alkene'``: two alike carbon groups on one atom of a double bond outside aromatic rings, when the
+      other atom of the bond carries two different groups (H, a lone pair and a substituent count as
+      groups): one of them is cis to each, so they differ (the two methyls of a prenyl group about 17.9
+      and 25.8 ppm, 1H 1.68 and 1.75; the methyls of acetone oxime about 15 and 22 ppm; a cyclohexylidene's
+      C2 and C6; common practice, values from memory).  A C(CH3)2=C(CH3)2 or =CH2 end leaves them alike.
 
     Aromatic atoms are left out (a ring flip exchanges the two ortho carbons of a phenyl).  ``near``
     keeps only the diastereotopic pairs whose prochiral carbon lies within that many bonds of a
@@ -214,6 +220,7 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     for n, a, b, _ in mol.GetSubstructMatches(_AMIDE_N):
         if ranks[a] == ranks[b]:
             sites.append((n, a, b, "amide"))
+    sites.extend(_alkene_sites(mol, ranks))
     side: dict[int, tuple[int, str]] = {}
     for x, a, b, why in sites:
         todo = [(a, b, x, x)]
@@ -228,6 +235,27 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
                 if len(us) == 1 and len(nv.get(r, ())) == 1:
                     todo.append((us[0], nv[r][0], u, v))
     return side
+
+
+def _alkene_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
+    """(atom, its two alike carbon groups, 'alkene') for each end of a non-aromatic double bond that carries two
+    rank-equal carbon substituents while the other end carries two different groups (see :func:`twin_sides`)."""
+    out = []
+    for bond in mol.GetBonds():
+        if bond.GetBondType() != Chem.BondType.DOUBLE or bond.GetIsAromatic():
+            continue
+        for x, y in ((bond.GetBeginAtom(), bond.GetEndAtom()), (bond.GetEndAtom(), bond.GetBeginAtom())):
+            if x.GetIsAromatic() or y.GetIsAromatic() or x.GetDegree() != 3:
+                continue
+            pair = [n.GetIdx() for n in x.GetNeighbors() if n.GetIdx() != y.GetIdx()]
+            if ranks[pair[0]] != ranks[pair[1]] or any(mol.GetAtomWithIdx(i).GetAtomicNum() != 6 for i in pair):
+                continue
+            other = [ranks[n.GetIdx()] for n in y.GetNeighbors() if n.GetIdx() != x.GetIdx()]
+            # the other end's second group: a further substituent, an H, or the lone pair of a two-connected N
+            lone = y.GetAtomicNum() == 7 and y.GetFormalCharge() == 0 and y.GetDegree() + y.GetTotalNumHs() == 2
+            if (len(other) == 2 and other[0] != other[1]) or (len(other) == 1 and (y.GetTotalNumHs() == 1 or lone)):
+                out.append((x.GetIdx(), pair[0], pair[1], "alkene"))
+    return out
 
 
 def signal_key(atom: int, ranks, twins: dict) -> tuple[int, int | None]:
