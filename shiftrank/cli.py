@@ -238,6 +238,8 @@ def cmd_predict(args) -> int:
                 ez = {str(c.atom): c.configuration for c in pred.atoms if c.configuration}
                 if ez:   # ppm of the shift that comes from the E/Z increment (a group cis across a double bond)
                     obj[f"ez_increment{tag}"] = ez
+                if pred.cis_trans_pairs:   # a pair the drawing leaves unassigned: each atom has the mean
+                    obj[f"cis_trans_pairs{tag}"] = [{"atoms": [i, j], "shifts": [lo, hi]} for i, j, lo, hi in pred.cis_trans_pairs]
             obj["model"] = version
             notes = next(iter(preds.values())).notes
             if notes:
@@ -249,6 +251,10 @@ def cmd_predict(args) -> int:
             print(f"  note: {note}")
         for n, pred in preds.items():
             nd = 1 if n == "13C" else 2
+            for i, j, lo, hi in pred.cis_trans_pairs:
+                print(f"  note: atoms {i} and {j} are alike groups cis and trans across a double bond, predicted "
+                      f"{lo:.{nd}f} and {hi:.{nd}f}; the drawing does not say which is which, so each shows their mean "
+                      "(a molfile's coordinates would tell)")
             head = "CHn" if n == "13C" else "H on"
             print(f"  {n}: {'atom':>4}  {head:<5} {'shift':>7}  {'±90%':>6}  sphere match")
             for c in pred.atoms:

@@ -27,7 +27,7 @@ os.environ.setdefault("OMP_NUM_THREADS", "1")
 import numpy as np  # noqa: E402
 
 from shiftrank.prediction.api import predict_many  # noqa: E402
-from shiftrank.prediction.configuration import ROLES, configuration_roles  # noqa: E402
+from shiftrank.prediction.configuration import ROLES, configuration_roles, twin_pairs  # noqa: E402
 from shiftrank.prediction.model_files import default_model, models_dir  # noqa: E402
 from training.data import DEFAULT_DATA, load_assigned  # noqa: E402
 
@@ -49,7 +49,7 @@ def role_residuals(mols, nucleus: str, use_increments: bool = False) -> dict[int
     for m, p in zip(mols, preds):
         if isinstance(p, Exception):
             continue
-        roles = configuration_roles(m.mol, range(m.mol.GetNumAtoms()))
+        roles = configuration_roles(m.mol, range(m.mol.GetNumAtoms()), twins=twin_pairs(m.mol))
         if roles is None:
             continue
         for a in p.atoms:

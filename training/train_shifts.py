@@ -47,7 +47,7 @@ MASK_FRACTION = 0.1  # share of training rows duplicated with their wider sphere
 OUTLIER_FLOOR = {"13C": 8.0, "1H": 0.8}  # ppm: residuals below this are never called outliers
 SIGMA_FLOOR = {"13C": 0.3, "1H": 0.03}   # ppm: smallest stated uncertainty
 VERSION = {"13C": "1.8.0", "1H": "1.4.0"}
-MODELS_VERSION = "1.10.0"  # the shipped set of models (both nuclei, the E/Z increments, the ranking settings)
+MODELS_VERSION = "1.11.0"  # the shipped set of models (both nuclei, the E/Z increments, the ranking settings)
 REPO = Path(__file__).resolve().parents[1]
 LITERATURE_WEIGHT = 0.0  # labels from printed paragraphs (training.literature_labels); 0: not used
 

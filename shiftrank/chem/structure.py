@@ -220,7 +220,7 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     for n, a, b, _ in mol.GetSubstructMatches(_AMIDE_N):
         if ranks[a] == ranks[b]:
             sites.append((n, a, b, "amide"))
-    sites.extend(_alkene_sites(mol, ranks))
+    sites.extend(alkene_twin_sites(mol, ranks))
     side: dict[int, tuple[int, str]] = {}
     for x, a, b, why in sites:
         todo = [(a, b, x, x)]
@@ -237,7 +237,7 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     return side
 
 
-def _alkene_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
+def alkene_twin_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
     """(atom, its two alike carbon groups, 'alkene') for each end of a non-aromatic double bond that carries two
     rank-equal carbon substituents while the other end carries two different groups (see :func:`twin_sides`)."""
     out = []

@@ -155,11 +155,32 @@ def _predict_parts(parts: list[MolParts]) -> list[MolPrediction | None]:
     for p, pred in zip(parts, out):
         if pred is None:
             continue
+        pred.notes = list(p.notes)
+        if p.guessed_twins and pred.nucleus == "13C":
+            _unguess_twins(pred, p.guessed_twins, p.atom_map)
         if p.atom_map is not None:  # keys in the input's own atom order
             for a in pred.atoms:
                 a.atom = p.atom_map[a.atom]
-        pred.notes = list(p.notes)
     return out
+
+
+def _unguess_twins(pred: MolPrediction, pairs, atom_map=None) -> None:
+    """Alike groups across a double bond drawn without coordinates (a SMILES): which one is cis is not stated,
+    so each of the two gets the pair's mean, and ``cis_trans_pairs`` keeps both values (the ranking uses them
+    as a pair)."""
+    by_atom = {a.atom: a for a in pred.atoms}
+    for cis, trans in pairs:
+        a, b = by_atom.get(cis), by_atom.get(trans)
+        if a is None or b is None:
+            continue
+        low, high = sorted((a.shift, b.shift))
+        if high - low < 0.05:   # no increment for this kind of pair: nothing to average
+            continue
+        mean = round((a.shift + b.shift) / 2, 4)
+        a.shift = b.shift = mean
+        a.configuration = b.configuration = 0.0
+        i, j = sorted(atom_map[k] if atom_map is not None else k for k in (cis, trans))
+        pred.cis_trans_pairs.append((i, j, round(low, 2), round(high, 2)))
 
 
 def predict_records(records: Iterable[MolRecord], solvent: str | None = None,

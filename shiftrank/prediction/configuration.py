@@ -21,7 +21,7 @@ from rdkit import Chem
 
 #: role names, in column order.  "cis"/"trans" say where heavy groups of the double bond's other atom
 #: lie relative to the centre (sp3 or sp2 neighbour of the bond) or to the H of a vinyl CH.
-ROLES = (
+EZ_ROLES = (
     "sp3 beside the bond, heavy group cis only",
     "sp3 beside the bond, heavy group trans only",
     "sp3 beside the bond, heavy groups cis and trans",
@@ -32,6 +32,16 @@ ROLES = (
     "vinyl CH, its H trans to a heavy group only",
     "vinyl CH, its H between heavy groups cis and trans",
 )
+#: the two alike groups on one atom of a double bond (:func:`shiftrank.chem.structure.alkene_twin_sites`) whose
+#: other atom is a CH with one heavy group, or an N with one group and its lone pair: one twin is cis to that
+#: group, the other trans, though no drawing without coordinates says which (see :func:`twin_roles`)
+TWIN_ROLES = (
+    "twin beside a double bond to a CH, cis to its heavy group",
+    "twin beside a double bond to a CH, trans to its heavy group",
+    "twin beside a C=N, cis to the N's group",
+    "twin beside a C=N, trans to the N's group",
+)
+ROLES = EZ_ROLES + TWIN_ROLES
 _CIS = (Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS)
 _TRANS = (Chem.BondStereo.STEREOE, Chem.BondStereo.STEREOTRANS)
 #: the bond stereo values that state a configuration
@@ -47,11 +57,12 @@ def _pattern(cis: int, trans: int) -> int | None:
     return 0 if cis else 1 if trans else None
 
 
-def configuration_roles(mol: Chem.Mol, centres, bonds=None) -> np.ndarray | None:
+def configuration_roles(mol: Chem.Mol, centres, bonds=None, twins=None) -> np.ndarray | None:
     r"""(len(centres), len(ROLES)) counts of each centre's roles at the configured double bonds of ``mol``
     (hydrogens implicit; the configuration as RDKit perceives it from the SMILES or the 2D drawing), or
     None when no double bond has a stated configuration.  ``bonds``: the double bonds to look at, when the
     caller has already picked those with a stated configuration (default: every bond of ``mol``).
+    ``twins``: also the roles of alike groups across a double bond, as :func:`twin_pairs` gives them.
 
     >>> from rdkit import Chem
     >>> m = Chem.MolFromSmiles("C/C=C(\\C)C(=O)OC")   # the α-methyl (atom 3) cis to the β-methyl
@@ -95,6 +106,9 @@ def configuration_roles(mol: Chem.Mol, centres, bonds=None) -> np.ndarray | None
                 k = _pattern(cis, len(other) - cis)
                 if k is not None:
                     found.setdefault(atom.GetIdx(), []).append(6 + k)
+    for cis, trans, k, _ in twins or ():
+        found.setdefault(cis, []).append(k)
+        found.setdefault(trans, []).append(k + 1)
     if not found:
         return None
     row = {int(c): i for i, c in enumerate(centres)}
@@ -104,6 +118,57 @@ def configuration_roles(mol: Chem.Mol, centres, bonds=None) -> np.ndarray | None
             for k in roles:
                 out[row[atom], k] += 1
     return out if out.any() else None
+
+
+def twin_pairs(mol: Chem.Mol) -> list[tuple[int, int, int, bool]]:
+    r"""(cis atom, trans atom, role index of the cis one, oriented) of each pair of alike groups across a double
+    bond (:data:`TWIN_ROLES`: their first atoms; the trans one has the next role).
+
+    Which twin is cis to the other atom's group is read from the molecule's coordinates when it has them
+    (a molfile's drawing: ``oriented``); a SMILES cannot say, since swapping the two gives the same
+    structure, and the first twin is then taken as cis: the two predictions are right as a pair, not atom
+    by atom (:func:`shiftrank.prediction.api.predict` gives both their mean then).
+
+    >>> from rdkit import Chem
+    >>> twin_pairs(Chem.MolFromSmiles("CC(C)=CCO"))   # prenyl alcohol: methyl 0 taken as cis to the CH2OH
+    [(0, 2, 9, False)]
+    >>> twin_pairs(Chem.MolFromSmiles("CC(C)=C(C)C")), twin_pairs(Chem.MolFromSmiles("CC(C)=NO"))
+    ([], [(0, 2, 11, False)])
+    """
+    from ..chem.structure import alkene_twin_sites, symmetry_ranks   # (chem does not import prediction)
+
+    out = []
+    conf = mol.GetConformer() if mol.GetNumConformers() else None
+    for x, a, b, _ in alkene_twin_sites(mol, symmetry_ranks(mol)):
+        y = next(n for n in mol.GetAtomWithIdx(x).GetNeighbors() if n.GetIdx() not in (a, b))
+        others = [n.GetIdx() for n in y.GetNeighbors() if n.GetIdx() != x]
+        if len(others) != 1:
+            continue
+        if y.GetAtomicNum() == 6 and y.GetTotalNumHs() == 1:
+            base = len(EZ_ROLES)
+        elif y.GetAtomicNum() == 7 and y.GetTotalNumHs() == 0 and y.GetFormalCharge() == 0:
+            base = len(EZ_ROLES) + 2
+        else:
+            continue
+        same = _same_side(conf, x, y.GetIdx(), a, others[0]) if conf is not None else None
+        out.append((a, b, base, True) if same is True else (b, a, base, True) if same is False else (a, b, base, False))
+    return out
+
+
+def _same_side(conf, x: int, y: int, t: int, p: int) -> bool | None:
+    """Whether ``t`` (on ``x``) and ``p`` (on ``y``) lie on one side of the bond x=y in the drawing (None: flat
+    or no coordinates)."""
+    px, py = conf.GetAtomPosition(x), conf.GetAtomPosition(y)
+    dx, dy = py.x - px.x, py.y - px.y
+
+    def side(origin, atom) -> float:
+        q = conf.GetAtomPosition(atom)
+        return dx * (q.y - origin.y) - dy * (q.x - origin.x)
+
+    st, sp = side(px, t), side(py, p)
+    if abs(st) < 1e-6 or abs(sp) < 1e-6:
+        return None
+    return (st > 0) == (sp > 0)
 
 
 def increments_from_entry(entry: dict) -> np.ndarray | None:

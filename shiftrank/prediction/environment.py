@@ -30,7 +30,7 @@ from rdkit import Chem
 from rdkit.Chem import rdFingerprintGenerator, rdPartialCharges
 
 from ..chem.labels import labelled_hydrogens
-from .configuration import CONFIGURED, configuration_roles
+from .configuration import CONFIGURED, configuration_roles, twin_pairs
 from .pi_system import pi_from_tables
 from .ring_systems import KEY_NAMES, ring_keys
 
@@ -147,6 +147,7 @@ class MolParts:
     ring_keys: np.ndarray | None = None  # (n_centres, 3) ring-system keys of the centres (13C only)
     offsets: np.ndarray | None = None    # (n_centres,) ppm added to the prediction: the 13C isotope shift of 2H/3H
     config: np.ndarray | None = None     # (n_centres, len(ROLES)) roles at configured double bonds, or None
+    guessed_twins: list = field(default_factory=list)   # (cis, trans) twin pairs oriented by convention (no coordinates)
 
 
 def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", pi: np.ndarray | None = None) -> MolParts:
@@ -182,9 +183,11 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     bond_objs = list(map(mol.GetBondWithIdx, range(mol.GetNumBonds())))
     bond_list = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), b.GetBondType(), b.GetIsConjugated() or b.GetIsAromatic())
                  for b in bond_objs]
-    # double bonds with a stated configuration, found in the same pass (most molecules have none)
+    # double bonds with a stated configuration, found in the same pass (most molecules have none), and whether
+    # alike groups may sit across a double bond (a prenyl's methyls: configuration.twin_roles)
     configured = [b for b, (_, _, t, _) in zip(bond_objs, bond_list)
                   if t == Chem.BondType.DOUBLE and b.GetStereo() in CONFIGURED]
+    twins = twin_pairs(mol) if _may_have_twins(info, bond_list) else []
     bonds = np.array([(i, j, _BOND_KINDS.get(t, 0), c) for i, j, t, c in bond_list], dtype=np.int64).reshape(-1, 4)
     labels = labelled_hydrogens(mol)   # 2H/3H (chem/labels.py): no 1H shift, a 13C isotope shift
     if nucleus == "13C":
@@ -220,7 +223,31 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
         offsets = np.array([ISOTOPE_SHIFT_13C * labels.get(int(c), 0) for c in centres], dtype=np.float64)
     return MolParts(table, bonds, centres, dist, codes, rings, _SOLVENT_CODE.get(solvent or "", 0), nucleus, ringpos,
                     pi=pi, ring_keys=keys, offsets=offsets,
-                    config=configuration_roles(mol, centres, configured) if configured else None)
+                    config=configuration_roles(mol, centres, configured, twins) if configured or twins else None,
+                    guessed_twins=[(a, b) for a, b, _, oriented in twins if not oriented])
+
+
+def _may_have_twins(info, bond_list) -> bool:
+    """Cheap test before :func:`~.configuration.twin_roles` ranks the atoms: a non-aromatic double bond with one
+    atom bearing two carbons alike in their own properties and the other a CH or an N with one further group."""
+    adjacency = None
+    for i, j, t, _ in bond_list:
+        if t != Chem.BondType.DOUBLE:
+            continue
+        for x, y in ((i, j), (j, i)):
+            if info[x][4] != 3 or info[x][1] or info[y][1] or info[y][4] != 2:
+                continue
+            if not ((info[y][0] == 6 and info[y][5] == 1) or (info[y][0] == 7 and info[y][5] == 0 and info[y][3] == 0)):
+                continue
+            if adjacency is None:
+                adjacency = {}
+                for u, v, _, _ in bond_list:
+                    adjacency.setdefault(u, []).append(v)
+                    adjacency.setdefault(v, []).append(u)
+            pair = [k for k in adjacency[x] if k != y]
+            if len(pair) == 2 and info[pair[0]][0] == 6 and info[pair[0]] == info[pair[1]]:
+                return True
+    return False
 
 
 def pi_columns(info, bonds: np.ndarray) -> np.ndarray:

@@ -54,6 +54,9 @@ class MolPrediction:
     atoms: list[AtomPrediction] = field(default_factory=list)
     nucleus: str = "13C"
     notes: list[str] = field(default_factory=list)   # what standardisation did to the input
+    #: (atom, atom, lower ppm, higher ppm) of alike groups cis and trans across a double bond that a drawing without
+    #: coordinates leaves unassigned: both atoms carry the mean, the pair's two values are these
+    cis_trans_pairs: list[tuple] = field(default_factory=list)
 
     @property
     def carbons(self) -> list[AtomPrediction]:
