@@ -161,9 +161,18 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
 #: why two carbons alike in constitution give two 13C signals (see :func:`twin_sides`)
 TWIN_WHY = {"stereo": "diastereotopic: alike groups beside a stereocentre",
             "amide": "cis and trans to an amide C=O or C=S, slow C–N rotation",
+            "slow N": "cis and trans across an N–C or N–N bond with double-bond character (a dithiocarbamate, "
+                      "nitrosamine, amidine or enaminone), slow rotation",
             "alkene": "cis and trans across a double bond whose other atom carries two different groups"}
 #: a tertiary carboxamide or thioamide N: its two other substituents sit cis and trans to the C=O (C=S)
 _AMIDE_N = Chem.MolFromSmarts("[NX3;H0;!a](-[#6])(-[#6])-[CX3;$(C(=[O,S])-[#6]),$([CH1]=[O,S])]")
+#: other N–X bonds with double-bond character that rotate slowly at room temperature: (di)thiocarbamates,
+#: nitrosamines, amidines (a formamidine's NMe2) and enaminones / push-pull enamines
+_SLOW_N = [Chem.MolFromSmarts(s) for s in (
+    "[NX3;H0;!a](-[#6])(-[#6])-C(=S)-[O,S]",
+    "[NX3;H0;!a](-[#6])(-[#6])-N=O",
+    "[NX3;H0;!a](-[#6;!a])(-[#6;!a])-[CX3;!a]=[NX2]",
+    "[NX3;H0;!a](-[#6;!a])(-[#6;!a])-[#6;!a]=[#6;!a]-[$(C=O),$(C#N),$([N+](=O)[O-]),$(S(=O)=O)]")]
 
 
 def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None = None) -> dict[int, tuple[int, str]]:
@@ -179,6 +188,12 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
       the C=O, and rotation about the C–N bond is slow at room temperature (N,N-dimethylformamide
       36.5 and 31.4 ppm; an N-acylpiperidine's C2/C6 about 47 and 42 ppm; common practice, values from
       memory).  Ureas, carbamates and thioureas rotate faster and are left together.
+    * ``'slow N'``: the same for other N–C and N–N bonds with double-bond character: dithiocarbamates and
+      thiocarbamates, nitrosamines (N-nitrosodiethylamine's two CH2 and two CH3), amidines (a formamidine's
+      NMe2) and enaminones or enamines of a nitrile, nitro or sulfonyl group.  In the assigned NMRShiftDB2
+      shifts such pairs differ by 1 ppm or more in 5 of 5 (thio)carbamate pairs, 2 of 2 nitrosamines, 5 of 9
+      amidines and 10 of 34 enamines, against 0 of 9 carbamates and 0 of 5 ureas and thioureas (a pair printed at
+      one value costs little; a second line no class explains costs more).
     * ``'alkene'``: two alike carbon groups on one atom of a double bond outside aromatic rings, when the
       other atom of the bond carries two different groups (H, a lone pair and a substituent count as
       groups): one of them is cis to each, so they differ (the two methyls of a prenyl group about 17.9
@@ -220,6 +235,10 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     for n, a, b, _ in mol.GetSubstructMatches(_AMIDE_N):
         if ranks[a] == ranks[b]:
             sites.append((n, a, b, "amide"))
+    for patt in _SLOW_N:
+        for n, a, b, *_ in mol.GetSubstructMatches(patt):
+            if ranks[a] == ranks[b]:
+                sites.append((n, a, b, "slow N"))
     sites.extend(alkene_twin_sites(mol, ranks))
     side: dict[int, tuple[int, str]] = {}
     for x, a, b, why in sites:
