@@ -161,6 +161,7 @@ def carbon_classes(mol: Chem.Mol, ranks: list[int] | None = None) -> list[Carbon
 #: why two carbons alike in constitution give two 13C signals (see :func:`twin_sides`)
 TWIN_WHY = {"stereo": "diastereotopic: alike groups beside a stereocentre",
             "amide": "cis and trans to an amide C=O or C=S, slow C–N rotation",
+            "ring": "cis and trans to a substituent elsewhere on the ring",
             "slow N": "cis and trans across an N–C or N–N bond with double-bond character (a dithiocarbamate, "
                       "nitrosamine, amidine or enaminone), slow rotation",
             "alkene": "cis and trans across a double bond whose other atom carries two different groups"}
@@ -188,6 +189,11 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
       the C=O, and rotation about the C–N bond is slow at room temperature (N,N-dimethylformamide
       36.5 and 31.4 ppm; an N-acylpiperidine's C2/C6 about 47 and 42 ppm; common practice, values from
       memory).  Ureas, carbamates and thioureas rotate faster and are left together.
+    * ``'ring'``: two alike exocyclic groups on an sp3 atom of a non-aromatic ring of up to seven atoms, when
+      another sp3 carbon of that ring carries two different groups (H counting): one lies on that carbon's
+      substituent's face, the other on the opposite face (the two methyls of 4,4-dimethylcyclohexanol, of a
+      2,2,6,6-tetramethylpiperidin-4-yl group, of an acetonide of a 2-substituted 1,3-diol or of a 5-substituted
+      Meldrum's acid; common practice).  Such a carbon is often no stereocentre, so the ``'stereo'`` rule misses them.
     * ``'slow N'``: the same for other N–C and N–N bonds with double-bond character: dithiocarbamates and
       thiocarbamates, nitrosamines (N-nitrosodiethylamine's two CH2 and two CH3), amidines (a formamidine's
       NMe2) and enaminones or enamines of a nitrile, nitro or sulfonyl group.  In the assigned NMRShiftDB2
@@ -240,6 +246,7 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
             if ranks[a] == ranks[b]:
                 sites.append((n, a, b, "slow N"))
     sites.extend(alkene_twin_sites(mol, ranks))
+    sites.extend(ring_twin_sites(mol, ranks))
     side: dict[int, tuple[int, str]] = {}
     for x, a, b, why in sites:
         todo = [(a, b, x, x)]
@@ -274,6 +281,41 @@ def alkene_twin_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
             lone = y.GetAtomicNum() == 7 and y.GetFormalCharge() == 0 and y.GetDegree() + y.GetTotalNumHs() == 2
             if (len(other) == 2 and other[0] != other[1]) or (len(other) == 1 and (y.GetTotalNumHs() == 1 or lone)):
                 out.append((x.GetIdx(), pair[0], pair[1], "alkene"))
+    return out
+
+
+#: rings up to this size are rigid enough that a geminal pair's faces are told apart (common practice)
+RING_TWIN_MAX = 7
+
+
+def ring_twin_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
+    """(atom, its two alike exocyclic groups, 'ring') for each sp3 ring atom of a non-aromatic ring of up to
+    :data:`RING_TWIN_MAX` atoms whose two exocyclic groups are alike while another sp3 carbon of that ring carries
+    two different ones (H counting): one group of the pair lies on that carbon's substituent's face, the other
+    on the opposite face (see :func:`twin_sides`)."""
+    out = []
+    for ring in mol.GetRingInfo().AtomRings():
+        if len(ring) > RING_TWIN_MAX:
+            continue
+        members = set(ring)
+        atoms = [mol.GetAtomWithIdx(i) for i in ring]
+        if any(a.GetIsAromatic() for a in atoms):
+            continue
+        exo = {a.GetIdx(): [n.GetIdx() for n in a.GetNeighbors() if n.GetIdx() not in members] for a in atoms}
+
+        def tetrahedral(a) -> bool:
+            return a.GetHybridization() == Chem.HybridizationType.SP3 and a.GetDegree() + a.GetTotalNumHs() == 4
+
+        faced = [a for a in atoms if a.GetAtomicNum() == 6 and tetrahedral(a) and len(exo[a.GetIdx()]) + a.GetTotalNumHs() == 2
+                 and (len(exo[a.GetIdx()]) == 1
+                      or (len(exo[a.GetIdx()]) == 2 and ranks[exo[a.GetIdx()][0]] != ranks[exo[a.GetIdx()][1]]))]
+        if not faced:
+            continue
+        for a in atoms:
+            pair = exo[a.GetIdx()]
+            if (tetrahedral(a) and len(pair) == 2 and ranks[pair[0]] == ranks[pair[1]]
+                    and any(f.GetIdx() != a.GetIdx() for f in faced)):
+                out.append((a.GetIdx(), pair[0], pair[1], "ring"))
     return out
 
 
