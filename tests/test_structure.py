@@ -111,6 +111,7 @@ def test_alike_groups_across_a_double_bond(smiles, signals, protons, why):
         assert sorted(3 * len(g) for g in methyls) == sorted(protons), why
 
 
+# slow rotation about bonds to N with double-bond character
 @pytest.mark.parametrize("smiles,signals,why", [
     ("CCN(CC)N=O", 4, "N-nitrosodiethylamine: two CH2 and two CH3 signals (slow N–N=O rotation; common practice)"),
     ("CN(C)C(=S)SCC#N", 5, "a dithiocarbamate: two N-methyl signals (common practice)"),
@@ -119,12 +120,7 @@ def test_alike_groups_across_a_double_bond(smiles, signals, protons, why):
     ("CN(C)C(=O)OC", 3, "a carbamate rotates faster: one N-methyl signal (common practice)"),
     ("CN(C)C(=O)N(C)C", 2, "tetramethylurea: one methyl signal (common practice)"),
     ("CN(C)c1ccccc1", 5, "N,N-dimethylaniline: one methyl signal"),
-])
-def test_slow_rotation_about_bonds_to_n(smiles, signals, why):
-    assert structure_facts(smiles).expected_13c_signals == signals, why
-
-
-@pytest.mark.parametrize("smiles,signals,why", [
+    # geminal groups on a ring atom facing another ring carbon's substituent
     ("CC1(C)CCC(O)CC1", 6, "4,4-dimethylcyclohexanol: one methyl on the OH's face, one opposite (common practice)"),
     ("CC1C(=O)OC(C)(C)OC1=O", 6, "5-methyl Meldrum's acid: two 2,2-methyl signals (common practice)"),
     ("CC(=O)NC1CC(C)(C)NC(C)(C)C1", 7, "a 2,2,6,6-tetramethylpiperidin-4-yl amide: two methyl signals (common practice)"),
@@ -132,7 +128,7 @@ def test_slow_rotation_about_bonds_to_n(smiles, signals, why):
     ("CC1(C)CCCCC1", 5, "1,1-dimethylcyclohexane: one methyl signal"),
     ("CC1(C)CCc2ccccc2O1", 10, "2,2-dimethylchroman: no other ring carbon with two different groups"),
 ])
-def test_geminal_groups_on_a_ring_with_a_substituent(smiles, signals, why):
+def test_slow_rotation_and_ring_faces(smiles, signals, why):
     assert structure_facts(smiles).expected_13c_signals == signals, why
 
 
