@@ -156,7 +156,7 @@ def _predict_parts(parts: list[MolParts]) -> list[MolPrediction | None]:
         if pred is None:
             continue
         pred.notes = list(p.notes)
-        if p.guessed_twins and pred.nucleus == "13C":
+        if p.guessed_twins:
             _unguess_twins(pred, p.guessed_twins, p.atom_map)
         if p.atom_map is not None:  # keys in the input's own atom order
             for a in pred.atoms:

@@ -11,8 +11,13 @@ states (:func:`configuration_roles`); the model adds one increment per role and 
 (``configuration_increments`` of the nucleus's manifest entry, fitted by
 ``training/configuration_increments.py`` on residuals of the validation and test splits, where the
 sphere tables have not seen the molecules; a role without a replicated effect gets none, and so far
-only the sp3 carbon with a heavy group cis has one, for 13C).  A structure drawn without configuration
+only the sp3 carbon with a heavy group cis has one among these, for 13C).  A structure drawn without configuration
 gets no increment.
+
+Two alike groups on one atom of a double bond (a prenyl group's methyls) are the same case with the
+configuration unstated: the sphere codes cannot tell them apart, so the tables hold both values and predict
+their average.  One is cis to the other atom's group and one trans (:data:`TWIN_ROLES`, :func:`twin_pairs`);
+the same fit gives those roles their increments (model set 1.11.0).
 """
 from __future__ import annotations
 
@@ -34,7 +39,7 @@ EZ_ROLES = (
 )
 #: the two alike groups on one atom of a double bond (:func:`shiftrank.chem.structure.alkene_twin_sites`) whose
 #: other atom is a CH with one heavy group, or an N with one group and its lone pair: one twin is cis to that
-#: group, the other trans, though no drawing without coordinates says which (see :func:`twin_roles`)
+#: group, the other trans, though no drawing without coordinates says which (see :func:`twin_pairs`)
 TWIN_ROLES = (
     "twin beside a double bond to a CH, cis to its heavy group",
     "twin beside a double bond to a CH, trans to its heavy group",
@@ -60,7 +65,7 @@ def _pattern(cis: int, trans: int) -> int | None:
 def configuration_roles(mol: Chem.Mol, centres, bonds=None, twins=None) -> np.ndarray | None:
     r"""(len(centres), len(ROLES)) counts of each centre's roles at the configured double bonds of ``mol``
     (hydrogens implicit; the configuration as RDKit perceives it from the SMILES or the 2D drawing), or
-    None when no double bond has a stated configuration.  ``bonds``: the double bonds to look at, when the
+    None when no double bond has a stated configuration (and no twin pair is given).  ``bonds``: the double bonds to look at, when the
     caller has already picked those with a stated configuration (default: every bond of ``mol``).
     ``twins``: also the roles of alike groups across a double bond, as :func:`twin_pairs` gives them.
 

@@ -184,7 +184,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
     bond_list = [(b.GetBeginAtomIdx(), b.GetEndAtomIdx(), b.GetBondType(), b.GetIsConjugated() or b.GetIsAromatic())
                  for b in bond_objs]
     # double bonds with a stated configuration, found in the same pass (most molecules have none), and whether
-    # alike groups may sit across a double bond (a prenyl's methyls: configuration.twin_roles)
+    # alike groups sit across a double bond (a prenyl's methyls: configuration.twin_pairs)
     configured = [b for b, (_, _, t, _) in zip(bond_objs, bond_list)
                   if t == Chem.BondType.DOUBLE and b.GetStereo() in CONFIGURED]
     twins = twin_pairs(mol) if _may_have_twins(info, bond_list) else []
@@ -228,7 +228,7 @@ def mol_parts(mol: Chem.Mol, solvent: str | None = None, nucleus: str = "13C", p
 
 
 def _may_have_twins(info, bond_list) -> bool:
-    """Cheap test before :func:`~.configuration.twin_roles` ranks the atoms: a non-aromatic double bond with one
+    """Cheap test before :func:`~.configuration.twin_pairs` ranks the atoms: a non-aromatic double bond with one
     atom bearing two carbons alike in their own properties and the other a CH or an N with one further group."""
     adjacency = None
     for i, j, t, _ in bond_list:
