@@ -87,12 +87,11 @@ class ClassMeans:
         return [float(np.mean([self.ez[self.pos[a]] for a in atoms])) for atoms in classes]
 
 
-def _pair_note(c, increment: float) -> str | None:
-    """The table's word for one of two alike groups cis and trans across a double bond whose predictions the
-    increments split (a SMILES does not say which is which: the pair's two values are what is predicted)."""
-    if not c.twin or c.twin[1] != "alkene" or abs(increment) < 0.05:
-        return None
-    return f"one of a cis/trans pair with atom {','.join(map(str, c.twin[0]))} (which is which the drawing does not say)"
+def _pair_with(c, increment: float) -> list[int] | None:
+    """The partner atoms of a class that is one of two alike groups cis and trans across a double bond whose
+    predictions the increments split (a SMILES does not say which is which: the pair's two values are what is
+    predicted, and the tables say so)."""
+    return list(c.twin[0]) if c.twin and c.twin[1] == "alkene" and abs(increment) >= 0.05 else None
 
 
 def _carbon_classes(mol: Chem.Mol, ranks, facts=None):
@@ -181,7 +180,8 @@ class NucleusResult:
                 + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
                 + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"]) \
                 + ([increment_note(c.configuration)] if abs(c.configuration) >= 0.05 else []) \
-                + ([c.pair_note] if c.pair_note else [])
+                + ([f"one of a cis/trans pair with atom {','.join(map(str, c.pair_with))} (which is which the drawing "
+                    "does not say)"] if c.pair_with else [])
             row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
                    "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2), "peak": p.peak,
                    "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
@@ -337,7 +337,7 @@ class CarbonEvidence(_Evidence):
         cc = _carbon_classes(mol, ranks, facts)
         if isinstance(mu, ClassMeans):
             m, s = mu.of([c.atoms for c in cc])
-            out = [SignalClass(c.atoms, c.multiplicity, a, b, configuration=z, pair_note=_pair_note(c, z))
+            out = [SignalClass(c.atoms, c.multiplicity, a, b, configuration=z, pair_with=_pair_with(c, z))
                    for c, a, b, z in zip(cc, m.tolist(), s.tolist(), mu.configuration_of([c.atoms for c in cc]))]
         else:
             out = [SignalClass(c.atoms, c.multiplicity, _mean(mu, c.atoms), _mean(sg, c.atoms)) for c in cc]
@@ -660,7 +660,7 @@ class HsqcEvidence(_Evidence):
         atoms = [c.atoms for c in cc]
         mc, sc = means_c.of(atoms)
         mh, sh = means_h.of(atoms)
-        return [SignalClass(c.atoms, c.multiplicity, a, b, shift_h=x, sigma_h=y, configuration=z, pair_note=_pair_note(c, z))
+        return [SignalClass(c.atoms, c.multiplicity, a, b, shift_h=x, sigma_h=y, configuration=z, pair_with=_pair_with(c, z))
                 for c, a, b, x, y, z in zip(cc, mc.tolist(), sc.tolist(), mh.tolist(), sh.tolist(), means_c.configuration_of(atoms))]
 
     def prepare(self, mol: Chem.Mol, ranks, mu, sg, peaks: list[ObservedPeak], facts=None) -> Prepared:

@@ -113,7 +113,7 @@ class SignalClass:
     bonds: int | None = None      # HMBC: bonds from those protons to the carbons (COSY: between the two protons)
     distance: float | None = None  # NOESY: the two protons' effective distance in space (Å)
     configuration: float = 0.0    # 13C, HSQC: ppm of E/Z increments inside ``shift`` (said in the tables)
-    pair_note: str | None = None  # 13C, HSQC: one of alike groups cis and trans across a double bond (said in the tables)
+    pair_with: list | None = None  # 13C, HSQC: the alike atoms cis/trans across a double bond whose increment split them
 
     @property
     def may_go_unseen(self) -> bool:

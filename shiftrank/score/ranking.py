@@ -440,6 +440,8 @@ def _score_candidate(prep: _Prepared, preds: dict, peaks: dict, settings: Rankin
                 c.atoms = [std.atom_map[a] for a in c.atoms]
                 if c.h_atoms is not None:
                     c.h_atoms = [std.atom_map[a] for a in c.h_atoms]
+                if c.pair_with is not None:
+                    c.pair_with = [std.atom_map[a] for a in c.pair_with]
     res.cost = total
     return res
 
