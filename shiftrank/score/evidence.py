@@ -179,9 +179,9 @@ class NucleusResult:
             notes = (["unobserved" + (f" ({c.unseen_why})" if c.may_go_unseen else "")] if p.peak is None else []) \
                 + (["shares a peak"] if p.shared else []) + ([">3σ"] if p.z is not None and abs(p.z) > 3 else []) \
                 + ([] if p.multiplicity_ok else ["DEPT mismatch" if self.nucleus == "13C" else "multiplet mismatch"]) \
-                + ([increment_note(c.configuration)] if abs(c.configuration) >= 0.05 else []) \
-                + ([f"one of a cis/trans pair with atom {','.join(map(str, c.pair_with))} (which is which the drawing "
-                    "does not say)"] if c.pair_with else [])
+                + ([f"E/Z {c.configuration:+.1f}: one of a cis/trans pair with atom {','.join(map(str, c.pair_with))} "
+                    "(which is which the drawing does not say)"] if c.pair_with else
+                   [increment_note(c.configuration)] if abs(c.configuration) >= 0.05 else [])
             row = {"atoms": c.atoms, "class": p.cls, "multiplicity": c.multiplicity,
                    "predicted": _r(c.shift, 2), "sigma": _r(c.sigma, 2), "peak": p.peak,
                    "observed": None if p.peak is None else _r(self.peaks[p.peak].shift, 3),
