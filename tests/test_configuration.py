@@ -221,3 +221,27 @@ def test_the_ranking_uses_the_twin_pair_and_says_so():
     notes = {tuple(r["atoms"]): r["notes"] for r in top.nuclei["13C"].assignment_table()}
     assert any("one of a cis/trans pair with atom 2" in n for n in notes[(0,)])
     assert any("one of a cis/trans pair with atom 0" in n for n in notes[(2,)])
+
+
+def test_twin_orientation_from_3d_coordinates_and_none_from_a_flat_point():
+    # 3D coordinates (an embedded conformer): the cis twin is the one whose dihedral to the CH2 is under 90°,
+    # worked out here with numpy; a molfile whose atoms all sit at the origin says nothing, and the pair is a guess
+    from rdkit.Chem import AllChem
+    from shiftrank.prediction.configuration import twin_pairs
+
+    m = Chem.AddHs(Chem.MolFromSmiles("CC(C)=CCO"))
+    AllChem.EmbedMolecule(m, randomSeed=11)
+    m = Chem.RemoveHs(m)
+    xyz = m.GetConformer().GetPositions()
+
+    def dihedral(i, j, k, l):
+        b0, b1, b2 = xyz[i] - xyz[j], xyz[k] - xyz[j], xyz[l] - xyz[k]
+        v, w = b0 - b1 * (b0 @ b1) / (b1 @ b1), b2 - b1 * (b2 @ b1) / (b1 @ b1)
+        return np.degrees(np.arccos(np.clip(v @ w / np.linalg.norm(v) / np.linalg.norm(w), -1, 1)))
+
+    (cis, trans, _, oriented), = twin_pairs(m)
+    assert oriented and dihedral(cis, 1, 3, 4) < 90 < dihedral(trans, 1, 3, 4)
+    flat = Chem.MolFromMolBlock("\n".join(line if not 3 < i < 10 else "    0.0000    0.0000    0.0000" + line[30:]
+                                          for i, line in enumerate(PRENOL_MOLFILE.split("\n"))))
+    assert [t[3] for t in twin_pairs(flat)] == [False]
+    assert predict(flat).cis_trans_pairs

@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import numpy as np
 from rdkit import Chem
+from rdkit.Chem import rdMolTransforms
 
 #: role names, in column order.  "cis"/"trans" say where heavy groups of the double bond's other atom
 #: lie relative to the centre (sp3 or sp2 neighbour of the bond) or to the H of a vinyl CH.
@@ -161,19 +162,15 @@ def twin_pairs(mol: Chem.Mol) -> list[tuple[int, int, int, bool]]:
 
 
 def _same_side(conf, x: int, y: int, t: int, p: int) -> bool | None:
-    """Whether ``t`` (on ``x``) and ``p`` (on ``y``) lie on one side of the bond x=y in the drawing (None: flat
-    or no coordinates)."""
-    px, py = conf.GetAtomPosition(x), conf.GetAtomPosition(y)
-    dx, dy = py.x - px.x, py.y - px.y
-
-    def side(origin, atom) -> float:
-        q = conf.GetAtomPosition(atom)
-        return dx * (q.y - origin.y) - dy * (q.x - origin.x)
-
-    st, sp = side(px, t), side(py, p)
-    if abs(st) < 1e-6 or abs(sp) < 1e-6:
+    """Whether ``t`` (on ``x``) and ``p`` (on ``y``) lie on one side of the bond x=y in the drawing or the 3D
+    coordinates: the dihedral t–x–y–p under 90° (None: atoms drawn on one line, or all at one point)."""
+    try:
+        angle = rdMolTransforms.GetDihedralDeg(conf, t, x, y, p)
+    except (ValueError, RuntimeError):   # two of the atoms at one point (a molfile without coordinates)
         return None
-    return (st > 0) == (sp > 0)
+    if not np.isfinite(angle) or abs(abs(angle) - 90.0) < 1.0:
+        return None
+    return abs(angle) < 90.0
 
 
 def increments_from_entry(entry: dict) -> np.ndarray | None:
