@@ -71,6 +71,10 @@ def test_bad_smiles():
     ("CC1(C)CCc2ccccc2O1", 10, "2,2-dimethylchroman, no stereocentre: one methyl signal (common practice)"),
     ("OC(c1ccccc1)C1CCCCC1", 11, "cyclohexyl(phenyl)methanol: C2/C6 and C3/C5 of the cyclohexyl split (common practice)"),
     ("CC(C)(C)C(O)c1ccccc1", 7, "a tert-butyl: its three methyls rotate into each other, one signal (common practice)"),
+    # the same on a phosphorus with four groups
+    ("COP(=O)(OC)C(C)NC(=O)C(C)(C)C", 7, "an α-amido phosphonate: two OCH3 signals, printed 53.1 and 52.9 ppm in "
+     "PMC6222910 (open-access article via the NMRExtractor data set)"),
+    ("CCOP(=O)(OCC)Cc1ccccc1", 7, "diethyl benzylphosphonate, no stereocentre: one OEt set (common practice)"),
 ])
 def test_stereo_aware_symmetry(smiles, signals, why):
     assert structure_facts(smiles).expected_13c_signals == signals, why

@@ -181,8 +181,9 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     alike groups that give separate signals, with the matching atoms further along the two groups:
 
     * ``'stereo'``: two alike sp3 groups on a prochiral sp3 carbon (Caabc, H counting once: the
-      methyls of an isopropyl, a gem-dimethyl, C2/C6 and C3/C5 of a cyclohexyl) in a molecule with
-      a stereocentre elsewhere are diastereotopic; they differ in shift, usually by 0.3–3 ppm
+      methyls of an isopropyl, a gem-dimethyl, C2/C6 and C3/C5 of a cyclohexyl) or on a phosphorus with
+      four groups (the two OEt of an α-aminophosphonate) in a molecule with a stereocentre elsewhere are
+      diastereotopic; they differ in shift, usually by 0.3–3 ppm
       (valine's methyls 19.0 and 17.6 ppm; common practice, values from memory).  Without a
       stereocentre the two groups are enantiotopic and give one signal.
     * ``'amide'``: the two alike N-substituents of a tertiary amide or thioamide are cis and trans to
@@ -222,8 +223,9 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     sites = []   # (centre, its two alike neighbours, reason)
     for x in _atoms(mol):
         nh = x.GetTotalNumHs()
-        if (x.GetAtomicNum() != 6 or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3
-                or x.GetHybridization() != Chem.HybridizationType.SP3):
+        # (a phosphorus with four groups counts too: the two OR of a phosphonate beside a stereocentre differ)
+        if (x.GetAtomicNum() not in (6, 15) or x.GetIsAromatic() or x.GetDegree() + nh != 4 or x.GetDegree() < 3
+                or (x.GetAtomicNum() == 6 and x.GetHybridization() != Chem.HybridizationType.SP3)):
             continue
         by_rank = _neighbours_by_rank(x, ranks)
         pairs = [g for g in by_rank.values() if len(g) == 2]
