@@ -75,6 +75,11 @@ def test_bad_smiles():
     ("COP(=O)(OC)C(C)NC(=O)C(C)(C)C", 7, "an α-amido phosphonate: two OCH3 signals, printed 53.1 and 52.9 ppm in "
      "PMC6222910 (open-access article via the NMRExtractor data set)"),
     ("CCOP(=O)(OCC)Cc1ccccc1", 7, "diethyl benzylphosphonate, no stereocentre: one OEt set (common practice)"),
+    # whole aryl groups: each ring keeps its symmetric pairs, the two rings differ
+    ("C[C@H](O)C(c1ccccc1)c1ccccc1", 11, "1,1-diphenylpropan-2-ol: two phenyl sets beside the stereocentre (common practice)"),
+    ("O=C(O)CN=C(c1ccccc1)c1ccccc1", 11, "a benzophenone imine of glycine: two phenyl sets, cis and trans across C=N "
+     "(common practice)"),
+    ("CC(=O)N(Cc1ccccc1)Cc1ccccc1", 12, "N,N-dibenzylacetamide: two benzyl sets, slow amide rotation (common practice)"),
 ])
 def test_stereo_aware_symmetry(smiles, signals, why):
     assert structure_facts(smiles).expected_13c_signals == signals, why

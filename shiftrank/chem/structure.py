@@ -207,7 +207,9 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
       and 25.8 ppm, 1H 1.68 and 1.75; the methyls of acetone oxime about 15 and 22 ppm; a cyclohexylidene's
       C2 and C6; common practice, values from memory).  A C(CH3)2=C(CH3)2 or =CH2 end leaves them alike.
 
-    Aromatic atoms are left out (a ring flip exchanges the two ortho carbons of a phenyl).  ``near``
+    Two separate groups (not joined in a ring through the centre) are split whole, so the two phenyls of a
+    benzhydryl group or of a benzophenone imine differ while each keeps its ortho and meta pairs (a ring flip
+    exchanges them); groups joined in a ring are followed in step, and there aromatic atoms are left out.  ``near``
     keeps only the diastereotopic pairs whose prochiral carbon lies within that many bonds of a
     stereocentre (1H: a remote stereocentre leaves the two groups' protons unresolved, as the two
     isopropyl doublets of a cholesterol side chain, 0.87 and 0.86 ppm; from memory).
@@ -251,6 +253,13 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
     sites.extend(ring_twin_sites(mol, ranks))
     side: dict[int, tuple[int, str]] = {}
     for x, a, b, why in sites:
+        ga, gb = _branch(mol, a, x), _branch(mol, b, x)
+        if ga is not None and gb is not None and not ga & gb and not (ga | gb) & side.keys():
+            # two separate groups (a benzyl, a phenyl): each whole group on its side, so a ring keeps its
+            # symmetric pairs together (a ring flip exchanges them) while the two rings differ
+            side.update({i: (0, why) for i in ga})
+            side.update({i: (1, why) for i in gb})
+            continue
         todo = [(a, b, x, x)]
         while todo:
             u, v, pu, pv = todo.pop()
@@ -263,6 +272,26 @@ def twin_sides(mol: Chem.Mol, ranks: list[int] | None = None, near: int | None =
                 if len(us) == 1 and len(nv.get(r, ())) == 1:
                     todo.append((us[0], nv[r][0], u, v))
     return side
+
+
+def _branch(mol: Chem.Mol, start: int, block: int, limit: int = 40) -> set[int] | None:
+    """The atoms reachable from ``start`` without passing ``block`` (None when that reaches ``block`` again, i.e.
+    the group is part of a ring through it, or has more than ``limit`` atoms)."""
+    seen, todo = {start}, [start]
+    while todo:
+        u = todo.pop()
+        for n in mol.GetAtomWithIdx(u).GetNeighbors():
+            j = n.GetIdx()
+            if j == block:
+                if u != start:
+                    return None
+                continue
+            if j not in seen:
+                seen.add(j)
+                if len(seen) > limit:
+                    return None
+                todo.append(j)
+    return seen
 
 
 def alkene_twin_sites(mol: Chem.Mol, ranks) -> list[tuple[int, int, int, str]]:
