@@ -213,8 +213,9 @@ class NucleusResult:
         return rows
 
     def to_dict(self, detail: bool = False) -> dict:
+        listed = self.listed_signals
         d = {"expected_signals": len(self.classes), "observed_signals": self.observed_signals,
-             **({"listed_values": self.listed_signals} if self.listed_signals != self.observed_signals else {}),
+             **({"listed_values": listed} if listed != self.observed_signals else {}),
              "mae": _r(self.mae, 3), "max_deviation": _r(self.max_abs_deviation, 2),
              "beyond_3sigma": self.beyond_3sigma, "cost": _r(self.cost, 3),
              "cost_parts": {k: _r(v, 3) for k, v in self.assignment.parts.items()}, "flags": self.flags}
